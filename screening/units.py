@@ -1,0 +1,284 @@
+"""The strict front door for quantities with units.
+
+Input strings such as ``"50 L"``, ``"200 bar(g)"`` or ``"15 degC"`` are split into a number and a
+unit by a fixed pattern; the number must be finite and the unit must be on an allowlist of what a
+user of this trade writes. Only then does pint (one registry for the whole package) convert the
+number, using a unit name that comes from the allowlist, never from the raw input. Input text never
+reaches pint's expression parser and is never evaluated.
+
+Pressures carry a basis: gauge or absolute. ``bar(g)``, ``barg``, ``psig`` … are gauge;
+``bar(a)``, ``bara``, ``psia`` … absolute. A bare ``bar`` takes the case's ``pressure_basis``
+when the case sets one; otherwise it is an input error.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+
+import pint
+
+from screening.constants import (
+    G0,
+    LAPSE_RATE_STANDARD_ATMOSPHERE,
+    M_AIR_STANDARD_ATMOSPHERE,
+    P_STANDARD_ATMOSPHERE,
+    R,
+    T0_STANDARD_ATMOSPHERE,
+)
+from screening.errors import InputError
+
+#: The package's one unit registry.
+ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
+
+_NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,4})?"
+_PATTERN = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
+_MAX_TEXT = 64
+
+
+@dataclass(frozen=True)
+class UnitSpec:
+    """One allowlisted unit: its label for display, its dimension kind and its pint name."""
+
+    label: str
+    kind: str            # pressure | temperature | volume | mass | fraction | density | length | speed | irradiance
+    pint_name: str
+    basis: str | None = None   # pressure only: "gauge", "absolute" or None (unstated)
+
+
+def _pressure_units() -> dict[str, UnitSpec]:
+    table: dict[str, UnitSpec] = {}
+    for base, pint_name in (("bar", "bar"), ("mbar", "millibar"), ("Pa", "pascal"), ("kPa", "kilopascal"),
+                            ("MPa", "megapascal"), ("psi", "psi")):
+        table[base] = UnitSpec(base, "pressure", pint_name, None)
+        for suffix, basis in (("(g)", "gauge"), ("(a)", "absolute"), ("g", "gauge"), ("a", "absolute")):
+            if base == "Pa" and suffix in ("g", "a"):
+                continue  # "Pag"/"Paa" are not written in practice
+            table[base + suffix] = UnitSpec(f"{base}({suffix.strip('()')})", "pressure", pint_name, basis)
+    table["atm"] = UnitSpec("atm", "pressure", "standard_atmosphere", "absolute")
+    return table
+
+
+_UNITS: dict[str, UnitSpec] = {
+    **_pressure_units(),
+    # temperatures (absolute or on a scale with an offset; converted to kelvin before any arithmetic)
+    "K": UnitSpec("K", "temperature", "kelvin"),
+    "degC": UnitSpec("degC", "temperature", "degree_Celsius"),
+    "°C": UnitSpec("°C", "temperature", "degree_Celsius"),
+    "C": UnitSpec("°C", "temperature", "degree_Celsius"),
+    "degF": UnitSpec("degF", "temperature", "degree_Fahrenheit"),
+    "°F": UnitSpec("°F", "temperature", "degree_Fahrenheit"),
+    "F": UnitSpec("°F", "temperature", "degree_Fahrenheit"),
+    # volumes
+    "L": UnitSpec("L", "volume", "liter"),
+    "l": UnitSpec("L", "volume", "liter"),
+    "litre": UnitSpec("L", "volume", "liter"),
+    "liter": UnitSpec("L", "volume", "liter"),
+    "mL": UnitSpec("mL", "volume", "milliliter"),
+    "dm3": UnitSpec("dm3", "volume", "decimeter**3"),
+    "m3": UnitSpec("m3", "volume", "meter**3"),
+    "m³": UnitSpec("m³", "volume", "meter**3"),
+    "ft3": UnitSpec("ft3", "volume", "foot**3"),
+    "ft³": UnitSpec("ft³", "volume", "foot**3"),
+    "cu ft": UnitSpec("ft3", "volume", "foot**3"),
+    "in3": UnitSpec("in3", "volume", "inch**3"),
+    # masses
+    "kg": UnitSpec("kg", "mass", "kilogram"),
+    "g": UnitSpec("g", "mass", "gram"),
+    "lb": UnitSpec("lb", "mass", "pound"),
+    "lbm": UnitSpec("lb", "mass", "pound"),
+    # fractions
+    "%": UnitSpec("%", "fraction", "percent"),
+    "": UnitSpec("", "fraction", "dimensionless"),
+    # fill densities / filling ratios
+    "kg/L": UnitSpec("kg/L", "density", "kilogram/liter"),
+    "kg/l": UnitSpec("kg/L", "density", "kilogram/liter"),
+    "kg/m3": UnitSpec("kg/m3", "density", "kilogram/meter**3"),
+    "g/L": UnitSpec("g/L", "density", "gram/liter"),
+    "lb/ft3": UnitSpec("lb/ft3", "density", "pound/foot**3"),
+    # lengths, speeds, irradiance (exposure)
+    "m": UnitSpec("m", "length", "meter"),
+    "mm": UnitSpec("mm", "length", "millimeter"),
+    "cm": UnitSpec("cm", "length", "centimeter"),
+    "in": UnitSpec("in", "length", "inch"),
+    "ft": UnitSpec("ft", "length", "foot"),
+    "m/s": UnitSpec("m/s", "speed", "meter/second"),
+    "km/h": UnitSpec("km/h", "speed", "kilometer/hour"),
+    "mph": UnitSpec("mph", "speed", "mile/hour"),
+    "W/m2": UnitSpec("W/m2", "irradiance", "watt/meter**2"),
+    "W/m²": UnitSpec("W/m²", "irradiance", "watt/meter**2"),
+}
+
+_SI_UNIT = {
+    "pressure": "pascal", "temperature": "kelvin", "volume": "meter**3", "mass": "kilogram",
+    "fraction": "dimensionless", "density": "kilogram/meter**3", "length": "meter",
+    "speed": "meter/second", "irradiance": "watt/meter**2",
+}
+
+_EXAMPLES = {
+    "pressure": "a number and a pressure unit with its basis, e.g. '200 bar(g)', '3000 psig', '21 MPa(a)'",
+    "temperature": "a number and a temperature unit, e.g. '15 degC', '59 degF', '288.15 K'",
+    "volume": "a number and a volume unit, e.g. '50 L', '2.5 ft3', '0.05 m3'",
+    "mass": "a number and a mass unit, e.g. '37.5 kg', '82 lb'",
+    "fraction": "a percentage or a plain fraction, e.g. '10 %' or '0.1'",
+    "density": "a number and a fill-density unit, e.g. '0.75 kg/L'",
+    "length": "a number and a length unit, e.g. '229 mm', '1.4 m'",
+    "speed": "a number and a speed unit, e.g. '2 m/s', '10 km/h'",
+    "irradiance": "a number and an irradiance unit, e.g. '1000 W/m2'",
+}
+
+
+def expected_for(kind: str) -> str:
+    """Plain words for what an input of `kind` should look like."""
+    return _EXAMPLES[kind]
+
+
+@dataclass(frozen=True)
+class Reading:
+    """A parsed input quantity: the text as entered, the number, and its allowlisted unit."""
+
+    text: str
+    number: float
+    unit: UnitSpec
+
+    @property
+    def kind(self) -> str:
+        return self.unit.kind
+
+    def si(self) -> float:
+        """Value in SI [Pa, K, m3, kg, -, kg/m3, m, m/s, W/m2]; for a pressure, as written (no basis applied)."""
+        q = ureg.Quantity(self.number, ureg.Unit(self.unit.pint_name))
+        return float(q.to(ureg.Unit(_SI_UNIT[self.kind])).magnitude)
+
+    def si_difference(self) -> float:
+        """Value as a difference (temperature tolerances: 2 degC is a 2 K difference) [SI]."""
+        if self.kind == "temperature":
+            scale = {"kelvin": 1.0, "degree_Celsius": 1.0, "degree_Fahrenheit": 5.0 / 9.0}[self.unit.pint_name]
+            return self.number * scale
+        return self.si()
+
+
+def _split(text: object, *, where: dict) -> tuple[float, str]:
+    if isinstance(text, bool) or not isinstance(text, (str, int, float)):
+        raise InputError("expected a quantity written as text", given=text, **where)
+    raw = str(text)
+    if len(raw) > _MAX_TEXT:
+        raise InputError("the quantity is too long to be a number and a unit", given=raw[:_MAX_TEXT] + "…", **where)
+    m = _PATTERN.match(raw)
+    if not m:
+        raise InputError("not a number followed by a unit", given=raw, **where)
+    number = float(m.group(1))
+    if not math.isfinite(number):
+        raise InputError("the number is not finite", given=raw, **where)
+    return number, m.group(2)
+
+
+def parse(text: object, kind: str, *, pressure_basis: str | None = None, **where) -> Reading:
+    """Parse `text` as a quantity of dimension `kind`; raise InputError naming `where` otherwise.
+
+    >>> round(parse("50 L", "volume").si(), 12)
+    0.05
+    >>> parse("15 degC", "temperature").si()
+    288.15
+    >>> parse("200 bar(g)", "pressure").unit.basis
+    'gauge'
+    """
+    expected = expected_for(kind)
+    if kind == "fraction" and isinstance(text, (int, float)) and not isinstance(text, bool):
+        text = repr(float(text))
+    number, unit_text = _split(text, where={"expected": expected, **where})
+    spec = _UNITS.get(unit_text)
+    if spec is None:
+        raise InputError(f"unit '{unit_text}' is not one this tool reads", given=str(text), expected=expected,
+                         **where)
+    if spec.kind != kind:
+        raise InputError(f"'{unit_text}' is a unit of {spec.kind or 'nothing'}, not of {kind}", given=str(text),
+                         expected=expected, **where)
+    if kind == "pressure" and spec.basis is None:
+        if pressure_basis is None:
+            raise InputError(
+                "a pressure must say whether it is gauge or absolute",
+                given=str(text), expected=f"e.g. '{number:g} {spec.label}(g)' or '{number:g} {spec.label}(a)', "
+                "or set pressure_basis = \"gauge\" or \"absolute\" at the top of the case", **where)
+        spec = UnitSpec(f"{spec.label}({pressure_basis[0]})", "pressure", spec.pint_name, pressure_basis)
+    return Reading(str(text), number, spec)
+
+
+def to_absolute_pressure(reading: Reading, atmospheric_pa: float) -> float:
+    """Absolute pressure [Pa] of a pressure reading, adding the site's atmospheric pressure to gauge values."""
+    p = reading.si()
+    return p + atmospheric_pa if reading.unit.basis == "gauge" else p
+
+
+def standard_atmosphere_pressure(elevation_m: float) -> float:
+    """Atmospheric pressure [Pa] at `elevation_m` [m] by the standard-atmosphere barometric formula.
+
+    p = p0 (1 - L h / T0) ** (g0 M / (R L))  (ISO 2533:1975, troposphere, valid up to 11 000 m).
+
+    >>> round(standard_atmosphere_pressure(1000.0))
+    89875
+    """
+    if not -500.0 <= elevation_m <= 11000.0:
+        raise InputError("elevation outside the standard-atmosphere troposphere", given=elevation_m,
+                         expected="-500 m to 11 000 m")
+    exponent = G0 * M_AIR_STANDARD_ATMOSPHERE / (R * LAPSE_RATE_STANDARD_ATMOSPHERE)
+    return P_STANDARD_ATMOSPHERE * (1.0 - LAPSE_RATE_STANDARD_ATMOSPHERE * elevation_m / T0_STANDARD_ATMOSPHERE) ** exponent
+
+
+# ---------------------------------------------------------------- display (the edge going out)
+
+def from_si(value: float, label: str) -> float:
+    """Convert an SI value into the allowlisted unit `label` (no pressure basis handling)."""
+    spec = _UNITS[label] if label in _UNITS else _UNITS[label.replace("(g)", "").replace("(a)", "")]
+    q = ureg.Quantity(value, ureg.Unit(_SI_UNIT[spec.kind]))
+    return float(q.to(ureg.Unit(spec.pint_name)).magnitude)
+
+
+def pressure_in(p_abs_pa: float, label: str, atmospheric_pa: float) -> float:
+    """An absolute pressure [Pa] expressed in the display unit `label` (e.g. 'bar(g)', 'psia')."""
+    spec = _UNITS[label]
+    p = p_abs_pa - atmospheric_pa if spec.basis == "gauge" else p_abs_pa
+    return float(ureg.Quantity(p, ureg.pascal).to(ureg.Unit(spec.pint_name)).magnitude)
+
+
+def temperature_in(t_k: float, label: str) -> float:
+    """A temperature [K] in the display unit `label` ('K', 'degC', '°C', 'degF', '°F')."""
+    spec = _UNITS[label]
+    return float(ureg.Quantity(t_k, ureg.kelvin).to(ureg.Unit(spec.pint_name)).magnitude)
+
+
+def _fmt(x: float, digits: int) -> str:
+    return f"{x:,.{digits}f}".replace(",", "\u2009") if abs(x) >= 10000 else f"{x:.{digits}f}"
+
+
+def format_pressure(p_abs_pa: float | None, label: str, atmospheric_pa: float, digits: int | None = None) -> str:
+    """'250.6 bar(g)' from an absolute pressure [Pa]; '—' for None."""
+    if p_abs_pa is None:
+        return "—"
+    v = pressure_in(p_abs_pa, label, atmospheric_pa)
+    if digits is None:
+        digits = 1 if abs(v) >= 10 else 2 if abs(v) >= 1 else 3
+    return f"{_fmt(v, digits)} {_UNITS[label].label}"
+
+
+def format_temperature(t_k: float | None, label: str, digits: int = 1) -> str:
+    """'65.0 °C' from a temperature [K]; '—' for None."""
+    if t_k is None:
+        return "—"
+    spec = _UNITS[label]
+    shown = {"degC": "°C", "degF": "°F"}.get(spec.label, spec.label)
+    return f"{temperature_in(t_k, label):.{digits}f} {shown}"
+
+
+def format_quantity(value_si: float | None, label: str, digits: int = 2) -> str:
+    """Any other allowlisted quantity from SI into `label`."""
+    if value_si is None:
+        return "—"
+    return f"{_fmt(from_si(value_si, label), digits)} {_UNITS[label].label}".rstrip()
+
+
+def format_percent(fraction: float | None, digits: int = 1) -> str:
+    if fraction is None:
+        return "—"
+    return f"{100.0 * fraction:.{digits}f} %"
