@@ -1,0 +1,311 @@
+"""Read and validate a single-vessel case file (TOML) into a plain `Case` in SI units.
+
+Every failure is an `InputError` naming the file, the key, what was given and what was expected.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import tomllib
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from screening.constants import P_STANDARD_ATMOSPHERE
+from screening.errors import InputError
+from screening.inputs.gas_spec import parse_gas
+from screening.physics.gases import Mixture
+from screening.units import Reading, parse, standard_atmosphere_pressure, to_absolute_pressure
+
+#: The default required margin: a tool default, not a code requirement.
+DEFAULT_REQUIRED_MARGIN = 0.10
+
+# Allowed keys per table: anything else is an input error (a misspelt key must not be ignored).
+_SCHEMA: dict[str, set[str]] = {
+    "": {"id", "description", "pressure_basis", "site", "vessel", "fill", "exposure", "criteria"},
+    "site": {"name", "atmospheric_pressure", "elevation"},
+    "vessel": {"water_capacity", "rated_pressure", "rated_pressure_kind", "relief_set_pressure",
+               "max_filling_ratio"},
+    "fill": {"gas", "pressure", "temperature", "mass"},
+    "exposure": {"ambient_max", "gas_temperature"},
+    "criteria": {"required_margin"},
+}
+_TABLES = {"site", "vessel", "fill", "exposure", "criteria"}
+
+
+@dataclass(frozen=True)
+class Site:
+    name: str | None
+    atmospheric_pressure_pa: float          # [Pa]
+    elevation_m: float | None               # [m]
+
+
+@dataclass(frozen=True)
+class Case:
+    """One vessel's screening input, validated, in SI (pressures absolute)."""
+
+    id: str
+    description: str | None
+    source: str                              # file name as given
+    text: str                                # the case file as entered
+    site: Site
+    gas: Mixture
+    water_capacity_m3: float                 # [m3]
+    rated_pressure_pa: float                 # [Pa] absolute
+    rated_pressure_kind: str | None
+    relief_set_pressure_pa: float | None     # [Pa] absolute
+    max_filling_ratio_kg_m3: float | None    # [kg/m3] of water capacity
+    fill_pressure_pa: float | None           # [Pa] absolute
+    fill_temperature_k: float | None         # [K]
+    fill_mass_kg: float | None               # [kg]
+    ambient_max_k: float | None              # [K]
+    gas_temperature_k: float | None          # [K]
+    required_margin: float                   # [-]
+    required_margin_is_default: bool
+    inputs: tuple[dict, ...] = ()            # key, entered, si_value, si_unit (for reports)
+    display_units: dict = field(default_factory=dict)
+
+    @property
+    def input_sha256(self) -> str:
+        return hashlib.sha256(self.text.encode("utf-8")).hexdigest()
+
+    @property
+    def worst_case_temperature_k(self) -> float:
+        """The worst-case gas temperature [K]: the stated gas temperature, else the ambient maximum;
+        the higher of the two when both are given (conservative)."""
+        values = [t for t in (self.gas_temperature_k, self.ambient_max_k) if t is not None]
+        return max(values)
+
+    @property
+    def worst_case_basis(self) -> str:
+        if self.gas_temperature_k is not None and (self.ambient_max_k is None
+                                                   or self.gas_temperature_k >= self.ambient_max_k):
+            return "gas temperature stated in the case"
+        return "ambient maximum"
+
+
+class _Reader:
+    """Reads keys from the parsed TOML with the file name attached to every error."""
+
+    def __init__(self, data: dict, source: str) -> None:
+        self.data = data
+        self.source = source
+        self.inputs: list[dict] = []
+        self.labels: dict[str, str] = {}
+
+    def err(self, message: str, key: str, **kw) -> InputError:
+        return InputError(message, file=self.source, key=key, **kw)
+
+    def table(self, name: str) -> dict:
+        value = self.data.get(name, {})
+        if not isinstance(value, dict):
+            raise self.err("expected a table", name, given=value, expected=f"a [{name}] table")
+        return value
+
+    def raw(self, table: str, key: str, required: bool = False):
+        value = self.table(table).get(key) if table else self.data.get(key)
+        full = f"{table}.{key}" if table else key
+        if value is None and required:
+            raise self.err("required key is missing", full, expected=f"'{key}' in the [{table}] table"
+                           if table else f"'{key}' at the top of the case")
+        return value
+
+    def text(self, table: str, key: str, required: bool = False) -> str | None:
+        value = self.raw(table, key, required)
+        if value is None:
+            return None
+        if not isinstance(value, str) or not value.strip():
+            raise self.err("expected a non-empty text", f"{table}.{key}" if table else key, given=value,
+                           expected="a quoted text")
+        return value
+
+    def quantity(self, table: str, key: str, kind: str, required: bool = False,
+                 pressure_basis: str | None = None) -> Reading | None:
+        value = self.raw(table, key, required)
+        if value is None:
+            return None
+        full = f"{table}.{key}"
+        reading = parse(value, kind, pressure_basis=pressure_basis, file=self.source, key=full)
+        self.labels.setdefault(kind, reading.unit.label)
+        return reading
+
+    def record(self, key: str, reading: Reading | None, si_value: float | None, si_unit: str) -> None:
+        if reading is not None:
+            self.inputs.append({"key": key, "entered": reading.text, "si_value": si_value, "si_unit": si_unit})
+
+
+def _check_keys(data: dict, source: str) -> None:
+    for table, allowed in _SCHEMA.items():
+        keys = data if table == "" else data.get(table, {})
+        if table and not isinstance(keys, dict):
+            raise InputError("expected a table", file=source, key=table, given=keys,
+                             expected=f"a [{table}] table")
+        for key in keys:
+            if key not in allowed:
+                full = f"{table}.{key}" if table else key
+                hint = (f"[{table}] keys: " if table else "top-level keys: ") + ", ".join(sorted(allowed))
+                raise InputError("unknown key", file=source, key=full, given=key, expected=hint)
+            if table == "" and key in _TABLES and not isinstance(data[key], dict):
+                raise InputError("expected a table", file=source, key=key, given=data[key],
+                                 expected=f"a [{key}] table")
+
+
+def parse_case_text(text: str, source: str = "<case>") -> Case:
+    """Parse and validate a case file's text. Raises InputError on any problem."""
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(f"not valid TOML: {exc}", file=source) from None
+    _check_keys(data, source)
+    r = _Reader(data, source)
+
+    case_id = r.text("", "id", required=True)
+    description = r.text("", "description")
+    basis = r.raw("", "pressure_basis")
+    if basis is not None and basis not in ("gauge", "absolute"):
+        raise r.err("pressure_basis must be gauge or absolute", "pressure_basis", given=basis,
+                    expected='"gauge" or "absolute"')
+
+    # --- site: atmospheric pressure for gauge conversion
+    site_name = r.text("site", "name")
+    p_atm_reading = r.quantity("site", "atmospheric_pressure", "pressure", pressure_basis="absolute")
+    elev_reading = r.quantity("site", "elevation", "length")
+    if p_atm_reading is not None and elev_reading is not None:
+        raise r.err("give either atmospheric_pressure or elevation, not both", "site.elevation",
+                    given=elev_reading.text, expected="one of the two")
+    elevation = None
+    if p_atm_reading is not None:
+        if p_atm_reading.unit.basis == "gauge":
+            raise r.err("atmospheric pressure is absolute by nature", "site.atmospheric_pressure",
+                        given=p_atm_reading.text, expected="an absolute pressure, e.g. '101.3 kPa(a)'")
+        p_atm = p_atm_reading.si()
+        if not 30e3 <= p_atm <= 110e3:
+            raise r.err("atmospheric pressure out of range", "site.atmospheric_pressure",
+                        given=p_atm_reading.text, expected="30 kPa(a) to 110 kPa(a)")
+        r.record("site.atmospheric_pressure", p_atm_reading, p_atm, "Pa (absolute)")
+    elif elev_reading is not None:
+        elevation = elev_reading.si()
+        try:
+            p_atm = standard_atmosphere_pressure(elevation)
+        except InputError as exc:
+            raise exc.located(file=source, key="site.elevation") from None
+        r.record("site.elevation", elev_reading, elevation, "m")
+    else:
+        p_atm = P_STANDARD_ATMOSPHERE
+
+    def pressure(table: str, key: str, required: bool = False) -> float | None:
+        reading = r.quantity(table, key, "pressure", required, pressure_basis=basis)
+        if reading is None:
+            return None
+        p_abs = to_absolute_pressure(reading, p_atm)
+        if p_abs <= 0.0:
+            raise r.err("absolute pressure must be above zero", f"{table}.{key}", given=reading.text,
+                        expected="an absolute pressure above 0")
+        r.record(f"{table}.{key}", reading, p_abs, "Pa (absolute)")
+        return p_abs
+
+    def temperature(table: str, key: str, required: bool = False) -> float | None:
+        reading = r.quantity(table, key, "temperature", required)
+        if reading is None:
+            return None
+        t = reading.si()
+        if t <= 0.0:
+            raise r.err("temperature at or below absolute zero", f"{table}.{key}", given=reading.text,
+                        expected="a temperature above 0 K")
+        r.record(f"{table}.{key}", reading, t, "K")
+        return t
+
+    def positive(table: str, key: str, kind: str, si_unit: str, required: bool = False) -> float | None:
+        reading = r.quantity(table, key, kind, required)
+        if reading is None:
+            return None
+        v = reading.si()
+        if v <= 0.0:
+            raise r.err(f"{kind} must be above zero", f"{table}.{key}", given=reading.text,
+                        expected=f"a positive {kind}")
+        r.record(f"{table}.{key}", reading, v, si_unit)
+        return v
+
+    # --- vessel
+    water_capacity = positive("vessel", "water_capacity", "volume", "m3", required=True)
+    rated = pressure("vessel", "rated_pressure", required=True)
+    if rated <= p_atm:
+        raise r.err("rated pressure must be above atmospheric pressure", "vessel.rated_pressure",
+                    given=r.raw("vessel", "rated_pressure"), expected="a gauge pressure above 0")
+    rated_kind = r.text("vessel", "rated_pressure_kind")
+    relief = pressure("vessel", "relief_set_pressure")
+    if relief is not None and relief <= p_atm:
+        raise r.err("relief set pressure must be above atmospheric pressure", "vessel.relief_set_pressure",
+                    given=r.raw("vessel", "relief_set_pressure"), expected="a gauge pressure above 0")
+    max_ratio = positive("vessel", "max_filling_ratio", "density", "kg/m3")
+
+    # --- fill
+    gas_value = r.raw("fill", "gas", required=True)
+    gas = parse_gas(gas_value, file=source, key="fill.gas")
+    fill_p = pressure("fill", "pressure")
+    fill_t = temperature("fill", "temperature")
+    fill_m = positive("fill", "mass", "mass", "kg")
+    if fill_m is not None and fill_p is not None:
+        raise r.err("give the fill as pressure and temperature, or as mass, not both", "fill.mass",
+                    given=r.raw("fill", "mass"), expected="either [fill] pressure + temperature, or [fill] mass")
+    if fill_m is None and fill_p is None:
+        raise r.err("the fill needs a pressure (with temperature) or a mass", "fill.pressure",
+                    expected="[fill] pressure + temperature, or [fill] mass")
+    if fill_p is not None and fill_t is None:
+        raise r.err("a fill pressure needs the temperature at which it was read", "fill.temperature",
+                    expected="e.g. temperature = \"15 degC\" in [fill]")
+
+    # --- exposure
+    ambient = temperature("exposure", "ambient_max")
+    gas_t = temperature("exposure", "gas_temperature")
+    if ambient is None and gas_t is None:
+        raise r.err("the worst case needs ambient_max or gas_temperature", "exposure.ambient_max",
+                    expected="[exposure] ambient_max = \"45 degC\" or gas_temperature = \"65 degC\"")
+
+    # --- criteria
+    margin_reading = r.quantity("criteria", "required_margin", "fraction")
+    if margin_reading is None:
+        margin, margin_default = DEFAULT_REQUIRED_MARGIN, True
+    else:
+        margin, margin_default = margin_reading.si(), False
+        if not 0.0 <= margin < 1.0:
+            raise r.err("required margin out of range", "criteria.required_margin", given=margin_reading.text,
+                        expected="0 % to below 100 %")
+        r.record("criteria.required_margin", margin_reading, margin, "-")
+
+    display = {
+        "pressure": r.labels.get("pressure", "bar(g)"),
+        "temperature": r.labels.get("temperature", "degC"),
+        "volume": r.labels.get("volume", "L"),
+        "mass": r.labels.get("mass", "kg"),
+    }
+    if display["pressure"] == "atm":
+        display["pressure"] = "bar(a)"
+
+    return Case(
+        id=case_id, description=description, source=source, text=text,
+        site=Site(site_name, p_atm, elevation), gas=gas,
+        water_capacity_m3=water_capacity, rated_pressure_pa=rated, rated_pressure_kind=rated_kind,
+        relief_set_pressure_pa=relief, max_filling_ratio_kg_m3=max_ratio,
+        fill_pressure_pa=fill_p, fill_temperature_k=fill_t, fill_mass_kg=fill_m,
+        ambient_max_k=ambient, gas_temperature_k=gas_t,
+        required_margin=margin, required_margin_is_default=margin_default,
+        inputs=tuple(r.inputs), display_units=display,
+    )
+
+
+def load_case(path: str | Path) -> Case:
+    """Read a case file from disk. A missing or unreadable file is an InputError."""
+    p = Path(path)
+    try:
+        raw = p.read_bytes()
+    except FileNotFoundError:
+        raise InputError("case file not found", file=str(path)) from None
+    except IsADirectoryError:
+        raise InputError("expected a case file, got a directory", file=str(path)) from None
+    except OSError as exc:
+        raise InputError(f"cannot read the case file: {exc.strerror}", file=str(path)) from None
+    try:
+        text = raw.decode("utf-8-sig")
+    except UnicodeDecodeError:
+        raise InputError("the case file is not UTF-8 text", file=str(path)) from None
+    return parse_case_text(text, source=str(path))
