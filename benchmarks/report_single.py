@@ -89,7 +89,8 @@ def main() -> int:
                 return 1
             a, b, c, d = (float(x) for x in done.stdout.split())
             print(f"{case.name:<24}{a:>12.2f}{b:>14.2f}{c:>8.2f}{d:>14.2f}")
-    print(f"\nslowest end-to-end run: {worst:.2f} s ({'within' if worst < BUDGET_S else 'OVER'} the {BUDGET_S:.1f} s budget)")
+    verdict = "within" if worst < BUDGET_S else "OVER"
+    print(f"\nslowest end-to-end run: {worst:.2f} s ({verdict} the {BUDGET_S:.1f} s budget)")
     return 0
 
 

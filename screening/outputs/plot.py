@@ -55,9 +55,13 @@ def _temp_label(label: str) -> str:
 def margin_line_pa(result: dict) -> float | None:
     """Absolute pressure [Pa] of rated × (1 − required margin), the margin taken on gauge pressure.
 
-    Display arithmetic on two numbers of the result, the same definition the result's
-    ``margin_fraction`` uses (1 − peak_gauge / rated_gauge).
+    The result's own ``limits.target_peak_pressure_pa`` when it gives one; otherwise display
+    arithmetic on two numbers of the result, with the definition ``margin_fraction`` uses
+    (1 − peak_gauge / rated_gauge).
     """
+    target = (result.get("limits") or {}).get("target_peak_pressure_pa")
+    if target is not None:
+        return target
     atm = result["site"]["atmospheric_pressure_pa"]
     rated = result["rated_pressure_pa"]
     m = result["required_margin_fraction"]
@@ -163,21 +167,21 @@ def plot_svg(result: dict) -> str:
         m_line = margin_line_pa(result)
         if _finite(rated):
             ax.axhline(P(rated), color="black", linewidth=1.8, linestyle="-", zorder=2)
-            ax.annotate("rated", xy=(0.995, P(rated)), xycoords=("axes fraction", "data"),
-                        xytext=(0, 2), textcoords="offset points", ha="right", fontsize=7.5, fontweight="bold",
+            ax.annotate("rated", xy=(0.005, P(rated)), xycoords=("axes fraction", "data"),
+                        xytext=(2, 2), textcoords="offset points", ha="left", fontsize=7.5, fontweight="bold",
                         bbox=_LABEL_BOX)
         if _finite(m_line) and _finite(rated):
             ax.axhline(P(m_line), color="black", linewidth=1.0, linestyle=(0, (6, 2)), zorder=2)
             ax.axhspan(P(m_line), P(rated), facecolor="none", edgecolor="#777777", hatch="////",
                        linewidth=0, zorder=1)
             pct = 100.0 * result["required_margin_fraction"]
-            ax.annotate(f"rated \u00d7 (1 \u2212 {pct:g} %)", xy=(0.995, P(m_line)),
-                        xycoords=("axes fraction", "data"), xytext=(0, -3), textcoords="offset points",
-                        ha="right", va="top", fontsize=7.5, bbox=_LABEL_BOX)
+            ax.annotate(f"rated \u00d7 (1 \u2212 {pct:g} %)", xy=(0.005, P(m_line)),
+                        xycoords=("axes fraction", "data"), xytext=(2, -3), textcoords="offset points",
+                        ha="left", va="top", fontsize=7.5, bbox=_LABEL_BOX)
         if _finite(relief):
             ax.axhline(P(relief), color="black", linewidth=1.2, linestyle=(0, (8, 2, 1.5, 2)), zorder=2)
-            ax.annotate("relief set", xy=(0.995, P(relief)), xycoords=("axes fraction", "data"),
-                        xytext=(0, 2), textcoords="offset points", ha="right", fontsize=7.5, bbox=_LABEL_BOX)
+            ax.annotate("relief set", xy=(0.005, P(relief)), xycoords=("axes fraction", "data"),
+                        xytext=(2, 2), textcoords="offset points", ha="left", fontsize=7.5, bbox=_LABEL_BOX)
         if _finite(t_wc):
             ax.axvline(T(t_wc), color="black", linewidth=0.9, linestyle=(0, (1, 2)), zorder=2)
             ax.annotate("worst-case\ntemperature", xy=(T(t_wc), 0.03), xycoords=("data", "axes fraction"),

@@ -219,13 +219,23 @@ def mpa_abs(p_pa: float | None) -> str:
 def _absolute_label(label: str) -> str:
     """The absolute-basis label of a display pressure unit ('bar(g)' -> 'bar(a)', 'psig' -> 'psia')."""
     if label.endswith("(g)"):
-        return label[:-3] + "(a)"
-    if label.endswith("g") and label not in ("g",):
-        return label[:-1] + "a"
-    return label
+        candidate = label[:-3] + "(a)"
+    elif label.endswith("g"):
+        candidate = label[:-1] + "a"
+    else:
+        candidate = label
+    try:
+        format_pressure(101325.0, candidate, 101325.0)
+    except KeyError:
+        return "kPa(a)"
+    return candidate
 
 
 # ----------------------------------------------------------------------------- the view
+
+def _unit(text: str, unit: str) -> str:
+    return text if text == "\u2014" else f"{text} {unit}"
+
 
 def _has_value(value) -> bool:
     """False for a row that would show only dashes (an intermediate the model did not reach)."""
@@ -259,6 +269,12 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
 
     def Pabs(pa):
         return format_pressure(pa, p_abs_unit, atm)
+
+    def PP(pa):
+        """Gauge and absolute side by side (as the display unit's basis allows)."""
+        if pa is None:
+            return "\u2014"
+        return P(pa) if p_abs_unit == p_unit else f"{P(pa)} = {Pabs(pa)}"
 
     def T(k):
         return format_temperature(k, t_unit)
@@ -325,15 +341,18 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
         ("Fill given by", str(fill["given"])),
         ("Fill pressure", f"not given (fill by {fill['given']})" if fill["pressure_pa"] is None
          else f"{P(fill['pressure_pa'])} = {mpa_abs(fill['pressure_pa'])} absolute"),
-        ("Fill temperature", f"{T(t_fill)} = {TK(t_fill)}"),
+        ("Fill temperature", f"{T(t_fill)} = {TK(t_fill)}"
+         + (" (assumed: none given)" if fill.get("temperature_given") is False else "")),
         ("Fill mass", format_quantity(fill["mass_kg"], m_unit, 3)),
-        ("Mass density at fill", f"{sig(fill['density_kg_m3'], 6)} kg/m\u00b3"),
-        (Markup("Molar density at fill, &rho;<sub>m</sub>"), f"{sig(fill['molar_density_mol_m3'], 6)} mol/m\u00b3"),
-        ("Filling ratio", f"{num(fill['filling_ratio_kg_per_l'], 4)} kg/L"
+        ("Mass density at fill", _unit(sig(fill["density_kg_m3"], 6), "kg/m\u00b3")),
+        (Markup("Molar density at fill, &rho;<sub>m</sub>"), _unit(sig(fill["molar_density_mol_m3"], 6), "mol/m\u00b3")),
+        ("Filling ratio", _unit(num(fill["filling_ratio_kg_per_l"], 4), "kg/L")
          + ("" if vessel.get("max_filling_ratio_kg_per_l") is None
             else f" (largest allowed {num(vessel['max_filling_ratio_kg_per_l'], 3)} kg/L)")),
-        ("Phase at fill", str(fill["phase"])),
+        ("Phase at fill", _text(fill["phase"]) or "\u2014"),
     ]
+    if fill.get("vapour_pressure_pa") is not None:
+        fill_rows.append(("Vapour pressure at the fill temperature", P(fill["vapour_pressure_pa"])))
     if vessel.get("rated_pressure_kind"):
         fill_rows.insert(1, ("Rated pressure is the", f"{vessel['rated_pressure_kind']} pressure"))
 
@@ -349,7 +368,7 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
         peak = m.get("peak_pressure_pa")
         if name == "ideal":
             if rho is not None:
-                rows.append((Markup("&rho;<sub>m</sub> = P<sub>1</sub> / (R T<sub>1</sub>)"), f"{sig(rho, 6)} mol/m\u00b3"))
+                rows.append((Markup("&rho;<sub>m</sub> = P<sub>1</sub> / (R T<sub>1</sub>)"), _unit(sig(rho, 6), "mol/m\u00b3")))
             if m.get("equation"):
                 rows.append(("Equation used", str(m["equation"])))
             if m["applicable"] and peak is not None and fill["pressure_pa"] is not None:
@@ -364,7 +383,7 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
                 (Markup("Pseudocritical temperature T<sub>pc</sub>"), TK(m.get("pseudocritical_temperature_k"))),
                 (Markup("Pseudocritical pressure P<sub>pc</sub>"), mpa_abs(m.get("pseudocritical_pressure_pa"))),
                 (Markup("Acentric factor &omega;"), num(m.get("acentric_factor"), 4)),
-                (Markup("Molar density used, &rho;<sub>m</sub>"), "\u2014" if rho is None else f"{sig(rho, 6)} mol/m\u00b3"),
+                (Markup("Molar density used, &rho;<sub>m</sub>"), _unit(sig(rho, 6), "mol/m\u00b3")),
                 (Markup("At fill: T<sub>r</sub> = T<sub>1</sub>/T<sub>pc</sub>, P<sub>r</sub> = P<sub>1</sub>/P<sub>pc</sub>"),
                  Markup("T<sub>r</sub> = {}, P<sub>r</sub> = {}").format(
                      num(m.get('reduced_temperature_fill'), 4), num(m.get('reduced_pressure_fill'), 4))),
@@ -379,8 +398,9 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
         else:
             rows += [
                 ("Fluid (CoolProp)", _text(m.get("fluid")) or "\u2014"),
-                (Markup("Molar density used, &rho;<sub>m</sub>"), "\u2014" if rho is None else f"{sig(rho, 6)} mol/m\u00b3"),
-                ("Phase at fill / at peak", f"{_text(m.get('phase_fill')) or '—'} / {_text(m.get('phase_peak')) or '—'}"),
+                (Markup("Molar density used, &rho;<sub>m</sub>"), _unit(sig(rho, 6), "mol/m\u00b3")),
+                ("Phase at fill / at peak", "\u2014" if m.get("phase_fill") is None and m.get("phase_peak") is None
+                 else f"{_text(m.get('phase_fill')) or '—'} / {_text(m.get('phase_peak')) or '—'}"),
                 (Markup("At fill: Z<sub>1</sub>"), num(m.get("z_fill"), 5)),
                 (Markup("At peak: Z<sub>2</sub>"), num(m.get("z_peak"), 5)),
             ]
@@ -401,8 +421,8 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
 
     # Margin section.
     margin_rows = [
-        ("Peak pressure", f"{P(result['peak_pressure_pa'])} = {Pabs(result['peak_pressure_pa'])}"),
-        ("Rated pressure", f"{P(result['rated_pressure_pa'])} = {Pabs(result['rated_pressure_pa'])}"),
+        ("Peak pressure", PP(result['peak_pressure_pa'])),
+        ("Rated pressure", PP(result['rated_pressure_pa'])),
         ("Rated \u00d7 (1 \u2212 required margin), on gauge pressure", P(m_line)),
         (Markup("Margin to rated, 1 &minus; P<sub>2,g</sub> / P<sub>rated,g</sub>"), format_percent(result["margin_fraction"], 2)),
         ("Required margin", format_percent(result["required_margin_fraction"], 1)
@@ -415,7 +435,7 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
                         f"{format_percent(result['margin_fraction'], 2)}")
     if result["relief_set_pressure_pa"] is not None:
         margin_rows += [
-            ("Relief set pressure", f"{P(result['relief_set_pressure_pa'])} = {Pabs(result['relief_set_pressure_pa'])}"),
+            ("Relief set pressure", PP(result['relief_set_pressure_pa'])),
             ("Margin to relief set pressure", format_percent(result["relief_margin_fraction"], 2)),
         ]
     else:
@@ -428,6 +448,10 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
     ]
     if limits.get("max_fill_mass_kg") is not None:
         limit_rows.append(("Largest fill mass", format_quantity(limits["max_fill_mass_kg"], m_unit, 3)))
+    if limits.get("target_peak_pressure_pa") is not None:
+        limit_rows.append(("Peak pressure these limits aim at", P(limits["target_peak_pressure_pa"])))
+    if limits.get("dry_out_temperature_k") is not None:
+        limit_rows.append(("Temperature at which the last liquid evaporates", T(limits["dry_out_temperature_k"])))
     if limits.get("liquid_full_temperature_k") is not None:
         limit_rows.append(("Temperature at which the liquid fills the vessel", T(limits["liquid_full_temperature_k"])))
 
