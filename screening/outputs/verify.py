@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import hashlib
 import json
+import logging
 import math
 from pathlib import Path
 
@@ -28,11 +29,23 @@ def read_attachments(pdf_path: str | Path) -> dict[str, bytes]:
     if not path.is_file():
         raise InputError("no such report file", given=str(path), expected="a PDF written by this tool")
     try:
+        with path.open("rb") as fh:
+            head = fh.read(5)
+    except OSError as exc:
+        raise InputError(f"cannot read the report: {exc.strerror or exc}", given=str(path)) from None
+    if head != b"%PDF-":
+        raise InputError("not a PDF file", given=str(path), expected="a PDF written by this tool")
+    log = logging.getLogger("pypdf")
+    level = log.level
+    log.setLevel(logging.ERROR)  # pypdf's repair chatter is not the user's business; failures still raise
+    try:
         reader = PdfReader(str(path), strict=False)
         found = reader.attachments
         return {name: bytes(copies[0]) for name, copies in found.items() if copies}
-    except (PdfReadError, OSError, ValueError, KeyError, TypeError) as exc:
+    except (PdfReadError, OSError, ValueError, KeyError, TypeError, AttributeError) as exc:
         raise InputError(f"cannot read the report as a PDF: {exc}", given=str(path)) from None
+    finally:
+        log.setLevel(level)
 
 
 def attached_case_and_result(pdf_path: str | Path) -> tuple[str, str, dict]:
