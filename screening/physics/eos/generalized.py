@@ -1,0 +1,626 @@
+"""Lee–Kesler three-parameter corresponding-states model of the compressibility factor.
+
+A closed rigid tank keeps its mass and volume, so its molar density is fixed; the
+screening asks for the pressure at that density and the worst-case temperature
+(:func:`lee_kesler_pressure`) and, to fill the tank, for the density at the fill
+pressure and temperature (:func:`lee_kesler_density`).
+
+Model
+-----
+Reference: Lee, B. I.; Kesler, M. G. "A generalized thermodynamic correlation based on
+three-parameter corresponding states." AIChE J. 1975, 21 (3), 510–527,
+doi:10.1002/aic.690210313 (called LK below). Equation numbers are quoted from memory
+and were not re-checked against the paper; the constants are those of LK Table 1.
+
+* LK eq. (1), the interpolation between a simple fluid (0) and the reference fluid
+  n-octane (r), both evaluated at the same (T_r, P_r)::
+
+      Z = Z0 + (omega / omega_r) (Z_r - Z0),    omega_r = 0.3978
+
+* LK eq. (2) with (3)–(5), a modified Benedict–Webb–Rubin equation in the reduced
+  ideal volume V_r = P_c V / (R T_c), solved for each fluid::
+
+      Z_i = P_r V_r / T_r = 1 + B/V_r + C/V_r^2 + D/V_r^5
+                            + c4 / (T_r^3 V_r^2) (beta + gamma/V_r^2) exp(-gamma/V_r^2)
+      B = b1 - b2/T_r - b3/T_r^2 - b4/T_r^3
+      C = c1 - c2/T_r + c3/T_r^3
+      D = d1 + d2/T_r
+
+  The gas (vapour-like) root is taken: the largest V_r, i.e. the smallest reduced
+  density 1/V_r.
+
+* LK vapour-pressure equation (the LK paper's saturation relation, as reproduced in
+  Reid, Prausnitz & Poling, The Properties of Gases and Liquids, 4th ed., 1987, eq. 7-2.6,
+  equation number from memory)::
+
+      ln P_r,sat = f0(T_r) + omega f1(T_r)
+      f0 = 5.92714 - 6.09648/T_r - 1.28862 ln T_r + 0.169347 T_r^6
+      f1 = 15.2518 - 15.6875/T_r - 13.4721 ln T_r + 0.43577 T_r^6
+
+  used only to say that a state with T_r < 1 and P_r above the vapour pressure is not
+  a gas state (the gas root there is metastable at best).
+
+Validity (the range of the published LK tables): 0.3 <= T_r <= 4 and 0 < P_r <= 10, gas
+states only. Outside, every result carries ``valid=False`` with a reason in plain words
+and NaN in the numbers; :meth:`GeneralizedState.require` raises
+:class:`~screening.errors.NotApplicable`.
+
+Quantum gases (H2, He, Ne) use the effective critical constants of Gunn, Chueh &
+Prausnitz (AIChE J. 1966, 12, 937), as given in Reid, Prausnitz & Poling; mixtures use
+Kay's rule (Kay, Ind. Eng. Chem. 1936, 28, 1014).
+
+Everything works on numpy arrays and broadcasts; a scalar is a length-1 (or 0-d) array.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from screening.constants import R
+from screening.errors import InputError, NotApplicable
+
+__all__ = [
+    "LK_REDUCED_TEMPERATURE_RANGE",
+    "LK_REDUCED_PRESSURE_RANGE",
+    "OMEGA_REFERENCE",
+    "GeneralizedState",
+    "lee_kesler_z",
+    "lee_kesler_pressure",
+    "lee_kesler_density",
+    "lee_kesler_vapour_pressure",
+    "quantum_effective_critical",
+    "kay_pseudocritical",
+    "pseudocritical",
+]
+
+#: [-] reduced-temperature range of the published LK tables.
+LK_REDUCED_TEMPERATURE_RANGE = (0.3, 4.0)
+#: [-] reduced-pressure range of the published LK tables (0 excluded).
+LK_REDUCED_PRESSURE_RANGE = (0.0, 10.0)
+#: [-] acentric factor of the LK reference fluid, n-octane (LK 1975).
+OMEGA_REFERENCE = 0.3978
+
+_MODEL = "generalized (Lee–Kesler)"
+
+# LK 1975 Table 1: b1, b2, b3, b4, c1, c2, c3, c4, d1, d2, beta, gamma.
+_SIMPLE = (0.1181193, 0.265728, 0.154790, 0.030323,
+           0.0236744, 0.0186984, 0.0, 0.042724,
+           0.155488e-4, 0.623689e-4, 0.65392, 0.060167)
+_REFERENCE = (0.2026579, 0.331511, 0.027655, 0.203488,
+              0.0313385, 0.0503618, 0.016901, 0.041577,
+              0.48736e-4, 0.0740336e-4, 1.226, 0.03754)
+
+_TR_LO, _TR_HI = LK_REDUCED_TEMPERATURE_RANGE
+_PR_LO, _PR_HI = LK_REDUCED_PRESSURE_RANGE
+_RANGE_TEXT_TR = "0.3 to 4"
+_RANGE_TEXT_PR = "0 to 10"
+
+_RTOL = 1e-13          # relative step at which the inner (volume) Newton stops
+_PTOL = 1e-12          # relative step at which the outer (pressure) solve stops
+_MAX_INNER = 100
+_MAX_OUTER = 200
+_PR_SOLVE_MAX = 40.0   # [-] the pressure solve brackets P_r in (0, 40]; above 10 is reported invalid
+
+# Gunn, Chueh & Prausnitz (1966) constants of the quantum correction [g K/mol], from the
+# brief and from memory of Reid, Prausnitz & Poling.
+_GCP_TC = 21.8
+_GCP_PC = 44.2
+
+
+# --------------------------------------------------------------------------- helpers
+
+
+def _as_float_array(x: object, name: str) -> np.ndarray:
+    try:
+        a = np.asarray(x, dtype=float)
+    except (TypeError, ValueError) as exc:
+        raise InputError(f"{name} must be a number or an array of numbers", given=x,
+                         expected="float or numpy array") from exc
+    return a
+
+
+def _require_positive_finite(a: np.ndarray, name: str, unit: str) -> None:
+    bad = ~np.isfinite(a) | (a <= 0.0)
+    if np.any(bad):
+        first = a[bad].flat[0] if a.ndim else float(a)
+        raise InputError(f"{name} must be finite and positive", given=float(first),
+                         expected=f"{name} > 0 {unit}")
+
+
+def _require_finite(a: np.ndarray, name: str) -> None:
+    bad = ~np.isfinite(a)
+    if np.any(bad):
+        first = a[bad].flat[0] if a.ndim else float(a)
+        raise InputError(f"{name} must be finite", given=float(first), expected="a finite number")
+
+
+def _fmt(x: float) -> str:
+    return f"{x:.4g}"
+
+
+def _coefficients(consts: tuple, tr: np.ndarray):
+    """B, C, D and c4/T_r^3 of one LK fluid at reduced temperature tr (LK eq. 3–5)."""
+    b1, b2, b3, b4, c1, c2, c3, c4, d1, d2, _beta, _gamma = consts
+    itr = 1.0 / tr
+    itr3 = itr * itr * itr
+    return (b1 - itr * (b2 + itr * (b3 + itr * b4)), c1 - c2 * itr + c3 * itr3, d1 + d2 * itr, c4 * itr3)
+
+
+def _bwr(consts: tuple, coef: tuple, rho: np.ndarray):
+    """Z of one LK fluid and dZ/d(rho) at reduced density rho = 1/V_r [-] (LK eq. 2)."""
+    beta, gamma = consts[10], consts[11]
+    B, C, D, E = coef
+    r2 = rho * rho
+    r4 = r2 * r2
+    ex = E * np.exp(-gamma * r2)
+    z = 1.0 + rho * (B + rho * C + D * r4) + ex * r2 * (beta + gamma * r2)
+    dz = B + rho * (2.0 * C + 5.0 * D * r2 * rho) + ex * rho * (
+        2.0 * beta + r2 * (4.0 * gamma - 2.0 * gamma * beta) - 2.0 * gamma * gamma * r4)
+    return z, dz
+
+
+def _gas_root(consts: tuple, tr: np.ndarray, pr: np.ndarray, active: np.ndarray):
+    """Smallest reduced density solving P_r = T_r rho Z(rho) (the gas / vapour-like root).
+
+    Newton from rho = 0 with a bracket. On the vapour branch the isotherm P_r(rho) is
+    concave, so Newton from the left climbs monotonically to the first root; where it
+    is convex (supercritical) it overshoots once and comes back from the right inside
+    the bracket (bisection if a step leaves it). If the slope reaches zero before P_r
+    is reached, the isotherm has a maximum below P_r: no gas root (``no_root``).
+    Only the elements still iterating are computed at each step.
+
+    Returns (rho, z, dp_drho, no_root, converged) as arrays of the broadcast shape.
+    """
+    shape = tr.shape
+    trf = tr.reshape(-1)
+    prf = pr.reshape(-1)
+    rho = np.zeros(trf.shape)
+    no_root = np.zeros(trf.shape, dtype=bool)
+    converged = np.zeros(trf.shape, dtype=bool)
+    idx = np.flatnonzero(active.reshape(-1))
+    t = trf[idx]
+    p_t = prf[idx]
+    coef = _coefficients(consts, t)
+    r = np.zeros(idx.shape)
+    lo = np.zeros(idx.shape)
+    hi = np.full(idx.shape, np.inf)
+    for _ in range(_MAX_INNER):
+        if idx.size == 0:
+            break
+        z, dz = _bwr(consts, coef, r)
+        f = t * r * z - p_t
+        dp = t * (z + r * dz)
+        below = f < 0.0
+        lo = np.where(below, np.maximum(lo, r), lo)
+        hi = np.where(below, hi, np.minimum(hi, r))
+        finite_hi = np.isfinite(hi)
+        # non-positive slope while still below the target: past the vapour-branch maximum
+        stuck = below & (dp <= 0.0) & ~finite_hi
+        newton = r - f / dp
+        conv = (dp > 0.0) & (np.abs(newton - r) <= _RTOL * newton)
+        bisect = finite_hi & (~np.isfinite(newton) | (newton < lo) | (newton > hi) | (dp <= 0.0))
+        new = np.where(bisect & ~conv, 0.5 * (lo + hi), newton)
+        conv |= finite_hi & ((hi - lo) <= _RTOL * hi)
+        conv &= ~stuck
+        finished = conv | stuck
+        rho[idx] = new
+        converged[idx[conv]] = True
+        no_root[idx[stuck]] = True
+        keep = ~finished
+        idx, t, p_t, r, lo, hi = idx[keep], t[keep], p_t[keep], new[keep], lo[keep], hi[keep]
+        coef = tuple(c[keep] for c in coef)
+    coef = _coefficients(consts, trf)
+    z, dz = _bwr(consts, coef, rho)
+    dp = trf * (z + rho * dz)
+    # a converged point on an unstable (dP/drho <= 0) branch is not a gas root
+    bad_branch = converged & (dp <= 0.0)
+    no_root |= bad_branch
+    converged &= ~bad_branch
+    return (rho.reshape(shape), z.reshape(shape), dp.reshape(shape), no_root.reshape(shape),
+            converged.reshape(shape))
+
+
+def lee_kesler_vapour_pressure(tr, omega) -> np.ndarray:
+    """Reduced vapour pressure of the LK correlation, ln P_r,sat = f0 + omega f1 [-].
+
+    Parameters: ``tr`` reduced temperature [-] (meaningful for T_r < 1), ``omega``
+    acentric factor [-]. Source: LK 1975 (see module docstring); returns P_sat / P_c [-].
+    Defined for T_r <= 1; returned as computed (it is a smooth formula) for T_r > 1 too.
+
+    >>> round(float(lee_kesler_vapour_pressure(0.7, 0.0)), 4)  # omega = 0 means P_r,sat(0.7) = 0.1
+    0.1
+    """
+    tr = np.asarray(tr, dtype=float)
+    omega = np.asarray(omega, dtype=float)
+    t6 = tr**6
+    lt = np.log(tr)
+    f0 = 5.92714 - 6.09648 / tr - 1.28862 * lt + 0.169347 * t6
+    f1 = 15.2518 - 15.6875 / tr - 13.4721 * lt + 0.43577 * t6
+    return np.exp(f0 + omega * f1)
+
+
+def _range_reasons(tr: np.ndarray, pr: np.ndarray | None) -> np.ndarray:
+    reason = np.full(tr.shape, "", dtype=object)
+    if pr is not None:
+        hi_p = np.isfinite(pr) & (pr > _PR_HI)
+        for idx in zip(*np.nonzero(hi_p)) if hi_p.ndim else ([()] if hi_p else []):
+            reason[idx] = (f"reduced pressure {_fmt(pr[idx])} is above the Lee–Kesler range "
+                           f"({_RANGE_TEXT_PR})")
+    lo_t = tr < _TR_LO
+    hi_t = tr > _TR_HI
+    for mask, word in ((lo_t, "below"), (hi_t, "above")):
+        for idx in zip(*np.nonzero(mask)) if mask.ndim else ([()] if mask else []):
+            reason[idx] = (f"reduced temperature {_fmt(tr[idx])} is {word} the Lee–Kesler range "
+                           f"({_RANGE_TEXT_TR})")
+    return reason
+
+
+def _set_reasons(reason: np.ndarray, mask: np.ndarray, make) -> None:
+    """Write make(idx) into reason where mask holds and no reason is recorded yet."""
+    mask = mask & (reason == "")
+    if mask.ndim == 0:
+        if bool(mask):
+            reason[()] = make(())
+        return
+    for idx in zip(*np.nonzero(mask)):
+        reason[idx] = make(idx)
+
+
+def _z_core(tr: np.ndarray, pr: np.ndarray, omega: np.ndarray, active: np.ndarray):
+    """Z, dZ/dP_r, reduced volumes and per-element failure reasons at (T_r, P_r, omega)."""
+    a = omega / OMEGA_REFERENCE
+    r0, z0, dp0, nr0, c0 = _gas_root(_SIMPLE, tr, pr, active)
+    rr, zr, dpr, nrr, cr = _gas_root(_REFERENCE, tr, pr, active)
+    z = z0 + a * (zr - z0)
+    # Z_i = P_r / (T_r rho_i): dZ_i/dP_r = (1/rho_i - P_r/(rho_i^2 dP_i/drho_i)) / T_r
+    with np.errstate(divide="ignore", invalid="ignore"):
+        v0 = 1.0 / r0
+        vr = 1.0 / rr
+        dv0 = -v0 * v0 / dp0
+        dvr = -vr * vr / dpr
+    no_root = active & (nr0 | nrr)
+    not_conv = active & ~no_root & ~(c0 & cr)
+    return z, v0, vr, dv0, dvr, no_root, not_conv, a
+
+
+# --------------------------------------------------------------------------- state
+
+
+@dataclass(frozen=True)
+class GeneralizedState:
+    """Result of a Lee–Kesler evaluation; every field is a numpy array of the broadcast shape.
+
+    pressure [Pa] (absolute), molar_density [mol/m3], z [-], reduced_temperature [-],
+    reduced_pressure [-], valid (bool), reason (str; '' where valid). Invalid elements
+    carry NaN in pressure, molar_density and z, and say why in ``reason``; the reduced
+    temperature and pressure are kept where they could be computed, for the message.
+    """
+
+    pressure: np.ndarray
+    molar_density: np.ndarray
+    z: np.ndarray
+    reduced_temperature: np.ndarray
+    reduced_pressure: np.ndarray
+    valid: np.ndarray
+    reason: np.ndarray
+
+    def require(self, model: str = "generalized") -> "GeneralizedState":
+        """Return self if every element is valid, else raise NotApplicable for the first invalid one."""
+        if np.all(self.valid):
+            return self
+        idx = tuple(int(i) for i in np.argwhere(~np.asarray(self.valid))[0]) if np.ndim(self.valid) else ()
+        reason = str(self.reason[idx])
+        tr = float(self.reduced_temperature[idx])
+        pr = float(self.reduced_pressure[idx])
+        if not (_TR_LO <= tr <= _TR_HI):
+            value, rng = tr, f"reduced temperature {_RANGE_TEXT_TR}"
+        elif not (np.isfinite(pr) and _PR_LO < pr <= _PR_HI):
+            value, rng = pr, f"reduced pressure {_RANGE_TEXT_PR}"
+        else:
+            value, rng = (tr, pr), "gas states within reduced temperature 0.3 to 4, reduced pressure 0 to 10"
+        raise NotApplicable(model, reason, value=value, valid_range=rng)
+
+
+# --------------------------------------------------------------------------- public API
+
+
+def lee_kesler_z(tr, pr, omega) -> np.ndarray:
+    """Compressibility factor Z [-] of the gas root of the Lee–Kesler model.
+
+    Z = Z0 + (omega/omega_r)(Z_r - Z0) (LK eq. 1), each Z_i from the modified BWR
+    equation of LK eq. (2)–(5) solved for the largest reduced volume V_r at (T_r, P_r).
+
+    Parameters: ``tr`` reduced temperature T/T_c [-], ``pr`` reduced pressure P/P_c [-],
+    ``omega`` acentric factor [-]; arrays broadcast together.
+    Validity: 0.3 <= T_r <= 4, 0 < P_r <= 10, and a gas root must exist (for T_r < 1,
+    P_r must not exceed the LK vapour pressure). Raises NotApplicable naming the first
+    element outside that (use :func:`lee_kesler_density` for per-element flags).
+
+    >>> round(float(lee_kesler_z(1.2, 0.659, 0.0)), 3)   # simple fluid, T_r = 1.2, P_r = 0.659
+    0.865
+    """
+    tr = _as_float_array(tr, "reduced temperature")
+    pr = _as_float_array(pr, "reduced pressure")
+    omega = _as_float_array(omega, "acentric factor")
+    _require_positive_finite(tr, "reduced temperature", "[-]")
+    _require_positive_finite(pr, "reduced pressure", "[-]")
+    _require_finite(omega, "acentric factor")
+    tr, pr, omega = np.broadcast_arrays(tr, pr, omega)
+    z, valid, reason = _z_checked(tr.astype(float), pr.astype(float), omega.astype(float))
+    if not np.all(valid):
+        state = GeneralizedState(
+            pressure=np.full(tr.shape, np.nan), molar_density=np.full(tr.shape, np.nan),
+            z=z, reduced_temperature=tr, reduced_pressure=pr, valid=valid, reason=reason)
+        state.require(_MODEL)
+    return z
+
+
+@np.errstate(divide="ignore", invalid="ignore", over="ignore")
+def _z_checked(tr, pr, omega):
+    """Z at (T_r, P_r) with per-element validity and reasons (NaN where invalid)."""
+    reason = _range_reasons(tr, pr)
+    in_range = reason == ""
+    z, *_rest, no_root, not_conv, _a = _z_core(tr, pr, omega, in_range)
+    _flag_gas_state(reason, tr, pr, omega, no_root, not_conv)
+    valid = reason == ""
+    z = np.where(valid, z, np.nan)
+    return z, valid, reason
+
+
+def _flag_gas_state(reason, tr, pr, omega, no_root, not_conv) -> None:
+    _set_reasons(reason, no_root, lambda i: (
+        f"no gas root at reduced temperature {_fmt(tr[i])} and reduced pressure {_fmt(pr[i])}: "
+        "the state is liquid-like (above the vapour-like branch of the Lee–Kesler equation)"))
+    sub = (tr < 1.0) & np.isfinite(pr)
+    psat = np.where(sub, lee_kesler_vapour_pressure(np.where(sub, tr, 0.5), omega), np.inf)
+    _set_reasons(reason, sub & (pr > psat), lambda i: (
+        f"reduced pressure {_fmt(pr[i])} is above the Lee–Kesler vapour pressure {_fmt(psat[i])} "
+        f"at reduced temperature {_fmt(tr[i])}: the stable state is liquid or two-phase, not gas"))
+    _set_reasons(reason, not_conv, lambda i: (
+        f"the Lee–Kesler volume solve did not converge at reduced temperature {_fmt(tr[i])} "
+        f"and reduced pressure {_fmt(pr[i])}"))
+
+
+def lee_kesler_density(pressure, temperature, tc, pc, omega) -> GeneralizedState:
+    """Molar density [mol/m3] of the gas at absolute pressure [Pa] and temperature [K].
+
+    rho = P / (Z R T) with Z = lee_kesler_z(T/T_c, P/P_c, omega) (LK eq. 1–5).
+    Parameters: ``pressure`` [Pa] absolute, ``temperature`` [K], ``tc`` critical (or
+    pseudocritical) temperature [K], ``pc`` critical pressure [Pa], ``omega`` [-].
+    Validity: 0.3 <= T_r <= 4, 0 < P_r <= 10, gas states; others are flagged per element.
+
+    >>> s = lee_kesler_density(101325.0, 300.0, 126.192, 3.3958e6, 0.0372)  # nitrogen, 1 atm
+    >>> round(float(s.z), 4), bool(s.valid)
+    (0.9998, True)
+    """
+    p = _as_float_array(pressure, "pressure")
+    t = _as_float_array(temperature, "temperature")
+    tc = _as_float_array(tc, "critical temperature")
+    pc = _as_float_array(pc, "critical pressure")
+    omega = _as_float_array(omega, "acentric factor")
+    _require_positive_finite(p, "pressure", "[Pa] (absolute)")
+    _require_positive_finite(t, "temperature", "[K]")
+    _require_positive_finite(tc, "critical temperature", "[K]")
+    _require_positive_finite(pc, "critical pressure", "[Pa]")
+    _require_finite(omega, "acentric factor")
+    p, t, tc, pc, omega = (np.array(x, dtype=float) for x in np.broadcast_arrays(p, t, tc, pc, omega))
+    tr = t / tc
+    pr = p / pc
+    z, valid, reason = _z_checked(tr, pr, omega)
+    rho = np.where(valid, p / (z * R * t), np.nan)
+    return GeneralizedState(
+        pressure=np.where(valid, p, np.nan), molar_density=rho, z=z,
+        reduced_temperature=tr, reduced_pressure=pr, valid=valid, reason=reason)
+
+
+def _solve_reduced_pressure(tr, vf, omega, active):
+    """Bracketed Newton on P_r for H(P_r) = (1-a) V0(P_r) + a V_ref(P_r) - V_r = 0.
+
+    H decreases with P_r on the gas branch. Where no gas root exists at a trial P_r, the
+    solution lies at lower pressure (bisection). Only elements still iterating are
+    computed. Returns (pr, converged, above_cap) of the broadcast shape.
+    """
+    shape = tr.shape
+    trf, vff, omf = tr.reshape(-1), vf.reshape(-1), omega.reshape(-1)
+    pr_out = np.full(trf.shape, np.nan)
+    converged = np.zeros(trf.shape, dtype=bool)
+    above_cap = np.zeros(trf.shape, dtype=bool)
+    idx = np.flatnonzero(active.reshape(-1))
+    t, v, w = trf[idx], vff[idx], omf[idx]
+    lo = np.zeros(idx.shape)
+    hi = np.full(idx.shape, _PR_SOLVE_MAX)
+    pr = np.minimum(t / v, 0.5 * _PR_SOLVE_MAX)     # ideal-gas start
+    everywhere = np.ones(idx.shape, dtype=bool)
+    for _ in range(_MAX_OUTER):
+        if idx.size == 0:
+            break
+        _z, v0, vr, dv0, dvr, no_root, not_conv, a = _z_core(t, pr, w, everywhere)
+        h = (1.0 - a) * v0 + a * vr - v
+        dh = (1.0 - a) * dv0 + a * dvr
+        too_high = no_root | (h < 0.0)
+        bad = not_conv | ~np.isfinite(h)
+        hi = np.where(too_high & ~bad, np.minimum(hi, pr), hi)
+        lo = np.where(~too_high & ~bad, np.maximum(lo, pr), lo)
+        newton = pr - h / dh
+        conv = ~no_root & ~bad & (dh < 0.0) & (np.abs(newton - pr) <= _PTOL * pr)
+        use_bisect = no_root | bad | ~np.isfinite(newton) | (newton < lo) | (newton > hi) | (dh >= 0.0)
+        new = np.where(use_bisect & ~conv, 0.5 * (lo + hi), newton)
+        collapsed = (hi - lo) <= _PTOL * hi
+        # bracket pinned at the cap: the solution is above _PR_SOLVE_MAX
+        capped = lo >= _PR_SOLVE_MAX * (1.0 - 1e-9)
+        pr_out[idx] = new
+        converged[idx[(conv | collapsed) & ~capped]] = True
+        above_cap[idx[capped]] = True
+        keep = ~(conv | collapsed | capped)
+        idx, t, v, w, lo, hi, pr = idx[keep], t[keep], v[keep], w[keep], lo[keep], hi[keep], new[keep]
+        everywhere = everywhere[keep]
+    return pr_out.reshape(shape), converged.reshape(shape), above_cap.reshape(shape)
+
+
+@np.errstate(divide="ignore", invalid="ignore", over="ignore")
+def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> GeneralizedState:
+    """Absolute pressure [Pa] of the gas at fixed molar density [mol/m3] and temperature [K].
+
+    Solves P = Z(T/T_c, P/P_c, omega) rho R T (LK eq. 1–5) for P. With V_r = P_c/(rho R T_c)
+    the reduced ideal volume of the gas, this is the condition
+    (1 - a) V0(P_r) + a V_ref(P_r) = V_r, a = omega/omega_r, where V0, V_ref are the gas
+    roots of the two LK fluids at (T_r, P_r). It is solved for P_r by a bracketed Newton
+    (analytic derivative dV_i/dP_r = -V_i^2 / (dP_r/drho_i)), bisection as the fallback,
+    to 1e-13 relative.
+
+    Parameters: ``molar_density`` [mol/m3], ``temperature`` [K], ``tc`` [K], ``pc`` [Pa],
+    ``omega`` [-]; arrays broadcast together.
+    Validity: 0.3 <= T_r <= 4 and 0 < P_r <= 10 at the solution, gas states only; others
+    are flagged per element (NaN with valid=False and the reason).
+
+    >>> s = lee_kesler_pressure(40.6, 300.0, 126.192, 3.3958e6, 0.0372)  # nitrogen near 1 atm
+    >>> round(float(s.pressure) / 1e5, 3), bool(s.valid)
+    (1.012, True)
+    """
+    rho = _as_float_array(molar_density, "molar density")
+    t = _as_float_array(temperature, "temperature")
+    tc = _as_float_array(tc, "critical temperature")
+    pc = _as_float_array(pc, "critical pressure")
+    omega = _as_float_array(omega, "acentric factor")
+    _require_positive_finite(rho, "molar density", "[mol/m3]")
+    _require_positive_finite(t, "temperature", "[K]")
+    _require_positive_finite(tc, "critical temperature", "[K]")
+    _require_positive_finite(pc, "critical pressure", "[Pa]")
+    _require_finite(omega, "acentric factor")
+    rho, t, tc, pc, omega = (np.array(x, dtype=float) for x in np.broadcast_arrays(rho, t, tc, pc, omega))
+    tr = t / tc
+    vf = pc / (rho * R * tc)          # reduced ideal volume of the gas [-]
+    reason = _range_reasons(tr, None)
+    active = reason == ""
+
+    pr, converged, above_cap = _solve_reduced_pressure(tr, vf, omega, active)
+
+    # Final, independent evaluation at the converged P_r: the cold-started gas root must
+    # reproduce the density (guards against the solve having followed another branch).
+    pr_final = np.where(active & converged & ~above_cap, pr, np.nan)
+    _range = _range_reasons(tr, pr_final)
+    reason = np.where(reason == "", _range, reason)
+    _set_reasons(reason, active & above_cap, lambda i: (
+        f"reduced pressure is above {_fmt(_PR_SOLVE_MAX)}, beyond the Lee–Kesler range ({_RANGE_TEXT_PR})"))
+    check = (reason == "") & np.isfinite(pr_final)
+    z, v0, vr, _dv0, _dvr, no_root, not_conv, a = _z_core(tr, np.where(check, pr_final, 1.0), omega, check)
+    mix_v = (1.0 - a) * v0 + a * vr
+    mismatch = check & ~not_conv & (no_root | ~(np.abs(mix_v - vf) <= 1e-9 * vf))
+    _set_reasons(reason, mismatch, lambda i: (
+        f"no gas state at temperature {_fmt(t[i])} K (reduced {_fmt(tr[i])}) and molar density "
+        f"{_fmt(rho[i])} mol/m3: at this density the Lee–Kesler fluid is liquid-like or two-phase"))
+    _flag_gas_state(reason, tr, np.where(np.isfinite(pr_final), pr_final, pr), omega, no_root & check,
+                    (not_conv & check) | (active & ~converged & ~above_cap))
+    valid = reason == ""
+    p = np.where(valid, pr_final * pc, np.nan)
+    return GeneralizedState(
+        pressure=p, molar_density=np.where(valid, rho, np.nan), z=np.where(valid, z, np.nan),
+        reduced_temperature=tr, reduced_pressure=np.where(mismatch, np.nan, pr_final), valid=valid,
+        reason=reason)
+
+
+def quantum_effective_critical(tc_classical, pc_classical, molar_mass, temperature):
+    """Effective critical temperature [K] and pressure [Pa] of a quantum gas at temperature [K].
+
+    Gunn, Chueh & Prausnitz, AIChE J. 1966, 12, 937, as given in Reid, Prausnitz &
+    Poling, The Properties of Gases and Liquids (constants 21.8 and 44.2 quoted from the
+    brief and from memory)::
+
+        T_c = T_c0 / (1 + 21.8 / (M T)),   P_c = P_c0 / (1 + 44.2 / (M T)),  M in g/mol, T in K
+
+    Parameters: ``tc_classical`` T_c0 [K], ``pc_classical`` P_c0 [Pa], ``molar_mass``
+    [kg/mol] (converted to g/mol inside), ``temperature`` [K]; arrays broadcast.
+    Valid for H2, He and Ne with their classical constants (T_c0, P_c0), at temperatures
+    where the gas is far from quantum degeneracy (the screening's range, above ~20 K).
+
+    >>> tc, pc = quantum_effective_critical(43.6, 20.5e5, 2.016e-3, 300.0)  # hydrogen
+    >>> round(float(tc), 3), round(float(pc) / 1e5, 3)
+    (42.083, 19.104)
+    """
+    tc0 = _as_float_array(tc_classical, "classical critical temperature")
+    pc0 = _as_float_array(pc_classical, "classical critical pressure")
+    m = _as_float_array(molar_mass, "molar mass")
+    t = _as_float_array(temperature, "temperature")
+    _require_positive_finite(tc0, "classical critical temperature", "[K]")
+    _require_positive_finite(pc0, "classical critical pressure", "[Pa]")
+    _require_positive_finite(m, "molar mass", "[kg/mol]")
+    _require_positive_finite(t, "temperature", "[K]")
+    mt = (m * 1000.0) * t   # [g/mol K]
+    return tc0 / (1.0 + _GCP_TC / mt), pc0 / (1.0 + _GCP_PC / mt)
+
+
+def kay_pseudocritical(fractions, tc, pc, omega):
+    """Kay's rule: mole-fraction averages of T_c [K], P_c [Pa] and omega [-].
+
+    Kay, W. B. Ind. Eng. Chem. 1936, 28, 1014: T_pc = sum y_i T_c,i, P_pc = sum y_i P_c,i;
+    omega_m = sum y_i omega_i (the usual companion rule for the acentric factor).
+    Components along the last axis; ``fractions`` [-] must lie in [0, 1] and sum to 1
+    (to 1e-6). Returns (tc_pc, pc_pc, omega_m), arrays over the leading axes.
+
+    >>> kay_pseudocritical([0.5, 0.5], [100.0, 200.0], [1e6, 3e6], [0.0, 0.2])
+    (150.0, 2000000.0, 0.1)
+    """
+    y = _as_float_array(fractions, "mole fractions")
+    tc = _as_float_array(tc, "critical temperature")
+    pc = _as_float_array(pc, "critical pressure")
+    omega = _as_float_array(omega, "acentric factor")
+    if y.ndim == 0:
+        raise InputError("mole fractions must be given along a component axis", given=float(y),
+                         expected="an array of fractions, components along the last axis")
+    _require_finite(y, "mole fractions")
+    if np.any((y < 0.0) | (y > 1.0)):
+        raise InputError("mole fractions must lie between 0 and 1", given=y.tolist(), expected="0 <= y <= 1")
+    total = y.sum(axis=-1)
+    if np.any(np.abs(total - 1.0) > 1e-6):
+        bad = np.atleast_1d(total)[np.abs(np.atleast_1d(total) - 1.0) > 1e-6][0]
+        raise InputError("mole fractions must sum to 1", given=float(bad), expected="sum of fractions = 1")
+    _require_positive_finite(tc, "critical temperature", "[K]")
+    _require_positive_finite(pc, "critical pressure", "[Pa]")
+    _require_finite(omega, "acentric factor")
+    y, tc, pc, omega = np.broadcast_arrays(y, tc, pc, omega)
+    out = ((y * tc).sum(axis=-1), (y * pc).sum(axis=-1), (y * omega).sum(axis=-1))
+    if out[0].ndim == 0:
+        return tuple(float(v) for v in out)
+    return out
+
+
+def pseudocritical(fractions, tc, pc, omega, molar_mass, quantum, tc_classical, pc_classical, temperature):
+    """Pseudocritical T_c [K], P_c [Pa] and omega [-] of a gas or mixture at temperature [K].
+
+    Per component: quantum components (``quantum`` True: H2, He, Ne) get the effective
+    constants of :func:`quantum_effective_critical` at the temperature and omega = 0 (Reid,
+    Prausnitz & Poling's recommendation for quantum gases); the others keep (tc, pc, omega).
+    Then Kay's rule (:func:`kay_pseudocritical`). Components along the last axis
+    (``fractions``, ``tc`` [K], ``pc`` [Pa], ``omega`` [-], ``molar_mass`` [kg/mol],
+    ``quantum`` bool, ``tc_classical`` [K], ``pc_classical`` [Pa]); ``temperature`` [K]
+    broadcasts over the leading axes. Entries of tc_classical/pc_classical for
+    non-quantum components are ignored (may be NaN).
+
+    >>> tc, pc, w = pseudocritical([1.0], [33.145], [1.2964e6], [-0.219], [2.016e-3], [True],
+    ...                            [43.6], [20.5e5], 300.0)   # hydrogen at 300 K
+    >>> round(float(tc), 3), round(float(w), 3)
+    (42.083, 0.0)
+    """
+    q = np.asarray(quantum, dtype=bool)
+    t = _as_float_array(temperature, "temperature")
+    _require_positive_finite(t, "temperature", "[K]")
+    tc = _as_float_array(tc, "critical temperature")
+    pc = _as_float_array(pc, "critical pressure")
+    omega = _as_float_array(omega, "acentric factor")
+    m = _as_float_array(molar_mass, "molar mass")
+    tcc = _as_float_array(tc_classical, "classical critical temperature")
+    pcc = _as_float_array(pc_classical, "classical critical pressure")
+    tcc, pcc, m, q_b = np.broadcast_arrays(tcc, pcc, m, q)
+    tcc = np.where(q_b, tcc, 1.0)
+    pcc = np.where(q_b, pcc, 1.0)
+    m_safe = np.where(q_b, m, 1.0)
+    tq, pq = quantum_effective_critical(tcc, pcc, m_safe, t[..., None])
+    tq, q2 = np.broadcast_arrays(tq, q)
+    tc_eff = np.where(q2, tq, tc)
+    pc_eff = np.where(q2, pq, pc)
+    w_eff = np.where(q2, 0.0, omega)
+    y = _as_float_array(fractions, "mole fractions")
+    y = np.broadcast_to(y, tc_eff.shape)
+    return kay_pseudocritical(y, tc_eff, pc_eff, w_eff)
