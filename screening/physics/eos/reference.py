@@ -1,0 +1,537 @@
+"""Reference model: multiparameter Helmholtz-energy equations of state through CoolProp's HEOS backend.
+
+One low-level ``CoolProp.AbstractState("HEOS", ...)`` per fluid or mixture, created once (cached by
+:func:`reference_fluid`) and reused for every state. No ``PropsSI`` calls here.
+
+Every state is checked before a number is handed out:
+
+* temperature within the equation's range [t_min, t_max] (CoolProp extrapolates silently, e.g. nitrogen
+  at 5000 K; we refuse);
+* pressure finite and not above p_max;
+* for single-phase states, (dP/drho)_T > 0 (mechanically stable root);
+* mixtures: the density–temperature flash is accepted only if the reverse pressure–temperature flash
+  gives the density back and the state is consistent with the phase envelope (see
+  :meth:`ReferenceFluid._check_mixture_state`). Two-phase mixture states are not screened.
+
+Pseudo-pure fluids (CoolProp's "Air", whose parameter ``pure`` is "false") are treated as a pure fluid
+above their maxcondentherm (the ``T_critical`` CoolProp reports, 132.53 K for air). Below it the
+pseudo-pure equation does not represent the vapour-liquid equilibrium of the real mixture, so states
+there are refused (NotApplicable) rather than given a "saturation" pressure.
+
+Units: SI throughout — pressure [Pa], temperature [K], molar density [mol/m3], molar mass [kg/mol].
+"""
+
+from __future__ import annotations
+
+import math
+import os
+import re
+from functools import lru_cache
+
+import numpy as np
+import CoolProp
+import CoolProp.CoolProp as CP
+
+from screening.errors import NotApplicable
+
+MODEL = "reference"
+
+#: Relative tolerance of the mixture round trip rho -> p(rho, T) -> rho(p, T).
+ROUND_TRIP_RTOL = 1e-6
+
+#: Relative margin kept between an accepted single-phase mixture state and the bubble/dew pressure.
+ENVELOPE_MARGIN = 0.02
+
+#: Margin [K] above the cricondentherm beyond which a mixture is taken as single-phase at any pressure.
+CRICONDENTHERM_MARGIN = 1.0
+
+#: Relative band around the vapour pressure where a pure-fluid PT flash is refused (phase undecidable).
+SATURATION_BAND = 1e-9
+
+_TWO_PHASE = CoolProp.iphase_twophase
+
+
+# --------------------------------------------------------------------------------------------------
+# Bibliography (CoolProp ships its BibTeX library next to the extension module)
+# --------------------------------------------------------------------------------------------------
+
+def _bib_path() -> str:
+    return os.path.join(os.path.dirname(CoolProp.__file__), "CoolPropBibTeXLibrary.bib")
+
+
+@lru_cache(maxsize=1)
+def _bib_text() -> str:
+    try:
+        with open(_bib_path(), encoding="utf-8", errors="replace") as fh:
+            return fh.read()
+    except OSError:
+        return ""
+
+
+def _bib_entry(key: str) -> dict[str, str] | None:
+    """Fields of one BibTeX entry (lower-case names, braces stripped), or None when not found."""
+    text = _bib_text()
+    m = re.search(r"@\w+\s*\{\s*" + re.escape(key) + r"\s*,", text)
+    if not m:
+        return None
+    # walk to the brace that closes the entry
+    depth, i = 1, m.end()
+    while i < len(text) and depth:
+        depth += {"{": 1, "}": -1}.get(text[i], 0)
+        i += 1
+    body = text[m.end():i - 1]
+    fields: dict[str, str] = {}
+    for fm in re.finditer(r"(\w+)\s*=\s*\{", body):
+        depth, j = 1, fm.end()
+        while j < len(body) and depth:
+            depth += {"{": 1, "}": -1}.get(body[j], 0)
+            j += 1
+        value = body[fm.end():j - 1].replace("{", "").replace("}", "")
+        fields[fm.group(1).lower()] = " ".join(value.split())
+    return fields
+
+
+def _citation(key: str) -> str:
+    """Readable citation for a CoolProp bibliography key; the key itself when the entry is not there."""
+    f = _bib_entry(key) if key else None
+    if not f or "title" not in f:
+        return f"{key} (CoolProp bibliography key)"
+    parts = [f.get("author", "?"), f"({f.get('year', 'n.d.')}).", f["title"] + "."]
+    where = f.get("journal") or f.get("booktitle") or f.get("school") or f.get("publisher") or ""
+    if f.get("volume"):
+        where += f" {f['volume']}"
+    if f.get("pages"):
+        where += f", {f['pages']}"
+    if where:
+        parts.append(where.strip() + ".")
+    if f.get("doi"):
+        parts.append(f"doi:{f['doi']}")
+    return " ".join(parts) + f" [{key}]"
+
+
+# --------------------------------------------------------------------------------------------------
+# The fluid
+# --------------------------------------------------------------------------------------------------
+
+def _binary_pair_missing(cas1: str, cas2: str) -> bool:
+    for a, b in ((cas1, cas2), (cas2, cas1)):
+        try:
+            CP.get_mixture_binary_pair_data(a, b, "betaT")
+            return False
+        except ValueError:
+            continue
+    return True
+
+
+def _binary_pair_key(cas1: str, cas2: str) -> str | None:
+    for a, b in ((cas1, cas2), (cas2, cas1)):
+        try:
+            return CP.get_mixture_binary_pair_data(a, b, "BibTeX")
+        except ValueError:
+            continue
+    return None
+
+
+class ReferenceFluid:
+    """A pure fluid or mixture on CoolProp's HEOS backend, with checked state evaluations.
+
+    Attributes: ``names`` (CoolProp fluid names), ``fractions`` (mole fractions [-]), ``is_mixture``,
+    ``is_pseudo_pure`` (e.g. Air), ``label``, ``molar_mass`` [kg/mol], ``t_min``, ``t_max`` [K],
+    ``p_max`` [Pa], ``critical_temperature`` [K], ``critical_pressure`` [Pa],
+    ``critical_molar_density`` [mol/m3], ``triple_temperature`` [K] (pure fluids; None for mixtures).
+    For a mixture the critical values are those of the single stable critical point CoolProp finds,
+    or None when it finds none or several; ``cricondentherm`` [K] is the highest temperature on the
+    phase envelope (None if the envelope cannot be built).
+    """
+
+    def __init__(self, names: tuple[str, ...], fractions: tuple[float, ...]) -> None:
+        names = tuple(str(n) for n in names)
+        fractions = tuple(float(x) for x in fractions)
+        if not names or len(names) != len(fractions):
+            raise NotApplicable(MODEL, "need as many mole fractions as fluid names", value=(names, fractions))
+        if any(not math.isfinite(x) or x <= 0.0 for x in fractions) or abs(sum(fractions) - 1.0) > 1e-6:
+            raise NotApplicable(MODEL, "mole fractions must be positive and sum to 1", value=fractions,
+                                valid_range="each in (0, 1], sum 1 +- 1e-6")
+        cas = []
+        for n in names:
+            try:
+                cas.append(CP.get_fluid_param_string(n, "CAS"))
+            except ValueError:
+                raise NotApplicable(MODEL, f"fluid '{n}' is not known to CoolProp", value=n) from None
+        self.names = names
+        self.is_mixture = len(names) > 1
+        if self.is_mixture:
+            for i in range(len(names)):
+                for j in range(i + 1, len(names)):
+                    if _binary_pair_missing(cas[i], cas[j]):
+                        raise NotApplicable(
+                            MODEL,
+                            f"CoolProp has no binary interaction parameters for the pair "
+                            f"{names[i]} ({cas[i]}) / {names[j]} ({cas[j]}); the mixture is not modelled",
+                            value=(names[i], names[j]))
+            s = sum(fractions)
+            fractions = tuple(x / s for x in fractions)
+        else:
+            fractions = (1.0,)
+        self.fractions = fractions
+        self._cas = tuple(cas)
+        self.is_pseudo_pure = (not self.is_mixture) and CP.get_fluid_param_string(names[0], "pure") == "false"
+        self.label = names[0] if not self.is_mixture else "&".join(
+            f"{n}[{x:g}]" for n, x in zip(names, fractions))
+        try:
+            self._state = CP.AbstractState("HEOS", "&".join(names))
+            if self.is_mixture:
+                self._state.set_mole_fractions(list(fractions))
+        except ValueError as exc:
+            raise NotApplicable(MODEL, f"CoolProp cannot set up {self.label}: {exc}", value=self.label) from None
+        a = self._state
+        self.molar_mass = float(a.molar_mass())
+        self.t_min = float(a.Tmin())
+        self.t_max = float(a.Tmax())
+        self.p_max = float(a.pmax())
+        self.cricondentherm: float | None = None
+        self._envelope: tuple[np.ndarray, np.ndarray] | None = None
+        if not self.is_mixture:
+            self.critical_temperature: float | None = float(a.T_critical())
+            self.critical_pressure: float | None = float(a.p_critical())
+            self.critical_molar_density: float | None = float(a.rhomolar_critical())
+            self.triple_temperature: float | None = float(a.Ttriple())
+        else:
+            self.critical_temperature = self.critical_pressure = self.critical_molar_density = None
+            self.triple_temperature = None
+            try:
+                stable = [c for c in a.all_critical_points() if c.stable]
+                if len(stable) == 1:
+                    self.critical_temperature = float(stable[0].T)
+                    self.critical_pressure = float(stable[0].p)
+                    self.critical_molar_density = float(stable[0].rhomolar)
+            except ValueError:
+                pass
+            try:
+                a.build_phase_envelope("")
+                env = a.get_phase_envelope_data()
+                env_t = np.asarray(env.T, dtype=float)
+                env_p = np.asarray(env.p, dtype=float)
+                if env_t.size > 1 and np.all(np.isfinite(env_t)) and np.all(np.isfinite(env_p)):
+                    self.cricondentherm = float(env_t.max())
+                    self._envelope = (env_t, env_p)
+            except ValueError:
+                pass
+
+    def __repr__(self) -> str:
+        return f"ReferenceFluid({self.label})"
+
+    # ---------------------------------------------------------------------------------------------
+    def eos_references(self) -> list[str]:
+        """Published sources of the equations of state used (components, then mixture departure functions)."""
+        refs = []
+        for n in self.names:
+            key = CP.get_fluid_param_string(n, "BibTeX-EOS")
+            refs.append(f"{n}: {_citation(key)}")
+        if self.is_mixture:
+            seen = set()
+            for i in range(len(self.names)):
+                for j in range(i + 1, len(self.names)):
+                    key = _binary_pair_key(self._cas[i], self._cas[j])
+                    if key and key not in seen:
+                        seen.add(key)
+                        refs.append(f"{self.names[i]}/{self.names[j]} interaction: {_citation(key)}")
+        return refs
+
+    # ---------------------------------------------------------------------------------------------
+    # range checks
+    def _check_temperature(self, T: float) -> None:
+        if not math.isfinite(T) or T < self.t_min or T > self.t_max:
+            raise NotApplicable(MODEL, f"temperature {T!r} K is outside the range of the {self.label} equation",
+                                value=T, valid_range=f"{self.t_min:g} K to {self.t_max:g} K")
+        if self.is_pseudo_pure and T < self.critical_temperature:
+            raise NotApplicable(
+                MODEL, f"{self.label} is modelled as a pseudo-pure fluid; below its maxcondentherm "
+                f"{self.critical_temperature:g} K the vapour-liquid equilibrium is not represented",
+                value=T, valid_range=f"{self.critical_temperature:g} K to {self.t_max:g} K")
+
+    def _check_pressure(self, p: float) -> None:
+        if not math.isfinite(p) or p <= 0.0:
+            raise NotApplicable(MODEL, f"equation of state gave a non-physical pressure {p!r} Pa for {self.label}",
+                                value=p, valid_range="finite, > 0 Pa")
+        if p > self.p_max:
+            raise NotApplicable(MODEL, f"pressure {p:.6g} Pa is above the range of the {self.label} equation",
+                                value=p, valid_range=f"up to {self.p_max:.6g} Pa")
+
+    def _check_density(self, rho: float) -> None:
+        if not math.isfinite(rho) or rho <= 0.0:
+            raise NotApplicable(MODEL, f"molar density must be finite and positive, got {rho!r} mol/m3",
+                                value=rho, valid_range="> 0 mol/m3")
+
+    def _check_stable(self, what: str) -> None:
+        dpdrho = self._state.first_partial_deriv(CoolProp.iP, CoolProp.iDmolar, CoolProp.iT)
+        if not (math.isfinite(dpdrho) and dpdrho > 0.0):
+            raise NotApplicable(MODEL, f"{what}: (dP/drho)_T = {dpdrho!r} is not positive — not a stable "
+                                "single-phase state", value=dpdrho, valid_range="(dP/drho)_T > 0")
+
+    def _require_pure(self, what: str) -> None:
+        if self.is_mixture:
+            raise NotApplicable(MODEL, f"{what} is defined here for pure fluids only, not {self.label}",
+                                value=self.label)
+        if self.is_pseudo_pure:
+            raise NotApplicable(MODEL, f"{what} is not defined for the pseudo-pure fluid {self.label}",
+                                value=self.label)
+
+    # ---------------------------------------------------------------------------------------------
+    # core state evaluation at (rho, T); leaves self._state at that state. Returns (p, phase).
+    def _evaluate(self, rho: float, T: float) -> tuple[float, str]:
+        self._check_density(rho)
+        self._check_temperature(T)
+        a = self._state
+        try:
+            if self.is_mixture:
+                # Homogeneous (single-phase) pressure straight from the Helmholtz energy at (rho, T): the
+                # mixture density-temperature flash is slow and can silently pick a wrong state. Whether
+                # the homogeneous state is the stable one is decided below by the reverse PT flash and the
+                # phase-envelope check.
+                a.specify_phase(CoolProp.iphase_gas)
+                try:
+                    a.update(CoolProp.DmolarT_INPUTS, rho, T)
+                finally:
+                    a.unspecify_phase()
+            else:
+                a.update(CoolProp.DmolarT_INPUTS, rho, T)
+            p = a.p()
+            iphase = a.phase()
+        except ValueError as exc:
+            raise NotApplicable(MODEL, f"CoolProp density-temperature flash failed for {self.label} at "
+                                f"rho={rho:.6g} mol/m3, T={T:.6g} K: {exc}", value=(rho, T)) from None
+        self._check_pressure(p)
+        if not self.is_mixture:
+            if iphase == _TWO_PHASE:
+                return p, "two-phase"
+            self._check_stable(f"{self.label} at rho={rho:.6g} mol/m3, T={T:.6g} K")
+            if T >= self.critical_temperature:
+                return p, "supercritical"
+            return p, "liquid" if rho > self.critical_molar_density else "gas"
+        if iphase == _TWO_PHASE:
+            raise NotApplicable(MODEL, f"{self.label} at rho={rho:.6g} mol/m3, T={T:.6g} K is two-phase; "
+                                "two-phase mixture states are not screened", value=(rho, T))
+        self._check_stable(f"{self.label} at rho={rho:.6g} mol/m3, T={T:.6g} K")
+        try:
+            a.update(CoolProp.PT_INPUTS, p, T)
+            rho_back = a.rhomolar()
+            if a.phase() == _TWO_PHASE:
+                raise NotApplicable(MODEL, f"{self.label} at rho={rho:.6g} mol/m3, T={T:.6g} K: the pressure-"
+                                    f"temperature flash at {p:.6g} Pa finds two phases; two-phase mixture "
+                                    "states are not screened", value=(rho, T))
+        except ValueError as exc:
+            raise NotApplicable(MODEL, f"{self.label}: the reverse pressure-temperature flash at p={p:.6g} Pa, "
+                                f"T={T:.6g} K failed ({exc}); the density-temperature result is not trusted",
+                                value=(rho, T)) from None
+        if not (math.isfinite(rho_back) and abs(rho_back - rho) <= ROUND_TRIP_RTOL * rho):
+            raise NotApplicable(
+                MODEL, f"{self.label}: density {rho:.6g} mol/m3 at {T:.6g} K gives {p:.6g} Pa, but the reverse "
+                f"pressure-temperature flash gives {rho_back:.6g} mol/m3 back; CoolProp's flash is not "
+                "self-consistent here, so no number is given", value=(rho, T))
+        phase = self._check_mixture_state(p, T)
+        # leave the state at the homogeneous (rho, T) for derivative calls
+        a.specify_phase(CoolProp.iphase_gas)
+        try:
+            a.update(CoolProp.DmolarT_INPUTS, rho, T)
+        finally:
+            a.unspecify_phase()
+        return p, phase
+
+    def _check_mixture_state(self, p: float, T: float) -> str:
+        """Check a single-phase mixture state (p, T) against the phase envelope; return its phase.
+
+        Conservative rule:
+          * above the cricondentherm (+ CRICONDENTHERM_MARGIN) no two-phase region exists at any
+            pressure: accepted as "supercritical";
+          * otherwise the boundary pressures at T are collected: the bubble pressure (QT flash, Q=0),
+            the dew pressure (Q=1), and every crossing of the traced phase envelope with this
+            temperature. At least two are needed, and p must lie outside [min, max] of all of them
+            widened by ENVELOPE_MARGIN: below → "gas", above → "liquid" (or "supercritical" above
+            the mixture critical temperature). Taking the extremes of all estimates is conservative:
+            a spurious envelope point at a huge pressure only refuses more dense states;
+          * fewer than two boundary pressures (solver failures, no envelope): the phase cannot be
+            confirmed and the state is refused.
+        """
+        ct = self.cricondentherm
+        if ct is not None and T > ct + CRICONDENTHERM_MARGIN:
+            return "supercritical"
+        a = self._state
+        sat = []
+        for q in (0.0, 1.0):
+            try:
+                a.update(CoolProp.QT_INPUTS, q, T)
+                ps = a.p()
+            except ValueError:
+                ps = float("nan")
+            sat.append(ps)
+        bounds = [x for x in sat if math.isfinite(x) and x > 0]
+        if self._envelope is not None:
+            et, ep = self._envelope
+            for i in range(et.size - 1):
+                if (et[i] - T) * (et[i + 1] - T) <= 0.0 and et[i] != et[i + 1]:
+                    w = (T - et[i]) / (et[i + 1] - et[i])
+                    bounds.append(float(math.exp((1 - w) * math.log(ep[i]) + w * math.log(ep[i + 1]))))
+        if len(bounds) < 2:
+            raise NotApplicable(
+                MODEL, f"{self.label} at {T:.6g} K, {p:.6g} Pa: the bubble and dew pressures at this "
+                "temperature could not be established, so the phase cannot be confirmed"
+                + (f" (cricondentherm {ct:.5g} K)" if ct is not None else " (phase envelope not available)"),
+                value=(p, T), valid_range="states away from the phase envelope, or above the cricondentherm")
+        lo, hi = min(bounds), max(bounds)
+        if p < lo * (1.0 - ENVELOPE_MARGIN):
+            return "gas"
+        if p > hi * (1.0 + ENVELOPE_MARGIN):
+            tc = self.critical_temperature
+            return "supercritical" if (tc is not None and T > tc) else "liquid"
+        raise NotApplicable(
+            MODEL, f"{self.label} at {T:.6g} K, {p:.6g} Pa lies within or next to the two-phase region "
+            f"(dew {sat[1]:.6g} Pa, bubble {sat[0]:.6g} Pa); mixture two-phase states are not screened",
+            value=(p, T), valid_range=f"p < {lo * (1 - ENVELOPE_MARGIN):.6g} Pa or p > {hi * (1 + ENVELOPE_MARGIN):.6g} Pa")
+
+    # ---------------------------------------------------------------------------------------------
+    # public scalar API
+    def pressure(self, rho_molar: float, T: float) -> float:
+        """Pressure [Pa] at molar density rho_molar [mol/m3] and temperature T [K].
+
+        Pure fluid inside the saturation dome: the saturation pressure (a legitimate closed-tank state).
+        """
+        return self._evaluate(float(rho_molar), float(T))[0]
+
+    def phase(self, rho_molar: float, T: float) -> str:
+        """"gas" | "supercritical" | "two-phase" | "liquid" at rho_molar [mol/m3], T [K]."""
+        return self._evaluate(float(rho_molar), float(T))[1]
+
+    def dp_dt_at_constant_density(self, rho_molar: float, T: float) -> float:
+        """(dP/dT) along the isochore [Pa/K]; in the pure-fluid dome this is dp_sat/dT."""
+        _, phase = self._evaluate(float(rho_molar), float(T))
+        a = self._state
+        if phase == "two-phase":
+            d = a.first_saturation_deriv(CoolProp.iP, CoolProp.iT)
+        else:
+            d = a.first_partial_deriv(CoolProp.iP, CoolProp.iT, CoolProp.iDmolar)
+        if not math.isfinite(d):
+            raise NotApplicable(MODEL, f"(dP/dT)_rho not finite for {self.label} at rho={rho_molar!r}, T={T!r}",
+                                value=(rho_molar, T))
+        return float(d)
+
+    def density(self, p: float, T: float) -> float:
+        """Molar density [mol/m3] at pressure p [Pa] and temperature T [K] (PT flash, checked).
+
+        Pure fluid below Tc: liquid if p is above the vapour pressure, gas if below; refused at the
+        vapour pressure itself (within a relative 1e-9).
+        """
+        p, T = float(p), float(T)
+        self._check_temperature(T)
+        self._check_pressure(p)
+        a = self._state
+        if not self.is_mixture:
+            imposed = None
+            if T < self.critical_temperature:
+                ps = self.vapour_pressure(T) if not self.is_pseudo_pure else None
+                if ps is not None:
+                    if abs(p - ps) <= SATURATION_BAND * ps:
+                        raise NotApplicable(MODEL, f"{self.label} at {T:.6g} K: p = {p:.6g} Pa is the vapour "
+                                            "pressure; the density is not defined by (p, T) there",
+                                            value=(p, T))
+                    imposed = CoolProp.iphase_liquid if p > ps else CoolProp.iphase_gas
+            try:
+                if imposed is not None:
+                    a.specify_phase(imposed)
+                a.update(CoolProp.PT_INPUTS, p, T)
+                rho = a.rhomolar()
+            except ValueError as exc:
+                raise NotApplicable(MODEL, f"CoolProp pressure-temperature flash failed for {self.label} at "
+                                    f"p={p:.6g} Pa, T={T:.6g} K: {exc}", value=(p, T)) from None
+            finally:
+                a.unspecify_phase()
+            self._check_density(rho)
+            # independent check of the root through the checked density-temperature path
+            p_back, _ = self._evaluate(rho, T)
+            if abs(p_back - p) > 1e-6 * p:
+                raise NotApplicable(MODEL, f"{self.label}: PT flash at p={p:.6g} Pa, T={T:.6g} K gave "
+                                    f"{rho:.6g} mol/m3 which maps back to {p_back:.6g} Pa", value=(p, T))
+            return float(rho)
+        try:
+            a.update(CoolProp.PT_INPUTS, p, T)
+            rho = a.rhomolar()
+            iphase = a.phase()
+        except ValueError as exc:
+            raise NotApplicable(MODEL, f"CoolProp pressure-temperature flash failed for {self.label} at "
+                                f"p={p:.6g} Pa, T={T:.6g} K: {exc}", value=(p, T)) from None
+        if iphase == _TWO_PHASE:
+            raise NotApplicable(MODEL, f"{self.label} at p={p:.6g} Pa, T={T:.6g} K is two-phase; two-phase "
+                                "mixture states are not screened", value=(p, T))
+        self._check_density(rho)
+        # the density-temperature path re-checks: round trip, stability and the phase envelope
+        p_back, _ = self._evaluate(rho, T)
+        if abs(p_back - p) > ROUND_TRIP_RTOL * p:
+            raise NotApplicable(MODEL, f"{self.label}: PT flash at p={p:.6g} Pa, T={T:.6g} K gave "
+                                f"{rho:.6g} mol/m3 which maps back to {p_back:.6g} Pa", value=(p, T))
+        return float(rho)
+
+    # ---------------------------------------------------------------------------------------------
+    # saturation (pure fluids)
+    def _saturation(self, T: float, q: float) -> tuple[float, float]:
+        self._require_pure("saturation")
+        T = float(T)
+        tt, tc = self.triple_temperature, self.critical_temperature
+        if not math.isfinite(T) or T < tt or T >= tc:
+            raise NotApplicable(MODEL, f"saturation of {self.label} asked at {T!r} K", value=T,
+                                valid_range=f"{tt:g} K <= T < {tc:g} K (triple point to critical point)")
+        a = self._state
+        try:
+            a.update(CoolProp.QT_INPUTS, q, T)
+            p, rho = a.p(), a.rhomolar()
+        except ValueError as exc:
+            raise NotApplicable(MODEL, f"CoolProp saturation flash failed for {self.label} at {T:.6g} K: {exc}",
+                                value=T) from None
+        if not (math.isfinite(p) and math.isfinite(rho) and p > 0 and rho > 0):
+            raise NotApplicable(MODEL, f"saturation of {self.label} at {T:.6g} K gave non-physical values",
+                                value=(T, p, rho))
+        return float(p), float(rho)
+
+    def vapour_pressure(self, T: float) -> float:
+        """Vapour pressure [Pa] at T [K], triple point ≤ T < Tc."""
+        return self._saturation(T, 0.0)[0]
+
+    def saturated_liquid_density(self, T: float) -> float:
+        """Saturated-liquid molar density [mol/m3] at T [K], triple point ≤ T < Tc."""
+        return self._saturation(T, 0.0)[1]
+
+    def saturated_vapour_density(self, T: float) -> float:
+        """Saturated-vapour molar density [mol/m3] at T [K], triple point ≤ T < Tc."""
+        return self._saturation(T, 1.0)[1]
+
+    # ---------------------------------------------------------------------------------------------
+    def pressures(self, rho_molar: np.ndarray, T: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Vectorised :meth:`pressure` over rows (broadcast), looping the one cached AbstractState.
+
+        Returns (pressures [Pa], valid mask [bool], reason [str, '' where valid]); invalid rows carry NaN,
+        False and the reason in plain words.
+        """
+        rho_b, t_b = np.broadcast_arrays(np.asarray(rho_molar, dtype=float), np.asarray(T, dtype=float))
+        shape = rho_b.shape
+        rho_f, t_f = rho_b.ravel(), t_b.ravel()
+        n = rho_f.size
+        out = np.full(n, np.nan)
+        valid = np.zeros(n, dtype=bool)
+        reasons = [""] * n
+        evaluate = self._evaluate
+        for i in range(n):
+            try:
+                out[i] = evaluate(rho_f[i], t_f[i])[0]
+                valid[i] = True
+            except NotApplicable as exc:
+                reasons[i] = exc.reason
+        return out.reshape(shape), valid.reshape(shape), np.array(reasons, dtype=str).reshape(shape)
+
+
+@lru_cache(maxsize=None)
+def reference_fluid(names: tuple[str, ...], fractions: tuple[float, ...]) -> ReferenceFluid:
+    """The cached :class:`ReferenceFluid` for CoolProp fluid names and mole fractions.
+
+    A pure fluid when ``len(names) == 1`` (fractions ``(1.0,)``). Raises NotApplicable for an unknown fluid
+    or a mixture with a binary pair that CoolProp has no interaction parameters for.
+    """
+    return ReferenceFluid(tuple(names), tuple(fractions))
