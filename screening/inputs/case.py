@@ -270,7 +270,7 @@ def parse_case_text(text: str, source: str = "<case>") -> Case:
         if not 0.0 <= margin < 1.0:
             raise r.err("required margin out of range", "criteria.required_margin", given=margin_reading.text,
                         expected="0 % to below 100 %")
-        r.record("criteria.required_margin", margin_reading, margin, "-")
+        r.record("criteria.required_margin", margin_reading, margin, "(fraction)")
 
     display = {
         "pressure": r.labels.get("pressure", "bar(g)"),

@@ -1,0 +1,535 @@
+"""Screen one vessel: models → governing peak → margins, verdict, reasons, limits → result (plain data).
+
+This is the only place that decides a verdict. The result is a JSON-ready dict in SI with pressures
+absolute [Pa] and temperatures [K]; summaries and reports are views of it.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import Callable
+
+import numpy as np
+from scipy.optimize import brentq
+
+from screening import __version__
+from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
+from screening.errors import NotApplicable
+from screening.inputs.case import Case, load_case, parse_case_text
+from screening.physics.eos.generalized import lee_kesler_density, lee_kesler_pressure, pseudocritical
+from screening.physics.eos.ideal import ideal_gas_density, ideal_gas_pressure
+from screening.physics.eos.reference import ReferenceFluid, reference_fluid
+from screening.physics.gases import Mixture
+from screening.physics.isochore import isochore_phases, max_liquid_density
+
+VERDICTS = ("within", "low-margin", "over", "out-of-scope")
+_SEVERITY = {"within": 0, "low-margin": 1, "over": 2, "out-of-scope": 3}
+
+#: Relative difference between the generalized and reference peaks above which a warning is given.
+MODEL_DISAGREEMENT_WARNING = 0.02
+#: A vapour fill at or above this fraction of the vapour pressure is treated as near-saturated.
+NEAR_SATURATION_FRACTION = 0.95
+#: Fill temperature assumed for a mass fill that gives none [K]; it only describes the fill state.
+DEFAULT_MASS_FILL_TEMPERATURE_K = 288.15
+
+P_TOL = 1e-9  # relative tolerance of the root solves
+
+
+@dataclass
+class Model:
+    """One model's outcome for one vessel."""
+
+    name: str
+    applicable: bool
+    note: str
+    peak_pa: float | None = None
+    fill_molar_density: float | None = None
+    isochore: Callable[[float], float] | None = None      # T [K] -> p [Pa] at the fill density
+    fill_to_peak: Callable[[float], float] | None = None   # p_fill [Pa] -> p_peak [Pa]
+    extra: dict = field(default_factory=dict)
+
+    def as_dict(self) -> dict:
+        return {"applicable": self.applicable, "peak_pressure_pa": self.peak_pa, "note": self.note,
+                "fill_molar_density_mol_m3": self.fill_molar_density, **self.extra}
+
+
+def not_applicable(name: str, note: str, **extra) -> Model:
+    return Model(name, False, note, extra=extra)
+
+
+# ----------------------------------------------------------------------------- the three models
+
+def _ideal(case: Case, rho_mass: float | None, t_fill: float, t_peak: float, gas_ok: bool, why: str) -> Model:
+    note_eq = "P v = R T, so at fixed density P2 = P1 T2 / T1"
+    if not gas_ok:
+        return not_applicable("ideal", why, equation=note_eq)
+    if case.fill_pressure_pa is not None:
+        rho = float(ideal_gas_density(case.fill_pressure_pa, t_fill))
+    else:
+        rho = rho_mass / case.gas.molar_mass
+    peak = float(ideal_gas_pressure(rho, t_peak))
+    return Model("ideal", True, "ideal-gas law; shown for comparison, it ignores real-gas behaviour",
+                 peak, rho, isochore=lambda t: float(ideal_gas_pressure(rho, t)),
+                 fill_to_peak=lambda p: p * t_peak / t_fill, extra={"equation": note_eq})
+
+
+def _gas_arrays(gas: Mixture) -> dict:
+    c = gas.components
+    return dict(
+        fractions=np.array(gas.fractions), tc=np.array([g.critical_temperature for g in c]),
+        pc=np.array([g.critical_pressure for g in c]), omega=np.array([g.acentric_factor for g in c]),
+        molar_mass=np.array([g.molar_mass for g in c]), quantum=np.array([g.quantum for g in c]),
+        tc_classical=np.array([g.classical_critical_temperature or g.critical_temperature for g in c]),
+        pc_classical=np.array([g.classical_critical_pressure or g.critical_pressure for g in c]),
+    )
+
+
+def _lk_constants(arrays: dict, t: float) -> tuple[float, float, float]:
+    tc, pc, om = pseudocritical(arrays["fractions"], arrays["tc"], arrays["pc"], arrays["omega"],
+                                arrays["molar_mass"], arrays["quantum"], arrays["tc_classical"],
+                                arrays["pc_classical"], np.asarray(t, dtype=float))
+    return float(np.asarray(tc).ravel()[0]), float(np.asarray(pc).ravel()[0]), float(np.asarray(om).ravel()[0])
+
+
+def _lk_density(arrays: dict, p: float, t: float):
+    tc, pc, om = _lk_constants(arrays, t)
+    return lee_kesler_density(np.array([p]), np.array([t]), tc, pc, om).require(), (tc, pc, om)
+
+
+def _lk_pressure(arrays: dict, rho: float, t: float):
+    tc, pc, om = _lk_constants(arrays, t)
+    return lee_kesler_pressure(np.array([rho]), np.array([t]), tc, pc, om).require(), (tc, pc, om)
+
+
+def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: float, gas_ok: bool,
+                 why: str) -> Model:
+    if not gas_ok:
+        return not_applicable("generalized", why)
+    arrays = _gas_arrays(case.gas)
+    try:
+        if case.fill_pressure_pa is not None:
+            fill, consts_fill = _lk_density(arrays, case.fill_pressure_pa, t_fill)
+            rho = float(fill.molar_density[0])
+        else:
+            rho = rho_mass / case.gas.molar_mass
+            fill, consts_fill = _lk_pressure(arrays, rho, t_fill)
+        peak, consts_peak = _lk_pressure(arrays, rho, t_peak)
+    except NotApplicable as exc:
+        return not_applicable("generalized", f"Lee–Kesler correlation outside its range: {exc.reason}")
+    extra = {
+        "z_fill": float(fill.z[0]), "z_peak": float(peak.z[0]),
+        "reduced_temperature_fill": float(fill.reduced_temperature[0]),
+        "reduced_pressure_fill": float(fill.reduced_pressure[0]),
+        "reduced_temperature_peak": float(peak.reduced_temperature[0]),
+        "reduced_pressure_peak": float(peak.reduced_pressure[0]),
+        "pseudocritical_temperature_k": consts_peak[0], "pseudocritical_pressure_pa": consts_peak[1],
+        "pseudocritical_temperature_fill_k": consts_fill[0], "pseudocritical_pressure_fill_pa": consts_fill[1],
+        "acentric_factor": consts_peak[2],
+        "mixing_rule": "Kay's rule (mole-fraction average)" if not case.gas.is_pure else None,
+        "quantum_correction": any(g.quantum for g in case.gas.components),
+    }
+
+    def isochore(t: float) -> float:
+        return float(_lk_pressure(arrays, rho, t)[0].pressure[0])
+
+    def fill_to_peak(p: float) -> float:
+        r = float(_lk_density(arrays, p, t_fill)[0].molar_density[0])
+        return float(_lk_pressure(arrays, r, t_peak)[0].pressure[0])
+
+    return Model("generalized", True, "Lee–Kesler corresponding states"
+                 + (" with Kay's rule" if not case.gas.is_pure else ""),
+                 float(peak.pressure[0]), rho, isochore, fill_to_peak, extra)
+
+
+# ----------------------------------------------------------------------------- phase and reference
+
+@dataclass
+class FillState:
+    """The fill state as the reference model sees it (or as far as it can be established)."""
+
+    rho_mass: float | None = None          # [kg/m3] fill density (reference, or given by mass)
+    phase_fill: str | None = None
+    phase_peak: str | None = None
+    gas_ok: bool = True                    # ideal and generalized models may be used
+    why_not_gas: str = ""
+    liquid_full_temperature: float | None = None
+    dry_out_temperature: float | None = None
+    dp_dt_after_liquid_full: float | None = None
+    vapour_pressure_fill: float | None = None
+    fluid: ReferenceFluid | None = None
+    fluid_error: str | None = None
+
+
+def _reference_fluid(gas: Mixture) -> tuple[ReferenceFluid | None, str | None]:
+    names = tuple(g.coolprop_name for g in gas.components)
+    if any(n is None for n in names):
+        missing = [g.name for g in gas.components if g.coolprop_name is None]
+        return None, f"no reference equation of state for {', '.join(missing)}"
+    try:
+        return reference_fluid(names, tuple(gas.fractions)), None
+    except NotApplicable as exc:
+        return None, exc.reason
+
+
+def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> FillState:
+    fs = FillState()
+    fluid, err = _reference_fluid(case.gas)
+    fs.fluid, fs.fluid_error = fluid, err
+    M = case.gas.molar_mass
+    if case.fill_mass_kg is not None:
+        fs.rho_mass = case.fill_mass_kg / case.water_capacity_m3
+    if fluid is None:
+        # Without the reference model the phase cannot be established; a gas is assumed only where
+        # both temperatures are above every component's critical temperature.
+        tc_max = max(g.critical_temperature for g in case.gas.components)
+        if min(t_fill, t_peak) <= tc_max:
+            fs.gas_ok = False
+            fs.why_not_gas = ("the gas phase cannot be confirmed: the reference model is not available "
+                              f"({err}) and the temperature is below a component's critical temperature")
+        else:
+            fs.phase_fill = fs.phase_peak = "gas (assumed: above every component's critical temperature)"
+        return fs
+    try:
+        if case.fill_pressure_pa is not None:
+            rho_molar = fluid.density(case.fill_pressure_pa, t_fill)
+            fs.rho_mass = rho_molar * M
+        else:
+            rho_molar = fs.rho_mass / M
+            rho_max = max_liquid_density(fluid) if not fluid.is_mixture else math.inf
+            if rho_molar > rho_max:
+                from screening.errors import InputError
+                raise InputError(
+                    "fill density is above the liquid density at the triple point: no fill can reach it",
+                    file=case.source, key="fill.mass",
+                    given=f"{case.fill_mass_kg:g} kg in {case.water_capacity_m3 * 1000:g} L "
+                          f"= {fs.rho_mass:.1f} kg/m3",
+                    expected=f"below {rho_max * M:.1f} kg/m3 of water capacity")
+        if not fluid.is_mixture:
+            ph = isochore_phases(fluid, rho_molar, t_fill, t_peak)
+            fs.phase_fill, fs.phase_peak = ph.fill_phase, ph.peak_phase
+            fs.liquid_full_temperature = ph.liquid_full_temperature
+            fs.dry_out_temperature = ph.dry_out_temperature
+            fs.dp_dt_after_liquid_full = ph.dp_dt_after_liquid_full
+        else:
+            fs.phase_fill = fluid.phase(rho_molar, t_fill)
+            fs.phase_peak = fluid.phase(rho_molar, t_peak)
+    except NotApplicable as exc:
+        fs.fluid_error = exc.reason
+        tc_max = max(g.critical_temperature for g in case.gas.components)
+        if min(t_fill, t_peak) <= tc_max:
+            fs.gas_ok = False
+            fs.why_not_gas = f"the gas phase cannot be confirmed: {exc.reason}"
+        return fs
+
+    condensed = {"liquid", "two-phase"}
+    if fs.phase_fill in condensed or fs.phase_peak in condensed:
+        fs.gas_ok = False
+        where = "at fill" if fs.phase_fill in condensed else "at the worst-case temperature"
+        phase = fs.phase_fill if fs.phase_fill in condensed else fs.phase_peak
+        fs.why_not_gas = (f"the contents are {phase} {where}; gas models do not apply to a liquid or a "
+                          "liquid–vapour mixture")
+    if not fluid.is_mixture and t_fill < fluid.critical_temperature and case.fill_pressure_pa is not None:
+        try:
+            psat = fluid.vapour_pressure(t_fill)
+        except NotApplicable:
+            psat = None
+        fs.vapour_pressure_fill = psat
+        if psat is not None and fs.phase_fill == "gas" and case.fill_pressure_pa >= NEAR_SATURATION_FRACTION * psat:
+            fs.gas_ok = False
+            fs.why_not_gas = (f"the fill pressure is within {100 * (1 - NEAR_SATURATION_FRACTION):.0f} % of the "
+                              "vapour pressure at the fill temperature, where gas models fail")
+            warnings.append({"code": "near-saturation", "message":
+                             f"The fill pressure is {case.fill_pressure_pa / psat * 100:.1f} % of the vapour "
+                             "pressure at the fill temperature: part of the contents may be liquid."})
+    return fs
+
+
+def _reference(case: Case, fs: FillState, t_fill: float, t_peak: float) -> Model:
+    fluid = fs.fluid
+    if fluid is None or fs.rho_mass is None:
+        return not_applicable("reference", f"reference equation of state not applicable: {fs.fluid_error}")
+    M = case.gas.molar_mass
+    rho = fs.rho_mass / M
+    try:
+        peak = fluid.pressure(rho, t_peak)
+        z_fill = (case.fill_pressure_pa or fluid.pressure(rho, t_fill)) / (rho * 8.314462618 * t_fill)
+    except NotApplicable as exc:
+        return not_applicable("reference", f"reference equation of state not applicable: {exc.reason}",
+                              fluid=fluid.label)
+    from screening.constants import R
+    extra = {"fluid": fluid.label, "phase_fill": fs.phase_fill, "phase_peak": fs.phase_peak,
+             "z_fill": z_fill, "z_peak": peak / (rho * R * t_peak),
+             "eos_references": fluid.eos_references()}
+
+    def fill_to_peak(p: float) -> float:
+        return fluid.pressure(fluid.density(p, t_fill), t_peak)
+
+    return Model("reference", True, "multiparameter Helmholtz-energy equation of state (CoolProp)",
+                 peak, rho, lambda t: fluid.pressure(rho, t), fill_to_peak, extra)
+
+
+# ----------------------------------------------------------------------------- limits
+
+def _root(f: Callable[[float], float], lo: float, hi: float, n: int = 24) -> float | None:
+    """A root of f in [lo, hi]: scan for the first sign change, then Brent. None where f has no sign change
+    or cannot be evaluated. A scan step whose ends cannot be evaluated is passed over."""
+    xs = np.linspace(lo, hi, n)
+    prev_x, prev_f = None, None
+    for x in xs:
+        try:
+            fx = f(float(x))
+        except NotApplicable:
+            prev_x, prev_f = None, None
+            continue
+        if prev_f is not None and (prev_f <= 0.0 <= fx or prev_f >= 0.0 >= fx):
+            if fx == 0.0:
+                return float(x)
+            try:
+                return float(brentq(f, prev_x, float(x), rtol=P_TOL, xtol=1e-9 * max(1.0, abs(x))))
+            except NotApplicable:
+                return None
+        prev_x, prev_f = float(x), fx
+    return None
+
+
+def _limits(case: Case, models: list[Model], t_fill: float, t_peak: float) -> dict:
+    real = [m for m in models if m.applicable and m.name != "ideal"]
+    target = case.site.atmospheric_pressure_pa + (case.rated_pressure_pa - case.site.atmospheric_pressure_pa) \
+        * (1.0 - case.required_margin)
+    t_lo = min(t_fill, t_peak)
+    t_hi = max(t_peak, t_fill) + 300.0
+    max_t = []
+    for m in real:
+        t = _root(lambda t, m=m: m.isochore(t) - case.rated_pressure_pa, t_lo, t_hi, n=40)
+        if t is not None:
+            max_t.append(t)
+    max_p = []
+    if case.fill_pressure_pa is not None:
+        for m in real:
+            p = _root(lambda p, m=m: m.fill_to_peak(p) - target, case.site.atmospheric_pressure_pa * 1.01,
+                      max(target, case.fill_pressure_pa) * max(1.0, t_fill / t_peak) * 1.05, n=40)
+            if p is not None and abs(m.fill_to_peak(p) - target) <= 1e-6 * target:
+                max_p.append(p)
+    return {
+        "max_gas_temperature_k": min(max_t) if max_t else None,
+        "max_fill_pressure_pa": min(max_p) if max_p else None,
+        "target_peak_pressure_pa": target,
+        "note": ("solved on each applicable real-gas model; the lowest (most conservative) value is given"
+                 if real else "no real-gas model applies, so no limit is given"),
+    }
+
+
+# ----------------------------------------------------------------------------- verdict
+
+def decide(*, peak: float | None, rated: float, relief: float | None, atm: float, required_margin: float,
+           any_real_model: bool, out_of_scope_reason: str | None, liquid_full_reason: str | None = None,
+           filling_ratio_reason: str | None = None) -> tuple[str, list[str], float | None, float | None]:
+    """Verdict, reasons, margin against the rated pressure and against the relief set pressure.
+
+    margin = 1 − peak_gauge / rated_gauge. `within`: peak ≤ rated and margin ≥ required margin;
+    `low-margin`: peak ≤ rated, margin below the required one; `over`: peak > rated;
+    `out-of-scope`: no applicable real-gas model (or a reason given by the caller).
+    """
+    reasons: list[str] = []
+    if out_of_scope_reason or not any_real_model or peak is None:
+        reasons.append(out_of_scope_reason or "No real-gas model applies to this vessel, so it cannot be screened.")
+        return "out-of-scope", reasons, None, None
+    margin = 1.0 - (peak - atm) / (rated - atm)
+    relief_margin = None if relief is None else 1.0 - (peak - atm) / (relief - atm)
+    if peak > rated:
+        verdict = "over"
+        reasons.append(f"The peak pressure exceeds the rated pressure by {-margin * 100:.1f} % of the rating.")
+    elif margin < required_margin:
+        verdict = "low-margin"
+        reasons.append(f"The peak pressure stays within the rating but the margin, {margin * 100:.1f} %, is "
+                       f"below the required {required_margin * 100:.1f} %.")
+    else:
+        verdict = "within"
+        reasons.append(f"The peak pressure stays within the rating with a margin of {margin * 100:.1f} % "
+                       f"(required {required_margin * 100:.1f} %).")
+    if relief is not None and peak > relief:
+        reasons.append("The peak pressure is above the relief set pressure: the relief device would open "
+                       "and release gas.")
+        if verdict == "within":
+            verdict = "low-margin"
+    if liquid_full_reason:
+        reasons.append(liquid_full_reason)
+        if verdict == "within":
+            verdict = "low-margin"
+    if filling_ratio_reason:
+        reasons.append(filling_ratio_reason)
+        verdict = "over" if verdict != "out-of-scope" else verdict
+    return verdict, reasons, margin, relief_margin
+
+
+# ----------------------------------------------------------------------------- the screening
+
+def _curves(models: list[Model], t_fill: float, t_peak: float, limits: dict) -> dict:
+    t_lo = max(min(t_fill, t_peak) - 30.0, 1.0)
+    t_top = max(t_peak, t_fill) + 25.0
+    tmax = limits.get("max_gas_temperature_k")
+    if tmax is not None and tmax < t_peak + 80.0:
+        t_top = max(t_top, tmax + 10.0)
+    grid = np.linspace(t_lo, t_top, 61)
+    out: dict = {"temperature_k": [float(t) for t in grid]}
+    for m in models:
+        if not m.applicable or m.isochore is None:
+            out[m.name] = None
+            continue
+        values = []
+        for t in grid:
+            try:
+                v = m.isochore(float(t))
+                values.append(float(v) if math.isfinite(v) else None)
+            except NotApplicable:
+                values.append(None)
+        out[m.name] = values
+    return out
+
+
+#: Above this multiple of the critical temperature a dense fluid is taken as gas-like, so a liquid-full
+#: temperature below the fill (a supercritical fill denser than critical) no longer signals the steep
+#: liquid-full pressure rise. Reading chosen here, conservative near the critical point.
+DENSE_FLUID_TEMPERATURE_RATIO = 1.2
+
+
+def _liquid_full_applies(fs: FillState, t_peak: float) -> bool:
+    """Whether the vessel is liquid-full (or a dense, liquid-like fluid) at the worst-case temperature."""
+    t_lf = fs.liquid_full_temperature
+    if t_lf is None or t_lf > t_peak:
+        return False
+    if fs.phase_fill in ("liquid", "two-phase"):
+        return True
+    tc = fs.fluid.critical_temperature if fs.fluid is not None else None
+    return tc is not None and t_peak <= DENSE_FLUID_TEMPERATURE_RATIO * tc
+
+
+def screen_case(case: Case) -> dict:
+    """Screen one vessel and return the result dict (JSON-ready, SI, pressures absolute)."""
+    warnings: list[dict] = []
+    t_peak = case.worst_case_temperature_k
+    t_fill = case.fill_temperature_k if case.fill_temperature_k is not None else DEFAULT_MASS_FILL_TEMPERATURE_K
+    if case.fill_temperature_k is None:
+        warnings.append({"code": "fill-temperature-assumed", "message":
+                         f"No fill temperature given: {t_fill - 273.15:.0f} °C is assumed to describe the fill "
+                         "state; the peak pressure does not depend on it."})
+    if case.gas_temperature_k is not None and case.ambient_max_k is not None \
+            and case.gas_temperature_k < case.ambient_max_k:
+        warnings.append({"code": "gas-below-ambient", "message":
+                         "The stated gas temperature is below the ambient maximum; the ambient maximum is used."})
+    atm = case.site.atmospheric_pressure_pa
+    out_of_scope = None
+    if case.gas.kind == "dissolved":
+        dissolved = [g.name for g in case.gas.components if g.kind == "dissolved"]
+        out_of_scope = (f"{', '.join(dissolved).capitalize()} is a dissolved gas: it is held in a solvent inside a "
+                        "porous mass, so the pressure does not follow a gas or vapour equation of state. "
+                        "This method cannot screen it.")
+        models = [not_applicable(n, "dissolved gas: outside the method") for n in ("ideal", "generalized",
+                                                                                   "reference")]
+        fs = FillState(rho_mass=(case.fill_mass_kg / case.water_capacity_m3) if case.fill_mass_kg else None)
+    else:
+        fs = _fill_state(case, t_fill, t_peak, warnings)
+        models = [
+            _ideal(case, fs.rho_mass, t_fill, t_peak, fs.gas_ok, fs.why_not_gas),
+            _generalized(case, fs.rho_mass, t_fill, t_peak, fs.gas_ok, fs.why_not_gas),
+            _reference(case, fs, t_fill, t_peak),
+        ]
+    by_name = {m.name: m for m in models}
+    applicable = [m for m in models if m.applicable and m.peak_pa is not None]
+    real = [m for m in applicable if m.name != "ideal"]
+    governing = max(applicable, key=lambda m: m.peak_pa) if real else None
+    peak = governing.peak_pa if governing else None
+    if governing is not None:
+        others = [m for m in applicable if m is not governing]
+        governing_reason = (f"The {governing.name} model gives the highest peak among the applicable models"
+                            + (f" ({', '.join(m.name for m in others)})" if others else "")
+                            + "; the highest is taken because it is the conservative choice.")
+    else:
+        governing_reason = "No real-gas model applies."
+    gen, ref = by_name["generalized"], by_name["reference"]
+    if gen.applicable and ref.applicable and ref.peak_pa:
+        diff = abs(gen.peak_pa - ref.peak_pa) / ref.peak_pa
+        if diff > MODEL_DISAGREEMENT_WARNING:
+            warnings.append({"code": "models-disagree", "message":
+                             f"The generalized and reference peaks differ by {diff * 100:.1f} % "
+                             f"(more than {MODEL_DISAGREEMENT_WARNING * 100:.0f} %); the higher one governs."})
+    if not real and out_of_scope is None:
+        reasons_na = "; ".join(f"{m.name}: {m.note}" for m in models if not m.applicable)
+        out_of_scope = f"No real-gas model applies to this vessel ({reasons_na}), so it cannot be screened."
+
+    liquid_full_reason = None
+    if _liquid_full_applies(fs, t_peak):
+        rise = fs.dp_dt_after_liquid_full
+        liquid_full_reason = (
+            f"The liquid fills the whole vessel at {fs.liquid_full_temperature - 273.15:.1f} °C, at or below the "
+            "worst-case temperature; beyond that point the pressure rises steeply"
+            + (f" (about {rise / 1e5:.1f} bar per kelvin)" if rise else "")
+            + ", so a small error in temperature means a large error in pressure.")
+    ratio_reason = None
+    ratio = fs.rho_mass / 1000.0 if fs.rho_mass is not None else None  # kg/m3 -> kg per litre
+    if case.max_filling_ratio_kg_m3 is not None and fs.rho_mass is not None \
+            and fs.rho_mass > case.max_filling_ratio_kg_m3:
+        ratio_reason = (f"The filling ratio, {ratio:.3f} kg/L, is above the vessel's maximum filling ratio of "
+                        f"{case.max_filling_ratio_kg_m3 / 1000:.3f} kg/L.")
+
+    verdict, reasons, margin, relief_margin = decide(
+        peak=peak, rated=case.rated_pressure_pa, relief=case.relief_set_pressure_pa, atm=atm,
+        required_margin=case.required_margin, any_real_model=bool(real), out_of_scope_reason=out_of_scope,
+        liquid_full_reason=liquid_full_reason, filling_ratio_reason=ratio_reason)
+
+    limits = _limits(case, models, t_fill, t_peak) if real else {
+        "max_gas_temperature_k": None, "max_fill_pressure_pa": None, "target_peak_pressure_pa": None,
+        "note": "no real-gas model applies, so no limit is given"}
+    limits["liquid_full_temperature_k"] = fs.liquid_full_temperature
+    limits["dry_out_temperature_k"] = fs.dry_out_temperature
+
+    mass = fs.rho_mass * case.water_capacity_m3 if fs.rho_mass is not None else None
+    fill_rho_molar = (fs.rho_mass / case.gas.molar_mass) if fs.rho_mass is not None else \
+        (governing.fill_molar_density if governing else None)
+    if fs.rho_mass is None and fill_rho_molar is not None:
+        mass = fill_rho_molar * case.gas.molar_mass * case.water_capacity_m3
+    rho_mass = fill_rho_molar * case.gas.molar_mass if fill_rho_molar is not None else None
+    return {
+        "id": case.id, "description": case.description, "source": case.source,
+        "tool_version": __version__, "input_sha256": case.input_sha256,
+        "site": {"name": case.site.name, "atmospheric_pressure_pa": atm, "elevation_m": case.site.elevation_m},
+        "verdict": verdict, "reasons": reasons, "warnings": warnings,
+        "gas": {"name": case.gas.name, "kind": case.gas.kind, "hazards": list(case.gas.hazards),
+                "components": [{"name": g.name, "formula": g.formula, "fraction": x,
+                                "molar_mass_kg_mol": g.molar_mass, "coolprop_name": g.coolprop_name}
+                               for g, x in zip(case.gas.components, case.gas.fractions)]},
+        "vessel": {"water_capacity_m3": case.water_capacity_m3, "rated_pressure_pa": case.rated_pressure_pa,
+                   "rated_pressure_kind": case.rated_pressure_kind,
+                   "relief_set_pressure_pa": case.relief_set_pressure_pa,
+                   "max_filling_ratio_kg_per_l": (case.max_filling_ratio_kg_m3 / 1000.0
+                                                  if case.max_filling_ratio_kg_m3 is not None else None)},
+        "fill": {"pressure_pa": case.fill_pressure_pa, "temperature_k": t_fill,
+                 "temperature_given": case.fill_temperature_k is not None,
+                 "density_kg_m3": rho_mass, "molar_density_mol_m3": fill_rho_molar, "mass_kg": mass,
+                 "phase": fs.phase_fill, "filling_ratio_kg_per_l": (rho_mass / 1000.0 if rho_mass else None),
+                 "vapour_pressure_pa": fs.vapour_pressure_fill,
+                 "given": "pressure" if case.fill_pressure_pa is not None else "mass"},
+        "worst_case_temperature_k": t_peak, "worst_case_basis": case.worst_case_basis,
+        "models": {m.name: m.as_dict() for m in models},
+        "peak_pressure_pa": peak, "governing_model": governing.name if governing else None,
+        "governing_reason": governing_reason,
+        "rated_pressure_pa": case.rated_pressure_pa, "relief_set_pressure_pa": case.relief_set_pressure_pa,
+        "required_margin_fraction": case.required_margin,
+        "required_margin_is_default": case.required_margin_is_default,
+        "margin_fraction": margin, "relief_margin_fraction": relief_margin,
+        "limits": limits,
+        "curves": _curves(models, t_fill, t_peak, limits),
+        "inputs": list(case.inputs), "display_units": dict(case.display_units),
+        "cautions": {"caution": CAUTION, "short_caution": SHORT_CAUTION, "assumptions": list(ASSUMPTIONS)},
+    }
+
+
+def screen_text(text: str, source: str = "<case>") -> dict:
+    """Parse a TOML case text and screen it. Raises InputError on bad input."""
+    return screen_case(parse_case_text(text, source))
+
+
+def screen_file(path) -> dict:
+    """Read a case file and screen it. Raises InputError on bad input."""
+    return screen_case(load_case(path))
