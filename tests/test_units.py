@@ -1,0 +1,100 @@
+"""The strict front door for quantities (screening.units)."""
+
+import math
+
+import pytest
+from hypothesis import given, strategies as st
+
+from screening.errors import InputError
+from screening.units import (
+    format_pressure,
+    parse,
+    pressure_in,
+    standard_atmosphere_pressure,
+    temperature_in,
+    to_absolute_pressure,
+)
+
+# Conversion factors: exact by definition (1 bar = 1e5 Pa; 1 psi = 6894.757293168 Pa;
+# 1 ft = 0.3048 m exactly; T[K] = T[degC] + 273.15; T[degF] = T[degC] * 9/5 + 32) — SI brochure / NIST SP 811.
+@pytest.mark.parametrize("text, kind, si", [
+    ("50 L", "volume", 0.050),
+    ("2.5 ft3", "volume", 2.5 * 0.3048**3),
+    ("15 degC", "temperature", 288.15),
+    ("59 degF", "temperature", 288.15),
+    ("288.15 K", "temperature", 288.15),
+    ("200 bar(g)", "pressure", 200e5),
+    ("200 barg", "pressure", 200e5),
+    ("21 MPa(a)", "pressure", 21e6),
+    ("3000 psig", "pressure", 3000 * 6894.757293168),
+    ("101.325 kPa(a)", "pressure", 101325.0),
+    ("10 %", "fraction", 0.10),
+    ("0.75 kg/L", "density", 750.0),
+    ("37.5 kg", "mass", 37.5),
+])
+def test_allowlisted_units_convert_to_si(text, kind, si):
+    assert parse(text, kind).si() == pytest.approx(si, rel=1e-12)
+
+
+@pytest.mark.parametrize("text, basis", [
+    ("200 bar(g)", "gauge"), ("200 barg", "gauge"), ("200 bar(a)", "absolute"), ("200 bara", "absolute"),
+    ("3000 psig", "gauge"), ("3000 psia", "absolute"), ("900 kPa(g)", "gauge"), ("900 kPa(a)", "absolute"),
+    ("20 MPa(g)", "gauge"), ("20 MPa(a)", "absolute"),
+])
+def test_pressure_units_carry_their_basis(text, basis):
+    assert parse(text, "pressure").unit.basis == basis
+
+
+def test_gauge_pressure_adds_the_site_atmosphere():
+    assert to_absolute_pressure(parse("200 bar(g)", "pressure"), 95000.0) == pytest.approx(200e5 + 95000.0)
+    assert to_absolute_pressure(parse("200 bar(a)", "pressure"), 95000.0) == pytest.approx(200e5)
+
+
+def test_bare_pressure_needs_a_basis_unless_the_case_sets_one():
+    with pytest.raises(InputError, match="gauge or absolute"):
+        parse("200 bar", "pressure", key="fill.pressure")
+    assert parse("200 bar", "pressure", pressure_basis="gauge").unit.basis == "gauge"
+
+
+@pytest.mark.parametrize("text, message", [
+    # measured with pint 0.25: pint's parser would read these as bar*gram, coulomb, NaN, inf, or hang
+    ("200 bar(gr)", "not one this tool reads"),
+    ("15 coulomb", "not one this tool reads"),
+    ("nan bar(g)", "not a number"),
+    ("inf bar(g)", "not a number"),
+    ("1e309 bar(g)", "not finite"),
+    ("9**9**9 bar(g)", "not one this tool reads"),
+    ("200 kg", "unit of mass, not of pressure"),
+    ("__import__('os') bar", "not a number"),
+    ("", "not a number"),
+])
+def test_bad_quantities_are_refused_before_pint(text, message):
+    with pytest.raises(InputError, match=message):
+        parse(text, "pressure")
+
+
+def test_power_tower_is_refused_quickly():
+    # "9**9**9 bar" makes pint's expression parser hang (measured with pint 0.25); here it is refused.
+    with pytest.raises(InputError):
+        parse("9**9**9 bar", "pressure")
+
+
+def test_standard_atmosphere_at_1000_m():
+    # ISO 2533 / U.S. Standard Atmosphere 1976 table: 89 874.6 Pa at 1000 m geopotential altitude.
+    assert standard_atmosphere_pressure(1000.0) == pytest.approx(89874.6, rel=1e-5)
+
+
+@given(st.floats(min_value=-50.0, max_value=500.0, allow_nan=False))
+def test_temperature_display_round_trip(t_c):
+    k = parse(f"{t_c!r} degC", "temperature").si()
+    assert math.isclose(temperature_in(k, "degC"), t_c, rel_tol=1e-12, abs_tol=1e-9)
+
+
+@given(st.floats(min_value=0.0, max_value=1000.0, allow_nan=False))
+def test_pressure_display_round_trip(p_bar):
+    p_abs = to_absolute_pressure(parse(f"{p_bar!r} bar(g)", "pressure"), 101325.0)
+    assert math.isclose(pressure_in(p_abs, "bar(g)", 101325.0), p_bar, rel_tol=1e-12, abs_tol=1e-9)
+
+
+def test_format_pressure_in_user_unit():
+    assert format_pressure(250e5 + 101325.0, "bar(g)", 101325.0) == "250.0 bar(g)"
