@@ -155,6 +155,14 @@ def parse_case_text(text: str, source: str = "<case>") -> Case:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise InputError(f"not valid TOML: {exc}", file=source) from None
+    return parse_case_data(data, source, text)
+
+
+def parse_case_data(data: dict, source: str, text: str) -> Case:
+    """Validate a case given as nested tables (as TOML parses it) into a Case.
+
+    `text` is the input as entered (hashed into the document id). Batch rows use this too, with
+    their own text (the row as read)."""
     _check_keys(data, source)
     r = _Reader(data, source)
 
