@@ -439,8 +439,11 @@ def _solve_reduced_pressure(tr, vf, omega, active):
         _z, v0, vr, dv0, dvr, no_root, not_conv, a = _z_core(t, pr, w, everywhere)
         h = (1.0 - a) * v0 + a * vr - v
         dh = (1.0 - a) * dv0 + a * dvr
+        # An inner solve that does not converge sits at the tangent point where the gas root
+        # disappears (slow Newton on a double root): treated like no root, i.e. too high.
+        no_root = no_root | not_conv
         too_high = no_root | (h < 0.0)
-        bad = not_conv | ~np.isfinite(h)
+        bad = ~no_root & ~np.isfinite(h)
         hi = np.where(too_high & ~bad, np.minimum(hi, pr), hi)
         lo = np.where(~too_high & ~bad, np.maximum(lo, pr), lo)
         newton = pr - h / dh
@@ -507,7 +510,8 @@ def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> Generalize
     check = (reason == "") & np.isfinite(pr_final)
     z, v0, vr, _dv0, _dvr, no_root, not_conv, a = _z_core(tr, np.where(check, pr_final, 1.0), omega, check)
     mix_v = (1.0 - a) * v0 + a * vr
-    mismatch = check & ~not_conv & (no_root | ~(np.abs(mix_v - vf) <= 1e-9 * vf))
+    edge = not_conv & (tr < 1.0)      # slow inner solve at the end of the vapour branch
+    mismatch = check & (~not_conv | edge) & (no_root | edge | ~(np.abs(mix_v - vf) <= 1e-9 * vf))
     _set_reasons(reason, mismatch, lambda i: (
         f"no gas state at temperature {_fmt(t[i])} K (reduced {_fmt(tr[i])}) and molar density "
         f"{_fmt(rho[i])} mol/m3: at this density the Lee–Kesler fluid is liquid-like or two-phase"))

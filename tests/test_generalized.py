@@ -1,0 +1,310 @@
+"""Checks of the Lee–Kesler generalized model against sources outside the project.
+
+Sources used: CoolProp 8 reference equations of state (its own critical constants and
+acentric factors), the `chemicals` package (Lee–Kesler vapour pressure, Abbott second
+virial coefficient), worked-example values from Smith, Van Ness & Abbott (quoted from
+memory, said so on the line), and hand arithmetic.
+"""
+
+import numpy as np
+import pytest
+from hypothesis import given
+from hypothesis import strategies as st
+
+import CoolProp.CoolProp as CP
+from chemicals.vapor_pressure import Lee_Kesler as chemicals_lee_kesler_psat
+from chemicals.virial import BVirial_Abbott
+
+from screening.constants import R
+from screening.errors import InputError, NotApplicable
+from screening.physics.eos.generalized import (
+    LK_REDUCED_PRESSURE_RANGE,
+    LK_REDUCED_TEMPERATURE_RANGE,
+    OMEGA_REFERENCE,
+    GeneralizedState,
+    kay_pseudocritical,
+    lee_kesler_density,
+    lee_kesler_pressure,
+    lee_kesler_vapour_pressure,
+    lee_kesler_z,
+    pseudocritical,
+    quantum_effective_critical,
+)
+
+
+def critical(fluid):
+    """Critical temperature [K], pressure [Pa] and acentric factor of CoolProp's EOS for fluid."""
+    return (CP.PropsSI("Tcrit", fluid), CP.PropsSI("pcrit", fluid), CP.PropsSI("acentric", fluid))
+
+
+def z0_z1(tr, pr):
+    z0 = lee_kesler_z(tr, pr, 0.0)
+    zr = lee_kesler_z(tr, pr, OMEGA_REFERENCE)
+    return float(z0), float((zr - z0) / OMEGA_REFERENCE)
+
+
+# ---------------------------------------------------------------- published values
+
+
+def test_z0_z1_svna_n_butane_example():
+    # Smith, Van Ness & Abbott, Introduction to Chemical Engineering Thermodynamics (7th ed.),
+    # worked example for n-butane at 510 K and 25 bar: T_r = 1.200, P_r = 0.659, and by
+    # interpolation in Tables E.1/E.2, Z0 = 0.865, Z1 = 0.038 (from memory).
+    # Tolerance 1e-3: the book's values are rounded to 3 decimals after linear interpolation
+    # between table columns P_r = 0.6 and 0.8 (interpolation error a few 1e-4).
+    z0, z1 = z0_z1(1.200, 0.659)
+    assert z0 == pytest.approx(0.865, abs=1e-3)
+    assert z1 == pytest.approx(0.038, abs=1e-3)
+
+
+def test_simple_fluid_low_pressure_against_abbott_second_virial():
+    # chemicals.virial.BVirial_Abbott (Abbott's B0/B1 correlation, Smith, Van Ness & Abbott
+    # eq. for B P_c/(R T_c)): at P_r = 0.01 Z = 1 + B P/(R T) to within the virial truncation
+    # (~(B P/RT)^2 ~ 1e-5) and the difference between the two correlations' B (a few
+    # percent of B P/RT ~ 5e-3 at T_r = 1, so ~2e-4).
+    tc, pc = 100.0, 1.0e6
+    tr = np.array([1.0, 1.5, 2.0, 3.0, 4.0])
+    pr = 0.01
+    z_lk = lee_kesler_z(tr, pr, 0.0)
+    b = np.array([BVirial_Abbott(t * tc, tc, pc, 0.0) for t in tr])
+    z_virial = 1.0 + b * pr * pc / (R * tr * tc)
+    assert np.all(np.abs(z_lk - z_virial) < 2e-4)
+
+
+def test_vapour_pressure_matches_chemicals():
+    # chemicals.vapor_pressure.Lee_Kesler: the same LK vapour-pressure equation, independently coded.
+    tc, pc = 369.83, 4.248e6
+    for t, w in [(200.0, 0.152), (300.0, 0.152), (250.0, 0.0), (340.0, 0.3)]:
+        expected = chemicals_lee_kesler_psat(t, tc, pc, w)
+        assert float(lee_kesler_vapour_pressure(t / tc, w)) * pc == pytest.approx(expected, rel=1e-12)
+
+
+# ---------------------------------------------------------------- CoolProp reference EOS
+
+FILL_PRESSURE = 200e5 + 101325.0    # 200 bar gauge on a standard atmosphere [Pa]
+FILL_T = 288.15                      # [K]
+HOT_T = 338.15                       # [K]
+
+
+@pytest.mark.parametrize("fluid", ["Nitrogen", "Methane", "Argon"])
+def test_fill_density_and_hot_pressure_against_coolprop(fluid):
+    tc, pc, w = critical(fluid)
+    # CoolProp reference EOS for the fluid (Span et al. nitrogen, Setzmann–Wagner methane,
+    # Tegeler et al. argon, as shipped in CoolProp 8).
+    rho_ref = CP.PropsSI("Dmolar", "T", FILL_T, "P", FILL_PRESSURE, fluid)
+    p_hot_ref = CP.PropsSI("P", "T", HOT_T, "Dmolar", rho_ref, fluid)
+
+    fill = lee_kesler_density(FILL_PRESSURE, FILL_T, tc, pc, w).require()
+    # Lee & Kesler (1975) report Z of simple, nonpolar gases to about 1-2 %; 1.5 % is used.
+    assert float(fill.molar_density) == pytest.approx(rho_ref, rel=0.015)
+
+    # Direct: LK pressure at CoolProp's density, same 1.5 % basis.
+    direct = lee_kesler_pressure(rho_ref, HOT_T, tc, pc, w).require()
+    assert float(direct.pressure) == pytest.approx(p_hot_ref, rel=0.015)
+
+    # The screening's chain (fill by LK, heat by LK): the fill error largely cancels; ~1 % asked.
+    hot = lee_kesler_pressure(fill.molar_density, HOT_T, tc, pc, w).require()
+    assert float(hot.pressure) == pytest.approx(p_hot_ref, rel=0.01)
+
+
+def test_pressure_array_against_coolprop_nitrogen():
+    # CoolProp nitrogen reference EOS at 300 K over a density sweep (P_r up to ~8.5).
+    tc, pc, w = critical("Nitrogen")
+    rho = np.linspace(50.0, 9000.0, 25)
+    expected = np.array([CP.PropsSI("P", "T", 300.0, "Dmolar", r, "Nitrogen") for r in rho])
+    state = lee_kesler_pressure(rho, 300.0, tc, pc, w).require()
+    # Lee & Kesler (1975) accuracy of ~1-2 % for simple gases: 1.5 %.
+    np.testing.assert_allclose(state.pressure, expected, rtol=0.015)
+
+
+def test_carbon_dioxide_hot_supercritical_against_coolprop():
+    # CoolProp CO2 reference EOS (Span–Wagner) at 338.15 K, T_r = 1.11 (near-critical, harder).
+    tc, pc, w = critical("CarbonDioxide")
+    rho = np.array([500.0, 2000.0, 5000.0])
+    expected = np.array([CP.PropsSI("P", "T", 338.15, "Dmolar", r, "CarbonDioxide") for r in rho])
+    state = lee_kesler_pressure(rho, 338.15, tc, pc, w).require()
+    # LK reports ~2 % for nonpolar fluids near the critical region (Lee & Kesler 1975, from memory): 2 %.
+    np.testing.assert_allclose(state.pressure, expected, rtol=0.02)
+
+
+# ---------------------------------------------------------------- solver properties
+
+
+def test_round_trip_density_pressure():
+    # Identity of the model itself: density at P, then pressure at that density, gives P back.
+    tc, pc, w = critical("Methane")
+    p = np.array([1e5, 5e6, 2e7, 3e7, 4.5e7])
+    t = np.array([200.0, 250.0, 288.15, 338.15, 400.0])
+    d = lee_kesler_density(p, t, tc, pc, w).require()
+    back = lee_kesler_pressure(d.molar_density, t, tc, pc, w).require()
+    np.testing.assert_allclose(back.pressure, p, rtol=1e-9)
+    np.testing.assert_allclose(back.z, d.z, rtol=1e-9)
+
+
+def test_round_trip_low_reduced_temperature_high_pressure():
+    # T_r = 1.2 at P_r up to 10, omega of a heavier gas: the solve must still converge.
+    tc, pc, w = 300.0, 4.0e6, 0.25
+    pr = np.array([0.5, 2.0, 5.0, 8.0, 10.0])
+    d = lee_kesler_density(pr * pc, 1.2 * tc, tc, pc, w).require()
+    back = lee_kesler_pressure(d.molar_density, 1.2 * tc, tc, pc, w).require()
+    np.testing.assert_allclose(back.reduced_pressure, pr, rtol=1e-9)
+
+
+@given(tr=st.floats(0.5, 4.0), omega=st.floats(-0.1, 0.6))
+def test_ideal_limit(tr, omega):
+    # Z -> 1 as P_r -> 0; below ~10 kPa gases behave ideally (common practice, no source):
+    # at P_r = 1e-4 the second-virial term is |B P/RT| < 1e-3 for T_r >= 0.5.
+    pr = 1e-4
+    if tr < 1.0 and pr > float(lee_kesler_vapour_pressure(tr, omega)):
+        return
+    assert abs(float(lee_kesler_z(tr, pr, omega)) - 1.0) < 1e-3
+    assert abs(float(lee_kesler_z(tr, 1e-8, omega)) - 1.0) < 1e-6
+
+
+@given(rho=st.floats(10.0, 8000.0), t=st.floats(250.0, 450.0), dt=st.floats(1.0, 50.0))
+def test_pressure_rises_with_temperature_at_fixed_density(rho, t, dt):
+    # Physical requirement for a gas: (dP/dT) at fixed density is positive.
+    tc, pc, w = critical("Nitrogen")
+    s = lee_kesler_pressure([rho, rho], [t, t + dt], tc, pc, w)
+    if not np.all(s.valid):
+        return
+    assert s.pressure[1] > s.pressure[0]
+
+
+@given(st.lists(st.tuples(st.floats(20.0, 12000.0), st.floats(150.0, 500.0), st.floats(-0.05, 0.5)),
+                min_size=1, max_size=12))
+def test_vectorised_equals_elementwise(rows):
+    tc, pc = 190.0, 4.6e6
+    rho, t, w = (np.array(c) for c in zip(*rows))
+    whole = lee_kesler_pressure(rho, t, tc, pc, w)
+    for i in range(len(rows)):
+        one = lee_kesler_pressure(rho[i:i + 1], t[i:i + 1], tc, pc, w[i:i + 1])
+        assert bool(one.valid[0]) == bool(whole.valid[i])
+        assert one.reason[0] == whole.reason[i]
+        if one.valid[0]:
+            assert one.pressure[0] == pytest.approx(whole.pressure[i], rel=1e-12)
+
+
+def test_shapes_broadcast():
+    s = lee_kesler_pressure(np.full((2, 3), 1000.0), np.array([300.0, 320.0, 340.0]), 126.2, 3.4e6, 0.037)
+    for field in ("pressure", "molar_density", "z", "reduced_temperature", "reduced_pressure", "valid",
+                  "reason"):
+        assert getattr(s, field).shape == (2, 3)
+
+
+# ---------------------------------------------------------------- validity
+
+
+def test_ranges_are_the_published_table_range():
+    # Lee & Kesler (1975) tables span T_r 0.3-4 and P_r 0.01-10 (from memory).
+    assert LK_REDUCED_TEMPERATURE_RANGE == (0.3, 4.0)
+    assert LK_REDUCED_PRESSURE_RANGE == (0.0, 10.0)
+
+
+def test_helium_hot_is_not_applicable():
+    # Helium, classical T_c0 = 10.47 K, P_c0 = 6.76 bar (Reid, Prausnitz & Poling, from memory),
+    # at 338 K: effective T_c ~ 10.3 K, T_r ~ 33 > 4.
+    tc, pc = quantum_effective_critical(10.47, 6.76e5, 4.0026e-3, 338.0)
+    s = lee_kesler_pressure(8000.0, 338.0, tc, pc, 0.0)
+    assert not s.valid[()] if s.valid.ndim == 0 else not s.valid[0]
+    assert np.isnan(s.pressure).all()
+    assert "reduced temperature 3" in str(s.reason.reshape(-1)[0])
+    assert "above the Lee–Kesler range (0.3 to 4)" in str(s.reason.reshape(-1)[0])
+    with pytest.raises(NotApplicable) as err:
+        s.require()
+    assert err.value.valid_range == "reduced temperature 0.3 to 4"
+    assert err.value.value == pytest.approx(338.0 / float(tc))
+
+
+def test_pressure_above_range_is_flagged_with_value():
+    tc, pc, w = critical("Nitrogen")
+    s = lee_kesler_density(np.array([2e7, 4e7]), 300.0, tc, pc, w)   # P_r 5.9 and 11.8
+    assert list(s.valid) == [True, False]
+    assert s.reason[0] == ""
+    assert s.reason[1] == "reduced pressure 11.78 is above the Lee–Kesler range (0 to 10)"
+    assert np.isnan(s.z[1]) and np.isnan(s.molar_density[1])
+    with pytest.raises(NotApplicable, match="reduced pressure 11.78"):
+        s.require()
+    # and from the fixed-density side, the reduced pressure reached is named
+    hot = lee_kesler_pressure(14000.0, 300.0, tc, pc, w)
+    assert not hot.valid[()]
+    assert "above the Lee–Kesler range (0 to 10)" in str(hot.reason[()])
+
+
+def test_liquid_like_states_are_flagged():
+    # CO2 at 288.15 K and 200 bar is a compressed liquid (CoolProp Span–Wagner: density > 800 kg/m3).
+    tc, pc, w = critical("CarbonDioxide")
+    assert CP.PropsSI("D", "T", 288.15, "P", FILL_PRESSURE, "CarbonDioxide") > 800.0
+    s = lee_kesler_density(FILL_PRESSURE, 288.15, tc, pc, w)
+    assert not s.valid[()]
+    assert "liquid" in str(s.reason[()])
+    # Fixed density inside the two-phase dome at 280 K (CoolProp: saturated vapour ~ 3.0 kmol/m3,
+    # saturated liquid ~ 20 kmol/m3), 10 kmol/m3 is two-phase: not a gas state.
+    assert CP.PropsSI("Dmolar", "T", 280.0, "Q", 1, "CarbonDioxide") < 10000.0
+    assert CP.PropsSI("Dmolar", "T", 280.0, "Q", 0, "CarbonDioxide") > 10000.0
+    two_phase = lee_kesler_pressure(10000.0, 280.0, tc, pc, w)
+    assert not two_phase.valid[()]
+    assert "liquid-like or two-phase" in str(two_phase.reason[()])
+    with pytest.raises(NotApplicable):
+        lee_kesler_z(0.8, 5.0, 0.2)
+
+
+def test_metastable_vapour_above_vapour_pressure_is_flagged():
+    # T_r = 0.7, omega = 0: LK vapour pressure P_r = 0.1 (definition of omega); P_r = 0.12 is
+    # above it, so the stable state is liquid even if the equation has a vapour-like root there.
+    with pytest.raises(NotApplicable, match="vapour pressure"):
+        lee_kesler_z(0.7, 0.12, 0.0)
+    assert float(lee_kesler_z(0.7, 0.08, 0.0)) < 1.0
+
+
+def test_bad_inputs_raise_input_error():
+    with pytest.raises(InputError):
+        lee_kesler_pressure(-1.0, 300.0, 126.2, 3.4e6, 0.04)
+    with pytest.raises(InputError):
+        lee_kesler_density(1e5, float("nan"), 126.2, 3.4e6, 0.04)
+    with pytest.raises(InputError):
+        lee_kesler_z(1.5, 0.0, 0.0)
+
+
+def test_state_require_returns_self_when_valid():
+    s = lee_kesler_density(1e6, 300.0, 126.2, 3.4e6, 0.04)
+    assert isinstance(s, GeneralizedState)
+    assert s.require() is s
+
+
+# ---------------------------------------------------------------- pseudocriticals
+
+
+def test_kay_rule_two_components():
+    # Hand arithmetic: 0.25*100 + 0.75*200 = 175 K; 0.25*1e6 + 0.75*3e6 = 2.5e6 Pa;
+    # 0.25*0.0 + 0.75*0.2 = 0.15.
+    tc, pc, w = kay_pseudocritical([0.25, 0.75], [100.0, 200.0], [1e6, 3e6], [0.0, 0.2])
+    assert tc == pytest.approx(175.0, rel=1e-15)
+    assert pc == pytest.approx(2.5e6, rel=1e-15)
+    assert w == pytest.approx(0.15, rel=1e-15)
+    with pytest.raises(InputError):
+        kay_pseudocritical([0.3, 0.3], [100.0, 200.0], [1e6, 3e6], [0.0, 0.2])
+
+
+def test_quantum_correction_hydrogen_300k():
+    # Hand arithmetic from the Gunn–Chueh–Prausnitz formula with the classical hydrogen
+    # constants T_c0 = 43.6 K, P_c0 = 20.5 bar (Reid, Prausnitz & Poling, from memory), M = 2.016:
+    # M T = 604.8; T_c = 43.6/(1 + 21.8/604.8) = 43.6/1.0360450 = 42.08315 K;
+    # P_c = 20.5/(1 + 44.2/604.8) = 20.5/1.0730820 = 19.10384 bar.
+    tc, pc = quantum_effective_critical(43.6, 20.5e5, 2.016e-3, 300.0)
+    assert float(tc) == pytest.approx(42.08315, rel=1e-6)
+    assert float(pc) == pytest.approx(19.10384e5, rel=1e-6)
+
+
+def test_pseudocritical_mixture_with_quantum_component():
+    # 50 % hydrogen (quantum) + 50 % nitrogen at 300 K: Kay's rule on (42.08315 K, 19.10384 bar,
+    # omega 0) and nitrogen (126.192 K, 33.958 bar, 0.0372), hand arithmetic:
+    # T = 84.137575 K, P = 26.53092 bar, omega = 0.0186.
+    t = np.array([300.0, 300.0])  # two identical rows: temperature broadcasts over the leading axis
+    tc, pc, w = pseudocritical(
+        fractions=[0.5, 0.5], tc=[33.145, 126.192], pc=[12.964e5, 33.958e5], omega=[-0.219, 0.0372],
+        molar_mass=[2.016e-3, 28.0134e-3], quantum=[True, False],
+        tc_classical=[43.6, np.nan], pc_classical=[20.5e5, np.nan], temperature=t)
+    np.testing.assert_allclose(tc, 84.137575, rtol=1e-6)
+    np.testing.assert_allclose(pc, 26.53092e5, rtol=1e-6)
+    np.testing.assert_allclose(w, 0.0186, rtol=1e-12)
