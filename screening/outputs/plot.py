@@ -136,11 +136,12 @@ def plot_svg(result: dict) -> str:
         fill = result["fill"]
         t_fill = fill["temperature_k"]
         p_fill = fill.get("pressure_pa")
-        if p_fill is None and result["governing_model"] in drawn:
-            series = curves[result["governing_model"]]
-            for t, p in zip(temps_k, series):
-                if _finite(t) and _finite(p) and abs(t - t_fill) < 1e-6:
-                    p_fill = p
+        if p_fill is None and result["governing_model"] in drawn and _finite(t_fill):
+            # Fill by mass: place the marker on the governing curve (straight-line reading between its points).
+            pts = [(t, p) for t, p in zip(temps_k, curves[result["governing_model"]]) if _finite(t) and _finite(p)]
+            for (ta, pa), (tb, pb) in zip(pts, pts[1:]):
+                if ta <= t_fill <= tb and tb > ta:
+                    p_fill = pa + (pb - pa) * (t_fill - ta) / (tb - ta)
                     break
         if _finite(p_fill) and _finite(t_fill):
             ax.plot([T(t_fill)], [P(p_fill)], linestyle="none", marker="D", markersize=6.5,
@@ -186,6 +187,13 @@ def plot_svg(result: dict) -> str:
             ax.axvline(T(t_wc), color="black", linewidth=0.9, linestyle=(0, (1, 2)), zorder=2)
             ax.annotate("worst-case\ntemperature", xy=(T(t_wc), 0.03), xycoords=("data", "axes fraction"),
                         xytext=(-4, 0), textcoords="offset points", ha="right", fontsize=7.5)
+
+        t_full = (result.get("limits") or {}).get("liquid_full_temperature_k")
+        if _finite(t_full) and x0 <= T(t_full) <= x1:
+            ax.axvline(T(t_full), color="black", linewidth=0.9, linestyle=(0, (4, 1.5, 1, 1.5, 1, 1.5)), zorder=2)
+            ax.annotate("liquid fills\nthe vessel", xy=(T(t_full), 0.97), xycoords=("data", "axes fraction"),
+                        xytext=(-4, 0), textcoords="offset points", ha="right", va="top", fontsize=7.5,
+                        bbox=_LABEL_BOX)
 
         ax.margins(y=0.08)
         ax.set_xlabel(f"Gas temperature [{_temp_label(t_unit)}]")

@@ -49,9 +49,9 @@ VERDICTS = {
     "within": dict(mark="\u2713", label="Stays within rating",
                    line="The worst-case peak pressure stays below the rated pressure with at least the "
                         "required margin."),
-    "low-margin": dict(mark="!", label="Margin below requirement",
-                       line="The worst-case peak pressure stays below the rated pressure, but with less "
-                            "margin than required."),
+    "low-margin": dict(mark="!", label="Too close to the limit",
+                       line="The worst-case peak pressure stays below the rated pressure, but not with the "
+                            "margin or the certainty this screening requires; the reasons say which."),
     "over": dict(mark="\u2715", label="Exceeds rated pressure",
                  line="The worst-case peak pressure reaches or exceeds the rated pressure."),
     "out-of-scope": dict(mark="?", label="Not screened: outside the method",
@@ -442,17 +442,20 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
         margin_rows.append(("Relief set pressure", "not stated"))
 
     limits = result["limits"]
+    max_fill_p = limits.get("max_fill_pressure_pa")
     limit_rows = [
         ("Highest gas temperature", T(limits.get("max_gas_temperature_k"))),
-        ("Highest fill pressure at the stated fill temperature", P(limits.get("max_fill_pressure_pa"))),
+        ("Highest fill pressure at the stated fill temperature",
+         "not given (fill by mass)" if max_fill_p is None and fill["given"] == "mass" else P(max_fill_p)),
     ]
     if limits.get("max_fill_mass_kg") is not None:
         limit_rows.append(("Largest fill mass", format_quantity(limits["max_fill_mass_kg"], m_unit, 3)))
     if limits.get("target_peak_pressure_pa") is not None:
         limit_rows.append(("Peak pressure these limits aim at", P(limits["target_peak_pressure_pa"])))
-    if limits.get("dry_out_temperature_k") is not None:
+    # Phase-change temperatures matter only on the heating path, from the fill temperature upwards.
+    if limits.get("dry_out_temperature_k") is not None and limits["dry_out_temperature_k"] >= t_fill:
         limit_rows.append(("Temperature at which the last liquid evaporates", T(limits["dry_out_temperature_k"])))
-    if limits.get("liquid_full_temperature_k") is not None:
+    if limits.get("liquid_full_temperature_k") is not None and limits["liquid_full_temperature_k"] >= t_fill:
         limit_rows.append(("Temperature at which the liquid fills the vessel", T(limits["liquid_full_temperature_k"])))
 
     eos_refs = [str(x) for x in (models.get("reference") or {}).get("eos_references") or []]
