@@ -161,6 +161,11 @@ class FillState:
     fluid_error: str | None = None
 
 
+def _is_pure(fluid: ReferenceFluid) -> bool:
+    """A pure fluid with a saturation dome (not a mixture, not pseudo-pure air)."""
+    return not fluid.is_mixture and not fluid.is_pseudo_pure
+
+
 def _reference_fluid(gas: Mixture) -> tuple[ReferenceFluid | None, str | None]:
     names = tuple(g.coolprop_name for g in gas.components)
     if any(n is None for n in names):
@@ -196,7 +201,7 @@ def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> Fil
             fs.rho_mass = rho_molar * M
         else:
             rho_molar = fs.rho_mass / M
-            rho_max = max_liquid_density(fluid) if not fluid.is_mixture else math.inf
+            rho_max = max_liquid_density(fluid) if _is_pure(fluid) else math.inf
             if rho_molar > rho_max:
                 from screening.errors import InputError
                 raise InputError(
@@ -205,7 +210,7 @@ def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> Fil
                     given=f"{case.fill_mass_kg:g} kg in {case.water_capacity_m3 * 1000:g} L "
                           f"= {fs.rho_mass:.1f} kg/m3",
                     expected=f"below {rho_max * M:.1f} kg/m3 of water capacity")
-        if not fluid.is_mixture:
+        if _is_pure(fluid):
             ph = isochore_phases(fluid, rho_molar, t_fill, t_peak)
             fs.phase_fill, fs.phase_peak = ph.fill_phase, ph.peak_phase
             fs.liquid_full_temperature = ph.liquid_full_temperature
@@ -229,7 +234,7 @@ def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> Fil
         phase = fs.phase_fill if fs.phase_fill in condensed else fs.phase_peak
         fs.why_not_gas = (f"the contents are {phase} {where}; gas models do not apply to a liquid or a "
                           "liquid–vapour mixture")
-    if not fluid.is_mixture and t_fill < fluid.critical_temperature and case.fill_pressure_pa is not None:
+    if _is_pure(fluid) and t_fill < fluid.critical_temperature and case.fill_pressure_pa is not None:
         try:
             psat = fluid.vapour_pressure(t_fill)
         except NotApplicable:
@@ -311,13 +316,52 @@ def _limits(case: Case, models: list[Model], t_fill: float, t_peak: float) -> di
                       max(target, case.fill_pressure_pa) * max(1.0, t_fill / t_peak) * 1.05, n=40)
             if p is not None and abs(m.fill_to_peak(p) - target) <= 1e-6 * target:
                 max_p.append(p)
+    mass_limit = _mass_limit(case, models, t_fill, t_peak, target)
     return {
+        **mass_limit,
         "max_gas_temperature_k": min(max_t) if max_t else None,
         "max_fill_pressure_pa": min(max_p) if max_p else None,
         "target_peak_pressure_pa": target,
         "note": ("solved on each applicable real-gas model; the lowest (most conservative) value is given"
                  if real else "no real-gas model applies, so no limit is given"),
     }
+
+
+def _mass_limit(case: Case, models: list[Model], t_fill: float, t_peak: float, target: float) -> dict:
+    """Highest fill mass [kg] (and filling ratio [kg/L]) for which the reference peak at the worst-case
+    temperature stays at the target pressure and the vessel is not liquid-full (or a dense, liquid-like
+    fluid) at that temperature; also capped by the vessel's maximum filling ratio. Reference model only."""
+    none = {"max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None}
+    ref = next((m for m in models if m.name == "reference" and m.applicable), None)
+    if ref is None:
+        return none
+    fluid = _reference_fluid(case.gas)[0]
+    M = case.gas.molar_mass
+    try:
+        rho_top = max_liquid_density(fluid) if _is_pure(fluid) else 3.0 * fluid.critical_molar_density \
+            if fluid.critical_molar_density else 5.0 * (ref.fill_molar_density or 1.0)
+    except NotApplicable:
+        return none
+    basis = "the required margin at the worst-case temperature"
+    rho = _root(lambda r: fluid.pressure(r, t_peak) - target, 1e-6 * rho_top, rho_top * 0.999, n=60)
+    if rho is None:
+        return none
+    if _is_pure(fluid):
+        tc = fluid.critical_temperature
+        if t_peak < tc:
+            rho_lf = fluid.saturated_liquid_density(t_peak)
+        elif t_peak <= DENSE_FLUID_TEMPERATURE_RATIO * tc or t_fill < tc:
+            # a fill denser than critical is liquid-full before the critical temperature is reached
+            rho_lf = fluid.critical_molar_density
+        else:
+            rho_lf = math.inf
+        if rho_lf < rho:
+            rho, basis = rho_lf, "the liquid-full point at the worst-case temperature"
+    rho_mass = rho * M
+    if case.max_filling_ratio_kg_m3 is not None and case.max_filling_ratio_kg_m3 < rho_mass:
+        rho_mass, basis = case.max_filling_ratio_kg_m3, "the vessel's maximum filling ratio"
+    return {"max_fill_mass_kg": rho_mass * case.water_capacity_m3, "max_filling_ratio_kg_per_l": rho_mass / 1000.0,
+            "max_fill_mass_basis": basis}
 
 
 # ----------------------------------------------------------------------------- verdict
@@ -480,6 +524,7 @@ def screen_case(case: Case) -> dict:
 
     limits = _limits(case, models, t_fill, t_peak) if real else {
         "max_gas_temperature_k": None, "max_fill_pressure_pa": None, "target_peak_pressure_pa": None,
+        "max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,
         "note": "no real-gas model applies, so no limit is given"}
     limits["liquid_full_temperature_k"] = fs.liquid_full_temperature
     limits["dry_out_temperature_k"] = fs.dry_out_temperature

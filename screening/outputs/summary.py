@@ -72,6 +72,10 @@ def format_summary(result: dict) -> str:
     if fill["given"] == "pressure":
         lines.append(f"  highest fill pressure at {T(fill['temperature_k'])} for the required margin: "
                      f"{P(lim['max_fill_pressure_pa'])}")
+    if lim.get("max_fill_mass_kg") is not None:
+        lines.append(f"  highest fill mass: {format_quantity(lim['max_fill_mass_kg'], du['mass'], 2)} "
+                     f"({format_quantity(lim['max_filling_ratio_kg_per_l'] * 1000.0, 'kg/L', 3)}; limited by "
+                     f"{lim['max_fill_mass_basis']})")
     if lim.get("liquid_full_temperature_k") is not None:
         lines.append(f"  liquid-full temperature: {T(lim['liquid_full_temperature_k'])}")
     if result["warnings"]:
