@@ -7,7 +7,7 @@ absolute [Pa] and temperatures [K]; summaries and reports are views of it.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Callable
 
 import numpy as np
@@ -15,12 +15,14 @@ from scipy.optimize import brentq
 
 from screening import __version__
 from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
-from screening.errors import NotApplicable
-from screening.inputs.case import Case, load_case, parse_case_text
+from screening.errors import InputError, NotApplicable
+from screening.inputs.case import Case, Exposure, load_case, parse_case_text
 from screening.physics.eos.generalized import lee_kesler_density, lee_kesler_pressure, pseudocritical
 from screening.physics.eos.ideal import ideal_gas_density, ideal_gas_pressure
 from screening.physics.eos.reference import ReferenceFluid, reference_fluid
 from screening.physics.gases import Mixture
+from screening.physics.exposure import DEFAULT_ASPECT_RATIO, DEFAULT_IRRADIANCE, estimate_dimensions, finish, \
+    solar_wall_temperature
 from screening.physics.isochore import isochore_phases, max_liquid_density
 
 VERDICTS = ("within", "low-margin", "over", "out-of-scope")
@@ -449,20 +451,8 @@ def _liquid_full_applies(fs: FillState, t_peak: float) -> bool:
     return tc is not None and t_peak <= DENSE_FLUID_TEMPERATURE_RATIO * tc
 
 
-def screen_case(case: Case) -> dict:
-    """Screen one vessel and return the result dict (JSON-ready, SI, pressures absolute)."""
-    warnings: list[dict] = []
-    t_peak = case.worst_case_temperature_k
-    t_fill = case.fill_temperature_k if case.fill_temperature_k is not None else DEFAULT_MASS_FILL_TEMPERATURE_K
-    if case.fill_temperature_k is None:
-        warnings.append({"code": "fill-temperature-assumed", "message":
-                         f"No fill temperature given: {t_fill - 273.15:.0f} °C is assumed to describe the fill "
-                         "state; the peak pressure does not depend on it."})
-    if case.gas_temperature_k is not None and case.ambient_max_k is not None \
-            and case.gas_temperature_k < case.ambient_max_k:
-        warnings.append({"code": "gas-below-ambient", "message":
-                         "The stated gas temperature is below the ambient maximum; the ambient maximum is used."})
-    atm = case.site.atmospheric_pressure_pa
+def _evaluate(case: Case, t_fill: float, t_peak: float, warnings: list) -> tuple[FillState, list[Model], str | None]:
+    """Fill state and the three models at one fill and one worst-case temperature."""
     out_of_scope = None
     if case.gas.kind == "dissolved":
         dissolved = [g.name for g in case.gas.components if g.kind == "dissolved"]
@@ -479,10 +469,26 @@ def screen_case(case: Case) -> dict:
             _generalized(case, fs.rho_mass, t_fill, t_peak, fs.gas_ok, fs.why_not_gas),
             _reference(case, fs, t_fill, t_peak),
         ]
+    return fs, models, out_of_scope
+
+
+def _governing(models: list[Model]) -> Model | None:
+    """The governing model: the highest peak among the applicable models, if a real-gas model applies."""
+    applicable = [m for m in models if m.applicable and m.peak_pa is not None]
+    if not any(m.name != "ideal" for m in applicable):
+        return None
+    return max(applicable, key=lambda m: m.peak_pa)
+
+
+def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
+    """Screen one vessel at one worst-case gas temperature (one scenario); tolerances included."""
+    t_fill = _fill_temperature(case)
+    atm = case.site.atmospheric_pressure_pa
+    fs, models, out_of_scope = _evaluate(case, t_fill, t_peak, warnings)
     by_name = {m.name: m for m in models}
     applicable = [m for m in models if m.applicable and m.peak_pa is not None]
     real = [m for m in applicable if m.name != "ideal"]
-    governing = max(applicable, key=lambda m: m.peak_pa) if real else None
+    governing = _governing(models)
     peak = governing.peak_pa if governing else None
     if governing is not None:
         others = [m for m in applicable if m is not governing]
@@ -517,6 +523,13 @@ def screen_case(case: Case) -> dict:
         ratio_reason = (f"The filling ratio, {ratio:.3f} kg/L, is above the vessel's maximum filling ratio of "
                         f"{case.max_filling_ratio_kg_m3 / 1000:.3f} kg/L.")
 
+    tolerance = _tolerance(case, t_fill, t_peak, models) if (case.tolerance and governing) else None
+    if tolerance is not None:
+        if tolerance["bounding_peak_pressure_pa"] is None:
+            out_of_scope = out_of_scope or ("At a corner of the input tolerances no real-gas model applies, so the "
+                                            "vessel cannot be screened with these tolerances.")
+        else:
+            peak = max(peak, tolerance["bounding_peak_pressure_pa"])
     verdict, reasons, margin, relief_margin = decide(
         peak=peak, rated=case.rated_pressure_pa, relief=case.relief_set_pressure_pa, atm=atm,
         required_margin=case.required_margin, any_real_model=bool(real), out_of_scope_reason=out_of_scope,
@@ -555,9 +568,11 @@ def screen_case(case: Case) -> dict:
                  "phase": fs.phase_fill, "filling_ratio_kg_per_l": (rho_mass / 1000.0 if rho_mass else None),
                  "vapour_pressure_pa": fs.vapour_pressure_fill,
                  "given": "pressure" if case.fill_pressure_pa is not None else "mass"},
-        "worst_case_temperature_k": t_peak, "worst_case_basis": case.worst_case_basis,
+        "worst_case_temperature_k": t_peak, "worst_case_basis": basis,
         "models": {m.name: m.as_dict() for m in models},
-        "peak_pressure_pa": peak, "governing_model": governing.name if governing else None,
+        "peak_pressure_pa": peak, "nominal_peak_pressure_pa": governing.peak_pa if governing else None,
+        "tolerance": tolerance,
+        "governing_model": governing.name if governing else None,
         "governing_reason": governing_reason,
         "rated_pressure_pa": case.rated_pressure_pa, "relief_set_pressure_pa": case.relief_set_pressure_pa,
         "required_margin_fraction": case.required_margin,
@@ -568,6 +583,207 @@ def screen_case(case: Case) -> dict:
         "inputs": list(case.inputs), "display_units": dict(case.display_units),
         "cautions": {"caution": CAUTION, "short_caution": SHORT_CAUTION, "assumptions": list(ASSUMPTIONS)},
     }
+
+
+def _fill_temperature(case: Case) -> float:
+    return case.fill_temperature_k if case.fill_temperature_k is not None else DEFAULT_MASS_FILL_TEMPERATURE_K
+
+
+def _corner_peak(case: Case, p_fill: float | None, t_fill: float, t_peak: float) -> dict[str, float | None]:
+    """Peak of every model at one combination of fill pressure, fill and worst-case temperature."""
+    variant = replace(case, fill_pressure_pa=p_fill, fill_temperature_k=t_fill)
+    fs, models, _ = _evaluate(variant, t_fill, t_peak, [])
+    gov = _governing(models)
+    out = {m.name: (m.peak_pa if m.applicable else None) for m in models}
+    out["governing"] = gov.peak_pa if gov else None
+    return out
+
+
+def _tolerance(case: Case, t_fill: float, t_peak: float, models: list[Model]) -> dict:
+    """Nominal and bounding peak under the input tolerances.
+
+    The expected bounding corner is fill pressure high, fill temperature low, worst-case temperature high.
+    The signs of dP_peak/dP_fill (> 0), dP_peak/dT_fill (< 0 at a fixed fill pressure) and dP_peak/dT (> 0)
+    are checked on every applicable model by central differences; where any sign differs, all eight
+    corners are evaluated and the highest governs.
+    """
+    tol = case.tolerance
+    dp, dtf, dtg = tol.fill_pressure_pa, tol.fill_temperature_k, tol.gas_temperature_k
+    p0 = case.fill_pressure_pa
+    nominal = _corner_peak(case, p0, t_fill, t_peak)
+    names = [m.name for m in models if m.applicable]
+
+    def deriv(step_p, step_tf, step_tg, h):
+        hi = _corner_peak(case, p0 + step_p if p0 else None, t_fill + step_tf, t_peak + step_tg)
+        lo = _corner_peak(case, p0 - step_p if p0 else None, t_fill - step_tf, t_peak - step_tg)
+        return {n: (hi[n] - lo[n]) / (2 * h) if hi.get(n) is not None and lo.get(n) is not None else None
+                for n in names + ["governing"]}
+
+    h_t = 0.05
+    sens = {"dp_peak_dt_gas": deriv(0.0, 0.0, h_t, h_t), "dp_peak_dt_fill": None, "dp_peak_dp_fill": None}
+    expected = all((v or 0.0) > 0.0 for v in sens["dp_peak_dt_gas"].values())
+    if p0 is not None:
+        h_p = max(1e-5 * p0, 10.0)
+        sens["dp_peak_dp_fill"] = deriv(h_p, 0.0, 0.0, h_p)
+        sens["dp_peak_dt_fill"] = deriv(0.0, h_t, 0.0, h_t)
+        expected = expected and all((v or 0.0) > 0.0 for v in sens["dp_peak_dp_fill"].values()) \
+            and all((v or 0.0) < 0.0 for v in sens["dp_peak_dt_fill"].values())
+    # a mass fill has no fill-pressure reading; its fill temperature does not change the contents
+    p_signs = (1, -1) if (p0 is not None and dp > 0) else (0,)
+    tf_signs = (1, -1) if (p0 is not None and dtf > 0) else (0,)
+    tg_signs = (1, -1) if dtg > 0 else (0,)
+    if expected:
+        corners = [(max(p_signs), min(tf_signs), max(tg_signs))]
+    else:
+        corners = [(a, b, c) for a in p_signs for b in tf_signs for c in tg_signs]
+    best, best_corner = None, None
+    for a, b, c in corners:
+        peak = _corner_peak(case, p0 + a * dp if p0 is not None else None, t_fill + b * dtf, t_peak + c * dtg)
+        g = peak["governing"]
+        if g is None:
+            best, best_corner = None, (a, b, c)
+            break
+        if best is None or g > best:
+            best, best_corner = g, (a, b, c)
+    a, b, c = best_corner
+    return {
+        "fill_pressure_band_pa": dp, "fill_temperature_band_k": dtf, "gas_temperature_band_k": dtg,
+        "entered": dict(tol.entered),
+        "nominal_peak_pressure_pa": nominal["governing"], "bounding_peak_pressure_pa": best,
+        "bounding_corner": {"fill_pressure_pa": p0 + a * dp if p0 is not None else None,
+                            "fill_temperature_k": t_fill + b * dtf, "worst_case_temperature_k": t_peak + c * dtg},
+        "corners_evaluated": len(corners), "expected_corner_confirmed": expected,
+        "sensitivities": {k: (v["governing"] if v else None) for k, v in sens.items()},
+        "sensitivities_by_model": sens,
+    }
+
+
+# ----------------------------------------------------------------------------- exposure and scenarios
+
+#: Ground solar reflectance assumed under a vessel in the sun [-]: 0.2, the value commonly assumed for
+#: ordinary ground (common practice, no source); counting it is the conservative side.
+GROUND_ALBEDO = 0.2
+#: Absorptivity assumed when a sun exposure names no finish [-]: a dark finish, conservative.
+UNKNOWN_FINISH_ABSORPTIVITY = 0.95
+#: Long-wave emissivity of a painted surface when none is given [-] (non-metallic paints are about 0.9,
+#: see the finishes table).
+DEFAULT_EMISSIVITY = 0.90
+#: Above this ambient [K] the Swinbank sky correlation is outside its range; the sky is then taken at
+#: the ambient temperature (less radiative loss: the hotter, conservative wall).
+SKY_CORRELATION_MAX_AMBIENT_K = 323.15
+
+
+def _worst_case_temperature(case: Case, sc: Exposure, warnings: list) -> tuple[float, str, dict | None]:
+    """Worst-case gas temperature [K] of one scenario, its basis in words, and the energy balance if any."""
+    candidates: list[tuple[float, str]] = []
+    if sc.gas_temperature_k is not None:
+        candidates.append((sc.gas_temperature_k, "gas temperature stated in the case"))
+    if sc.ambient_max_k is not None:
+        candidates.append((sc.ambient_max_k, "ambient maximum"))
+    if sc.gas_temperature_k is not None and sc.ambient_max_k is not None and sc.gas_temperature_k < sc.ambient_max_k:
+        warnings.append({"code": "gas-below-ambient", "message":
+                         f"{sc.name}: the stated gas temperature is below the ambient maximum; the ambient "
+                         "maximum is used."})
+    balance_dict = None
+    if sc.solar == "sun":
+        notes = []
+        if case.outside_diameter_m is not None and case.length_m is not None:
+            d, length, estimated = case.outside_diameter_m, case.length_m, False
+        else:
+            d, length = estimate_dimensions(case.water_capacity_m3)
+            estimated = True
+            notes.append(f"Outside diameter and length estimated from the water capacity (length/diameter "
+                         f"{DEFAULT_ASPECT_RATIO:g}).")
+        if sc.finish is not None:
+            fin = finish(sc.finish)
+            alpha, eps_default = fin.absorptivity, fin.emissivity
+            notes.append(f"Finish '{fin.name}': absorptivity {fin.absorptivity:.2f}, emissivity "
+                         f"{fin.emissivity:.2f} ({fin.source}).")
+        elif sc.absorptivity is not None:
+            alpha, eps_default = sc.absorptivity, DEFAULT_EMISSIVITY
+        else:
+            alpha, eps_default = UNKNOWN_FINISH_ABSORPTIVITY, DEFAULT_EMISSIVITY
+            notes.append(f"No finish or absorptivity given: {UNKNOWN_FINISH_ABSORPTIVITY:.2f} assumed (a dark "
+                         "finish, the conservative side).")
+            warnings.append({"code": "finish-assumed", "message":
+                             f"{sc.name}: no surface finish given; a dark finish (absorptivity "
+                             f"{UNKNOWN_FINISH_ABSORPTIVITY:.2f}) is assumed."})
+        eps = sc.emissivity if sc.emissivity is not None else eps_default
+        irradiance = sc.irradiance_w_m2 if sc.irradiance_w_m2 is not None else DEFAULT_IRRADIANCE
+        if sc.irradiance_w_m2 is None:
+            notes.append(f"Irradiance {DEFAULT_IRRADIANCE:.0f} W/m2: the tool's default (rule of thumb: clear-sky "
+                         "peak sun at sea level).")
+        sky = None
+        if sc.ambient_max_k > SKY_CORRELATION_MAX_AMBIENT_K:
+            sky = sc.ambient_max_k
+            notes.append("Ambient above the sky-temperature correlation's range: sky taken at ambient.")
+        try:
+            b = solar_wall_temperature(sc.ambient_max_k, irradiance_w_m2=irradiance, absorptivity=alpha,
+                                       emissivity=eps, wind_speed_m_s=sc.wind_speed_m_s, outside_diameter_m=d,
+                                       length_m=length, orientation=sc.orientation, sky_temperature_k=sky,
+                                       ground_albedo=GROUND_ALBEDO)
+        except InputError as exc:
+            raise exc.located(file=case.source, key=sc.key) from None
+        except NotApplicable as exc:
+            raise InputError(f"the sun exposure is outside the energy balance's range: {exc.reason}",
+                             file=case.source, key=sc.key) from None
+        balance_dict = {
+            "wall_temperature_k": b.wall_temperature_k, "ambient_k": b.ambient_k,
+            "sky_temperature_k": b.sky_temperature_k, "irradiance_w_m2": b.irradiance_w_m2,
+            "absorptivity": b.absorptivity, "emissivity": b.emissivity, "wind_speed_m_s": b.wind_speed_m_s,
+            "absorbed_w_m2": b.absorbed_w_m2, "convected_w_m2": b.convected_w_m2, "radiated_w_m2": b.radiated_w_m2,
+            "h_convection_w_m2k": b.h_convection_w_m2k, "regime": b.regime, "orientation": b.orientation,
+            "outside_diameter_m": d, "length_m": length, "dimensions_estimated": estimated,
+            "ground_albedo": GROUND_ALBEDO, "residual_fraction": b.residual_fraction(),
+            "notes": notes + list(b.notes),
+        }
+        candidates.append((b.wall_temperature_k, "vessel wall temperature in the sun (energy balance)"))
+    t, basis = max(candidates, key=lambda c: c[0])
+    return t, basis, balance_dict
+
+
+def _scenario_summary(name: str, r: dict, exposure: dict | None) -> dict:
+    keys = ("verdict", "reasons", "worst_case_temperature_k", "worst_case_basis", "peak_pressure_pa",
+            "nominal_peak_pressure_pa", "governing_model", "margin_fraction", "relief_margin_fraction", "limits",
+            "tolerance")
+    return {"name": name, **{k: r[k] for k in keys}, "exposure": exposure,
+            "models": {n: {"applicable": m["applicable"], "peak_pressure_pa": m["peak_pressure_pa"]}
+                       for n, m in r["models"].items()}}
+
+
+def _rank(r: dict) -> tuple:
+    margin = r["margin_fraction"]
+    return (_SEVERITY[r["verdict"]], -(margin if margin is not None else -math.inf))
+
+
+def screen_case(case: Case) -> dict:
+    """Screen one vessel over its exposure scenarios; return the governing scenario's result dict
+    (JSON-ready, SI, pressures absolute) with every scenario side by side under "scenarios"."""
+    per: list[tuple[str, dict, dict | None]] = []
+    for sc in case.scenarios:
+        warnings: list[dict] = []
+        if case.fill_temperature_k is None:
+            warnings.append({"code": "fill-temperature-assumed", "message":
+                             f"No fill temperature given: {DEFAULT_MASS_FILL_TEMPERATURE_K - 273.15:.0f} °C is "
+                             "assumed to describe the fill state; the peak pressure does not depend on it."})
+        t_peak, basis, balance = _worst_case_temperature(case, sc, warnings)
+        per.append((sc.name, _screen_at(case, t_peak, basis, warnings), balance))
+    ranked = max(range(len(per)), key=lambda i: _rank(per[i][1]))
+    name, result, balance = per[ranked]
+    result = dict(result)
+    result["scenarios"] = [dict(_scenario_summary(n, r, b), governing=(i == ranked))
+                           for i, (n, r, b) in enumerate(per)]
+    result["governing_scenario"] = name
+    result["exposure"] = balance
+    if len(per) > 1:
+        result["reasons"] = [f"Scenario '{name}' governs (the worst of {len(per)})."] + result["reasons"]
+        seen = {w["message"] for w in result["warnings"]}
+        for _, r, _ in per:
+            for w in r["warnings"]:
+                if w["message"] not in seen:
+                    result["warnings"].append(w)
+                    seen.add(w["message"])
+    return result
 
 
 def screen_text(text: str, source: str = "<case>") -> dict:

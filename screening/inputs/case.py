@@ -6,6 +6,7 @@ Every failure is an `InputError` naming the file, the key, what was given and wh
 from __future__ import annotations
 
 import hashlib
+import re
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -21,15 +22,24 @@ DEFAULT_REQUIRED_MARGIN = 0.10
 
 # Allowed keys per table: anything else is an input error (a misspelt key must not be ignored).
 _SCHEMA: dict[str, set[str]] = {
-    "": {"id", "description", "pressure_basis", "site", "vessel", "fill", "exposure", "criteria"},
+    "": {"id", "description", "pressure_basis", "site", "vessel", "fill", "exposure", "criteria", "scenario",
+         "tolerance"},
     "site": {"name", "atmospheric_pressure", "elevation"},
     "vessel": {"water_capacity", "rated_pressure", "rated_pressure_kind", "relief_set_pressure",
-               "max_filling_ratio"},
+               "max_filling_ratio", "outside_diameter", "length"},
     "fill": {"gas", "pressure", "temperature", "mass"},
-    "exposure": {"ambient_max", "gas_temperature"},
+    "exposure": set(),  # EXPOSURE_KEYS, below
     "criteria": {"required_margin"},
+    "tolerance": {"fill_pressure", "fill_temperature", "gas_temperature"},
 }
-_TABLES = {"site", "vessel", "fill", "exposure", "criteria"}
+EXPOSURE_KEYS = {"ambient_max", "gas_temperature", "solar", "irradiance", "absorptivity", "finish", "emissivity",
+                 "wind_speed", "orientation"}
+_SCHEMA["exposure"] = EXPOSURE_KEYS
+_SCENARIO_KEYS = EXPOSURE_KEYS | {"name"}
+_TABLES = {"site", "vessel", "fill", "exposure", "criteria", "tolerance"}
+_SOLAR = ("none", "sun")
+_ORIENTATIONS = ("horizontal", "vertical")
+_FULL_SCALE = re.compile(r"^\s*(.+?%)\s+of\s+(.+?)\s*$")
 
 
 @dataclass(frozen=True)
@@ -37,6 +47,33 @@ class Site:
     name: str | None
     atmospheric_pressure_pa: float          # [Pa]
     elevation_m: float | None               # [m]
+
+
+@dataclass(frozen=True)
+class Exposure:
+    """One exposure scenario: how hot the gas can get. Temperatures [K], irradiance [W/m2], wind [m/s]."""
+
+    name: str
+    ambient_max_k: float | None
+    gas_temperature_k: float | None
+    solar: str = "none"                      # "none" | "sun"
+    irradiance_w_m2: float | None = None     # None: the tool's stated default
+    absorptivity: float | None = None
+    emissivity: float | None = None
+    finish: str | None = None
+    wind_speed_m_s: float = 0.0
+    orientation: str = "horizontal"
+    key: str = "exposure"                    # where it came from, for messages
+
+
+@dataclass(frozen=True)
+class Tolerance:
+    """Input tolerances, each a half-band (difference) in SI: [Pa], [K], [K]."""
+
+    fill_pressure_pa: float = 0.0
+    fill_temperature_k: float = 0.0
+    gas_temperature_k: float = 0.0
+    entered: dict = field(default_factory=dict)
 
 
 @dataclass(frozen=True)
@@ -63,6 +100,10 @@ class Case:
     required_margin_is_default: bool
     inputs: tuple[dict, ...] = ()            # key, entered, si_value, si_unit (for reports)
     display_units: dict = field(default_factory=dict)
+    scenarios: tuple[Exposure, ...] = ()     # at least one; the first mirrors [exposure] without [[scenario]]
+    tolerance: Tolerance | None = None
+    outside_diameter_m: float | None = None  # [m]
+    length_m: float | None = None            # [m]
 
     @property
     def input_sha256(self) -> str:
@@ -91,11 +132,14 @@ class _Reader:
         self.source = source
         self.inputs: list[dict] = []
         self.labels: dict[str, str] = {}
+        self.extra: dict[str, dict] = {}     # scenario tables by their key, e.g. "scenario[2]"
 
     def err(self, message: str, key: str, **kw) -> InputError:
         return InputError(message, file=self.source, key=key, **kw)
 
     def table(self, name: str) -> dict:
+        if name in self.extra:
+            return self.extra[name]
         value = self.data.get(name, {})
         if not isinstance(value, dict):
             raise self.err("expected a table", name, given=value, expected=f"a [{name}] table")
@@ -134,6 +178,15 @@ class _Reader:
 
 
 def _check_keys(data: dict, source: str) -> None:
+    scenarios = data.get("scenario", [])
+    if not isinstance(scenarios, list) or not all(isinstance(x, dict) for x in scenarios):
+        raise InputError("expected a list of [[scenario]] tables", file=source, key="scenario",
+                         given=scenarios, expected="[[scenario]] tables with a name and an exposure")
+    for i, sc in enumerate(scenarios, 1):
+        for key in sc:
+            if key not in _SCENARIO_KEYS:
+                raise InputError("unknown key", file=source, key=f"scenario[{i}].{key}", given=key,
+                                 expected="[[scenario]] keys: " + ", ".join(sorted(_SCENARIO_KEYS)))
     for table, allowed in _SCHEMA.items():
         keys = data if table == "" else data.get(table, {})
         if table and not isinstance(keys, dict):
@@ -262,12 +315,128 @@ def parse_case_data(data: dict, source: str, text: str) -> Case:
         raise r.err("a fill pressure needs the temperature at which it was read", "fill.temperature",
                     expected="e.g. temperature = \"15 degC\" in [fill]")
 
-    # --- exposure
-    ambient = temperature("exposure", "ambient_max")
-    gas_t = temperature("exposure", "gas_temperature")
-    if ambient is None and gas_t is None:
-        raise r.err("the worst case needs ambient_max or gas_temperature", "exposure.ambient_max",
-                    expected="[exposure] ambient_max = \"45 degC\" or gas_temperature = \"65 degC\"")
+    # --- vessel dimensions (for the solar balance)
+    diameter = positive("vessel", "outside_diameter", "length", "m")
+    length = positive("vessel", "length", "length", "m")
+
+    # --- exposure scenarios: [[scenario]] tables, each inheriting what it does not set from [exposure]
+    def exposure(table: str, name: str) -> Exposure:
+        def pick(key):
+            return table if key in r.table(table) else "exposure"
+        ambient = temperature(pick("ambient_max"), "ambient_max")
+        gas_t = temperature(pick("gas_temperature"), "gas_temperature")
+        solar = r.raw(pick("solar"), "solar") or "none"
+        if solar not in _SOLAR:
+            raise r.err("unknown solar exposure", f"{pick('solar')}.solar", given=solar, expected='"none" or "sun"')
+        if ambient is None and gas_t is None:
+            raise r.err("the worst case needs ambient_max or gas_temperature", f"{table}.ambient_max",
+                        expected=f"[{table}] ambient_max = \"45 degC\" or gas_temperature = \"65 degC\"")
+        if solar == "sun" and ambient is None:
+            raise r.err("a sun exposure needs the ambient air temperature", f"{table}.ambient_max",
+                        expected="ambient_max = \"40 degC\" beside solar = \"sun\"")
+        irr = r.quantity(pick("irradiance"), "irradiance", "irradiance")
+        irradiance = None
+        if irr is not None:
+            irradiance = irr.si()
+            if irradiance < 0.0:
+                raise r.err("irradiance cannot be negative", f"{pick('irradiance')}.irradiance", given=irr.text,
+                            expected="0 W/m2 or more")
+            r.record(f"{pick('irradiance')}.irradiance", irr, irradiance, "W/m2")
+        wind = r.quantity(pick("wind_speed"), "wind_speed", "speed")
+        wind_speed = 0.0
+        if wind is not None:
+            wind_speed = wind.si()
+            if wind_speed < 0.0:
+                raise r.err("wind speed cannot be negative", f"{pick('wind_speed')}.wind_speed", given=wind.text,
+                            expected="0 m/s or more")
+            r.record(f"{pick('wind_speed')}.wind_speed", wind, wind_speed, "m/s")
+
+        def unit_fraction(key):
+            value = r.raw(pick(key), key)
+            if value is None:
+                return None
+            reading = parse(value, "fraction", file=source, key=f"{pick(key)}.{key}")
+            v = reading.si()
+            if not 0.0 <= v <= 1.0:
+                raise r.err(f"{key} must lie between 0 and 1", f"{pick(key)}.{key}", given=value,
+                            expected="a number from 0 to 1, e.g. 0.6")
+            return v
+        absorptivity = unit_fraction("absorptivity")
+        emissivity = unit_fraction("emissivity")
+        finish = r.text(pick("finish"), "finish")
+        if finish is not None and absorptivity is not None:
+            raise r.err("give a finish or an absorptivity, not both", f"{pick('finish')}.finish", given=finish,
+                        expected="one of the two")
+        orientation = r.raw(pick("orientation"), "orientation") or "horizontal"
+        if orientation not in _ORIENTATIONS:
+            raise r.err("unknown orientation", f"{pick('orientation')}.orientation", given=orientation,
+                        expected='"horizontal" (lying) or "vertical" (standing)')
+        return Exposure(name, ambient, gas_t, solar, irradiance, absorptivity, emissivity, finish, wind_speed,
+                        orientation, key=table)
+
+    scenario_tables = data.get("scenario", [])
+    if scenario_tables:
+        scenarios = []
+        names = set()
+        for i, sc in enumerate(scenario_tables, 1):
+            key = f"scenario[{i}]"
+            r.extra[key] = sc
+            name = r.text(key, "name", required=True)
+            if name in names:
+                raise r.err("two scenarios have the same name", f"{key}.name", given=name, expected="distinct names")
+            names.add(name)
+            scenarios.append(exposure(key, name))
+        scenarios = tuple(scenarios)
+    else:
+        scenarios = (exposure("exposure", "exposure"),)
+    ambient, gas_t = scenarios[0].ambient_max_k, scenarios[0].gas_temperature_k
+
+    # --- tolerances
+    tolerance = None
+    if "tolerance" in data:
+        entered = {}
+        band_p = 0.0
+        tp = r.raw("tolerance", "fill_pressure")
+        if tp is not None:
+            if fill_p is None:
+                raise r.err("a fill-pressure tolerance needs a fill pressure", "tolerance.fill_pressure", given=tp,
+                            expected="[fill] pressure, or no fill_pressure tolerance")
+            reading_p = parse(r.raw("fill", "pressure"), "pressure", pressure_basis=basis)
+            reading_value = reading_p.si()  # the reading as shown, on its own basis [Pa]
+            m = _FULL_SCALE.match(tp) if isinstance(tp, str) else None
+            if m:
+                pct = parse(m.group(1), "fraction", file=source, key="tolerance.fill_pressure").si()
+                scale = parse(m.group(2), "pressure", pressure_basis="gauge", file=source,
+                              key="tolerance.fill_pressure").si()
+                band_p = pct * scale
+            else:
+                t_read = parse(tp, "fraction", file=source, key="tolerance.fill_pressure") \
+                    if isinstance(tp, str) and tp.strip().endswith("%") else None
+                if t_read is not None:
+                    band_p = t_read.si() * reading_value
+                else:
+                    band_p = parse(tp, "pressure", pressure_basis="gauge", file=source,
+                                   key="tolerance.fill_pressure").si()
+            if band_p < 0.0 or band_p >= reading_value:
+                raise r.err("the fill-pressure tolerance must be at least zero and smaller than the reading",
+                            "tolerance.fill_pressure", given=tp,
+                            expected=f"below {r.raw('fill', 'pressure')}, e.g. '2 bar', '1 %' or '1.6 % of 400 bar'")
+            entered["fill_pressure"] = tp
+
+        def band_t(key, reading_k):
+            value = r.raw("tolerance", key)
+            if value is None:
+                return 0.0
+            band = parse(value, "temperature", file=source, key=f"tolerance.{key}").si_difference()
+            if band < 0.0 or (reading_k is not None and band >= reading_k):
+                raise r.err(f"the {key.replace('_', ' ')} tolerance must be at least zero and smaller than the "
+                            "reading", f"tolerance.{key}", given=value, expected="e.g. '2 K' or '3 degC'")
+            entered[key] = value
+            return band
+        tolerance = Tolerance(band_p, band_t("fill_temperature", fill_t),
+                              band_t("gas_temperature", min(t for s in scenarios for t in
+                                                            (s.gas_temperature_k, s.ambient_max_k) if t)),
+                              entered)
 
     # --- criteria
     margin_reading = r.quantity("criteria", "required_margin", "fraction")
@@ -298,6 +467,7 @@ def parse_case_data(data: dict, source: str, text: str) -> Case:
         ambient_max_k=ambient, gas_temperature_k=gas_t,
         required_margin=margin, required_margin_is_default=margin_default,
         inputs=tuple(r.inputs), display_units=display,
+        scenarios=scenarios, tolerance=tolerance, outside_diameter_m=diameter, length_m=length,
     )
 
 
