@@ -310,14 +310,14 @@ def _group(cases: list[Case]) -> list[dict | None]:
             return np.where(s.valid, s.molar_density / rho_lk[ix] - 1.0, np.nan)
 
         reach = rated[i] / pcp[i] <= 10.0
-        x0 = t_peak[i] * np.clip(rated[i] / peak_lk[i], 0.2, 5.0)
+        x0 = np.minimum(t_peak[i] * np.clip(rated[i] / peak_lk[i], 0.2, 5.0), 3.9 * tcp[i])
         f0 = f_t(x0, i)
         root, conv = _secant(f_t, x0, f0, x0 * (1.0 + 1e-4), i)
         has = reach & conv & (root >= t_lo[i]) & (root <= t_hi[i])
         a, b = _linspace_bracket(t_lo[i], t_hi[i], root)
         edge = has & ((b / tcp[i] > _LK_TR_EDGE) | (rated[i] * b / root / pcp[i] > _LK_PR_EDGE))
         # a root beyond the range or a bracket at its edge: not sure what the scan finds -> per row
-        unsure = (~reach & (rated[i] / pcp[i] < 10.5)) | edge | (reach & ~conv & np.isfinite(f0))
+        unsure = (~reach & (rated[i] / pcp[i] < 10.5)) | edge | (reach & ~conv)
         unsure |= reach & ~has & conv & (root > t_lo[i]) & (b / tcp[i] > _LK_TR_EDGE)
         fallback[i[unsure]] = True
         t_lk[i[has & ~unsure]] = root[has & ~unsure]
