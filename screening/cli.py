@@ -51,6 +51,18 @@ def _build() -> argparse.ArgumentParser:
     v.add_argument("report", help="a PDF written by 'screening check --pdf' or 'screening report'")
 
     sub.add_parser("gases", help="list the gas library with its sources")
+
+    b = sub.add_parser("batch", help="screen every vessel of an inventory (CSV or XLSX)")
+    b.add_argument("inventory", help="inventory table: CSV (',' or ';') or .xlsx, one vessel per row")
+    b.add_argument("--sheet", metavar="NAME", help="sheet of an .xlsx workbook (default: the first)")
+    b.add_argument("--defaults", metavar="CASE.toml", help="values for missing columns and empty cells")
+    b.add_argument("--json", metavar="OUT.json", help="write every row's result as JSON")
+    b.add_argument("--csv", metavar="OUT.csv", help="write the inventory with the results as CSV")
+    b.add_argument("--pdf", metavar="OUT.pdf", help="write the batch report as PDF")
+    b.add_argument("--all-details", action="store_true", help="detail every vessel in the PDF, not only those "
+                   "that are not within rating")
+    b.add_argument("--date", type=_date, help="report date (YYYY-MM-DD; default today)")
+    b.add_argument("--quiet", action="store_true", help="no progress bar and no table; counts only")
     return p
 
 
@@ -67,6 +79,10 @@ def _exit_for(verdict: str) -> int:
 
 def run(argv: list[str] | None = None) -> int:
     args = _build().parse_args(argv)
+    if args.command == "batch":
+        from screening.batch import run as run_batch
+
+        return run_batch(args)
     if args.command == "gases":
         from screening.outputs.gases_listing import format_library
 
