@@ -695,7 +695,11 @@ def _worst_case_temperature(case: Case, sc: Exposure, warnings: list) -> tuple[f
             notes.append(f"Outside diameter and length estimated from the water capacity (length/diameter "
                          f"{DEFAULT_ASPECT_RATIO:g}).")
         if sc.finish is not None:
-            fin = finish(sc.finish)
+            try:
+                fin = finish(sc.finish.strip().lower().replace(" ", "_").replace("-", "_"))
+            except InputError as exc:
+                raise InputError(exc.message, file=case.source, key=f"{sc.key}.finish", given=sc.finish,
+                                 expected=exc.expected) from None
             alpha, eps_default = fin.absorptivity, fin.emissivity
             notes.append(f"Finish '{fin.name}': absorptivity {fin.absorptivity:.2f}, emissivity "
                          f"{fin.emissivity:.2f} ({fin.source}).")

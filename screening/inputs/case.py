@@ -173,7 +173,7 @@ class _Reader:
         return reading
 
     def record(self, key: str, reading: Reading | None, si_value: float | None, si_unit: str) -> None:
-        if reading is not None:
+        if reading is not None and all(item["key"] != key for item in self.inputs):
             self.inputs.append({"key": key, "entered": reading.text, "si_value": si_value, "si_unit": si_unit})
 
 

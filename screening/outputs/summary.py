@@ -58,6 +58,17 @@ def format_summary(result: dict) -> str:
         lines.append(f"  {name:<12} {val}{mark}")
         if not m["applicable"]:
             lines.append(_wrap(m["note"], "               "))
+    tol = result.get("tolerance")
+    if tol and tol.get("bounding_peak_pressure_pa") is not None:
+        sens = tol["sensitivities"]
+        lines.append(f"  bounding     {P(tol['bounding_peak_pressure_pa'])} with the input tolerances "
+                     f"({', '.join(f'{k.replace(chr(95), chr(32))} ±{v}' for k, v in tol['entered'].items())}); "
+                     "the verdict uses it")
+        parts = [f"dP/dT {sens['dp_peak_dt_gas'] / 1e5:.2f} bar/K"]
+        if sens.get("dp_peak_dp_fill") is not None:
+            parts.append(f"dP/dP_fill {sens['dp_peak_dp_fill']:.3f}")
+            parts.append(f"dP/dT_fill {sens['dp_peak_dt_fill'] / 1e5:.2f} bar/K")
+        lines.append("               sensitivities: " + ", ".join(parts))
     lines.append(f"  rated        {P(result['rated_pressure_pa'])}"
                  + (f" ({result['vessel']['rated_pressure_kind']})" if result["vessel"]["rated_pressure_kind"] else ""))
     if result["relief_set_pressure_pa"] is not None:
@@ -65,6 +76,19 @@ def format_summary(result: dict) -> str:
     lines.append(f"  margin       {format_percent(result['margin_fraction'])} (required "
                  f"{format_percent(result['required_margin_fraction'])}"
                  + (", tool default" if result["required_margin_is_default"] else "") + ")")
+    if result.get("exposure"):
+        b = result["exposure"]
+        lines.append(f"  sun: absorbed {b['absorbed_w_m2']:.0f} W/m2 = convected {b['convected_w_m2']:.0f} + radiated "
+                     f"{b['radiated_w_m2']:.0f}; wall {T(b['wall_temperature_k'])} at ambient {T(b['ambient_k'])}"
+                     + (" (dimensions estimated)" if b["dimensions_estimated"] else ""))
+    if len(result.get("scenarios", [])) > 1:
+        lines.append("")
+        lines.append("Scenarios (worst first is marked *)")
+        for sc in result["scenarios"]:
+            mark = "*" if sc["governing"] else " "
+            lines.append(f"  {mark} {sc['name'][:28]:<28} {T(sc['worst_case_temperature_k']):>10}  "
+                         f"peak {P(sc['peak_pressure_pa']):>14}  margin {format_percent(sc['margin_fraction']):>8}  "
+                         f"{sc['verdict']}")
     lim = result["limits"]
     lines.append("")
     lines.append("Limits")
