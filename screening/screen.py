@@ -411,7 +411,27 @@ def decide(*, peak: float | None, rated: float, relief: float | None, atm: float
 
 # ----------------------------------------------------------------------------- the screening
 
-def _curves(models: list[Model], t_fill: float, t_peak: float, limits: dict) -> dict:
+def _phase_diagram(fs: FillState) -> dict | None:
+    """Vapour-pressure curve from the triple point to the critical point (pure fluids with a dome)."""
+    fluid = fs.fluid
+    if fluid is None or not _is_pure(fluid):
+        return None
+    tt, tc = fluid.triple_temperature, fluid.critical_temperature
+    temps, pressures = [], []
+    for t in np.linspace(tt, tc, 50)[:-1]:
+        try:
+            pressures.append(fluid.vapour_pressure(float(t)))
+            temps.append(float(t))
+        except NotApplicable:
+            continue
+    return {"saturation": {"temperature_k": temps + [tc], "pressure_pa": pressures + [fluid.critical_pressure]},
+            "critical_temperature_k": tc, "critical_pressure_pa": fluid.critical_pressure,
+            "critical_density_kg_m3": fluid.critical_molar_density * fluid.molar_mass,
+            "triple_temperature_k": tt}
+
+
+def _curves(models: list[Model], t_fill: float, t_peak: float, limits: dict,
+            bounding: Model | None = None) -> dict:
     t_lo = max(min(t_fill, t_peak) - 30.0, 1.0)
     t_top = max(t_peak, t_fill) + 25.0
     tmax = limits.get("max_gas_temperature_k")
@@ -431,6 +451,15 @@ def _curves(models: list[Model], t_fill: float, t_peak: float, limits: dict) -> 
             except NotApplicable:
                 values.append(None)
         out[m.name] = values
+    if bounding is not None and bounding.isochore is not None:
+        values = []
+        for t in grid:
+            try:
+                values.append(float(bounding.isochore(float(t))))
+            except NotApplicable:
+                values.append(None)
+        out["bounding"] = values
+        out["bounding_model"] = bounding.name
     return out
 
 
@@ -579,7 +608,8 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
         "required_margin_is_default": case.required_margin_is_default,
         "margin_fraction": margin, "relief_margin_fraction": relief_margin,
         "limits": limits,
-        "curves": _curves(models, t_fill, t_peak, limits),
+        "curves": _curves(models, t_fill, t_peak, limits, _bounding_model(case, tolerance)),
+        "phase_diagram": _phase_diagram(fs),
         "inputs": list(case.inputs), "display_units": dict(case.display_units),
         "cautions": {"caution": CAUTION, "short_caution": SHORT_CAUTION, "assumptions": list(ASSUMPTIONS)},
     }
@@ -597,6 +627,17 @@ def _corner_peak(case: Case, p_fill: float | None, t_fill: float, t_peak: float)
     out = {m.name: (m.peak_pa if m.applicable else None) for m in models}
     out["governing"] = gov.peak_pa if gov else None
     return out
+
+
+def _bounding_model(case: Case, tolerance: dict | None) -> Model | None:
+    """The governing model at the bounding corner's fill (for drawing the tolerance band)."""
+    if not tolerance or tolerance.get("bounding_peak_pressure_pa") is None:
+        return None
+    corner = tolerance["bounding_corner"]
+    variant = replace(case, fill_pressure_pa=corner["fill_pressure_pa"],
+                      fill_temperature_k=corner["fill_temperature_k"])
+    _, models, _ = _evaluate(variant, corner["fill_temperature_k"], corner["worst_case_temperature_k"], [])
+    return _governing(models)
 
 
 def _tolerance(case: Case, t_fill: float, t_peak: float, models: list[Model]) -> dict:
