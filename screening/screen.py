@@ -281,6 +281,14 @@ def _reference(case: Case, fs: FillState, t_fill: float, t_peak: float) -> Model
 def _root(f: Callable[[float], float], lo: float, hi: float, n: int = 24) -> float | None:
     """A root of f in [lo, hi]: scan for the first sign change, then Brent. None where f has no sign change
     or cannot be evaluated. A scan step whose ends cannot be evaluated is passed over."""
+    try:  # the functions solved here are monotonic: try the whole bracket first
+        f_lo, f_hi = f(lo), f(hi)
+        if f_lo == 0.0:
+            return float(lo)
+        if f_lo * f_hi < 0.0:
+            return float(brentq(f, lo, hi, rtol=P_TOL, xtol=1e-9 * max(1.0, abs(hi))))
+    except NotApplicable:
+        pass
     xs = np.linspace(lo, hi, n)
     prev_x, prev_f = None, None
     for x in xs:
@@ -437,7 +445,9 @@ def _curves(models: list[Model], t_fill: float, t_peak: float, limits: dict,
     tmax = limits.get("max_gas_temperature_k")
     if tmax is not None and tmax < t_peak + 80.0:
         t_top = max(t_top, tmax + 10.0)
-    grid = np.linspace(t_lo, t_top, 61)
+    # a mixture's reference state costs tens of milliseconds (its consistency checks): fewer points
+    slow = any(m.name == "reference" and m.applicable and m.extra.get("fluid", "").count("&") for m in models)
+    grid = np.linspace(t_lo, t_top, 25 if slow else 61)
     out: dict = {"temperature_k": [float(t) for t in grid]}
     for m in models:
         if not m.applicable or m.isochore is None:
