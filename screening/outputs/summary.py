@@ -19,7 +19,7 @@ def verdict_words(verdict: str) -> str:
 
 
 def _wrap(text: str, indent: str = "  ") -> str:
-    return textwrap.fill(text, width=92, initial_indent=indent, subsequent_indent=indent)
+    return textwrap.fill(text, width=92, initial_indent=indent, subsequent_indent=indent, break_on_hyphens=False)
 
 
 def format_summary(result: dict) -> str:
