@@ -313,3 +313,27 @@ def test_verify_without_attachments_or_on_garbage_is_an_input_error(tmp_path):
         verify_report(garbage)
     with pytest.raises(InputError):
         verify_report(tmp_path / "missing.pdf")
+
+
+@pytest.mark.parametrize("case", CASES, ids=[c.stem for c in CASES])
+def test_each_demo_case_says_what_its_worst_case_temperature_rests_on(case, outdir):
+    import re
+
+    text, result = screened(case)
+    html = report_mod.render_html(result, text, DATE)
+    numbers = [int(n) for n in re.findall(r'<h2><span class="num">(\d+)</span>', html)]
+    assert numbers == list(range(1, len(numbers) + 1))
+    whole = " ".join(pages_text(rendered(case, outdir)))
+    assert "Worst-case temperature" in whole
+    assert _flat(str(result["worst_case_basis"])) in whole
+    if result["exposure"] is not None:
+        assert "Energy balance on the sunlit wall" in whole
+    if result["tolerance"] is not None:
+        assert "Input tolerances" in whole
+    shows_diagram = report_mod.build_view(result, text, DATE)["phase"] is not None and \
+        report_mod.build_view(result, text, DATE)["phase"]["plot_uri"] is not None
+    assert ("Phase diagram, pressure against temperature" in whole) == shows_diagram
+    if "co2" in case.stem and "ar" not in case.stem:
+        assert shows_diagram
+    if case.stem.startswith("kq-n2"):
+        assert not shows_diagram

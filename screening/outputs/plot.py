@@ -74,6 +74,100 @@ def _finite(x) -> bool:
     return x is not None and isinstance(x, (int, float)) and math.isfinite(x)
 
 
+#: Dash pattern of the bounding-corner isochore (long dashes, thinner than the model lines).
+BOUNDING_STYLE = (0, (9, 2.5))
+#: The vapour-pressure curve on the phase diagram: a wide light-grey band with a thin dashed black
+#: centre line, so that an isochore running along it (two-phase fill) stays visible on top of it.
+SATURATION_GREY = "#b4b4b4"
+SATURATION_STYLE = (0, (4, 2))
+
+#: Phases in which only the reference equation of state can describe the contents.
+CONDENSED_PHASES = ("liquid", "two-phase")
+
+
+def tolerance_band(result: dict) -> dict | None:
+    """The worst-case temperature band of the input tolerances [K], when the result carries one."""
+    tol = result.get("tolerance")
+    if not tol or tol.get("bounding_peak_pressure_pa") is None:
+        return None
+    t_wc = result["worst_case_temperature_k"]
+    band = tol.get("gas_temperature_band_k") or 0.0
+    if not _finite(t_wc) or not _finite(band):
+        return None
+    return {"low_k": t_wc - band, "high_k": t_wc + band, "band_text": f"{band:g} K"}
+
+
+def worst_case_point_temperature(result: dict) -> float | None:
+    """Temperature [K] at which the result's peak pressure is reached: the bounding corner's under
+    tolerances (the peak is then the bounding peak), otherwise the worst-case temperature."""
+    tol = result.get("tolerance")
+    if tol and tol.get("bounding_peak_pressure_pa") is not None:
+        corner = tol.get("bounding_corner") or {}
+        if _finite(corner.get("worst_case_temperature_k")):
+            return corner["worst_case_temperature_k"]
+    return result["worst_case_temperature_k"]
+
+
+def phase_diagram_wanted(result: dict) -> bool:
+    """Whether the report should show the phase diagram: a liquefiable gas, a liquid or two-phase state
+    at fill or at the worst case, or a liquid-full temperature in the result."""
+    ref = (result.get("models") or {}).get("reference") or {}
+    phases = (result["fill"].get("phase"), ref.get("phase_fill"), ref.get("phase_peak"))
+    return (result["gas"].get("kind") == "liquefiable"
+            or any(p in CONDENSED_PHASES for p in phases)
+            or (result.get("limits") or {}).get("liquid_full_temperature_k") is not None)
+
+
+def phase_diagram_drawable(result: dict) -> bool:
+    """Wanted, and the result carries a vapour-pressure curve with at least two points."""
+    pd = result.get("phase_diagram")
+    if not pd or not phase_diagram_wanted(result):
+        return False
+    sat = pd.get("saturation") or {}
+    pts = [1 for t, p in zip(sat.get("temperature_k") or [], sat.get("pressure_pa") or []) if _finite(t) and _finite(p)]
+    return len(pts) >= 2
+
+
+def liquid_full_marked(result: dict) -> bool:
+    """Whether the phase diagram marks a liquid-full point: one is reported and it is not the critical
+    point itself (which the diagram marks anyway)."""
+    t_full = (result.get("limits") or {}).get("liquid_full_temperature_k")
+    pd = result.get("phase_diagram") or {}
+    tc = pd.get("critical_temperature_k")
+    return _finite(t_full) and _finite(tc) and abs(t_full - tc) > 0.05 and _finite(saturation_reading(result, t_full))
+
+
+def _read_on(points: list[tuple[float, float]], x: float) -> float | None:
+    """Straight-line reading of a plotted curve at x (a drawing aid: where to put a marker)."""
+    for (xa, ya), (xb, yb) in zip(points, points[1:]):
+        if xa <= x <= xb and xb > xa:
+            return ya + (yb - ya) * (x - xa) / (xb - xa)
+    return None
+
+
+def saturation_reading(result: dict, t_k: float) -> float | None:
+    """Pressure [Pa] read off the result's vapour-pressure curve at t_k (straight line between its points)."""
+    pd = result.get("phase_diagram") or {}
+    sat = pd.get("saturation") or {}
+    pts = [(t, p) for t, p in zip(sat.get("temperature_k") or [], sat.get("pressure_pa") or [])
+           if _finite(t) and _finite(p)]
+    return _read_on(pts, t_k) if _finite(t_k) else None
+
+
+def fill_point_pressure(result: dict, model: str | None = None) -> float | None:
+    """The fill pressure [Pa] to mark: the stated one, or (fill by mass) a reading of the model's plotted
+    isochore at the fill temperature."""
+    fill = result["fill"]
+    if fill.get("pressure_pa") is not None:
+        return fill["pressure_pa"]
+    model = model or result.get("governing_model")
+    curves = result["curves"]
+    if not model or not curves.get(model) or not _finite(fill.get("temperature_k")):
+        return None
+    pts = [(t, p) for t, p in zip(curves.get("temperature_k") or [], curves[model]) if _finite(t) and _finite(p)]
+    return _read_on(pts, fill["temperature_k"])
+
+
 def drawable_models(result: dict) -> list[str]:
     """Models with an applicable result and at least two finite points on their curve."""
     curves = result["curves"]
@@ -136,28 +230,41 @@ def plot_svg(result: dict) -> str:
         fill = result["fill"]
         t_fill = fill["temperature_k"]
         p_fill = fill.get("pressure_pa")
-        if p_fill is None and result["governing_model"] in drawn and _finite(t_fill):
+        if p_fill is None and result["governing_model"] in drawn:
             # Fill by mass: place the marker on the governing curve (straight-line reading between its points).
-            pts = [(t, p) for t, p in zip(temps_k, curves[result["governing_model"]]) if _finite(t) and _finite(p)]
-            for (ta, pa), (tb, pb) in zip(pts, pts[1:]):
-                if ta <= t_fill <= tb and tb > ta:
-                    p_fill = pa + (pb - pa) * (t_fill - ta) / (tb - ta)
-                    break
+            p_fill = fill_point_pressure(result)
         if _finite(p_fill) and _finite(t_fill):
             ax.plot([T(t_fill)], [P(p_fill)], linestyle="none", marker="D", markersize=6.5,
                     markerfacecolor="black", markeredgecolor="black", zorder=6, label="Fill state")
 
         peak = result["peak_pressure_pa"]
         t_wc = result["worst_case_temperature_k"]
-        if _finite(peak) and _finite(t_wc):
-            ax.plot([T(t_wc)], [P(peak)], linestyle="none", marker="*", markersize=13,
+        tol = tolerance_band(result)
+        if tol is not None:
+            # The bounding corner's isochore and the worst-case temperature band of the tolerances.
+            series = curves.get("bounding") or []
+            xs = [T(t) for t, p in zip(temps_k, series) if _finite(t) and _finite(p)]
+            ys = [P(p) for t, p in zip(temps_k, series) if _finite(t) and _finite(p)]
+            if len(xs) >= 2:
+                name = MODEL_STYLE.get(str(curves.get("bounding_model")), {}).get("label", "governing model")
+                ax.plot(xs, ys, color="black", linestyle=BOUNDING_STYLE, linewidth=1.1, zorder=3,
+                        label=f"{name}, fill at the bounding corner")
+            lo, hi = tol["low_k"], tol["high_k"]
+            ax.axvspan(T(lo), T(hi), facecolor="#dcdcdc", edgecolor="black", linewidth=0.5,
+                       linestyle=(0, (1, 1.5)), zorder=0,
+                       label=f"Worst-case temperature ± {tol['band_text']} (tolerance)")
+        t_star = worst_case_point_temperature(result)
+        if _finite(peak) and _finite(t_star):
+            ax.plot([T(t_star)], [P(peak)], linestyle="none", marker="*", markersize=13,
                     markerfacecolor="black", markeredgecolor="white", markeredgewidth=0.6, zorder=7,
-                    label="Worst case (governing model)")
+                    label="Bounding peak (verdict)" if tol is not None else "Worst case (governing model)")
 
         ax.autoscale(enable=True, axis="x", tight=True)
         x0, x1 = ax.get_xlim()
         if _finite(t_wc):
             x1 = max(x1, T(t_wc) + 0.02 * (x1 - x0 or 1.0))
+        if tol is not None:
+            x1 = max(x1, T(tol["high_k"]) + 0.02 * (x1 - x0 or 1.0))
         if _finite(t_fill):
             x0 = min(x0, T(t_fill) - 0.02 * (x1 - x0 or 1.0))
         ax.set_xlim(x0, x1)
@@ -200,9 +307,123 @@ def plot_svg(result: dict) -> str:
         ax.set_ylabel(f"Pressure [{p_unit}]")
         ax.grid(True, color="#bbbbbb", linewidth=0.4, linestyle="-")
         ax.set_axisbelow(True)
-        if ax.get_legend_handles_labels()[0]:
-            ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.16), ncol=3, frameon=False, fontsize=7.5,
-                      handlelength=3.2, columnspacing=1.6)
+        handles = ax.get_legend_handles_labels()[0]
+        if handles:
+            ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.16), ncol=3 if len(handles) <= 6 else 2,
+                      frameon=False, fontsize=7.5, handlelength=3.2, columnspacing=1.6)
+        fig.tight_layout(pad=0.4)
+
+        buf = io.StringIO()
+        fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": None, "Format": None, "Type": None})
+    return buf.getvalue()
+
+
+def _hline(ax, y: float, text: str, style, width: float, bold: bool = False, below: bool = False) -> None:
+    ax.axhline(y, color="black", linewidth=width, linestyle=style, zorder=2)
+    ax.annotate(text, xy=(0.005, y), xycoords=("axes fraction", "data"),
+                xytext=(2, -3 if below else 2), textcoords="offset points", ha="left",
+                va="top" if below else "baseline", fontsize=7.5, fontweight="bold" if bold else "normal",
+                bbox=_LABEL_BOX)
+
+
+def phase_diagram_svg(result: dict) -> str:
+    """SVG text of the pressure–temperature phase diagram of a pure fluid with a saturation dome.
+
+    Draws, from the result only: the vapour-pressure curve up to the critical point (marked), the
+    fill isochore of the reference model (``curves.reference``), the fill and worst-case points, the
+    liquid-full point on the vapour-pressure curve, and the rated and relief pressures.
+    """
+    units = result["display_units"]
+    p_unit, t_unit = units["pressure"], units["temperature"]
+    atm = result["site"]["atmospheric_pressure_pa"]
+    pd = result["phase_diagram"]
+    curves = result["curves"]
+
+    def P(pa: float) -> float:
+        return pressure_in(pa, p_unit, atm)
+
+    def T(k: float) -> float:
+        return temperature_in(k, t_unit)
+
+    temps_k = [t for t in (curves.get("temperature_k") or []) if _finite(t)]
+    t_fill = result["fill"]["temperature_k"]
+    t_wc = worst_case_point_temperature(result)
+    tc, pc = pd["critical_temperature_k"], pd["critical_pressure_pa"]
+    lows = [t for t in [min(temps_k) if temps_k else None, t_fill] if _finite(t)]
+    t_left = max(pd["triple_temperature_k"], min(lows + [tc]) - 15.0)
+    highs = [t for t in [max(temps_k) if temps_k else None, t_wc, tc + 5.0] if _finite(t)]
+    t_right = max(highs)
+
+    with matplotlib.rc_context(_RC):
+        fig = Figure(figsize=(6.6, 4.6), dpi=100)
+        FigureCanvasSVG(fig)
+        ax = fig.add_subplot(1, 1, 1)
+
+        sat = pd["saturation"]
+        pts = [(t, p) for t, p in zip(sat["temperature_k"], sat["pressure_pa"]) if _finite(t) and _finite(p)]
+        shown = [(t, p) for t, p in pts if t >= t_left]
+        if len(shown) < 2:
+            shown = pts
+        ax.plot([T(t) for t, _ in shown], [P(p) for _, p in shown], color=SATURATION_GREY, linestyle="-",
+                linewidth=5.0, solid_capstyle="butt", zorder=3, label="Vapour-pressure curve")
+        ax.plot([T(t) for t, _ in shown], [P(p) for _, p in shown], color="black", linestyle=SATURATION_STYLE,
+                linewidth=0.6, zorder=3)
+        # Region words beside the curve, part of the way from its left end to the critical point.
+        t_mid = max(shown[0][0], t_left) + 0.4 * (tc - max(shown[0][0], t_left))
+        p_mid = _read_on(shown, t_mid)
+        if _finite(p_mid) and tc - max(shown[0][0], t_left) >= 0.3 * (t_right - t_left):
+            ax.annotate("liquid", xy=(T(t_mid), P(p_mid)), xytext=(-10, 12), textcoords="offset points",
+                        ha="right", va="bottom", fontsize=8, fontstyle="italic", zorder=8)
+            ax.annotate("vapour", xy=(T(t_mid), P(p_mid)), xytext=(10, -12), textcoords="offset points",
+                        ha="left", va="top", fontsize=8, fontstyle="italic", zorder=8)
+
+        ref = curves.get("reference")
+        ref_ok = bool(ref) and bool((result["models"].get("reference") or {}).get("applicable"))
+        if ref_ok:
+            iso = [(T(t), P(p)) for t, p in zip(curves.get("temperature_k") or [], ref) if _finite(t) and _finite(p)]
+            if len(iso) >= 2:
+                ax.plot([x for x, _ in iso], [y for _, y in iso], color="black", linestyle="-", linewidth=1.6,
+                        zorder=4, label="Fill isochore (reference EOS)")
+            else:
+                ref_ok = False
+
+        ax.plot([T(tc)], [P(pc)], linestyle="none", marker="o", markersize=8, markerfacecolor="white",
+                markeredgecolor="black", markeredgewidth=1.4, zorder=6, label="Critical point")
+        ax.annotate(f"critical point\n{T(tc):.1f} {_temp_label(t_unit)}, {P(pc):.1f} {p_unit}",
+                    xy=(T(tc), P(pc)), xytext=(7, -4), textcoords="offset points", ha="left", va="top",
+                    fontsize=7.5, bbox=_LABEL_BOX, zorder=8)
+
+        t_full = (result.get("limits") or {}).get("liquid_full_temperature_k")
+        p_full = saturation_reading(result, t_full) if liquid_full_marked(result) else None
+        if _finite(p_full):
+            ax.plot([T(t_full)], [P(p_full)], linestyle="none", marker="s", markersize=7, markerfacecolor="white",
+                    markeredgecolor="black", markeredgewidth=1.3, zorder=7, label="Liquid-full point")
+            ax.annotate("liquid-full", xy=(T(t_full), P(p_full)), xytext=(-7, 4), textcoords="offset points",
+                        ha="right", va="bottom", fontsize=7.5, bbox=_LABEL_BOX, zorder=8)
+
+        p_fill = fill_point_pressure(result, "reference" if ref_ok else None)
+        if _finite(p_fill) and _finite(t_fill):
+            ax.plot([T(t_fill)], [P(p_fill)], linestyle="none", marker="D", markersize=6.5,
+                    markerfacecolor="black", markeredgecolor="black", zorder=7, label="Fill state")
+        peak = result["peak_pressure_pa"]
+        if _finite(peak) and _finite(t_wc):
+            ax.plot([T(t_wc)], [P(peak)], linestyle="none", marker="*", markersize=13, markerfacecolor="black",
+                    markeredgecolor="white", markeredgewidth=0.6, zorder=7,
+                    label="Bounding peak (verdict)" if tolerance_band(result) else "Worst case (governing model)")
+
+        ax.set_xlim(T(t_left), T(t_right))
+        rated, relief = result["rated_pressure_pa"], result["relief_set_pressure_pa"]
+        if _finite(rated):
+            _hline(ax, P(rated), "rated", "-", 1.8, bold=True)
+        if _finite(relief):
+            _hline(ax, P(relief), "relief set", (0, (8, 2, 1.5, 2)), 1.2)
+        ax.margins(y=0.06)
+        ax.set_xlabel(f"Temperature [{_temp_label(t_unit)}]")
+        ax.set_ylabel(f"Pressure [{p_unit}]")
+        ax.grid(True, color="#bbbbbb", linewidth=0.4, linestyle="-")
+        ax.set_axisbelow(True)
+        ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.14), ncol=3, frameon=False, fontsize=7.5,
+                  handlelength=3.2, columnspacing=1.4)
         fig.tight_layout(pad=0.4)
 
         buf = io.StringIO()

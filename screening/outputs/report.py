@@ -35,8 +35,10 @@ from markupsafe import Markup
 
 from screening.constants import R
 from screening.errors import InputError
-from screening.outputs.plot import drawable_models, margin_line_pa, plot_svg, svg_data_uri
-from screening.units import format_percent, format_pressure, format_quantity, format_temperature
+from screening.outputs.plot import CONDENSED_PHASES, drawable_models, liquid_full_marked, margin_line_pa, \
+    phase_diagram_drawable, phase_diagram_svg, phase_diagram_wanted, plot_svg, svg_data_uri, \
+    worst_case_point_temperature
+from screening.units import format_percent, format_pressure, format_quantity, format_temperature, pressure_in
 
 TEMPLATE_NAME = "report.html.j2"
 
@@ -255,6 +257,314 @@ def _text(value) -> str | None:
     return None if value is None else str(value)
 
 
+def _difference_label(label: str) -> str:
+    """The unit of a pressure difference in the display unit's scale ('bar(g)' -> 'bar', 'psig' -> 'psi')."""
+    for suffix in ("(g)", "(a)"):
+        if label.endswith(suffix):
+            return label[: -len(suffix)]
+    try:
+        format_pressure(0.0, label[:-1], 0.0)
+    except KeyError:
+        return label
+    return label[:-1] if label[-1:] in ("g", "a") else label
+
+
+class _Fmt:
+    """The display formatting of one result: pressures, temperatures and differences in its units."""
+
+    def __init__(self, result: dict) -> None:
+        units = result["display_units"]
+        self.p_unit, self.t_unit = units["pressure"], units["temperature"]
+        self.m_unit = units.get("mass", "kg")
+        self.atm = result["site"]["atmospheric_pressure_pa"]
+        self.p_abs_unit = _absolute_label(self.p_unit)
+        self.dp_unit = _difference_label(self.p_unit)
+        try:
+            format_pressure(0.0, self.dp_unit, 0.0)
+        except KeyError:
+            self.dp_unit = "kPa"
+
+    def P(self, pa, digits=None):
+        return format_pressure(pa, self.p_unit, self.atm, digits)
+
+    def Pabs(self, pa):
+        return format_pressure(pa, self.p_abs_unit, self.atm)
+
+    def PP(self, pa):
+        if pa is None:
+            return "\u2014"
+        return self.P(pa) if self.p_abs_unit == self.p_unit else f"{self.P(pa)} = {self.Pabs(pa)}"
+
+    def T(self, k):
+        return format_temperature(k, self.t_unit)
+
+    def TK(self, k):
+        return "\u2014" if k is None else f"{num(k, 2)} K"
+
+    def TT(self, k):
+        """Display temperature and kelvin side by side (one of them when the display unit is K)."""
+        if k is None:
+            return "\u2014"
+        shown = self.T(k)
+        return shown if shown.endswith(" K") else f"{shown} = {self.TK(k)}"
+
+    def dP_value(self, dpa: float) -> float:
+        """A pressure difference [Pa] in the display unit's scale (no gauge offset)."""
+        return pressure_in(dpa, self.dp_unit, self.atm)
+
+    def dP(self, dpa, digits: int = 2):
+        return "\u2014" if dpa is None else f"{num(self.dP_value(dpa), digits)} {self.dp_unit}"
+
+
+def _sci(x: float) -> Markup:
+    """A small or large number as m × 10<sup>e</sup> (two significant figures), plain otherwise."""
+    import math
+
+    if x == 0:
+        return Markup("0")
+    exponent = math.floor(math.log10(abs(x)))
+    if -3 <= exponent < 4:
+        return Markup("{}").format(sig(x, 2))
+    mantissa = x / 10 ** exponent
+    return Markup("{} &times; 10<sup>{}</sup>").format(f"{mantissa:.1f}", _group(str(exponent)))
+
+
+def _exposure_view(result: dict, f: _Fmt) -> dict | None:
+    """The governing scenario's sun energy balance, as rows a reviewer can add up."""
+    b = result.get("exposure")
+    if not b:
+        return None
+
+    def W(x):
+        return _unit(num(x, 2), "W/m\u00b2")
+
+    balance = [
+        ("Absorbed sunlight (direct and ground-reflected)", W(b.get("absorbed_w_m2"))),
+        ("Carried away by convection", W(b.get("convected_w_m2"))),
+        ("Carried away by long-wave radiation", W(b.get("radiated_w_m2"))),
+    ]
+    closure = None
+    if b.get("residual_fraction") is not None:
+        closure = Markup("absorbed = convected + radiated: {} = {} + {}; |absorbed &minus; convected &minus; "
+                         "radiated| is {} of the largest term").format(
+            W(b.get('absorbed_w_m2')), W(b.get('convected_w_m2')), W(b.get('radiated_w_m2')),
+            _sci(b["residual_fraction"]))
+    estimated = b.get("dimensions_estimated")
+    dims = (f"{num(b.get('outside_diameter_m'), 3)} m \u00d7 {num(b.get('length_m'), 3)} m"
+            + (" (estimated from the water capacity)" if estimated else " (as entered)"))
+    inputs = [
+        ("Solar irradiance", _unit(num(b.get("irradiance_w_m2"), 0), "W/m\u00b2")),
+        ("Solar absorptivity of the surface", num(b.get("absorptivity"), 2)),
+        ("Long-wave emissivity of the surface", num(b.get("emissivity"), 2)),
+        ("Wind speed", _unit(num(b.get("wind_speed_m_s"), 1), "m/s")),
+        ("Outside diameter \u00d7 length", dims),
+        ("Orientation", _text(b.get("orientation")) or "\u2014"),
+        ("Ground albedo (solar reflectance)", num(b.get("ground_albedo"), 2)),
+        ("Ambient air temperature", f.TT(b.get("ambient_k"))),
+        ("Sky temperature", f.TT(b.get("sky_temperature_k"))),
+    ]
+    balance.append(("Convection coefficient h", _unit(num(b.get("h_convection_w_m2k"), 3), "W/(m\u00b2\u00b7K)")
+                    + (f" ({b['regime']} convection)" if b.get("regime") else "")))
+    outcome = [("Wall temperature, taken as the gas temperature", f.TT(b.get("wall_temperature_k")))]
+    check = None
+    tw, ta, h, q = (b.get(k) for k in ("wall_temperature_k", "ambient_k", "h_convection_w_m2k", "convected_w_m2"))
+    if None not in (tw, ta, h, q) and tw > ta:
+        check = Markup("q<sub>conv</sub> = h (T<sub>w</sub> &minus; T<sub>a</sub>) = {} W/(m&sup2;&middot;K) &times; "
+                       "({} K &minus; {} K) = {} W/m&sup2;").format(num(h, 4), num(tw, 2), num(ta, 2), num(q, 2))
+    return dict(balance=balance, closure=closure, inputs=inputs, outcome=outcome, check=check,
+                notes=[str(n) for n in b.get("notes") or []],
+                scenario=str(result.get("governing_scenario") or ""))
+
+
+def _scenario_rows(result: dict, f: _Fmt) -> list[dict] | None:
+    """One row per scenario, the governing one marked in words; None for a single scenario."""
+    scenarios = result.get("scenarios") or []
+    if len(scenarios) < 2:
+        return None
+    rows = []
+    for sc in scenarios:
+        code = str(sc.get("verdict"))
+        word = VERDICTS.get(code, dict(mark="?", label=code))
+        rows.append(dict(
+            name=str(sc.get("name")), temperature=f.T(sc.get("worst_case_temperature_k")),
+            basis=str(sc.get("worst_case_basis") or ""), peak=f.P(sc.get("peak_pressure_pa")),
+            margin=format_percent(sc.get("margin_fraction")),
+            verdict=f"{word['mark']} {word['label']}", governs=bool(sc.get("governing")),
+        ))
+    return rows
+
+
+def _tolerance_view(result: dict, f: _Fmt) -> dict | None:
+    """Nominal against bounding peak, the bands as entered, the bounding corner and the sensitivities."""
+    tol = result.get("tolerance")
+    if not tol:
+        return None
+    fill = result["fill"]
+    corner = tol.get("bounding_corner") or {}
+    by_mass = fill.get("pressure_pa") is None
+    no_reading = "no reading (fill by mass)"
+    side = [
+        ("Fill pressure", no_reading if by_mass else f.P(fill["pressure_pa"]),
+         no_reading if corner.get("fill_pressure_pa") is None else f.P(corner["fill_pressure_pa"])),
+        ("Fill temperature", f.T(fill.get("temperature_k")), f.T(corner.get("fill_temperature_k"))),
+        ("Worst-case gas temperature", f.T(result["worst_case_temperature_k"]),
+         f.T(corner.get("worst_case_temperature_k"))),
+        ("Peak pressure, governing model", f.PP(tol.get("nominal_peak_pressure_pa")),
+         f.PP(tol.get("bounding_peak_pressure_pa"))),
+    ]
+    entered = tol.get("entered") or {}
+    bands = [
+        ("tolerance.fill_pressure", _text(entered.get("fill_pressure")) or "not given",
+         "\u00b1 " + f.dP(tol.get("fill_pressure_band_pa"))),
+        ("tolerance.fill_temperature", _text(entered.get("fill_temperature")) or "not given",
+         "\u00b1 " + _unit(num(tol.get("fill_temperature_band_k"), 2), "K")),
+        ("tolerance.gas_temperature", _text(entered.get("gas_temperature")) or "not given",
+         "\u00b1 " + _unit(num(tol.get("gas_temperature_band_k"), 2), "K")),
+    ]
+    sens = tol.get("sensitivities") or {}
+
+    def per_k(x):
+        return "\u2014" if x is None else f"{num(f.dP_value(x), 4)} {f.dp_unit}/K"
+
+    fill_na = " (fill by mass: no fill-pressure reading)" if by_mass else ""
+    sensitivities = [
+        (Markup("&part;P<sub>peak</sub> / &part;T, worst-case gas temperature"), per_k(sens.get("dp_peak_dt_gas"))),
+        (Markup("&part;P<sub>peak</sub> / &part;T<sub>1</sub>, fill temperature at a fixed fill pressure"),
+         per_k(sens.get("dp_peak_dt_fill")) + ("" if sens.get("dp_peak_dt_fill") is not None else fill_na)),
+        (Markup("&part;P<sub>peak</sub> / &part;P<sub>1</sub>, fill pressure"),
+         ("\u2014" if sens.get("dp_peak_dp_fill") is None else f"{num(sens['dp_peak_dp_fill'], 4)} (dimensionless)")
+         + ("" if sens.get("dp_peak_dp_fill") is not None else fill_na)),
+    ]
+    n = tol.get("corners_evaluated")
+    if tol.get("expected_corner_confirmed"):
+        corners = ("The sensitivities of every applicable model have the expected signs (the peak rises with the "
+                   "fill pressure and the gas temperature and falls with the fill temperature), so the expected "
+                   f"corner \u2014 fill pressure high, fill temperature low, gas temperature high \u2014 is the "
+                   f"bounding one; {n} corner{'s' if n != 1 else ''} evaluated.")
+    else:
+        corners = ("Not every sensitivity has the expected sign, so the expected corner is not taken on trust: "
+                   f"all {n} corners of the bands were evaluated and the highest governing peak is the bounding one.")
+    check = None
+    g, tf, pf = sens.get("dp_peak_dt_gas"), sens.get("dp_peak_dt_fill"), sens.get("dp_peak_dp_fill")
+    nominal = tol.get("nominal_peak_pressure_pa")
+    if nominal is not None and g is not None:
+        terms = [Markup("{}").format(f.Pabs(nominal))]
+        if pf is not None and tol.get("fill_pressure_band_pa"):
+            terms.append(Markup("{} &times; {}").format(num(pf, 4), f.dP(tol["fill_pressure_band_pa"], 2)))
+        if tf is not None and tol.get("fill_temperature_band_k"):
+            terms.append(Markup("{} {}/K &times; {} K").format(num(abs(f.dP_value(tf)), 4), f.dp_unit,
+                                                                  num(tol["fill_temperature_band_k"], 2)))
+        if tol.get("gas_temperature_band_k"):
+            terms.append(Markup("{} {}/K &times; {} K").format(num(f.dP_value(g), 4), f.dp_unit,
+                                                                  num(tol["gas_temperature_band_k"], 2)))
+        check = Markup("First order: P<sub>bound</sub> &asymp; ") + Markup(" + ").join(terms) + Markup(
+            "; this should come close to the bounding peak, {} (not equal it: the isochores are not straight)."
+        ).format(f.Pabs(tol.get("bounding_peak_pressure_pa")))
+    return dict(side=side, bands=bands, sensitivities=sensitivities, corners=corners, check=check,
+                bounding_model=MODEL_TITLES.get(str((result.get("curves") or {}).get("bounding_model")), ""))
+
+
+def _phase_view(result: dict, f: _Fmt) -> dict | None:
+    """Phase diagram and filling-ratio paragraph of a liquefiable or condensed fill."""
+    if not phase_diagram_wanted(result):
+        return None
+    fill, vessel, limits = result["fill"], result["vessel"], result.get("limits") or {}
+    ref = (result.get("models") or {}).get("reference") or {}
+    pd = result.get("phase_diagram")
+    t_fill, t_wc = fill["temperature_k"], result["worst_case_temperature_k"]
+    rows = [
+        ("Fill density", _unit(sig(fill.get("density_kg_m3"), 6), "kg/m\u00b3")),
+        ("Filling ratio (fill mass per litre of water capacity)", _unit(num(fill.get("filling_ratio_kg_per_l"), 4), "kg/L")),
+        ("Largest filling ratio allowed for the vessel",
+         "not stated in the case" if vessel.get("max_filling_ratio_kg_per_l") is None
+         else _unit(num(vessel["max_filling_ratio_kg_per_l"], 4), "kg/L")),
+        ("Phase at fill / at the worst case",
+         f"{_text(ref.get('phase_fill') or fill.get('phase')) or '—'} / {_text(ref.get('phase_peak')) or '—'}"),
+    ]
+    if fill.get("vapour_pressure_pa") is not None:
+        rows.append(("Vapour pressure at the fill temperature", f.P(fill["vapour_pressure_pa"])))
+    if pd:
+        rows += [
+            ("Critical point", f"{f.TT(pd.get('critical_temperature_k'))}, {f.PP(pd.get('critical_pressure_pa'))}"),
+            ("Critical density", _unit(sig(pd.get("critical_density_kg_m3"), 5), "kg/m\u00b3")
+             + f" = {num((pd.get('critical_density_kg_m3') or 0.0) / 1000.0, 4)} kg/L"
+             if pd.get("critical_density_kg_m3") is not None else "\u2014"),
+        ]
+    t_lf, t_do = limits.get("liquid_full_temperature_k"), limits.get("dry_out_temperature_k")
+    rows.append(("Liquid-full temperature", "none reported" if t_lf is None else f.TT(t_lf)
+                 + (" (at or below the fill temperature)" if t_lf <= t_fill else "")))
+    if t_do is not None and t_do >= t_fill:
+        rows.append(("Temperature at which the last liquid evaporates", f.TT(t_do)))
+    if limits.get("max_fill_mass_kg") is not None:
+        rows.append(("Highest fill mass (filling ratio)",
+                     f"{format_quantity(limits['max_fill_mass_kg'], f.m_unit, 3)} "
+                     f"({num(limits.get('max_filling_ratio_kg_per_l'), 4)} kg/L)"))
+
+    paras = []
+    ratio = fill.get("filling_ratio_kg_per_l")
+    if ratio is not None:
+        paras.append(f"The fill is {format_quantity(fill.get('mass_kg'), f.m_unit, 3)} in "
+                     f"{format_quantity(vessel['water_capacity_m3'], 'L')} of water capacity: a fill density of "
+                     f"{sig(fill.get('density_kg_m3'), 5)} kg/m\u00b3, that is a filling ratio of {num(ratio, 4)} kg/L"
+                     + ("." if vessel.get("max_filling_ratio_kg_per_l") is None else
+                        f", against the vessel's largest allowed filling ratio of "
+                        f"{num(vessel['max_filling_ratio_kg_per_l'], 4)} kg/L."))
+    if t_lf is not None:
+        if t_lf > t_fill:
+            text = (f"As the contents warm, the liquid expands into the vapour space; at {f.TT(t_lf)}, the "
+                    "liquid-full temperature, it fills the whole vessel. Below that temperature the pressure is the "
+                    "vapour pressure and climbs slowly; above it no vapour space is left, and the pressure of the "
+                    "compressed liquid rises by many bar per kelvin, so a small error in the temperature or in the "
+                    "fill mass means a large error in pressure.")
+        else:
+            text = (f"The fill is denser than the fluid at its critical point. The reported liquid-full temperature, "
+                    f"{f.TT(t_lf)}, is at or below the fill temperature: there is no vapour space between the fill "
+                    "and the worst case, so no boiling liquid sets the pressure; the isochore of the single dense "
+                    "phase does.")
+        if t_lf > t_fill:
+            text += (" The worst-case temperature is above it." if t_wc >= t_lf
+                     else " The worst-case temperature stays below it.")
+        paras.append(text)
+    elif t_do is not None and t_do >= t_fill:
+        paras.append(f"The fill is less dense than at the critical point: on heating the liquid evaporates, the "
+                     f"last of it at {f.TT(t_do)}; above that the contents are gas and the pressure rises gently.")
+    if limits.get("max_fill_mass_kg") is not None:
+        paras.append(f"The highest fill mass for this vessel and worst case is "
+                     f"{format_quantity(limits['max_fill_mass_kg'], f.m_unit, 3)} (filling ratio "
+                     f"{num(limits.get('max_filling_ratio_kg_per_l'), 4)} kg/L), set by "
+                     f"{_text(limits.get('max_fill_mass_basis')) or 'the limits of the screening'}.")
+    drawable = phase_diagram_drawable(result)
+    no_plot = None
+    if not drawable:
+        no_plot = ("The result carries no vapour-pressure curve for this gas (only a pure fluid has a single "
+                   "saturation curve), so no phase diagram is drawn.")
+    return dict(rows=rows, paras=paras, plot_uri=svg_data_uri(phase_diagram_svg(result)) if drawable else None,
+                no_plot=no_plot, liquid_full=liquid_full_marked(result))
+
+
+def _condensed_note(result: dict) -> str | None:
+    """The method section's statement for liquid and two-phase states."""
+    ref = (result.get("models") or {}).get("reference") or {}
+    fill_phase = ref.get("phase_fill") or result["fill"].get("phase")
+    peak_phase = ref.get("phase_peak")
+    where = []
+    if fill_phase in CONDENSED_PHASES:
+        where.append(f"{fill_phase} at fill")
+    if peak_phase in CONDENSED_PHASES:
+        where.append(f"{peak_phase} at the worst-case temperature")
+    if not where:
+        return None
+    text = ("The contents are " + " and ".join(where) + ". The ideal-gas law and the generalized (Lee\u2013Kesler) "
+            "correlation describe a single gas phase only, so they do not apply to a liquid or a liquid\u2013vapour "
+            "mixture; ")
+    if ref.get("applicable"):
+        text += ("the reference equation of state, which covers the liquid, the vapour and the two-phase region, "
+                 "governs.")
+    else:
+        text += "the reference equation of state does not apply either, so no pressure is claimed."
+    return text
+
+
 def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
     """Everything the template shows, as strings (and lists of strings), from the result dict."""
     units = result["display_units"]
@@ -304,9 +614,25 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
 
     # Key figures under the verdict.
     m_line = margin_line_pa(result)
-    key_figures = [
-        ("Peak pressure (governing model)", P(result["peak_pressure_pa"])),
-        ("at worst-case gas temperature", f"{T(t_peak)} ({result['worst_case_basis']})"),
+    tol = result.get("tolerance")
+    bounding = bool(tol) and tol.get("bounding_peak_pressure_pa") is not None
+    scenarios = result.get("scenarios") or []
+    key_figures = []
+    if len(scenarios) > 1:
+        key_figures.append(("Governing scenario", f"{result.get('governing_scenario')} (the worst of {len(scenarios)})"))
+    if bounding:
+        key_figures += [
+            ("Peak pressure, bounding the input tolerances", P(result["peak_pressure_pa"])),
+            ("at gas temperature", f"{T(worst_case_point_temperature(result))} (worst case "
+             f"{T(t_peak)} + {num(tol.get('gas_temperature_band_k'), 1)} K; {result['worst_case_basis']})"),
+            ("Nominal peak pressure", P(tol.get("nominal_peak_pressure_pa"))),
+        ]
+    else:
+        key_figures += [
+            ("Peak pressure (governing model)", P(result["peak_pressure_pa"])),
+            ("at worst-case gas temperature", f"{T(t_peak)} ({result['worst_case_basis']})"),
+        ]
+    key_figures += [
         ("Rated pressure", P(result["rated_pressure_pa"])),
         ("Margin to rated", format_percent(result["margin_fraction"])),
         ("Required margin", format_percent(result["required_margin_fraction"])
@@ -421,7 +747,7 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
 
     # Margin section.
     margin_rows = [
-        ("Peak pressure", PP(result['peak_pressure_pa'])),
+        ("Peak pressure" + (", bounding the input tolerances" if bounding else ""), PP(result['peak_pressure_pa'])),
         ("Rated pressure", PP(result['rated_pressure_pa'])),
         ("Rated \u00d7 (1 \u2212 required margin), on gauge pressure", P(m_line)),
         (Markup("Margin to rated, 1 &minus; P<sub>2,g</sub> / P<sub>rated,g</sub>"), format_percent(result["margin_fraction"], 2)),
@@ -460,6 +786,25 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
 
     eos_refs = [str(x) for x in (models.get("reference") or {}).get("eos_references") or []]
 
+    fmt = _Fmt(result)
+    exposure = _exposure_view(result, fmt)
+    scenario_rows = _scenario_rows(result, fmt)
+    tolerance = _tolerance_view(result, fmt)
+    phase = _phase_view(result, fmt)
+    order = ["inputs", "exposure", "method"] + (["phase"] if phase else []) + (["tolerance"] if tolerance else []) \
+        + ["margin", "limits", "assumptions", "references", "signoff"]
+    sections = {key: str(i) for i, key in enumerate(order, start=1)}
+    if exposure is None:
+        basis = str(result["worst_case_basis"])
+        worst_case_line = (f"The worst-case gas temperature, {T(t_peak)}, is the {basis}"
+                           + (f" of the governing scenario, \u2018{result.get('governing_scenario')}\u2019" if scenario_rows else "")
+                           + ". No sun exposure is modelled for it, so no energy balance is shown.")
+    else:
+        worst_case_line = (f"The worst-case gas temperature, {T(t_peak)}, is the {result['worst_case_basis']}"
+                           + (f" of the governing scenario, \u2018{exposure['scenario']}\u2019" if scenario_rows else "")
+                           + ": the steady wall temperature at which the sunlight absorbed balances the heat "
+                             "carried away by convection and radiation. The gas is taken at the wall temperature.")
+
     created = f"{report_date.isoformat()}T00:00:00Z"
     cautions = result["cautions"]
     description = _text(result.get("description"))
@@ -495,6 +840,9 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
         margin_rows=margin_rows, margin_check=margin_check,
         limit_rows=limit_rows, limits_note=_text(limits.get("note")) or "",
         plot_uri=svg_data_uri(plot_svg(result)) if drawable_models(result) else None,
+        sections=sections, exposure=exposure, worst_case_line=worst_case_line, scenarios=scenario_rows,
+        scenario_tolerance=bounding, tolerance=tolerance, phase=phase, condensed_note=_condensed_note(result),
+        governing_scenario=_text(result.get("governing_scenario")) or "",
         p_unit=p_unit, t_unit=format_temperature(0.0, t_unit).split(" ", 1)[1],
         R=str(R),
         caution=str(cautions["caution"]), short_caution=str(cautions["short_caution"]),
