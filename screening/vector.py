@@ -22,8 +22,8 @@ tolerances and sun exposure, and any row where a vectorised step is not sure of 
 the edge of a model's range, a solve that did not settle). Those rows give exactly the single-case result.
 
 The result of a row has the keys of ``screen_case``; its numbers agree with it to the solve tolerance
-(about 1e-9 relative; ``screen_case`` stops its limit solves there). ``curves`` is None: the isochore
-curves are computed only for the rows a report details (via ``screen_case``).
+(about 1e-9 relative; ``screen_case`` stops its limit solves there). ``curves`` and ``phase_diagram`` are None
+(plot data): the batch report computes curves only for the rows it details.
 """
 
 from __future__ import annotations
@@ -519,7 +519,7 @@ def _assemble(case, fluid, eos_refs, worst, t_fill, t_peak, rho_molar, rho_mass,
         "required_margin_fraction": case.required_margin,
         "required_margin_is_default": case.required_margin_is_default,
         "margin_fraction": margin, "relief_margin_fraction": relief_margin,
-        "limits": limits, "curves": None,
+        "limits": limits, "curves": None, "phase_diagram": None,
         "inputs": list(case.inputs), "display_units": dict(case.display_units),
         "cautions": _CAUTIONS,
     }
@@ -546,6 +546,8 @@ def single(case: Case) -> dict:
     """One row through the per-row path (screen.screen_case); curves dropped, as on the vectorised path."""
     r = _screen.screen_case(case)
     r["curves"] = None
+    if "phase_diagram" in r:
+        r["phase_diagram"] = None
     return r
 
 
