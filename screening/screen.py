@@ -158,6 +158,7 @@ class FillState:
     liquid_full_temperature: float | None = None
     dry_out_temperature: float | None = None
     dp_dt_after_liquid_full: float | None = None
+    crossing_pressure: float | None = None      # [Pa] where the isochore leaves the dome
     vapour_pressure_fill: float | None = None
     fluid: ReferenceFluid | None = None
     fluid_error: str | None = None
@@ -218,6 +219,7 @@ def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> Fil
             fs.liquid_full_temperature = ph.liquid_full_temperature
             fs.dry_out_temperature = ph.dry_out_temperature
             fs.dp_dt_after_liquid_full = ph.dp_dt_after_liquid_full
+            fs.crossing_pressure = ph.crossing_pressure
         else:
             fs.phase_fill = fluid.phase(rho_molar, t_fill)
             fs.phase_peak = fluid.phase(rho_molar, t_peak)
@@ -580,6 +582,8 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
         "note": "no real-gas model applies, so no limit is given"}
     limits["liquid_full_temperature_k"] = fs.liquid_full_temperature
     limits["dry_out_temperature_k"] = fs.dry_out_temperature
+    limits["phase_boundary_pressure_pa"] = fs.crossing_pressure
+    limits["dp_dt_after_liquid_full_pa_k"] = fs.dp_dt_after_liquid_full
 
     mass = fs.rho_mass * case.water_capacity_m3 if fs.rho_mass is not None else None
     fill_rho_molar = (fs.rho_mass / case.gas.molar_mass) if fs.rho_mass is not None else \
@@ -617,6 +621,8 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
         "required_margin_fraction": case.required_margin,
         "required_margin_is_default": case.required_margin_is_default,
         "margin_fraction": margin, "relief_margin_fraction": relief_margin,
+        "nominal_margin_fraction": (1.0 - (governing.peak_pa - atm) / (case.rated_pressure_pa - atm)
+                                    if governing else None),
         "limits": limits,
         "curves": _curves(models, t_fill, t_peak, limits, _bounding_model(case, tolerance)),
         "phase_diagram": _phase_diagram(fs),
@@ -752,7 +758,7 @@ def _worst_case_temperature(case: Case, sc: Exposure, warnings: list) -> tuple[f
                 raise InputError(exc.message, file=case.source, key=f"{sc.key}.finish", given=sc.finish,
                                  expected=exc.expected) from None
             alpha, eps_default = fin.absorptivity, fin.emissivity
-            notes.append(f"Finish '{fin.name}': absorptivity {fin.absorptivity:.2f}, emissivity "
+            notes.append(f"Finish '{fin.label or fin.name}': absorptivity {fin.absorptivity:.2f}, emissivity "
                          f"{fin.emissivity:.2f} ({fin.source}).")
         elif sc.absorptivity is not None:
             alpha, eps_default = sc.absorptivity, DEFAULT_EMISSIVITY
