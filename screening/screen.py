@@ -20,9 +20,14 @@ from screening.inputs.case import Case, Exposure, load_case, parse_case_text
 from screening.physics.eos.generalized import lee_kesler_density, lee_kesler_pressure, pseudocritical
 from screening.physics.eos.ideal import ideal_gas_density, ideal_gas_pressure
 from screening.physics.eos.reference import ReferenceFluid, reference_fluid
+from screening.physics.exposure import (
+    DEFAULT_ASPECT_RATIO,
+    DEFAULT_IRRADIANCE,
+    estimate_dimensions,
+    finish,
+    solar_wall_temperature,
+)
 from screening.physics.gases import Mixture
-from screening.physics.exposure import DEFAULT_ASPECT_RATIO, DEFAULT_IRRADIANCE, estimate_dimensions, finish, \
-    solar_wall_temperature
 from screening.physics.isochore import isochore_phases, max_liquid_density
 
 VERDICTS = ("within", "low-margin", "over", "out-of-scope")

@@ -24,8 +24,8 @@ from screening.constants import (
     LAPSE_RATE_STANDARD_ATMOSPHERE,
     M_AIR_STANDARD_ATMOSPHERE,
     P_STANDARD_ATMOSPHERE,
-    R,
     T0_STANDARD_ATMOSPHERE,
+    R,
 )
 from screening.errors import InputError
 

@@ -6,14 +6,13 @@ virial coefficient), worked-example values from Smith, Van Ness & Abbott (quoted
 memory, said so on the line), and hand arithmetic.
 """
 
+import CoolProp.CoolProp as CP
 import numpy as np
 import pytest
-from hypothesis import given
-from hypothesis import strategies as st
-
-import CoolProp.CoolProp as CP
 from chemicals.vapor_pressure import Lee_Kesler as chemicals_lee_kesler_psat
 from chemicals.virial import BVirial_Abbott
+from hypothesis import given
+from hypothesis import strategies as st
 
 from screening.constants import R
 from screening.errors import InputError, NotApplicable

@@ -10,7 +10,11 @@ from hypothesis import strategies as st
 
 from screening.errors import NotApplicable
 from screening.physics.eos.reference import reference_fluid
-from screening.physics.isochore import isochore_phases, max_liquid_density, temperature_at_pressure_on_isochore
+from screening.physics.isochore import (
+    isochore_phases,
+    max_liquid_density,
+    temperature_at_pressure_on_isochore,
+)
 
 
 def pure(name):

@@ -4,7 +4,8 @@ import textwrap
 
 import CoolProp.CoolProp as CP
 import pytest
-from hypothesis import given, settings, strategies as st
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from screening.cli import main
 from screening.screen import screen_text

@@ -3,7 +3,8 @@
 import math
 
 import pytest
-from hypothesis import given, strategies as st
+from hypothesis import given
+from hypothesis import strategies as st
 
 from screening.errors import InputError
 from screening.units import (
@@ -14,6 +15,7 @@ from screening.units import (
     temperature_in,
     to_absolute_pressure,
 )
+
 
 # Conversion factors: exact by definition (1 bar = 1e5 Pa; 1 psi = 6894.757293168 Pa;
 # 1 ft = 0.3048 m exactly; T[K] = T[degC] + 273.15; T[degF] = T[degC] * 9/5 + 32) — SI brochure / NIST SP 811.

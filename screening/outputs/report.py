@@ -35,9 +35,18 @@ from markupsafe import Markup
 
 from screening.constants import R
 from screening.errors import InputError
-from screening.outputs.plot import CONDENSED_PHASES, drawable_models, liquid_full_marked, margin_line_pa, \
-    phase_diagram_drawable, phase_diagram_svg, phase_diagram_wanted, plot_svg, svg_data_uri, \
-    worst_case_point_temperature
+from screening.outputs.plot import (
+    CONDENSED_PHASES,
+    drawable_models,
+    liquid_full_marked,
+    margin_line_pa,
+    phase_diagram_drawable,
+    phase_diagram_svg,
+    phase_diagram_wanted,
+    plot_svg,
+    svg_data_uri,
+    worst_case_point_temperature,
+)
 from screening.units import format_percent, format_pressure, format_quantity, format_temperature, pressure_in
 
 TEMPLATE_NAME = "report.html.j2"

@@ -28,9 +28,9 @@ import os
 import re
 from functools import lru_cache
 
-import numpy as np
 import CoolProp
 import CoolProp.CoolProp as CP
+import numpy as np
 
 from screening.errors import NotApplicable
 
