@@ -55,6 +55,21 @@ class Model:
     isochore: Callable[[float], float] | None = None      # T [K] -> p [Pa] at the fill density
     fill_to_peak: Callable[[float], float] | None = None   # p_fill [Pa] -> p_peak [Pa]
     extra: dict = field(default_factory=dict)
+    #: T array [K] -> p array [Pa], NaN where the model does not apply (a vectorised isochore, if any)
+    isochore_array: Callable[[np.ndarray], np.ndarray] | None = None
+
+    def isochore_values(self, temperatures: np.ndarray) -> list[float | None]:
+        """The isochore at many temperatures; None where the model does not apply."""
+        if self.isochore_array is not None:
+            return [float(v) if math.isfinite(v) else None for v in self.isochore_array(temperatures)]
+        values: list[float | None] = []
+        for t in temperatures:
+            try:
+                v = self.isochore(float(t))
+                values.append(float(v) if math.isfinite(v) else None)
+            except NotApplicable:
+                values.append(None)
+        return values
 
     def as_dict(self) -> dict:
         return {"applicable": self.applicable, "peak_pressure_pa": self.peak_pa, "note": self.note,
@@ -144,9 +159,17 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
         r = float(_lk_density(arrays, p, t_fill)[0].molar_density[0])
         return float(_lk_pressure(arrays, r, t_peak)[0].pressure[0])
 
+    def isochore_array(ts: np.ndarray) -> np.ndarray:
+        ts = np.asarray(ts, dtype=float)
+        tc, pc, om = pseudocritical(arrays["fractions"], arrays["tc"], arrays["pc"], arrays["omega"],
+                                    arrays["molar_mass"], arrays["quantum"], arrays["tc_classical"],
+                                    arrays["pc_classical"], ts)
+        state = lee_kesler_pressure(np.full_like(ts, rho), ts, tc, pc, om)
+        return np.where(state.valid, state.pressure, np.nan)
+
     return Model("generalized", True, "Lee–Kesler corresponding states"
                  + (" with Kay's rule" if not case.gas.is_pure else ""),
-                 float(peak.pressure[0]), rho, isochore, fill_to_peak, extra)
+                 float(peak.pressure[0]), rho, isochore, fill_to_peak, extra, isochore_array)
 
 
 # ----------------------------------------------------------------------------- phase and reference
@@ -460,22 +483,9 @@ def _curves(models: list[Model], t_fill: float, t_peak: float, limits: dict,
         if not m.applicable or m.isochore is None:
             out[m.name] = None
             continue
-        values = []
-        for t in grid:
-            try:
-                v = m.isochore(float(t))
-                values.append(float(v) if math.isfinite(v) else None)
-            except NotApplicable:
-                values.append(None)
-        out[m.name] = values
+        out[m.name] = m.isochore_values(grid)
     if bounding is not None and bounding.isochore is not None:
-        values = []
-        for t in grid:
-            try:
-                values.append(float(bounding.isochore(float(t))))
-            except NotApplicable:
-                values.append(None)
-        out["bounding"] = values
+        out["bounding"] = bounding.isochore_values(grid)
         out["bounding_model"] = bounding.name
     return out
 
