@@ -122,6 +122,11 @@ def main(argv: list[str] | None = None) -> None:
     except InputError as exc:
         print(f"screening: input error: {exc}", file=sys.stderr)
         code = EXIT_INPUT
+    except RuntimeError as exc:  # the report layout failed (e.g. a missing template); nothing was written
+        if type(exc).__name__ != "ReportRenderError":
+            raise
+        print(f"screening: report error: {exc}; no report was written", file=sys.stderr)
+        code = EXIT_INPUT
     except KeyboardInterrupt:
         code = 130
     sys.exit(code)
