@@ -402,6 +402,15 @@ def _group(cases: list[Case]) -> list[dict | None]:
             tc = fluid.critical_temperature
             fallback[live[(t_peak[live] <= _screen.DENSE_FLUID_TEMPERATURE_RATIO * tc) | (t_fill[live] < tc)]] = True
 
+    # vapour pressure where the isochore leaves the dome (isochore.isochore_phases: crossing_pressure)
+    crossing = np.full(n, np.nan)
+    for k in np.flatnonzero(~fallback & np.isfinite(dry)):
+        try:
+            crossing[k] = (fluid.critical_pressure if dry[k] >= fluid.critical_temperature
+                           else fluid.vapour_pressure(float(dry[k])))
+        except NotApplicable:
+            fallback[k] = True
+
     out: list[dict | None] = []
     eos_refs = fluid.eos_references()
     for k, case in enumerate(cases):
@@ -416,13 +425,14 @@ def _group(cases: list[Case]) -> list[dict | None]:
             None if math.isnan(dry[k]) else float(dry[k]),
             None if math.isnan(max_t[k]) else float(max_t[k]),
             None if math.isnan(max_p[k]) else float(max_p[k]), float(target[k]), pure,
-            None if math.isnan(mass_rho[k]) else float(mass_rho[k])))
+            None if math.isnan(mass_rho[k]) else float(mass_rho[k]),
+            None if math.isnan(crossing[k]) else float(crossing[k])))
     return out
 
 
 def _assemble(case, fluid, eos_refs, worst, t_fill, t_peak, rho_molar, rho_mass, rho_ref, peak_ref, rho_ideal,
               peak_ideal, gf, gp, k, lk_ok, lk_reason, consts_fill, consts_peak, dry, max_t, max_p, target,
-              pure, mass_rho) -> dict:
+              pure, mass_rho, crossing) -> dict:
     """One row's result dict, laid out as screen.screen_case lays out a single-scenario result."""
     atm = case.site.atmospheric_pressure_pa
     warnings: list[dict] = []
@@ -488,7 +498,8 @@ def _assemble(case, fluid, eos_refs, worst, t_fill, t_peak, rho_molar, rho_mass,
                       "max_fill_mass_basis": basis}
     limits = {**mass_limit, "max_gas_temperature_k": max_t, "max_fill_pressure_pa": max_p, "target_peak_pressure_pa": target,
               "note": "solved on each applicable real-gas model; the lowest (most conservative) value is given",
-              "liquid_full_temperature_k": None, "dry_out_temperature_k": dry}
+              "liquid_full_temperature_k": None, "dry_out_temperature_k": dry,
+              "phase_boundary_pressure_pa": crossing, "dp_dt_after_liquid_full_pa_k": None}
     fill_rho_molar = rho_mass / case.gas.molar_mass
     mass = rho_mass * case.water_capacity_m3
     rho_m = fill_rho_molar * case.gas.molar_mass
@@ -519,6 +530,7 @@ def _assemble(case, fluid, eos_refs, worst, t_fill, t_peak, rho_molar, rho_mass,
         "required_margin_fraction": case.required_margin,
         "required_margin_is_default": case.required_margin_is_default,
         "margin_fraction": margin, "relief_margin_fraction": relief_margin,
+        "nominal_margin_fraction": 1.0 - (peak - atm) / (case.rated_pressure_pa - atm),
         "limits": limits, "curves": None, "phase_diagram": None,
         "inputs": list(case.inputs), "display_units": dict(case.display_units),
         "cautions": _CAUTIONS,
