@@ -57,6 +57,8 @@ class Model:
     extra: dict = field(default_factory=dict)
     #: T array [K] -> p array [Pa], NaN where the model does not apply (a vectorised isochore, if any)
     isochore_array: Callable[[np.ndarray], np.ndarray] | None = None
+    #: p_fill array [Pa] -> p_peak array [Pa], NaN where the model does not apply
+    fill_to_peak_array: Callable[[np.ndarray], np.ndarray] | None = None
 
     def isochore_values(self, temperatures: np.ndarray) -> list[float | None]:
         """The isochore at many temperatures; None where the model does not apply."""
@@ -159,17 +161,27 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
         r = float(_lk_density(arrays, p, t_fill)[0].molar_density[0])
         return float(_lk_pressure(arrays, r, t_peak)[0].pressure[0])
 
+    def constants_at(ts: np.ndarray):
+        return pseudocritical(arrays["fractions"], arrays["tc"], arrays["pc"], arrays["omega"],
+                              arrays["molar_mass"], arrays["quantum"], arrays["tc_classical"],
+                              arrays["pc_classical"], ts)
+
     def isochore_array(ts: np.ndarray) -> np.ndarray:
         ts = np.asarray(ts, dtype=float)
-        tc, pc, om = pseudocritical(arrays["fractions"], arrays["tc"], arrays["pc"], arrays["omega"],
-                                    arrays["molar_mass"], arrays["quantum"], arrays["tc_classical"],
-                                    arrays["pc_classical"], ts)
-        state = lee_kesler_pressure(np.full_like(ts, rho), ts, tc, pc, om)
+        state = lee_kesler_pressure(np.full_like(ts, rho), ts, *constants_at(ts))
         return np.where(state.valid, state.pressure, np.nan)
+
+    def fill_to_peak_array(ps: np.ndarray) -> np.ndarray:
+        ps = np.asarray(ps, dtype=float)
+        t1, t2 = np.full_like(ps, t_fill), np.full_like(ps, t_peak)
+        fill_state = lee_kesler_density(ps, t1, *constants_at(t1))
+        rho_fill = np.where(fill_state.valid, fill_state.molar_density, 1.0)
+        peak_state = lee_kesler_pressure(rho_fill, t2, *constants_at(t2))
+        return np.where(fill_state.valid & peak_state.valid, peak_state.pressure, np.nan)
 
     return Model("generalized", True, "Lee–Kesler corresponding states"
                  + (" with Kay's rule" if not case.gas.is_pure else ""),
-                 float(peak.pressure[0]), rho, isochore, fill_to_peak, extra, isochore_array)
+                 float(peak.pressure[0]), rho, isochore, fill_to_peak, extra, isochore_array, fill_to_peak_array)
 
 
 # ----------------------------------------------------------------------------- phase and reference
@@ -308,9 +320,11 @@ def _reference(case: Case, fs: FillState, t_fill: float, t_peak: float) -> Model
 
 # ----------------------------------------------------------------------------- limits
 
-def _root(f: Callable[[float], float], lo: float, hi: float, n: int = 24) -> float | None:
+def _root(f: Callable[[float], float], lo: float, hi: float, n: int = 24,
+          f_array: Callable[[np.ndarray], np.ndarray] | None = None) -> float | None:
     """A root of f in [lo, hi]: scan for the first sign change, then Brent. None where f has no sign change
-    or cannot be evaluated. A scan step whose ends cannot be evaluated is passed over."""
+    or cannot be evaluated. A scan step whose ends cannot be evaluated is passed over. `f_array`, where
+    given, evaluates the scan in one vectorised call (NaN where f cannot be evaluated)."""
     try:  # the functions solved here are monotonic: try the whole bracket first
         f_lo, f_hi = f(lo), f(hi)
         if f_lo == 0.0:
@@ -320,10 +334,16 @@ def _root(f: Callable[[float], float], lo: float, hi: float, n: int = 24) -> flo
     except NotApplicable:
         pass
     xs = np.linspace(lo, hi, n)
+    scanned = f_array(xs) if f_array is not None else None
     prev_x, prev_f = None, None
-    for x in xs:
+    for k, x in enumerate(xs):
         try:
-            fx = f(float(x))
+            if scanned is not None:
+                if not math.isfinite(scanned[k]):
+                    raise NotApplicable("scan", "outside the model's range")
+                fx = float(scanned[k])
+            else:
+                fx = f(float(x))
         except NotApplicable:
             prev_x, prev_f = None, None
             continue
@@ -346,14 +366,18 @@ def _limits(case: Case, models: list[Model], t_fill: float, t_peak: float) -> di
     t_hi = max(t_peak, t_fill) + 300.0
     max_t = []
     for m in real:
-        t = _root(lambda t, m=m: m.isochore(t) - case.rated_pressure_pa, t_lo, t_hi, n=40)
+        t = _root(lambda t, m=m: m.isochore(t) - case.rated_pressure_pa, t_lo, t_hi, n=40,
+                  f_array=(lambda ts, m=m: m.isochore_array(ts) - case.rated_pressure_pa)
+                  if m.isochore_array is not None else None)
         if t is not None:
             max_t.append(t)
     max_p = []
     if case.fill_pressure_pa is not None:
         for m in real:
             p = _root(lambda p, m=m: m.fill_to_peak(p) - target, case.site.atmospheric_pressure_pa * 1.01,
-                      max(target, case.fill_pressure_pa) * max(1.0, t_fill / t_peak) * 1.05, n=40)
+                      max(target, case.fill_pressure_pa) * max(1.0, t_fill / t_peak) * 1.05, n=40,
+                      f_array=(lambda ps, m=m: m.fill_to_peak_array(ps) - target)
+                      if m.fill_to_peak_array is not None else None)
             if p is not None and abs(m.fill_to_peak(p) - target) <= 1e-6 * target:
                 max_p.append(p)
     mass_limit = _mass_limit(case, models, t_fill, t_peak, target)

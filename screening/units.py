@@ -16,6 +16,7 @@ from __future__ import annotations
 import math
 import re
 from dataclasses import dataclass
+from functools import lru_cache
 
 import pint
 
@@ -148,8 +149,7 @@ class Reading:
 
     def si(self) -> float:
         """Value in SI [Pa, K, m3, kg, -, kg/m3, m, m/s, W/m2]; for a pressure, as written (no basis applied)."""
-        q = ureg.Quantity(self.number, ureg.Unit(self.unit.pint_name))
-        return float(q.to(ureg.Unit(_SI_UNIT[self.kind])).magnitude)
+        return _to_si(self.number, self.unit.pint_name, self.kind)
 
     def si_difference(self) -> float:
         """Value as a difference (temperature tolerances: 2 degC is a 2 K difference) [SI]."""
@@ -157,6 +157,13 @@ class Reading:
             scale = {"kelvin": 1.0, "degree_Celsius": 1.0, "degree_Fahrenheit": 5.0 / 9.0}[self.unit.pint_name]
             return self.number * scale
         return self.si()
+
+
+@lru_cache(maxsize=65536)
+def _to_si(number: float, pint_name: str, kind: str) -> float:
+    """pint conversion of an allowlisted unit to SI; cached, since an inventory repeats its values."""
+    q = ureg.Quantity(number, ureg.Unit(pint_name))
+    return float(q.to(ureg.Unit(_SI_UNIT[kind])).magnitude)
 
 
 def _split(text: object, *, where: dict) -> tuple[float, str]:
