@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import contextlib
 import csv
-import io
 import json
 import math
 import os
@@ -20,7 +19,7 @@ from pathlib import Path
 
 from screening.errors import InputError
 from screening.inputs.inventory import Inventory, load_defaults, read_inventory, row_case
-from screening.units import format_percent, format_pressure, format_quantity, format_temperature
+from screening.units import format_percent, format_pressure, format_temperature
 
 EXIT_WITHIN, EXIT_NOT_WITHIN, EXIT_INPUT = 0, 1, 2
 ORDER = ("input-error", "out-of-scope", "over", "low-margin", "within")

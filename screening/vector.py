@@ -34,13 +34,13 @@ from typing import Callable, Iterable
 import numpy as np
 
 from screening import __version__
+from screening import screen as _screen
 from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
 from screening.constants import R
 from screening.errors import InputError, NotApplicable
 from screening.inputs.case import Case
 from screening.physics.eos.generalized import lee_kesler_density, lee_kesler_pressure, pseudocritical
 from screening.physics.eos.reference import ReferenceFluid, reference_fluid
-from screening import screen as _screen
 
 #: Number of scan points screen._limits uses (kept equal so the bracket checks agree).
 _SCAN_N = 40

@@ -1,10 +1,10 @@
 """The vectorised batch engine against the single-case screening and against CoolProp."""
 
-import math
 
 import CoolProp.CoolProp as CP
 import pytest
-from hypothesis import HealthCheck, given, settings, strategies as st
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
 
 from screening import vector
 from screening.inputs.case import parse_case_data

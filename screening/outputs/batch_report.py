@@ -17,7 +17,12 @@ import numpy as np
 from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
 from screening.outputs.plot import drawable_models, plot_svg, svg_data_uri
 from screening.outputs.report import (
-    MODEL_TITLES, VERDICTS, ReportRenderError, _environment, _make_fetcher, templates_dir,
+    MODEL_TITLES,
+    VERDICTS,
+    ReportRenderError,
+    _environment,
+    _make_fetcher,
+    templates_dir,
 )
 from screening.units import format_percent, format_pressure, format_temperature
 
