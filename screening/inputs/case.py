@@ -334,22 +334,18 @@ def parse_case_data(data: dict, source: str, text: str) -> Case:
         if solar == "sun" and ambient is None:
             raise r.err("a sun exposure needs the ambient air temperature", f"{table}.ambient_max",
                         expected="ambient_max = \"40 degC\" beside solar = \"sun\"")
-        irr = r.quantity(pick("irradiance"), "irradiance", "irradiance")
-        irradiance = None
-        if irr is not None:
-            irradiance = irr.si()
-            if irradiance < 0.0:
-                raise r.err("irradiance cannot be negative", f"{pick('irradiance')}.irradiance", given=irr.text,
-                            expected="0 W/m2 or more")
-            r.record(f"{pick('irradiance')}.irradiance", irr, irradiance, "W/m2")
-        wind = r.quantity(pick("wind_speed"), "wind_speed", "speed")
-        wind_speed = 0.0
-        if wind is not None:
-            wind_speed = wind.si()
-            if wind_speed < 0.0:
-                raise r.err("wind speed cannot be negative", f"{pick('wind_speed')}.wind_speed", given=wind.text,
-                            expected="0 m/s or more")
-            r.record(f"{pick('wind_speed')}.wind_speed", wind, wind_speed, "m/s")
+        def non_negative(key: str, kind: str, si_unit: str, zero: str) -> float | None:
+            reading = r.quantity(pick(key), key, kind)
+            if reading is None:
+                return None
+            value = reading.si()
+            if value < 0.0:
+                raise r.err(f"{key.replace('_', ' ')} cannot be negative", f"{pick(key)}.{key}", given=reading.text,
+                            expected=f"{zero} or more")
+            r.record(f"{pick(key)}.{key}", reading, value, si_unit)
+            return value
+        irradiance = non_negative("irradiance", "irradiance", "W/m2", "0 W/m2")
+        wind_speed = non_negative("wind_speed", "speed", "m/s", "0 m/s") or 0.0
 
         def unit_fraction(key):
             value = r.raw(pick(key), key)
