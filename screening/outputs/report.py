@@ -689,7 +689,7 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
     if fill.get("vapour_pressure_pa") is not None:
         fill_rows.append(("Vapour pressure at the fill temperature", P(fill["vapour_pressure_pa"])))
     if vessel.get("rated_pressure_kind"):
-        fill_rows.insert(1, ("Rated pressure is the", f"{vessel['rated_pressure_kind']} pressure"))
+        fill_rows.insert(1, ("Rated pressure stands for", vessel["rated_pressure_kind"]))
 
     # Models: every intermediate a reviewer needs.
     model_views = []
