@@ -339,10 +339,14 @@ def _sci(x: float) -> Markup:
 
 
 def _exposure_view(result: dict, f: _Fmt) -> dict | None:
-    """The governing scenario's sun energy balance, as rows a reviewer can add up."""
-    b = result.get("exposure")
+    """A sun energy balance, as rows a reviewer can add up: the governing scenario's, or where it has none,
+    that of the first scenario in the sun (so every balance the screening used can be checked)."""
+    b, name = result.get("exposure"), result.get("governing_scenario")
     if not b:
-        return None
+        sunny = [sc for sc in result.get("scenarios") or [] if sc.get("exposure")]
+        if not sunny:
+            return None
+        b, name = sunny[0]["exposure"], sunny[0]["name"]
 
     def W(x):
         return _unit(num(x, 2), "W/m\u00b2")
@@ -382,7 +386,7 @@ def _exposure_view(result: dict, f: _Fmt) -> dict | None:
                        "({} K &minus; {} K) = {} W/m&sup2;").format(num(h, 4), num(tw, 2), num(ta, 2), num(q, 2))
     return dict(balance=balance, closure=closure, inputs=inputs, outcome=outcome, check=check,
                 notes=[str(n) for n in b.get("notes") or []],
-                scenario=str(result.get("governing_scenario") or ""))
+                scenario=str(name or ""), governing=(b is result.get("exposure")))
 
 
 def _scenario_rows(result: dict, f: _Fmt) -> list[dict] | None:
@@ -803,11 +807,14 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
     order = ["inputs", "exposure", "method"] + (["phase"] if phase else []) + (["tolerance"] if tolerance else []) \
         + ["margin", "limits", "assumptions", "references", "signoff"]
     sections = {key: str(i) for i, key in enumerate(order, start=1)}
-    if exposure is None:
+    if exposure is None or not exposure["governing"]:
         basis = str(result["worst_case_basis"])
         worst_case_line = (f"The worst-case gas temperature, {T(t_peak)}, is the {basis}"
                            + (f" of the governing scenario, \u2018{result.get('governing_scenario')}\u2019" if scenario_rows else "")
-                           + ". No sun exposure is modelled for it, so no energy balance is shown.")
+                           + (". No sun exposure is modelled for it, so no energy balance is shown."
+                              if exposure is None else
+                              f". The energy balance below is that of the scenario \u2018{exposure['scenario']}\u2019 "
+                              "in the sun, which does not govern."))
     else:
         worst_case_line = (f"The worst-case gas temperature, {T(t_peak)}, is the {result['worst_case_basis']}"
                            + (f" of the governing scenario, \u2018{exposure['scenario']}\u2019" if scenario_rows else "")
