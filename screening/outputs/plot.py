@@ -62,11 +62,11 @@ def margin_line_pa(result: dict) -> float | None:
     target = (result.get("limits") or {}).get("target_peak_pressure_pa")
     if target is not None:
         return target
-    atm = result["site"]["atmospheric_pressure_pa"]
     rated = result["rated_pressure_pa"]
     m = result["required_margin_fraction"]
     if rated is None or m is None:
         return None
+    atm = result["site"]["atmospheric_pressure_pa"]
     return atm + (rated - atm) * (1.0 - m)
 
 
@@ -182,19 +182,22 @@ def drawable_models(result: dict) -> list[str]:
     return out
 
 
+def _converters(result: dict):
+    """Functions from absolute Pa and from K into the result's display units."""
+    units = result["display_units"]
+    p_unit, t_unit = units["pressure"], units["temperature"]
+    atm = result["site"]["atmospheric_pressure_pa"]
+    return (lambda pa: pressure_in(pa, p_unit, atm)), (lambda k: temperature_in(k, t_unit))
+
+
 def plot_svg(result: dict) -> str:
     """SVG text of the isochore plot of `result`."""
     units = result["display_units"]
     p_unit, t_unit = units["pressure"], units["temperature"]
-    atm = result["site"]["atmospheric_pressure_pa"]
     curves = result["curves"]
     models = result["models"]
 
-    def P(pa: float) -> float:
-        return pressure_in(pa, p_unit, atm)
-
-    def T(k: float) -> float:
-        return temperature_in(k, t_unit)
+    P, T = _converters(result)
 
     with matplotlib.rc_context(_RC):
         fig = Figure(figsize=(6.6, 4.3), dpi=100)
@@ -335,15 +338,10 @@ def phase_diagram_svg(result: dict) -> str:
     """
     units = result["display_units"]
     p_unit, t_unit = units["pressure"], units["temperature"]
-    atm = result["site"]["atmospheric_pressure_pa"]
     pd = result["phase_diagram"]
     curves = result["curves"]
 
-    def P(pa: float) -> float:
-        return pressure_in(pa, p_unit, atm)
-
-    def T(k: float) -> float:
-        return temperature_in(k, t_unit)
+    P, T = _converters(result)
 
     temps_k = [t for t in (curves.get("temperature_k") or []) if _finite(t)]
     t_fill = result["fill"]["temperature_k"]

@@ -136,6 +136,22 @@ def _require_finite(a: np.ndarray, name: str) -> None:
         raise InputError(f"{name} must be finite", given=float(first), expected="a finite number")
 
 
+def _state_arrays(first, first_name: str, first_unit: str, temperature, tc, pc, omega):
+    """Checked, broadcast float arrays of (first, T, Tc, Pc, omega): first and the temperatures and
+    critical constants must be positive and finite, omega finite. Raises InputError otherwise."""
+    first = _as_float_array(first, first_name)
+    t = _as_float_array(temperature, "temperature")
+    tc = _as_float_array(tc, "critical temperature")
+    pc = _as_float_array(pc, "critical pressure")
+    omega = _as_float_array(omega, "acentric factor")
+    _require_positive_finite(first, first_name, first_unit)
+    _require_positive_finite(t, "temperature", "[K]")
+    _require_positive_finite(tc, "critical temperature", "[K]")
+    _require_positive_finite(pc, "critical pressure", "[Pa]")
+    _require_finite(omega, "acentric factor")
+    return tuple(np.array(x, dtype=float) for x in np.broadcast_arrays(first, t, tc, pc, omega))
+
+
 def _fmt(x: float) -> str:
     return f"{x:.4g}"
 
@@ -395,17 +411,7 @@ def lee_kesler_density(pressure, temperature, tc, pc, omega) -> GeneralizedState
     >>> round(float(s.z), 4), bool(s.valid)
     (0.9998, True)
     """
-    p = _as_float_array(pressure, "pressure")
-    t = _as_float_array(temperature, "temperature")
-    tc = _as_float_array(tc, "critical temperature")
-    pc = _as_float_array(pc, "critical pressure")
-    omega = _as_float_array(omega, "acentric factor")
-    _require_positive_finite(p, "pressure", "[Pa] (absolute)")
-    _require_positive_finite(t, "temperature", "[K]")
-    _require_positive_finite(tc, "critical temperature", "[K]")
-    _require_positive_finite(pc, "critical pressure", "[Pa]")
-    _require_finite(omega, "acentric factor")
-    p, t, tc, pc, omega = (np.array(x, dtype=float) for x in np.broadcast_arrays(p, t, tc, pc, omega))
+    p, t, tc, pc, omega = _state_arrays(pressure, "pressure", "[Pa] (absolute)", temperature, tc, pc, omega)
     tr = t / tc
     pr = p / pc
     z, valid, reason = _z_checked(tr, pr, omega)
@@ -482,17 +488,7 @@ def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> Generalize
     >>> round(float(s.pressure) / 1e5, 3), bool(s.valid)
     (1.012, True)
     """
-    rho = _as_float_array(molar_density, "molar density")
-    t = _as_float_array(temperature, "temperature")
-    tc = _as_float_array(tc, "critical temperature")
-    pc = _as_float_array(pc, "critical pressure")
-    omega = _as_float_array(omega, "acentric factor")
-    _require_positive_finite(rho, "molar density", "[mol/m3]")
-    _require_positive_finite(t, "temperature", "[K]")
-    _require_positive_finite(tc, "critical temperature", "[K]")
-    _require_positive_finite(pc, "critical pressure", "[Pa]")
-    _require_finite(omega, "acentric factor")
-    rho, t, tc, pc, omega = (np.array(x, dtype=float) for x in np.broadcast_arrays(rho, t, tc, pc, omega))
+    rho, t, tc, pc, omega = _state_arrays(molar_density, "molar density", "[mol/m3]", temperature, tc, pc, omega)
     tr = t / tc
     vf = pc / (rho * R * tc)          # reduced ideal volume of the gas [-]
     reason = _range_reasons(tr, None)
