@@ -47,43 +47,80 @@ def _progress(total: int, quiet: bool, desc: str):
     return tqdm(total=total, desc=desc, unit="row", file=sys.stderr, leave=False)
 
 
-def run_inventory(inv: Inventory, defaults: dict | None = None, quiet: bool = True) -> list[dict]:
-    """Results of every row of the inventory, in input order, each with its "row"."""
-    from screening.vector import screen_cases
+class BatchRun:
+    """Every row of an inventory screened, in input order.
 
-    id_col = next(i for i, c in enumerate(inv.columns) if c.name == "id")
-    slots: list[dict | None] = []
-    cases, where = [], []
-    bar = _progress(len(inv.rows), quiet, "reading")
-    for n, cells in inv.rows:
-        try:
-            cases.append(row_case(inv, n, cells, defaults))
-            where.append(len(slots))
-            slots.append(None)
-        except InputError as exc:
-            cid = cells[id_col].strip() if id_col < len(cells) and cells[id_col].strip() else None
-            slots.append(error_row(n, exc, cid))
+    ``results[i]`` is row i's result with its "row": the slim part the table, CSV and counts use for rows
+    of the vectorised path (see :func:`screening.vector.slim`), the full result for the rest and the
+    ``input-error`` rows. ``full(i)`` gives row i's full result dict (built on demand)."""
+
+    def __init__(self, inv: Inventory, defaults: dict | None = None, quiet: bool = True) -> None:
+        from screening.inputs.columns import read_plain
+        from screening.vector import PlainScreening, screen_cases
+
+        self.inv = inv
+        id_col = next(i for i, c in enumerate(inv.columns) if c.name == "id")
+        plain = read_plain(inv, defaults)
+        bar = _progress(len(inv.rows), quiet, "screening")
+        self._plain = PlainScreening(plain, progress=(bar.update if bar else None))
+        slots: list[dict | None] = [None] * len(inv.rows)
+        self._plain_at: dict[int, int] = {}
+        for j, pos in enumerate(plain.index):
+            pos = int(pos)
+            r = self._plain.summaries[j]
+            self._plain_at[pos] = j
+            slots[pos] = self._placed(pos, r, plain.case(j).id if r.get("verdict") == "input-error" else None)
+        cases, where = [], []
+        for pos, (n, cells) in enumerate(inv.rows):
+            if slots[pos] is not None:
+                continue
+            try:
+                cases.append(row_case(inv, n, cells, defaults))
+                where.append(pos)
+            except InputError as exc:
+                cid = cells[id_col].strip() if id_col < len(cells) and cells[id_col].strip() else None
+                slots[pos] = error_row(n, exc, cid)
+            if bar:
+                bar.update(1)
+        self._rest: dict[int, dict] = {}
+        for pos, case, r in zip(where, cases, screen_cases(cases, progress=(bar.update if bar else None))):
+            slots[pos] = self._placed(pos, r, case.id)
+            if r.get("verdict") != "input-error":
+                self._rest[pos] = slots[pos]
         if bar:
-            bar.update(1)
-    if bar:
-        bar.close()
-    bar = _progress(len(cases), quiet, "screening")
-    results = screen_cases(cases, progress=(bar.update if bar else None))
-    if bar:
-        bar.close()
-    for pos, r in zip(where, results):
-        n = inv.rows[pos][0]
+            bar.close()
+        self.results: list[dict] = slots  # type: ignore[assignment]
+        _duplicates(self.results)
+
+    def _placed(self, pos: int, r: dict, case_id: str | None) -> dict:
+        n = self.inv.rows[pos][0]
         if r.get("verdict") == "input-error":
             exc = r["error"]
-            located = InputError(exc.message, file=inv.source, row=n, key=exc.key, given=exc.given,
+            located = InputError(exc.message, file=self.inv.source, row=n, key=exc.key, given=exc.given,
                                  expected=exc.expected)
-            slots[pos] = error_row(n, located, cases[where.index(pos)].id)
-        else:
-            r["row"] = n
-            slots[pos] = r
-    out = [s for s in slots if s is not None]
-    _duplicates(out)
-    return out
+            return error_row(n, located, case_id)
+        r["row"] = n
+        return r
+
+    def full(self, i: int) -> dict:
+        """Row i's full result dict (with its "row" and the batch's warnings)."""
+        r = self.results[i]
+        j = self._plain_at.get(i)
+        if j is None or r["verdict"] == "input-error":
+            return r
+        f = self._plain.full(j)
+        if f is r:
+            return r
+        f = dict(f)
+        f["row"] = r["row"]
+        f["warnings"] = r["warnings"]
+        return f
+
+
+def run_inventory(inv: Inventory, defaults: dict | None = None, quiet: bool = True) -> list[dict]:
+    """Full results of every row of the inventory, in input order, each with its "row"."""
+    run = BatchRun(inv, defaults, quiet)
+    return [run.full(i) for i in range(len(run.results))]
 
 
 def _duplicates(results: list[dict]) -> None:
@@ -213,10 +250,13 @@ def _json_safe(x):
     return x
 
 
-def write_json(results: list[dict], path) -> None:
+def write_json(results: list[dict], path, full=None) -> None:
+    """The JSON output: the summary, then every row's result (``full(i)`` where given, else results[i])."""
     with atomic_writer(path, "JSON output") as fh:
         fh.write('{"summary": ' + json.dumps(summary(results)) + ',\n "results": [\n')
         for i, r in enumerate(results):
+            if full is not None:
+                r = full(i)
             slim = {k: v for k, v in r.items() if k not in _DROP}
             fh.write(("  " if i == 0 else ",\n  ") + json.dumps(_json_safe(slim), ensure_ascii=False, allow_nan=False))
         fh.write("\n]}\n")
@@ -248,16 +288,17 @@ def run(args) -> int:
                                          (args.pdf, "PDF report")) if p]
     for p, what in targets:      # refuse a bad target before the work, not after it
         check_target(p, what)
-    results = run_inventory(inv, defaults, quiet=args.quiet)
+    run_ = BatchRun(inv, defaults, quiet=args.quiet)
+    results = run_.results
     if args.json:
-        write_json(results, args.json)
+        write_json(results, args.json, full=run_.full)
     if args.csv:
         write_csv(inv, results, args.csv)
     if args.pdf:
         from screening.outputs.batch_report import render_batch_report
 
         render_batch_report(results, args.pdf, source=inv.source, all_details=args.all_details,
-                            report_date=args.date, quiet=args.quiet)
+                            report_date=args.date, quiet=args.quiet, full=run_.full)
     if args.quiet:
         s = summary(results)
         print("  ".join(f"{v}: {s['counts'][v]}" for v in ORDER) + f"  (rows: {s['rows']})")

@@ -29,6 +29,7 @@ The result of a row has the keys of ``screen_case``; its numbers agree with it t
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 from typing import Callable, Iterable
 
 import numpy as np
@@ -39,8 +40,11 @@ from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
 from screening.constants import R
 from screening.errors import InputError, NotApplicable
 from screening.inputs.case import Case
+from screening.inputs.columns import PlainRows
 from screening.physics.eos.generalized import lee_kesler_density, lee_kesler_pressure, pseudocritical
 from screening.physics.eos.reference import ReferenceFluid, reference_fluid
+from screening.physics.gases import Mixture
+from screening.physics.isochore import LIQUID_FULL_STEP
 
 #: Number of scan points screen._limits uses (kept equal so the bracket checks agree).
 _SCAN_N = 40
@@ -69,17 +73,6 @@ def vectorisable(case: Case) -> bool:
     if len(scenarios) > 1 or any(getattr(s, "solar", "none") != "none" for s in scenarios):
         return False
     return True
-
-
-def _worst(case: Case) -> tuple[float, str]:
-    scenarios = getattr(case, "scenarios", ())
-    sc = scenarios[0] if scenarios else case
-    ambient, gas_t = sc.ambient_max_k, sc.gas_temperature_k
-    values = [t for t in (gas_t, ambient) if t is not None]
-    t = max(values)
-    if gas_t is not None and (ambient is None or gas_t >= ambient):
-        return t, "gas temperature stated in the case"
-    return t, "ambient maximum"
 
 
 # ----------------------------------------------------------------------------- helpers
@@ -121,52 +114,71 @@ def _secant(f: Callable[[np.ndarray, np.ndarray], np.ndarray], x0, f0, x1, idx: 
 
 
 class _Dome:
-    """Saturated-vapour density of a pure fluid as a table, for the dry-out temperature of many isochores."""
+    """One side of a pure fluid's saturation dome as a table, for where many isochores meet it.
 
-    def __init__(self, fluid: ReferenceFluid) -> None:
+    ``side`` "vapour": the saturated-vapour density, rising with T (the dry-out temperature of a fill below
+    the critical density); "liquid": the saturated-liquid density, falling with T (the liquid-full
+    temperature of a fill above it). Roots as :func:`screening.physics.isochore._boundary` finds them.
+    """
+
+    def __init__(self, fluid: ReferenceFluid, side: str) -> None:
         self.fluid = fluid
+        self.side = side
         tt, tc = fluid.triple_temperature, fluid.critical_temperature
         self.t_hi = tc - 1e-4                   # isochore._TC_GAP
         u = np.linspace(0.0, 1.0, 600)
         ts = tt + (self.t_hi - tt) * (1.0 - (1.0 - u) ** 2)  # denser towards Tc
         self.t = ts
-        self.rho = np.array([fluid.saturated_vapour_density(float(t)) for t in ts])
+        self.sat = fluid.saturated_vapour_density if side == "vapour" else fluid.saturated_liquid_density
+        self.rho = np.array([self.sat(float(t)) for t in ts])
         self.rho_tt = self.rho[0]
         self.rho_hi = self.rho[-1]
 
-    def dry_out(self, rho: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        """Dry-out temperature [K] (NaN: never meets the dome) and whether the solve settled."""
+    def boundary(self, rho: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Temperature [K] where the isochore meets this side of the dome (NaN: never) and whether the
+        solve settled (False also where the single-case analysis refuses the density)."""
         out = np.full(rho.shape, np.nan)
         ok = np.ones(rho.shape, dtype=bool)
-        never = rho < self.rho_tt                # vapour at the triple point already denser
+        rising = self.side == "vapour"
+        # vapour: the vapour at the triple point is already denser, never in the dome;
+        # liquid: denser than the liquid at the triple point, refused by the single-case analysis
+        never = rho < self.rho_tt if rising else rho > self.rho_tt
+        ok[never & (not rising)] = False
         at_hi = rho == self.rho_hi
-        critical = rho > self.rho_hi             # root in the last gap below Tc
+        critical = rho > self.rho_hi if rising else rho < self.rho_hi   # root in the last gap below Tc
         out[at_hi] = self.t_hi
         out[critical & ~at_hi] = self.fluid.critical_temperature
         solve = np.flatnonzero(~never & ~critical & ~at_hi)
         if solve.size:
             r = rho[solve]
-            t0 = np.interp(np.log(r), np.log(self.rho), self.t)
-            sat = self.fluid.saturated_vapour_density
+            # the table interval that holds the crossing brackets the root
+            if rising:
+                k = np.clip(np.searchsorted(self.rho, r, side="right") - 1, 0, self.t.size - 2)
+            else:
+                k = np.clip(self.t.size - 1 - np.searchsorted(self.rho[::-1], r, side="left"), 0, self.t.size - 2)
+            sat = self.sat
 
             def f(t, ix):
                 vals = np.empty(t.size)
                 for j, (tj, i) in enumerate(zip(t, ix)):
                     try:
-                        vals[j] = sat(float(min(max(tj, self.t[0]), self.t_hi))) - rho[i]
+                        vals[j] = sat(float(tj)) - rho[i]
                     except NotApplicable:
                         vals[j] = np.nan
                 return vals
 
-            f0 = f(t0, solve)
-            t1 = t0 + np.where(f0 > 0, -1e-3, 1e-3) * np.maximum(1.0, 1e-4 * t0)
-            root, conv = _secant(f, t0, f0, t1, solve)
+            t0, t1 = self.t[k], self.t[k + 1]
+            f0, f1 = self.rho[k] - r, self.rho[k + 1] - r
+            exact0, exact1 = f0 == 0.0, f1 == 0.0
+            root = np.where(exact0, t0, np.where(exact1, t1, np.nan))
+            go = ~exact0 & ~exact1 & (f0 * f1 < 0.0)
+            root[go] = _illinois(f, t0[go], t1[go], f0[go], f1[go], solve[go])
             out[solve] = root
-            ok[solve] = conv & (root >= self.t[0]) & (root <= self.t_hi)
+            ok[solve] = np.isfinite(root)
         return out, ok
 
 
-_DOMES: dict[str, _Dome] = {}
+_DOMES: dict[tuple[str, str], _Dome] = {}
 _TOPS: dict[str, float] = {}
 
 
@@ -183,10 +195,10 @@ def _rho_top(fluid: ReferenceFluid, pure: bool) -> float:
     return _TOPS[fluid.label]
 
 
-def _dome(fluid: ReferenceFluid) -> _Dome:
-    if fluid.label not in _DOMES:
-        _DOMES[fluid.label] = _Dome(fluid)
-    return _DOMES[fluid.label]
+def _dome(fluid: ReferenceFluid, side: str) -> _Dome:
+    if (fluid.label, side) not in _DOMES:
+        _DOMES[(fluid.label, side)] = _Dome(fluid, side)
+    return _DOMES[(fluid.label, side)]
 
 
 def _loop(fn, *arrays) -> tuple[np.ndarray, np.ndarray, list]:
@@ -204,65 +216,201 @@ def _loop(fn, *arrays) -> tuple[np.ndarray, np.ndarray, list]:
     return out, valid, reasons
 
 
+def _illinois(f: Callable[[np.ndarray, np.ndarray], np.ndarray], x0: np.ndarray, x1: np.ndarray, f0: np.ndarray,
+              f1: np.ndarray, idx: np.ndarray) -> np.ndarray:
+    """Roots of f(x, idx) = 0 inside brackets [x0, x1] with f0, f1 of opposite signs (Illinois regula falsi,
+    vectorised, to _SECANT_RTOL); NaN where f cannot be evaluated on the way."""
+    out = np.full(np.shape(x0), np.nan)
+    live = np.arange(out.size)
+    x0, x1, f0, f1 = (np.array(a, dtype=float) for a in (x0, x1, f0, f1))
+    side = np.zeros(live.size)
+    prev = np.full(live.size, np.nan)
+    for _ in range(200):
+        if live.size == 0:
+            break
+        x = (x0 * f1 - x1 * f0) / (f1 - f0)
+        fx = f(x, idx[live])
+        bad = ~np.isfinite(fx)
+        done = ~bad & ((fx == 0.0) | (np.abs(x - prev) <= _SECANT_RTOL * np.abs(x))
+                       | (np.abs(x1 - x0) <= _SECANT_RTOL * np.abs(x)))
+        out[live[done]] = x[done]
+        left = fx * f0 > 0.0                                   # the root is in [x, x1]
+        f1 = np.where(left & (side == 1), 0.5 * f1, f1)        # Illinois: halve the end that stays twice
+        f0 = np.where(~left & (side == -1), 0.5 * f0, f0)
+        x0, f0 = np.where(left, x, x0), np.where(left, fx, f0)
+        x1, f1 = np.where(left, x1, x), np.where(left, f1, fx)
+        side = np.where(left, 1, -1)
+        keep = ~done & ~bad
+        live, x0, x1, f0, f1, side, prev = live[keep], x0[keep], x1[keep], f0[keep], f1[keep], side[keep], x[keep]
+    return out
+
+
+#: A root this close (relative) to an end of screen._limits' range is settled by the sign of the function at
+#: that end, as screen._root settles it (its first look is at the two ends).
+_EDGE_RTOL = 1e-8
+
+
+def _settle_edges(f: Callable[[np.ndarray, np.ndarray], np.ndarray], root: np.ndarray, ok: np.ndarray,
+                  lo: np.ndarray, hi: np.ndarray) -> np.ndarray:
+    """Roots of an increasing f next to lo or hi decided as screen._root decides them: no root where f(lo) > 0
+    or f(hi) < 0, the end itself where f is zero there. Roots elsewhere are returned as they are."""
+    root = np.array(root, dtype=float)
+    for end, sign in ((lo, 1.0), (hi, -1.0)):
+        near = np.flatnonzero(ok & np.isfinite(root) & (np.abs(root - end) <= _EDGE_RTOL * np.abs(end)))
+        if near.size == 0:
+            continue
+        fe = f(end[near], near)
+        zero = fe == 0.0
+        none = ~np.isfinite(fe) | (sign * fe > 0.0)
+        root[near[zero]] = end[near[zero]]
+        root[near[none & ~zero]] = np.nan
+        keep = near[~zero & ~none]      # inside: clamp a round-off step past the end back onto it
+        root[keep] = np.clip(root[keep], lo[keep], hi[keep])
+    return root
+
+
+def _scan_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray, hi: np.ndarray,
+               n: int = _SCAN_N) -> np.ndarray:
+    """Per row, the root screen._root finds for an increasing f(x, rows) on [lo, hi] (NaN: none).
+
+    As there: the first scan interval of np.linspace(lo, hi, n) whose two ends can be evaluated and
+    bracket a sign change, then a bracketed solve inside it (here a vectorised Illinois regula falsi to
+    _SECANT_RTOL). f returns NaN where the model does not apply; a solve that meets such a point gives
+    no root, as screen._root's Brent does when its function raises.
+    """
+    m = lo.size
+    out = np.full(m, np.nan)
+    if m == 0:
+        return out
+    rows = np.arange(m)
+    grid = np.linspace(lo, hi, n, axis=1)                      # (m, n)
+    fv = f(grid.ravel(), np.repeat(rows, n)).reshape(m, n)
+    a_f, b_f = fv[:, :-1], fv[:, 1:]
+    ok = np.isfinite(a_f) & np.isfinite(b_f) & (((a_f <= 0.0) & (b_f >= 0.0)) | ((a_f >= 0.0) & (b_f <= 0.0)))
+    has = ok.any(axis=1)
+    k = np.argmax(ok, axis=1)
+    at_b = has & (b_f[rows, k] == 0.0)
+    out[at_b] = grid[rows, k + 1][at_b]
+    at_a = has & ~at_b & (a_f[rows, k] == 0.0)
+    out[at_a] = grid[rows, k][at_a]
+    live = np.flatnonzero(has & ~at_b & ~at_a)
+    out[live] = _illinois(f, grid[live, k[live]], grid[live, k[live] + 1], a_f[live, k[live]], b_f[live, k[live]],
+                          live)
+    return out
+
+
 # ----------------------------------------------------------------------------- one gas group
 
-def _group(cases: list[Case]) -> list[dict | None]:
-    """Results of rows of one pure permanent gas on the vectorised path; None where a row must go per row."""
-    n = len(cases)
-    gas = cases[0].gas
-    g = gas.components[0]
-    M = gas.molar_mass
-    p_fill = np.array([c.fill_pressure_pa for c in cases])
-    t_fill = np.array([c.fill_temperature_k for c in cases])
-    worst = [_worst(c) for c in cases]
-    t_peak = np.array([w[0] for w in worst])
-    rated = np.array([c.rated_pressure_pa for c in cases])
-    atm = np.array([c.site.atmospheric_pressure_pa for c in cases])
-    margin_req = np.array([c.required_margin for c in cases])
-    fallback = np.zeros(n, dtype=bool)
+@dataclass
+class Rows:
+    """The inputs of rows of one gas, as arrays in SI: pressures absolute [Pa], temperatures [K], [-].
+    NaN marks an absent ambient maximum or stated gas temperature."""
 
+    gas: Mixture
+    p_fill: np.ndarray
+    t_fill: np.ndarray
+    ambient_max: np.ndarray
+    gas_temperature: np.ndarray
+    rated: np.ndarray
+    atm: np.ndarray
+    margin_req: np.ndarray
+
+    @staticmethod
+    def of_cases(cases: list[Case]) -> "Rows":
+        sc = [c.scenarios[0] if getattr(c, "scenarios", ()) else c for c in cases]
+        nan = math.nan
+        return Rows(cases[0].gas, np.array([c.fill_pressure_pa for c in cases], dtype=float),
+                    np.array([c.fill_temperature_k for c in cases], dtype=float),
+                    np.array([nan if s.ambient_max_k is None else s.ambient_max_k for s in sc], dtype=float),
+                    np.array([nan if s.gas_temperature_k is None else s.gas_temperature_k for s in sc], dtype=float),
+                    np.array([c.rated_pressure_pa for c in cases], dtype=float),
+                    np.array([c.site.atmospheric_pressure_pa for c in cases], dtype=float),
+                    np.array([c.required_margin for c in cases], dtype=float))
+
+    def take(self, idx: np.ndarray) -> "Rows":
+        return Rows(self.gas, *(getattr(self, k)[idx] for k in ("p_fill", "t_fill", "ambient_max", "gas_temperature",
+                                                               "rated", "atm", "margin_req")))
+
+
+def worst_case(ambient_max: np.ndarray, gas_temperature: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Worst-case gas temperature [K] (the higher of the two given) and whether the stated gas temperature
+    is the basis (as screen._worst_case_temperature ranks them, the stated gas temperature first on a tie)."""
+    stated = ~np.isnan(gas_temperature) & (np.isnan(ambient_max) | (gas_temperature >= ambient_max))
+    return np.fmax(ambient_max, gas_temperature), stated
+
+
+#: Columns a group computes per row (floats; NaN for none) besides the masks.
+_FLOAT_COLUMNS = ("t_peak", "rho_molar", "peak_ref", "rho_ideal", "peak_ideal", "lk_rho_fill", "lk_z_fill",
+                  "lk_tr_fill", "lk_pr_fill", "lk_peak", "lk_z_peak", "lk_tr_peak", "lk_pr_peak", "tcf", "pcf",
+                  "tcp", "pcp", "omp", "dry", "liquid_full", "dpdt_liquid_full", "max_t", "max_p", "target",
+                  "mass_rho", "crossing")
+
+
+def _columns(rows: Rows) -> dict:
+    """Every model, the phase boundary and the limits for rows of one pure permanent gas, as arrays.
+
+    Returns a dict of the arrays named in _FLOAT_COLUMNS plus ``stated`` (the stated gas temperature is the
+    worst-case basis), ``lk_ok``, ``lk_reason`` and ``fallback`` (rows that must go per row)."""
+    n = rows.p_fill.size
+    gas = rows.gas
+    g = gas.components[0]
+    p_fill, t_fill, rated, atm, margin_req = rows.p_fill, rows.t_fill, rows.rated, rows.atm, rows.margin_req
+    t_peak, stated = worst_case(rows.ambient_max, rows.gas_temperature)
+    fallback = np.zeros(n, dtype=bool)
+    nan = np.full(n, np.nan)
+    out = {k: nan.copy() for k in _FLOAT_COLUMNS}
+    out.update(t_peak=t_peak, stated=stated, fallback=fallback, lk_ok=np.zeros(n, dtype=bool),
+               lk_reason=np.full(n, "", dtype=object),
+               gas_below_ambient=~np.isnan(rows.gas_temperature) & (rows.gas_temperature < rows.ambient_max))
     try:
         fluid = reference_fluid((g.coolprop_name,), (1.0,))
     except NotApplicable:
-        return [None] * n
+        fallback[:] = True
+        return out
     tc_ref = fluid.critical_temperature
-    # both temperatures above the critical temperature: a single-phase gas, no saturation checks
-    fallback |= (np.minimum(t_fill, t_peak) <= max(tc_ref, g.critical_temperature))
+    # both temperatures above the critical temperature: a single-phase fluid, no saturation checks
+    fallback |= ~(np.minimum(t_fill, t_peak) > max(tc_ref, g.critical_temperature))
     fallback |= (t_fill < fluid.t_min) | (t_peak > fluid.t_max)
-
-    # --- reference fill state: density at the fill (PT flash, checked), peak on the same isochore
-    rho_molar, ok_fill, _ = _loop(fluid.density, p_fill, t_fill)
-    fallback |= ~ok_fill
-    rho_mass = rho_molar * M
     pure = not fluid.is_pseudo_pure
     if pure:
-        fallback |= ~(rho_molar < fluid.critical_molar_density)   # liquid-full analysis: per row
-    rho_ref = rho_mass / M
-    live = ~fallback
-    peak_ref = np.full(n, np.nan)
-    ok_ref = np.zeros(n, dtype=bool)
-    reason_ref = [""] * n
-    if live.any():
-        idx = np.flatnonzero(live)
-        p, v, rs = fluid.pressures(rho_ref[idx], t_peak[idx])
-        peak_ref[idx], ok_ref[idx] = p, v
-        for j, i in enumerate(idx):
-            reason_ref[i] = str(rs[j])
-    # a reference failure at the peak is rare on this path; leave such rows to the per-row path
-    fallback |= live & ~ok_ref
+        # near-critical peaks (liquid-full analysis, the mass limit capped at the critical density): per row
+        fallback |= t_peak <= _screen.DENSE_FLUID_TEMPERATURE_RATIO * tc_ref
 
-    # --- dry-out temperature (pure fluids; the pseudo-pure air has no phase analysis)
-    dry = np.full(n, np.nan)
+    # --- reference fill state: density at the fill (PT flash, checked), peak on the same isochore
+    rho_molar = np.full(n, np.nan)
+    live = np.flatnonzero(~fallback)
+    rho_molar[live], ok_fill, _ = _loop(fluid.density, p_fill[live], t_fill[live])
+    fallback[live[~ok_fill]] = True
+    # the single screening takes the fill's mass density and divides by the molar mass again: so here
+    rho_ref = (rho_molar * gas.molar_mass) / gas.molar_mass
+    out["rho_molar"] = rho_ref
+    peak_ref = out["peak_ref"]
+    live = np.flatnonzero(~fallback)
+    if live.size:
+        p, v, _rs = fluid.pressures(rho_ref[live], t_peak[live])
+        peak_ref[live] = p
+        # a reference failure at the peak is rare on this path; leave such rows to the per-row path
+        fallback[live[~v]] = True
+
+    # --- where the isochore meets the dome (pure fluids; the pseudo-pure air has no phase analysis):
+    # dry-out below the critical density, liquid-full above it (isochore.isochore_phases)
     if pure:
-        d_rows = np.flatnonzero(~fallback)
-        if d_rows.size:
-            t_dry, ok_dry = _dome(fluid).dry_out(rho_molar[d_rows])
-            dry[d_rows] = t_dry
-            fallback[d_rows[~ok_dry]] = True
+        rc = fluid.critical_molar_density
+        for side, key in (("vapour", "dry"), ("liquid", "liquid_full")):
+            d_rows = np.flatnonzero(~fallback & ((rho_molar <= rc) if side == "vapour" else (rho_molar > rc)))
+            if d_rows.size:
+                t_b, ok_b = _dome(fluid, side).boundary(rho_molar[d_rows])
+                out[key][d_rows] = t_b
+                fallback[d_rows[~ok_b]] = True
+        lf = np.flatnonzero(~fallback & np.isfinite(out["liquid_full"]))
+        if lf.size:
+            out["dpdt_liquid_full"][lf], ok, _ = _loop(fluid.dp_dt_at_constant_density, rho_molar[lf],
+                                                       out["liquid_full"][lf] + LIQUID_FULL_STEP)
+            fallback[lf[~ok]] = True
 
     # --- ideal
-    rho_ideal = p_fill / (R * t_fill)
-    peak_ideal = rho_ideal * R * t_peak
+    out["rho_ideal"] = rho_ideal = p_fill / (R * t_fill)
+    out["peak_ideal"] = rho_ideal * R * t_peak
 
     # --- generalized, as arrays
     fr = np.array(gas.fractions)
@@ -277,31 +425,32 @@ def _group(cases: list[Case]) -> list[dict | None]:
                               np.array([c.classical_critical_pressure or c.critical_pressure for c in comps]),
                               np.asarray(t, dtype=float))
 
-    tcf, pcf, omf = (np.broadcast_to(np.asarray(a, dtype=float), (n,)) for a in consts(t_fill))
-    tcp, pcp, omp = (np.broadcast_to(np.asarray(a, dtype=float), (n,)) for a in consts(t_peak))
+    tcf, pcf, omf = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_fill))
+    tcp, pcp, omp = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_peak))
     gf = lee_kesler_density(p_fill, t_fill, tcf, pcf, omf)
     rho_lk = np.where(gf.valid, gf.molar_density, 1.0)
     gp = lee_kesler_pressure(rho_lk, t_peak, tcp, pcp, omp)
     lk_ok = gf.valid & gp.valid
-    lk_reason = np.where(gf.valid, gp.reason, gf.reason)
-    peak_lk = np.where(lk_ok, gp.pressure, np.nan)
-    quantum = any(c.quantum for c in comps)
+    out.update(tcf=tcf, pcf=pcf, tcp=tcp, pcp=pcp, omp=omp, lk_ok=lk_ok,
+               lk_reason=np.where(gf.valid, gp.reason, gf.reason).astype(object),
+               lk_rho_fill=gf.molar_density, lk_z_fill=gf.z, lk_tr_fill=gf.reduced_temperature,
+               lk_pr_fill=gf.reduced_pressure, lk_peak=np.where(lk_ok, gp.pressure, np.nan), lk_z_peak=gp.z,
+               lk_tr_peak=gp.reduced_temperature, lk_pr_peak=gp.reduced_pressure)
+    peak_lk = out["lk_peak"]
     # the vectorised limits assume constant critical constants (not the quantum correction)
-    if quantum:
+    if any(c.quantum for c in comps):
         fallback |= lk_ok
 
     # --- limits: targets and scan ranges as screen._limits has them
-    target = atm + (rated - atm) * (1.0 - margin_req)
+    out["target"] = target = atm + (rated - atm) * (1.0 - margin_req)
     t_lo = np.minimum(t_fill, t_peak)
     t_hi = np.maximum(t_peak, t_fill) + 300.0
     p_lo = atm * 1.01
     p_hi = np.maximum(target, p_fill) * np.maximum(1.0, t_fill / t_peak) * 1.05
 
-    max_t = np.full(n, np.nan)
-    max_p = np.full(n, np.nan)
     rows_lk = np.flatnonzero(lk_ok & ~fallback)
-    # generalized: T on the isochore at the rated pressure (density at the rated pressure = fill density)
     t_lk = np.full(n, np.nan)
+    max_p_lk = np.full(n, np.nan)
     if rows_lk.size:
         i = rows_lk
 
@@ -309,18 +458,30 @@ def _group(cases: list[Case]) -> list[dict | None]:
             s = lee_kesler_density(rated[ix], t, tcp[ix], pcp[ix], omp[ix])
             return np.where(s.valid, s.molar_density / rho_lk[ix] - 1.0, np.nan)
 
+        # generalized: T on the isochore at the rated pressure (density at the rated pressure = fill density)
         reach = rated[i] / pcp[i] <= 10.0
         x0 = np.minimum(t_peak[i] * np.clip(rated[i] / peak_lk[i], 0.2, 5.0), 3.9 * tcp[i])
         f0 = f_t(x0, i)
         root, conv = _secant(f_t, x0, f0, x0 * (1.0 + 1e-4), i)
+
+        def f_iso_i(t, ix):
+            s = lee_kesler_pressure(rho_lk[i[ix]], t, tcp[i[ix]], pcp[i[ix]], omp[i[ix]])
+            return np.where(s.valid, s.pressure - rated[i[ix]], np.nan)
+
+        root = _settle_edges(f_iso_i, root, reach & conv, t_lo[i], t_hi[i])
         has = reach & conv & (root >= t_lo[i]) & (root <= t_hi[i])
         a, b = _linspace_bracket(t_lo[i], t_hi[i], root)
         edge = has & ((b / tcp[i] > _LK_TR_EDGE) | (rated[i] * b / root / pcp[i] > _LK_PR_EDGE))
-        # a root beyond the range or a bracket at its edge: not sure what the scan finds -> per row
+        # a root beyond the range or a bracket at its edge: the scan decides, as screen._limits scans
         unsure = (~reach & (rated[i] / pcp[i] < 10.5)) | edge | (reach & ~conv)
         unsure |= reach & ~has & conv & (root > t_lo[i]) & (b / tcp[i] > _LK_TR_EDGE)
-        fallback[i[unsure]] = True
         t_lk[i[has & ~unsure]] = root[has & ~unsure]
+        u = i[unsure]
+        if u.size:
+            def f_iso(t, ix):
+                s = lee_kesler_pressure(rho_lk[u[ix]], t, tcp[u[ix]], pcp[u[ix]], omp[u[ix]])
+                return np.where(s.valid, s.pressure - rated[u[ix]], np.nan)
+            t_lk[u] = _scan_root(f_iso, t_lo[u], t_hi[u])
 
         # generalized: the fill pressure whose peak is the target: density at the target and the peak
         # temperature, then the pressure of that density at the fill temperature
@@ -332,12 +493,16 @@ def _group(cases: list[Case]) -> list[dict | None]:
         a, b = _linspace_bracket(p_lo[i], p_hi[i], pstar)
         edgep = hasp & ((b / pcf[i] > _LK_PR_EDGE) | (target[i] * b / pstar / pcp[i] > _LK_PR_EDGE))
         unsure = edgep | (~np.isfinite(pstar) & (target[i] / pcp[i] < 10.5))
-        fallback[i[unsure]] = True
         ok = hasp & ~unsure
-        max_p_lk = np.full(n, np.nan)
         max_p_lk[i[ok]] = pstar[ok]
-    else:
-        max_p_lk = np.full(n, np.nan)
+        u = i[unsure]
+        if u.size:
+            def f_fill(p, ix):
+                r = u[ix]
+                s1 = lee_kesler_density(p, t_fill[r], tcf[r], pcf[r], omf[r])
+                s2 = lee_kesler_pressure(np.where(s1.valid, s1.molar_density, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
+                return np.where(s1.valid & s2.valid, s2.pressure - target[r], np.nan)
+            max_p_lk[u] = _scan_root(f_fill, p_lo[u], p_hi[u])
 
     # reference: max temperature, solved only where it can be below the generalized one
     live = np.flatnonzero(~fallback)
@@ -363,11 +528,13 @@ def _group(cases: list[Case]) -> list[dict | None]:
             x1 = np.where(np.abs(x1 - x0) < 1e-6 * x0, x0 * (1 + 1e-3), x1)
             root, conv = _secant(f_ref, x0, f0, x1, need)
             fallback[need[~conv]] = True
+            root = _settle_edges(lambda t, ix: f_ref(t, need[ix]) * rated[need[ix]], root, conv, t_lo[need],
+                                 t_hi[need])
             inside = conv & (root >= t_lo[need]) & (root <= t_hi[need])
             _a, b = _linspace_bracket(t_lo[need], t_hi[need], root)
             fallback[need[inside & (b > fluid.t_max)]] = True
             t_ref[need[inside]] = root[inside]
-    max_t = np.fmin(t_lk, t_ref)
+    out["max_t"] = np.fmin(t_lk, t_ref)
 
     # reference: max fill pressure, density at the target on the peak isochore, then its fill pressure
     live = np.flatnonzero(~fallback)
@@ -383,153 +550,157 @@ def _group(cases: list[Case]) -> list[dict | None]:
         fallback[live[~(vs & vp)]] = True
         hasp = vs & vp & (ps >= p_lo[live]) & (ps <= p_hi[live])
         max_p_ref[live[hasp]] = ps[hasp]
-    max_p = np.fmin(max_p_lk, max_p_ref)
+    out["max_p"] = np.fmin(max_p_lk, max_p_ref)
 
     # mass limit (screen._mass_limit): the reference density at the target on the peak isochore, inside
-    # the scan range screen uses, capped by the liquid-full density near the critical temperature
+    # the scan range screen uses (peaks near the critical temperature went per row above)
     try:
         rho_top = _rho_top(fluid, pure)
     except NotApplicable:
         rho_top = None
-    mass_rho = np.full(n, np.nan)
     if rho_top is not None:
         live = np.flatnonzero(~fallback)
         r = rho_star_ref[live]
         inside = np.isfinite(r) & (r >= 1e-6 * rho_top) & (r <= 0.999 * rho_top)
-        mass_rho[live[inside]] = r[inside]
-        # near-critical peaks cap at the critical density: per row
-        if pure:
-            tc = fluid.critical_temperature
-            fallback[live[(t_peak[live] <= _screen.DENSE_FLUID_TEMPERATURE_RATIO * tc) | (t_fill[live] < tc)]] = True
+        out["mass_rho"][live[inside]] = r[inside]
 
     # vapour pressure where the isochore leaves the dome (isochore.isochore_phases: crossing_pressure)
-    crossing = np.full(n, np.nan)
-    for k in np.flatnonzero(~fallback & np.isfinite(dry)):
+    crossing = out["crossing"]
+    boundary = np.fmin(out["dry"], out["liquid_full"])
+    for k in np.flatnonzero(~fallback & np.isfinite(boundary)):
         try:
-            crossing[k] = (fluid.critical_pressure if dry[k] >= fluid.critical_temperature
-                           else fluid.vapour_pressure(float(dry[k])))
+            crossing[k] = (fluid.critical_pressure if boundary[k] >= fluid.critical_temperature
+                           else fluid.vapour_pressure(float(boundary[k])))
         except NotApplicable:
             fallback[k] = True
-
-    out: list[dict | None] = []
-    eos_refs = fluid.eos_references()
-    for k, case in enumerate(cases):
-        if fallback[k]:
-            out.append(None)
-            continue
-        out.append(_assemble(
-            case, fluid, eos_refs, worst[k], float(t_fill[k]), float(t_peak[k]), float(rho_molar[k]),
-            float(rho_mass[k]), float(rho_ref[k]), float(peak_ref[k]), float(rho_ideal[k]), float(peak_ideal[k]),
-            gf, gp, k, bool(lk_ok[k]), str(lk_reason[k]), (float(tcf[k]), float(pcf[k])),
-            (float(tcp[k]), float(pcp[k]), float(omp[k])),
-            None if math.isnan(dry[k]) else float(dry[k]),
-            None if math.isnan(max_t[k]) else float(max_t[k]),
-            None if math.isnan(max_p[k]) else float(max_p[k]), float(target[k]), pure,
-            None if math.isnan(mass_rho[k]) else float(mass_rho[k]),
-            None if math.isnan(crossing[k]) else float(crossing[k])))
     return out
 
 
-def _assemble(case, fluid, eos_refs, worst, t_fill, t_peak, rho_molar, rho_mass, rho_ref, peak_ref, rho_ideal,
-              peak_ideal, gf, gp, k, lk_ok, lk_reason, consts_fill, consts_peak, dry, max_t, max_p, target,
-              pure, mass_rho, crossing) -> dict:
-    """One row's result dict, laid out as screen.screen_case lays out a single-scenario result."""
-    atm = case.site.atmospheric_pressure_pa
+def _opt(x) -> float | None:
+    x = float(x)
+    return None if math.isnan(x) else x
+
+
+def _verdict(cols: dict, k: int, molar_mass: float, rated: float, relief: float | None, atm: float,
+             required_margin: float, max_ratio: float | None, name: str | None) -> dict:
+    """One row's verdict, reasons, margins, governing model and warnings (through screen.decide)."""
     warnings: list[dict] = []
-    sc = case.scenarios[0] if getattr(case, "scenarios", ()) else case
-    if sc.gas_temperature_k is not None and sc.ambient_max_k is not None and sc.gas_temperature_k < sc.ambient_max_k:
-        name = getattr(sc, "name", None)
-        msg = ("the stated gas temperature is below the ambient maximum; the ambient maximum is used.")
+    if cols["gas_below_ambient"][k]:
+        msg = "the stated gas temperature is below the ambient maximum; the ambient maximum is used."
         warnings.append({"code": "gas-below-ambient", "message": f"{name}: {msg}" if name else msg[0].upper() + msg[1:]})
-    phase = "supercritical"   # both temperatures above the critical temperature, single phase
-    ideal = {"applicable": True, "peak_pressure_pa": peak_ideal,
-             "note": "ideal-gas law; shown for comparison, it ignores real-gas behaviour",
-             "fill_molar_density_mol_m3": rho_ideal, "equation": "P v = R T, so at fixed density P2 = P1 T2 / T1"}
-    if lk_ok:
-        gen = {"applicable": True, "peak_pressure_pa": float(gp.pressure[k]),
-               "note": "Lee–Kesler corresponding states", "fill_molar_density_mol_m3": float(gf.molar_density[k]),
-               "z_fill": float(gf.z[k]), "z_peak": float(gp.z[k]),
-               "reduced_temperature_fill": float(gf.reduced_temperature[k]),
-               "reduced_pressure_fill": float(gf.reduced_pressure[k]),
-               "reduced_temperature_peak": float(gp.reduced_temperature[k]),
-               "reduced_pressure_peak": float(gp.reduced_pressure[k]),
-               "pseudocritical_temperature_k": consts_peak[0], "pseudocritical_pressure_pa": consts_peak[1],
-               "pseudocritical_temperature_fill_k": consts_fill[0],
-               "pseudocritical_pressure_fill_pa": consts_fill[1],
-               "acentric_factor": consts_peak[2], "mixing_rule": None,
-               "quantum_correction": any(c.quantum for c in case.gas.components)}
-    else:
-        gen = {"applicable": False, "peak_pressure_pa": None,
-               "note": f"Lee–Kesler correlation outside its range: {lk_reason}", "fill_molar_density_mol_m3": None}
-    ref = {"applicable": True, "peak_pressure_pa": peak_ref,
-           "note": "multiparameter Helmholtz-energy equation of state (CoolProp)",
-           "fill_molar_density_mol_m3": rho_ref, "fluid": fluid.label, "phase_fill": phase, "phase_peak": phase,
-           "z_fill": case.fill_pressure_pa / (rho_ref * 8.314462618 * t_fill), "z_peak": peak_ref / (rho_ref * R * t_peak),
-           "eos_references": eos_refs}
-    models = {"ideal": ideal, "generalized": gen, "reference": ref}
-    order = [("ideal", peak_ideal), ("generalized", gen["peak_pressure_pa"]), ("reference", peak_ref)]
+    peak_ideal, peak_ref = float(cols["peak_ideal"][k]), float(cols["peak_ref"][k])
+    lk_ok = bool(cols["lk_ok"][k])
+    peak_gen = float(cols["lk_peak"][k]) if lk_ok else None
+    order = [("ideal", peak_ideal), ("generalized", peak_gen), ("reference", peak_ref)]
     applicable = [(nm, p) for nm, p in order if p is not None]
     gov_name, peak = max(applicable, key=lambda x: x[1])
-    others = [nm for nm, _ in applicable if nm != gov_name]
-    governing_reason = (f"The {gov_name} model gives the highest peak among the applicable models"
-                        + (f" ({', '.join(others)})" if others else "")
-                        + "; the highest is taken because it is the conservative choice.")
     if lk_ok and peak_ref:
-        diff = abs(gen["peak_pressure_pa"] - peak_ref) / peak_ref
+        diff = abs(peak_gen - peak_ref) / peak_ref
         if diff > _screen.MODEL_DISAGREEMENT_WARNING:
             warnings.append({"code": "models-disagree", "message":
                              f"The generalized and reference peaks differ by {diff * 100:.1f} % "
                              f"(more than {_screen.MODEL_DISAGREEMENT_WARNING * 100:.0f} %); the higher one governs."})
+    rho_mass = float(cols["rho_molar"][k]) * molar_mass
     ratio_reason = None
-    if case.max_filling_ratio_kg_m3 is not None and rho_mass > case.max_filling_ratio_kg_m3:
+    if max_ratio is not None and rho_mass > max_ratio:
         ratio_reason = (f"The filling ratio, {rho_mass / 1000.0:.3f} kg/L, is above the vessel's maximum filling "
-                        f"ratio of {case.max_filling_ratio_kg_m3 / 1000:.3f} kg/L.")
+                        f"ratio of {max_ratio / 1000:.3f} kg/L.")
     verdict, reasons, margin, relief_margin = _screen.decide(
-        peak=peak, rated=case.rated_pressure_pa, relief=case.relief_set_pressure_pa, atm=atm,
-        required_margin=case.required_margin, any_real_model=True, out_of_scope_reason=None,
-        liquid_full_reason=None, filling_ratio_reason=ratio_reason)
+        peak=peak, rated=rated, relief=relief, atm=atm, required_margin=required_margin, any_real_model=True,
+        out_of_scope_reason=None, liquid_full_reason=None, filling_ratio_reason=ratio_reason)
+    return {"verdict": verdict, "reasons": reasons, "warnings": warnings, "margin_fraction": margin,
+            "relief_margin_fraction": relief_margin, "governing_model": gov_name, "peak_pressure_pa": peak,
+            "applicable": [nm for nm, _ in applicable]}
+
+
+def _assemble(case: Case, cols: dict, k: int, v: dict | None = None) -> dict:
+    """One row's result dict, laid out as screen.screen_case lays out a single-scenario result."""
+    gas = case.gas
+    fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
+    atm = case.site.atmospheric_pressure_pa
+    sc = case.scenarios[0] if getattr(case, "scenarios", ()) else case
+    if v is None:
+        v = _verdict(cols, k, gas.molar_mass, case.rated_pressure_pa, case.relief_set_pressure_pa, atm, case.required_margin,
+                     case.max_filling_ratio_kg_m3, getattr(sc, "name", None))
+    t_fill, t_peak = float(case.fill_temperature_k), float(cols["t_peak"][k])
+    rho_molar = float(cols["rho_molar"][k])
+    rho_mass = rho_molar * gas.molar_mass
+    peak_ref, peak_ideal, rho_ideal = float(cols["peak_ref"][k]), float(cols["peak_ideal"][k]), float(cols["rho_ideal"][k])
+    phase = "supercritical"   # both temperatures above the critical temperature, single phase
+    ideal = {"applicable": True, "peak_pressure_pa": peak_ideal,
+             "note": "ideal-gas law; shown for comparison, it ignores real-gas behaviour",
+             "fill_molar_density_mol_m3": rho_ideal, "equation": "P v = R T, so at fixed density P2 = P1 T2 / T1"}
+    if cols["lk_ok"][k]:
+        gen = {"applicable": True, "peak_pressure_pa": float(cols["lk_peak"][k]),
+               "note": "Lee–Kesler corresponding states", "fill_molar_density_mol_m3": float(cols["lk_rho_fill"][k]),
+               "z_fill": float(cols["lk_z_fill"][k]), "z_peak": float(cols["lk_z_peak"][k]),
+               "reduced_temperature_fill": float(cols["lk_tr_fill"][k]),
+               "reduced_pressure_fill": float(cols["lk_pr_fill"][k]),
+               "reduced_temperature_peak": float(cols["lk_tr_peak"][k]),
+               "reduced_pressure_peak": float(cols["lk_pr_peak"][k]),
+               "pseudocritical_temperature_k": float(cols["tcp"][k]), "pseudocritical_pressure_pa": float(cols["pcp"][k]),
+               "pseudocritical_temperature_fill_k": float(cols["tcf"][k]),
+               "pseudocritical_pressure_fill_pa": float(cols["pcf"][k]),
+               "acentric_factor": float(cols["omp"][k]), "mixing_rule": None,
+               "quantum_correction": any(c.quantum for c in gas.components)}
+    else:
+        gen = {"applicable": False, "peak_pressure_pa": None,
+               "note": f"Lee–Kesler correlation outside its range: {cols['lk_reason'][k]}",
+               "fill_molar_density_mol_m3": None}
+    ref = {"applicable": True, "peak_pressure_pa": peak_ref,
+           "note": "multiparameter Helmholtz-energy equation of state (CoolProp)",
+           "fill_molar_density_mol_m3": rho_molar, "fluid": fluid.label, "phase_fill": phase, "phase_peak": phase,
+           "z_fill": case.fill_pressure_pa / (rho_molar * 8.314462618 * t_fill),
+           "z_peak": peak_ref / (rho_molar * R * t_peak), "eos_references": fluid.eos_references()}
+    models = {"ideal": ideal, "generalized": gen, "reference": ref}
+    gov_name, peak = v["governing_model"], v["peak_pressure_pa"]
+    others = [nm for nm in v["applicable"] if nm != gov_name]
+    governing_reason = (f"The {gov_name} model gives the highest peak among the applicable models"
+                        + (f" ({', '.join(others)})" if others else "")
+                        + "; the highest is taken because it is the conservative choice.")
+    mass_rho = _opt(cols["mass_rho"][k])
     if mass_rho is None:
         mass_limit = {"max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None}
     else:
-        rm, basis = mass_rho * case.gas.molar_mass, "the required margin at the worst-case temperature"
+        rm, basis = mass_rho * gas.molar_mass, "the required margin at the worst-case temperature"
         if case.max_filling_ratio_kg_m3 is not None and case.max_filling_ratio_kg_m3 < rm:
             rm, basis = case.max_filling_ratio_kg_m3, "the vessel's maximum filling ratio"
         mass_limit = {"max_fill_mass_kg": rm * case.water_capacity_m3, "max_filling_ratio_kg_per_l": rm / 1000.0,
                       "max_fill_mass_basis": basis}
-    limits = {**mass_limit, "max_gas_temperature_k": max_t, "max_fill_pressure_pa": max_p, "target_peak_pressure_pa": target,
+    limits = {**mass_limit, "max_gas_temperature_k": _opt(cols["max_t"][k]), "max_fill_pressure_pa": _opt(cols["max_p"][k]),
+              "target_peak_pressure_pa": float(cols["target"][k]),
               "note": "solved on each applicable real-gas model; the lowest (most conservative) value is given",
-              "liquid_full_temperature_k": None, "dry_out_temperature_k": dry,
-              "phase_boundary_pressure_pa": crossing, "dp_dt_after_liquid_full_pa_k": None}
-    fill_rho_molar = rho_mass / case.gas.molar_mass
-    mass = rho_mass * case.water_capacity_m3
-    rho_m = fill_rho_molar * case.gas.molar_mass
-    g = case.gas
+              "liquid_full_temperature_k": _opt(cols["liquid_full"][k]), "dry_out_temperature_k": _opt(cols["dry"][k]),
+              "phase_boundary_pressure_pa": _opt(cols["crossing"][k]),
+              "dp_dt_after_liquid_full_pa_k": _opt(cols["dpdt_liquid_full"][k])}
     result = {
         "id": case.id, "description": case.description, "source": case.source,
         "tool_version": __version__, "input_sha256": case.input_sha256,
         "site": {"name": case.site.name, "atmospheric_pressure_pa": atm, "elevation_m": case.site.elevation_m},
-        "verdict": verdict, "reasons": reasons, "warnings": warnings,
-        "gas": {"name": g.name, "kind": g.kind, "hazards": list(g.hazards),
+        "verdict": v["verdict"], "reasons": v["reasons"], "warnings": v["warnings"],
+        "gas": {"name": gas.name, "kind": gas.kind, "hazards": list(gas.hazards),
                 "components": [{"name": c.name, "formula": c.formula, "fraction": x,
                                 "molar_mass_kg_mol": c.molar_mass, "coolprop_name": c.coolprop_name}
-                               for c, x in zip(g.components, g.fractions)]},
+                               for c, x in zip(gas.components, gas.fractions)]},
         "vessel": {"water_capacity_m3": case.water_capacity_m3, "rated_pressure_pa": case.rated_pressure_pa,
                    "rated_pressure_kind": case.rated_pressure_kind,
                    "relief_set_pressure_pa": case.relief_set_pressure_pa,
                    "max_filling_ratio_kg_per_l": (case.max_filling_ratio_kg_m3 / 1000.0
                                                   if case.max_filling_ratio_kg_m3 is not None else None)},
         "fill": {"pressure_pa": case.fill_pressure_pa, "temperature_k": t_fill, "temperature_given": True,
-                 "density_kg_m3": rho_m, "molar_density_mol_m3": fill_rho_molar, "mass_kg": mass,
-                 "phase": phase, "filling_ratio_kg_per_l": rho_m / 1000.0 if rho_m else None,
+                 "density_kg_m3": rho_mass, "molar_density_mol_m3": rho_molar,
+                 "mass_kg": rho_mass * case.water_capacity_m3,
+                 "phase": phase, "filling_ratio_kg_per_l": rho_mass / 1000.0 if rho_mass else None,
                  "vapour_pressure_pa": None, "given": "pressure"},
-        "worst_case_temperature_k": t_peak, "worst_case_basis": worst[1],
+        "worst_case_temperature_k": t_peak,
+        "worst_case_basis": "gas temperature stated in the case" if cols["stated"][k] else "ambient maximum",
         "models": models,
         "peak_pressure_pa": peak, "nominal_peak_pressure_pa": peak, "tolerance": None,
         "governing_model": gov_name, "governing_reason": governing_reason,
         "rated_pressure_pa": case.rated_pressure_pa, "relief_set_pressure_pa": case.relief_set_pressure_pa,
         "required_margin_fraction": case.required_margin,
         "required_margin_is_default": case.required_margin_is_default,
-        "margin_fraction": margin, "relief_margin_fraction": relief_margin,
+        "margin_fraction": v["margin_fraction"], "relief_margin_fraction": v["relief_margin_fraction"],
         "nominal_margin_fraction": 1.0 - (peak - atm) / (case.rated_pressure_pa - atm),
         "limits": limits, "curves": None, "phase_diagram": None,
         "inputs": list(case.inputs), "display_units": dict(case.display_units),
@@ -563,6 +734,17 @@ def single(case: Case) -> dict:
     return r
 
 
+def _vector_gas(gas: Mixture) -> bool:
+    return gas.is_pure and gas.kind == "permanent" and gas.components[0].coolprop_name is not None
+
+
+def _run_columns(parts: list[Rows]) -> list[dict]:
+    """_columns of every part; on two or more cores and enough rows, parts run in forked workers."""
+    from screening import parallel
+
+    return parallel.map_rows(_columns, parts)
+
+
 def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = None) -> list[dict]:
     """Screen every case; results in the input order. `progress(n)` is told of rows done.
 
@@ -577,15 +759,19 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
             groups.setdefault(c.gas.name, []).append(i)
         else:
             rest.append(i)
-    for _name, idx in groups.items():
-        got = _group([cases[i] for i in idx])
-        for i, r in zip(idx, got):
-            if r is None:
+    names = list(groups)
+    all_cols = _run_columns([Rows.of_cases([cases[i] for i in groups[nm]]) for nm in names])
+    for nm, cols in zip(names, all_cols):
+        idx = groups[nm]
+        done = 0
+        for k, i in enumerate(idx):
+            if cols["fallback"][k]:
                 rest.append(i)
             else:
-                results[i] = r
+                results[i] = _assemble(cases[i], cols, k)
+                done += 1
         if progress:
-            progress(sum(r is not None for r in got))
+            progress(done)
     STATS["vectorised"] = len(cases) - len(rest)
     STATS["per_row"] = len(rest)
     for i in sorted(rest):
@@ -596,6 +782,91 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
         if progress:
             progress(1)
     return results  # type: ignore[return-value]
+
+
+def slim(r: dict) -> dict:
+    """The part of a result the batch table, CSV and counts use."""
+    lim = r.get("limits") or {}
+    return {"id": r.get("id"), "verdict": r["verdict"], "reasons": r.get("reasons") or [],
+            "warnings": r.get("warnings") or [], "peak_pressure_pa": r.get("peak_pressure_pa"),
+            "rated_pressure_pa": r.get("rated_pressure_pa"), "margin_fraction": r.get("margin_fraction"),
+            "required_margin_fraction": r.get("required_margin_fraction"),
+            "governing_model": r.get("governing_model"),
+            "limits": {"max_gas_temperature_k": lim.get("max_gas_temperature_k"),
+                       "max_fill_pressure_pa": lim.get("max_fill_pressure_pa")},
+            "gas": {"name": (r.get("gas") or {}).get("name", "")}, "display_units": r.get("display_units") or {},
+            "site": {"atmospheric_pressure_pa": (r.get("site") or {}).get("atmospheric_pressure_pa")}}
+
+
+class PlainScreening:
+    """The screening of an inventory's plain rows: a slim result per row at once, the full result on demand.
+
+    ``summaries[j]`` holds what the batch table, CSV and counts need (see :func:`slim`); ``full(j)`` gives
+    the result dict of :func:`screen_cases` for the row (read again through the case reader for the
+    row's own texts). Rows the vectorised path does not cover are screened per row, in full, here.
+    """
+
+    def __init__(self, plain: PlainRows, progress: Callable[[int], None] | None = None) -> None:
+        self.plain = plain
+        n = len(plain)
+        self.summaries: list[dict | None] = [None] * n
+        self._full: dict[int, dict] = {}
+        self._where: dict[int, tuple[dict, int]] = {}
+        groups: dict[str, list[int]] = {}
+        rest: list[int] = []
+        for j, gas in enumerate(plain.gases):
+            (groups.setdefault(gas.name, []) if _vector_gas(gas) else rest).append(j)
+        names = list(groups)
+        parts = []
+        for nm in names:
+            idx = np.array(groups[nm], dtype=np.int64)
+            parts.append(Rows(plain.gases[idx[0]], plain.fill_pressure_pa[idx], plain.fill_temperature_k[idx],
+                              plain.ambient_max_k[idx], plain.gas_temperature_k[idx], plain.rated_pa[idx],
+                              plain.atmospheric_pa[idx], plain.required_margin[idx]))
+        for nm, cols in zip(names, _run_columns(parts)):
+            done = 0
+            gas = plain.gases[groups[nm][0]]
+            molar_mass = gas.molar_mass
+            for k, j in enumerate(groups[nm]):
+                if cols["fallback"][k]:
+                    rest.append(j)
+                    continue
+                relief = _opt(plain.relief_pa[j])
+                ratio = _opt(plain.max_filling_ratio_kg_m3[j])
+                v = _verdict(cols, k, molar_mass, float(plain.rated_pa[j]), relief, float(plain.atmospheric_pa[j]),
+                             float(plain.required_margin[j]), ratio, "exposure")
+                self._where[j] = (cols, k)
+                self.summaries[j] = {
+                    "id": plain.ids[j], "verdict": v["verdict"], "reasons": v["reasons"], "warnings": v["warnings"],
+                    "peak_pressure_pa": v["peak_pressure_pa"], "rated_pressure_pa": float(plain.rated_pa[j]),
+                    "margin_fraction": v["margin_fraction"],
+                    "required_margin_fraction": float(plain.required_margin[j]),
+                    "governing_model": v["governing_model"],
+                    "limits": {"max_gas_temperature_k": _opt(cols["max_t"][k]),
+                               "max_fill_pressure_pa": _opt(cols["max_p"][k])},
+                    "gas": {"name": gas.name}, "display_units": plain.display_units[j],
+                    "site": {"atmospheric_pressure_pa": float(plain.atmospheric_pa[j])}}
+                done += 1
+            if progress:
+                progress(done)
+        self.vectorised = n - len(rest)
+        self.per_row = len(rest)
+        for j in sorted(rest):
+            try:
+                r = single(plain.case(j))
+            except InputError as exc:
+                r = {"verdict": "input-error", "error": exc}
+            self._full[j] = r
+            self.summaries[j] = slim(r) if r["verdict"] != "input-error" else r
+            if progress:
+                progress(1)
+
+    def full(self, j: int) -> dict:
+        """The full result dict of the j-th plain row."""
+        if j in self._full:
+            return self._full[j]
+        cols, k = self._where[j]
+        return _assemble(self.plain.case(j), cols, k)
 
 
 def iter_chunks(items: list, size: int) -> Iterable[list]:

@@ -19,6 +19,9 @@ from screening.units import Reading, parse, standard_atmosphere_pressure, to_abs
 
 #: The default required margin: a tool default, not a code requirement.
 DEFAULT_REQUIRED_MARGIN = 0.10
+#: Range accepted for a stated atmospheric pressure [Pa] (absolute): from high mountain sites to a deep
+#: low-lying site in a high; anything outside is taken for a typing error.
+ATMOSPHERIC_PRESSURE_RANGE_PA = (30e3, 110e3)
 
 # Allowed keys per table: anything else is an input error (a misspelt key must not be ignored).
 _SCHEMA: dict[str, set[str]] = {
@@ -239,7 +242,7 @@ def parse_case_data(data: dict, source: str, text: str) -> Case:
             raise r.err("atmospheric pressure is absolute by nature", "site.atmospheric_pressure",
                         given=p_atm_reading.text, expected="an absolute pressure, e.g. '101.3 kPa(a)'")
         p_atm = p_atm_reading.si()
-        if not 30e3 <= p_atm <= 110e3:
+        if not ATMOSPHERIC_PRESSURE_RANGE_PA[0] <= p_atm <= ATMOSPHERIC_PRESSURE_RANGE_PA[1]:
             raise r.err("atmospheric pressure out of range", "site.atmospheric_pressure",
                         given=p_atm_reading.text, expected="30 kPa(a) to 110 kPa(a)")
         r.record("site.atmospheric_pressure", p_atm_reading, p_atm, "Pa (absolute)")

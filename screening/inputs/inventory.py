@@ -191,6 +191,14 @@ def load_defaults(path: str | Path) -> dict:
     return data
 
 
+def cell_value(col: Column, cell: str | None) -> str:
+    """A cell's text as the case reads it: stripped, with the header's unit after a bare number."""
+    value = (cell or "").strip()
+    if value and col.unit and col.key not in _TEXT_KEYS and _BARE_NUMBER.match(value):
+        value = f"{value} {col.unit}"
+    return value
+
+
 def row_data(inv: Inventory, cells: list[str], defaults: dict | None) -> tuple[dict, str]:
     """The nested case data of one row (defaults first, then the row's non-empty cells) and its text."""
     data: dict = {}
@@ -198,11 +206,9 @@ def row_data(inv: Inventory, cells: list[str], defaults: dict | None) -> tuple[d
         data[k] = dict(v) if isinstance(v, dict) else v
     lines = []
     for col, cell in zip(inv.columns, cells + [""] * (len(inv.columns) - len(cells))):
-        value = (cell or "").strip()
+        value = cell_value(col, cell)
         if not value:
             continue
-        if col.unit and col.key not in _TEXT_KEYS and _BARE_NUMBER.match(value):
-            value = f"{value} {col.unit}"
         lines.append(f"{col.header} = {value!r}")
         if "." in col.key:
             table, key = col.key.split(".", 1)

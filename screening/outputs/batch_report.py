@@ -149,7 +149,10 @@ def _detail(r: dict) -> dict:
     return d
 
 
-def build_view(results: list[dict], *, source: str, all_details: bool, report_date: _dt.date) -> dict:
+def build_view(results: list[dict], *, source: str, all_details: bool, report_date: _dt.date,
+               full=None) -> dict:
+    """The template's view. ``full(i)``, where given, gives row i's full result for its detail section
+    (the batch keeps only what the table needs for most rows)."""
     from screening.batch import ORDER, cells, ranked, summary
 
     s = summary(results)
@@ -159,7 +162,9 @@ def build_view(results: list[dict], *, source: str, all_details: bool, report_da
         table.append(dict(row=str(r["row"]), id=str(r.get("id") or "—"), verdict=r["verdict"], gas=c["gas"],
                           peak=c["peak"], rated=c["rated"], margin=c["margin"], t_max=c["t_max"]))
     pages = [table[k:k + ROWS_PER_PAGE] for k in range(0, len(table), ROWS_PER_PAGE)]
-    detail_rows = [r for r in ranked(results) if all_details or r["verdict"] != "within"]
+    position = {id(r): i for i, r in enumerate(results)}
+    detail_rows = [full(position[id(r)]) if full is not None else r
+                   for r in ranked(results) if all_details or r["verdict"] != "within"]
     return dict(
         title=f"Batch pressure screening \u2014 {os.path.basename(source)}", source=str(source),
         report_date=report_date.isoformat(), counts=[(v, s["counts"][v]) for v in ORDER], rows=s["rows"],
@@ -170,13 +175,13 @@ def build_view(results: list[dict], *, source: str, all_details: bool, report_da
 
 
 def render_batch_pdf_bytes(results: list[dict], *, source: str, all_details: bool = False,
-                           report_date: _dt.date | None = None) -> bytes:
+                           report_date: _dt.date | None = None, full=None) -> bytes:
     import weasyprint
     from weasyprint.urls import FatalURLFetchingError
 
     report_date = report_date or _dt.date.today()
     folder = templates_dir()
-    view = build_view(results, source=source, all_details=all_details, report_date=report_date)
+    view = build_view(results, source=source, all_details=all_details, report_date=report_date, full=full)
     html_text = _environment(folder).get_template(TEMPLATE).render(v=view)
     fetcher = _make_fetcher(folder)
     try:
@@ -187,12 +192,13 @@ def render_batch_pdf_bytes(results: list[dict], *, source: str, all_details: boo
 
 
 def render_batch_report(results: list[dict], out_path, *, source: str, all_details: bool = False,
-                        report_date: _dt.date | None = None, quiet: bool = True):
+                        report_date: _dt.date | None = None, quiet: bool = True, full=None):
     """Write the batch PDF atomically (temporary file beside the target, then moved into place)."""
     from screening.batch import atomic_writer, check_target
 
     check_target(out_path, "PDF report")
-    pdf = render_batch_pdf_bytes(results, source=source, all_details=all_details, report_date=report_date)
+    pdf = render_batch_pdf_bytes(results, source=source, all_details=all_details, report_date=report_date,
+                                 full=full)
     with atomic_writer(out_path, "PDF report", binary=True) as fh:
         fh.write(pdf)
     return out_path

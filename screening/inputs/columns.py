@@ -1,0 +1,309 @@
+"""Column-wise reading of the plain rows of an inventory, for the batch engine.
+
+An inventory of thousands of cylinders repeats its values: a few gases, capacities and ratings, fill
+pressures and temperatures written to a tenth. Reading every row through the case validator costs far
+more than screening it, so the rows that hold only the plain keys below are read column by column:
+each distinct cell text is parsed once, with the same unit parser (:func:`screening.units.parse`) and
+the same gas parser as a case file, and the row's values are gathered into arrays in SI.
+
+What a plain row is: every non-empty cell (or default) belongs to :data:`PLAIN_KEYS`; the fill is given
+by pressure and temperature; and every check of :func:`screening.inputs.case.parse_case_data` that
+applies to these keys passes. Anything else, or any doubt, leaves the row to
+:func:`screening.inputs.inventory.row_case`, the authoritative reader, which also writes the located
+message of a bad row. This module never writes an error message of its own: a row it cannot accept is
+simply not plain. ``tests/test_columns.py`` checks that every plain row gives exactly the values the
+case reader gives.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from screening.constants import P_STANDARD_ATMOSPHERE
+from screening.errors import InputError
+from screening.inputs.case import ATMOSPHERIC_PRESSURE_RANGE_PA, DEFAULT_REQUIRED_MARGIN, Case
+from screening.inputs.gas_spec import parse_gas
+from screening.inputs.inventory import Inventory, cell_value, row_case
+from screening.physics.gases import Mixture
+from screening.units import parse, standard_atmosphere_pressure
+
+#: Case keys a plain row may hold (as columns or defaults).
+PLAIN_KEYS = frozenset({
+    "id", "description", "pressure_basis", "site.name", "site.atmospheric_pressure", "site.elevation",
+    "fill.gas", "vessel.water_capacity", "vessel.rated_pressure", "vessel.rated_pressure_kind",
+    "vessel.relief_set_pressure", "vessel.max_filling_ratio", "fill.pressure", "fill.temperature",
+    "exposure.ambient_max", "exposure.gas_temperature", "criteria.required_margin",
+})
+_TEXT = {"id", "description", "site.name", "vessel.rated_pressure_kind"}
+_PRESSURES = ("vessel.rated_pressure", "vessel.relief_set_pressure", "fill.pressure")
+
+
+class _NotPlain(Exception):
+    """A value the column reader does not accept; the row goes to the case reader."""
+
+
+@dataclass
+class PlainRows:
+    """Plain rows of an inventory as arrays in SI (pressures absolute [Pa], temperatures [K], [m3], [-]).
+
+    ``index[j]`` is the position in ``inv.rows`` of the j-th plain row; NaN marks an absent optional value.
+    """
+
+    inv: Inventory
+    defaults: dict | None
+    index: np.ndarray
+    ids: list[str]
+    gases: list[Mixture]
+    atmospheric_pa: np.ndarray
+    water_capacity_m3: np.ndarray
+    rated_pa: np.ndarray
+    relief_pa: np.ndarray
+    max_filling_ratio_kg_m3: np.ndarray
+    fill_pressure_pa: np.ndarray
+    fill_temperature_k: np.ndarray
+    ambient_max_k: np.ndarray
+    gas_temperature_k: np.ndarray
+    required_margin: np.ndarray
+    required_margin_is_default: np.ndarray
+    display_units: list[dict]
+    _cases: dict = field(default_factory=dict)
+
+    def __len__(self) -> int:
+        return len(self.ids)
+
+    def case(self, j: int) -> Case:
+        """The j-th plain row read by the case reader (the full Case, for a report or a JSON result)."""
+        if j not in self._cases:
+            n, cells = self.inv.rows[int(self.index[j])]
+            self._cases[j] = row_case(self.inv, n, cells, self.defaults)
+        return self._cases[j]
+
+
+def _flatten_defaults(defaults: dict | None) -> dict[str, object] | None:
+    """Defaults as {case key: value}; None if they hold anything a plain row cannot (scenarios, tolerances…)."""
+    flat: dict[str, object] = {}
+    for k, v in (defaults or {}).items():
+        if isinstance(v, dict):
+            for k2, v2 in v.items():
+                flat[f"{k}.{k2}"] = v2
+        else:
+            flat[k] = v
+    if any(k not in PLAIN_KEYS or isinstance(v, (dict, list)) for k, v in flat.items()):
+        return None
+    return flat
+
+
+_MISSING = object()
+
+
+def _parser(key: str):
+    """value -> parsed value for one key; raises for a value a plain row may not hold. Pressures take
+    (value, basis) and give (SI value as written, gauge?, unit label)."""
+    if key in _TEXT:
+        def text(value):
+            if not isinstance(value, str) or not value.strip():
+                raise _NotPlain
+            return value
+        return text
+    if key == "pressure_basis":
+        def basis(value):
+            if value not in ("gauge", "absolute"):
+                raise _NotPlain
+            return value
+        return basis
+    if key == "fill.gas":
+        return parse_gas
+    if key in _PRESSURES:
+        def pressure(arg):
+            value, basis = arg
+            reading = parse(value, "pressure", pressure_basis=basis)
+            return reading.si(), reading.unit.basis == "gauge", reading.unit.label
+        return pressure
+    if key == "site.atmospheric_pressure":
+        def atmospheric(value):
+            reading = parse(value, "pressure", pressure_basis="absolute")
+            p = reading.si()
+            lo, hi = ATMOSPHERIC_PRESSURE_RANGE_PA
+            if reading.unit.basis == "gauge" or not lo <= p <= hi:
+                raise _NotPlain
+            return p, reading.unit.label
+        return atmospheric
+    if key == "site.elevation":
+        def elevation(value):
+            return standard_atmosphere_pressure(parse(value, "length").si()), None
+        return elevation
+    kind = {"vessel.water_capacity": "volume", "vessel.max_filling_ratio": "density",
+            "fill.temperature": "temperature", "exposure.ambient_max": "temperature",
+            "exposure.gas_temperature": "temperature", "criteria.required_margin": "fraction"}[key]
+
+    def quantity(value):
+        reading = parse(value, kind)
+        v = reading.si()
+        if kind == "fraction":
+            if not 0.0 <= v < 1.0:
+                raise _NotPlain
+        elif not v > 0.0:
+            raise _NotPlain
+        return v, reading.unit.label
+    return quantity
+
+
+class _Cache:
+    """Parses each distinct value of one key once; _NotPlain for a value that does not parse."""
+
+    def __init__(self, key: str) -> None:
+        self.parse = _parser(key)
+        self.seen: dict = {}
+
+    def __call__(self, value):
+        try:
+            return self.seen[value]
+        except KeyError:
+            pass
+        except TypeError:           # an unhashable default (a table): not plain
+            return _NotPlain
+        try:
+            got = self.parse(value)
+        except (InputError, _NotPlain, TypeError, ValueError):
+            got = _NotPlain
+        self.seen[value] = got
+        return got
+
+
+def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
+    """The plain rows of ``inv.rows``, as arrays."""
+    empty = {k: [] for k in ("index", "ids", "gases", "atm", "cap", "rated", "relief", "ratio", "p", "t", "amb",
+                             "gas_t", "margin", "margin_default", "units")}
+    flat = _flatten_defaults(defaults)
+    if flat is None:
+        return _finish(inv, defaults, empty)
+    n_rows, width = len(inv.rows), len(inv.columns)
+    ok = np.ones(n_rows, dtype=bool)
+    # the text of every key per row: the column's cell (with the header's unit), else the default, else missing
+    texts: dict[str, list] = {}
+    for j, col in enumerate(inv.columns):
+        cells = [(row[j] if j < len(row) else "") for _, row in inv.rows]
+        seen: dict[str, str] = {}
+        values = []
+        for c in cells:
+            v = seen.get(c)
+            if v is None:
+                v = seen[c] = cell_value(col, c)
+            values.append(v)
+        if col.key not in PLAIN_KEYS:
+            ok &= np.array([not v for v in values], dtype=bool)
+            continue
+        default = flat.get(col.key, _MISSING)
+        texts[col.key] = [v if v else default for v in values]
+    for k, v in flat.items():
+        texts.setdefault(k, [v] * n_rows)
+    for pos, (_, row) in enumerate(inv.rows):
+        if len(row) > width and any((c or "").strip() for c in row[width:]):
+            ok[pos] = False
+
+    def column(key: str) -> list:
+        return texts.get(key) or [_MISSING] * n_rows
+
+    def parsed(key: str, values: list, required: bool = False) -> list:
+        if key not in texts:                                    # neither a column nor a default
+            if required:
+                ok[:] = False
+            return [None] * n_rows
+        cache = _Cache(key)
+        out = []
+        for i, v in enumerate(values):
+            if v is _MISSING:
+                if required:
+                    ok[i] = False
+                out.append(None)
+                continue
+            got = cache(v)
+            if got is _NotPlain:
+                ok[i] = False
+                got = None
+            out.append(got)
+        return out
+
+    ids = parsed("id", column("id"), required=True)
+    for key in ("description", "site.name", "vessel.rated_pressure_kind"):
+        parsed(key, column(key))
+    bases = parsed("pressure_basis", column("pressure_basis"))
+    atm_read = parsed("site.atmospheric_pressure", column("site.atmospheric_pressure"))
+    elev_read = parsed("site.elevation", column("site.elevation"))
+    atm = np.full(n_rows, P_STANDARD_ATMOSPHERE)
+    atm_label: list = [None] * n_rows
+    elev_given = column("site.elevation")
+    for i, (a, e) in enumerate(zip(atm_read, elev_read)):
+        if a is not None:
+            if elev_given[i] is not _MISSING:
+                ok[i] = False                       # both given
+            atm[i], atm_label[i] = a
+        elif e is not None:
+            atm[i] = e[0]
+
+    def pressures(key: str, required: bool = False) -> tuple[np.ndarray, list]:
+        raw = texts.get(key)
+        got = parsed(key, [v if v is _MISSING else (v, b) for v, b in zip(raw, bases)] if raw else [], required)
+        p_abs = np.full(n_rows, np.nan)
+        labels: list = [None] * n_rows
+        if raw is None:
+            return p_abs, labels
+        for i, g in enumerate(got):
+            if g is not None:
+                p_abs[i] = g[0] + atm[i] if g[1] else g[0]
+                labels[i] = g[2]
+        with np.errstate(invalid="ignore"):
+            ok[np.isfinite(p_abs) & ~(p_abs > 0.0)] = False
+        return p_abs, labels
+
+    def quantities(key: str, required: bool = False) -> tuple[np.ndarray, list]:
+        got = parsed(key, column(key), required)
+        return (np.array([np.nan if g is None else g[0] for g in got], dtype=float),
+                [None if g is None else g[1] for g in got])
+
+    cap, cap_label = quantities("vessel.water_capacity", required=True)
+    rated, rated_label = pressures("vessel.rated_pressure", required=True)
+    relief, _ = pressures("vessel.relief_set_pressure")
+    ratio, _ = quantities("vessel.max_filling_ratio")
+    gases = parsed("fill.gas", column("fill.gas"), required=True)
+    p_fill, _ = pressures("fill.pressure", required=True)
+    t_fill, t_label = quantities("fill.temperature", required=True)
+    amb, _ = quantities("exposure.ambient_max")
+    hot, _ = quantities("exposure.gas_temperature")
+    margin, _ = quantities("criteria.required_margin")
+    margin_default = np.array([v is _MISSING for v in column("criteria.required_margin")], dtype=bool)
+    margin = np.where(margin_default, DEFAULT_REQUIRED_MARGIN, margin)
+    with np.errstate(invalid="ignore"):
+        ok &= rated > atm                                       # NaN (a refused rating) is not above
+        ok &= np.isnan(relief) | (relief > atm)
+        ok &= ~(np.isnan(amb) & np.isnan(hot))                 # the worst case needs one of them
+
+    # the display units: the first reading of each kind in the case reader's order
+    units_cache: dict[tuple, dict] = {}
+    out = empty
+    for i in np.flatnonzero(ok):
+        pressure_label = atm_label[i] or rated_label[i]
+        ukey = (pressure_label, t_label[i], cap_label[i])
+        units = units_cache.get(ukey)
+        if units is None:
+            units = units_cache[ukey] = {"pressure": "bar(a)" if pressure_label == "atm" else pressure_label,
+                                         "temperature": t_label[i], "volume": cap_label[i], "mass": "kg"}
+        out["ids"].append(ids[i])
+        out["gases"].append(gases[i])
+        out["units"].append(units)
+    sel = np.flatnonzero(ok)
+    out["index"] = sel
+    for name, arr in (("atm", atm), ("cap", cap), ("rated", rated), ("relief", relief), ("ratio", ratio),
+                      ("p", p_fill), ("t", t_fill), ("amb", amb), ("gas_t", hot), ("margin", margin),
+                      ("margin_default", margin_default)):
+        out[name] = arr[sel]
+    return _finish(inv, defaults, out)
+
+
+def _finish(inv: Inventory, defaults: dict | None, out: dict) -> PlainRows:
+    f = lambda k: np.array(out[k], dtype=float)  # noqa: E731
+    return PlainRows(inv, defaults, np.array(out["index"], dtype=np.int64), out["ids"], out["gases"], f("atm"),
+                     f("cap"), f("rated"), f("relief"), f("ratio"), f("p"), f("t"), f("amb"), f("gas_t"),
+                     f("margin"), np.array(out["margin_default"], dtype=bool), out["units"])

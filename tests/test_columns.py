@@ -1,0 +1,93 @@
+"""The column-wise reader of plain inventory rows gives exactly what the case reader gives, and never
+accepts a row the case reader refuses."""
+
+import math
+
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+
+from screening.errors import InputError
+from screening.inputs.columns import read_plain
+from screening.inputs.inventory import read_inventory, row_case
+
+HEAD = ("id,gas,water_capacity,rated_pressure [bar(g)],relief_set_pressure,fill_pressure,fill_temperature,"
+        "ambient_max,gas_temperature,required_margin,site,elevation,atmospheric_pressure,max_filling_ratio")
+
+# cell texts, good and bad, as people type them
+GAS = st.sampled_from(["nitrogen", "argon", "Argon", "N2", "methane", "carbon dioxide", "unobtainium", "",
+                       "argon 82% + carbon dioxide 18%", "helium"])
+CAP = st.sampled_from(["50 L", "10", "0.05 m3", "-1 L", "50 bar(g)", "", "1.7 ft3"])
+RATED = st.sampled_from(["300", "200 bar(g)", "3000 psig", "0", "0.5 bar(a)", "20 MPa(a)", "lots", ""])
+RELIEF = st.sampled_from(["", "330 bar(g)", "0.2 bar(g)", "330"])
+PRESSURE = st.sampled_from(["200 bar(g)", "150.5 barg", "2900 psig", "201 bar(a)", "200 bar", "-5 bar(g)",
+                            "-2 bar(a)", "", "x"])
+TEMP = st.sampled_from(["15 degC", "59 degF", "288.15 K", "-300 degC", "15", "", "20 °C"])
+AMB = st.sampled_from(["45 degC", "", "40 degC", "0 K", "hot"])
+HOT = st.sampled_from(["", "65 degC", "30 degC"])
+MARGIN = st.sampled_from(["", "10 %", "0.05", "100 %", "-1 %"])
+SITE = st.sampled_from(["", "North yard"])
+ELEV = st.sampled_from(["", "240 m", "20000 m"])
+ATM = st.sampled_from(["", "98.5 kPa(a)", "98.5 kPa(g)", "150 kPa(a)", "0.98 bar(a)"])
+RATIO = st.sampled_from(["", "0.75 kg/L", "-0.1 kg/L"])
+ROW = st.tuples(GAS, CAP, RATED, RELIEF, PRESSURE, TEMP, AMB, HOT, MARGIN, SITE, ELEV, ATM, RATIO)
+
+
+def _same(a, b):
+    if a is None or (isinstance(a, float) and math.isnan(a)):
+        return b is None
+    return a == b
+
+
+@settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(st.lists(ROW, min_size=5, max_size=25))
+def test_plain_rows_match_the_case_reader(tmp_path_factory, rows):
+    path = tmp_path_factory.mktemp("inv") / "inv.csv"
+    lines = [HEAD] + [f"R{i}," + ",".join(cells) for i, cells in enumerate(rows)]
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    inv = read_inventory(path)
+    plain = read_plain(inv, None)
+    accepted = {int(pos): j for j, pos in enumerate(plain.index)}
+    for pos, (n, cells) in enumerate(inv.rows):
+        try:
+            case = row_case(inv, n, cells, None)
+        except InputError:
+            assert pos not in accepted, (cells, "accepted by the column reader, refused by the case reader")
+            continue
+        if pos not in accepted:
+            continue
+        j = accepted[pos]
+        assert plain.ids[j] == case.id
+        assert plain.gases[j] == case.gas
+        assert plain.atmospheric_pa[j] == case.site.atmospheric_pressure_pa
+        assert plain.water_capacity_m3[j] == case.water_capacity_m3
+        assert plain.rated_pa[j] == case.rated_pressure_pa
+        assert _same(float(plain.relief_pa[j]), case.relief_set_pressure_pa)
+        assert _same(float(plain.max_filling_ratio_kg_m3[j]), case.max_filling_ratio_kg_m3)
+        assert plain.fill_pressure_pa[j] == case.fill_pressure_pa
+        assert plain.fill_temperature_k[j] == case.fill_temperature_k
+        assert _same(float(plain.ambient_max_k[j]), case.ambient_max_k)
+        assert _same(float(plain.gas_temperature_k[j]), case.gas_temperature_k)
+        assert plain.required_margin[j] == case.required_margin
+        assert bool(plain.required_margin_is_default[j]) == case.required_margin_is_default
+        assert plain.display_units[j] == case.display_units
+        assert plain.case(j) == case
+
+
+def test_defaults_fill_plain_rows_and_unusual_defaults_send_every_row_to_the_case_reader(tmp_path):
+    path = tmp_path / "inv.csv"
+    path.write_text("id,gas,water_capacity,rated_pressure,fill_pressure,fill_temperature\n"
+                    "A,nitrogen,50 L,300 bar(g),200 bar(g),15 degC\n", encoding="utf-8")
+    inv = read_inventory(path)
+    plain = read_plain(inv, {"exposure": {"ambient_max": "45 degC"}, "criteria": {"required_margin": "5 %"}})
+    assert len(plain) == 1 and plain.ambient_max_k[0] == 318.15 and plain.required_margin[0] == 0.05
+    assert len(read_plain(inv, {"exposure": {"ambient_max": "45 degC", "solar": "sun"}})) == 0
+    assert len(read_plain(inv, {"exposure": {"ambient_max": "45 degC"}, "tolerance": {"fill_temperature": "2 K"}})) == 0
+
+
+def test_a_column_outside_the_plain_keys_sends_its_rows_to_the_case_reader(tmp_path):
+    path = tmp_path / "inv.csv"
+    path.write_text("id,gas,water_capacity,rated_pressure,fill_pressure,fill_temperature,ambient_max,solar\n"
+                    "A,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC,sun\n"
+                    "B,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC,\n", encoding="utf-8")
+    plain = read_plain(read_inventory(path), None)
+    assert plain.ids == ["B"]
