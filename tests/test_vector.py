@@ -85,3 +85,52 @@ def test_rows_outside_the_vectorised_path_go_per_row():
     for c, r in zip(cases, got):
         s = screen_case(c)
         assert r["verdict"] == s["verdict"] and close(r["peak_pressure_pa"], s["peak_pressure_pa"], 0.0)
+
+
+def test_dense_supercritical_methane_fill_stays_on_the_vectorised_path_with_its_liquid_full_point():
+    # methane at 250 bar(g) and 5 degC is denser than critical: its isochore meets the saturated-liquid
+    # curve below the critical temperature (the liquid-full point), which both paths report alike
+    items = [("methane", 50, 300, 250, 5, 45, None), ("methane", 50, 300, 150, 25, 45, None)]
+    cases = [parse_case_data(data(*it), "t.csv", "x") for it in items]
+    got = vector.screen_cases(cases)
+    assert vector.STATS["vectorised"] == 2
+    for c, r in zip(cases, got):
+        s = screen_case(c)
+        for k in LIMITS + ("liquid_full_temperature_k", "dp_dt_after_liquid_full_pa_k"):
+            assert close(r["limits"].get(k), s["limits"].get(k), LIMIT_RTOL), (k, r["limits"].get(k), s["limits"].get(k))
+    assert got[0]["limits"]["liquid_full_temperature_k"] is not None and got[0]["limits"]["dry_out_temperature_k"] is None
+    assert got[1]["limits"]["liquid_full_temperature_k"] is None and got[1]["limits"]["dry_out_temperature_k"] is not None
+    # the liquid-full point lies below methane's critical temperature, 190.564 K (Setzmann & Wagner 1991
+    # through CoolProp)
+    assert got[0]["limits"]["liquid_full_temperature_k"] < CP.PropsSI("Tcrit", "Methane")
+
+
+def test_forked_workers_give_the_same_columns_as_one_process():
+    items = [(g, 50, 300, 150 + 7 * i, -5 + i, 45 + i % 10, None) for i, g in enumerate(GASES * 6)]
+    cases = [parse_case_data(data(*it), "t.csv", "x") for it in items]
+    from screening import parallel
+
+    by_gas = {}
+    for c in cases:
+        by_gas.setdefault(c.gas.name, []).append(c)
+    parts = [vector.Rows.of_cases(cs) for cs in by_gas.values()]
+    one = [vector._columns(p) for p in parts]
+    forked = parallel.map_rows(vector._columns, parts, min_rows=0)
+    for a, b in zip(one, forked):
+        assert set(a) == set(b)
+        for k in a:
+            assert list(map(str, a[k])) == list(map(str, b[k])), k
+
+
+def test_a_limit_at_the_edge_of_the_lee_kesler_range_is_settled_as_the_single_screening_scans():
+    # nitrogen filled low and rated high: the generalized isochore reaches the rating only near
+    # T_r = 4, the edge of the Lee–Kesler tables, where the vectorised path scans as screen_case does
+    items = [("nitrogen", 50, 300, 150, 25, 45, None), ("nitrogen", 50, 300, 140, 30, 45, None),
+             ("nitrogen", 50, 250, 120, 20, 40, None)]
+    cases = [parse_case_data(data(*it), "t.csv", "x") for it in items]
+    got = vector.screen_cases(cases)
+    assert vector.STATS["vectorised"] == 3
+    for c, r in zip(cases, got):
+        s = screen_case(c)
+        for k in LIMITS:
+            assert close(r["limits"].get(k), s["limits"].get(k), LIMIT_RTOL), (k, r["limits"].get(k), s["limits"].get(k))

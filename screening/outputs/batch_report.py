@@ -15,7 +15,7 @@ import os
 import numpy as np
 
 from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
-from screening.outputs.plot import drawable_models, plot_svg, svg_data_uri
+from screening.outputs.plot import drawable_models, plot_png, png_data_uri, svg_data_uri
 from screening.outputs.report import (
     MODEL_TITLES,
     VERDICTS,
@@ -143,7 +143,7 @@ def _detail(r: dict) -> dict:
         if not view.get("curves"):
             view["curves"] = _curves(r)
         if view["curves"] and drawable_models(view):
-            d["plot"] = svg_data_uri(plot_svg(view))
+            d["plot"] = png_data_uri(plot_png(view))
     except Exception:  # a missing curve leaves the section without its plot, never without its numbers
         d["plot"] = None
     return d
