@@ -68,3 +68,13 @@ def map_rows(fn: Callable, parts: list, min_rows: int = MIN_ROWS) -> list[dict]:
         else:
             out.append({k: np.concatenate([c[k] for c in chunks]) for k in chunks[0]})
     return out
+
+
+def map_items(fn: Callable, items: list, min_items: int = 8) -> list:
+    """[fn(x) for x in items] in order, spread over forked workers where there are enough items
+    (fn and the items must be picklable: a module-level function and plain data)."""
+    n = workers()
+    if n < 2 or len(items) < min_items or "fork" not in multiprocessing.get_all_start_methods():
+        return [fn(x) for x in items]
+    with multiprocessing.get_context("fork").Pool(n) as pool:
+        return pool.map(fn, items, chunksize=max(1, len(items) // (4 * n)))

@@ -17,7 +17,7 @@ case reader gives.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -68,17 +68,15 @@ class PlainRows:
     required_margin: np.ndarray
     required_margin_is_default: np.ndarray
     display_units: list[dict]
-    _cases: dict = field(default_factory=dict)
 
     def __len__(self) -> int:
         return len(self.ids)
 
     def case(self, j: int) -> Case:
-        """The j-th plain row read by the case reader (the full Case, for a report or a JSON result)."""
-        if j not in self._cases:
-            n, cells = self.inv.rows[int(self.index[j])]
-            self._cases[j] = row_case(self.inv, n, cells, self.defaults)
-        return self._cases[j]
+        """The j-th plain row read by the case reader (the full Case, for a report or a JSON result);
+        read anew on each call, so that a large batch does not keep a Case per row."""
+        n, cells = self.inv.rows[int(self.index[j])]
+        return row_case(self.inv, n, cells, self.defaults)
 
 
 def _flatten_defaults(defaults: dict | None) -> dict[str, object] | None:

@@ -14,6 +14,7 @@ import os
 
 import numpy as np
 
+from screening import parallel
 from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
 from screening.outputs.plot import drawable_models, plot_png, png_data_uri, svg_data_uri
 from screening.outputs.report import (
@@ -169,7 +170,7 @@ def build_view(results: list[dict], *, source: str, all_details: bool, report_da
         title=f"Batch pressure screening \u2014 {os.path.basename(source)}", source=str(source),
         report_date=report_date.isoformat(), counts=[(v, s["counts"][v]) for v in ORDER], rows=s["rows"],
         duplicates=s["duplicate_ids"], chart=svg_data_uri(_margin_chart(results)), pages=pages,
-        details=[_detail(r) for r in detail_rows], all_details=all_details,
+        details=parallel.map_items(_detail, detail_rows), all_details=all_details,
         caution=CAUTION, short_caution=SHORT_CAUTION, assumptions=list(ASSUMPTIONS),
     )
 
