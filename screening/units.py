@@ -15,10 +15,9 @@ from __future__ import annotations
 
 import math
 import re
+import threading
 from dataclasses import dataclass
 from functools import lru_cache
-
-import pint
 
 from screening.constants import (
     G0,
@@ -30,8 +29,36 @@ from screening.constants import (
 )
 from screening.errors import InputError
 
-#: The package's one unit registry.
-ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
+
+class _RegistryOnFirstUse:
+    """Stands in for the unit registry until something converts a unit, then builds it.
+
+    Importing pint and parsing its definitions takes a good part of a second, which a process that
+    only screens an already-read case (the report commands' child process) does not need to spend. On
+    first use the module's ``ureg`` is replaced by the real registry, so later conversions go to it
+    directly.
+    """
+
+    def __getattr__(self, name: str):
+        return getattr(_registry(), name)
+
+
+_BUILDING = threading.Lock()
+
+
+def _registry():
+    """The one real registry, built once (under a lock: two registries' quantities do not mix)."""
+    global ureg
+    with _BUILDING:
+        if isinstance(ureg, _RegistryOnFirstUse):
+            import pint
+
+            ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
+    return ureg
+
+
+#: The package's one unit registry (built on first use, see _RegistryOnFirstUse).
+ureg = _RegistryOnFirstUse()
 
 _NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,4})?"
 _PATTERN = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
