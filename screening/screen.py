@@ -11,7 +11,6 @@ from dataclasses import dataclass, field, replace
 from typing import Callable
 
 import numpy as np
-from scipy.optimize import brentq
 
 from screening import __version__
 from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
@@ -29,6 +28,7 @@ from screening.physics.exposure import (
 )
 from screening.physics.gases import Mixture
 from screening.physics.isochore import isochore_phases, max_liquid_density
+from screening.physics.roots import brentq
 
 VERDICTS = ("within", "low-margin", "over", "out-of-scope")
 _SEVERITY = {"within": 0, "low-margin": 1, "over": 2, "out-of-scope": 3}

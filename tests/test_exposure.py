@@ -320,3 +320,11 @@ def test_bad_dimensions_estimate(capacity, aspect):
     with pytest.raises(InputError) as err:
         estimate_dimensions(capacity, aspect)
     assert err.value.given is not None and err.value.expected
+
+
+def test_stefan_boltzmann_constant_is_the_codata_2018_value():
+    # CODATA 2018 through scipy.constants (an independent copy of the published table)
+    import scipy.constants
+
+    from screening.constants import STEFAN_BOLTZMANN
+    assert STEFAN_BOLTZMANN == scipy.constants.sigma

@@ -54,11 +54,10 @@ from pathlib import Path
 import CoolProp.CoolProp as CP
 from ht.conv_external import Nu_cylinder_Churchill_Bernstein
 from ht.conv_free_immersed import Nu_horizontal_cylinder_Churchill_Chu, Nu_vertical_plate_Churchill
-from scipy.constants import sigma as STEFAN_BOLTZMANN  # [W/(m2 K4)], CODATA 2018 via SciPy
-from scipy.optimize import brentq
 
-from screening.constants import G0, P_STANDARD_ATMOSPHERE
+from screening.constants import G0, P_STANDARD_ATMOSPHERE, STEFAN_BOLTZMANN
 from screening.errors import InputError, NotApplicable
+from screening.physics.roots import brentq
 
 __all__ = [
     "DEFAULT_IRRADIANCE",

@@ -13,10 +13,9 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from scipy.optimize import brentq
-
 from screening.errors import NotApplicable
 from screening.physics.eos.reference import MODEL, ReferenceFluid
+from screening.physics.roots import brentq
 
 #: Within this distance [K] of the critical temperature the dome boundary is reported as near-critical.
 NEAR_CRITICAL_BAND = 0.5
