@@ -262,24 +262,35 @@ def standard_atmosphere_pressure(elevation_m: float) -> float:
 
 # ---------------------------------------------------------------- display (the edge going out)
 
+@lru_cache(maxsize=None)
+def _affine(from_unit: str, to_unit: str) -> tuple[float, float]:
+    """(scale, offset) with value_to = scale * value_from + offset, taken from pint once per unit pair
+    (every allowlisted unit is linear in SI, temperatures with an offset)."""
+    zero = float(ureg.Quantity(0.0, ureg.Unit(from_unit)).to(ureg.Unit(to_unit)).magnitude)
+    far = float(ureg.Quantity(1e6, ureg.Unit(from_unit)).to(ureg.Unit(to_unit)).magnitude)
+    return (far - zero) / 1e6, zero
+
+
 def from_si(value: float, label: str) -> float:
     """Convert an SI value into the allowlisted unit `label` (no pressure basis handling)."""
     spec = _UNITS[label] if label in _UNITS else _UNITS[label.replace("(g)", "").replace("(a)", "")]
-    q = ureg.Quantity(value, ureg.Unit(_SI_UNIT[spec.kind]))
-    return float(q.to(ureg.Unit(spec.pint_name)).magnitude)
+    scale, offset = _affine(_SI_UNIT[spec.kind], spec.pint_name)
+    return scale * value + offset
 
 
 def pressure_in(p_abs_pa: float, label: str, atmospheric_pa: float) -> float:
     """An absolute pressure [Pa] expressed in the display unit `label` (e.g. 'bar(g)', 'psia')."""
     spec = _UNITS[label]
     p = p_abs_pa - atmospheric_pa if spec.basis == "gauge" else p_abs_pa
-    return float(ureg.Quantity(p, ureg.pascal).to(ureg.Unit(spec.pint_name)).magnitude)
+    scale, offset = _affine("pascal", spec.pint_name)
+    return float(scale * p + offset)
 
 
 def temperature_in(t_k: float, label: str) -> float:
     """A temperature [K] in the display unit `label` ('K', 'degC', '°C', 'degF', '°F')."""
     spec = _UNITS[label]
-    return float(ureg.Quantity(t_k, ureg.kelvin).to(ureg.Unit(spec.pint_name)).magnitude)
+    scale, offset = _affine("kelvin", spec.pint_name)
+    return float(scale * t_k + offset)
 
 
 def _fmt(x: float, digits: int) -> str:
