@@ -1,6 +1,12 @@
 """Command line: `screening check`, `report`, `verify`, `gases`.
 
 Exit codes: 0 within rating; 1 any other verdict (or a report that does not verify); 2 input error.
+
+Commands that write a PDF (`report`, `check --pdf`) screen the case in a forked child process: the
+child imports the screening core (CoolProp loads its whole fluid library) while this process reads the
+case and imports the report layer (WeasyPrint, Matplotlib, Jinja2), so the two slow import chains run
+on two cores at once. The child sends the result back as JSON, the same JSON the report attaches; where
+fork is not available, or the child gives no answer, the case is screened here as before.
 """
 
 from __future__ import annotations
@@ -8,6 +14,8 @@ from __future__ import annotations
 import argparse
 import datetime as _dt
 import json
+import os
+import pickle
 import sys
 
 from screening import __version__
@@ -73,6 +81,157 @@ def _write_pdf(result: dict, case_text: str, out: str, date: _dt.date | None) ->
     return str(path)
 
 
+def _screened_here(path: str) -> tuple[dict, str]:
+    """(result, case text as read) of the case file at `path`, screened in this process."""
+    from screening.inputs.case import load_case
+
+    case = load_case(path)
+    from screening.screen import screen_case  # after the case reads cleanly: an input error comes sooner
+
+    return screen_case(case), case.text
+
+
+def _prepare_report_layer() -> None:
+    """Import what writing the PDF needs; only a head start, so a failure here is left for the render
+    itself to raise, in its usual order after the screening."""
+    try:
+        import weasyprint  # noqa: F401
+
+        import screening.outputs.report  # noqa: F401
+        import screening.outputs.summary  # noqa: F401
+    except Exception:
+        pass
+
+
+class _ScreeningChild:
+    """A forked child that imports the screening core at once, then screens the one case it is sent.
+
+    Parent to child: the parsed Case, pickled (the parent reads the case file itself, so the child never
+    needs the unit registry). Child to parent: one JSON message, {"result": ...} or {"input_error":
+    "the one-line message"}. A child that fails in any other way sends nothing, and the parent then
+    screens the case itself, which shows the error exactly as the plain path would.
+    """
+
+    def __init__(self) -> None:
+        sys.stdout.flush()
+        sys.stderr.flush()
+        to_child, self._to_child = os.pipe()
+        self._from_child, from_child = os.pipe()
+        self.pid = os.fork()  # OSError (no memory, no more processes) is the caller's to handle
+        if self.pid == 0:
+            os.close(self._to_child)
+            os.close(self._from_child)
+            self._run(to_child, from_child)  # does not return
+        os.close(to_child)
+        os.close(from_child)
+
+    @staticmethod
+    def _run(read_fd: int, write_fd: int) -> None:
+        status = 1
+        try:
+            try:
+                from screening.screen import screen_case  # the long import, beside the parent's work
+
+                with os.fdopen(read_fd, "rb") as pipe:
+                    data = pipe.read()
+                if not data:  # the parent had no case to send (it reports why itself)
+                    status = 0
+                    return
+                message = {"result": screen_case(pickle.loads(data))}
+            except InputError as exc:
+                message = {"input_error": str(exc)}
+            # Default json settings (ASCII escapes, NaN allowed): every str and float comes back unchanged.
+            out = memoryview(json.dumps(message).encode("ascii"))
+            while out:
+                out = out[os.write(write_fd, out):]
+            status = 0
+        except BaseException:  # whatever happens, the child must not go on to run the parent's code
+            pass
+        finally:
+            os._exit(status)
+
+    def send(self, case) -> bool:
+        """Hand the parsed case to the child; False if the child is gone."""
+        try:
+            with os.fdopen(self._to_child, "wb") as pipe:
+                self._to_child = None
+                pipe.write(pickle.dumps(case, protocol=pickle.HIGHEST_PROTOCOL))
+        except OSError:  # a broken pipe: the child has died
+            return False
+        return True
+
+    def answer(self) -> dict | None:
+        """The child's message, once it has finished; None if it gave none."""
+        with os.fdopen(self._from_child, "rb") as pipe:
+            self._from_child = None
+            data = pipe.read()
+        _, status = os.waitpid(self.pid, 0)
+        self.pid = None
+        if status != 0 or not data:
+            return None
+        try:
+            return json.loads(data)
+        except ValueError:
+            return None
+
+    def close(self) -> None:
+        """Close the pipes; stop and reap the child if it is still there (an error or an interrupt here)."""
+        for fd in (self._to_child, self._from_child):
+            if fd is not None:
+                os.close(fd)
+        self._to_child = self._from_child = None
+        if self.pid is not None:
+            import signal
+
+            try:
+                os.kill(self.pid, signal.SIGTERM)
+                os.waitpid(self.pid, 0)
+            except OSError:
+                pass
+            self.pid = None
+
+
+def _fork_helps() -> bool:
+    """Fork where the platform has it and this process has not loaded the screening core yet (a fresh
+    command; a long-lived caller that has it loaded would only pay for the fork)."""
+    return hasattr(os, "fork") and "screening.screen" not in sys.modules
+
+
+def _screened_for_pdf(path: str, *, fork: bool | None = None) -> tuple[dict, str]:
+    """(result, case text as read) for a command that goes on to write a PDF.
+
+    With `fork` (default: `_fork_helps()`), a child imports the screening core and screens the case
+    while this process reads the case and imports the report layer. An InputError found by the child is
+    raised here with the same message. Without a fork, or when the child gives no answer, the case is
+    screened here.
+    """
+    if fork is None:
+        fork = _fork_helps()
+    child = None
+    if fork:
+        try:
+            child = _ScreeningChild()
+        except OSError:
+            child = None
+    try:
+        from screening.inputs.case import load_case
+
+        case = load_case(path)
+        if child is not None and child.send(case):
+            _prepare_report_layer()
+            message = child.answer()
+            if message is not None:
+                if "input_error" in message:
+                    raise InputError(message["input_error"])
+                return message["result"], case.text
+    finally:
+        if child is not None:
+            child.close()
+    from screening.screen import screen_case
+
+    return screen_case(case), case.text
+
+
 def _exit_for(verdict: str) -> int:
     return EXIT_WITHIN if verdict == "within" else EXIT_NOT_WITHIN
 
@@ -95,13 +254,12 @@ def run(argv: list[str] | None = None) -> int:
         print(message)
         return EXIT_WITHIN if ok else EXIT_NOT_WITHIN
 
-    from screening.inputs.case import load_case
-    from screening.screen import screen_case
-
-    case = load_case(args.case)
-    result = screen_case(case)
+    if args.command == "report" or args.pdf:
+        result, case_text = _screened_for_pdf(args.case)
+    else:
+        result, case_text = _screened_here(args.case)
     if args.command == "report":
-        written = _write_pdf(result, case.text, args.output, args.date)
+        written = _write_pdf(result, case_text, args.output, args.date)
         print(f"report written: {written}")
         return _exit_for(result["verdict"])
     if args.json:
@@ -111,7 +269,7 @@ def run(argv: list[str] | None = None) -> int:
 
         print(format_summary(result))
     if args.pdf:
-        written = _write_pdf(result, case.text, args.pdf, args.date)
+        written = _write_pdf(result, case_text, args.pdf, args.date)
         print(f"report written: {written}", file=sys.stderr if args.json else sys.stdout)
     return _exit_for(result["verdict"])
 
