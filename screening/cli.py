@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import argparse
 import datetime as _dt
+import gc
 import json
 import os
 import pickle
@@ -232,6 +233,16 @@ def _screened_for_pdf(path: str, *, fork: bool | None = None) -> tuple[dict, str
     return screen_case(case), case.text
 
 
+def _ending(argv: list[str] | None) -> None:
+    """When this process runs its own command line (`argv` None), it ends after this: move every object
+    into the garbage collector's permanent generation. Interpreter shutdown still runs every exit
+    handler and closes every file, but its final collections no longer walk the hundreds of thousands
+    of objects the libraries created only to free memory the system reclaims anyway (about half a second
+    of a report command's run). A caller that passes `argv` lives on, and is left as it is."""
+    if argv is None:
+        gc.freeze()
+
+
 def _exit_for(verdict: str) -> int:
     return EXIT_WITHIN if verdict == "within" else EXIT_NOT_WITHIN
 
@@ -252,6 +263,7 @@ def run(argv: list[str] | None = None) -> int:
 
         ok, message = verify_report(args.report)
         print(message)
+        _ending(argv)
         return EXIT_WITHIN if ok else EXIT_NOT_WITHIN
 
     if args.command == "report" or args.pdf:
@@ -261,6 +273,7 @@ def run(argv: list[str] | None = None) -> int:
     if args.command == "report":
         written = _write_pdf(result, case_text, args.output, args.date)
         print(f"report written: {written}")
+        _ending(argv)
         return _exit_for(result["verdict"])
     if args.json:
         print(json.dumps(result, indent=2, ensure_ascii=False, allow_nan=False))
@@ -271,6 +284,7 @@ def run(argv: list[str] | None = None) -> int:
     if args.pdf:
         written = _write_pdf(result, case_text, args.pdf, args.date)
         print(f"report written: {written}", file=sys.stderr if args.json else sys.stdout)
+    _ending(argv)
     return _exit_for(result["verdict"])
 
 

@@ -252,3 +252,11 @@ def test_the_child_screens_a_read_case_without_the_unit_registry():
     assert done.returncode == 0, done.stderr.decode()
     _same_types(json.loads(done.stdout), screen_file(case))
 
+
+def test_only_a_process_running_its_own_command_line_freezes_its_objects_at_the_end(monkeypatch):
+    frozen = []
+    monkeypatch.setattr(cli.gc, "freeze", lambda: frozen.append(True))
+    cli._ending(["report", "case.toml", "-o", "out.pdf"])  # a caller that lives on
+    assert frozen == []
+    cli._ending(None)  # the process's own command line: it ends next
+    assert frozen == [True]
