@@ -190,7 +190,7 @@ def _converters(result: dict):
     return (lambda pa: pressure_in(pa, p_unit, atm)), (lambda k: temperature_in(k, t_unit))
 
 
-def plot_png(result: dict, dpi: int = 150) -> bytes:
+def plot_png(result: dict, dpi: int = 130) -> bytes:
     """PNG bytes of the isochore plot of `result` (the batch report's many detail plots: a raster image
     lays out and draws far faster than an SVG of the same plot)."""
     return plot_svg(result, png_dpi=dpi)
@@ -329,7 +329,9 @@ def plot_svg(result: dict, png_dpi: int | None = None) -> str:
 
         if png_dpi is not None:
             raw = io.BytesIO()
-            fig.savefig(raw, format="png", dpi=png_dpi, metadata={"Software": None})
+            # light compression: the PDF writer compresses the image again, and zlib's default level
+            # made the encoding the largest single cost of a batch report with many detail pages
+            fig.savefig(raw, format="png", dpi=png_dpi, metadata={"Software": None}, pil_kwargs={"compress_level": 1})
             return raw.getvalue()
         buf = io.StringIO()
         fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": None, "Format": None, "Type": None})
