@@ -325,7 +325,12 @@ def plot_svg(result: dict, png_dpi: int | None = None) -> str:
         if handles:
             ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.16), ncol=3 if len(handles) <= 6 else 2,
                       frameon=False, fontsize=7.5, handlelength=3.2, columnspacing=1.6)
-        fig.tight_layout(pad=0.4)
+        if png_dpi is None:
+            fig.tight_layout(pad=0.4)
+        else:
+            # the batch report's many detail plots: fixed margins that hold the tick labels and the two
+            # legend rows (the tight layout draws the figure an extra time to measure it)
+            fig.subplots_adjust(left=0.105, right=0.985, top=0.975, bottom=0.235)
 
         if png_dpi is not None:
             raw = io.BytesIO()
