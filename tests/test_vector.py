@@ -134,3 +134,40 @@ def test_a_limit_at_the_edge_of_the_lee_kesler_range_is_settled_as_the_single_sc
         s = screen_case(c)
         for k in LIMITS:
             assert close(r["limits"].get(k), s["limits"].get(k), LIMIT_RTOL), (k, r["limits"].get(k), s["limits"].get(k))
+
+
+@settings(max_examples=4, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(st.lists(st.tuples(st.sampled_from(GASES), st.floats(1, 80), st.floats(150, 350), st.floats(20, 250),
+                          st.floats(-10, 35), st.floats(30, 60), st.one_of(st.none(), st.floats(40, 75)),
+                          st.one_of(st.none(), st.floats(200, 400))),
+                min_size=20, max_size=30))
+def test_inventory_rows_read_by_column_give_the_single_case_results(tmp_path_factory, items):
+    # the batch command's own path: rows read column by column, slim results, full results on demand
+    from screening.batch import BatchRun
+    from screening.inputs.inventory import read_inventory, row_case
+
+    path = tmp_path_factory.mktemp("inv") / "inv.csv"
+    lines = ["id,gas,water_capacity [L],rated_pressure [bar(g)],fill_pressure [bar(g)],fill_temperature [degC],"
+             "ambient_max [degC],gas_temperature [degC],relief_set_pressure [bar(g)]"]
+    for i, (g, cap, rated, p, t, amb, hot, relief) in enumerate(items):
+        lines.append(f"R{i},{g},{cap:.2f},{rated:.2f},{p:.2f},{t:.2f},{amb:.2f},"
+                     f"{'' if hot is None else f'{hot:.2f}'},{'' if relief is None else f'{relief:.2f}'}")
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    inv = read_inventory(path)
+    run = BatchRun(inv)
+    for i, (n, cells) in enumerate(inv.rows):
+        s = screen_case(row_case(inv, n, cells, None))
+        slim, full = run.results[i], run.full(i)
+        assert full["row"] == slim["row"] == n
+        assert set(full) - {"row"} == set(s)
+        for r in (slim, full):
+            assert r["verdict"] == s["verdict"] and r["governing_model"] == s["governing_model"]
+            assert r["reasons"] == s["reasons"] and r["warnings"] == s["warnings"]
+            for k in NUMBERS:
+                assert close(r.get(k, s[k]), s[k]), (k, r.get(k), s[k])
+            for k in ("max_gas_temperature_k", "max_fill_pressure_pa"):
+                assert close(r["limits"][k], s["limits"][k], LIMIT_RTOL)
+        for k in LIMITS:
+            assert close(full["limits"].get(k), s["limits"].get(k), LIMIT_RTOL), k
+        assert full["input_sha256"] == s["input_sha256"] and full["inputs"] == s["inputs"]
+        assert full["display_units"] == s["display_units"] == slim["display_units"]
