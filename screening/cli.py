@@ -118,7 +118,12 @@ class _ScreeningChild:
         sys.stderr.flush()
         to_child, self._to_child = os.pipe()
         self._from_child, from_child = os.pipe()
-        self.pid = os.fork()  # OSError (no memory, no more processes) is the caller's to handle
+        try:
+            self.pid = os.fork()
+        except OSError:  # no memory, no more processes: the caller screens the case itself
+            for fd in (to_child, self._to_child, self._from_child, from_child):
+                os.close(fd)
+            raise
         if self.pid == 0:
             os.close(self._to_child)
             os.close(self._from_child)
@@ -149,15 +154,21 @@ class _ScreeningChild:
         except BaseException:  # whatever happens, the child must not go on to run the parent's code
             pass
         finally:
-            os._exit(status)
+            try:  # anything a library printed (a warning) goes out as it would from one process
+                sys.stdout.flush()
+                sys.stderr.flush()
+            finally:
+                os._exit(status)
 
     def send(self, case) -> bool:
-        """Hand the parsed case to the child; False if the child is gone."""
+        """Hand the parsed case to the child; False if that fails (the child has died, say), and the
+        caller then screens the case itself."""
         try:
+            data = pickle.dumps(case, protocol=pickle.HIGHEST_PROTOCOL)
             with os.fdopen(self._to_child, "wb") as pipe:
                 self._to_child = None
-                pipe.write(pickle.dumps(case, protocol=pickle.HIGHEST_PROTOCOL))
-        except OSError:  # a broken pipe: the child has died
+                pipe.write(data)
+        except Exception:  # a broken pipe, or a case that does not pickle: the plain path still works
             return False
         return True
 

@@ -14,6 +14,7 @@ import os
 import pickle
 import subprocess
 import sys
+import types
 from pathlib import Path
 
 import pytest
@@ -129,6 +130,14 @@ def _children_made(monkeypatch) -> list[int]:
     return made
 
 
+def _open_fds() -> set[str] | None:
+    """This process's open file descriptors, where the system lists them (Linux)."""
+    try:
+        return set(os.listdir("/proc/self/fd"))
+    except OSError:
+        return None
+
+
 def _reaped(pid: int) -> bool:
     try:
         os.waitpid(pid, os.WNOHANG)
@@ -221,8 +230,27 @@ def test_a_failed_fork_leaves_the_screening_to_the_parent(monkeypatch):
         raise BlockingIOError(11, "Resource temporarily unavailable")
 
     monkeypatch.setattr(os, "fork", no_more_processes)
+    fds = _open_fds()
     result, _ = cli._screened_for_pdf(str(case), fork=True)
     _same_types(result, screen_file(case))
+    assert _open_fds() == fds  # the pipes made for the child are closed again
+
+
+@FORK
+def test_a_case_that_cannot_be_handed_to_the_child_is_screened_by_the_parent(monkeypatch):
+    case = ROOT / "cases" / "kq-n2-014.toml"
+
+    def refuse(*args, **kwargs):
+        raise TypeError("cannot pickle this")
+
+    monkeypatch.setattr(cli, "pickle", types.SimpleNamespace(dumps=refuse, loads=pickle.loads,
+                                                            HIGHEST_PROTOCOL=pickle.HIGHEST_PROTOCOL))
+    made = _children_made(monkeypatch)
+    fds = _open_fds()
+    result, _ = cli._screened_for_pdf(str(case), fork=True)
+    _same_types(result, screen_file(case))
+    assert len(made) == 1 and _reaped(made[0])
+    assert _open_fds() == fds
 
 
 def test_a_fresh_command_forks_and_a_long_lived_caller_does_not(monkeypatch):
