@@ -57,6 +57,32 @@ def child(args: list[str]) -> tuple[float, float]:
     return dt, max(rss, before) / 1024.0
 
 
+PHASES = r"""
+import sys, time
+t0 = time.perf_counter()
+from screening.batch import BatchRun, write_csv
+from screening.inputs.inventory import read_inventory
+import screening.vector  # noqa: F401  (CoolProp)
+t1 = time.perf_counter()
+inv = read_inventory(sys.argv[1])
+t2 = time.perf_counter()
+run = BatchRun(inv)
+t3 = time.perf_counter()
+write_csv(inv, run.results, sys.argv[2])
+t4 = time.perf_counter()
+print(f"{t1 - t0:.2f} {t2 - t1:.2f} {t3 - t2:.2f} {t4 - t3:.2f}")
+"""
+
+
+def phases(inv: Path, out: Path) -> list[float]:
+    """One in-process run split into import, file read, reading and screening the rows, CSV write [s]."""
+    proc = subprocess.run([sys.executable, "-c", PHASES, str(inv), str(out)], cwd=ROOT, env=ENV,
+                          stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+    if proc.returncode != 0:
+        raise SystemExit(f"phase run failed: {proc.stderr[-2000:]}")
+    return [float(x) for x in proc.stdout.split()]
+
+
 def naive(rows) -> float:
     import CoolProp.CoolProp as CP
 
@@ -94,6 +120,9 @@ def main() -> None:
             dt, rss = child(["batch", str(inv), "--csv", str(tmp / "out.csv"), "--quiet"])
             tn = naive(rows)
             print(f"{n:>8} {dt:>10.2f} {tn:>18.2f} {dt / tn:>7.2f} {rss:>16.0f}", flush=True)
+            a, b, c, d = phases(inv, tmp / "phases.csv")
+            print(f"{'':>8} of which: imports {a:.2f} s, file read {b:.2f} s, rows read and screened {c:.2f} s, "
+                  f"CSV written {d:.2f} s (one in-process run)", flush=True)
         print(f"generalized model alone: {generalized_rate(100000):,.0f} rows/s (100 000 nitrogen rows)")
         inv = tmp / "pdf.csv"
         inventory(1000, inv, seed=2, over_every=10)
