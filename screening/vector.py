@@ -62,8 +62,7 @@ _CAUTIONS = {"caution": CAUTION, "short_caution": SHORT_CAUTION, "assumptions": 
 
 def vectorisable(case: Case) -> bool:
     """Whether the vectorised path covers this row (see the module doc); the rest go per row."""
-    gas = case.gas
-    if not gas.is_pure or gas.kind != "permanent" or gas.components[0].coolprop_name is None:
+    if not _vector_gas(case.gas):
         return False
     if case.fill_pressure_pa is None or case.fill_temperature_k is None:
         return False
@@ -464,11 +463,15 @@ def _columns(rows: Rows) -> dict:
         f0 = f_t(x0, i)
         root, conv = _secant(f_t, x0, f0, x0 * (1.0 + 1e-4), i)
 
-        def f_iso_i(t, ix):
-            s = lee_kesler_pressure(rho_lk[i[ix]], t, tcp[i[ix]], pcp[i[ix]], omp[i[ix]])
-            return np.where(s.valid, s.pressure - rated[i[ix]], np.nan)
+        def isochore_over_rating(rows_: np.ndarray):
+            """T -> generalized isochore pressure minus the rating, for the rows rows_ (NaN out of range)."""
+            def f(t, ix):
+                r = rows_[ix]
+                s = lee_kesler_pressure(rho_lk[r], t, tcp[r], pcp[r], omp[r])
+                return np.where(s.valid, s.pressure - rated[r], np.nan)
+            return f
 
-        root = _settle_edges(f_iso_i, root, reach & conv, t_lo[i], t_hi[i])
+        root = _settle_edges(isochore_over_rating(i), root, reach & conv, t_lo[i], t_hi[i])
         has = reach & conv & (root >= t_lo[i]) & (root <= t_hi[i])
         a, b = _linspace_bracket(t_lo[i], t_hi[i], root)
         edge = has & ((b / tcp[i] > _LK_TR_EDGE) | (rated[i] * b / root / pcp[i] > _LK_PR_EDGE))
@@ -478,10 +481,7 @@ def _columns(rows: Rows) -> dict:
         t_lk[i[has & ~unsure]] = root[has & ~unsure]
         u = i[unsure]
         if u.size:
-            def f_iso(t, ix):
-                s = lee_kesler_pressure(rho_lk[u[ix]], t, tcp[u[ix]], pcp[u[ix]], omp[u[ix]])
-                return np.where(s.valid, s.pressure - rated[u[ix]], np.nan)
-            t_lk[u] = _scan_root(f_iso, t_lo[u], t_hi[u])
+            t_lk[u] = _scan_root(isochore_over_rating(u), t_lo[u], t_hi[u])
 
         # generalized: the fill pressure whose peak is the target: density at the target and the peak
         # temperature, then the pressure of that density at the fill temperature
