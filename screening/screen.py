@@ -430,6 +430,28 @@ def _mass_limit(case: Case, models: list[Model], t_fill: float, t_peak: float, t
 
 # ----------------------------------------------------------------------------- verdict
 
+def models_disagree(peak_generalized: float | None, peak_reference: float | None) -> dict | None:
+    """The warning where the generalized and reference peaks [Pa] differ by more than
+    MODEL_DISAGREEMENT_WARNING (relative to the reference), else None."""
+    if peak_generalized is None or not peak_reference:
+        return None
+    diff = abs(peak_generalized - peak_reference) / peak_reference
+    if diff <= MODEL_DISAGREEMENT_WARNING:
+        return None
+    return {"code": "models-disagree", "message":
+            f"The generalized and reference peaks differ by {diff * 100:.1f} % "
+            f"(more than {MODEL_DISAGREEMENT_WARNING * 100:.0f} %); the higher one governs."}
+
+
+def filling_ratio_reason(fill_density_kg_m3: float | None, max_filling_ratio_kg_m3: float | None) -> str | None:
+    """The reason where the fill's mass per water capacity [kg/m3] exceeds the vessel's maximum filling
+    ratio [kg/m3], else None."""
+    if max_filling_ratio_kg_m3 is None or fill_density_kg_m3 is None or fill_density_kg_m3 <= max_filling_ratio_kg_m3:
+        return None
+    return (f"The filling ratio, {fill_density_kg_m3 / 1000.0:.3f} kg/L, is above the vessel's maximum filling "
+            f"ratio of {max_filling_ratio_kg_m3 / 1000:.3f} kg/L.")
+
+
 def decide(*, peak: float | None, rated: float, relief: float | None, atm: float, required_margin: float,
            any_real_model: bool, out_of_scope_reason: str | None, liquid_full_reason: str | None = None,
            filling_ratio_reason: str | None = None) -> tuple[str, list[str], float | None, float | None]:
@@ -578,12 +600,10 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
     else:
         governing_reason = "No real-gas model applies."
     gen, ref = by_name["generalized"], by_name["reference"]
-    if gen.applicable and ref.applicable and ref.peak_pa:
-        diff = abs(gen.peak_pa - ref.peak_pa) / ref.peak_pa
-        if diff > MODEL_DISAGREEMENT_WARNING:
-            warnings.append({"code": "models-disagree", "message":
-                             f"The generalized and reference peaks differ by {diff * 100:.1f} % "
-                             f"(more than {MODEL_DISAGREEMENT_WARNING * 100:.0f} %); the higher one governs."})
+    if gen.applicable and ref.applicable:
+        disagree = models_disagree(gen.peak_pa, ref.peak_pa)
+        if disagree:
+            warnings.append(disagree)
     if not real and out_of_scope is None:
         reasons_na = "; ".join(f"{m.name}: {m.note}" for m in models if not m.applicable)
         out_of_scope = f"No real-gas model applies to this vessel ({reasons_na}), so it cannot be screened."
@@ -596,12 +616,7 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
             "worst-case temperature; beyond that point the pressure rises steeply"
             + (f" (about {rise / 1e5:.1f} bar per kelvin)" if rise else "")
             + ", so a small error in temperature means a large error in pressure.")
-    ratio_reason = None
-    ratio = fs.rho_mass / 1000.0 if fs.rho_mass is not None else None  # kg/m3 -> kg per litre
-    if case.max_filling_ratio_kg_m3 is not None and fs.rho_mass is not None \
-            and fs.rho_mass > case.max_filling_ratio_kg_m3:
-        ratio_reason = (f"The filling ratio, {ratio:.3f} kg/L, is above the vessel's maximum filling ratio of "
-                        f"{case.max_filling_ratio_kg_m3 / 1000:.3f} kg/L.")
+    ratio_reason = filling_ratio_reason(fs.rho_mass, case.max_filling_ratio_kg_m3)
 
     tolerance = _tolerance(case, t_fill, t_peak, models) if (case.tolerance and governing) else None
     if tolerance is not None:

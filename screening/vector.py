@@ -594,17 +594,10 @@ def _verdict(cols: dict, k: int, molar_mass: float, rated: float, relief: float 
     order = [("ideal", peak_ideal), ("generalized", peak_gen), ("reference", peak_ref)]
     applicable = [(nm, p) for nm, p in order if p is not None]
     gov_name, peak = max(applicable, key=lambda x: x[1])
-    if lk_ok and peak_ref:
-        diff = abs(peak_gen - peak_ref) / peak_ref
-        if diff > _screen.MODEL_DISAGREEMENT_WARNING:
-            warnings.append({"code": "models-disagree", "message":
-                             f"The generalized and reference peaks differ by {diff * 100:.1f} % "
-                             f"(more than {_screen.MODEL_DISAGREEMENT_WARNING * 100:.0f} %); the higher one governs."})
-    rho_mass = float(cols["rho_molar"][k]) * molar_mass
-    ratio_reason = None
-    if max_ratio is not None and rho_mass > max_ratio:
-        ratio_reason = (f"The filling ratio, {rho_mass / 1000.0:.3f} kg/L, is above the vessel's maximum filling "
-                        f"ratio of {max_ratio / 1000:.3f} kg/L.")
+    disagree = _screen.models_disagree(peak_gen, peak_ref)
+    if disagree:
+        warnings.append(disagree)
+    ratio_reason = _screen.filling_ratio_reason(float(cols["rho_molar"][k]) * molar_mass, max_ratio)
     verdict, reasons, margin, relief_margin = _screen.decide(
         peak=peak, rated=rated, relief=relief, atm=atm, required_margin=required_margin, any_real_model=True,
         out_of_scope_reason=None, liquid_full_reason=None, filling_ratio_reason=ratio_reason)
