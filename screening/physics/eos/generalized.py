@@ -101,6 +101,7 @@ _RTOL = 1e-13          # relative step at which the inner (volume) Newton stops
 _PTOL = 1e-12          # relative step at which the outer (pressure) solve stops
 _MAX_INNER = 100
 _MAX_OUTER = 200
+_MAX_NEWTON = 30      # steps of the coupled Newton before the bracketed solve takes over
 _PR_SOLVE_MAX = 40.0   # [-] the pressure solve brackets P_r in (0, 40]; above 10 is reported invalid
 
 # Gunn, Chueh & Prausnitz (1966) constants of the quantum correction [g K/mol], from the
@@ -421,6 +422,66 @@ def lee_kesler_density(pressure, temperature, tc, pc, omega) -> GeneralizedState
         reduced_temperature=tr, reduced_pressure=pr, valid=valid, reason=reason)
 
 
+def _newton_reduced_pressure(tr, vf, omega, active):
+    """Coupled Newton on (rho_0, rho_ref, P_r) for T_r rho_i Z_i(rho_i) = P_r, (1-a)/rho_0 + a/rho_ref = V_r.
+
+    The same condition as :func:`_solve_reduced_pressure` (LK eq. 1–5 at fixed V_r), but the two
+    reduced densities rho_i = 1/V_i are iterated together with P_r instead of re-solving both gas
+    roots from rho = 0 at every trial P_r. One step: each P_i(rho_i) = T_r rho_i Z_i is linearised,
+    rho_i' = rho_i + (P_r' - P_i)/(dP_i/drho_i), and P_r' is chosen so that the linearised volume
+    condition holds, with w_i = a_i / (rho_i^2 dP_i/drho_i), a_0 = 1 - a, a_ref = a::
+
+        P_r' = ((1-a)/rho_0 + a/rho_ref - V_r + w_0 P_0 + w_ref P_ref) / (w_0 + w_ref)
+
+    Started from the ideal gas (rho_i = 1/V_r, P_r = T_r/V_r); stops when the steps in P_r, rho_0 and
+    rho_ref are below _PTOL, _RTOL, _RTOL relative (the tolerances of the bracketed solve).
+    This finds *a* solution, not necessarily on the gas branch: the caller checks the roots against
+    the cold-started gas roots at the result and solves the rest with the bracketed solver.
+    Elements that leave the physical region (a slope dP_i/drho_i <= 0, a density <= 0, P_r outside
+    (0, 10], or above the LK vapour pressure where T_r < 1: not a gas state, whose reason the
+    bracketed solve gives) or do not settle in _MAX_NEWTON steps are not converged.
+
+    Returns (pr, v0, vr, converged) of the broadcast shape: P_r, the reduced volumes 1/rho_i [-].
+    """
+    shape = tr.shape
+    n = tr.size
+    pr_out = np.full(n, np.nan)
+    v0_out = np.full(n, np.nan)
+    vr_out = np.full(n, np.nan)
+    converged = np.zeros(n, dtype=bool)
+    idx = np.flatnonzero(active.reshape(-1))
+    t, v, a = tr.reshape(-1)[idx], vf.reshape(-1)[idx], omega.reshape(-1)[idx] / OMEGA_REFERENCE
+    c0, cr = _coefficients(_SIMPLE, t), _coefficients(_REFERENCE, t)
+    r0 = 1.0 / v
+    rr = r0.copy()
+    p = t * r0
+    p_max = np.where(t < 1.0, np.minimum(lee_kesler_vapour_pressure(np.minimum(t, 1.0), a * OMEGA_REFERENCE), _PR_HI),
+                     _PR_HI)
+    for _ in range(_MAX_NEWTON):
+        if idx.size == 0:
+            break
+        z0, dz0 = _bwr(_SIMPLE, c0, r0)
+        zr, dzr = _bwr(_REFERENCE, cr, rr)
+        p0, pref = t * r0 * z0, t * rr * zr
+        d0, dref = t * (z0 + r0 * dz0), t * (zr + rr * dzr)
+        w0, wref = (1.0 - a) / (d0 * r0 * r0), a / (dref * rr * rr)
+        p_new = ((1.0 - a) / r0 + a / rr - v + w0 * p0 + wref * pref) / (w0 + wref)
+        r0_new = r0 + (p_new - p0) / d0
+        rr_new = rr + (p_new - pref) / dref
+        bad = ~((d0 > 0.0) & (dref > 0.0) & (r0_new > 0.0) & (rr_new > 0.0) & (p_new > 0.0)
+                & (p_new <= p_max) & np.isfinite(r0_new) & np.isfinite(rr_new))
+        done = ~bad & (np.abs(p_new - p) <= _PTOL * p_new) & (np.abs(r0_new - r0) <= _RTOL * r0_new) \
+            & (np.abs(rr_new - rr) <= _RTOL * rr_new)
+        fin = idx[done]
+        pr_out[fin], v0_out[fin], vr_out[fin] = p_new[done], 1.0 / r0_new[done], 1.0 / rr_new[done]
+        converged[fin] = True
+        keep = ~done & ~bad
+        idx, t, v, a, r0, rr, p = idx[keep], t[keep], v[keep], a[keep], r0_new[keep], rr_new[keep], p_new[keep]
+        p_max = p_max[keep]
+        c0, cr = tuple(c[keep] for c in c0), tuple(c[keep] for c in cr)
+    return pr_out.reshape(shape), v0_out.reshape(shape), vr_out.reshape(shape), converged.reshape(shape)
+
+
 def _solve_reduced_pressure(tr, vf, omega, active):
     """Bracketed Newton on P_r for H(P_r) = (1-a) V0(P_r) + a V_ref(P_r) - V_r = 0.
 
@@ -475,9 +536,11 @@ def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> Generalize
     Solves P = Z(T/T_c, P/P_c, omega) rho R T (LK eq. 1–5) for P. With V_r = P_c/(rho R T_c)
     the reduced ideal volume of the gas, this is the condition
     (1 - a) V0(P_r) + a V_ref(P_r) = V_r, a = omega/omega_r, where V0, V_ref are the gas
-    roots of the two LK fluids at (T_r, P_r). It is solved for P_r by a bracketed Newton
-    (analytic derivative dV_i/dP_r = -V_i^2 / (dP_r/drho_i)), bisection as the fallback,
-    to 1e-13 relative.
+    roots of the two LK fluids at (T_r, P_r). It is solved for P_r first by a Newton on P_r and
+    both roots together (:func:`_newton_reduced_pressure`), accepted where its roots are the
+    cold-started gas roots at the result; elsewhere by a bracketed Newton on P_r alone (analytic
+    derivative dV_i/dP_r = -V_i^2 / (dP_r/drho_i)), bisection as the fallback. Both to 1e-12
+    relative in P_r; the two agree to round-off where both settle.
 
     Parameters: ``molar_density`` [mol/m3], ``temperature`` [K], ``tc`` [K], ``pc`` [Pa],
     ``omega`` [-]; arrays broadcast together.
@@ -491,20 +554,33 @@ def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> Generalize
     rho, t, tc, pc, omega = _state_arrays(molar_density, "molar density", "[mol/m3]", temperature, tc, pc, omega)
     tr = t / tc
     vf = pc / (rho * R * tc)          # reduced ideal volume of the gas [-]
-    reason = _range_reasons(tr, None)
-    active = reason == ""
+    active = _range_reasons(tr, None) == ""
 
-    pr, converged, above_cap = _solve_reduced_pressure(tr, vf, omega, active)
-
-    # Final, independent evaluation at the converged P_r: the cold-started gas root must
-    # reproduce the density (guards against the solve having followed another branch).
-    pr_final = np.where(active & converged & ~above_cap, pr, np.nan)
-    _range = _range_reasons(tr, pr_final)
-    reason = np.where(reason == "", _range, reason)
-    _set_reasons(reason, active & above_cap, lambda i: (
-        f"reduced pressure is above {_fmt(_PR_SOLVE_MAX)}, beyond the Lee–Kesler range ({_RANGE_TEXT_PR})"))
-    check = (reason == "") & np.isfinite(pr_final)
-    z, v0, vr, _dv0, _dvr, no_root, not_conv, a = _z_core(tr, np.where(check, pr_final, 1.0), omega, check)
+    # The coupled Newton first; where it does not settle, or settles off the gas branch (its roots
+    # differ from the cold-started gas roots of the check below), the bracketed solve decides.
+    fast_pr, fast_v0, fast_vr, fast = _newton_reduced_pressure(tr, vf, omega, active)
+    pr, converged, above_cap = _solve_reduced_pressure(tr, vf, omega, active & ~fast)
+    pr = np.where(fast, fast_pr, pr)
+    converged = converged | fast
+    while True:
+        reason = _range_reasons(tr, None)
+        # Final, independent evaluation at the converged P_r: the cold-started gas root must
+        # reproduce the density (guards against the solve having followed another branch).
+        pr_final = np.where(active & converged & ~above_cap, pr, np.nan)
+        _range = _range_reasons(tr, pr_final)
+        reason = np.where(reason == "", _range, reason)
+        _set_reasons(reason, active & above_cap, lambda i: (
+            f"reduced pressure is above {_fmt(_PR_SOLVE_MAX)}, beyond the Lee–Kesler range ({_RANGE_TEXT_PR})"))
+        check = (reason == "") & np.isfinite(pr_final)
+        z, v0, vr, _dv0, _dvr, no_root, not_conv, a = _z_core(tr, np.where(check, pr_final, 1.0), omega, check)
+        off = fast & ~(check & ~no_root & ~not_conv & (np.abs(v0 - fast_v0) <= 1e-9 * fast_v0)
+                       & (np.abs(vr - fast_vr) <= 1e-9 * fast_vr))
+        if not off.any():
+            break
+        fast = fast & ~off
+        pr_s, converged_s, above_cap_s = _solve_reduced_pressure(tr, vf, omega, off)
+        pr, converged, above_cap = (np.where(off, pr_s, pr), np.where(off, converged_s, converged),
+                                    np.where(off, above_cap_s, above_cap))
     mix_v = (1.0 - a) * v0 + a * vr
     edge = not_conv & (tr < 1.0)      # slow inner solve at the end of the vapour branch
     mismatch = check & (~not_conv | edge) & (no_root | edge | ~(np.abs(mix_v - vf) <= 1e-9 * vf))
