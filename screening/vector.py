@@ -331,6 +331,37 @@ class Rows:
                                                                "rated", "atm", "margin_req")))
 
 
+@dataclass
+class PlainPart(Rows):
+    """Rows of one gas from an inventory's plain rows, with what their verdicts need besides: the relief
+    set pressure [Pa] absolute and the maximum filling ratio [kg/m3] (NaN: none)."""
+
+    relief: np.ndarray
+    ratio: np.ndarray
+
+    def take(self, idx: np.ndarray) -> "PlainPart":
+        return PlainPart(self.gas, *(getattr(self, k)[idx] for k in (
+            "p_fill", "t_fill", "ambient_max", "gas_temperature", "rated", "atm", "margin_req", "relief", "ratio")))
+
+
+def _plain_columns(part: PlainPart) -> dict:
+    """_columns of the part plus ``verdict``: each vectorised row's :func:`_verdict` (None on fallback rows),
+    so that forked workers decide the verdicts of their own rows."""
+    cols = _columns(part)
+    verdicts = np.full(part.p_fill.size, None, dtype=object)
+    molar_mass = part.gas.molar_mass
+    rated, atm, margin_req = part.rated.tolist(), part.atm.tolist(), part.margin_req.tolist()
+    relief, ratio = part.relief.tolist(), part.ratio.tolist()
+    # the columns _verdict reads, as lists (indexing a list is cheaper than making a numpy scalar)
+    listed = {key: cols[key].tolist() for key in ("gas_below_ambient", "peak_ideal", "peak_ref", "lk_ok", "lk_peak",
+                                                  "rho_molar")}
+    for k in np.flatnonzero(~cols["fallback"]).tolist():
+        verdicts[k] = _verdict(listed, k, molar_mass, rated[k], None if math.isnan(relief[k]) else relief[k], atm[k],
+                               margin_req[k], None if math.isnan(ratio[k]) else ratio[k], "exposure")
+    cols["verdict"] = verdicts
+    return cols
+
+
 def worst_case(ambient_max: np.ndarray, gas_temperature: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """Worst-case gas temperature [K] (the higher of the two given) and whether the stated gas temperature
     is the basis (as screen._worst_case_temperature ranks them, the stated gas temperature first on a tie)."""
@@ -731,11 +762,12 @@ def _vector_gas(gas: Mixture) -> bool:
     return gas.is_pure and gas.kind == "permanent" and gas.components[0].coolprop_name is not None
 
 
-def _run_columns(parts: list[Rows]) -> list[dict]:
-    """_columns of every part; on two or more cores and enough rows, parts run in forked workers."""
+def _run_columns(parts: list[Rows], fn: Callable[[Rows], dict] = _columns) -> list[dict]:
+    """fn (_columns or _plain_columns) of every part; on two or more cores and enough rows, parts run in
+    forked workers."""
     from screening import parallel
 
-    return parallel.map_rows(_columns, parts)
+    return parallel.map_rows(fn, parts)
 
 
 def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = None) -> list[dict]:
@@ -813,32 +845,33 @@ class PlainScreening:
         parts = []
         for nm in names:
             idx = np.array(groups[nm], dtype=np.int64)
-            parts.append(Rows(plain.gases[idx[0]], plain.fill_pressure_pa[idx], plain.fill_temperature_k[idx],
-                              plain.ambient_max_k[idx], plain.gas_temperature_k[idx], plain.rated_pa[idx],
-                              plain.atmospheric_pa[idx], plain.required_margin[idx]))
-        for nm, cols in zip(names, _run_columns(parts)):
+            parts.append(PlainPart(plain.gases[idx[0]], plain.fill_pressure_pa[idx], plain.fill_temperature_k[idx],
+                                   plain.ambient_max_k[idx], plain.gas_temperature_k[idx], plain.rated_pa[idx],
+                                   plain.atmospheric_pa[idx], plain.required_margin[idx], plain.relief_pa[idx],
+                                   plain.max_filling_ratio_kg_m3[idx]))
+        for nm, cols in zip(names, _run_columns(parts, _plain_columns)):
             done = 0
             gas = plain.gases[groups[nm][0]]
-            molar_mass = gas.molar_mass
+            fallback, verdicts = cols["fallback"].tolist(), cols["verdict"].tolist()
+            max_t, max_p = cols["max_t"].tolist(), cols["max_p"].tolist()
+            rated, margin_req, atm = (a[groups[nm]].tolist() for a in (plain.rated_pa, plain.required_margin,
+                                                                         plain.atmospheric_pa))
             for k, j in enumerate(groups[nm]):
-                if cols["fallback"][k]:
+                if fallback[k]:
                     rest.append(j)
                     continue
-                relief = _opt(plain.relief_pa[j])
-                ratio = _opt(plain.max_filling_ratio_kg_m3[j])
-                v = _verdict(cols, k, molar_mass, float(plain.rated_pa[j]), relief, float(plain.atmospheric_pa[j]),
-                             float(plain.required_margin[j]), ratio, "exposure")
+                v = verdicts[k]
                 self._where[j] = (cols, k)
                 self.summaries[j] = {
                     "id": plain.ids[j], "verdict": v["verdict"], "reasons": v["reasons"], "warnings": v["warnings"],
-                    "peak_pressure_pa": v["peak_pressure_pa"], "rated_pressure_pa": float(plain.rated_pa[j]),
+                    "peak_pressure_pa": v["peak_pressure_pa"], "rated_pressure_pa": rated[k],
                     "margin_fraction": v["margin_fraction"],
-                    "required_margin_fraction": float(plain.required_margin[j]),
+                    "required_margin_fraction": margin_req[k],
                     "governing_model": v["governing_model"],
-                    "limits": {"max_gas_temperature_k": _opt(cols["max_t"][k]),
-                               "max_fill_pressure_pa": _opt(cols["max_p"][k])},
+                    "limits": {"max_gas_temperature_k": None if math.isnan(max_t[k]) else max_t[k],
+                               "max_fill_pressure_pa": None if math.isnan(max_p[k]) else max_p[k]},
                     "gas": {"name": gas.name}, "display_units": plain.display_units[j],
-                    "site": {"atmospheric_pressure_pa": float(plain.atmospheric_pa[j])}}
+                    "site": {"atmospheric_pressure_pa": atm[k]}}
                 done += 1
             if progress:
                 progress(done)
