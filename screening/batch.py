@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import contextlib
 import csv
+import io
 import json
 import math
 import os
@@ -262,21 +263,46 @@ def write_json(results: list[dict], path, full=None) -> None:
         fh.write("\n]}\n")
 
 
+#: Rows of the CSV output formatted per task; a large output is formatted in forked workers.
+CSV_CHUNK = 5000
+#: (results, cells by row number, number of input columns) of the CSV being written, read by the workers
+#: that _csv_text forks (they inherit it; nothing of it is sent to them).
+_CSV_JOB: tuple | None = None
+
+
+def _csv_text(bounds: tuple[int, int]) -> str:
+    """The CSV lines of results[lo:hi] of the CSV being written (see _CSV_JOB)."""
+    results, cells_by_row, width = _CSV_JOB  # type: ignore[misc]
+    buf = io.StringIO(newline="")
+    w = csv.writer(buf)
+    for r in results[bounds[0]:bounds[1]]:
+        c = cells(r)
+        raw = list(cells_by_row.get(r["row"], []))
+        raw = (raw + [""] * width)[:width]
+        w.writerow([r["row"]] + raw + [c["peak"], r.get("governing_model") or "", c["margin"], r["verdict"],
+                                       " ".join(r.get("reasons") or []), c["t_max"], c["p_max"],
+                                       " ".join(x["message"] for x in r.get("warnings") or [])])
+    return buf.getvalue()
+
+
 def write_csv(inv: Inventory, results: list[dict], path) -> None:
+    from screening import parallel
+
+    global _CSV_JOB
     headers = [c.header for c in inv.columns]
     extra = ["peak_pressure", "governing_model", "margin", "verdict", "reasons", "max_gas_temperature",
              "max_fill_pressure", "warnings"]
-    cells_by_row = {n: c for n, c in inv.rows}
+    bounds = [(k, min(k + CSV_CHUNK, len(results))) for k in range(0, len(results), CSV_CHUNK)]
     with atomic_writer(path, "CSV output") as fh:
-        w = csv.writer(fh)
-        w.writerow(["row"] + headers + extra)
-        for r in results:
-            c = cells(r)
-            raw = list(cells_by_row.get(r["row"], []))
-            raw = (raw + [""] * len(headers))[:len(headers)]
-            w.writerow([r["row"]] + raw + [c["peak"], r.get("governing_model") or "", c["margin"], r["verdict"],
-                                           " ".join(r.get("reasons") or []), c["t_max"], c["p_max"],
-                                           " ".join(x["message"] for x in r.get("warnings") or [])])
+        csv.writer(fh).writerow(["row"] + headers + extra)
+        _CSV_JOB = (results, {n: c for n, c in inv.rows}, len(headers))
+        try:
+            # chunks in order; on two or more cores and enough rows, formatted in forked workers
+            texts = parallel.map_items(_csv_text, bounds, min_items=max(2, parallel.MIN_ROWS // CSV_CHUNK))
+        finally:
+            _CSV_JOB = None
+        for text in texts:
+            fh.write(text)
 
 
 # ----------------------------------------------------------------------------- the command

@@ -121,3 +121,24 @@ def test_a_20000_row_file_completes(tmp_path):
     rs = results(write(tmp_path, "".join(lines)))
     assert len(rs) == 20000 and [r["row"] for r in rs[:3]] == [2, 3, 4]
     assert all(r["verdict"] != "input-error" for r in rs)
+
+
+def test_csv_formatted_in_forked_workers_equals_one_process(tmp_path, monkeypatch):
+    # every verdict, an input error, a duplicate id and a relief warning, in chunks of two rows spread
+    # over workers (on a machine with one core everything stays in this process, and the file is the same)
+    from screening import batch, parallel
+
+    text = (HEAD + GOOD.format(id="A") + "B,argon,50 L,300 bar(g),lots,15 degC,45 degC\n" + GOOD.format(id="A")
+            + "D,nitrogen,50 L,200 bar(g),190 bar(g),15 degC,65 degC\n"
+            + "E,helium,10 L,250 bar(g),230 bar(g),20 degC,50 degC\n" + GOOD.format(id="F"))
+    inv = read_inventory(write(tmp_path, text))
+    run_ = batch.BatchRun(inv)
+    monkeypatch.setenv(parallel.WORKERS_ENV, "1")
+    batch.write_csv(inv, run_.results, tmp_path / "one.csv")
+    monkeypatch.delenv(parallel.WORKERS_ENV)
+    monkeypatch.setattr(batch, "CSV_CHUNK", 2)
+    monkeypatch.setattr(parallel, "MIN_ROWS", 4)
+    batch.write_csv(inv, run_.results, tmp_path / "forked.csv")
+    one = (tmp_path / "one.csv").read_bytes()
+    assert one == (tmp_path / "forked.csv").read_bytes()
+    assert len(one.decode("utf-8").splitlines()) == 1 + 6
