@@ -263,9 +263,11 @@ class ReferenceFluid:
             raise NotApplicable(MODEL, f"molar density must be finite and positive, got {rho!r} mol/m3",
                                 value=rho, valid_range="> 0 mol/m3")
 
-    def _check_stable(self, what: str) -> None:
+    def _check_stable(self, rho: float, T: float) -> None:
+        """The state just evaluated at rho [mol/m3], T [K] is mechanically stable, (dP/drho)_T > 0."""
         dpdrho = self._state.first_partial_deriv(CoolProp.iP, CoolProp.iDmolar, CoolProp.iT)
         if not (math.isfinite(dpdrho) and dpdrho > 0.0):
+            what = f"{self.label} at rho={rho:.6g} mol/m3, T={T:.6g} K"
             raise NotApplicable(MODEL, f"{what}: (dP/drho)_T = {dpdrho!r} is not positive — not a stable "
                                 "single-phase state", value=dpdrho, valid_range="(dP/drho)_T > 0")
 
@@ -305,14 +307,14 @@ class ReferenceFluid:
         if not self.is_mixture:
             if iphase == _TWO_PHASE:
                 return p, "two-phase"
-            self._check_stable(f"{self.label} at rho={rho:.6g} mol/m3, T={T:.6g} K")
+            self._check_stable(rho, T)
             if T >= self.critical_temperature:
                 return p, "supercritical"
             return p, "liquid" if rho > self.critical_molar_density else "gas"
         if iphase == _TWO_PHASE:
             raise NotApplicable(MODEL, f"{self.label} at rho={rho:.6g} mol/m3, T={T:.6g} K is two-phase; "
                                 "two-phase mixture states are not screened", value=(rho, T))
-        self._check_stable(f"{self.label} at rho={rho:.6g} mol/m3, T={T:.6g} K")
+        self._check_stable(rho, T)
         try:
             a.update(CoolProp.PT_INPUTS, p, T)
             rho_back = a.rhomolar()
@@ -512,8 +514,8 @@ class ReferenceFluid:
         """
         rho_b, t_b = np.broadcast_arrays(np.asarray(rho_molar, dtype=float), np.asarray(T, dtype=float))
         shape = rho_b.shape
-        rho_f, t_f = rho_b.ravel(), t_b.ravel()
-        n = rho_f.size
+        rho_f, t_f = rho_b.ravel().tolist(), t_b.ravel().tolist()     # Python floats: cheaper per row
+        n = len(rho_f)
         out = np.full(n, np.nan)
         valid = np.zeros(n, dtype=bool)
         reasons = [""] * n
