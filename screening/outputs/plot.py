@@ -196,6 +196,26 @@ def plot_png(result: dict, dpi: int = 130) -> bytes:
     return plot_svg(result, png_dpi=dpi)
 
 
+def _grey_png(fig, dpi: int) -> bytes:
+    """The figure as an 8-bit greyscale PNG without alpha (the plot is drawn in greys only). The PDF
+    writer re-encodes a raster image and splits an alpha channel into a second image; one grey
+    channel is a third of the RGB data and needs one encoding, not two."""
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from PIL import Image
+
+    fig.set_dpi(dpi)
+    canvas = FigureCanvasAgg(fig)
+    canvas.draw()
+    rgba = canvas.buffer_rgba()
+    img = Image.frombuffer("RGBA", (int(rgba.shape[1]), int(rgba.shape[0])), rgba, "raw", "RGBA", 0, 1)
+    white = Image.new("RGBA", img.size, (255, 255, 255, 255))
+    grey = Image.alpha_composite(white, img).convert("L")
+    raw = io.BytesIO()
+    # light compression: the PDF writer compresses the image again
+    grey.save(raw, format="PNG", compress_level=1)
+    return raw.getvalue()
+
+
 def png_data_uri(png: bytes) -> str:
     """A data: URI carrying PNG bytes (base64)."""
     return "data:image/png;base64," + base64.b64encode(png).decode("ascii")
@@ -333,11 +353,7 @@ def plot_svg(result: dict, png_dpi: int | None = None) -> str:
             fig.subplots_adjust(left=0.105, right=0.985, top=0.975, bottom=0.235)
 
         if png_dpi is not None:
-            raw = io.BytesIO()
-            # light compression: the PDF writer compresses the image again, and zlib's default level
-            # made the encoding the largest single cost of a batch report with many detail pages
-            fig.savefig(raw, format="png", dpi=png_dpi, metadata={"Software": None}, pil_kwargs={"compress_level": 1})
-            return raw.getvalue()
+            return _grey_png(fig, png_dpi)
         buf = io.StringIO()
         fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": None, "Format": None, "Type": None})
     return buf.getvalue()
