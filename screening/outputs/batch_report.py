@@ -4,11 +4,21 @@ vessel that is not within rating (all of them with ``--all-details``). A view of
 It reuses the single report's safe Jinja environment, local-only URL fetcher and number helpers, and
 takes its cautions from the same module. Long tables are laid out one table per page of rows so the
 layout engine never has to break one long table.
+
+The document is a sequence of units, each starting on a new page: the summary, each page of the
+table, each detail section, the assumptions. A long document is laid out in a few parts of
+consecutive units, in forked workers where the machine has several cores, and the parts' PDFs are
+joined in order. Each part is told the page number it starts at and the document's page count,
+predicted as one page per unit; after the layout each part's real page count is compared with the
+prediction and, where they differ, every part is laid out again with the counted numbers, so the
+footers' "page N of M" always hold. The partition depends on the input alone, never on the number
+of cores, so the same input gives the same bytes on any machine.
 """
 
 from __future__ import annotations
 
 import datetime as _dt
+import hashlib
 import io
 import os
 
@@ -23,12 +33,28 @@ from screening.outputs.report import (
     ReportRenderError,
     _environment,
     _make_fetcher,
+    _source_date_epoch,
     templates_dir,
 )
 from screening.units import format_percent, format_pressure, format_temperature
 
 TEMPLATE = "batch.html.j2"
-ROWS_PER_PAGE = 40
+#: The vessel listing: lines of body per page, and its width in characters (7.2 pt DejaVu Sans Mono,
+#: 4.33 pt a character, on the 176 mm text width of an A4 page with the report's margins: 115).
+LINES_PER_PAGE = 60
+LISTING_WIDTH = 115
+#: Listing columns: key in the row's cells, header (two lines), alignment; the id and the gas name
+#: may wrap onto continuation lines when the listing would be wider than LISTING_WIDTH.
+_COLUMNS = (("row", ("", "Row"), ">"), ("id", ("", "Id"), "<"), ("verdict", ("", "Verdict"), "<"),
+            ("gas", ("", "Gas"), "<"), ("peak", ("Peak", "pressure"), ">"), ("rated", ("Rated", "pressure"), ">"),
+            ("margin", ("", "Margin"), ">"), ("t_max", ("Highest gas", "temperature"), ">"))
+_WRAPPING = ("gas", "id")
+_GAP = "  "
+#: Above this many units (pages, as predicted) the document is laid out in PARTS parts.
+SPLIT_ABOVE = 24
+#: Number of parts of a long document: a few per core of a two-core machine, so that parts of unequal
+#: cost still share the cores well; every part also pays a fixed cost (its fonts, ~0.7 s).
+PARTS = 4
 #: Above this many rows the margin chart is a histogram rather than one bar per vessel.
 BAR_CHART_MAX = 150
 
@@ -150,46 +176,175 @@ def _detail(r: dict) -> dict:
     return d
 
 
-def build_view(results: list[dict], *, source: str, all_details: bool, report_date: _dt.date,
-               full=None) -> dict:
-    """The template's view. ``full(i)``, where given, gives row i's full result for its detail section
-    (the batch keeps only what the table needs for most rows)."""
+def _units(results: list[dict], common: dict, all_details: bool) -> list[tuple]:
+    """The document's units in order: ("summary",), ("table", page index), ("detail", position of the
+    row in `results`, first detail?), ("assumptions",)."""
+    from screening.batch import ranked
+
+    n_pages = len(common["pages"])
+    position = {id(r): i for i, r in enumerate(results)}
+    details = [position[id(r)] for r in ranked(results) if all_details or r["verdict"] != "within"]
+    return ([("summary",)] + [("table", k) for k in range(n_pages)]
+            + [("detail", j, k == 0) for k, j in enumerate(details)] + [("assumptions",)])
+
+
+def _listing(rows: list[dict]) -> tuple[list[str], list[tuple[str, list[str]]]]:
+    """The vessel listing of `rows` (dicts of cell texts) as fixed-width text: its two header lines and
+    a rule, and for each row its class and its lines (one, or more where a long id or gas name wraps)."""
+    import textwrap
+
+    keys = [k for k, _, _ in _COLUMNS]
+    width = {k: max([len(h) for h in head] + [len(r[k]) for r in rows]) for k, head, _ in _COLUMNS}
+    over = sum(width.values()) + len(_GAP) * (len(keys) - 1) - LISTING_WIDTH
+    while over > 0:                      # narrow the widest wrapping column, one character at a time
+        k = max(_WRAPPING, key=lambda c: width[c])
+        if width[k] <= 8:
+            break
+        width[k] -= 1
+        over -= 1
+
+    def line(values: dict) -> str:
+        return _GAP.join(values[k].rjust(width[k]) if a == ">" else values[k].ljust(width[k])
+                         for k, _, a in _COLUMNS).rstrip()
+
+    head = [line({k: h[i] for k, h, _ in _COLUMNS}) for i in (0, 1)]
+    head.append("\u2500" * (sum(width.values()) + len(_GAP) * (len(keys) - 1)))
+    body = []
+    for r in rows:
+        parts = {k: (textwrap.wrap(r[k], width[k], break_long_words=True, break_on_hyphens=False) or [""])
+                 if k in _WRAPPING else [r[k]] for k in keys}
+        n = max(len(v) for v in parts.values())
+        body.append(("vr-" + r["verdict"], [line({k: (parts[k][i] if i < len(parts[k]) else "") for k in keys})
+                                            for i in range(n)]))
+    return head, body
+
+
+def _common(results: list[dict], *, source: str, all_details: bool, report_date: _dt.date) -> dict:
+    """What every part of the document shares: title, counts, the listing's pages, cautions."""
     from screening.batch import ORDER, cells, ranked, summary
 
     s = summary(results)
-    table = []
+    rows = []
     for r in ranked(results):
         c = cells(r)
-        table.append(dict(row=str(r["row"]), id=str(r.get("id") or "—"), verdict=r["verdict"], gas=c["gas"],
-                          peak=c["peak"], rated=c["rated"], margin=c["margin"], t_max=c["t_max"]))
-    pages = [table[k:k + ROWS_PER_PAGE] for k in range(0, len(table), ROWS_PER_PAGE)]
-    position = {id(r): i for i, r in enumerate(results)}
-    detail_rows = [full(position[id(r)]) if full is not None else r
-                   for r in ranked(results) if all_details or r["verdict"] != "within"]
+        rows.append(dict(row=str(r["row"]), id=str(r.get("id") or "\u2014"), verdict=r["verdict"], gas=c["gas"],
+                         peak=c["peak"], rated=c["rated"], margin=c["margin"], t_max=c["t_max"]))
+    head, body = _listing(rows)
+    pages: list[list[tuple[str, str]]] = []
+    for cls, lines in body:              # a row's lines stay on one page
+        if not pages or len(pages[-1]) + len(lines) > LINES_PER_PAGE:
+            pages.append([])
+        pages[-1] += [(cls, text) for text in lines]
     return dict(
         title=f"Batch pressure screening \u2014 {os.path.basename(source)}", source=str(source),
         report_date=report_date.isoformat(), counts=[(v, s["counts"][v]) for v in ORDER], rows=s["rows"],
-        duplicates=s["duplicate_ids"], chart=svg_data_uri(_margin_chart(results)), pages=pages,
-        details=parallel.map_items(_detail, detail_rows), all_details=all_details,
-        caution=CAUTION, short_caution=SHORT_CAUTION, assumptions=list(ASSUMPTIONS),
+        duplicates=s["duplicate_ids"], listing_head=head, pages=pages,
+        all_details=all_details, caution=CAUTION, short_caution=SHORT_CAUTION, assumptions=list(ASSUMPTIONS),
     )
+
+
+def _part_view(units: list[tuple], common: dict, results: list[dict], full, *, first_page: int | None = None,
+               total_pages: int | None = None) -> dict:
+    """The template's view of consecutive units. `first_page` and `total_pages` number the footers of a
+    part of a longer document (None: the document is this part alone and counts its own pages)."""
+    items = []
+    for k, u in enumerate(units):
+        item = dict(kind=u[0], new_page=k > 0)
+        if u[0] == "summary":
+            item["chart"] = svg_data_uri(_margin_chart(results))
+        elif u[0] == "table":
+            item.update(lines=common["pages"][u[1]], continued=u[1] > 0)
+        elif u[0] == "detail":
+            item.update(d=_detail(full(u[1]) if full is not None else results[u[1]]), heading=u[2])
+        items.append(item)
+    return dict(common, units=items, first_page=first_page, total_pages=total_pages)
+
+
+def build_view(results: list[dict], *, source: str, all_details: bool, report_date: _dt.date,
+               full=None) -> dict:
+    """The template's view of the whole document as one part. ``full(i)``, where given, gives row i's
+    full result for its detail section (the batch keeps only what the table needs for most rows)."""
+    common = _common(results, source=source, all_details=all_details, report_date=report_date)
+    return _part_view(_units(results, common, all_details), common, results, full)
+
+
+def _split(units: list[tuple]) -> list[list[tuple]]:
+    """Consecutive parts of near-equal length (one part for a short document)."""
+    if len(units) <= SPLIT_ABOVE:
+        return [units]
+    bounds = [round(k * len(units) / PARTS) for k in range(PARTS + 1)]
+    return [units[a:b] for a, b in zip(bounds, bounds[1:])]
+
+
+#: The job the parts are laid out for; set before the workers are forked, which inherit it.
+_JOB: dict = {}
+
+
+def _pdf(view: dict, report_date: _dt.date, tag: str) -> tuple[bytes, int]:
+    """(PDF bytes, page count) of a view. The dates in the PDF are the report date and its identifier
+    is taken from the view's source, date and `tag`, so the same input gives the same bytes."""
+    import weasyprint
+    from weasyprint.urls import FatalURLFetchingError
+
+    folder = templates_dir()
+    html_text = _environment(folder).get_template(TEMPLATE).render(v=view)
+    stamp = _dt.datetime(report_date.year, report_date.month, report_date.day, tzinfo=_dt.timezone.utc)
+    identifier = hashlib.sha256(f"{view['source']}|{view['report_date']}|{tag}".encode()).hexdigest()[:32]
+    try:
+        with _source_date_epoch(int(stamp.timestamp())):
+            doc = weasyprint.HTML(string=html_text, base_url=str(folder) + os.sep,
+                                  url_fetcher=_make_fetcher(folder)).render()
+            return doc.write_pdf(pdf_identifier=identifier.encode("ascii")), len(doc.pages)
+    except FatalURLFetchingError as exc:
+        raise ReportRenderError(str(exc)) from exc.__cause__
+
+
+def _render_part(spec: tuple) -> tuple[bytes, int]:
+    """(PDF bytes, page count) of part `k` of the job, its footers numbered from `first` of `total`."""
+    k, first, total = spec
+    job = _JOB
+    view = _part_view(job["parts"][k], job["common"], job["results"], job["full"], first_page=first,
+                      total_pages=total)
+    return _pdf(view, job["date"], f"part {k}")
+
+
+def _join(pdfs: list[bytes]) -> bytes:
+    """The parts' PDFs as one document: pages and bookmarks in order, the first part's metadata."""
+    from pypdf import PdfReader, PdfWriter
+
+    readers = [PdfReader(io.BytesIO(b)) for b in pdfs]
+    writer = PdfWriter()
+    for r in readers:
+        writer.append(r)
+    writer.add_metadata(dict(readers[0].metadata or {}))
+    out = io.BytesIO()
+    writer.write(out)
+    return out.getvalue()
 
 
 def render_batch_pdf_bytes(results: list[dict], *, source: str, all_details: bool = False,
                            report_date: _dt.date | None = None, full=None) -> bytes:
-    import weasyprint
-    from weasyprint.urls import FatalURLFetchingError
-
     report_date = report_date or _dt.date.today()
-    folder = templates_dir()
-    view = build_view(results, source=source, all_details=all_details, report_date=report_date, full=full)
-    html_text = _environment(folder).get_template(TEMPLATE).render(v=view)
-    fetcher = _make_fetcher(folder)
+    common = _common(results, source=source, all_details=all_details, report_date=report_date)
+    units = _units(results, common, all_details)
+    parts = _split(units)
+    if len(parts) == 1:
+        return _pdf(_part_view(units, common, results, full), report_date, "whole")[0]
+    _JOB.update(parts=parts, common=common, results=results, full=full, date=report_date)
     try:
-        doc = weasyprint.HTML(string=html_text, base_url=str(folder) + os.sep, url_fetcher=fetcher).render()
-        return doc.write_pdf()
-    except FatalURLFetchingError as exc:
-        raise ReportRenderError(str(exc)) from exc.__cause__
+        counts = [len(p) for p in parts]      # predicted: one page per unit
+        for _ in range(3):
+            firsts = [1 + sum(counts[:k]) for k in range(len(parts))]
+            out = parallel.map_items(_render_part, [(k, firsts[k], sum(counts)) for k in range(len(parts))],
+                                     min_items=2)
+            got = [n for _, n in out]
+            if got == counts:
+                return _join([b for b, _ in out])
+            counts = got                       # a unit ran over a page: number the pages again
+    finally:
+        _JOB.clear()
+    # the counts would not settle (never seen): lay the document out as one part
+    return _pdf(_part_view(units, common, results, full), report_date, "whole")[0]
 
 
 def render_batch_report(results: list[dict], out_path, *, source: str, all_details: bool = False,
