@@ -37,7 +37,10 @@ def inventory(n: int, path: Path, seed: int = 1, over_every: int = 0) -> list[tu
         for i in range(n):
             gas, cp = GASES[i % len(GASES)]
             p = round(rnd.uniform(150, 230), 1)
-            rated = 300 if not (over_every and i % over_every == 0) else 200
+            if not over_every:
+                rated = 300
+            else:  # exactly every over_every-th row over its rating, every other row well within
+                rated = 150 if i % over_every == 0 else 400
             t = round(rnd.uniform(5, 25), 1)
             amb = round(rnd.uniform(40, 60), 1)
             fh.write(f"B{i:06d},{gas},{rnd.choice((10, 20, 50))},{rated},{p},{t},{amb}\n")
