@@ -307,24 +307,48 @@ def write_csv(inv: Inventory, results: list[dict], path) -> None:
 
 # ----------------------------------------------------------------------------- the command
 
-def run(args) -> int:
-    inv = read_inventory(args.inventory, sheet=args.sheet)
-    defaults = load_defaults(args.defaults) if args.defaults else None
-    targets = [(p, what) for p, what in ((args.json, "JSON output"), (args.csv, "CSV output"),
-                                         (args.pdf, "PDF report")) if p]
-    for p, what in targets:      # refuse a bad target before the work, not after it
-        check_target(p, what)
-    run_ = BatchRun(inv, defaults, quiet=args.quiet)
-    results = run_.results
-    if args.json:
-        write_json(results, args.json, full=run_.full)
-    if args.csv:
-        write_csv(inv, results, args.csv)
-    if args.pdf:
-        from screening.outputs.batch_report import render_batch_report
+#: What a standby renderer imports while the batch screens: the layout engine and the batch report
+#: (named here, so that this process need not import them to fork it).
+RENDER_MODULES = ("weasyprint", "pypdf", "PIL.Image", "matplotlib.backends.backend_agg",
+                  "screening.outputs.batch_report")
 
-        render_batch_report(results, args.pdf, source=inv.source, all_details=args.all_details,
-                            report_date=args.date, quiet=args.quiet, full=run_.full)
+
+def _standby_renderer():
+    """For a batch that writes a PDF, in a fresh process: a child that imports the layout engine now,
+    while this process imports the equations of state and screens, and lays the PDF out later."""
+    from screening import parallel
+
+    if not hasattr(os, "fork") or "weasyprint" in sys.modules or "screening.screen" in sys.modules:
+        return None
+    try:
+        return parallel.Standby(RENDER_MODULES)
+    except OSError:
+        return None
+
+
+def run(args) -> int:
+    standby = _standby_renderer() if args.pdf else None
+    try:
+        inv = read_inventory(args.inventory, sheet=args.sheet)
+        defaults = load_defaults(args.defaults) if args.defaults else None
+        targets = [(p, what) for p, what in ((args.json, "JSON output"), (args.csv, "CSV output"),
+                                             (args.pdf, "PDF report")) if p]
+        for p, what in targets:      # refuse a bad target before the work, not after it
+            check_target(p, what)
+        run_ = BatchRun(inv, defaults, quiet=args.quiet)
+        results = run_.results
+        if args.json:
+            write_json(results, args.json, full=run_.full)
+        if args.csv:
+            write_csv(inv, results, args.csv)
+        if args.pdf:
+            from screening.outputs.batch_report import render_batch_report
+
+            render_batch_report(results, args.pdf, source=inv.source, all_details=args.all_details,
+                                report_date=args.date, quiet=args.quiet, full=run_.full, standby=standby)
+    finally:
+        if standby is not None:
+            standby.close()
     if args.quiet:
         s = summary(results)
         print("  ".join(f"{v}: {s['counts'][v]}" for v in ORDER) + f"  (rows: {s['rows']})")

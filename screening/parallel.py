@@ -78,3 +78,145 @@ def map_items(fn: Callable, items: list, min_items: int = 8) -> list:
         return [fn(x) for x in items]
     with multiprocessing.get_context("fork").Pool(n) as pool:
         return pool.map(fn, items, chunksize=max(1, len(items) // (4 * n)))
+
+
+class StandbyGone(RuntimeError):
+    """The standby process gave no answer (it died, or could not be reached); do the work here."""
+
+
+class Standby:
+    """A child process forked now that imports `modules` at once, beside this process's own work, and
+    later runs the one call it is sent, ``fn(*args)``, and sends back the value (both pickled: `fn`
+    must be a module-level function, the arguments and the value plain data).
+
+    Messages are length-prefixed, so neither side waits for an end of file that a process forked in
+    between (a pool worker) could hold back. An exception raised by the call is raised again here;
+    a child that dies or answers nothing raises StandbyGone, and the caller then does the work itself.
+    """
+
+    def __init__(self, modules: tuple[str, ...]) -> None:
+        import sys
+
+        sys.stdout.flush()
+        sys.stderr.flush()
+        to_child, self._to_child = os.pipe()
+        self._from_child, from_child = os.pipe()
+        try:
+            self.pid = os.fork()
+        except OSError:
+            for fd in (to_child, self._to_child, self._from_child, from_child):
+                os.close(fd)
+            raise
+        if self.pid == 0:
+            os.close(self._to_child)
+            os.close(self._from_child)
+            self._serve(modules, to_child, from_child)  # does not return
+        os.close(to_child)
+        os.close(from_child)
+
+    @staticmethod
+    def _serve(modules, read_fd: int, write_fd: int) -> None:
+        import importlib
+        import pickle
+        import sys
+
+        status = 1
+        try:
+            for name in modules:  # a head start only: a failing import is left for the call to raise
+                try:
+                    importlib.import_module(name)
+                except Exception:
+                    pass
+            data = _read_message(read_fd)
+            if data is None:    # nothing to do after all
+                status = 0
+                return
+            fn, args = pickle.loads(data)
+            try:
+                reply = ("value", fn(*args))
+            except Exception as exc:
+                reply = ("error", exc)
+            try:
+                out = pickle.dumps(reply, protocol=pickle.HIGHEST_PROTOCOL)
+            except Exception:  # an exception that does not pickle: its type and text still go back
+                out = pickle.dumps(("error", RuntimeError(f"{type(reply[1]).__name__}: {reply[1]}")))
+            _write_message(write_fd, out)
+            status = 0
+        except BaseException:  # whatever happens, the child must not go on to run the parent's code
+            pass
+        finally:
+            try:
+                sys.stdout.flush()
+                sys.stderr.flush()
+            finally:
+                os._exit(status)
+
+    def call(self, fn: Callable, *args):
+        """fn(*args), run in the child; its exception raised here; StandbyGone if it gives no answer."""
+        import pickle
+
+        try:
+            payload = pickle.dumps((fn, args), protocol=pickle.HIGHEST_PROTOCOL)
+        except Exception as exc:  # a call that cannot be handed over is done here
+            self.close()
+            raise StandbyGone(f"the call cannot be handed over: {exc}") from exc
+        try:
+            _write_message(self._to_child, payload)
+            data = _read_message(self._from_child)
+            if data is not None:
+                os.waitpid(self.pid, 0)  # it ends as soon as it has answered
+                self.pid = None
+        except OSError as exc:
+            raise StandbyGone(str(exc)) from exc
+        finally:
+            self.close()
+        if data is None:
+            raise StandbyGone("the standby process gave no answer")
+        kind, value = pickle.loads(data)
+        if kind == "error":
+            raise value
+        return value
+
+    def close(self) -> None:
+        """Close the pipes and reap the child (stopping it if it still runs: an error or an interrupt)."""
+        for fd in (self._to_child, self._from_child):
+            if fd is not None:
+                os.close(fd)
+        self._to_child = self._from_child = None
+        if self.pid is not None:
+            import signal
+
+            try:
+                pid, _ = os.waitpid(self.pid, os.WNOHANG)
+                if pid == 0:
+                    os.kill(self.pid, signal.SIGTERM)
+                    os.waitpid(self.pid, 0)
+            except OSError:
+                pass
+            self.pid = None
+
+
+def _write_message(fd: int, data: bytes) -> None:
+    out = memoryview(len(data).to_bytes(8, "big") + data)
+    while out:
+        out = out[os.write(fd, out):]
+
+
+def _read_message(fd: int) -> bytes | None:
+    """One length-prefixed message; None at an end of file before a whole message."""
+    chunks, want, head = [], 8, True
+    size = None
+    while True:
+        got = os.read(fd, min(want, 1 << 20))
+        if not got:
+            return None
+        chunks.append(got)
+        want -= len(got)
+        if want == 0:
+            if head:
+                size = int.from_bytes(b"".join(chunks), "big")
+                chunks, want, head = [], size, False
+                if size == 0:
+                    return b""
+            else:
+                return b"".join(chunks)

@@ -176,15 +176,19 @@ def _detail(r: dict) -> dict:
     return d
 
 
+def _detail_positions(results: list[dict], all_details: bool) -> list[int]:
+    """Positions in `results` of the rows that get a detail section, worst first."""
+    from screening.batch import ranked
+
+    position = {id(r): i for i, r in enumerate(results)}
+    return [position[id(r)] for r in ranked(results) if all_details or r["verdict"] != "within"]
+
+
 def _units(results: list[dict], common: dict, all_details: bool) -> list[tuple]:
     """The document's units in order: ("summary",), ("table", page index), ("detail", position of the
     row in `results`, first detail?), ("assumptions",)."""
-    from screening.batch import ranked
-
-    n_pages = len(common["pages"])
-    position = {id(r): i for i, r in enumerate(results)}
-    details = [position[id(r)] for r in ranked(results) if all_details or r["verdict"] != "within"]
-    return ([("summary",)] + [("table", k) for k in range(n_pages)]
+    details = _detail_positions(results, all_details)
+    return ([("summary",)] + [("table", k) for k in range(len(common["pages"]))]
             + [("detail", j, k == 0) for k, j in enumerate(details)] + [("assumptions",)])
 
 
@@ -347,14 +351,46 @@ def render_batch_pdf_bytes(results: list[dict], *, source: str, all_details: boo
     return _pdf(_part_view(units, common, results, full), report_date, "whole")[0]
 
 
+def _detail_results(results: list[dict], all_details: bool, full) -> dict[int, dict]:
+    """Full results, with their plot curves, of the rows that get a detail section, by position in
+    `results`: computed here, where the equations of state are loaded, for a renderer without them."""
+    out = {}
+    for j in _detail_positions(results, all_details):
+        r = dict(full(j) if full is not None else results[j])
+        if not r.get("curves") and r["verdict"] != "input-error":
+            try:
+                r["curves"] = _curves(r)
+            except Exception:  # as in _detail: a missing curve leaves the section without its plot
+                r["curves"] = None
+        out[j] = r
+    return out
+
+
+def _render_with_details(results: list[dict], details: dict, source: str, all_details: bool,
+                         report_date: _dt.date | None) -> bytes:
+    return render_batch_pdf_bytes(results, source=source, all_details=all_details, report_date=report_date,
+                                  full=details.__getitem__)
+
+
 def render_batch_report(results: list[dict], out_path, *, source: str, all_details: bool = False,
-                        report_date: _dt.date | None = None, quiet: bool = True, full=None):
-    """Write the batch PDF atomically (temporary file beside the target, then moved into place)."""
+                        report_date: _dt.date | None = None, quiet: bool = True, full=None, standby=None):
+    """Write the batch PDF atomically (temporary file beside the target, then moved into place).
+
+    `standby`, where given, is a `parallel.Standby` that has imported the layout engine while the batch
+    screened (`screening.batch.RENDER_MODULES`): the document is laid out there. If it gives no answer, it is laid out here."""
     from screening.batch import atomic_writer, check_target
 
     check_target(out_path, "PDF report")
-    pdf = render_batch_pdf_bytes(results, source=source, all_details=all_details, report_date=report_date,
-                                 full=full)
+    pdf = None
+    if standby is not None:
+        details = _detail_results(results, all_details, full)
+        try:
+            pdf = standby.call(_render_with_details, results, details, source, all_details, report_date)
+        except parallel.StandbyGone:
+            pdf = None
+    if pdf is None:
+        pdf = render_batch_pdf_bytes(results, source=source, all_details=all_details, report_date=report_date,
+                                     full=full)
     with atomic_writer(out_path, "PDF report", binary=True) as fh:
         fh.write(pdf)
     return out_path
