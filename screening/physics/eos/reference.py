@@ -91,6 +91,7 @@ def _bib_entry(key: str) -> dict[str, str] | None:
     return fields
 
 
+@lru_cache(maxsize=256)
 def _citation(key: str) -> str:
     """Readable citation for a CoolProp bibliography key; the key itself when the entry is not there."""
     f = _bib_entry(key) if key else None
