@@ -55,13 +55,15 @@ class BatchRun:
     of the vectorised path (see :func:`screening.vector.slim`), the full result for the rest and the
     ``input-error`` rows. ``full(i)`` gives row i's full result dict (built on demand)."""
 
-    def __init__(self, inv: Inventory, defaults: dict | None = None, quiet: bool = True) -> None:
+    def __init__(self, inv: Inventory, defaults: dict | None = None, quiet: bool = True,
+                 plain=None) -> None:
         from screening.inputs.columns import read_plain
         from screening.vector import PlainScreening, screen_cases
 
         self.inv = inv
         id_col = next(i for i, c in enumerate(inv.columns) if c.name == "id")
-        plain = read_plain(inv, defaults)
+        if plain is None:       # (else read already: see _early_reader)
+            plain = read_plain(inv, defaults)
         bar = _progress(len(inv.rows), quiet, "screening")
         self._plain = PlainScreening(plain, progress=(bar.update if bar else None))
         slots: list[dict | None] = [None] * len(inv.rows)
@@ -307,6 +309,12 @@ def write_csv(inv: Inventory, results: list[dict], path) -> None:
 
 # ----------------------------------------------------------------------------- the command
 
+def _fresh_process() -> bool:
+    """A child forked at the start helps where the platform forks and this process has not loaded the
+    screening core yet (a fresh command, not a long-lived caller that has it loaded)."""
+    return hasattr(os, "fork") and "screening.screen" not in sys.modules
+
+
 #: What a standby renderer imports while the batch screens: the layout engine and the batch report
 #: (named here, so that this process need not import them to fork it).
 RENDER_MODULES = ("weasyprint", "pypdf", "PIL.Image", "matplotlib.backends.backend_agg",
@@ -318,7 +326,7 @@ def _standby_renderer():
     while this process imports the equations of state and screens, and lays the PDF out later."""
     from screening import parallel
 
-    if not hasattr(os, "fork") or "weasyprint" in sys.modules or "screening.screen" in sys.modules:
+    if not _fresh_process() or "weasyprint" in sys.modules:
         return None
     try:
         return parallel.Standby(RENDER_MODULES)
@@ -326,16 +334,59 @@ def _standby_renderer():
         return None
 
 
+#: From this size of inventory file [bytes] on, a child forked at the start reads and parses the rows
+#: while this process imports the equations of state (seconds, for CoolProp's fluid library).
+EARLY_READ_BYTES = 256 * 1024
+
+
+def _read_rows(path: str, sheet: str | None, defaults_path: str | None):
+    """(inventory, its plain rows): what the early reader sends back."""
+    from screening.inputs.columns import read_plain
+
+    inv = read_inventory(path, sheet=sheet)
+    defaults = load_defaults(defaults_path) if defaults_path else None
+    return inv, read_plain(inv, defaults)
+
+
+def _early_reader(args):
+    """For a large inventory, in a fresh process: a child that reads and parses its rows now."""
+    from screening import parallel
+
+    if not _fresh_process():
+        return None
+    try:
+        if os.path.getsize(args.inventory) < EARLY_READ_BYTES:
+            return None
+        reader = parallel.Standby(("screening.inputs.columns",))
+    except OSError:
+        return None
+    try:
+        reader.send(_read_rows, args.inventory, args.sheet, args.defaults)
+    except parallel.StandbyGone:
+        return None
+    return reader
+
+
 def run(args) -> int:
     standby = _standby_renderer() if args.pdf else None
+    reader = _early_reader(args)
     try:
-        inv = read_inventory(args.inventory, sheet=args.sheet)
+        plain = None
+        if reader is not None:
+            import screening.vector  # noqa: F401  (the long import, beside the reader's work)
+
+            try:
+                inv, plain = reader.answer()
+            except Exception:  # whatever went wrong there is read here, and a bad file reported from here
+                plain = None
+        if plain is None:
+            inv = read_inventory(args.inventory, sheet=args.sheet)
         defaults = load_defaults(args.defaults) if args.defaults else None
         targets = [(p, what) for p, what in ((args.json, "JSON output"), (args.csv, "CSV output"),
                                              (args.pdf, "PDF report")) if p]
         for p, what in targets:      # refuse a bad target before the work, not after it
             check_target(p, what)
-        run_ = BatchRun(inv, defaults, quiet=args.quiet)
+        run_ = BatchRun(inv, defaults, quiet=args.quiet, plain=plain)
         results = run_.results
         if args.json:
             write_json(results, args.json, full=run_.full)
@@ -347,8 +398,9 @@ def run(args) -> int:
             render_batch_report(results, args.pdf, source=inv.source, all_details=args.all_details,
                                 report_date=args.date, quiet=args.quiet, full=run_.full, standby=standby)
     finally:
-        if standby is not None:
-            standby.close()
+        for child in (standby, reader):
+            if child is not None:
+                child.close()
     if args.quiet:
         s = summary(results)
         print("  ".join(f"{v}: {s['counts'][v]}" for v in ORDER) + f"  (rows: {s['rows']})")

@@ -263,7 +263,9 @@ def run(argv: list[str] | None = None) -> int:
     if args.command == "batch":
         from screening.batch import run as run_batch
 
-        return run_batch(args)
+        code = run_batch(args)
+        _ending(argv)
+        return code
     if args.command == "gases":
         from screening.outputs.gases_listing import format_library
 

@@ -87,7 +87,8 @@ class StandbyGone(RuntimeError):
 class Standby:
     """A child process forked now that imports `modules` at once, beside this process's own work, and
     later runs the one call it is sent, ``fn(*args)``, and sends back the value (both pickled: `fn`
-    must be a module-level function, the arguments and the value plain data).
+    must be a module-level function, the arguments and the value plain data). The call may be sent at
+    once (`send`, then `answer` when the value is needed) or when it is known (`call`).
 
     Messages are length-prefixed, so neither side waits for an end of file that a process forked in
     between (a pool worker) could hold back. An exception raised by the call is raised again here;
@@ -138,8 +139,8 @@ class Standby:
                 reply = ("error", exc)
             try:
                 out = pickle.dumps(reply, protocol=pickle.HIGHEST_PROTOCOL)
-            except Exception:  # an exception that does not pickle: its type and text still go back
-                out = pickle.dumps(("error", RuntimeError(f"{type(reply[1]).__name__}: {reply[1]}")))
+            except Exception as exc:  # an answer that does not pickle: the caller does the work itself
+                out = pickle.dumps(("gone", f"the answer cannot be handed back: {exc}"))
             _write_message(write_fd, out)
             status = 0
         except BaseException:  # whatever happens, the child must not go on to run the parent's code
@@ -151,17 +152,22 @@ class Standby:
             finally:
                 os._exit(status)
 
-    def call(self, fn: Callable, *args):
-        """fn(*args), run in the child; its exception raised here; StandbyGone if it gives no answer."""
+    def send(self, fn: Callable, *args) -> None:
+        """Hand the call to the child (it starts at once); StandbyGone if it cannot be handed over."""
         import pickle
 
         try:
             payload = pickle.dumps((fn, args), protocol=pickle.HIGHEST_PROTOCOL)
+            _write_message(self._to_child, payload)
         except Exception as exc:  # a call that cannot be handed over is done here
             self.close()
             raise StandbyGone(f"the call cannot be handed over: {exc}") from exc
+
+    def answer(self):
+        """The value of the call sent; its exception raised here; StandbyGone if it gives no answer."""
+        import pickle
+
         try:
-            _write_message(self._to_child, payload)
             data = _read_message(self._from_child)
             if data is not None:
                 os.waitpid(self.pid, 0)  # it ends as soon as it has answered
@@ -172,10 +178,20 @@ class Standby:
             self.close()
         if data is None:
             raise StandbyGone("the standby process gave no answer")
-        kind, value = pickle.loads(data)
+        try:
+            kind, value = pickle.loads(data)
+        except Exception as exc:
+            raise StandbyGone(f"the answer cannot be read: {exc}") from exc
         if kind == "error":
             raise value
+        if kind == "gone":
+            raise StandbyGone(value)
         return value
+
+    def call(self, fn: Callable, *args):
+        """fn(*args), run in the child; its exception raised here; StandbyGone if it gives no answer."""
+        self.send(fn, *args)
+        return self.answer()
 
     def close(self) -> None:
         """Close the pipes and reap the child (stopping it if it still runs: an error or an interrupt)."""

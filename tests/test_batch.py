@@ -142,3 +142,26 @@ def test_csv_formatted_in_forked_workers_equals_one_process(tmp_path, monkeypatc
     one = (tmp_path / "one.csv").read_bytes()
     assert one == (tmp_path / "forked.csv").read_bytes()
     assert len(one.decode("utf-8").splitlines()) == 1 + 6
+
+
+def test_a_large_inventory_read_by_the_early_reader_gives_the_same_rows(tmp_path, monkeypatch):
+    import screening.batch as batch_mod
+
+    lines = [HEAD] + [f"R{i},{'nitrogen' if i % 2 else 'argon'},50 L,300 bar(g),{150 + i % 80} bar(g),15 degC,"
+                      f"45 degC\n" for i in range(300)] + ["BAD,argon,50 L,300 bar(g),lots,15 degC,45 degC\n"]
+    inv = write(tmp_path, "".join(lines))
+    out_here, out_early = tmp_path / "here.csv", tmp_path / "early.csv"
+    run(["batch", str(inv), "--csv", str(out_here), "--quiet"])
+    monkeypatch.setattr(batch_mod, "EARLY_READ_BYTES", 0)
+    monkeypatch.setattr(batch_mod, "_fresh_process", lambda: True)   # as in a fresh command
+    calls = []
+    real = batch_mod._early_reader
+    monkeypatch.setattr(batch_mod, "_early_reader", lambda args: calls.append(real(args)) or calls[-1])
+    run(["batch", str(inv), "--csv", str(out_early), "--quiet"])
+    assert calls and calls[0] is not None
+    assert out_early.read_bytes() == out_here.read_bytes()
+    # a file that cannot be read is reported from this process as usual
+    bad = write(tmp_path, "", name="empty.csv")
+    from screening.errors import InputError
+    with pytest.raises(InputError, match="empty"):
+        run(["batch", str(bad), "--csv", str(out_early), "--quiet"])

@@ -50,3 +50,18 @@ def test_an_unused_standby_is_stopped_and_reaped():
 def test_a_call_that_cannot_be_handed_over_gives_no_answer():
     with pytest.raises(parallel.StandbyGone):
         parallel.Standby(()).call(lambda: 1)
+
+
+def test_a_call_sent_at_once_is_answered_later():
+    sb = parallel.Standby(())
+    sb.send(_double, 4)
+    assert sb.answer() == 8
+
+
+def _unpicklable_answer():
+    return lambda: 1
+
+
+def test_an_answer_that_cannot_come_back_gives_no_answer():
+    with pytest.raises(parallel.StandbyGone):
+        parallel.Standby(()).call(_unpicklable_answer)
