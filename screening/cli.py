@@ -249,8 +249,11 @@ def _ending(argv: list[str] | None) -> None:
     into the garbage collector's permanent generation. Interpreter shutdown still runs every exit
     handler and closes every file, but its final collections no longer walk the hundreds of thousands
     of objects the libraries created only to free memory the system reclaims anyway (about half a second
-    of a report command's run). A caller that passes `argv` lives on, and is left as it is."""
-    if argv is None:
+    of a report command's run). A caller that passes `argv` lives on, and is left as it is.
+
+    Not where this process has loaded CoolProp: its binding library counts the objects still alive at
+    shutdown, and frozen ones never die, so it would print a page of "leaked" notices on the way out."""
+    if argv is None and "CoolProp.CoolProp" not in sys.modules:
         gc.freeze()
 
 
