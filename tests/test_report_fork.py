@@ -286,5 +286,9 @@ def test_only_a_process_running_its_own_command_line_freezes_its_objects_at_the_
     monkeypatch.setattr(cli.gc, "freeze", lambda: frozen.append(True))
     cli._ending(["report", "case.toml", "-o", "out.pdf"])  # a caller that lives on
     assert frozen == []
-    cli._ending(None)  # the process's own command line: it ends next
+    monkeypatch.setitem(sys.modules, "CoolProp.CoolProp", object())
+    cli._ending(None)  # its own command line, but CoolProp is loaded: its bindings count leaks at shutdown
+    assert frozen == []
+    monkeypatch.delitem(sys.modules, "CoolProp.CoolProp")
+    cli._ending(None)  # the process's own command line, without CoolProp (a report's parent): it ends next
     assert frozen == [True]
