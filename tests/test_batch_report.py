@@ -113,3 +113,13 @@ def test_a_standby_renderer_writes_the_same_document(tmp_path, monkeypatch):
     monkeypatch.setattr(br, "_render_with_details", _die)
     br.render_batch_report(rs, out_there, source="inv.csv", report_date=DATE, standby=parallel.Standby(()))
     assert out_here.read_bytes() == out_there.read_bytes()
+
+
+def test_the_chart_caption_describes_the_chart_drawn(tmp_path, monkeypatch):
+    rs = inventory(tmp_path, n_over=2, n_within=2)
+    common = br._common(rs, source="inv.csv", all_details=False, report_date=DATE)
+    view = br._part_view([("summary",)], common, rs, None)
+    assert "worst first" in view["units"][0]["chart_caption"]
+    monkeypatch.setattr(br, "BAR_CHART_MAX", 1)            # more vessels than bars: a histogram
+    view = br._part_view([("summary",)], common, rs, None)
+    assert "How many vessels" in view["units"][0]["chart_caption"]

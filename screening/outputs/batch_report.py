@@ -256,6 +256,10 @@ def _part_view(units: list[tuple], common: dict, results: list[dict], full, *, f
         item = dict(kind=u[0], new_page=k > 0)
         if u[0] == "summary":
             item["chart"] = svg_data_uri(_margin_chart(results))
+            bars = sum(1 for r in results if r.get("margin_fraction") is not None) <= BAR_CHART_MAX
+            item["chart_caption"] = ("Margin to the rated pressure per vessel, worst first; dashed: the required "
+                                     "margin." if bars else "How many vessels have each margin to the rated "
+                                     "pressure; left of the zero line: over the rating.")
         elif u[0] == "table":
             item.update(lines=common["pages"][u[1]], continued=u[1] > 0)
         elif u[0] == "detail":
