@@ -5,8 +5,9 @@ Exit codes: 0 within rating; 1 any other verdict (or a report that does not veri
 Commands that write a PDF (`report`, `check --pdf`) screen the case in a forked child process: the
 child imports the screening core (CoolProp loads its whole fluid library) while this process reads the
 case and imports the report layer (WeasyPrint, Matplotlib, Jinja2), so the two slow import chains run
-on two cores at once. The child sends the result back as JSON, the same JSON the report attaches; where
-fork is not available, or the child gives no answer, the case is screened here as before.
+on two cores at once (`parallel.Standby`). The child sends the result back pickled, so every value
+comes back unchanged; where fork is not available, or the child gives no answer, the case is screened
+here as before.
 """
 
 from __future__ import annotations
@@ -16,7 +17,6 @@ import datetime as _dt
 import gc
 import json
 import os
-import pickle
 import sys
 
 from screening import __version__
@@ -104,103 +104,14 @@ def _prepare_report_layer() -> None:
         pass
 
 
-class _ScreeningChild:
-    """A forked child that imports the screening core at once, then screens the one case it is sent.
+def _screen_message(case) -> dict:
+    """Run in the forked child: {"result": ...} or {"input_error": "the one-line message"}."""
+    from screening.screen import screen_case
 
-    Parent to child: the parsed Case, pickled (the parent reads the case file itself, so the child never
-    needs the unit registry). Child to parent: one JSON message, {"result": ...} or {"input_error":
-    "the one-line message"}. A child that fails in any other way sends nothing, and the parent then
-    screens the case itself, which shows the error exactly as the plain path would.
-    """
-
-    def __init__(self) -> None:
-        sys.stdout.flush()
-        sys.stderr.flush()
-        to_child, self._to_child = os.pipe()
-        self._from_child, from_child = os.pipe()
-        try:
-            self.pid = os.fork()
-        except OSError:  # no memory, no more processes: the caller screens the case itself
-            for fd in (to_child, self._to_child, self._from_child, from_child):
-                os.close(fd)
-            raise
-        if self.pid == 0:
-            os.close(self._to_child)
-            os.close(self._from_child)
-            self._run(to_child, from_child)  # does not return
-        os.close(to_child)
-        os.close(from_child)
-
-    @staticmethod
-    def _run(read_fd: int, write_fd: int) -> None:
-        status = 1
-        try:
-            try:
-                from screening.screen import screen_case  # the long import, beside the parent's work
-
-                with os.fdopen(read_fd, "rb") as pipe:
-                    data = pipe.read()
-                if not data:  # the parent had no case to send (it reports why itself)
-                    status = 0
-                    return
-                message = {"result": screen_case(pickle.loads(data))}
-            except InputError as exc:
-                message = {"input_error": str(exc)}
-            # Default json settings (ASCII escapes, NaN allowed): every str and float comes back unchanged.
-            out = memoryview(json.dumps(message).encode("ascii"))
-            while out:
-                out = out[os.write(write_fd, out):]
-            status = 0
-        except BaseException:  # whatever happens, the child must not go on to run the parent's code
-            pass
-        finally:
-            try:  # anything a library printed (a warning) goes out as it would from one process
-                sys.stdout.flush()
-                sys.stderr.flush()
-            finally:
-                os._exit(status)
-
-    def send(self, case) -> bool:
-        """Hand the parsed case to the child; False if that fails (the child has died, say), and the
-        caller then screens the case itself."""
-        try:
-            data = pickle.dumps(case, protocol=pickle.HIGHEST_PROTOCOL)
-            with os.fdopen(self._to_child, "wb") as pipe:
-                self._to_child = None
-                pipe.write(data)
-        except Exception:  # a broken pipe, or a case that does not pickle: the plain path still works
-            return False
-        return True
-
-    def answer(self) -> dict | None:
-        """The child's message, once it has finished; None if it gave none."""
-        with os.fdopen(self._from_child, "rb") as pipe:
-            self._from_child = None
-            data = pipe.read()
-        _, status = os.waitpid(self.pid, 0)
-        self.pid = None
-        if status != 0 or not data:
-            return None
-        try:
-            return json.loads(data)
-        except ValueError:
-            return None
-
-    def close(self) -> None:
-        """Close the pipes; stop and reap the child if it is still there (an error or an interrupt here)."""
-        for fd in (self._to_child, self._from_child):
-            if fd is not None:
-                os.close(fd)
-        self._to_child = self._from_child = None
-        if self.pid is not None:
-            import signal
-
-            try:
-                os.kill(self.pid, signal.SIGTERM)
-                os.waitpid(self.pid, 0)
-            except OSError:
-                pass
-            self.pid = None
+    try:
+        return {"result": screen_case(case)}
+    except InputError as exc:
+        return {"input_error": str(exc)}
 
 
 def _fork_helps() -> bool:
@@ -212,26 +123,33 @@ def _fork_helps() -> bool:
 def _screened_for_pdf(path: str, *, fork: bool | None = None) -> tuple[dict, str]:
     """(result, case text as read) for a command that goes on to write a PDF.
 
-    With `fork` (default: `_fork_helps()`), a child imports the screening core and screens the case
-    while this process reads the case and imports the report layer. An InputError found by the child is
+    With `fork` (default: `_fork_helps()`), a child (`parallel.Standby`) imports the screening core and
+    screens the case while this process reads the case and imports the report layer. The parent sends
+    it the parsed Case (so the child never needs the unit registry); an InputError found by the child is
     raised here with the same message. Without a fork, or when the child gives no answer, the case is
     screened here.
     """
+    from screening import parallel
+
     if fork is None:
         fork = _fork_helps()
     child = None
     if fork:
         try:
-            child = _ScreeningChild()
-        except OSError:
+            child = parallel.Standby(("screening.screen",))
+        except OSError:  # no memory, no more processes: screened here
             child = None
     try:
         from screening.inputs.case import load_case
 
         case = load_case(path)
-        if child is not None and child.send(case):
-            _prepare_report_layer()
-            message = child.answer()
+        if child is not None:
+            try:
+                child.send(_screen_message, case)
+                _prepare_report_layer()
+                message = child.answer()
+            except parallel.StandbyGone:
+                message = None
             if message is not None:
                 if "input_error" in message:
                     raise InputError(message["input_error"])

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import multiprocessing
 import os
+import pickle
 from typing import Callable
 
 import numpy as np
@@ -118,7 +119,6 @@ class Standby:
     @staticmethod
     def _serve(modules, read_fd: int, write_fd: int) -> None:
         import importlib
-        import pickle
         import sys
 
         status = 1
@@ -154,8 +154,6 @@ class Standby:
 
     def send(self, fn: Callable, *args) -> None:
         """Hand the call to the child (it starts at once); StandbyGone if it cannot be handed over."""
-        import pickle
-
         try:
             payload = pickle.dumps((fn, args), protocol=pickle.HIGHEST_PROTOCOL)
             _write_message(self._to_child, payload)
@@ -165,8 +163,6 @@ class Standby:
 
     def answer(self):
         """The value of the call sent; its exception raised here; StandbyGone if it gives no answer."""
-        import pickle
-
         try:
             data = _read_message(self._from_child)
             if data is not None:

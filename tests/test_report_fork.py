@@ -19,7 +19,7 @@ from pathlib import Path
 
 import pytest
 
-from screening import cli
+from screening import cli, parallel
 from screening.errors import InputError
 from screening.outputs.report import render_pdf_bytes, result_json
 from screening.screen import screen_file
@@ -120,14 +120,18 @@ def _overfilled(tmp_path: Path) -> Path:
 
 def _children_made(monkeypatch) -> list[int]:
     made: list[int] = []
-    real_init = cli._ScreeningChild.__init__
+    real_init = parallel.Standby.__init__
 
-    def init(self):
-        real_init(self)
+    def init(self, modules):
+        real_init(self, modules)
         made.append(self.pid)
 
-    monkeypatch.setattr(cli._ScreeningChild, "__init__", init)
+    monkeypatch.setattr(parallel.Standby, "__init__", init)
     return made
+
+
+def _exit_at_once(case):
+    os._exit(1)
 
 
 def _open_fds() -> set[str] | None:
@@ -206,7 +210,7 @@ def test_a_fresh_command_with_an_unreadable_case_is_one_line_and_exit_2(tmp_path
 @FORK
 def test_a_child_that_gives_no_answer_leaves_the_screening_to_the_parent(monkeypatch):
     case = ROOT / "cases" / "kq-n2-014.toml"
-    monkeypatch.setattr(cli._ScreeningChild, "_run", staticmethod(lambda read_fd, write_fd: os._exit(1)))
+    monkeypatch.setattr(cli, "_screen_message", _exit_at_once)
     made = _children_made(monkeypatch)
     result, _ = cli._screened_for_pdf(str(case), fork=True)
     _same_types(result, screen_file(case))
@@ -243,8 +247,8 @@ def test_a_case_that_cannot_be_handed_to_the_child_is_screened_by_the_parent(mon
     def refuse(*args, **kwargs):
         raise TypeError("cannot pickle this")
 
-    monkeypatch.setattr(cli, "pickle", types.SimpleNamespace(dumps=refuse, loads=pickle.loads,
-                                                            HIGHEST_PROTOCOL=pickle.HIGHEST_PROTOCOL))
+    monkeypatch.setattr(parallel, "pickle", types.SimpleNamespace(dumps=refuse, loads=pickle.loads,
+                                                                 HIGHEST_PROTOCOL=pickle.HIGHEST_PROTOCOL))
     made = _children_made(monkeypatch)
     fds = _open_fds()
     result, _ = cli._screened_for_pdf(str(case), fork=True)
