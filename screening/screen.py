@@ -514,16 +514,23 @@ def _phase_diagram(fs: FillState) -> dict | None:
             "triple_temperature_k": tt}
 
 
-def _curves(models: list[Model], t_fill: float, t_peak: float, limits: dict,
-            bounding: Model | None = None) -> dict:
+def curve_temperatures(t_fill: float, t_peak: float, limits: dict, points: int = 61) -> np.ndarray:
+    """Gas temperatures [K] at which a result's isochore curves are drawn: from 30 K below the lower of
+    the fill and worst-case temperatures to 25 K above the higher, stretched to 10 K past the highest
+    gas temperature where that lies within 80 K of the worst case (plot ranges chosen here)."""
     t_lo = max(min(t_fill, t_peak) - 30.0, 1.0)
     t_top = max(t_peak, t_fill) + 25.0
     tmax = limits.get("max_gas_temperature_k")
     if tmax is not None and tmax < t_peak + 80.0:
         t_top = max(t_top, tmax + 10.0)
+    return np.linspace(t_lo, t_top, points)
+
+
+def _curves(models: list[Model], t_fill: float, t_peak: float, limits: dict,
+            bounding: Model | None = None) -> dict:
     # a mixture's reference state costs tens of milliseconds (its consistency checks): fewer points
     slow = any(m.name == "reference" and m.applicable and m.extra.get("fluid", "").count("&") for m in models)
-    grid = np.linspace(t_lo, t_top, 25 if slow else 61)
+    grid = curve_temperatures(t_fill, t_peak, limits, 25 if slow else 61)
     out: dict = {"temperature_k": [float(t) for t in grid]}
     for m in models:
         if not m.applicable or m.isochore is None:

@@ -898,3 +898,30 @@ class PlainScreening:
 def iter_chunks(items: list, size: int) -> Iterable[list]:
     for k in range(0, len(items), size):
         yield items[k:k + size]
+
+
+def curves(r: dict) -> dict:
+    """Isochore curves of a row's full result, on the single screening's grid
+    (`screen.curve_temperatures`): what a view draws for a row the vectorised path screened, whose
+    result carries no curves."""
+    grid = _screen.curve_temperatures(r["fill"]["temperature_k"], r["worst_case_temperature_k"],
+                                      r.get("limits") or {})
+    out: dict = {"temperature_k": [float(t) for t in grid]}
+    models = r["models"]
+    ide = models.get("ideal") or {}
+    out["ideal"] = ([float(ide["fill_molar_density_mol_m3"] * R * t) for t in grid]
+                    if ide.get("applicable") else None)
+    gen = models.get("generalized") or {}
+    out["generalized"] = None
+    if gen.get("applicable") and not gen.get("quantum_correction") and not gen.get("mixing_rule"):
+        s = lee_kesler_pressure(gen["fill_molar_density_mol_m3"], grid, gen["pseudocritical_temperature_k"],
+                                gen["pseudocritical_pressure_pa"], gen["acentric_factor"])
+        out["generalized"] = [float(p) if v else None for p, v in zip(s.pressure, s.valid)]
+    ref = models.get("reference") or {}
+    out["reference"] = None
+    comps = r["gas"]["components"]
+    if ref.get("applicable") and len(comps) == 1 and comps[0].get("coolprop_name"):
+        fluid = reference_fluid((comps[0]["coolprop_name"],), (1.0,))
+        p, v, _ = fluid.pressures(np.full(grid.shape, ref["fill_molar_density_mol_m3"]), grid)
+        out["reference"] = [float(x) if ok else None for x, ok in zip(p, v)]
+    return out

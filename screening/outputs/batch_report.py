@@ -104,36 +104,9 @@ def _margin_chart(results: list[dict]) -> str:
 
 
 def _curves(r: dict) -> dict | None:
-    """Isochore curves of a detail row from its result (grid as the single screening draws it)."""
-    from screening.physics.eos.generalized import lee_kesler_pressure
-    from screening.physics.eos.reference import reference_fluid
+    from screening.vector import curves  # the equations of state: loaded only where a curve is missing
 
-    t_fill, t_peak = r["fill"]["temperature_k"], r["worst_case_temperature_k"]
-    t_lo = max(min(t_fill, t_peak) - 30.0, 1.0)
-    t_top = max(t_peak, t_fill) + 25.0
-    tmax = (r.get("limits") or {}).get("max_gas_temperature_k")
-    if tmax is not None and tmax < t_peak + 80.0:
-        t_top = max(t_top, tmax + 10.0)
-    grid = np.linspace(t_lo, t_top, 61)
-    out: dict = {"temperature_k": [float(t) for t in grid]}
-    models = r["models"]
-    ide = models.get("ideal") or {}
-    out["ideal"] = ([float(ide["fill_molar_density_mol_m3"] * 8.314462618 * t) for t in grid]
-                    if ide.get("applicable") else None)
-    gen = models.get("generalized") or {}
-    out["generalized"] = None
-    if gen.get("applicable") and not gen.get("quantum_correction") and not gen.get("mixing_rule"):
-        s = lee_kesler_pressure(gen["fill_molar_density_mol_m3"], grid, gen["pseudocritical_temperature_k"],
-                                gen["pseudocritical_pressure_pa"], gen["acentric_factor"])
-        out["generalized"] = [float(p) if v else None for p, v in zip(s.pressure, s.valid)]
-    ref = models.get("reference") or {}
-    out["reference"] = None
-    comps = r["gas"]["components"]
-    if ref.get("applicable") and len(comps) == 1 and comps[0].get("coolprop_name"):
-        fluid = reference_fluid((comps[0]["coolprop_name"],), (1.0,))
-        p, v, _ = fluid.pressures(np.full(grid.shape, ref["fill_molar_density_mol_m3"]), grid)
-        out["reference"] = [float(x) if ok else None for x, ok in zip(p, v)]
-    return out
+    return curves(r)
 
 
 def _detail(r: dict) -> dict:
