@@ -30,13 +30,28 @@ from screening.physics.gases import Mixture
 from screening.physics.isochore import isochore_phases, max_liquid_density
 from screening.physics.roots import brentq
 
+#: Basis named for the worst case where the fill temperature is above every exposure temperature.
+FILL_STATE_BASIS = "fill temperature (above the exposure: the fill state governs)"
+
 VERDICTS = ("within", "low-margin", "over", "out-of-scope")
 _SEVERITY = {"within": 0, "low-margin": 1, "over": 2, "out-of-scope": 3}
 
 #: Relative difference between the generalized and reference peaks above which a warning is given.
 MODEL_DISAGREEMENT_WARNING = 0.02
-#: A vapour fill at or above this fraction of the vapour pressure is treated as near-saturated.
-NEAR_SATURATION_FRACTION = 0.95
+#: Saturation band of a fill given by pressure. Within this fraction of the vapour pressure at the fill
+#: temperature, or within SATURATION_BAND_K of the saturation temperature at the fill pressure, the pressure
+#: cannot fix the density: the contents may be vapour, liquid or both, and an ordinary gauge cannot tell
+#: (a class 1.6 gauge on a 0–100 bar dial reads within 1.6 bar, about 3 % of a carbon dioxide cylinder's
+#: 57 bar; a fill temperature read off the ambient is good to a couple of kelvin: common practice, no
+#: source). Where the stated tolerance is wider, the tolerance is the band.
+SATURATION_BAND_FRACTION = 0.05
+SATURATION_BAND_K = 2.0
+#: Critical band of a fill given by pressure: within CRITICAL_BAND_K of the critical temperature and within
+#: CRITICAL_BAND_FRACTION of the critical pressure the density changes by tens of percent for a bar or a
+#: kelvin (carbon dioxide at 31–32 °C and 72–74 bar(g), CoolProp's reference equation), so the pressure cannot
+#: fix it. Bands chosen here on the conservative side; the stated tolerance widens them.
+CRITICAL_BAND_K = 5.0
+CRITICAL_BAND_FRACTION = 0.15
 #: Fill temperature assumed for a mass fill that gives none [K]; it only describes the fill state.
 DEFAULT_MASS_FILL_TEMPERATURE_K = 288.15
 
@@ -202,6 +217,7 @@ class FillState:
     vapour_pressure_fill: float | None = None
     fluid: ReferenceFluid | None = None
     fluid_error: str | None = None
+    refusal: str | None = None             # the state cannot be screened (the out-of-scope reason)
 
 
 def _is_pure(fluid: ReferenceFluid) -> bool:
@@ -218,6 +234,42 @@ def _reference_fluid(gas: Mixture) -> tuple[ReferenceFluid | None, str | None]:
         return reference_fluid(names, tuple(gas.fractions)), None
     except NotApplicable as exc:
         return None, exc.reason
+
+
+def _band_reason(case: Case, fluid: ReferenceFluid, t_fill: float) -> tuple[str, str, str] | None:
+    """(code, reason, warning) where a fill given by pressure lies within the saturation band or the critical
+    band, so the pressure cannot fix the density; None elsewhere. Pure fluids with a saturation dome only."""
+    p = case.fill_pressure_pa
+    atm = case.site.atmospheric_pressure_pa
+    tol = case.tolerance
+    tol_p = tol.fill_pressure_pa if tol is not None else 0.0
+    tol_t = tol.fill_temperature_k if tol is not None else 0.0
+    tc, pc = fluid.critical_temperature, fluid.critical_pressure
+    band_t, band_p = max(CRITICAL_BAND_K, tol_t), max(CRITICAL_BAND_FRACTION * pc, tol_p)
+    ask = "the fill pressure cannot fix how much is in the vessel. Give the fill mass instead."
+    if abs(t_fill - tc) <= band_t and abs(p - pc) <= band_p:
+        point = f"the critical point of {case.gas.name} ({tc - 273.15:.1f} °C, {(pc - atm) / 1e5:.1f} bar(g))"
+        return "near-critical", (
+            f"The fill state lies within {band_t:g} K and {band_p / 1e5:.1f} bar of {point}, where a small error in "
+            f"the fill pressure or temperature changes the density a great deal: {ask}"), (
+            f"The fill is near {point}.")
+    if t_fill >= tc:
+        return None
+    band_t = max(SATURATION_BAND_K, tol_t)
+    try:
+        psat = fluid.vapour_pressure(t_fill)
+        lo = fluid.vapour_pressure(max(t_fill - band_t, fluid.triple_temperature))
+        hi = fluid.vapour_pressure(t_fill + band_t) if t_fill + band_t < tc else pc
+    except NotApplicable:
+        return None
+    band_p = max(SATURATION_BAND_FRACTION * psat, tol_p)
+    if abs(p - psat) <= band_p or lo <= p <= hi:
+        return "near-saturation", (
+            f"The fill pressure is within {band_p / psat * 100:.0f} % of the vapour pressure of {case.gas.name} at "
+            f"the fill temperature ({(psat - atm) / 1e5:.1f} bar(g)) or within {band_t:g} K of the saturation "
+            f"temperature: the contents may be vapour, liquid or both, and {ask}"), (
+            f"The fill pressure is {p / psat * 100:.1f} % of the vapour pressure at the fill temperature.")
+    return None
 
 
 def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> FillState:
@@ -238,6 +290,19 @@ def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> Fil
         else:
             fs.phase_fill = fs.phase_peak = "gas (assumed: above every component's critical temperature)"
         return fs
+    if _is_pure(fluid) and case.fill_pressure_pa is not None:
+        if t_fill < fluid.critical_temperature:
+            try:
+                fs.vapour_pressure_fill = fluid.vapour_pressure(t_fill)
+            except NotApplicable:
+                pass
+        band = _band_reason(case, fluid, t_fill)
+        if band is not None:
+            code, reason, warning = band
+            fs.gas_ok, fs.why_not_gas, fs.refusal = False, reason, reason
+            fs.fluid_error = reason
+            warnings.append({"code": code, "message": warning})
+            return fs
     try:
         if case.fill_pressure_pa is not None:
             rho_molar = fluid.density(case.fill_pressure_pa, t_fill)
@@ -246,7 +311,6 @@ def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> Fil
             rho_molar = fs.rho_mass / M
             rho_max = max_liquid_density(fluid) if _is_pure(fluid) else math.inf
             if rho_molar > rho_max:
-                from screening.errors import InputError
                 raise InputError(
                     "fill density is above the liquid density at the triple point: no fill can reach it",
                     file=case.source, key="fill.mass",
@@ -278,20 +342,27 @@ def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> Fil
         phase = fs.phase_fill if fs.phase_fill in condensed else fs.phase_peak
         fs.why_not_gas = (f"the contents are {phase} {where}; gas models do not apply to a liquid or a "
                           "liquid–vapour mixture")
-    if _is_pure(fluid) and t_fill < fluid.critical_temperature and case.fill_pressure_pa is not None:
-        try:
-            psat = fluid.vapour_pressure(t_fill)
-        except NotApplicable:
-            psat = None
-        fs.vapour_pressure_fill = psat
-        if psat is not None and fs.phase_fill == "gas" and case.fill_pressure_pa >= NEAR_SATURATION_FRACTION * psat:
-            fs.gas_ok = False
-            fs.why_not_gas = (f"the fill pressure is within {100 * (1 - NEAR_SATURATION_FRACTION):.0f} % of the "
-                              "vapour pressure at the fill temperature, where gas models fail")
-            warnings.append({"code": "near-saturation", "message":
-                             f"The fill pressure is {case.fill_pressure_pa / psat * 100:.1f} % of the vapour "
-                             "pressure at the fill temperature: part of the contents may be liquid."})
+    if not _is_pure(fluid) and _mixture_liquid_like(case.gas, fluid, fs, rho_molar, t_fill):
+        fs.refusal = (f"The mixture {case.gas.name} is liquid or a dense, liquid-like fluid at fill "
+                      f"({fs.rho_mass:.0f} kg/m3): the temperature at which it fills the vessel cannot be "
+                      "established for a mixture by this method, so the vessel cannot be screened.")
     return fs
+
+
+def _mixture_liquid_like(gas: Mixture, fluid: ReferenceFluid, fs: FillState, rho_molar: float,
+                         t_fill: float) -> bool:
+    """Whether a mixture is liquid at fill or at the worst case, or denser than its critical density at a
+    fill temperature within LIQUID_LIKE_TEMPERATURE_RATIO of its critical temperature (the same dense-fluid
+    rule as a pure fluid's). The mixture's critical point is CoolProp's where it has one, else Kay's rule
+    (mole-fraction averages of the components' critical temperatures and volumes)."""
+    if "liquid" in (fs.phase_fill, fs.phase_peak):
+        return True
+    tc = fluid.critical_temperature
+    rho_c = fluid.critical_molar_density
+    if not tc or not rho_c or not math.isfinite(tc) or not math.isfinite(rho_c):
+        tc = sum(x * g.critical_temperature for g, x in zip(gas.components, gas.fractions))
+        rho_c = 1.0 / sum(x * g.critical_volume for g, x in zip(gas.components, gas.fractions))
+    return rho_molar >= rho_c and t_fill <= LIQUID_LIKE_TEMPERATURE_RATIO * tc
 
 
 def _reference(case: Case, fs: FillState, t_fill: float, t_peak: float) -> Model:
@@ -381,14 +452,39 @@ def _limits(case: Case, models: list[Model], t_fill: float, t_peak: float) -> di
             if p is not None and abs(m.fill_to_peak(p) - target) <= 1e-6 * target:
                 max_p.append(p)
     mass_limit = _mass_limit(case, models, t_fill, t_peak, target)
+    fill_over = case.fill_temperature_k is not None and _fill_over_rating(case, real, t_fill)
+    if fill_over:  # a temperature limit below the fill temperature would contradict the fill: say so instead
+        max_t = []
+    note = limits_note(bool(real), fill_over)
     return {
         **mass_limit,
         "max_gas_temperature_k": min(max_t) if max_t else None,
         "max_fill_pressure_pa": min(max_p) if max_p else None,
         "target_peak_pressure_pa": target,
-        "note": ("solved on each applicable real-gas model; the lowest (most conservative) value is given"
-                 if real else "no real-gas model applies, so no limit is given"),
+        "note": note,
     }
+
+
+def limits_note(any_real_model: bool, fill_over: bool) -> str:
+    """How the limits were found, in words; where the fill itself is at or above the rating, that too."""
+    if not any_real_model:
+        return "no real-gas model applies, so no limit is given"
+    return ("solved on each applicable real-gas model; the lowest (most conservative) value is given"
+            + ("; the fill itself is at or above the rated pressure, so no gas temperature keeps the vessel "
+               "within its rating: the fill must be reduced" if fill_over else ""))
+
+
+def _fill_over_rating(case: Case, real: list[Model], t_fill: float) -> bool:
+    """Whether the fill state is at or above the rated pressure on any applicable real-gas model."""
+    if case.fill_pressure_pa is not None:
+        return case.fill_pressure_pa >= case.rated_pressure_pa
+    for m in real:
+        try:
+            if m.isochore(t_fill) >= case.rated_pressure_pa:
+                return True
+        except NotApplicable:
+            return True
+    return False
 
 
 def _mass_limit(case: Case, models: list[Model], t_fill: float, t_peak: float, target: float) -> dict:
@@ -411,14 +507,10 @@ def _mass_limit(case: Case, models: list[Model], t_fill: float, t_peak: float, t
     if rho is None:
         return none
     if _is_pure(fluid):
-        tc = fluid.critical_temperature
-        if t_peak < tc:
-            rho_lf = fluid.saturated_liquid_density(t_peak)
-        elif t_peak <= DENSE_FLUID_TEMPERATURE_RATIO * tc or t_fill < tc:
-            # a fill denser than critical is liquid-full before the critical temperature is reached
-            rho_lf = fluid.critical_molar_density
-        else:
-            rho_lf = math.inf
+        try:
+            rho_lf = liquid_full_density(fluid, t_fill, t_peak)
+        except NotApplicable:
+            return none
         if rho_lf < rho:
             rho, basis = rho_lf, "the liquid-full point at the worst-case temperature"
     rho_mass = rho * M
@@ -452,44 +544,90 @@ def filling_ratio_reason(fill_density_kg_m3: float | None, max_filling_ratio_kg_
             f"ratio of {max_filling_ratio_kg_m3 / 1000:.3f} kg/L.")
 
 
+def percent_pair(value: float, reference: float) -> tuple[str, str]:
+    """Two fractions as percentages with one decimal, or with as many more (up to three) as it takes for
+    values that differ to read differently: a reason never says "10.0 % is below the required 10.0 %"."""
+    for digits in (1, 2, 3):
+        a, b = f"{value * 100:.{digits}f}", f"{reference * 100:.{digits}f}"
+        if a != b or value == reference:
+            break
+    return a + " %", b + " %"
+
+
+def governing_text(governing: str | None, others: list[str]) -> str:
+    """Why the governing model governs, in words (the same sentence for every path)."""
+    if governing is None:
+        return "No real-gas model applies."
+    return (f"The {governing} model gives the highest peak among the applicable real-gas models"
+            + (f" ({', '.join(others)})" if others else "")
+            + "; the highest is taken because it is the conservative choice. The ideal gas is shown for "
+            "comparison only and governs nothing.")
+
+
+def liquid_full_text(fs: FillState, t_peak: float, corner: bool = False) -> str:
+    """The reason where the vessel is liquid-full, or a dense liquid-like fluid, at the worst case."""
+    rise = fs.dp_dt_after_liquid_full
+    where = "At a corner of the input tolerances the" if corner else "The"
+    if fs.liquid_full_temperature is not None and fs.liquid_full_temperature <= t_peak:
+        head = (f"{where} liquid fills the whole vessel at {fs.liquid_full_temperature - 273.15:.1f} °C, at or "
+                "below the worst-case temperature")
+    else:
+        head = (f"{where} contents are denser than the critical density and were filled close to the critical "
+                "temperature: a dense, liquid-like fluid")
+    return (head + "; beyond that point the pressure rises steeply"
+            + (f" (about {rise / 1e5:.1f} bar per kelvin)" if rise else "")
+            + ", so a small error in temperature means a large error in pressure.")
+
+
+def _molar(case: Case, fs: FillState) -> float | None:
+    """Fill molar density [mol/m3] from the fill state, as every model takes it."""
+    return fs.rho_mass / case.gas.molar_mass if fs.rho_mass is not None else None
+
+
+#: Severity of the verdicts, least severe first.
+_RANK = {"within": 0, "low-margin": 1, "over": 2}
+
+
 def decide(*, peak: float | None, rated: float, relief: float | None, atm: float, required_margin: float,
            any_real_model: bool, out_of_scope_reason: str | None, liquid_full_reason: str | None = None,
            filling_ratio_reason: str | None = None) -> tuple[str, list[str], float | None, float | None]:
     """Verdict, reasons, margin against the rated pressure and against the relief set pressure.
 
-    margin = 1 − peak_gauge / rated_gauge. `within`: peak ≤ rated and margin ≥ required margin;
-    `low-margin`: peak ≤ rated, margin below the required one; `over`: peak > rated;
-    `out-of-scope`: no applicable real-gas model (or a reason given by the caller).
+    margin = 1 − peak_gauge / rated_gauge, relief margin likewise against the relief set pressure.
+    `over`: peak > rated, or the filling ratio above the vessel's maximum; `low-margin`: the margin below
+    the required one, the relief margin below the required one (the relief device may open), or the vessel
+    liquid-full (or liquid-like) at the worst case; `within`: none of these; `out-of-scope`: no applicable
+    real-gas model, or a reason given by the caller. The reasons that decide the verdict come first.
     """
-    reasons: list[str] = []
     if out_of_scope_reason or not any_real_model or peak is None:
-        reasons.append(out_of_scope_reason or "No real-gas model applies to this vessel, so it cannot be screened.")
-        return "out-of-scope", reasons, None, None
+        return "out-of-scope", [out_of_scope_reason or "No real-gas model applies to this vessel, so it cannot "
+                                "be screened."], None, None
     margin = 1.0 - (peak - atm) / (rated - atm)
     relief_margin = None if relief is None else 1.0 - (peak - atm) / (relief - atm)
+    findings: list[tuple[str, str]] = []
     if peak > rated:
-        verdict = "over"
-        reasons.append(f"The peak pressure exceeds the rated pressure by {-margin * 100:.1f} % of the rating.")
+        findings.append(("over", f"The peak pressure exceeds the rated pressure by {-margin * 100:.1f} % of the "
+                                 "rating."))
     elif margin < required_margin:
-        verdict = "low-margin"
-        reasons.append(f"The peak pressure stays within the rating but the margin, {margin * 100:.1f} %, is "
-                       f"below the required {required_margin * 100:.1f} %.")
-    else:
-        verdict = "within"
-        reasons.append(f"The peak pressure stays within the rating with a margin of {margin * 100:.1f} % "
-                       f"(required {required_margin * 100:.1f} %).")
-    if relief is not None and peak > relief:
-        reasons.append("The peak pressure is above the relief set pressure: the relief device would open "
-                       "and release gas.")
-        if verdict == "within":
-            verdict = "low-margin"
-    if liquid_full_reason:
-        reasons.append(liquid_full_reason)
-        if verdict == "within":
-            verdict = "low-margin"
+        m, req = percent_pair(margin, required_margin)
+        findings.append(("low-margin", f"The peak pressure stays within the rating but the margin, {m}, is below "
+                                       f"the required {req}."))
     if filling_ratio_reason:
-        reasons.append(filling_ratio_reason)
-        verdict = "over" if verdict != "out-of-scope" else verdict
+        findings.append(("over", filling_ratio_reason))
+    if relief is not None and peak > relief:
+        findings.append(("low-margin", "The peak pressure is above the relief set pressure: the relief device "
+                                       "would open and release gas."))
+    elif relief_margin is not None and relief_margin < required_margin:
+        m, req = percent_pair(relief_margin, required_margin)
+        findings.append(("low-margin", f"The peak pressure is within {m} of the relief set pressure, less than the "
+                                       f"required margin of {req}: the relief device may open."))
+    if liquid_full_reason:
+        findings.append(("low-margin", liquid_full_reason))
+    verdict = max((v for v, _ in findings), key=_RANK.__getitem__, default="within")
+    reasons = [r for _, r in sorted(findings, key=lambda f: -_RANK[f[0]])]
+    if peak <= rated and margin >= required_margin:
+        m, req = percent_pair(margin, required_margin)
+        reasons.append(f"The peak pressure stays within the rating with a margin of {m} (required {req}).")
     return verdict, reasons, margin, relief_margin
 
 
@@ -543,21 +681,41 @@ def _curves(models: list[Model], t_fill: float, t_peak: float, limits: dict,
     return out
 
 
-#: Above this multiple of the critical temperature a dense fluid is taken as gas-like, so a liquid-full
-#: temperature below the fill (a supercritical fill denser than critical) no longer signals the steep
-#: liquid-full pressure rise. Reading chosen here, conservative near the critical point.
-DENSE_FLUID_TEMPERATURE_RATIO = 1.2
+#: A fill denser than the critical density, filled at or below this multiple of the critical temperature, is a
+#: liquid or a dense, liquid-like fluid: once its isochore has passed the liquid-full point the pressure climbs
+#: steeply, so it is never reported within. The rule is keyed on the fill, not the worst case, so that a hotter
+#: worst case can never give a better verdict. Ratio chosen here (conservative near the critical point; at
+#: 1.2 Tc a dense isochore of carbon dioxide still rises about 2 bar per kelvin, CoolProp's reference equation);
+#: a permanent gas filled at room temperature (above 1.5 Tc) is never caught by it.
+LIQUID_LIKE_TEMPERATURE_RATIO = 1.2
+DENSE_FLUID_TEMPERATURE_RATIO = LIQUID_LIKE_TEMPERATURE_RATIO
 
 
-def _liquid_full_applies(fs: FillState, t_peak: float) -> bool:
-    """Whether the vessel is liquid-full (or a dense, liquid-like fluid) at the worst-case temperature."""
-    t_lf = fs.liquid_full_temperature
-    if t_lf is None or t_lf > t_peak:
+def liquid_full_density(fluid: ReferenceFluid, t_fill: float, t_peak: float) -> float:
+    """Molar density [mol/m3] at and above which a pure fluid's vessel counts as liquid-full (or a dense,
+    liquid-like fluid) at the worst-case temperature t_peak [K] for a fill at t_fill [K]; inf where none.
+
+    Below the critical temperature it is the saturated-liquid density at t_peak (the liquid fills the vessel at
+    or below t_peak); above it, the critical density if the fill was at or below
+    LIQUID_LIKE_TEMPERATURE_RATIO × Tc, else none. One rule for the verdict and for the fill-mass limit.
+    """
+    tc = fluid.critical_temperature
+    if t_peak < tc:
+        return fluid.saturated_liquid_density(t_peak)
+    if t_fill <= LIQUID_LIKE_TEMPERATURE_RATIO * tc:
+        return fluid.critical_molar_density
+    return math.inf
+
+
+def _liquid_full_applies(fs: FillState, rho: float | None, t_fill: float, t_peak: float) -> bool:
+    """Whether the vessel with fill molar density rho [mol/m3] is liquid-full (or a dense, liquid-like fluid) at
+    the worst-case temperature."""
+    if fs.fluid is None or rho is None or not _is_pure(fs.fluid):
         return False
-    if fs.phase_fill in ("liquid", "two-phase"):
-        return True
-    tc = fs.fluid.critical_temperature if fs.fluid is not None else None
-    return tc is not None and t_peak <= DENSE_FLUID_TEMPERATURE_RATIO * tc
+    try:
+        return rho >= liquid_full_density(fs.fluid, t_fill, t_peak)
+    except NotApplicable:
+        return True  # the liquid side cannot be evaluated: not shown to be away from it
 
 
 def _evaluate(case: Case, t_fill: float, t_peak: float, warnings: list) -> tuple[FillState, list[Model], str | None]:
@@ -573,20 +731,24 @@ def _evaluate(case: Case, t_fill: float, t_peak: float, warnings: list) -> tuple
         fs = FillState(rho_mass=(case.fill_mass_kg / case.water_capacity_m3) if case.fill_mass_kg else None)
     else:
         fs = _fill_state(case, t_fill, t_peak, warnings)
-        models = [
-            _ideal(case, fs.rho_mass, t_fill, t_peak, fs.gas_ok, fs.why_not_gas),
-            _generalized(case, fs.rho_mass, t_fill, t_peak, fs.gas_ok, fs.why_not_gas),
-            _reference(case, fs, t_fill, t_peak),
-        ]
+        out_of_scope = fs.refusal
+        if out_of_scope:  # the state cannot be established: no model gives a number for it
+            models = [not_applicable(n, "the fill state cannot be established (see the verdict's reason)")
+                      for n in ("ideal", "generalized", "reference")]
+        else:
+            models = [
+                _ideal(case, fs.rho_mass, t_fill, t_peak, fs.gas_ok, fs.why_not_gas),
+                _generalized(case, fs.rho_mass, t_fill, t_peak, fs.gas_ok, fs.why_not_gas),
+                _reference(case, fs, t_fill, t_peak),
+            ]
     return fs, models, out_of_scope
 
 
 def _governing(models: list[Model]) -> Model | None:
-    """The governing model: the highest peak among the applicable models, if a real-gas model applies."""
-    applicable = [m for m in models if m.applicable and m.peak_pa is not None]
-    if not any(m.name != "ideal" for m in applicable):
-        return None
-    return max(applicable, key=lambda m: m.peak_pa)
+    """The governing model: the highest peak among the applicable real-gas models (the ideal gas is shown
+    beside them for comparison and governs nothing); None where no real-gas model applies."""
+    real = [m for m in models if m.applicable and m.peak_pa is not None and m.name != "ideal"]
+    return max(real, key=lambda m: m.peak_pa) if real else None
 
 
 def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
@@ -599,13 +761,11 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
     real = [m for m in applicable if m.name != "ideal"]
     governing = _governing(models)
     peak = governing.peak_pa if governing else None
-    if governing is not None:
-        others = [m for m in applicable if m is not governing]
-        governing_reason = (f"The {governing.name} model gives the highest peak among the applicable models"
-                            + (f" ({', '.join(m.name for m in others)})" if others else "")
-                            + "; the highest is taken because it is the conservative choice.")
-    else:
-        governing_reason = "No real-gas model applies."
+    governing_reason = governing_text(governing.name if governing else None,
+                                      [m.name for m in real if m is not governing])
+    ideal = by_name["ideal"]
+    if governing is not None and ideal.applicable and ideal.peak_pa is not None:
+        ideal.extra["off_governing_fraction"] = ideal.peak_pa / governing.peak_pa - 1.0
     gen, ref = by_name["generalized"], by_name["reference"]
     if gen.applicable and ref.applicable:
         disagree = models_disagree(gen.peak_pa, ref.peak_pa)
@@ -615,23 +775,21 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
         reasons_na = "; ".join(f"{m.name}: {m.note}" for m in models if not m.applicable)
         out_of_scope = f"No real-gas model applies to this vessel ({reasons_na}), so it cannot be screened."
 
-    liquid_full_reason = None
-    if _liquid_full_applies(fs, t_peak):
-        rise = fs.dp_dt_after_liquid_full
-        liquid_full_reason = (
-            f"The liquid fills the whole vessel at {fs.liquid_full_temperature - 273.15:.1f} °C, at or below the "
-            "worst-case temperature; beyond that point the pressure rises steeply"
-            + (f" (about {rise / 1e5:.1f} bar per kelvin)" if rise else "")
-            + ", so a small error in temperature means a large error in pressure.")
+    liquid_full = [liquid_full_text(fs, t_peak)] if _liquid_full_applies(fs, _molar(case, fs), t_fill, t_peak) \
+        else []
     ratio_reason = filling_ratio_reason(fs.rho_mass, case.max_filling_ratio_kg_m3)
 
     tolerance = _tolerance(case, t_fill, t_peak, models) if (case.tolerance and governing) else None
     if tolerance is not None:
+        corner_findings = tolerance.pop("_findings")
         if tolerance["bounding_peak_pressure_pa"] is None:
-            out_of_scope = out_of_scope or ("At a corner of the input tolerances no real-gas model applies, so the "
-                                            "vessel cannot be screened with these tolerances.")
+            out_of_scope = out_of_scope or corner_findings["out_of_scope"] or (
+                "At a corner of the input tolerances no real-gas model applies, so the vessel cannot be screened "
+                "with these tolerances.")
         else:
             peak = max(peak, tolerance["bounding_peak_pressure_pa"])
+        liquid_full += [r for r in corner_findings["liquid_full"] if r not in liquid_full]
+    liquid_full_reason = " ".join(liquid_full) or None
     verdict, reasons, margin, relief_margin = decide(
         peak=peak, rated=case.rated_pressure_pa, relief=case.relief_set_pressure_pa, atm=atm,
         required_margin=case.required_margin, any_real_model=bool(real), out_of_scope_reason=out_of_scope,
@@ -696,13 +854,20 @@ def _fill_temperature(case: Case) -> float:
     return case.fill_temperature_k if case.fill_temperature_k is not None else DEFAULT_MASS_FILL_TEMPERATURE_K
 
 
-def _corner_peak(case: Case, p_fill: float | None, t_fill: float, t_peak: float) -> dict[str, float | None]:
-    """Peak of every model at one combination of fill pressure, fill and worst-case temperature."""
-    variant = replace(case, fill_pressure_pa=p_fill, fill_temperature_k=t_fill)
-    fs, models, _ = _evaluate(variant, t_fill, t_peak, [])
+def _corner_peak(case: Case, p_fill: float | None, t_fill: float, t_peak: float) -> dict:
+    """Peak of every model at one combination of fill pressure, fill and worst-case temperature, and what the
+    state rules find there ("_out_of_scope", "_liquid_full": reasons or None). The corner is a state of its
+    own: the same rules as the nominal state, the screened temperature never below its fill temperature."""
+    variant = replace(case, fill_pressure_pa=p_fill, fill_temperature_k=t_fill, tolerance=None)
+    if case.fill_temperature_k is not None:
+        t_peak = max(t_peak, t_fill)
+    fs, models, out_of_scope = _evaluate(variant, t_fill, t_peak, [])
     gov = _governing(models)
     out = {m.name: (m.peak_pa if m.applicable else None) for m in models}
     out["governing"] = gov.peak_pa if gov else None
+    out["_out_of_scope"] = out_of_scope
+    out["_liquid_full"] = (liquid_full_text(fs, t_peak, corner=True)
+                           if _liquid_full_applies(fs, _molar(variant, fs), t_fill, t_peak) else None)
     return out
 
 
@@ -755,10 +920,14 @@ def _tolerance(case: Case, t_fill: float, t_peak: float, models: list[Model]) ->
     else:
         corners = [(a, b, c) for a in p_signs for b in tf_signs for c in tg_signs]
     best, best_corner = None, None
+    findings: dict = {"out_of_scope": None, "liquid_full": []}
     for a, b, c in corners:
         peak = _corner_peak(case, p0 + a * dp if p0 is not None else None, t_fill + b * dtf, t_peak + c * dtg)
+        if peak["_liquid_full"] and peak["_liquid_full"] not in findings["liquid_full"]:
+            findings["liquid_full"].append(peak["_liquid_full"])
         g = peak["governing"]
-        if g is None:
+        if g is None or peak["_out_of_scope"]:
+            findings["out_of_scope"] = peak["_out_of_scope"]
             best, best_corner = None, (a, b, c)
             break
         if best is None or g > best:
@@ -773,6 +942,7 @@ def _tolerance(case: Case, t_fill: float, t_peak: float, models: list[Model]) ->
         "corners_evaluated": len(corners), "expected_corner_confirmed": expected,
         "sensitivities": {k: (v["governing"] if v else None) for k, v in sens.items()},
         "sensitivities_by_model": sens,
+        "_findings": findings,
     }
 
 
@@ -860,8 +1030,30 @@ def _worst_case_temperature(case: Case, sc: Exposure, warnings: list) -> tuple[f
             "notes": notes + list(b.notes),
         }
         candidates.append((b.wall_temperature_k, "vessel wall temperature in the sun (energy balance)"))
+    t_exposure = max(c[0] for c in candidates)
+    t = screened_temperature(t_exposure, case.fill_temperature_k)
+    if t > t_exposure:
+        candidates.append((t, FILL_STATE_BASIS))
+        warnings.append(fill_state_warning(sc.name, t_exposure, t))
     t, basis = max(candidates, key=lambda c: c[0])
     return t, basis, balance_dict
+
+
+def fill_state_warning(scenario: str, t_exposure: float, t_fill: float) -> dict:
+    """The warning where the fill temperature [K] is above the worst-case exposure temperature [K]."""
+    return {"code": "fill-state-governs", "message":
+            f"{scenario}: the worst-case gas temperature ({t_exposure - 273.15:.1f} °C) is below the fill "
+            f"temperature ({t_fill - 273.15:.1f} °C); the fill state is screened, since the vessel held its fill "
+            "pressure then."}
+
+
+def screened_temperature(t_exposure, t_fill_given):
+    """The temperature [K] a vessel is screened at: the worst-case exposure temperature, or the fill temperature
+    where that is higher and was given (the vessel held its fill pressure then; cooling never hides an
+    over-fill). Scalars or arrays (NaN: no fill temperature given)."""
+    if t_fill_given is None:
+        return t_exposure
+    return np.fmax(t_exposure, t_fill_given) if isinstance(t_exposure, np.ndarray) else max(t_exposure, t_fill_given)
 
 
 def _scenario_summary(name: str, r: dict, exposure: dict | None) -> dict:

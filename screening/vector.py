@@ -354,7 +354,7 @@ def _plain_columns(part: PlainPart) -> dict:
     relief, ratio = part.relief.tolist(), part.ratio.tolist()
     # the columns _verdict reads, as lists (indexing a list is cheaper than making a numpy scalar)
     listed = {key: cols[key].tolist() for key in ("gas_below_ambient", "peak_ideal", "peak_ref", "lk_ok", "lk_peak",
-                                                  "rho_molar")}
+                                                  "rho_molar", "fill_governs", "t_exposure", "t_peak")}
     for k in np.flatnonzero(~cols["fallback"]).tolist():
         verdicts[k] = _verdict(listed, k, molar_mass, rated[k], None if math.isnan(relief[k]) else relief[k], atm[k],
                                margin_req[k], None if math.isnan(ratio[k]) else ratio[k], "exposure")
@@ -362,11 +362,16 @@ def _plain_columns(part: PlainPart) -> dict:
     return cols
 
 
-def worst_case(ambient_max: np.ndarray, gas_temperature: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Worst-case gas temperature [K] (the higher of the two given) and whether the stated gas temperature
-    is the basis (as screen._worst_case_temperature ranks them, the stated gas temperature first on a tie)."""
+def worst_case(ambient_max: np.ndarray, gas_temperature: np.ndarray,
+               t_fill: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Screened temperature [K] (screen.screened_temperature of the higher exposure temperature given and the
+    fill temperature), whether the stated gas temperature is the basis (as screen._worst_case_temperature
+    ranks them, the stated gas temperature first on a tie), whether the fill state governs, and the exposure
+    temperature [K]."""
     stated = ~np.isnan(gas_temperature) & (np.isnan(ambient_max) | (gas_temperature >= ambient_max))
-    return np.fmax(ambient_max, gas_temperature), stated
+    t_exposure = np.fmax(ambient_max, gas_temperature)
+    t = _screen.screened_temperature(t_exposure, t_fill)
+    return t, stated, t > t_exposure, t_exposure
 
 
 #: Columns a group computes per row (floats; NaN for none) besides the masks.
@@ -385,11 +390,11 @@ def _columns(rows: Rows) -> dict:
     gas = rows.gas
     g = gas.components[0]
     p_fill, t_fill, rated, atm, margin_req = rows.p_fill, rows.t_fill, rows.rated, rows.atm, rows.margin_req
-    t_peak, stated = worst_case(rows.ambient_max, rows.gas_temperature)
+    t_peak, stated, fill_governs, t_exposure = worst_case(rows.ambient_max, rows.gas_temperature, t_fill)
     fallback = np.zeros(n, dtype=bool)
     nan = np.full(n, np.nan)
     out = {k: nan.copy() for k in _FLOAT_COLUMNS}
-    out.update(t_peak=t_peak, stated=stated, fallback=fallback, lk_ok=np.zeros(n, dtype=bool),
+    out.update(t_peak=t_peak, stated=stated, fill_governs=fill_governs, t_exposure=t_exposure, fallback=fallback, lk_ok=np.zeros(n, dtype=bool),
                lk_reason=np.full(n, "", dtype=object),
                gas_below_ambient=~np.isnan(rows.gas_temperature) & (rows.gas_temperature < rows.ambient_max))
     try:
@@ -403,8 +408,9 @@ def _columns(rows: Rows) -> dict:
     fallback |= (t_fill < fluid.t_min) | (t_peak > fluid.t_max)
     pure = not fluid.is_pseudo_pure
     if pure:
-        # near-critical peaks (liquid-full analysis, the mass limit capped at the critical density): per row
-        fallback |= t_peak <= _screen.DENSE_FLUID_TEMPERATURE_RATIO * tc_ref
+        # fills near the critical temperature (the liquid-like rule, the mass limit capped at the critical
+        # density): per row
+        fallback |= t_fill <= _screen.LIQUID_LIKE_TEMPERATURE_RATIO * tc_ref
 
     # --- reference fill state: density at the fill (PT flash, checked), peak on the same isochore
     rho_molar = np.full(n, np.nan)
@@ -619,12 +625,16 @@ def _verdict(cols: dict, k: int, molar_mass: float, rated: float, relief: float 
     if cols["gas_below_ambient"][k]:
         msg = "the stated gas temperature is below the ambient maximum; the ambient maximum is used."
         warnings.append({"code": "gas-below-ambient", "message": f"{name}: {msg}" if name else msg[0].upper() + msg[1:]})
+    if cols["fill_governs"][k]:
+        warnings.append(_screen.fill_state_warning(name or "exposure", float(cols["t_exposure"][k]),
+                                                   float(cols["t_peak"][k])))
     peak_ideal, peak_ref = float(cols["peak_ideal"][k]), float(cols["peak_ref"][k])
     lk_ok = bool(cols["lk_ok"][k])
     peak_gen = float(cols["lk_peak"][k]) if lk_ok else None
-    order = [("ideal", peak_ideal), ("generalized", peak_gen), ("reference", peak_ref)]
-    applicable = [(nm, p) for nm, p in order if p is not None]
-    gov_name, peak = max(applicable, key=lambda x: x[1])
+    # the governing model: the highest real-gas peak (screen._governing); the ideal gas governs nothing
+    real = [(nm, p) for nm, p in (("generalized", peak_gen), ("reference", peak_ref)) if p is not None]
+    gov_name, peak = max(real, key=lambda x: x[1])
+    applicable = [("ideal", peak_ideal)] + real
     disagree = _screen.models_disagree(peak_gen, peak_ref)
     if disagree:
         warnings.append(disagree)
@@ -678,10 +688,9 @@ def _assemble(case: Case, cols: dict, k: int, v: dict | None = None) -> dict:
            "z_peak": peak_ref / (rho_molar * R * t_peak), "eos_references": fluid.eos_references()}
     models = {"ideal": ideal, "generalized": gen, "reference": ref}
     gov_name, peak = v["governing_model"], v["peak_pressure_pa"]
-    others = [nm for nm in v["applicable"] if nm != gov_name]
-    governing_reason = (f"The {gov_name} model gives the highest peak among the applicable models"
-                        + (f" ({', '.join(others)})" if others else "")
-                        + "; the highest is taken because it is the conservative choice.")
+    others = [nm for nm in v["applicable"] if nm not in (gov_name, "ideal")]
+    governing_reason = _screen.governing_text(gov_name, others)
+    ideal["off_governing_fraction"] = peak_ideal / peak - 1.0
     mass_rho = _opt(cols["mass_rho"][k])
     if mass_rho is None:
         mass_limit = {"max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None}
@@ -691,9 +700,10 @@ def _assemble(case: Case, cols: dict, k: int, v: dict | None = None) -> dict:
             rm, basis = case.max_filling_ratio_kg_m3, "the vessel's maximum filling ratio"
         mass_limit = {"max_fill_mass_kg": rm * case.water_capacity_m3, "max_filling_ratio_kg_per_l": rm / 1000.0,
                       "max_fill_mass_basis": basis}
-    limits = {**mass_limit, "max_gas_temperature_k": _opt(cols["max_t"][k]), "max_fill_pressure_pa": _opt(cols["max_p"][k]),
-              "target_peak_pressure_pa": float(cols["target"][k]),
-              "note": "solved on each applicable real-gas model; the lowest (most conservative) value is given",
+    fill_over = case.fill_pressure_pa >= case.rated_pressure_pa
+    limits = {**mass_limit, "max_gas_temperature_k": None if fill_over else _opt(cols["max_t"][k]),
+              "max_fill_pressure_pa": _opt(cols["max_p"][k]),
+              "target_peak_pressure_pa": float(cols["target"][k]), "note": _screen.limits_note(True, fill_over),
               "liquid_full_temperature_k": _opt(cols["liquid_full"][k]), "dry_out_temperature_k": _opt(cols["dry"][k]),
               "phase_boundary_pressure_pa": _opt(cols["crossing"][k]),
               "dp_dt_after_liquid_full_pa_k": _opt(cols["dpdt_liquid_full"][k])}
@@ -717,7 +727,8 @@ def _assemble(case: Case, cols: dict, k: int, v: dict | None = None) -> dict:
                  "phase": phase, "filling_ratio_kg_per_l": rho_mass / 1000.0 if rho_mass else None,
                  "vapour_pressure_pa": None, "given": "pressure"},
         "worst_case_temperature_k": t_peak,
-        "worst_case_basis": "gas temperature stated in the case" if cols["stated"][k] else "ambient maximum",
+        "worst_case_basis": (_screen.FILL_STATE_BASIS if cols["fill_governs"][k] else
+                             "gas temperature stated in the case" if cols["stated"][k] else "ambient maximum"),
         "models": models,
         "peak_pressure_pa": peak, "nominal_peak_pressure_pa": peak, "tolerance": None,
         "governing_model": gov_name, "governing_reason": governing_reason,
@@ -854,8 +865,8 @@ class PlainScreening:
             gas = plain.gases[groups[nm][0]]
             fallback, verdicts = cols["fallback"].tolist(), cols["verdict"].tolist()
             max_t, max_p = cols["max_t"].tolist(), cols["max_p"].tolist()
-            rated, margin_req, atm = (a[groups[nm]].tolist() for a in (plain.rated_pa, plain.required_margin,
-                                                                         plain.atmospheric_pa))
+            rated, margin_req, atm, p_fill = (a[groups[nm]].tolist() for a in (
+                plain.rated_pa, plain.required_margin, plain.atmospheric_pa, plain.fill_pressure_pa))
             for k, j in enumerate(groups[nm]):
                 if fallback[k]:
                     rest.append(j)
@@ -868,7 +879,8 @@ class PlainScreening:
                     "margin_fraction": v["margin_fraction"],
                     "required_margin_fraction": margin_req[k],
                     "governing_model": v["governing_model"],
-                    "limits": {"max_gas_temperature_k": None if math.isnan(max_t[k]) else max_t[k],
+                    "limits": {"max_gas_temperature_k": (None if math.isnan(max_t[k]) or p_fill[k] >= rated[k]
+                                                         else max_t[k]),
                                "max_fill_pressure_pa": None if math.isnan(max_p[k]) else max_p[k]},
                     "gas": {"name": gas.name}, "display_units": plain.display_units[j],
                     "site": {"atmospheric_pressure_pa": atm[k]}}
