@@ -843,8 +843,10 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
         "nominal_margin_fraction": (1.0 - (governing.peak_pa - atm) / (case.rated_pressure_pa - atm)
                                     if governing else None),
         "limits": limits,
-        "curves": _curves(models, t_fill, t_peak, limits, _bounding_model(case, tolerance)),
-        "phase_diagram": _phase_diagram(fs),
+        "curves": None, "phase_diagram": None,
+        # plot data are computed only for the governing scenario and only where a view shows them
+        "_plot": lambda: (_curves(models, t_fill, t_peak, limits, _bounding_model(case, tolerance)),
+                          _phase_diagram(fs)),
         "inputs": list(case.inputs), "display_units": dict(case.display_units),
         "cautions": {"caution": CAUTION, "short_caution": SHORT_CAUTION, "assumptions": list(ASSUMPTIONS)},
     }
@@ -1070,9 +1072,10 @@ def _rank(r: dict) -> tuple:
     return (_SEVERITY[r["verdict"]], -(margin if margin is not None else -math.inf))
 
 
-def screen_case(case: Case) -> dict:
+def screen_case(case: Case, *, curves: bool = True) -> dict:
     """Screen one vessel over its exposure scenarios; return the governing scenario's result dict
-    (JSON-ready, SI, pressures absolute) with every scenario side by side under "scenarios"."""
+    (JSON-ready, SI, pressures absolute) with every scenario side by side under "scenarios".
+    `curves`: compute the plot data ("curves", "phase_diagram"); None where False."""
     per: list[tuple[str, dict, dict | None]] = []
     for sc in case.scenarios:
         warnings: list[dict] = []
@@ -1083,8 +1086,11 @@ def screen_case(case: Case) -> dict:
         t_peak, basis, balance = _worst_case_temperature(case, sc, warnings)
         per.append((sc.name, _screen_at(case, t_peak, basis, warnings), balance))
     ranked = max(range(len(per)), key=lambda i: _rank(per[i][1]))
+    plot = [r.pop("_plot") for _, r, _ in per][ranked]
     name, result, balance = per[ranked]
     result = dict(result)
+    if curves:
+        result["curves"], result["phase_diagram"] = plot()
     result["scenarios"] = [dict(_scenario_summary(n, r, b), governing=(i == ranked))
                            for i, (n, r, b) in enumerate(per)]
     result["governing_scenario"] = name

@@ -761,12 +761,8 @@ STATS = {"vectorised": 0, "per_row": 0}
 
 
 def single(case: Case) -> dict:
-    """One row through the per-row path (screen.screen_case); curves dropped, as on the vectorised path."""
-    r = _screen.screen_case(case)
-    r["curves"] = None
-    if "phase_diagram" in r:
-        r["phase_diagram"] = None
-    return r
+    """One row through the per-row path (screen.screen_case) without plot data, as on the vectorised path."""
+    return _screen.screen_case(case, curves=False)
 
 
 def _vector_gas(gas: Mixture) -> bool:
