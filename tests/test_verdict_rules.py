@@ -16,6 +16,7 @@ from screening.screen import (
     CRITICAL_BAND_FRACTION,
     SATURATION_BAND_FRACTION,
     percent_pair,
+    screen_case,
     screen_text,
 )
 
@@ -231,3 +232,37 @@ def test_adding_a_tolerance_never_gives_a_better_verdict(gas, share, t_fill, t_w
     plain = screen_text(_mass_case(name, ratio, t_fill, t_worst))
     banded = screen_text(_mass_case(name, ratio, t_fill, t_worst, f'[tolerance]\ngas_temperature = "{band:.3f} K"\n'))
     assert _rank(banded) >= _rank(plain)
+
+
+# ----------------------------------------------------------------------------- the batch applies the same rules
+
+@settings(max_examples=4, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(st.lists(st.tuples(st.sampled_from(["nitrogen", "argon", "methane", "hydrogen", "helium", "air"]),
+                          st.floats(150, 350), st.floats(0.5, 1.2), st.floats(20, 40), st.floats(-40, 15),
+                          st.one_of(st.none(), st.floats(1.0, 1.3))),
+                min_size=20, max_size=30))
+def test_batch_rows_with_a_cold_worst_case_get_the_single_case_verdict_and_limits(tmp_path_factory, items):
+    from screening.batch import BatchRun
+    from screening.inputs.inventory import read_inventory, row_case
+
+    path = tmp_path_factory.mktemp("cold") / "inv.csv"
+    lines = ["id,gas,water_capacity [L],rated_pressure [bar(g)],fill_pressure [bar(g)],fill_temperature [degC],"
+             "ambient_max [degC],relief_set_pressure [bar(g)]"]
+    for i, (g, rated, share, t, amb, relief) in enumerate(items):
+        lines.append(f"R{i},{g},50,{rated:.2f},{rated * share:.2f},{t:.2f},{amb:.2f},"
+                     f"{'' if relief is None else f'{rated * relief:.2f}'}")
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    inv = read_inventory(path)
+    run = BatchRun(inv)
+    for i, (n, cells) in enumerate(inv.rows):
+        single = screen_case(row_case(inv, n, cells, None), curves=False)
+        full = run.full(i)
+        assert full["verdict"] == single["verdict"] and full["reasons"] == single["reasons"]
+        assert full["warnings"] == single["warnings"] and full["worst_case_basis"] == single["worst_case_basis"]
+        assert full["peak_pressure_pa"] == pytest.approx(single["peak_pressure_pa"], rel=1e-9)
+        assert (full["limits"]["max_gas_temperature_k"] is None) == (single["limits"]["max_gas_temperature_k"] is None)
+        assert full["limits"]["note"] == single["limits"]["note"]
+        # the fill state is screened: never below the fill pressure
+        assert full["peak_pressure_pa"] >= (single["fill"]["pressure_pa"] or 0.0) * (1 - 1e-12)
+        if single["fill"]["pressure_pa"] > single["rated_pressure_pa"]:
+            assert full["verdict"] == "over"
