@@ -300,6 +300,16 @@ class ReferenceFluid:
         self.pseudo_critical_temperature = math.fsum(x * t for x, t in zip(self.fractions, tcs))
         self.pseudo_critical_molar_density = 1.0 / math.fsum(x * v for x, v in zip(self.fractions, vcs))
         self.cubic_components = tuple(comps)
+        pairs = []
+        for i in range(len(self.names)):
+            for j in range(i + 1, len(self.names)):
+                key = _binary_pair_key(self._cas[i], self._cas[j]) or "?"
+                pairs.append(f"{self.names[i]}/{self.names[j]} [{key}]")
+        #: The mixing rules used, in words (shown in results and reports).
+        self.mixing_rule = (
+            "multi-fluid Helmholtz mixing (Kunz–Wagner GERG form): reducing functions with binary parameters "
+            f"fitted for every pair ({', '.join(pairs)}); phase checked by CoolProp's flash and by "
+            f"{_mix.CUBIC_MIXING_RULE}")
         self._memo = _mix.IsochoreMemo()
         self.phase_time_bound = _mix.PHASE_TIME_BOUND
 
