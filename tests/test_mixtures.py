@@ -148,3 +148,17 @@ def test_nitrogen_hydrogen_phase_is_established_before_within():
     assert r["verdict"] == "within"
     assert r["models"]["reference"]["applicable"] and r["models"]["generalized"]["applicable"]
     assert r["models"]["reference"]["phase_fill"] == "supercritical"
+def test_cannot_be_established_is_said_once_in_the_result(monkeypatch):
+    from screening.physics.eos import reference as ref_mod
+
+    def never(self, rho, p, T, budget=None):
+        return mix.PhaseAnswer(None, (), mix.CANNOT)
+
+    monkeypatch.setattr(ref_mod.ReferenceFluid, "mixture_phase", never)
+    r = screen_text(CASE.format(gas="argon 93% + carbon dioxide 7%", rated="300 bar(g)", fill="200 bar(g)"))
+    assert r["verdict"] == "out-of-scope"
+    text = " ".join(r["reasons"])
+    assert text.count(mix.CANNOT) == 1, text
+    assert "&" not in text and "cricondentherm" not in text
+
+
