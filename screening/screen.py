@@ -381,6 +381,8 @@ def _reference(case: Case, fs: FillState, t_fill: float, t_peak: float) -> Model
     extra = {"fluid": fluid.label, "phase_fill": fs.phase_fill, "phase_peak": fs.phase_peak,
              "z_fill": z_fill, "z_peak": peak / (rho * R * t_peak),
              "eos_references": fluid.eos_references()}
+    if fluid.is_mixture:
+        extra["mixing_rule"] = fluid.mixing_rule
 
     def fill_to_peak(p: float) -> float:
         return fluid.pressure(fluid.density(p, t_fill), t_peak)
@@ -772,7 +774,14 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
         if disagree:
             warnings.append(disagree)
     if not real and out_of_scope is None:
-        reasons_na = "; ".join(f"{m.name}: {m.note}" for m in models if not m.applicable)
+        # one reason shared by several models (the phase that cannot be established) is said once
+        notes: dict[str, list[str]] = {}
+        for m in models:
+            if not m.applicable:
+                core = m.note.removeprefix("reference equation of state not applicable: ") \
+                    .removeprefix("the gas phase cannot be confirmed: ")
+                notes.setdefault(core, []).append(m.name)
+        reasons_na = "; ".join(f"{', '.join(names)}: {note}" for note, names in notes.items())
         out_of_scope = f"No real-gas model applies to this vessel ({reasons_na}), so it cannot be screened."
 
     liquid_full = [liquid_full_text(fs, t_peak)] if _liquid_full_applies(fs, _molar(case, fs), t_fill, t_peak) \

@@ -428,3 +428,41 @@ def test_format_library_lists_every_gas_and_source():
     assert "Sources:" in text
     for key in citations():
         assert f"[{key}]" in text
+
+
+# ---------------------------------------------------------------- the trade's short forms
+
+@pytest.mark.parametrize("text, expected", [
+    ("argon + 8 % CO2", {"argon": 0.92, "carbon dioxide": 0.08}),
+    ("CO2 18 % in argon", {"argon": 0.82, "carbon dioxide": 0.18}),
+    ("argon + 8 vol% CO2 + 2 mol % oxygen", {"argon": 0.90, "carbon dioxide": 0.08, "oxygen": 0.02}),
+    ("nitrogen + 50 ppm carbon monoxide", {"nitrogen": 1 - 50e-6, "carbon monoxide": 50e-6}),
+    ("methane 2.5 % in air", {"air": 0.975, "methane": 0.025}),
+    ("He 79 % + O2 21 %", {"helium": 0.79, "oxygen": 0.21}),
+])
+def test_parse_gas_trade_forms_give_mole_fractions(text, expected):
+    m = parse_gas(text, file="cyl.toml")
+    got = {g.name: x for g, x in zip(m.components, m.fractions)}
+    assert got == pytest.approx(expected, rel=1e-12, abs=1e-15)
+
+
+def test_parse_gas_mass_percent_is_converted_with_molar_masses():
+    from chemicals import MW
+    m = parse_gas("propane 60 % + n-butane 40 % by mass")
+    # source: chemicals.MW molecular weights [g/mol] (propane 74-98-6, n-butane 106-97-8)
+    n3, n4 = 0.60 / MW("74-98-6"), 0.40 / MW("106-97-8")
+    assert m.fractions == pytest.approx((n3 / (n3 + n4), n4 / (n3 + n4)), rel=1e-4)
+    assert parse_gas("propane 60 mass% + n-butane 40 wt%").fractions == pytest.approx(m.fractions, rel=1e-12)
+
+
+@pytest.mark.parametrize("text, words", [
+    ("argon + 100 % CO2", "nothing for the balance gas"),
+    ("argon + 8 % CO2 + 2 wt% oxygen", "mass and mole amounts are mixed"),
+    ("argon 60% + CO2 30%", "sum to 90 %"),
+    ("CO2 18 % in argon in nitrogen", "one carrier"),
+    ("nitrogen + 2000000 ppm carbon monoxide", "ppm amount out of range"),
+])
+def test_parse_gas_trade_forms_refused_with_a_clear_message(text, words):
+    with pytest.raises(InputError) as e:
+        parse_gas(text, file="cyl.toml", key="fill.gas")
+    assert words in str(e.value) and e.value.file == "cyl.toml" and e.value.key == "fill.gas"

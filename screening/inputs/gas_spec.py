@@ -8,6 +8,14 @@ Accepted forms (nothing is ever evaluated):
   (digits, optional decimal point; no sign, no exponent), 0 < percent <= 100.
   Every term must have its percentage, and they must sum to 100 % within 0.5 %.
   Fractions without a percent sign (``"0.82 argon"``) are rejected;
+* the trade's short forms, with the carrier (balance) gas named without a number, first or after
+  ``in``: ``"argon + 8 % CO2"``, ``"CO2 18 % in argon"``, ``"nitrogen + 50 ppm carbon monoxide"``; the
+  amount may stand before or after the name. The balance is 100 % less the others (which must leave
+  something for it);
+* amounts in ``%`` (or ``mol %``, ``vol %``: mole and volume percent are taken as equal, an ideal-gas
+  reading, common practice for gas mixtures) or ``ppm`` (parts per million by moles); mass percent when
+  stated as such (``mass %``, ``wt %``, or the whole text ending in ``by mass``), converted to mole
+  fractions with the library's molar masses. Mass and mole amounts cannot be mixed in one text;
 * a table (dict) ``{gas name: value}`` where a value is either a number, the mole
   fraction [-] with 0 < x <= 1, or a text ``"<percent> %"`` (``"82 %"``, ``"82%"``).
 
@@ -20,42 +28,110 @@ import math
 import re
 
 from screening.errors import InputError
-from screening.physics.gases import Mixture, make_mixture, pure
+from screening.physics.gases import FRACTION_SUM_TOLERANCE, Mixture, lookup, make_mixture, pure
 
-GRAMMAR = "a gas name, or '<gas> <percent>% + <gas> <percent>% ...' (e.g. 'argon 82% + carbon dioxide 18%')"
+GRAMMAR = ("a gas name, or '<gas> <percent>% + <gas> <percent>% ...' (e.g. 'argon 82% + carbon dioxide 18%', "
+           "'argon + 8 % CO2', 'CO2 18 % in argon', 'nitrogen + 50 ppm carbon monoxide', "
+           "'propane 60 % + n-butane 40 % by mass')")
 TABLE_VALUE = "a mole fraction 0 < x <= 1, or a text '<percent> %'"
 
 _NUMBER = r"(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)"
-_TERM = re.compile(r"^(?P<name>\S(?:.*?\S)?)\s+(?P<pct>" + _NUMBER + r")\s*%$")
+_UNIT = r"(?P<unit>(?:mol(?:e)?\s*|vol(?:ume)?\s*|mass\s*|wt\s*)?%|ppm(?:v|\s*mol)?)"
+_AMOUNT = r"(?P<pct>" + _NUMBER + r")\s*" + _UNIT
+_TERM = re.compile(r"^(?P<name>\S(?:.*?\S)?)\s+" + _AMOUNT + r"$", re.IGNORECASE)
+_TERM_BEFORE = re.compile(r"^" + _AMOUNT + r"\s+(?P<name>\S(?:.*?\S)?)$", re.IGNORECASE)
 _PERCENT_TEXT = re.compile(r"^\s*(?P<pct>" + _NUMBER + r")\s*%\s*$")
+_BY_MASS = re.compile(r"\s*(?:,\s*)?by\s+mass\s*$", re.IGNORECASE)
+_BY_MOLE = re.compile(r"\s*(?:,\s*)?by\s+(?:mole|moles|volume)\s*$", re.IGNORECASE)
+_IN = re.compile(r"\s+in\s+", re.IGNORECASE)
 
 
-def _percent_to_fraction(pct_text: str, *, file, key, given) -> float:
+def _percent_to_fraction(pct_text: str, *, file, key, given, unit: str = "%") -> float:
     pct = float(pct_text)
+    if unit.lower().startswith("ppm"):
+        if not math.isfinite(pct) or pct <= 0.0 or pct >= 1e6:
+            raise InputError("ppm amount out of range", file=file, key=key, given=given,
+                             expected="0 < ppm < 1 000 000")
+        return pct * 1e-6
     if not math.isfinite(pct) or pct <= 0.0 or pct > 100.0:
         raise InputError("percentage out of range", file=file, key=key, given=given,
                          expected="0 < percent <= 100")
     return pct / 100.0
 
 
+def _amount_term(term: str):
+    """(name, amount text, unit) of a term with its amount after or before the name, else None."""
+    m = _TERM.match(term) or _TERM_BEFORE.match(term)
+    if not m:
+        return None
+    return m.group("name"), m.group("pct"), re.sub(r"\s+", "", m.group("unit").lower())
+
+
+def _is_mass(unit: str) -> bool:
+    return unit.startswith("mass") or unit.startswith("wt")
+
+
 def _parse_text(text: str, *, file, key) -> dict[str, float] | str:
-    """A pure name (returned as str) or {name: fraction}."""
+    """A pure name (returned as str) or {name: mole fraction}."""
     s = text.strip()
     if not s:
         raise InputError("empty gas", file=file, key=key, given=text, expected=GRAMMAR)
-    if "+" not in s and "%" not in s:
+    by_mass = bool(_BY_MASS.search(s))
+    s = _BY_MOLE.sub("", _BY_MASS.sub("", s))
+    if "+" not in s and "%" not in s and "ppm" not in s.lower():
         return s
-    out: dict[str, float] = {}
-    for raw in s.split("+"):
-        term = raw.strip()
-        m = _TERM.match(term)
-        if not m:
+    balance: str | None = None
+    parts = _IN.split(s)
+    if len(parts) == 2 and "+" not in parts[1]:
+        # "<gas> <amount> [+ ...] in <carrier>": the carrier is the balance
+        s, balance = parts[0], parts[1].strip()
+    elif len(parts) > 2:
+        raise InputError("'in' may name one carrier gas only", file=file, key=key, given=text, expected=GRAMMAR)
+    terms = [t.strip() for t in s.split("+")]
+    amounts: dict[str, tuple[float, str]] = {}
+    for i, term in enumerate(terms):
+        parsed = _amount_term(term)
+        if parsed is None:
+            if i == 0 and balance is None and len(terms) > 1 and term and "%" not in term:
+                balance = term      # "argon + 8 % CO2": the carrier named first without an amount
+                continue
             raise InputError(f"cannot read the term '{term}'", file=file, key=key, given=text, expected=GRAMMAR)
-        name = m.group("name")
-        if name in out:
+        name, pct, unit = parsed
+        if name in amounts or name == balance:
             raise InputError(f"'{name}' is given twice", file=file, key=key, given=text, expected="each gas once")
-        out[name] = _percent_to_fraction(m.group("pct"), file=file, key=key, given=text)
+        amounts[name] = (_percent_to_fraction(pct, file=file, key=key, given=text, unit=unit), unit)
+    units_mass = {_is_mass(u) or (by_mass and not u.startswith("ppm")) for _, u in amounts.values()}
+    if len(units_mass) > 1:
+        raise InputError("mass and mole amounts are mixed", file=file, key=key, given=text,
+                         expected="all amounts by moles (%, mol %, vol %, ppm) or all by mass (mass %, wt %)")
+    mass = units_mass == {True}
+    out = {name: x for name, (x, _) in amounts.items()}
+    if balance is not None:
+        rest = 1.0 - math.fsum(out.values())
+        if not rest > 1e-9:
+            raise InputError(f"the amounts given leave nothing for the balance gas '{balance}'", file=file,
+                             key=key, given=text, expected="amounts summing to less than 100 %")
+        out = {balance: rest, **out}
+    elif not mass:
+        total = math.fsum(out.values())
+        if abs(total - 1.0) > FRACTION_SUM_TOLERANCE:
+            raise InputError(f"the amounts sum to {total * 100:.6g} %", file=file, key=key, given=text,
+                             expected=f"100 % within {FRACTION_SUM_TOLERANCE:.1%}, or a balance gas named without "
+                             "an amount ('argon + 8 % CO2')")
+    if mass:
+        out = _mass_to_mole(out, file=file, key=key, given=text)
     return out
+
+
+def _mass_to_mole(mass_fractions: dict[str, float], *, file, key, given) -> dict[str, float]:
+    """Mole fractions from mass fractions with the library's molar masses: x_i = (w_i/M_i) / sum(w_j/M_j)."""
+    total = math.fsum(mass_fractions.values())
+    if abs(total - 1.0) > FRACTION_SUM_TOLERANCE:
+        raise InputError("mass fractions do not sum to 100 %", file=file, key=key, given=given,
+                         expected=f"a sum within {FRACTION_SUM_TOLERANCE:.1%} of 100 %")
+    moles = {name: w / lookup(name).molar_mass for name, w in mass_fractions.items()}
+    n = math.fsum(moles.values())
+    return {name: v / n for name, v in moles.items()}
 
 
 def _parse_table(table: dict, *, file, key) -> dict[str, float]:

@@ -9,9 +9,11 @@ Every state is checked before a number is handed out:
   at 5000 K; we refuse);
 * pressure finite and not above p_max;
 * for single-phase states, (dP/drho)_T > 0 (mechanically stable root);
-* mixtures: the density–temperature flash is accepted only if the reverse pressure–temperature flash
-  gives the density back and the state is consistent with the phase envelope (see
-  :meth:`ReferenceFluid._check_mixture_state`). Two-phase mixture states are not screened.
+* mixtures: the homogeneous state at (density, temperature) is accepted only if the reverse
+  pressure–temperature flash gives the density back and the state is one phase by both routes of
+  :mod:`screening.physics.mixtures` (CoolProp's flash with its stability analysis, and thermo's
+  Peng–Robinson flash with its stability test), each state checked within a stated time bound. Two-phase
+  mixture states are not screened.
 
 Pseudo-pure fluids (CoolProp's "Air", whose parameter ``pure`` is "false") are treated as a pure fluid
 above their maxcondentherm (the ``T_critical`` CoolProp reports, 132.53 K for air). Below it the
@@ -33,17 +35,12 @@ import CoolProp.CoolProp as CP
 import numpy as np
 
 from screening.errors import NotApplicable
+from screening.physics import mixtures as _mix
 
 MODEL = "reference"
 
 #: Relative tolerance of the mixture round trip rho -> p(rho, T) -> rho(p, T).
 ROUND_TRIP_RTOL = 1e-6
-
-#: Relative margin kept between an accepted single-phase mixture state and the bubble/dew pressure.
-ENVELOPE_MARGIN = 0.02
-
-#: Margin [K] above the cricondentherm beyond which a mixture is taken as single-phase at any pressure.
-CRICONDENTHERM_MARGIN = 1.0
 
 #: Relative band around the vapour pressure where a pure-fluid PT flash is refused (phase undecidable).
 SATURATION_BAND = 1e-9
@@ -140,9 +137,11 @@ class ReferenceFluid:
     ``is_pseudo_pure`` (e.g. Air), ``label``, ``molar_mass`` [kg/mol], ``t_min``, ``t_max`` [K],
     ``p_max`` [Pa], ``critical_temperature`` [K], ``critical_pressure`` [Pa],
     ``critical_molar_density`` [mol/m3], ``triple_temperature`` [K] (pure fluids; None for mixtures).
-    For a mixture the critical values are those of the single stable critical point CoolProp finds,
-    or None when it finds none or several; ``cricondentherm`` [K] is the highest temperature on the
-    phase envelope (None if the envelope cannot be built).
+    For a mixture the critical values are None (the mixture's critical point is not searched: CoolProp's
+    search is not bounded in time); ``pseudo_critical_temperature`` [K] and
+    ``pseudo_critical_molar_density`` [mol/m3] (Kay's rule over the components' reference-equation
+    critical points) name its one-phase states, and the phase of each state is established by
+    :mod:`screening.physics.mixtures` (two routes, bounded in time).
     """
 
     def __init__(self, names: tuple[str, ...], fractions: tuple[float, ...]) -> None:
@@ -190,34 +189,13 @@ class ReferenceFluid:
         self.t_min = float(a.Tmin())
         self.t_max = float(a.Tmax())
         self.p_max = float(a.pmax())
-        self.cricondentherm: float | None = None
-        self._envelope: tuple[np.ndarray, np.ndarray] | None = None
         if not self.is_mixture:
             self.critical_temperature: float | None = float(a.T_critical())
             self.critical_pressure: float | None = float(a.p_critical())
             self.critical_molar_density: float | None = float(a.rhomolar_critical())
             self.triple_temperature: float | None = float(a.Ttriple())
         else:
-            self.critical_temperature = self.critical_pressure = self.critical_molar_density = None
-            self.triple_temperature = None
-            try:
-                stable = [c for c in a.all_critical_points() if c.stable]
-                if len(stable) == 1:
-                    self.critical_temperature = float(stable[0].T)
-                    self.critical_pressure = float(stable[0].p)
-                    self.critical_molar_density = float(stable[0].rhomolar)
-            except ValueError:
-                pass
-            try:
-                a.build_phase_envelope("")
-                env = a.get_phase_envelope_data()
-                env_t = np.asarray(env.T, dtype=float)
-                env_p = np.asarray(env.p, dtype=float)
-                if env_t.size > 1 and np.all(np.isfinite(env_t)) and np.all(np.isfinite(env_p)):
-                    self.cricondentherm = float(env_t.max())
-                    self._envelope = (env_t, env_p)
-            except ValueError:
-                pass
+            self._init_mixture()
 
     def __repr__(self) -> str:
         return f"ReferenceFluid({self.label})"
@@ -268,7 +246,8 @@ class ReferenceFluid:
         """The state just evaluated at rho [mol/m3], T [K] is mechanically stable, (dP/drho)_T > 0."""
         dpdrho = self._state.first_partial_deriv(CoolProp.iP, CoolProp.iDmolar, CoolProp.iT)
         if not (math.isfinite(dpdrho) and dpdrho > 0.0):
-            what = f"{self.label} at rho={rho:.6g} mol/m3, T={T:.6g} K"
+            what = (f"the mixture at {T - 273.15:.1f} °C" if self.is_mixture
+                    else f"{self.label} at rho={rho:.6g} mol/m3, T={T:.6g} K")
             raise NotApplicable(MODEL, f"{what}: (dP/drho)_T = {dpdrho!r} is not positive — not a stable "
                                 "single-phase state", value=dpdrho, valid_range="(dP/drho)_T > 0")
 
@@ -285,112 +264,116 @@ class ReferenceFluid:
     def _evaluate(self, rho: float, T: float) -> tuple[float, str]:
         self._check_density(rho)
         self._check_temperature(T)
+        if self.is_mixture:
+            return self._evaluate_mixture(rho, T)
         a = self._state
         try:
-            if self.is_mixture:
-                # Homogeneous (single-phase) pressure straight from the Helmholtz energy at (rho, T): the
-                # mixture density-temperature flash is slow and can silently pick a wrong state. Whether
-                # the homogeneous state is the stable one is decided below by the reverse PT flash and the
-                # phase-envelope check.
-                a.specify_phase(CoolProp.iphase_gas)
-                try:
-                    a.update(CoolProp.DmolarT_INPUTS, rho, T)
-                finally:
-                    a.unspecify_phase()
-            else:
-                a.update(CoolProp.DmolarT_INPUTS, rho, T)
+            a.update(CoolProp.DmolarT_INPUTS, rho, T)
             p = a.p()
             iphase = a.phase()
         except ValueError as exc:
             raise NotApplicable(MODEL, f"CoolProp density-temperature flash failed for {self.label} at "
                                 f"rho={rho:.6g} mol/m3, T={T:.6g} K: {exc}", value=(rho, T)) from None
         self._check_pressure(p)
-        if not self.is_mixture:
-            if iphase == _TWO_PHASE:
-                return p, "two-phase"
-            self._check_stable(rho, T)
-            if T >= self.critical_temperature:
-                return p, "supercritical"
-            return p, "liquid" if rho > self.critical_molar_density else "gas"
         if iphase == _TWO_PHASE:
-            raise NotApplicable(MODEL, f"{self.label} at rho={rho:.6g} mol/m3, T={T:.6g} K is two-phase; "
-                                "two-phase mixture states are not screened", value=(rho, T))
+            return p, "two-phase"
         self._check_stable(rho, T)
-        try:
-            a.update(CoolProp.PT_INPUTS, p, T)
-            rho_back = a.rhomolar()
-            if a.phase() == _TWO_PHASE:
-                raise NotApplicable(MODEL, f"{self.label} at rho={rho:.6g} mol/m3, T={T:.6g} K: the pressure-"
-                                    f"temperature flash at {p:.6g} Pa finds two phases; two-phase mixture "
-                                    "states are not screened", value=(rho, T))
-        except ValueError as exc:
-            raise NotApplicable(MODEL, f"{self.label}: the reverse pressure-temperature flash at p={p:.6g} Pa, "
-                                f"T={T:.6g} K failed ({exc}); the density-temperature result is not trusted",
-                                value=(rho, T)) from None
-        if not (math.isfinite(rho_back) and abs(rho_back - rho) <= ROUND_TRIP_RTOL * rho):
-            raise NotApplicable(
-                MODEL, f"{self.label}: density {rho:.6g} mol/m3 at {T:.6g} K gives {p:.6g} Pa, but the reverse "
-                f"pressure-temperature flash gives {rho_back:.6g} mol/m3 back; CoolProp's flash is not "
-                "self-consistent here, so no number is given", value=(rho, T))
-        phase = self._check_mixture_state(p, T)
-        # leave the state at the homogeneous (rho, T) for derivative calls
+        if T >= self.critical_temperature:
+            return p, "supercritical"
+        return p, "liquid" if rho > self.critical_molar_density else "gas"
+
+    # ---------------------------------------------------------------------------------------------
+    # mixtures
+    def _init_mixture(self) -> None:
+        """Pseudo-critical values (Kay's rule) and the cubic route's constants, from the components'
+        reference equations; no phase envelope and no critical-point search (neither is bounded in time)."""
+        self.critical_temperature = self.critical_pressure = self.critical_molar_density = None
+        self.triple_temperature = None
+        comps, tcs, vcs = [], [], []
+        for n, cas in zip(self.names, self._cas):
+            tc = CP.PropsSI("Tcrit", n)
+            pc = CP.PropsSI("pcrit", n)
+            rc = CP.PropsSI("rhomolar_critical", n)
+            comps.append(_mix.CubicComponent(cas, tc, pc, CP.PropsSI("acentric", n), CP.PropsSI("molar_mass", n)))
+            tcs.append(tc)
+            vcs.append(1.0 / rc)
+        self.pseudo_critical_temperature = math.fsum(x * t for x, t in zip(self.fractions, tcs))
+        self.pseudo_critical_molar_density = 1.0 / math.fsum(x * v for x, v in zip(self.fractions, vcs))
+        self.cubic_components = tuple(comps)
+        pairs = []
+        for i in range(len(self.names)):
+            for j in range(i + 1, len(self.names)):
+                key = _binary_pair_key(self._cas[i], self._cas[j]) or "?"
+                pairs.append(f"{self.names[i]}/{self.names[j]} [{key}]")
+        #: The mixing rules used, in words (shown in results and reports).
+        self.mixing_rule = (
+            "multi-fluid Helmholtz mixing (Kunz–Wagner GERG form): reducing functions with binary parameters "
+            f"fitted for every pair ({', '.join(pairs)}); phase checked by CoolProp's flash and by "
+            f"{_mix.CUBIC_MIXING_RULE}")
+        self._memo = _mix.IsochoreMemo()
+        self.phase_time_bound = _mix.PHASE_TIME_BOUND
+
+    def _homogeneous(self, rho: float, T: float) -> float:
+        """Pressure [Pa] of the homogeneous mixture at (rho, T), straight from the Helmholtz energy (the
+        mixture density–temperature flash is slow and can pick a wrong state); leaves the state there."""
+        a = self._state
         a.specify_phase(CoolProp.iphase_gas)
         try:
             a.update(CoolProp.DmolarT_INPUTS, rho, T)
+            return a.p()
+        except ValueError:
+            raise NotApplicable(MODEL, f"{_mix.CANNOT}: the mixture equation gives no state at "
+                                f"{rho:.6g} mol/m3 and {T:.6g} K", value=(rho, T)) from None
         finally:
             a.unspecify_phase()
-        return p, phase
 
-    def _check_mixture_state(self, p: float, T: float) -> str:
-        """Check a single-phase mixture state (p, T) against the phase envelope; return its phase.
+    def _evaluate_mixture(self, rho: float, T: float) -> tuple[float, str]:
+        p = self._homogeneous(rho, T)
+        self._check_pressure(p)
+        self._check_stable(rho, T)
+        label = _mix.single_phase_label(T, rho, self.pseudo_critical_temperature,
+                                        self.pseudo_critical_molar_density)
+        if self._memo.covers(rho, T):
+            return p, label
+        answer = self.mixture_phase(rho, p, T)
+        where = f"at {T - 273.15:.1f} °C and {p / 1e5:.4g} bar(a)"
+        if answer.single is None:
+            raise NotApplicable(MODEL, f"{answer.reason} {where}", value=(rho, T))
+        if not answer.single:
+            raise NotApplicable(MODEL, f"the mixture separates into {answer.reason} {where}; two-phase mixture states are "
+                                "not screened", value=(rho, T))
+        self._memo.record(rho, T)
+        self._homogeneous(rho, T)  # leave the state at (rho, T) for derivative calls
+        return p, label
 
-        Conservative rule:
-          * above the cricondentherm (+ CRICONDENTHERM_MARGIN) no two-phase region exists at any
-            pressure: accepted as "supercritical";
-          * otherwise the boundary pressures at T are collected: the bubble pressure (QT flash, Q=0),
-            the dew pressure (Q=1), and every crossing of the traced phase envelope with this
-            temperature. At least two are needed, and p must lie outside [min, max] of all of them
-            widened by ENVELOPE_MARGIN: below → "gas", above → "liquid" (or "supercritical" above
-            the mixture critical temperature). Taking the extremes of all estimates is conservative:
-            a spurious envelope point at a huge pressure only refuses more dense states;
-          * fewer than two boundary pressures (solver failures, no envelope): the phase cannot be
-            confirmed and the state is refused.
-        """
-        ct = self.cricondentherm
-        if ct is not None and T > ct + CRICONDENTHERM_MARGIN:
-            return "supercritical"
+    def mixture_phase(self, rho: float, p: float, T: float,
+                      budget: _mix.Budget | None = None) -> _mix.PhaseAnswer:
+        """Whether the homogeneous state (rho [mol/m3], p [Pa], T [K]) is one phase, by both routes
+        (reference: CoolProp's PT flash with its stability analysis, the density checked on the way
+        back; cubic: thermo's Peng–Robinson flash), within ``phase_time_bound`` seconds."""
+        budget = budget or _mix.Budget(self.phase_time_bound)
+        answers = [self._reference_route(rho, p, T, budget)]
+        if answers[0].phases == 2:
+            return _mix.combine(answers, budget)
+        if budget.expired():
+            answers.append(_mix.RouteAnswer("cubic", None, "no time left"))
+        else:
+            answers.append(_mix.cubic_route(self.cubic_components, self.fractions, p, T, budget))
+        return _mix.combine(answers, budget)
+
+    def _reference_route(self, rho: float, p: float, T: float, budget: _mix.Budget) -> _mix.RouteAnswer:
         a = self._state
-        sat = []
-        for q in (0.0, 1.0):
-            try:
-                a.update(CoolProp.QT_INPUTS, q, T)
-                ps = a.p()
-            except ValueError:
-                ps = float("nan")
-            sat.append(ps)
-        bounds = [x for x in sat if math.isfinite(x) and x > 0]
-        if self._envelope is not None:
-            et, ep = self._envelope
-            for i in range(et.size - 1):
-                if (et[i] - T) * (et[i + 1] - T) <= 0.0 and et[i] != et[i + 1]:
-                    w = (T - et[i]) / (et[i + 1] - et[i])
-                    bounds.append(float(math.exp((1 - w) * math.log(ep[i]) + w * math.log(ep[i + 1]))))
-        if len(bounds) < 2:
-            raise NotApplicable(
-                MODEL, f"{self.label} at {T:.6g} K, {p:.6g} Pa: the bubble and dew pressures at this "
-                "temperature could not be established, so the phase cannot be confirmed"
-                + (f" (cricondentherm {ct:.5g} K)" if ct is not None else " (phase envelope not available)"),
-                value=(p, T), valid_range="states away from the phase envelope, or above the cricondentherm")
-        lo, hi = min(bounds), max(bounds)
-        if p < lo * (1.0 - ENVELOPE_MARGIN):
-            return "gas"
-        if p > hi * (1.0 + ENVELOPE_MARGIN):
-            tc = self.critical_temperature
-            return "supercritical" if (tc is not None and T > tc) else "liquid"
-        raise NotApplicable(
-            MODEL, f"{self.label} at {T:.6g} K, {p:.6g} Pa lies within or next to the two-phase region "
-            f"(dew {sat[1]:.6g} Pa, bubble {sat[0]:.6g} Pa); mixture two-phase states are not screened",
-            value=(p, T), valid_range=f"p < {lo * (1 - ENVELOPE_MARGIN):.6g} Pa or p > {hi * (1 + ENVELOPE_MARGIN):.6g} Pa")
+        try:
+            a.update(CoolProp.PT_INPUTS, p, T)
+            rho_back, iphase = a.rhomolar(), a.phase()
+        except ValueError:
+            return _mix.RouteAnswer("reference", None, "the reference flash did not converge")
+        if iphase == _TWO_PHASE:
+            return _mix.RouteAnswer("reference", 2)
+        if not (math.isfinite(rho_back) and abs(rho_back - rho) <= ROUND_TRIP_RTOL * rho):
+            # the stable state at this pressure is another one: this density is not a one-phase state
+            return _mix.RouteAnswer("reference", 2, "another state is stable at this pressure")
+        return _mix.RouteAnswer("reference", 1)
 
     # ---------------------------------------------------------------------------------------------
     # public scalar API
@@ -455,23 +438,54 @@ class ReferenceFluid:
                 raise NotApplicable(MODEL, f"{self.label}: PT flash at p={p:.6g} Pa, T={T:.6g} K gave "
                                     f"{rho:.6g} mol/m3 which maps back to {p_back:.6g} Pa", value=(p, T))
             return float(rho)
-        try:
-            a.update(CoolProp.PT_INPUTS, p, T)
-            rho = a.rhomolar()
-            iphase = a.phase()
-        except ValueError as exc:
-            raise NotApplicable(MODEL, f"CoolProp pressure-temperature flash failed for {self.label} at "
-                                f"p={p:.6g} Pa, T={T:.6g} K: {exc}", value=(p, T)) from None
-        if iphase == _TWO_PHASE:
-            raise NotApplicable(MODEL, f"{self.label} at p={p:.6g} Pa, T={T:.6g} K is two-phase; two-phase "
-                                "mixture states are not screened", value=(p, T))
-        self._check_density(rho)
-        # the density-temperature path re-checks: round trip, stability and the phase envelope
+        where = f"at {T - 273.15:.1f} °C and {p / 1e5:.4g} bar(a)"
+        # The homogeneous root at (p, T) with the phase imposed (no stability analysis: 0.1 ms instead of
+        # 40-70 ms); whether it is the stable state is decided by both routes in the density-temperature path.
+        rho = None
+        for imposed in (CoolProp.iphase_supercritical_gas, CoolProp.iphase_gas, CoolProp.iphase_liquid):
+            try:
+                a.specify_phase(imposed)
+                a.update(CoolProp.PT_INPUTS, p, T)
+                rho = a.rhomolar()
+            except ValueError:
+                rho = None
+            finally:
+                a.unspecify_phase()
+            if rho is not None and math.isfinite(rho) and rho > 0.0:
+                break
+        if rho is None or not (math.isfinite(rho) and rho > 0.0):
+            # no root found that way: the cubic route's density as the starting point, checked
+            # below on the reference equation's homogeneous state
+            try:
+                rho = self._density_from_cubic(p, T)
+            except (ValueError, ArithmeticError):
+                raise NotApplicable(MODEL, f"{_mix.CANNOT} {where}: neither the reference nor the cubic "
+                                    "equation gives a density there", value=(p, T)) from None
+        # the density-temperature path re-checks: stability, round trip and both phase routes
         p_back, _ = self._evaluate(rho, T)
         if abs(p_back - p) > ROUND_TRIP_RTOL * p:
-            raise NotApplicable(MODEL, f"{self.label}: PT flash at p={p:.6g} Pa, T={T:.6g} K gave "
-                                f"{rho:.6g} mol/m3 which maps back to {p_back:.6g} Pa", value=(p, T))
+            raise NotApplicable(MODEL, f"{_mix.CANNOT} {where}: the density found maps back to "
+                                f"{p_back / 1e5:.6g} bar(a)", value=(p, T))
         return float(rho)
+
+    def _density_from_cubic(self, p: float, T: float) -> float:
+        """Density [mol/m3] where the reference equation's homogeneous pressure is p [Pa] at T [K], started
+        from the cubic route's density and solved by bounded Newton steps on the Helmholtz-energy state."""
+        rho = _mix.cubic_density(self.cubic_components, self.fractions, p, T)
+        a = self._state
+        for _ in range(50):
+            p_r = self._homogeneous(rho, T)
+            d = a.first_partial_deriv(CoolProp.iP, CoolProp.iDmolar, CoolProp.iT)
+            if not (math.isfinite(d) and d > 0.0):
+                raise ValueError("no stable root")
+            step = (p - p_r) / d
+            rho_new = min(max(rho + step, 0.5 * rho), 2.0 * rho)
+            if abs(rho_new - rho) <= 1e-12 * rho:
+                return rho_new
+            rho = rho_new
+        if abs(self._homogeneous(rho, T) - p) <= ROUND_TRIP_RTOL * p:
+            return rho
+        raise ValueError("Newton iterations did not converge")
 
     # ---------------------------------------------------------------------------------------------
     # saturation (pure fluids)

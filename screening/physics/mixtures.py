@@ -1,0 +1,232 @@
+"""Phase of a gas mixture at a state (pressure, temperature), by two independent routes, in bounded time.
+
+A closed rigid vessel filled with a mixture may be screened with gas models only where the contents are
+one phase at every state considered. Whether a state of known overall composition is one phase is a
+stability question (Michelsen's tangent-plane-distance test); two routes answer it here:
+
+* **reference route**: CoolProp's pressure–temperature flash on the multiparameter mixture model (GERG-type
+  Helmholtz-energy mixture with the fitted binary departure functions), whose mixture PT flash runs a
+  stability analysis before it accepts one phase. Its answer is a phase code and a density; the caller
+  (:class:`screening.physics.eos.reference.ReferenceFluid`) checks that the density comes back.
+* **cubic route**: ``thermo``'s vapour–liquid flash (``thermo.FlashVL``) with the Peng–Robinson equation
+  of state (Peng & Robinson, Ind. Eng. Chem. Fundam. 15 (1976) 59–64, doi:10.1021/i160057a011), van der
+  Waals one-fluid mixing rules with the ChemSep binary interaction parameters k_ij that ``thermo`` ships
+  (``IPDB 'ChemSep PR'``; k_ij = 0 where a pair is not listed), and its stability test.
+
+The two answers are combined conservatively (:func:`combine`): a state is single-phase only if no route
+finds two phases; a state that neither route can establish is refused with the plain reason "the phase
+cannot be established". Where only one route answers, its answer is used and the other route's failure is
+noted.
+
+**Time bound.** Every state check has a budget of :data:`PHASE_TIME_BOUND` seconds, checked between the
+steps (each route, each flash); a check that runs over is abandoned and the phase is "cannot be
+established". No step that can run unbounded is called: CoolProp's phase-envelope construction (which
+never finished for argon 70 % + helium 30 % and returned a 20 738 K "cricondentherm" for argon + 8 % CO2)
+is not used at all. A single CoolProp or thermo flash took at most about 0.05 s in the mixtures of the
+trade (measured on this project's machine, 2026-12-03).
+
+**Along an isochore.** At fixed overall composition and fixed density the two-phase region lies below a
+boundary temperature (the envelope in the temperature–density plane): a state found one-phase at T on an
+isochore is one-phase at every higher temperature on the same isochore. This is the reading used to carry
+an established state up the isochore without new flashes (:class:`IsochoreMemo`).
+
+Units: SI — pressure [Pa], temperature [K], molar density [mol/m3].
+"""
+
+from __future__ import annotations
+
+import threading
+import time
+from dataclasses import dataclass, field
+from functools import lru_cache
+
+#: Wall-clock budget [s] of one state's phase check (both routes together).
+PHASE_TIME_BOUND = 2.0
+
+#: The phase words a state check returns.
+SINGLE_PHASES = ("gas", "supercritical", "liquid")
+
+CANNOT = "the phase cannot be established"
+
+
+@dataclass(frozen=True)
+class RouteAnswer:
+    """One route's answer at one state: ``phases`` 1 or 2, or None with ``failure`` in plain words."""
+
+    route: str
+    phases: int | None
+    failure: str = ""
+
+
+@dataclass(frozen=True)
+class PhaseAnswer:
+    """The combined answer: ``single`` True (one phase), False (two phases), None (cannot be established)."""
+
+    single: bool | None
+    routes: tuple[RouteAnswer, ...] = field(default_factory=tuple)
+    reason: str = ""
+
+
+class Budget:
+    """A wall-clock deadline checked between steps (``time.monotonic``)."""
+
+    def __init__(self, seconds: float = PHASE_TIME_BOUND) -> None:
+        self.seconds = float(seconds)
+        self.deadline = time.monotonic() + self.seconds
+
+    def left(self) -> float:
+        return self.deadline - time.monotonic()
+
+    def expired(self) -> bool:
+        return time.monotonic() > self.deadline
+
+
+def combine(answers: list[RouteAnswer], budget: Budget | None = None) -> PhaseAnswer:
+    """Keep the conservative answer of the routes.
+
+    Two phases from any route → two-phase. One phase from at least one route and two from none → one
+    phase. No route answered → the phase cannot be established (one plain reason).
+    """
+    routes = tuple(answers)
+    if any(a.phases == 2 for a in routes):
+        who = ", ".join(a.route for a in routes if a.phases == 2)
+        return PhaseAnswer(False, routes, f"two phases (found by the {who} route)")
+    if any(a.phases == 1 for a in routes):
+        failed = [a for a in routes if a.phases is None]
+        note = ("; ".join(f"the {a.route} route did not answer ({a.failure})" for a in failed)) if failed else ""
+        return PhaseAnswer(True, routes, note)
+    if budget is not None and budget.expired():
+        return PhaseAnswer(None, routes, f"{CANNOT}: the phase check did not finish within "
+                                         f"{budget.seconds:g} s")
+    why = "; ".join(f"{a.route}: {a.failure}" for a in routes if a.failure)
+    return PhaseAnswer(None, routes, f"{CANNOT} (neither route converged: {why})" if why else CANNOT)
+
+
+# --------------------------------------------------------------------------------------------------
+# cubic route (thermo, Peng–Robinson)
+
+#: Mixing rule of the cubic route, as stated in results.
+CUBIC_MIXING_RULE = ("Peng–Robinson with van der Waals one-fluid mixing (a: sqrt(a_i a_j)(1 - k_ij), "
+                     "b: mole-fraction average), k_ij from the ChemSep table shipped with thermo, 0 where "
+                     "a pair is not listed")
+
+_CUBIC_LOCK = threading.Lock()
+
+
+@dataclass(frozen=True)
+class CubicComponent:
+    """Constants of one component for the cubic route: CAS, Tc [K], Pc [Pa], acentric factor [-],
+    molar mass [kg/mol]."""
+
+    cas: str
+    tc: float
+    pc: float
+    omega: float
+    molar_mass: float
+
+
+@lru_cache(maxsize=64)
+def _cubic_flasher(components: tuple[CubicComponent, ...]):
+    """thermo FlashVL with Peng–Robinson gas and liquid phases (cached per set of components)."""
+    from thermo import PRMIX, CEOSGas, CEOSLiquid, ChemicalConstantsPackage, FlashVL, HeatCapacityGas
+    from thermo.interaction_parameters import IPDB
+    n = len(components)
+    cas = [c.cas for c in components]
+    tcs = [c.tc for c in components]
+    pcs = [c.pc for c in components]
+    omegas = [c.omega for c in components]
+    constants = ChemicalConstantsPackage(Tcs=tcs, Pcs=pcs, omegas=omegas,
+                                         MWs=[c.molar_mass * 1000.0 for c in components], CASs=cas)
+    try:
+        kijs = IPDB.get_ip_asymmetric_matrix("ChemSep PR", cas, "kij")
+    except Exception:  # a lookup failure of the table: no listed k_ij, so 0
+        kijs = [[0.0] * n for _ in range(n)]
+    kw = dict(Tcs=tcs, Pcs=pcs, omegas=omegas, kijs=kijs)
+    # The TP flash and its stability test need no heat capacity; thermo's phases want one, so a constant
+    # 29.1 J/(mol K) stands in (it does not enter pressure, volume or phase equilibrium).
+    cp = [HeatCapacityGas(poly_fit=(1.0, 10000.0, [0.0] * 8 + [29.1])) for _ in range(n)]
+    gas = CEOSGas(PRMIX, eos_kwargs=kw, HeatCapacityGases=cp)
+    liquid = CEOSLiquid(PRMIX, eos_kwargs=kw, HeatCapacityGases=cp)
+    return FlashVL(constants, None, liquid=liquid, gas=gas), kijs
+
+
+def cubic_kij(components: tuple[CubicComponent, ...]) -> list[list[float]]:
+    """The k_ij matrix the cubic route uses (ChemSep, 0 where not listed)."""
+    return _cubic_flasher(tuple(components))[1]
+
+
+def cubic_route(components: tuple[CubicComponent, ...], fractions: tuple[float, ...], p: float, T: float,
+                budget: Budget | None = None) -> RouteAnswer:
+    """Number of phases at (p [Pa], T [K]) by thermo's Peng–Robinson flash with its stability test."""
+    if budget is not None and budget.expired():
+        return RouteAnswer("cubic", None, "no time left")
+    try:
+        flasher = _cubic_flasher(tuple(components))[0]
+        with _CUBIC_LOCK:  # thermo's flasher keeps no state we rely on, but is not documented thread-safe
+            res = flasher.flash(T=float(T), P=float(p), zs=list(fractions))
+        count = int(res.phase_count)
+    except Exception as exc:  # any failure of the library is "did not answer"
+        return RouteAnswer("cubic", None, f"Peng–Robinson flash did not converge ({type(exc).__name__})")
+    if count not in (1, 2):
+        return RouteAnswer("cubic", None, f"Peng–Robinson flash gave {count} phases")
+    return RouteAnswer("cubic", count)
+
+
+def cubic_density(components: tuple[CubicComponent, ...], fractions: tuple[float, ...], p: float,
+                  T: float) -> float:
+    """Molar density [mol/m3] of the stable single phase at (p, T) by the cubic route (ValueError if two)."""
+    flasher = _cubic_flasher(tuple(components))[0]
+    with _CUBIC_LOCK:
+        res = flasher.flash(T=float(T), P=float(p), zs=list(fractions))
+    if res.phase_count != 1:
+        raise ValueError("two phases")
+    return 1.0 / float(res.V())
+
+
+def cubic_bubble(components: tuple[CubicComponent, ...], fractions: tuple[float, ...], T: float
+                 ) -> tuple[float, float]:
+    """Bubble pressure [Pa] and saturated-liquid molar density [mol/m3] at T [K] by the cubic route."""
+    flasher = _cubic_flasher(tuple(components))[0]
+    with _CUBIC_LOCK:
+        res = flasher.flash(T=float(T), VF=0.0, zs=list(fractions))
+    liquid = res.liquid0 if res.liquid0 is not None else res
+    return float(res.P), 1.0 / float(liquid.V())
+
+
+# --------------------------------------------------------------------------------------------------
+# labels and the isochore memo
+
+def single_phase_label(T: float, rho: float, t_pseudo: float, rho_pseudo: float) -> str:
+    """Name of a one-phase mixture state: 'supercritical' above the pseudo-critical temperature (Kay's
+    rule), else 'liquid' above the pseudo-critical density and 'gas' below it.
+
+    Reading chosen here: the mixture's true critical point is not computed (CoolProp's critical-point
+    search is neither bounded in time nor always unique); Kay's pseudo-critical values name the state.
+    A 'liquid' name only withdraws the gas models, so the reading errs on the safe side.
+    """
+    if T > t_pseudo:
+        return "supercritical"
+    return "liquid" if rho > rho_pseudo else "gas"
+
+
+class IsochoreMemo:
+    """Lowest temperature [K] established one-phase on each isochore (keyed by the exact density), so a
+    state higher up the same isochore needs no new flash (see the module doc). Thread-safe; bounded size."""
+
+    def __init__(self, size: int = 4096) -> None:
+        self._lock = threading.Lock()
+        self._t: dict[float, float] = {}
+        self._size = size
+
+    def covers(self, rho: float, T: float) -> bool:
+        with self._lock:
+            t0 = self._t.get(rho)
+        return t0 is not None and T >= t0
+
+    def record(self, rho: float, T: float) -> None:
+        with self._lock:
+            t0 = self._t.get(rho)
+            if t0 is None and len(self._t) >= self._size:
+                self._t.pop(next(iter(self._t)))
+            if t0 is None or T < t0:
+                self._t[rho] = T
