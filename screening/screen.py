@@ -29,12 +29,11 @@ from screening.physics.exposure import (
 from screening.physics.gases import Mixture
 from screening.physics.isochore import isochore_phases, max_liquid_density
 from screening.physics.roots import brentq
+from screening.verdicts import Verdict
 
 #: Basis named for the worst case where the fill temperature is above every exposure temperature.
 FILL_STATE_BASIS = "fill temperature (above the exposure: the fill state governs)"
 
-VERDICTS = ("within", "low-margin", "over", "out-of-scope")
-_SEVERITY = {"within": 0, "low-margin": 1, "over": 2, "out-of-scope": 3}
 
 #: Relative difference between the generalized and reference peaks above which a warning is given.
 MODEL_DISAGREEMENT_WARNING = 0.02
@@ -586,10 +585,6 @@ def _molar(case: Case, fs: FillState) -> float | None:
     return fs.rho_mass / case.gas.molar_mass if fs.rho_mass is not None else None
 
 
-#: Severity of the verdicts, least severe first.
-_RANK = {"within": 0, "low-margin": 1, "over": 2}
-
-
 def decide(*, peak: float | None, rated: float, relief: float | None, atm: float, required_margin: float,
            any_real_model: bool, out_of_scope_reason: str | None, liquid_full_reason: str | None = None,
            filling_ratio_reason: str | None = None) -> tuple[str, list[str], float | None, float | None]:
@@ -602,31 +597,31 @@ def decide(*, peak: float | None, rated: float, relief: float | None, atm: float
     real-gas model, or a reason given by the caller. The reasons that decide the verdict come first.
     """
     if out_of_scope_reason or not any_real_model or peak is None:
-        return "out-of-scope", [out_of_scope_reason or "No real-gas model applies to this vessel, so it cannot "
+        return Verdict.OUT_OF_SCOPE, [out_of_scope_reason or "No real-gas model applies to this vessel, so it cannot "
                                 "be screened."], None, None
     margin = 1.0 - (peak - atm) / (rated - atm)
     relief_margin = None if relief is None else 1.0 - (peak - atm) / (relief - atm)
-    findings: list[tuple[str, str]] = []
+    findings: list[tuple[Verdict, str]] = []
     if peak > rated:
-        findings.append(("over", f"The peak pressure exceeds the rated pressure by {-margin * 100:.1f} % of the "
+        findings.append((Verdict.OVER, f"The peak pressure exceeds the rated pressure by {-margin * 100:.1f} % of the "
                                  "rating."))
     elif margin < required_margin:
         m, req = percent_pair(margin, required_margin)
-        findings.append(("low-margin", f"The peak pressure stays within the rating but the margin, {m}, is below "
+        findings.append((Verdict.LOW_MARGIN, f"The peak pressure stays within the rating but the margin, {m}, is below "
                                        f"the required {req}."))
     if filling_ratio_reason:
-        findings.append(("over", filling_ratio_reason))
+        findings.append((Verdict.OVER, filling_ratio_reason))
     if relief is not None and peak > relief:
-        findings.append(("low-margin", "The peak pressure is above the relief set pressure: the relief device "
+        findings.append((Verdict.LOW_MARGIN, "The peak pressure is above the relief set pressure: the relief device "
                                        "would open and release gas."))
     elif relief_margin is not None and relief_margin < required_margin:
         m, req = percent_pair(relief_margin, required_margin)
-        findings.append(("low-margin", f"The peak pressure is within {m} of the relief set pressure, less than the "
+        findings.append((Verdict.LOW_MARGIN, f"The peak pressure is within {m} of the relief set pressure, less than the "
                                        f"required margin of {req}: the relief device may open."))
     if liquid_full_reason:
-        findings.append(("low-margin", liquid_full_reason))
-    verdict = max((v for v, _ in findings), key=_RANK.__getitem__, default="within")
-    reasons = [r for _, r in sorted(findings, key=lambda f: -_RANK[f[0]])]
+        findings.append((Verdict.LOW_MARGIN, liquid_full_reason))
+    verdict = max((v for v, _ in findings), key=lambda v: v.severity, default=Verdict.WITHIN)
+    reasons = [r for _, r in sorted(findings, key=lambda f: -f[0].severity)]
     if peak <= rated and margin >= required_margin:
         m, req = percent_pair(margin, required_margin)
         reasons.append(f"The peak pressure stays within the rating with a margin of {m} (required {req}).")
@@ -1078,7 +1073,7 @@ def _scenario_summary(name: str, r: dict, exposure: dict | None) -> dict:
 
 def _rank(r: dict) -> tuple:
     margin = r["margin_fraction"]
-    return (_SEVERITY[r["verdict"]], -(margin if margin is not None else -math.inf))
+    return (Verdict(r["verdict"]).severity, -(margin if margin is not None else -math.inf))
 
 
 def screen_case(case: Case, *, curves: bool = True) -> dict:
