@@ -228,6 +228,60 @@ def _check_batch_inputs(args) -> None:
                              given=f"{st.st_size} bytes", expected=f"at most {limit // (1024 * 1024)} MB")
 
 
+#: Inventory files below this size [bytes] are read once before the batch starts, for what the batch
+#: itself would not say: a header with no rows, the row of an unclosed quote. (Larger files hold rows.)
+PRECHECK_BYTES = 256 * 1024
+
+
+def _csv_error_row(raw: bytes) -> int | None:
+    """The row (header = 1) of the record a strict CSV reading fails in (an unclosed quote: the row where
+    the quoted cell opens), or None."""
+    import csv
+    import io
+
+    try:
+        text = raw.decode("utf-8-sig")
+    except UnicodeDecodeError:
+        return None
+    first = text.split("\n", 1)[0]
+    delimiter = ";" if first.count(";") > first.count(",") else ","
+    reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter, strict=True)
+    records = 0
+    try:
+        for _ in reader:
+            records += 1
+    except csv.Error:
+        return records + 1
+    return None
+
+
+def _precheck_inventory(args) -> None:
+    """For a small CSV inventory: a header without rows, or a CSV error located at its row."""
+    from screening.inputs.inventory import read_inventory
+
+    path = args.inventory
+    try:
+        if not os.path.isfile(path) or os.path.getsize(path) >= PRECHECK_BYTES or args.sheet is not None:
+            return
+        with open(path, "rb") as fh:
+            raw = fh.read()
+    except OSError:
+        return                       # the batch's reader says what is wrong
+    if raw[:4] == b"PK\x03\x04" or path.lower().endswith((".xlsx", ".xlsm")):
+        return
+    try:
+        inv = read_inventory(path)
+    except InputError as exc:
+        row = _csv_error_row(raw) if exc.row is None and "CSV" in exc.message else None
+        if row is not None:
+            raise InputError(exc.message + " (a quoted cell that is never closed?)", file=exc.file, row=row,
+                             expected="every opening quote closed in the same cell") from None
+        return                       # the batch says it
+    if not inv.rows:
+        raise InputError("the inventory has a header but no rows", file=str(path), row=2,
+                         expected="one row per vessel below the header")
+
+
 def _exit_for(verdict: str) -> int:
     return EXIT_WITHIN if verdict == "within" else EXIT_NOT_WITHIN
 
@@ -237,6 +291,7 @@ def run(argv: list[str] | None = None) -> int:
     _check_outputs(args)
     if args.command == "batch":
         _check_batch_inputs(args)
+        _precheck_inventory(args)
         from screening.batch import run as run_batch
 
         code = run_batch(args)

@@ -102,7 +102,20 @@ def check_target(path: str | os.PathLike, what: str, *, inputs=(), others=()) ->
     if len(target.name.encode("utf-8", "surrogateescape")) > limit:
         raise OutputError(f"the {what}'s file name is longer than the file system allows", given=str(target),
                           expected=f"a name of at most {limit} bytes")
+    _probe(parent, target, what, limit, st is not None)
     return target
+
+
+def _probe(parent: Path, target: Path, what: str, limit: int, existed: bool) -> None:
+    """Create and remove a temporary file where the output will be written: a folder that refuses new
+    files (a read-only mount, /proc, a full quota of inodes) is found before the work, not after it."""
+    try:
+        fd, name = tempfile.mkstemp(prefix=_tmp_prefix(target.name, limit), suffix=".part", dir=parent)
+    except OSError as exc:
+        raise _failed(what, target, exc, existed) from None
+    os.close(fd)
+    with contextlib.suppress(OSError):
+        os.unlink(name)
 
 
 def _tmp_prefix(name: str, limit: int) -> str:
