@@ -14,6 +14,7 @@ Every file the tool writes (report PDF, batch PDF, JSON, CSV) goes through :func
 from __future__ import annotations
 
 import contextlib
+import errno
 import os
 import stat
 import tempfile
@@ -73,6 +74,9 @@ def check_target(path: str | os.PathLike, what: str, *, inputs=(), others=()) ->
     except FileNotFoundError:
         st = None
     except OSError as exc:
+        if exc.errno == errno.ENAMETOOLONG:
+            raise OutputError(f"the {what}'s file name is longer than the file system allows", given=str(target),
+                              expected=f"a name of at most {NAME_MAX_DEFAULT} bytes") from None
         raise OutputError(f"cannot use the {what} target: {exc.strerror or exc}", file=str(target)) from None
     if st is not None:
         kind = _kind(st.st_mode)
