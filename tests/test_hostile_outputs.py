@@ -293,3 +293,11 @@ def test_demo_case_still_writes_its_report_through_the_checked_writer(capsys, tm
     out = tmp_path / "n2.pdf"
     code, outp, err = cli(capsys, "report", str(case), "-o", str(out), "--date", "2026-12-01")
     assert code == 0 and out.read_bytes().startswith(b"%PDF-") and "Traceback" not in err
+
+
+def test_an_output_error_survives_pickling_as_an_input_error_with_its_message():
+    import pickle
+
+    err = OutputError("cannot write the report: No space left on device; nothing was written", file="r.pdf")
+    back = pickle.loads(pickle.dumps(err))
+    assert type(back) is OutputError and isinstance(back, InputError) and str(back) == str(err)
