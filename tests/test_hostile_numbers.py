@@ -121,8 +121,8 @@ def test_check_json_is_strict_and_finite_for_every_demo_case(capsys):
         code, out, err = cli(capsys, "check", str(case), "--json")
         assert code in (0, 1), err
 
-        def no_constant(name):
-            raise AssertionError(f"non-strict JSON constant {name} in {case.name}")
+        def no_constant(name, where=case.name):
+            raise AssertionError(f"non-strict JSON constant {name} in {where}")
 
         json.loads(out, parse_constant=no_constant)
 

@@ -218,10 +218,11 @@ def _pages_check(pdf: _Pdf, case_text: str, fresh: dict, attached: dict) -> tupl
     fresh_pdf = render_pdf_bytes(fresh, case_text, report_date=date)
     mine = _page_texts(PdfReader(io.BytesIO(fresh_pdf)))
     theirs = pdf.page_texts()
-    if len(mine) != len(theirs):
-        return False, (f"the document has {len(theirs)} pages; rendered from its attachments on {date} it has "
-                       f"{len(mine)}")
     differing = [k + 1 for k, (a, b) in enumerate(zip(mine, theirs)) if a != b]
+    if len(mine) != len(theirs):
+        first = f"; the first page that differs is page {differing[0]}" if differing else ""
+        return False, (f"the document has {len(theirs)} pages; rendered from its attachments on {date} it has "
+                       f"{len(mine)}{first}")
     if differing:
         return False, (f"the text of page{'s' if len(differing) > 1 else ''} "
                        f"{', '.join(map(str, differing))} of {len(theirs)} differs from the pages rendered from "
