@@ -3,4 +3,7 @@
 A screening aid only; see SAFETY.md.
 """
 
-__version__ = "0.1.0"
+#: The release. Bumped with every change to a result (a number, a verdict, a message of the JSON) or to
+#: the bytes of a report for the same case and date: a report names it, and `screening verify` renders
+#: the pages again with the version it runs (see DEVELOPERS.md, "Versions").
+__version__ = "0.2.0"

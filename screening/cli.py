@@ -13,6 +13,7 @@ here as before.
 from __future__ import annotations
 
 import argparse
+import contextlib
 import datetime as _dt
 import gc
 import json
@@ -20,7 +21,7 @@ import os
 import sys
 
 from screening import __version__
-from screening.errors import InputError
+from screening.errors import InputError, OutputError
 
 EXIT_WITHIN, EXIT_NOT_WITHIN, EXIT_INPUT = 0, 1, 2
 
@@ -175,13 +176,122 @@ def _ending(argv: list[str] | None) -> None:
         gc.freeze()
 
 
+#: Largest inventory file [bytes] a batch reads (a 100 000-row inventory is about 10 MB).
+MAX_INVENTORY_BYTES = 200 * 1024 * 1024
+
+
+def _check_outputs(args) -> None:
+    """Refuse a bad output target before any work: a directory, a device, a FIFO, an input file, the
+    same file for two outputs, a missing or read-only folder (screening.outputs.files.check_target)."""
+    from screening.outputs.files import check_target
+
+    if args.command == "batch":
+        inputs = (args.inventory, args.defaults)
+        targets = [(p, what) for p, what in ((args.json, "JSON output"), (args.csv, "CSV output"),
+                                             (args.pdf, "PDF report")) if p is not None]
+    elif args.command in ("check", "report"):
+        inputs = (args.case,)
+        out = args.output if args.command == "report" else args.pdf
+        targets = [(out, "report")] if out is not None else []
+    else:
+        return
+    for k, (p, what) in enumerate(targets):
+        check_target(p, what, inputs=inputs, others=[q for j, (q, _) in enumerate(targets) if j != k])
+
+
+def _check_batch_inputs(args) -> None:
+    """An inventory or defaults file must be a regular file of a stated size at most (a device such as
+    /dev/zero, or a FIFO, would be read without end)."""
+    import stat as _stat
+
+    from screening.errors import InputError
+
+    for path, what, limit in ((args.inventory, "inventory", MAX_INVENTORY_BYTES),
+                              (args.defaults, "defaults file", None)):
+        if path is None:
+            continue
+        try:
+            st = os.stat(path)
+        except OSError:
+            continue                 # the reader says what is wrong (not found, unreadable)
+        if _stat.S_ISDIR(st.st_mode):
+            continue
+        if not _stat.S_ISREG(st.st_mode):
+            raise InputError(f"the {what} is not a regular file", file=str(path),
+                             expected="a CSV or .xlsx file" if what == "inventory" else "a TOML file")
+        if limit is None:
+            from screening.inputs.case import MAX_CASE_BYTES
+
+            limit = MAX_CASE_BYTES
+        if st.st_size > limit:
+            raise InputError(f"the {what} is larger than this tool reads", file=str(path),
+                             given=f"{st.st_size} bytes", expected=f"at most {limit // (1024 * 1024)} MB")
+
+
+#: Inventory files below this size [bytes] are read once before the batch starts, for what the batch
+#: itself would not say: a header with no rows, the row of an unclosed quote. (Larger files hold rows.)
+PRECHECK_BYTES = 256 * 1024
+
+
+def _csv_error_row(raw: bytes) -> int | None:
+    """The row (header = 1) of the record a strict CSV reading fails in (an unclosed quote: the row where
+    the quoted cell opens), or None."""
+    import csv
+    import io
+
+    try:
+        text = raw.decode("utf-8-sig")
+    except UnicodeDecodeError:
+        return None
+    first = text.split("\n", 1)[0]
+    delimiter = ";" if first.count(";") > first.count(",") else ","
+    reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter, strict=True)
+    records = 0
+    try:
+        for _ in reader:
+            records += 1
+    except csv.Error:
+        return records + 1
+    return None
+
+
+def _precheck_inventory(args) -> None:
+    """For a small CSV inventory: a header without rows, or a CSV error located at its row."""
+    from screening.inputs.inventory import read_inventory
+
+    path = args.inventory
+    try:
+        if not os.path.isfile(path) or os.path.getsize(path) >= PRECHECK_BYTES or args.sheet is not None:
+            return
+        with open(path, "rb") as fh:
+            raw = fh.read()
+    except OSError:
+        return                       # the batch's reader says what is wrong
+    if raw[:4] == b"PK\x03\x04" or path.lower().endswith((".xlsx", ".xlsm")):
+        return
+    try:
+        inv = read_inventory(path)
+    except InputError as exc:
+        row = _csv_error_row(raw) if exc.row is None and "CSV" in exc.message else None
+        if row is not None:
+            raise InputError(exc.message + " (a quoted cell that is never closed?)", file=exc.file, row=row,
+                             expected="every opening quote closed in the same cell") from None
+        return                       # the batch says it
+    if not inv.rows:
+        raise InputError("the inventory has a header but no rows", file=str(path), row=2,
+                         expected="one row per vessel below the header")
+
+
 def _exit_for(verdict: str) -> int:
     return EXIT_WITHIN if verdict == "within" else EXIT_NOT_WITHIN
 
 
 def run(argv: list[str] | None = None) -> int:
     args = _build().parse_args(argv)
+    _check_outputs(args)
     if args.command == "batch":
+        _check_batch_inputs(args)
+        _precheck_inventory(args)
         from screening.batch import run as run_batch
 
         code = run_batch(args)
@@ -222,9 +332,25 @@ def run(argv: list[str] | None = None) -> int:
     return _exit_for(result["verdict"])
 
 
+def _quiet_stdout() -> None:
+    """After a broken pipe (`screening check … | head`): send what is left of stdout nowhere, so the
+    interpreter's last flush does not complain either."""
+    with contextlib.suppress(OSError, ValueError):
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+
+
 def main(argv: list[str] | None = None) -> None:
+    code = None
     try:
         code = run(argv)
+        sys.stdout.flush()
+    except BrokenPipeError:          # the reader of our output went away: end quietly
+        _quiet_stdout()
+        code = EXIT_NOT_WITHIN if code is None else code
+    except OutputError as exc:
+        print(f"screening: output error: {exc}", file=sys.stderr)
+        code = EXIT_INPUT
     except InputError as exc:
         print(f"screening: input error: {exc}", file=sys.stderr)
         code = EXIT_INPUT

@@ -92,3 +92,8 @@ class NotApplicable(ScreeningError):
         self.value = value
         self.valid_range = valid_range
         super().__init__(f"{model}: {reason}")
+
+
+class OutputError(InputError):
+    """An output file that cannot be written (a refused target, no space, no permission): names the file
+    and the cause. The CLI treats it as bad input: one message, exit code 2, nothing lost."""

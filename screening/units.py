@@ -157,6 +157,88 @@ _EXAMPLES = {
 }
 
 
+@dataclass(frozen=True)
+class Range:
+    """The accepted range of one input quantity, in SI as written (a pressure before its basis is
+    applied; a temperature tolerance as a difference), and the same range in the words a user reads."""
+
+    name: str
+    low: float
+    high: float
+    text: str
+    difference: bool = False   # the value is a difference (temperature tolerance: 2 degC = 2 K)
+    message: str | None = None  # the message for a value outside, where not "<name> out of range"
+
+
+_PRESSURE = Range("pressure", -3e8, 3e8, "at most 3 000 bar (300 MPa, about 43 500 psi) as written")
+_TEMPERATURE = Range("temperature", 73.15, 1273.15, "-200 degC to 1 000 degC (73.15 K to 1 273.15 K)")
+
+#: The range of every input quantity, by kind: the range of the quantity of that kind an inventory's
+#: plain columns hold (and of every quantity of that kind not named in QUANTITY_RANGES). A value outside
+#: is an input error naming the file, the key (or row and column) and the value; so no infinite or
+#: overflowing number ever reaches the screening. Pressures must also be above zero absolute and
+#: temperatures above 0 K; those checks, and the finer ones (a rating above the atmosphere, a relief
+#: setting above it), are the case reader's.
+KIND_RANGES: dict[str, Range] = {
+    "pressure": _PRESSURE,
+    "temperature": _TEMPERATURE,
+    "volume": Range("water capacity", 1e-4, 100.0, "0.1 L to 100 m3"),
+    "mass": Range("fill mass", 0.0, 2e5, "above 0 kg, at most 200 000 kg"),
+    "density": Range("maximum filling ratio", 0.0, 5000.0, "above 0 kg/L, at most 5 kg/L"),
+    "fraction": Range("required margin", 0.0, 0.9, "0 % to 90 %"),
+    "length": Range("elevation", -500.0, 11000.0, "-500 m to 11 000 m"),
+    "speed": Range("wind speed", 0.0, 100.0, "0 m/s to 100 m/s"),
+    "irradiance": Range("irradiance", 0.0, 2000.0, "0 W/m2 to 2 000 W/m2"),
+}
+
+#: Quantities whose range is not their kind's, by (case key, kind). Keys of a [[scenario]] table are
+#: those of [exposure].
+QUANTITY_RANGES: dict[tuple[str, str], Range] = {
+    ("vessel.outside_diameter", "length"): Range("outside diameter", 0.0, 5.0, "above 0 m, at most 5 m"),
+    ("vessel.length", "length"): Range("vessel length", 0.0, 50.0, "above 0 m, at most 50 m"),
+    ("exposure.absorptivity", "fraction"): Range("absorptivity", 0.0, 1.0, "a number from 0 to 1, e.g. 0.6",
+                                                 message="absorptivity must lie between 0 and 1"),
+    ("exposure.emissivity", "fraction"): Range("emissivity", 0.0, 1.0, "a number from 0 to 1, e.g. 0.9",
+                                               message="emissivity must lie between 0 and 1"),
+    # the case reader then asks for a band smaller than the reading
+    ("tolerance.fill_pressure", "fraction"): Range("fill-pressure tolerance", -10.0, 10.0,
+                                                   "at least 0 % and below 100 % of the reading"),
+    ("tolerance.fill_pressure", "pressure"): _PRESSURE,
+    ("tolerance.fill_temperature", "temperature"): Range("fill-temperature tolerance", -100.0, 100.0,
+                                                        "0 K to 100 K", difference=True),
+    ("tolerance.gas_temperature", "temperature"): Range("gas-temperature tolerance", -100.0, 100.0,
+                                                       "0 K to 100 K", difference=True),
+}
+_SCENARIO_KEY = re.compile(r"^scenario\[\d+\]\.")
+
+
+def range_for(kind: str, key: str | None = None) -> Range:
+    """The accepted range of the quantity `key` (a case key, e.g. 'vessel.water_capacity') of `kind`."""
+    if key:
+        found = QUANTITY_RANGES.get((_SCENARIO_KEY.sub("exposure.", key), kind))
+        if found is not None:
+            return found
+    return KIND_RANGES[kind]
+
+
+def _check_range(reading: "Reading", where: dict) -> None:
+    rng = range_for(reading.kind, where.get("key"))
+    value = reading.si_difference() if rng.difference else reading.si()
+    if math.isfinite(value) and rng.low <= value <= rng.high:
+        return
+    if reading.kind == "temperature" and not rng.difference and math.isfinite(value) and value <= 0.0:
+        raise InputError("temperature at or below absolute zero", given=reading.text,
+                         expected="a temperature above 0 K; " + rng.text, **where)
+    if rng.message is not None:
+        raise InputError(rng.message, given=reading.text, expected=rng.text, **where)
+    if rng.low >= 0.0 and math.isfinite(value) and value <= 0.0:
+        if reading.kind in ("fraction", "speed", "irradiance"):
+            raise InputError(f"{rng.name} cannot be negative", given=reading.text, expected=rng.text, **where)
+        raise InputError(f"{reading.kind} must be above zero", given=reading.text,
+                         expected=f"a positive {reading.kind}: {rng.text}", **where)
+    raise InputError(f"{rng.name} out of range", given=reading.text, expected=rng.text, **where)
+
+
 def expected_for(kind: str) -> str:
     """Plain words for what an input of `kind` should look like."""
     return _EXAMPLES[kind]
@@ -236,7 +318,9 @@ def parse(text: object, kind: str, *, pressure_basis: str | None = None, **where
                 given=str(text), expected=f"e.g. '{number:g} {spec.label}(g)' or '{number:g} {spec.label}(a)', "
                 "or set pressure_basis = \"gauge\" or \"absolute\" at the top of the case", **where)
         spec = UnitSpec(f"{spec.label}({pressure_basis[0]})", "pressure", spec.pint_name, pressure_basis)
-    return Reading(str(text), number, spec)
+    reading = Reading(str(text), number, spec)
+    _check_range(reading, where)
+    return reading
 
 
 def to_absolute_pressure(reading: Reading, atmospheric_pa: float) -> float:

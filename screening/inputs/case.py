@@ -22,6 +22,12 @@ DEFAULT_REQUIRED_MARGIN = 0.10
 #: Range accepted for a stated atmospheric pressure [Pa] (absolute): from high mountain sites to a deep
 #: low-lying site in a high; anything outside is taken for a typing error.
 ATMOSPHERIC_PRESSURE_RANGE_PA = (30e3, 110e3)
+#: Largest case file [bytes] read (a case file is a few kilobytes); a larger file, or a device that
+#: never ends (/dev/zero), is refused before it fills the memory.
+MAX_CASE_BYTES = 10 * 1024 * 1024
+#: Most [[scenario]] tables in one case: each is screened with every model, and more than this is
+#: taken for a generated or mistaken file rather than a set of exposures someone means.
+MAX_SCENARIOS = 20
 
 # Allowed keys per table: anything else is an input error (a misspelt key must not be ignored).
 _SCHEMA: dict[str, set[str]] = {
@@ -374,6 +380,9 @@ def parse_case_data(data: dict, source: str, text: str) -> Case:
                         orientation, key=table)
 
     scenario_tables = data.get("scenario", [])
+    if len(scenario_tables) > MAX_SCENARIOS:
+        raise r.err("too many scenarios", "scenario", given=f"{len(scenario_tables)} [[scenario]] tables",
+                    expected=f"at most {MAX_SCENARIOS} scenarios in one case")
     if scenario_tables:
         scenarios = []
         names = set()
@@ -474,13 +483,18 @@ def load_case(path: str | Path) -> Case:
     """Read a case file from disk. A missing or unreadable file is an InputError."""
     p = Path(path)
     try:
-        raw = p.read_bytes()
+        with p.open("rb") as fh:
+            raw = fh.read(MAX_CASE_BYTES + 1)
     except FileNotFoundError:
         raise InputError("case file not found", file=str(path)) from None
     except IsADirectoryError:
         raise InputError("expected a case file, got a directory", file=str(path)) from None
     except OSError as exc:
         raise InputError(f"cannot read the case file: {exc.strerror}", file=str(path)) from None
+    if len(raw) > MAX_CASE_BYTES:
+        raise InputError("the case file is larger than this tool reads", file=str(path),
+                         given=f"more than {MAX_CASE_BYTES} bytes",
+                         expected=f"a case file of at most {MAX_CASE_BYTES // (1024 * 1024)} MB")
     try:
         text = raw.decode("utf-8-sig")
     except UnicodeDecodeError:

@@ -355,7 +355,7 @@ def render_batch_report(results: list[dict], out_path, *, source: str, all_detai
 
     `standby`, where given, is a `parallel.Standby` that has imported the layout engine while the batch
     screened (`screening.batch.RENDER_MODULES`): the document is laid out there. If it gives no answer, it is laid out here."""
-    from screening.batch import atomic_writer, check_target
+    from screening.outputs.files import atomic_writer, check_target
 
     check_target(out_path, "PDF report")
     pdf = None

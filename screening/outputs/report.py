@@ -25,7 +25,6 @@ import hashlib
 import json
 import mimetypes
 import os
-import tempfile
 from pathlib import Path, PurePath
 from urllib.parse import unquote, urlsplit
 from urllib.request import url2pathname
@@ -34,7 +33,7 @@ import jinja2
 from markupsafe import Markup
 
 from screening.constants import R
-from screening.errors import InputError
+from screening.outputs.files import check_target, write_bytes
 from screening.outputs.plot import (
     CONDENSED_PHASES,
     drawable_models,
@@ -881,7 +880,7 @@ def _result_name(result: dict) -> str:
 
 def result_json(result: dict) -> str:
     """The result as the JSON text that travels inside the PDF (stable key order)."""
-    return json.dumps(result, sort_keys=True, indent=2, ensure_ascii=False) + "\n"
+    return json.dumps(result, sort_keys=True, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
 
 
 # ----------------------------------------------------------------------------- rendering
@@ -906,22 +905,6 @@ def _render_html(view: dict, folder: Path) -> str:
 def render_html(result: dict, case_text: str, report_date: _dt.date) -> str:
     """The report's HTML (useful for looking at the layout in a browser)."""
     return _render_html(build_view(result, case_text, report_date), templates_dir())
-
-
-def _check_target(out_path: Path) -> Path:
-    target = Path(out_path)
-    if target.exists() and target.is_dir():
-        raise InputError("the report target is a directory", given=str(target), expected="a file path ending in .pdf")
-    parent = target.parent if str(target.parent) else Path(".")
-    if not parent.exists():
-        raise InputError("the folder for the report does not exist", given=str(target))
-    if not parent.is_dir():
-        raise InputError("the report's folder is not a folder", given=str(target))
-    if target.exists() and not os.access(target, os.W_OK):
-        raise InputError("the report target is not writable", given=str(target))
-    if not os.access(parent, os.W_OK | os.X_OK):
-        raise InputError("the report's folder is not writable", given=str(target))
-    return target
 
 
 def render_pdf_bytes(result: dict, case_text: str, *, report_date: _dt.date) -> bytes:
@@ -962,15 +945,6 @@ def render_pdf_bytes(result: dict, case_text: str, *, report_date: _dt.date) -> 
         raise ReportRenderError(f"{exc}: {cause}" if cause else str(exc)) from cause
 
 
-def _file_mode(target: Path) -> int:
-    """Keep an earlier report's mode; a new file gets 0o666 less the umask, like open() would."""
-    with contextlib.suppress(OSError):
-        return target.stat().st_mode & 0o777
-    mask = os.umask(0)
-    os.umask(mask)
-    return 0o666 & ~mask
-
-
 def render_report(result: dict, case_text: str, out_path: str | os.PathLike, *, report_date: _dt.date) -> Path:
     """Write the PDF report of `result` (with `case_text` attached) to `out_path`; return the path.
 
@@ -981,26 +955,7 @@ def render_report(result: dict, case_text: str, out_path: str | os.PathLike, *, 
         raise TypeError("report_date must be a datetime.date")
     if isinstance(report_date, _dt.datetime):
         report_date = report_date.date()
-    target = _check_target(Path(out_path))
+    target = check_target(out_path, "report")
     pdf = render_pdf_bytes(result, case_text, report_date=report_date)
-    tmp_name = None
-    try:
-        try:
-            fd, tmp_name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=target.parent or ".")
-        except OSError as exc:
-            raise InputError(f"cannot write the report: {exc.strerror or exc}", given=str(target)) from None
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(pdf)
-            fh.flush()
-            os.fsync(fh.fileno())
-        os.chmod(tmp_name, _file_mode(target))
-        try:
-            os.replace(tmp_name, target)
-        except OSError as exc:
-            raise InputError(f"cannot write the report: {exc.strerror or exc}", given=str(target)) from None
-        tmp_name = None
-    finally:
-        if tmp_name is not None:
-            with contextlib.suppress(OSError):
-                os.unlink(tmp_name)
+    write_bytes(target, pdf, "report")
     return target
