@@ -357,7 +357,7 @@ def run_batch(inventory: str, workdir: Path) -> dict:
     """`screening batch INV --json --csv --date` in a fresh process run in `workdir`, with the inventory's
     path relative to it (messages and sources name the file as given): exit code, JSON (parsed), CSV text."""
     out_json, out_csv = workdir / "out.json", workdir / "out.csv"
-    env = dict(os.environ, PYTHONPATH=str(ROOT))
+    env = dict(os.environ, PYTHONPATH=os.pathsep.join(filter(None, [str(ROOT), os.environ.get("PYTHONPATH")])))
     done = subprocess.run([sys.executable, "-m", "screening.cli", "batch", inventory, "--json", "out.json",
                            "--csv", "out.csv", "--date", BATCH_DATE, "--quiet"], cwd=workdir, env=env,
                           capture_output=True, text=True)
