@@ -3,13 +3,30 @@
 `InputError` is what the CLI turns into one message and exit code 2.
 `NotApplicable` is what a model raises (or records) outside its validity range;
 the screening turns it into "not applicable" with the reason, never a number.
+Every error here pickles with its message and fields (a worker process can raise it).
 """
 
 from __future__ import annotations
 
 
+def _rebuild(cls: type, args: tuple, fields: dict) -> "ScreeningError":
+    """Unpickle a project error: the same class, arguments and fields, without calling ``__init__``
+    (whose signature differs from the exception's ``args``)."""
+    exc = cls.__new__(cls, *args)
+    exc.args = args
+    exc.__dict__.update(fields)
+    return exc
+
+
 class ScreeningError(ValueError):
-    """Base class of the package's own errors."""
+    """Base class of the package's own errors.
+
+    Every subclass pickles with its message and fields (``__reduce__`` below), so an error raised in a
+    worker process comes back to the caller as itself, whatever the subclass's ``__init__`` takes.
+    """
+
+    def __reduce__(self):
+        return _rebuild, (type(self), self.args, dict(self.__dict__))
 
 
 class InputError(ScreeningError):
