@@ -204,8 +204,6 @@ def _check_batch_inputs(args) -> None:
     /dev/zero, or a FIFO, would be read without end)."""
     import stat as _stat
 
-    from screening.errors import InputError
-
     for path, what, limit in ((args.inventory, "inventory", MAX_INVENTORY_BYTES),
                               (args.defaults, "defaults file", None)):
         if path is None:
@@ -272,7 +270,7 @@ def _precheck_inventory(args) -> None:
     try:
         inv = read_inventory(path)
     except InputError as exc:
-        row = _csv_error_row(raw) if exc.row is None and "CSV" in exc.message else None
+        row = _csv_error_row(raw) if exc.row is None and exc.message.startswith("not a readable CSV") else None
         if row is not None:
             raise InputError(exc.message + " (a quoted cell that is never closed?)", file=exc.file, row=row,
                              expected="every opening quote closed in the same cell") from None
@@ -347,7 +345,7 @@ def main(argv: list[str] | None = None) -> None:
         sys.stdout.flush()
     except BrokenPipeError:          # the reader of our output went away: end quietly
         _quiet_stdout()
-        code = EXIT_NOT_WITHIN if code is None else code
+        code = EXIT_NOT_WITHIN if code is None else code   # cut short before its verdict was out: not 0
     except OutputError as exc:
         print(f"screening: output error: {exc}", file=sys.stderr)
         code = EXIT_INPUT
