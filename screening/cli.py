@@ -204,8 +204,6 @@ def _check_batch_inputs(args) -> None:
     /dev/zero, or a FIFO, would be read without end)."""
     import stat as _stat
 
-    from screening.errors import InputError
-
     for path, what, limit in ((args.inventory, "inventory", MAX_INVENTORY_BYTES),
                               (args.defaults, "defaults file", None)):
         if path is None:
@@ -256,23 +254,22 @@ def _csv_error_row(raw: bytes) -> int | None:
 
 
 def _precheck_inventory(args) -> None:
-    """For a small CSV inventory: a header without rows, or a CSV error located at its row."""
+    """For a small inventory: a header without rows, or a CSV error located at its row."""
     from screening.inputs.inventory import read_inventory
 
     path = args.inventory
     try:
-        if not os.path.isfile(path) or os.path.getsize(path) >= PRECHECK_BYTES or args.sheet is not None:
+        if not os.path.isfile(path) or os.path.getsize(path) >= PRECHECK_BYTES:
             return
         with open(path, "rb") as fh:
             raw = fh.read()
     except OSError:
         return                       # the batch's reader says what is wrong
-    if raw[:4] == b"PK\x03\x04" or path.lower().endswith((".xlsx", ".xlsm")):
-        return
     try:
-        inv = read_inventory(path)
+        inv = read_inventory(path, sheet=args.sheet)
     except InputError as exc:
-        row = _csv_error_row(raw) if exc.row is None and "CSV" in exc.message else None
+        csv_error = exc.row is None and exc.message.startswith("not a readable CSV")
+        row = _csv_error_row(raw) if csv_error else None
         if row is not None:
             raise InputError(exc.message + " (a quoted cell that is never closed?)", file=exc.file, row=row,
                              expected="every opening quote closed in the same cell") from None
@@ -347,7 +344,7 @@ def main(argv: list[str] | None = None) -> None:
         sys.stdout.flush()
     except BrokenPipeError:          # the reader of our output went away: end quietly
         _quiet_stdout()
-        code = EXIT_NOT_WITHIN if code is None else code
+        code = EXIT_NOT_WITHIN if code is None else code   # cut short before its verdict was out: not 0
     except OutputError as exc:
         print(f"screening: output error: {exc}", file=sys.stderr)
         code = EXIT_INPUT

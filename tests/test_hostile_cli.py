@@ -142,3 +142,13 @@ def test_the_version_follows_the_releases_and_the_report_names_it(capsys):
     result = screen_text(CASE, "case.toml")
     assert result["tool_version"] == screening.__version__
     assert f"screening {screening.__version__}" in render_html(result, CASE, __import__("datetime").date(2026, 12, 1))
+
+
+def test_a_header_only_workbook_says_it_has_no_rows(tmp_path, capsys):
+    openpyxl = pytest.importorskip("openpyxl")
+    wb = openpyxl.Workbook()
+    wb.active.append(HEAD.strip().split(","))
+    path = tmp_path / "inv.xlsx"
+    wb.save(path)
+    code, _, err = cli(capsys, "batch", str(path), "--quiet")
+    assert code == 2 and "no rows" in err and str(path) in err
