@@ -400,7 +400,7 @@ class _Outputs:
             self.csv = CsvTable(fh, self.headers, self.reg.delimiter, self.reg.decimal)
         if a.xlsx:
             self._xlsx_fh = self.stack.enter_context(atomic_writer(a.xlsx, "XLSX output", binary=True))
-            self.xlsx = XlsxTable(self.headers, self.width)
+            self.xlsx = XlsxTable(self.headers, self.width, self.reg.decimal)
         if a.jsonl:
             self.jsonl = self.stack.enter_context(atomic_writer(a.jsonl, "JSON Lines output"))
         if a.json:

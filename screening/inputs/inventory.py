@@ -436,12 +436,32 @@ def row_case(inv: Inventory, row_number: int, cells: list[str], defaults: dict |
     """The Case of one row; an InputError names the file, the row and the column (not the case key)."""
     try:
         data, text = row_data(inv, cells, defaults)
-        return parse_case_data(data, inv.source, text)
+        case = parse_case_data(data, inv.source, text)
+        _check_finite(case, data)
+        return case
     except InputError as exc:
         raise locate(exc, inv, row_number, defaults) from None
     except (OverflowError, ArithmeticError) as exc:     # a value beyond the range of numbers
         raise InputError(f"a value is out of range ({exc})", file=inv.source, row=row_number,
                          expected="values of a real vessel") from None
+
+
+#: Case fields in SI and the key they are read from.
+_FIELDS = {"water_capacity_m3": "vessel.water_capacity", "rated_pressure_pa": "vessel.rated_pressure",
+           "relief_set_pressure_pa": "vessel.relief_set_pressure", "max_filling_ratio_kg_m3": "vessel.max_filling_ratio",
+           "fill_pressure_pa": "fill.pressure", "fill_temperature_k": "fill.temperature", "fill_mass_kg": "fill.mass",
+           "ambient_max_k": "exposure.ambient_max", "gas_temperature_k": "exposure.gas_temperature",
+           "outside_diameter_m": "vessel.outside_diameter", "length_m": "vessel.length"}
+
+
+def _check_finite(case: Case, data: dict) -> None:
+    """A value whose number is finite as written but not once converted (1e308 psia) is refused here."""
+    for name, key in _FIELDS.items():
+        v = getattr(case, name, None)
+        if isinstance(v, float) and not math.isfinite(v):
+            table, k = key.split(".")
+            raise InputError("the value is beyond the range of numbers once converted to SI units", key=key,
+                             given=(data.get(table) or {}).get(k), expected="a value of a real vessel")
 
 
 def locate(exc: InputError, inv: Inventory, row_number: int, defaults: dict | None = None) -> InputError:

@@ -17,6 +17,7 @@ import csv
 import io
 import json
 import math
+import re
 
 from screening.cautions import ASSUMPTIONS, CAUTION
 from screening.units import format_pressure, format_temperature, pressure_in, temperature_in
@@ -105,7 +106,7 @@ class CsvTable:
 class XlsxTable:
     """The XLSX output (openpyxl, write-only: rows go to disk as they come)."""
 
-    def __init__(self, headers: list[str], n_input: int) -> None:
+    def __init__(self, headers: list[str], n_input: int, decimal: str = ".") -> None:
         from openpyxl import Workbook
         from openpyxl.cell import WriteOnlyCell
         from openpyxl.styles import Font, PatternFill
@@ -115,6 +116,8 @@ class XlsxTable:
         self.ws = self.wb.create_sheet("results")
         self.ws.freeze_panes = "A2"
         self.width = len(headers)
+        self.n_input = n_input
+        self._number = re.compile(r"^-?(?:0|[1-9]\d{0,14})(?:[%s]\d{1,15})?$" % re.escape(decimal))
         self.verdict_col = headers.index("verdict")
         self.fills = {v: PatternFill("solid", start_color=c, end_color=c) for v, c in SHADES.items()}
         bold = Font(bold=True)
@@ -134,6 +137,10 @@ class XlsxTable:
             raise InputError("the XLSX output holds at most 1 048 575 rows", given="more rows",
                              expected="--csv or --jsonl for a register of this size")
         out = list(values)
+        for j in range(1, self.n_input + 1):      # the input's plain numbers as numbers
+            c = out[j]
+            if isinstance(c, str) and c and self._number.match(c):
+                out[j] = float(c.replace(",", "."))
         v = out[self.verdict_col]
         cell = self._Cell(self.ws, value=v)
         if v in self.fills:
