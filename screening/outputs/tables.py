@@ -167,7 +167,10 @@ class XlsxTable:
 
 def json_line(result: dict) -> str:
     """One JSON Lines record: the full result (non-finite numbers as null)."""
-    return json.dumps(_json_safe(result), ensure_ascii=False, allow_nan=False)
+    try:
+        return json.dumps(result, ensure_ascii=False, allow_nan=False)
+    except ValueError:          # a non-finite number somewhere: written as null
+        return json.dumps(_json_safe(result), ensure_ascii=False, allow_nan=False)
 
 
 def _json_safe(x):
