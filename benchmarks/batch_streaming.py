@@ -7,7 +7,7 @@ benchmarks/batch_inventory.py, plus a column of the user's own), then runs in a 
 * `screening batch INV.csv --csv OUT.csv --quiet`
 * `screening batch INV.csv --jsonl OUT.jsonl --quiet`
 and prints the wall time, the rows per second, the peak resident memory of the whole process tree
-(the command and its workers, sampled from /proc every 0.1 s) and of its largest process, and the
+(the command and its workers, sampled from /proc every 0.1 s), the CPU time of them all and of its largest process, and the
 output size. Memory that does not grow from 100 000 to 1 000 000 rows is what "bounded" means here;
 the projection to 10^7 rows is time x 10 at the same memory. Target: 10 million rows in no more
 memory than 100 000. Plain Python, Linux (/proc).
@@ -16,6 +16,7 @@ memory than 100 000. Plain Python, Linux (/proc).
 from __future__ import annotations
 
 import os
+import resource
 import subprocess
 import sys
 import tempfile
@@ -53,8 +54,11 @@ def _tree(pid: int) -> list[int]:
     return out
 
 
-def measure(args: list[str]) -> tuple[float, float, float]:
-    """(wall time [s], peak RSS of the process tree [MiB], peak RSS of one process [MiB])."""
+def measure(args: list[str]) -> tuple[float, float, float, float]:
+    """(wall time [s], CPU time of the command and its workers [s], peak RSS of the process tree [MiB],
+    peak RSS of one process [MiB])."""
+    ru = resource.getrusage(resource.RUSAGE_CHILDREN)
+    cpu0 = ru.ru_utime + ru.ru_stime
     t0 = time.perf_counter()
     proc = subprocess.Popen([sys.executable, "-m", "screening.cli", *args], cwd=ROOT, env=ENV,
                             stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
@@ -68,12 +72,13 @@ def measure(args: list[str]) -> tuple[float, float, float]:
     err = proc.stderr.read().decode()
     if proc.returncode not in (0, 1):
         raise SystemExit(f"batch failed ({proc.returncode}): {err[-2000:]}")
-    return dt, peak_tree / 1024.0, peak_one / 1024.0
+    ru = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return dt, ru.ru_utime + ru.ru_stime - cpu0, peak_tree / 1024.0, peak_one / 1024.0
 
 
 def main() -> None:
     sizes = [int(a) for a in sys.argv[1:]] or [100_000, 1_000_000]
-    print(f"{'rows':>9} {'output':>6} {'time [s]':>9} {'rows/s':>8} {'tree RSS [MiB]':>15} "
+    print(f"{'rows':>9} {'output':>6} {'time [s]':>9} {'CPU [s]':>8} {'rows/s':>8} {'tree RSS [MiB]':>15} "
           f"{'largest [MiB]':>14} {'out [MB]':>9}")
     with tempfile.TemporaryDirectory() as tmp:
         tmp = Path(tmp)
@@ -82,9 +87,9 @@ def main() -> None:
             inventory(n, inv)
             for kind, flag in (("csv", "--csv"), ("jsonl", "--jsonl")):
                 out = tmp / f"out.{kind}"
-                dt, tree, one = measure(["batch", str(inv), flag, str(out), "--quiet"])
+                dt, cpu, tree, one = measure(["batch", str(inv), flag, str(out), "--quiet"])
                 size = out.stat().st_size / 1e6
-                print(f"{n:>9} {kind:>6} {dt:>9.1f} {n / dt:>8.0f} {tree:>15.0f} {one:>14.0f} {size:>9.0f}",
+                print(f"{n:>9} {kind:>6} {dt:>9.1f} {cpu:>8.1f} {n / dt:>8.0f} {tree:>15.0f} {one:>14.0f} {size:>9.0f}",
                       flush=True)
                 out.unlink()
             inv.unlink()
