@@ -197,9 +197,7 @@ def run(argv: list[str] | None = None) -> int:
     if args.command == "batch":
         from screening.batch import run as run_batch
 
-        code = run_batch(args)
-        _ending(argv)
-        return code
+        return run_batch(args)
     if args.command == "template":
         from screening.outputs.templates import write_template
 
