@@ -148,6 +148,7 @@ class Register:
             self.kind = "xlsx"
             self.delimiter = ","
             self.decimal = decimal or "."
+            self._read_commas = self.decimal == ","
             header_n, header = self._open_xlsx(sheet)
         else:
             if sheet is not None:
@@ -164,7 +165,8 @@ class Register:
             first = head.decode("utf-8-sig", "replace").split("\n", 1)[0]
             counts = {d: first.count(d) for d in (",", ";", "\t")}
             self.delimiter = max(counts, key=lambda d: (counts[d], d == ","))
-            self.decimal = decimal or ("," if self.delimiter == ";" else ".")
+            self.decimal = decimal or self._sniff_decimal(head.decode("utf-8-sig", "replace"))
+            self._read_commas = decimal == "," or (decimal is None and self.delimiter == ";")
             self._csv = self._csv_rows()
             header_n, header = None, None
             for n, row in self._csv:
@@ -180,13 +182,22 @@ class Register:
             raise _fail(f"the header has {len(header):,} columns", self.source, row=header_n,
                         expected=f"at most {MAX_COLUMNS} columns")
         self.header_row = header_n
-        self.columns, problems = match_header([_cell_text(h) for h in header], self.decimal == ",")
+        self.columns, problems = match_header([_cell_text(h) for h in header], self._read_commas)
         if problems:
             where = f" (sheet '{self.sheet}')" if self.sheet else ""
             raise _fail(f"the header row{where} has {len(problems)} problem{'s' if len(problems) > 1 else ''}: "
                         + "; ".join(problems), self.source, row=header_n,
                         expected="column names as listed in the README (accepted spellings), units in "
                         "brackets: 'Water capacity (L)'")
+
+    def _sniff_decimal(self, head: str) -> str:
+        """The decimal mark of a CSV whose `--decimal` is not given: "." unless the separator is ";" and
+        the first rows write numbers with a decimal comma (or no decimal numbers at all)."""
+        if self.delimiter != ";":
+            return "."
+        commas = len(re.findall(r"(?:^|;)\s*[+-]?\d+,\d", head, re.M))
+        points = len(re.findall(r"(?:^|;)\s*[+-]?\d+\.\d", head, re.M))
+        return "." if points > commas else ","
 
     # -- reading
     def _csv_rows(self) -> Iterator[tuple[int, list[str]]]:
