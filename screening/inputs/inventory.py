@@ -241,6 +241,7 @@ class Register:
                         if sheet is not None or is_header(row):
                             self.sheet = name
                             self._xlsx_rows = (rows, i + 1)
+                            self._wb = wb
                             return i + 1, row
                         break
             if sheet is not None:
@@ -248,20 +249,23 @@ class Register:
             raise _fail("no sheet has a header row", self.source, given=", ".join(wb.names),
                         expected="a sheet whose first row names the columns, with an 'id' column; "
                         "choose it with --sheet NAME")
-        finally:
+        except BaseException:
             wb.close()
+            raise
 
     def rows(self) -> Iterator[tuple[int, list[str]]]:
         """The rows after the header that hold anything, with their spreadsheet row numbers."""
         width = len(self.columns)
         if self.kind == "xlsx":
-            rows, start = self._xlsx_rows
+            rows, n = self._xlsx_rows
             self._xlsx_rows = None
-            for i in range(start, len(rows)):
-                row = rows[i]
-                rows[i] = None               # dropped as it is read
-                if any(c is not None and str(c).strip() for c in row):
-                    yield i + 1, _checked(row, width)
+            try:
+                for row in rows:
+                    n += 1
+                    if any(c is not None and str(c).strip() for c in row):
+                        yield n, _checked(row, width)
+            finally:
+                self._wb.close()
             return
         for n, row in self._csv:
             if any(c.strip() for c in row):

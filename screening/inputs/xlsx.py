@@ -151,8 +151,10 @@ class Workbook:
         self._strings_checked = False
         self._book = None
 
-    def rows(self, name: str) -> list[list]:
-        """Every row of the sheet `name` as Python values, after the checks above."""
+    def rows(self, name: str):
+        """The rows of the sheet `name` as lists of Python values, from the sheet's first row (empty rows
+        included, so that the n-th row is the sheet's row n), after the checks above. The cells stay in
+        calamine's compact grid; each row becomes Python objects only as it is read."""
         part = dict(self.parts)[name]
         if not self._strings_checked:
             if "xl/sharedStrings.xml" in self._zip.namelist():
@@ -169,7 +171,7 @@ class Workbook:
             if self._book is None:
                 self._book = CalamineWorkbook.from_path(str(self.path))
             sheet = self._book.get_sheet_by_name(name)
-            return sheet.to_python(skip_empty_area=False)
+            return sheet.iter_rows()
         except Exception as exc:  # calamine's own errors: a damaged workbook
             raise InputError(f"not a readable .xlsx workbook ({exc.__class__.__name__}: {exc})",
                              file=self.source) from None
