@@ -10,6 +10,7 @@ import datetime
 import io
 import json
 import os
+import re
 import signal
 import zipfile
 
@@ -207,8 +208,10 @@ def test_hostile_workbooks_are_refused_before_memory_grows(tmp_path):
     with pytest.raises(InputError, match="spans 1,048,576 rows by 16,384 columns"):
         read_inventory(far)
     # a declared dimension of the whole sheet, with the cells where they are: read as it is
-    dim = _rewrite_sheet(base, tmp_path / "dim.xlsx", lambda s: s.replace("<dimension ref=\"A1:G2\"",
-                                                                           "<dimension ref=\"A1:XFD1048576\""))
+    dim = _rewrite_sheet(base, tmp_path / "dim.xlsx", lambda s: re.sub(r'<dimension ref="[^"]*"',
+                                                                        '<dimension ref="A1:XFD1048576"', s))
+    with zipfile.ZipFile(dim) as z:
+        assert b'ref="A1:XFD1048576"' in z.read("xl/worksheets/sheet1.xml")
     assert len(read_inventory(dim).rows) == 1
     # one cell of 300 MB of text (compresses to a few hundred KB)
     with zipfile.ZipFile(base) as z:
