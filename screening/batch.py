@@ -1,35 +1,58 @@
-"""`screening batch INVENTORY`: screen every row of an inventory, lose none.
+"""`screening batch INVENTORY`: screen every row of an inventory, lose none, in bounded memory.
 
-Every input row appears in every output, in input order, with its spreadsheet row number (header =
-row 1). A row that cannot be read is an ``input-error`` row naming the row, the column, the value and
-what was expected; the others go on. Exit 0 only if every row is ``within``; 2 only if the file itself
-cannot be read; else 1.
+The batch streams: it reads a chunk of rows (:data:`CHUNK_ROWS`), screens it (in worker processes of a
+``concurrent.futures`` pool where there are several cores and enough rows), writes its lines to every
+output and drops it. Only the counts, the worst rows (for the terminal) and, for a PDF, each row's
+short result are kept. Chunks are fixed by the input alone, and every row is screened on its own, so
+the outputs are the same whatever the number of workers.
+
+Every input row appears in every output, in input order (or, with ``--sort severity``, worst first),
+with its spreadsheet row number (header = row 1). A row that cannot be read is an ``input-error`` row
+naming the row, the column, the value and what was expected; the others go on. Exit 0 only if every
+row is ``within``; 2 only if the file itself cannot be read; else 1.
 """
 
 from __future__ import annotations
 
-import csv
-import io
+import heapq
 import json
 import math
 import os
+import pickle
 import sys
+import tempfile
+
+import numpy as np
 
 from screening.errors import InputError
-from screening.inputs.inventory import Inventory, load_defaults, read_inventory, row_case
+from screening.inputs.inventory import Inventory, load_defaults, open_inventory, read_inventory, row_case
 from screening.outputs.files import atomic_writer, check_target
+from screening.outputs.tables import (
+    SEVERITY,
+    CsvTable,
+    XlsxTable,
+    file_units,
+    json_line,
+    result_headers,
+    result_values,
+)
 from screening.units import format_percent, format_pressure, format_temperature
 
 EXIT_WITHIN, EXIT_NOT_WITHIN, EXIT_INPUT = 0, 1, 2
-ORDER = ("input-error", "out-of-scope", "over", "low-margin", "within")
+#: The verdicts, most severe first: the order of the counts, of the terminal table and of --sort severity.
+ORDER = SEVERITY
 _RANK = {v: i for i, v in enumerate(ORDER)}
-#: Keys of a result kept in the JSON output (the result's shared or bulky parts are left out).
-_DROP = ("curves", "cautions")
-#: Rows above which a progress bar is shown (on a terminal).
-PROGRESS_MIN_ROWS = 2000
+#: Keys of a result left out of the JSON outputs (shared or bulky parts).
+_DROP = ("curves", "cautions", "phase_diagram")
+#: Rows screened as one piece of work (the unit of streaming and of the worker pool).
+CHUNK_ROWS = 5000
+#: Worst rows kept for the terminal table (all rows where there are at most this many).
+TERMINAL_ROWS = 200
+#: Rows sorted in memory before they are spilled to a temporary file (--sort severity).
+SORT_RUN_ROWS = 100_000
 
 
-# ----------------------------------------------------------------------------- running
+# ----------------------------------------------------------------------------- one chunk
 
 def error_row(row: int, exc: InputError, case_id: str | None) -> dict:
     return {"row": row, "id": case_id, "verdict": "input-error", "reasons": [str(exc)], "warnings": [],
@@ -38,32 +61,26 @@ def error_row(row: int, exc: InputError, case_id: str | None) -> dict:
             "peak_pressure_pa": None, "margin_fraction": None, "governing_model": None, "limits": None}
 
 
-def _progress(total: int, quiet: bool, desc: str):
-    if quiet or total < PROGRESS_MIN_ROWS or not sys.stderr.isatty():
-        return None
-    from tqdm import tqdm
-
-    return tqdm(total=total, desc=desc, unit="row", file=sys.stderr, leave=False)
+def _id_column(inv: Inventory) -> int:
+    return next(i for i, c in enumerate(inv.columns) if c.key == "id")
 
 
 class BatchRun:
-    """Every row of an inventory screened, in input order.
+    """Every row of an inventory (or of one chunk of it) screened, in input order.
 
     ``results[i]`` is row i's result with its "row": the slim part the table, CSV and counts use for rows
     of the vectorised path (see :func:`screening.vector.slim`), the full result for the rest and the
     ``input-error`` rows. ``full(i)`` gives row i's full result dict (built on demand)."""
 
-    def __init__(self, inv: Inventory, defaults: dict | None = None, quiet: bool = True,
-                 plain=None) -> None:
+    def __init__(self, inv: Inventory, defaults: dict | None = None, quiet: bool = True, plain=None) -> None:
         from screening.inputs.columns import read_plain
         from screening.vector import PlainScreening, screen_cases
 
         self.inv = inv
-        id_col = next(i for i, c in enumerate(inv.columns) if c.name == "id")
-        if plain is None:       # (else read already: see _early_reader)
+        id_col = _id_column(inv)
+        if plain is None:
             plain = read_plain(inv, defaults)
-        bar = _progress(len(inv.rows), quiet, "screening")
-        self._plain = PlainScreening(plain, progress=(bar.update if bar else None))
+        self._plain = PlainScreening(plain)
         slots: list[dict | None] = [None] * len(inv.rows)
         self._plain_at: dict[int, int] = {}
         for j, pos in enumerate(plain.index):
@@ -81,17 +98,9 @@ class BatchRun:
             except InputError as exc:
                 cid = cells[id_col].strip() if id_col < len(cells) and cells[id_col].strip() else None
                 slots[pos] = error_row(n, exc, cid)
-            if bar:
-                bar.update(1)
-        self._rest: dict[int, dict] = {}
-        for pos, case, r in zip(where, cases, screen_cases(cases, progress=(bar.update if bar else None))):
+        for pos, case, r in zip(where, cases, screen_cases(cases)):
             slots[pos] = self._placed(pos, r, case.id)
-            if r.get("verdict") != "input-error":
-                self._rest[pos] = slots[pos]
-        if bar:
-            bar.close()
         self.results: list[dict] = slots  # type: ignore[assignment]
-        _duplicates(self.results)
 
     def _placed(self, pos: int, r: dict, case_id: str | None) -> dict:
         n = self.inv.rows[pos][0]
@@ -118,23 +127,90 @@ class BatchRun:
         return f
 
 
-def run_inventory(inv: Inventory, defaults: dict | None = None, quiet: bool = True) -> list[dict]:
-    """Full results of every row of the inventory, in input order, each with its "row"."""
-    run = BatchRun(inv, defaults, quiet)
-    return [run.full(i) for i in range(len(run.results))]
+def _screened(inv: Inventory, defaults: dict | None) -> tuple[list[dict], object]:
+    """(results, full) of a chunk; a row whose screening raises is screened alone, and if it still raises,
+    it becomes an input-error row: a bad row never takes its chunk with it."""
+    try:
+        run = BatchRun(inv, defaults)
+        return run.results, run.full
+    except (InputError, ArithmeticError, ValueError):
+        if len(inv.rows) == 1:
+            raise
+    results, fulls = [], []
+    id_col = _id_column(inv)
+    for n, cells in inv.rows:
+        one = Inventory(inv.source, inv.columns, [(n, cells)], inv.delimiter, inv.decimal, inv.sheet)
+        try:
+            run = BatchRun(one, defaults)
+            results.append(run.results[0])
+            fulls.append(run.full(0))
+        except (InputError, ArithmeticError, ValueError) as exc:
+            cid = cells[id_col].strip() if id_col < len(cells) and cells[id_col].strip() else None
+            msg = exc.message if isinstance(exc, InputError) else f"the values cannot be screened ({exc})"
+            err = InputError(msg, file=inv.source, row=n, column=getattr(exc, "column", None),
+                             given=getattr(exc, "given", None), expected=getattr(exc, "expected", None)
+                             or "values of a real vessel")
+            results.append(error_row(n, err, cid))
+            fulls.append(results[-1])
+    return results, fulls.__getitem__
 
 
-def _duplicates(results: list[dict]) -> None:
-    first: dict[str, int] = {}
-    for r in results:
-        cid = r.get("id")
-        if cid is None:
-            continue
-        if cid in first:
-            r.setdefault("warnings", []).append({"code": "duplicate-id", "message":
-                                                 f"The id '{cid}' is also used on row {first[cid]}."})
-        else:
-            first[cid] = r["row"]
+def _slim(r: dict) -> dict:
+    if r["verdict"] == "input-error" or "fill" not in r:
+        return r
+    from screening.vector import slim
+
+    s = slim(r)
+    s["row"] = r["row"]
+    return s
+
+
+def screen_chunk(job: tuple) -> list[tuple]:
+    """Screen one chunk (run in a worker): per row (short result, JSON line or None, full result or None).
+
+    `job` = (inventory chunk, defaults, {row: first row of its id} for duplicate ids, want) where `want`
+    holds "json" (a JSON line per row) and "full" (None, "not-within" or "all": full results for a PDF)."""
+    inv, defaults, dups, want = job
+    results, full = _screened(inv, defaults)
+    headers = [c.header for c in inv.columns]
+    out = []
+    for i, r in enumerate(results):
+        n = r["row"]
+        if n in dups:
+            r = dict(r)
+            r["warnings"] = list(r.get("warnings") or []) + [
+                {"code": "duplicate-id", "message": f"The id '{r.get('id')}' is also used on row {dups[n]}."}]
+        f = None
+        if want.get("json") or (want.get("full") == "all"
+                                or (want.get("full") == "not-within" and r["verdict"] != "within")):
+            f = full(i)
+            if f is not r:
+                f = dict(f)
+                f["warnings"] = r["warnings"]
+        line = None
+        if want.get("json"):
+            cells = inv.rows[i][1]
+            rec = {k: v for k, v in f.items() if k not in _DROP}
+            rec["row"] = n
+            rec["input"] = {h: str(cells[j]) if j < len(cells) else "" for j, h in enumerate(headers)}
+            line = json_line(rec)
+        keep_full = f if want.get("full") == "all" or (want.get("full") == "not-within"
+                                                       and r["verdict"] != "within") else None
+        out.append((_slim(r), line, keep_full))
+    return out
+
+
+# ----------------------------------------------------------------------------- counts, order, table
+
+def severity_key(r: dict) -> tuple:
+    """Worst first: input-error, over, out-of-scope, low-margin, within; then lowest margin; then row."""
+    m = r.get("margin_fraction")
+    return (_RANK.get(r["verdict"], 0), m if m is not None else -math.inf, r["row"])
+
+
+def ranked(results: list[dict]) -> list[dict]:
+    """The results worst first (see severity_key)."""
+    return sorted(results, key=severity_key)
 
 
 def summary(results: list[dict]) -> dict:
@@ -149,13 +225,78 @@ def exit_code(results: list[dict]) -> int:
     return EXIT_WITHIN if results and all(r["verdict"] == "within" for r in results) else EXIT_NOT_WITHIN
 
 
-def ranked(results: list[dict]) -> list[dict]:
-    """Worst first: input errors, out-of-scope, then by margin (lowest first); input order on ties."""
-    def key(r):
-        m = r.get("margin_fraction")
-        return (_RANK.get(r["verdict"], 0) if r["verdict"] in ("input-error", "out-of-scope") else 2,
-                m if m is not None else -math.inf, r["row"])
-    return sorted(results, key=key)
+class Tally:
+    """What the batch keeps of the rows it has written: the counts and the worst rows."""
+
+    def __init__(self, keep: int = TERMINAL_ROWS) -> None:
+        self.counts = {v: 0 for v in ORDER}
+        self.rows = 0
+        self.duplicates = 0
+        self.keep = keep
+        self._worst: list = []          # heap of (negated key, row result): the worst `keep` rows
+
+    def add(self, r: dict) -> None:
+        self.rows += 1
+        self.counts[r["verdict"]] = self.counts.get(r["verdict"], 0) + 1
+        if any(w.get("code") == "duplicate-id" for w in r.get("warnings") or []):
+            self.duplicates += 1
+        k = severity_key(r)
+        item = (tuple(-x if isinstance(x, (int, float)) else x for x in k), r)
+        if len(self._worst) < self.keep:
+            heapq.heappush(self._worst, item)
+        elif item[0] > self._worst[0][0]:
+            heapq.heapreplace(self._worst, item)
+
+    def worst(self) -> list[dict]:
+        return ranked([r for _, r in self._worst])
+
+    def summary(self) -> dict:
+        return {"rows": self.rows, "counts": dict(self.counts), "duplicate_ids": self.duplicates}
+
+    def exit_code(self) -> int:
+        return EXIT_WITHIN if self.rows and self.counts["within"] == self.rows else EXIT_NOT_WITHIN
+
+
+class _Ids:
+    """Ids seen so far, as 64-bit hashes in sorted arrays (12 bytes an id): for duplicate-id warnings
+    on any number of rows. Two different ids share a hash with a chance of about n²/2⁶⁵."""
+
+    def __init__(self) -> None:
+        self.runs: list[tuple[np.ndarray, np.ndarray]] = []
+
+    def _find(self, h: int) -> int | None:
+        for keys, rows in self.runs:
+            i = int(np.searchsorted(keys, h))
+            if i < keys.size and keys[i] == h:
+                return int(rows[i])
+        return None
+
+    def first_rows(self, rows: list[tuple[int, str]]) -> dict[int, int]:
+        """{row: first row with the same id} for the rows (row, id) of a chunk; then remembers them."""
+        out: dict[int, int] = {}
+        local: dict[int, int] = {}
+        for n, cid in rows:
+            if not cid:
+                continue
+            h = hash(cid)
+            first = local.get(h)
+            if first is None:
+                first = self._find(h)
+            if first is not None:
+                out[n] = first
+            else:
+                local[h] = n
+        if local:
+            keys = np.fromiter(local.keys(), dtype=np.int64, count=len(local))
+            vals = np.fromiter(local.values(), dtype=np.int64, count=len(local))
+            order = np.argsort(keys, kind="stable")
+            self.runs.append((keys[order], vals[order]))
+            while len(self.runs) > 1 and self.runs[-2][0].size <= 2 * self.runs[-1][0].size:
+                (k1, v1), (k2, v2) = self.runs[-2], self.runs[-1]
+                k, v = np.concatenate([k1, k2]), np.concatenate([v1, v2])
+                order = np.argsort(k, kind="stable")
+                self.runs[-2:] = [(k[order], v[order])]
+        return out
 
 
 # ----------------------------------------------------------------------------- display helpers
@@ -182,12 +323,18 @@ def cells(r: dict) -> dict:
     }
 
 
-def terminal_table(results: list[dict]) -> str:
-    s = summary(results)
-    lines = ["  ".join(f"{v}: {s['counts'][v]}" for v in ORDER) + f"  (rows: {s['rows']})"]
+def _counts_line(s: dict) -> str:
+    return "  ".join(f"{v}: {s['counts'][v]}" for v in ORDER) + f"  (rows: {s['rows']})"
+
+
+def terminal_table(results: list[dict], s: dict | None = None) -> str:
+    """The counts, then the rows worst first (`results`: all rows, or the worst kept of them)."""
+    s = s or summary(results)
+    lines = [_counts_line(s)]
     head = f"{'row':>6}  {'id':<18} {'verdict':<12} {'gas':<14} {'peak':>16} {'rated':>16} {'margin':>9}"
     lines += ["", head, "-" * len(head)]
-    for r in ranked(results):
+    shown = ranked(results)
+    for r in shown:
         c = cells(r)
         lines.append(f"{r['row']:>6}  {str(r.get('id') or '')[:18]:<18} {r['verdict']:<12} {c['gas'][:14]:<14} "
                      f"{c['peak']:>16} {c['rated']:>16} {c['margin']:>9}")
@@ -196,170 +343,252 @@ def terminal_table(results: list[dict]) -> str:
         for w in r.get("warnings", []):
             if w.get("code") == "duplicate-id":
                 lines.append(f"{'':>8}warning: {w['message']}")
+    if s["rows"] > len(shown):
+        lines.append(f"... the {len(shown)} worst rows of {s['rows']:,} shown; every row is in the output files")
     return "\n".join(lines)
 
 
-def _json_safe(x):
-    if isinstance(x, float) and not math.isfinite(x):
-        return None
-    if isinstance(x, dict):
-        return {k: _json_safe(v) for k, v in x.items()}
-    if isinstance(x, (list, tuple)):
-        return [_json_safe(v) for v in x]
-    return x
+# ----------------------------------------------------------------------------- whole-inventory helpers
+
+def run_inventory(inv: Inventory, defaults: dict | None = None, quiet: bool = True) -> list[dict]:
+    """Full results of every row of the inventory, in input order, each with its "row" and warnings
+    (in memory: for tests and small inventories; the command streams)."""
+    ids = _Ids()
+    id_col = _id_column(inv)
+    out = []
+    for k in range(0, len(inv.rows), CHUNK_ROWS):
+        part = Inventory(inv.source, inv.columns, inv.rows[k:k + CHUNK_ROWS], inv.delimiter, inv.decimal, inv.sheet)
+        dups = ids.first_rows([(n, c[id_col].strip() if id_col < len(c) else "") for n, c in part.rows])
+        out += [f for _, _, f in screen_chunk((part, defaults, dups, {"full": "all"}))]
+    return out
 
 
 def write_json(results: list[dict], path, full=None) -> None:
-    """The JSON output: the summary, then every row's result (``full(i)`` where given, else results[i])."""
+    """A JSON document of finished results: {"results": [...], "summary": {...}}."""
     with atomic_writer(path, "JSON output") as fh:
-        fh.write('{"summary": ' + json.dumps(summary(results)) + ',\n "results": [\n')
+        fh.write('{"results": [\n')
         for i, r in enumerate(results):
             if full is not None:
                 r = full(i)
-            slim = {k: v for k, v in r.items() if k not in _DROP}
-            fh.write(("  " if i == 0 else ",\n  ") + json.dumps(_json_safe(slim), ensure_ascii=False, allow_nan=False))
-        fh.write("\n]}\n")
-
-
-#: Rows of the CSV output formatted per task; a large output is formatted in forked workers.
-CSV_CHUNK = 5000
-#: (results, cells by row number, number of input columns) of the CSV being written, read by the workers
-#: that _csv_text forks (they inherit it; nothing of it is sent to them).
-_CSV_JOB: tuple | None = None
-
-
-def _csv_text(bounds: tuple[int, int]) -> str:
-    """The CSV lines of results[lo:hi] of the CSV being written (see _CSV_JOB)."""
-    results, cells_by_row, width = _CSV_JOB  # type: ignore[misc]
-    buf = io.StringIO(newline="")
-    w = csv.writer(buf)
-    for r in results[bounds[0]:bounds[1]]:
-        c = cells(r)
-        raw = list(cells_by_row.get(r["row"], []))
-        raw = (raw + [""] * width)[:width]
-        w.writerow([r["row"]] + raw + [c["peak"], r.get("governing_model") or "", c["margin"], r["verdict"],
-                                       " ".join(r.get("reasons") or []), c["t_max"], c["p_max"],
-                                       " ".join(x["message"] for x in r.get("warnings") or [])])
-    return buf.getvalue()
-
-
-def write_csv(inv: Inventory, results: list[dict], path) -> None:
-    from screening import parallel
-
-    global _CSV_JOB
-    headers = [c.header for c in inv.columns]
-    extra = ["peak_pressure", "governing_model", "margin", "verdict", "reasons", "max_gas_temperature",
-             "max_fill_pressure", "warnings"]
-    bounds = [(k, min(k + CSV_CHUNK, len(results))) for k in range(0, len(results), CSV_CHUNK)]
-    with atomic_writer(path, "CSV output") as fh:
-        csv.writer(fh).writerow(["row"] + headers + extra)
-        _CSV_JOB = (results, {n: c for n, c in inv.rows}, len(headers))
-        try:
-            # chunks in order; on two or more cores and enough rows, formatted in forked workers
-            texts = parallel.map_items(_csv_text, bounds, min_items=max(2, parallel.MIN_ROWS // CSV_CHUNK))
-        finally:
-            _CSV_JOB = None
-        for text in texts:
-            fh.write(text)
+            fh.write(("  " if i == 0 else ",\n  ") + json_line({k: v for k, v in r.items() if k not in _DROP}))
+        fh.write('\n],\n "summary": ' + json.dumps(summary(results)) + "}\n")
 
 
 # ----------------------------------------------------------------------------- the command
 
-def _fresh_process() -> bool:
-    """A child forked at the start helps where the platform forks and this process has not loaded the
-    screening core yet (a fresh command, not a long-lived caller that has it loaded)."""
-    return hasattr(os, "fork") and "screening.screen" not in sys.modules
+class _Outputs:
+    """The output files of one run, each written atomically; rows go to all of them in one order."""
+
+    def __init__(self, args, reg, stack) -> None:
+        self.args = args
+        self.reg = reg
+        self.stack = stack
+        self.csv = self.xlsx = None
+        self.jsonl = self.json = None
+        self.headers = None
+        self.n_json = 0
+        self.width = len(reg.columns)
+
+    def open(self, first: dict | None) -> None:
+        """Open every output, its units taken from the first screened row."""
+        pu, tu = file_units(first)
+        self.pu, self.tu = pu, tu
+        self.headers = ["row"] + [c.header for c in self.reg.columns] + result_headers(pu, tu)
+        a = self.args
+        if a.csv:
+            fh = self.stack.enter_context(atomic_writer(a.csv, "CSV output"))
+            self.csv = CsvTable(fh, self.headers, self.reg.delimiter, self.reg.decimal)
+        if a.xlsx:
+            self._xlsx_fh = self.stack.enter_context(atomic_writer(a.xlsx, "XLSX output", binary=True))
+            self.xlsx = XlsxTable(self.headers, self.width, self.reg.decimal)
+        if a.jsonl:
+            self.jsonl = self.stack.enter_context(atomic_writer(a.jsonl, "JSON Lines output"))
+        if a.json:
+            self.json = self.stack.enter_context(atomic_writer(a.json, "JSON output"))
+            self.json.write('{"results": [\n')
+
+    def values(self, r: dict, cells: list[str]) -> list:
+        row = (list(cells) + [""] * self.width)[:self.width]
+        return [r["row"]] + [str(c) for c in row] + result_values(r, self.pu, self.tu)
+
+    def write(self, values: list, line: str | None) -> None:
+        if self.csv:
+            self.csv.write(values)
+        if self.xlsx:
+            self.xlsx.write(values)
+        if self.jsonl:
+            self.jsonl.write(line + "\n")
+        if self.json:
+            self.json.write(("  " if self.n_json == 0 else ",\n  ") + line)
+            self.n_json += 1
+
+    def finish(self, tally: Tally) -> None:
+        if self.csv:
+            self.csv.close()
+        if self.xlsx:
+            self.xlsx.finish(self._xlsx_fh, tally.counts, tally.rows, tally.duplicates, self.reg.source)
+        if self.json:
+            self.json.write('\n],\n "summary": ' + json.dumps(tally.summary()) + "}\n")
 
 
-#: What a standby renderer imports while the batch screens: the layout engine and the batch report
-#: (named here, so that this process need not import them to fork it).
-RENDER_MODULES = ("weasyprint", "pypdf", "PIL.Image", "matplotlib.backends.backend_agg",
-                  "screening.outputs.batch_report")
+class _Spill:
+    """Records sorted by a key in bounded memory: sorted runs spilled to temporary files, then merged."""
+
+    def __init__(self) -> None:
+        self.buf: list = []
+        self.files: list = []
+
+    def add(self, key: tuple, record: tuple) -> None:
+        self.buf.append((key, record))
+        if len(self.buf) >= SORT_RUN_ROWS:
+            self._spill()
+
+    def _spill(self) -> None:
+        self.buf.sort(key=lambda x: x[0])
+        fh = tempfile.TemporaryFile()
+        for item in self.buf:
+            pickle.dump(item, fh, protocol=pickle.HIGHEST_PROTOCOL)
+        fh.seek(0)
+        self.files.append(fh)
+        self.buf = []
+
+    @staticmethod
+    def _read(fh):
+        while True:
+            try:
+                yield pickle.load(fh)
+            except EOFError:
+                return
+
+    def merged(self):
+        self.buf.sort(key=lambda x: x[0])
+        streams = [self._read(f) for f in self.files] + [iter(self.buf)]
+        try:
+            for _, record in heapq.merge(*streams, key=lambda x: x[0]):
+                yield record
+        finally:
+            for f in self.files:
+                f.close()
 
 
-def _standby_renderer():
-    """For a batch that writes a PDF, in a fresh process: a child that imports the layout engine now,
-    while this process imports the equations of state and screens, and lays the PDF out later."""
-    from screening import parallel
-
-    if not _fresh_process() or "weasyprint" in sys.modules:
+def _progress(quiet: bool):
+    if quiet or not sys.stderr.isatty():
         return None
-    try:
-        return parallel.Standby(RENDER_MODULES)
-    except OSError:
-        return None
+    from tqdm import tqdm
+
+    return tqdm(desc="screening", unit=" rows", file=sys.stderr, leave=False, unit_scale=True)
 
 
-#: From this size of inventory file [bytes] on, a child forked at the start reads and parses the rows
-#: while this process imports the equations of state (seconds, for CoolProp's fluid library).
-EARLY_READ_BYTES = 256 * 1024
-
-
-def _read_rows(path: str, sheet: str | None, defaults_path: str | None):
-    """(inventory, its plain rows): what the early reader sends back."""
-    from screening.inputs.columns import read_plain
-
-    inv = read_inventory(path, sheet=sheet)
-    defaults = load_defaults(defaults_path) if defaults_path else None
-    return inv, read_plain(inv, defaults)
-
-
-def _early_reader(args):
-    """For a large inventory, in a fresh process: a child that reads and parses its rows now."""
-    from screening import parallel
-
-    if not _fresh_process():
-        return None
-    try:
-        if os.path.getsize(args.inventory) < EARLY_READ_BYTES:
-            return None
-        reader = parallel.Standby(("screening.inputs.columns",))
-    except OSError:
-        return None
-    try:
-        reader.send(_read_rows, args.inventory, args.sheet, args.defaults)
-    except parallel.StandbyGone:
-        return None
-    return reader
+def _jobs(reg, defaults, want, ids: _Ids, kept: list):
+    """The chunks of the register as jobs for screen_chunk; each chunk's rows also go to `kept` (the
+    parent writes the input cells beside the results)."""
+    id_col = _id_column(reg)
+    for part in reg.chunks(CHUNK_ROWS):
+        dups = ids.first_rows([(n, c[id_col].strip() if id_col < len(c) else "") for n, c in part.rows])
+        kept.append(part.rows)
+        yield (part, defaults, dups, want)
 
 
 def run(args) -> int:
-    standby = _standby_renderer() if args.pdf else None
-    reader = _early_reader(args)
+    import contextlib
+
+    from screening import parallel
+
+    reg = open_inventory(args.inventory, sheet=args.sheet, decimal=getattr(args, "decimal", None))
+    defaults = load_defaults(args.defaults, reg.columns) if args.defaults else None
+    targets = [(p, what) for p, what in ((args.json, "JSON output"), (args.csv, "CSV output"),
+                                         (getattr(args, "xlsx", None), "XLSX output"),
+                                         (getattr(args, "jsonl", None), "JSON Lines output"),
+                                         (args.pdf, "PDF report")) if p]
+    for p, what in targets:      # refuse a bad target before the work, not after it
+        check_target(p, what)
+    want = {"json": bool(args.json or getattr(args, "jsonl", None)),
+            "full": ("all" if args.all_details else "not-within") if args.pdf else None}
+    by_severity = getattr(args, "sort", "input") == "severity"
+    import screening.vector  # noqa: F401  (the equations of state, loaded once before any worker forks)
+
+    tally = Tally()
+    pdf_rows: list[dict] = []
+    pdf_full: dict[int, dict] = {}
+    bar = _progress(args.quiet)
+    spill = _Spill() if by_severity else None
+    kept: list = []
+    ids = _Ids()
+    jobs = _jobs(reg, defaults, want, ids, kept)
+    first_job = next(jobs, None)
+    n_workers = parallel.workers()
+    pool = None
     try:
-        plain = None
-        if reader is not None:
-            import screening.vector  # noqa: F401  (the long import, beside the reader's work)
+        with contextlib.ExitStack() as stack:
+            outputs = _Outputs(args, reg, stack)
+            if first_job is not None and len(first_job[0].rows) >= CHUNK_ROWS and n_workers > 1:
+                pool = stack.enter_context(parallel.executor(n_workers))
 
-            try:
-                inv, plain = reader.answer()
-            except Exception:  # whatever went wrong there is read here, and a bad file reported from here
-                plain = None
-        if plain is None:
-            inv = read_inventory(args.inventory, sheet=args.sheet)
-        defaults = load_defaults(args.defaults) if args.defaults else None
-        targets = [(p, what) for p, what in ((args.json, "JSON output"), (args.csv, "CSV output"),
-                                             (args.pdf, "PDF report")) if p]
-        for p, what in targets:      # refuse a bad target before the work, not after it
-            check_target(p, what)
-        run_ = BatchRun(inv, defaults, quiet=args.quiet, plain=plain)
-        results = run_.results
-        if args.json:
-            write_json(results, args.json, full=run_.full)
-        if args.csv:
-            write_csv(inv, results, args.csv)
-        if args.pdf:
-            from screening.outputs.batch_report import render_batch_report
+            def all_jobs():
+                if first_job is not None:
+                    yield first_job
+                yield from jobs
 
-            render_batch_report(results, args.pdf, source=inv.source, all_details=args.all_details,
-                                report_date=args.date, quiet=args.quiet, full=run_.full, standby=standby)
-    finally:
-        for child in (standby, reader):
-            if child is not None:
-                child.close()
+            for got in parallel.ordered(pool, screen_chunk, all_jobs()):
+                rows = kept.pop(0)
+                if outputs.headers is None:
+                    outputs.open(next((s for s, _, _ in got if s["verdict"] != "input-error"), None))
+                for (s, line, f), (_, cells_) in zip(got, rows):
+                    tally.add(s)
+                    values = outputs.values(s, cells_)
+                    if spill is not None:
+                        spill.add(severity_key(s), (values, line))
+                    else:
+                        outputs.write(values, line)
+                    if args.pdf:
+                        if f is not None:
+                            pdf_full[len(pdf_rows)] = f
+                        pdf_rows.append(s)
+                if bar:
+                    bar.update(len(got))
+            if outputs.headers is None:
+                outputs.open(None)
+            if spill is not None:
+                for values, line in spill.merged():
+                    outputs.write(values, line)
+            outputs.finish(tally)
+            if args.pdf:
+                from screening.outputs.batch_report import render_batch_report
+
+                render_batch_report(pdf_rows, args.pdf, source=reg.source, all_details=args.all_details,
+                                    report_date=args.date, quiet=args.quiet,
+                                    full=lambda i: pdf_full.get(i, pdf_rows[i]))
+    except parallel.WorkerLost as exc:
+        if bar:
+            bar.close()
+        print(f"screening: batch stopped: {exc}", file=sys.stderr)
+        return EXIT_INPUT
+    if bar:
+        bar.close()
+    s = tally.summary()
     if args.quiet:
-        s = summary(results)
-        print("  ".join(f"{v}: {s['counts'][v]}" for v in ORDER) + f"  (rows: {s['rows']})")
+        print(_counts_line(s))
     else:
-        print(terminal_table(results))
-    return exit_code(results)
+        print(terminal_table(tally.worst(), s))
+    return tally.exit_code()
+
+
+# ----------------------------------------------------------------------------- kept for callers
+
+def write_csv(inv: Inventory, results: list[dict], path) -> None:
+    """The CSV output of finished results of `inv` (in memory; the command streams)."""
+    width = len(inv.columns)
+    first = next((r for r in results if r["verdict"] != "input-error"), None)
+    pu, tu = file_units(first)
+    cells_by_row = {n: c for n, c in inv.rows}
+    with atomic_writer(path, "CSV output") as fh:
+        t = CsvTable(fh, ["row"] + [c.header for c in inv.columns] + result_headers(pu, tu), inv.delimiter,
+                     inv.decimal)
+        for r in results:
+            row = (list(cells_by_row.get(r["row"], [])) + [""] * width)[:width]
+            t.write([r["row"]] + [str(c) for c in row] + result_values(r, pu, tu))
+        t.close()
+
+
+__all__ = ["BatchRun", "ORDER", "Tally", "cells", "exit_code", "ranked", "read_inventory", "run",
+           "run_inventory", "screen_chunk", "summary", "terminal_table", "write_csv", "write_json", "os"]

@@ -66,13 +66,26 @@ def _build() -> argparse.ArgumentParser:
     b.add_argument("inventory", help="inventory table: CSV (',' or ';') or .xlsx, one vessel per row")
     b.add_argument("--sheet", metavar="NAME", help="sheet of an .xlsx workbook (default: the first)")
     b.add_argument("--defaults", metavar="CASE.toml", help="values for missing columns and empty cells")
-    b.add_argument("--json", metavar="OUT.json", help="write every row's result as JSON")
-    b.add_argument("--csv", metavar="OUT.csv", help="write the inventory with the results as CSV")
+    b.add_argument("--json", metavar="OUT.json", help="write every row's result as one JSON document")
+    b.add_argument("--jsonl", metavar="OUT.jsonl", help="write every row's full result as JSON Lines (one a line)")
+    b.add_argument("--csv", metavar="OUT.csv", help="write the inventory with the results as CSV (numbers, units "
+                   "in the headers, the input's separator and decimal mark)")
+    b.add_argument("--xlsx", metavar="OUT.xlsx", help="write the inventory with the results as an .xlsx workbook")
     b.add_argument("--pdf", metavar="OUT.pdf", help="write the batch report as PDF")
+    b.add_argument("--sort", choices=("input", "severity"), default="input",
+                   help="order of the rows in the files: input order (default) or worst first (input-error, "
+                   "over, out-of-scope, low-margin, within, then lowest margin)")
+    b.add_argument("--decimal", choices=(".", ","), help="decimal mark of the inventory's numbers (default: "
+                   "',' where the CSV separator is ';', else '.')")
     b.add_argument("--all-details", action="store_true", help="detail every vessel in the PDF, not only those "
                    "that are not within rating")
     b.add_argument("--date", type=_date, help="report date (YYYY-MM-DD; default today)")
     b.add_argument("--quiet", action="store_true", help="no progress bar and no table; counts only")
+
+    t = sub.add_parser("template", help="write a blank inventory or a commented case file to start from")
+    t.add_argument("kind", choices=("inventory", "case"), help="inventory (CSV or XLSX) or case (TOML)")
+    t.add_argument("-o", "--output", metavar="FILE", help="file to write (.csv or .xlsx for an inventory, "
+                   ".toml for a case); default: print it")
     return p
 
 
@@ -291,9 +304,14 @@ def run(argv: list[str] | None = None) -> int:
         _precheck_inventory(args)
         from screening.batch import run as run_batch
 
-        code = run_batch(args)
-        _ending(argv)
-        return code
+        return run_batch(args)
+    if args.command == "template":
+        from screening.outputs.templates import write_template
+
+        written = write_template(args.kind, args.output)
+        if written:
+            print(f"template written: {written}", file=sys.stderr)
+        return 0
     if args.command == "gases":
         from screening.outputs.gases_listing import format_library
 

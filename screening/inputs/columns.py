@@ -17,6 +17,7 @@ case reader gives.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -25,7 +26,7 @@ from screening.constants import P_STANDARD_ATMOSPHERE
 from screening.errors import InputError
 from screening.inputs.case import ATMOSPHERIC_PRESSURE_RANGE_PA, DEFAULT_REQUIRED_MARGIN, Case
 from screening.inputs.gas_spec import parse_gas
-from screening.inputs.inventory import Inventory, cell_value, row_case
+from screening.inputs.inventory import Inventory, Unreadable, cell_value, default_text, row_case
 from screening.physics.gases import Mixture
 from screening.units import parse, standard_atmosphere_pressure
 
@@ -117,6 +118,8 @@ def _parser(key: str):
         def pressure(arg):
             value, basis = arg
             reading = parse(value, "pressure", pressure_basis=basis)
+            if not math.isfinite(reading.si()):
+                raise _NotPlain
             return reading.si(), reading.unit.basis == "gauge", reading.unit.label
         return pressure
     if key == "site.atmospheric_pressure":
@@ -139,6 +142,8 @@ def _parser(key: str):
     def quantity(value):
         reading = parse(value, kind)
         v = reading.si()
+        if not math.isfinite(v):
+            raise _NotPlain
         if kind == "fraction":
             if not 0.0 <= v < 1.0:
                 raise _NotPlain
@@ -182,6 +187,8 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     # the text of every key per row: the column's cell (with the header's unit), else the default, else missing
     texts: dict[str, list] = {}
     for j, col in enumerate(inv.columns):
+        if col.key is None:              # a column of the user's own: carried through, not read
+            continue
         cells = [(row[j] if j < len(row) else "") for _, row in inv.rows]
         seen: dict[str, str] = {}
         values = []
@@ -194,11 +201,16 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
             ok &= np.array([not v for v in values], dtype=bool)
             continue
         default = flat.get(col.key, _MISSING)
+        if default is not _MISSING:
+            default = default_text(col, default)
         texts[col.key] = [v if v else default for v in values]
     for k, v in flat.items():
         texts.setdefault(k, [v] * n_rows)
     for pos, (_, row) in enumerate(inv.rows):
         if len(row) > width and any((c or "").strip() for c in row[width:]):
+            ok[pos] = False
+        elif any(isinstance(c, Unreadable) and (c.in_any_column or (j < width and inv.columns[j].key))
+                 for j, c in enumerate(row)):
             ok[pos] = False
 
     def column(key: str) -> list:

@@ -1,200 +1,406 @@
-"""Read an inventory table (CSV or XLSX) into one case per row.
+"""Read an inventory table (CSV or XLSX) as it is kept on site, one case per row.
 
-Columns are case keys; fill keys carry the prefix ``fill_`` (``fill_pressure`` → ``fill.pressure``).
-A header may carry a default unit for its column, ``fill_pressure [bar(g)]``, used where a cell is a
-bare number. ``--defaults CASE.toml`` fills missing columns and empty cells.
+The header is read by meaning (:mod:`screening.inputs.headers`): accepted spellings per key, case and
+punctuation ignored, the column's unit in brackets or parentheses, used where a cell is a bare number.
+Columns the tool does not use are kept and carried through to every output. ``--defaults CASE.toml``
+fills missing columns and empty cells (the column's unit applies to a bare number there too).
 
-File-level problems (missing, unreadable, empty, no header, unknown column) raise InputError: the
-caller exits 2. A row that cannot be read is not an exception here: :func:`row_case` raises an
-InputError located at the row and the column, and the batch records it and goes on.
+Only a file that cannot be read at all is an error of the file (InputError, exit 2): missing,
+unreadable, no header row, a header with problems (all reported at once), beyond the stated bounds. A
+row that cannot be read is not an exception here: :func:`row_case` raises an InputError located at the
+row and the column, and the batch records it and goes on.
+
+Reading is bounded and streamed: a CSV is read row by row (:meth:`Register.chunks`), cells up to
+:data:`MAX_FIELD_CHARS` (a longer one stops the file, as its memory would), and a cell over
+:data:`MAX_CELL_CHARS` makes its row an ``input-error`` row; an .xlsx is checked part by part before it
+is opened (:mod:`screening.inputs.xlsx`).
 """
 
 from __future__ import annotations
 
+import codecs
 import csv
-import io
+import datetime as _dt
+import math
 import re
 import tomllib
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
+from typing import Iterator
 
 from screening.errors import InputError
 from screening.inputs.case import Case, parse_case_data
+from screening.inputs.headers import (
+    KEY_TO_NAME,
+    KINDS,
+    NAME_TO_KEY,
+    TEXT_KEYS,
+    Column,
+    is_header,
+    match_header,
+)
 
-#: Column name -> case key (table.key, or a top-level key).
-COLUMNS: dict[str, str] = {
-    "id": "id", "description": "description", "pressure_basis": "pressure_basis",
-    "site": "site.name", "site_name": "site.name", "atmospheric_pressure": "site.atmospheric_pressure",
-    "elevation": "site.elevation",
-    "gas": "fill.gas", "water_capacity": "vessel.water_capacity", "rated_pressure": "vessel.rated_pressure",
-    "rated_pressure_kind": "vessel.rated_pressure_kind", "relief_set_pressure": "vessel.relief_set_pressure",
-    "max_filling_ratio": "vessel.max_filling_ratio", "outside_diameter": "vessel.outside_diameter",
-    "length": "vessel.length",
-    "fill_pressure": "fill.pressure", "fill_temperature": "fill.temperature", "fill_mass": "fill.mass",
-    "ambient_max": "exposure.ambient_max", "gas_temperature": "exposure.gas_temperature",
-    "solar": "exposure.solar", "irradiance": "exposure.irradiance", "absorptivity": "exposure.absorptivity",
-    "finish": "exposure.finish", "emissivity": "exposure.emissivity", "wind_speed": "exposure.wind_speed",
-    "orientation": "exposure.orientation",
-    "required_margin": "criteria.required_margin",
-}
-#: Case key -> column name (for messages); "site" wins over "site_name".
-KEY_TO_COLUMN = {}
-for _c, _k in COLUMNS.items():
-    KEY_TO_COLUMN.setdefault(_k, _c)
-#: Keys that hold text, not quantities (a header unit does not apply to them).
-_TEXT_KEYS = {"id", "description", "pressure_basis", "site.name", "fill.gas", "vessel.rated_pressure_kind",
-              "exposure.solar", "exposure.finish", "exposure.orientation"}
+__all__ = ["Column", "Inventory", "Register", "open_inventory", "read_inventory", "load_defaults", "row_case"]
 
-_HEADER = re.compile(r"^\s*([^\[\]]*?)\s*(?:\[\s*([^\[\]]*?)\s*\])?\s*$")
+#: Column name -> case key (every accepted spelling), kept for callers that look a name up.
+COLUMNS: dict[str, str] = dict(NAME_TO_KEY)
+#: Case key -> column name (for messages).
+KEY_TO_COLUMN = dict(KEY_TO_NAME)
+#: A cell longer than this [characters] makes its row an input-error row (Excel's own cell limit).
+MAX_CELL_CHARS = 32_767
+#: A CSV field longer than this [characters] stops the reading of the file (bounded memory).
+MAX_FIELD_CHARS = 16 * 1024 * 1024
+#: Rows and columns of a register.
+MAX_ROWS = 20_000_000
+MAX_COLUMNS = 1000
+
 _BARE_NUMBER = re.compile(r"^\s*[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,4})?\s*$")
+_SURROGATE = re.compile("[\udc80-\udcff]")
+_DECIMAL_COMMA = re.compile(r"^(\s*[+-]?\d*),(\d+(?:[eE][+-]?\d{1,4})?)(?=$|[^\d.,])")
 
 
-@dataclass(frozen=True)
-class Column:
-    header: str          # as written
-    name: str            # without the unit
-    key: str             # case key
-    unit: str | None     # default unit of the column
+class Unreadable(str):
+    """A cell the tool cannot take as a value (a date cell, text that is not UTF-8, a cell too long): its
+    text as shown, and what was expected. Carried through as text; a row that uses it for a key is an
+    input-error row."""
+
+    def __new__(cls, text: str, expected: str = "", in_any_column: bool = False):
+        self = super().__new__(cls, text)
+        self.expected = expected
+        self.in_any_column = in_any_column   # refused in a column of the user's own too (a cell too long)
+        return self
+
+    def __reduce__(self):
+        return (Unreadable, (str(self), self.expected, self.in_any_column))
 
 
 @dataclass
 class Inventory:
+    """The header and some rows of an inventory: (spreadsheet row number, cells), header = row 1."""
+
     source: str
     columns: list[Column]
-    rows: list[tuple[int, list[str]]]     # (spreadsheet row number, cells)
+    rows: list[tuple[int, list[str]]]
+    delimiter: str = ","
+    decimal: str = "."
+    sheet: str | None = None
+    header_row: int = 1
+    problems: list[str] = field(default_factory=list)
 
 
 def _fail(message: str, source: str, **kw) -> InputError:
     return InputError(message, file=source, **kw)
 
 
-def _columns(header: list[str], source: str) -> list[Column]:
-    cols: list[Column] = []
-    seen: dict[str, str] = {}
-    for h in header:
-        m = _HEADER.match(h or "")
-        name = (m.group(1) if m else h).strip().lower().replace(" ", "_") if h else ""
-        unit = m.group(2) if m and m.group(2) else None
-        if not name:
-            raise _fail("a column has no name", source, row=1, given=h,
-                        expected="a name on every column of the header row")
-        if name not in COLUMNS:
-            raise _fail("unknown column", source, row=1, column=h, given=name,
-                        expected="columns: " + ", ".join(COLUMNS))
-        key = COLUMNS[name]
-        if key in seen:
-            raise _fail("column given twice", source, row=1, column=h, given=h,
-                        expected=f"one column for {key} (already '{seen[key]}')")
-        seen[key] = h
-        cols.append(Column(h, name, key, unit))
-    if "id" not in {c.name for c in cols}:
-        raise _fail("the header has no 'id' column", source, row=1, given=", ".join(header),
-                    expected="an 'id' column naming each vessel")
-    return cols
-
-
-def _read_csv(raw: bytes, source: str) -> list[list[str]]:
-    try:
-        text = raw.decode("utf-8-sig")
-    except UnicodeDecodeError:
-        raise _fail("the inventory is not UTF-8 text", source, expected="a UTF-8 CSV file or an .xlsx workbook") \
-            from None
-    if "\x00" in text:
-        raise _fail("the inventory is not a CSV text file", source, expected="a UTF-8 CSV file or an .xlsx workbook")
-    first = text.split("\n", 1)[0]
-    delimiter = ";" if first.count(";") > first.count(",") else ","
-    try:
-        return [row for row in csv.reader(io.StringIO(text, newline=""), delimiter=delimiter, strict=True)]
-    except csv.Error as exc:
-        raise _fail(f"not a readable CSV file: {exc}", source) from None
-
-
 def _cell_text(v) -> str:
+    """A spreadsheet cell as text: numbers as the shortest text that reads back the same float."""
     if v is None:
         return ""
     if isinstance(v, bool):
         return str(v)
-    if isinstance(v, float) and v.is_integer():
-        return str(int(v))
+    if isinstance(v, float):
+        if not math.isfinite(v):
+            return Unreadable(repr(v), "a finite number")
+        return str(int(v)) if v.is_integer() and abs(v) < 1e16 else repr(v)
+    if isinstance(v, int):
+        return str(v)
+    if isinstance(v, (_dt.date, _dt.time, _dt.timedelta)):
+        return Unreadable(v.isoformat() if hasattr(v, "isoformat") else str(v),
+                          "a number or text; this cell is formatted as a date or time in the workbook")
     return str(v)
 
 
-def _read_xlsx(path: Path, source: str, sheet: str | None) -> list[list[str]]:
-    import zipfile
+def _checked(cells: list, width: int) -> list[str]:
+    out = []
+    for c in cells[:MAX_COLUMNS]:
+        if not isinstance(c, str):
+            c = _cell_text(c)
+        if len(c) > MAX_CELL_CHARS:
+            c = Unreadable(c[:40] + "…", f"a cell of at most {MAX_CELL_CHARS} characters "
+                           f"(this one has {len(c):,})", True)
+        elif not c.isascii() and _SURROGATE.search(c):
+            c = Unreadable(c.encode("utf-8", "surrogateescape").decode("utf-8", "replace"), "UTF-8 text")
+        out.append(c)
+    return out
 
-    import openpyxl
 
-    try:
-        wb = openpyxl.load_workbook(path, read_only=True, data_only=True)
-    except (zipfile.BadZipFile, KeyError, OSError, ValueError) as exc:
-        raise _fail(f"not a readable .xlsx workbook ({exc.__class__.__name__})", source) from None
-    try:
-        if sheet is not None:
-            if sheet not in wb.sheetnames:
-                raise _fail("no such sheet", source, given=sheet, expected="one of: " + ", ".join(wb.sheetnames))
-            ws = wb[sheet]
+class Register:
+    """An inventory file opened for reading row by row: its columns, then its rows in chunks."""
+
+    def __init__(self, path: str | Path, sheet: str | None = None, decimal: str | None = None) -> None:
+        self.path = Path(path)
+        self.source = str(path)
+        p = self.path
+        if p.is_dir():
+            raise _fail("expected an inventory file, got a directory", self.source)
+        try:
+            with open(p, "rb") as fh:
+                head = fh.read(65536)
+        except FileNotFoundError:
+            raise _fail("inventory file not found", self.source) from None
+        except OSError as exc:
+            raise _fail(f"cannot read the inventory file: {exc.strerror}", self.source) from None
+        if not head.strip(b" \t\r\n\xef\xbb\xbf"):
+            raise _fail("the inventory file is empty", self.source, expected="a header row and one row per vessel")
+        self.sheet = None
+        self._xlsx_rows = None
+        if head[:4] == b"PK\x03\x04" or p.suffix.lower() in (".xlsx", ".xlsm"):
+            self.kind = "xlsx"
+            self.delimiter = ","
+            self.decimal = decimal or "."
+            self._read_commas = self.decimal == ","
+            header_n, header = self._open_xlsx(sheet)
         else:
-            ws = wb.worksheets[0]
-        return [[_cell_text(v) for v in row] for row in ws.iter_rows(values_only=True)]
-    finally:
-        wb.close()
+            if sheet is not None:
+                raise _fail("--sheet applies to .xlsx workbooks only", self.source, given=sheet)
+            if b"\x00" in head:
+                raise _fail("the inventory is not a CSV text file", self.source,
+                            expected="a UTF-8 CSV file or an .xlsx workbook")
+            try:
+                codecs.getincrementaldecoder("utf-8")().decode(head[:-4] if len(head) == 65536 else head)
+            except UnicodeDecodeError:
+                raise _fail("the inventory is not UTF-8 text", self.source,
+                            expected="a UTF-8 CSV file or an .xlsx workbook") from None
+            self.kind = "csv"
+            first = head.decode("utf-8-sig", "replace").split("\n", 1)[0]
+            counts = {d: first.count(d) for d in (",", ";", "\t")}
+            self.delimiter = max(counts, key=lambda d: (counts[d], d == ","))
+            self.decimal = decimal or self._sniff_decimal(head.decode("utf-8-sig", "replace"))
+            self._read_commas = decimal == "," or (decimal is None and self.delimiter == ";")
+            self._csv = self._csv_rows()
+            header_n, header = None, None
+            for n, row in self._csv:
+                if any((c or "").strip() for c in row):
+                    header_n, header = n, row
+                    break
+            if header is None:
+                raise _fail("the inventory has no header row", self.source,
+                            expected="a header row and one row per vessel")
+        while header and not str(header[-1] if header[-1] is not None else "").strip():
+            header = header[:-1]
+        if len(header) > MAX_COLUMNS:
+            raise _fail(f"the header has {len(header):,} columns", self.source, row=header_n,
+                        expected=f"at most {MAX_COLUMNS} columns")
+        self.header_row = header_n
+        self.columns, problems = match_header([_cell_text(h) for h in header], self._read_commas)
+        if problems:
+            where = f" (sheet '{self.sheet}')" if self.sheet else ""
+            raise _fail(f"the header row{where} has {len(problems)} problem{'s' if len(problems) > 1 else ''}: "
+                        + "; ".join(problems), self.source, row=header_n,
+                        expected="column names as listed in the README (accepted spellings), units in "
+                        "brackets: 'Water capacity (L)'")
+
+    def _sniff_decimal(self, head: str) -> str:
+        """The decimal mark of a CSV whose `--decimal` is not given: "." unless the separator is ";" and
+        the first rows write numbers with a decimal comma (or no decimal numbers at all)."""
+        if self.delimiter != ";":
+            return "."
+        commas = len(re.findall(r"(?:^|;)\s*[+-]?\d+,\d", head, re.M))
+        points = len(re.findall(r"(?:^|;)\s*[+-]?\d+\.\d", head, re.M))
+        return "." if points > commas else ","
+
+    # -- reading
+    def _csv_rows(self) -> Iterator[tuple[int, list[str]]]:
+        csv.field_size_limit(MAX_FIELD_CHARS)
+        try:
+            fh = open(self.path, encoding="utf-8-sig", errors="surrogateescape", newline="")
+        except OSError as exc:
+            raise _fail(f"cannot read the inventory file: {exc.strerror}", self.source) from None
+        with fh:
+            reader = csv.reader(fh, delimiter=self.delimiter)
+            n = 0
+            while True:
+                try:
+                    row = next(reader)
+                except StopIteration:
+                    return
+                except csv.Error as exc:
+                    raise _fail(f"not a readable CSV file: {exc}", self.source, row=n + 1,
+                                expected=f"cells of at most {MAX_FIELD_CHARS // 2**20} MiB") from None
+                n += 1
+                if n > MAX_ROWS + 1:
+                    raise _fail(f"more than {MAX_ROWS:,} rows", self.source,
+                                expected=f"at most {MAX_ROWS:,} rows; split the register")
+                yield n, row
+
+    def _open_xlsx(self, sheet: str | None):
+        from screening.inputs.xlsx import Workbook
+
+        wb = Workbook(self.path, self.source)
+        try:
+            if sheet is not None:
+                if sheet not in wb.names:
+                    raise _fail("no such sheet", self.source, given=sheet, expected="one of: " + ", ".join(wb.names))
+                order = [sheet]
+            else:
+                order = list(wb.names)
+            for name in order:
+                rows = wb.rows(name)
+                for i, row in enumerate(rows):
+                    if any(c is not None and str(c).strip() for c in row):
+                        if sheet is not None or is_header(row):
+                            self.sheet = name
+                            self._xlsx_rows = (rows, i + 1)
+                            self._wb = wb
+                            return i + 1, row
+                        break
+            if sheet is not None:
+                raise _fail(f"the sheet '{sheet}' is empty", self.source, expected="a header row and one row per vessel")
+            raise _fail("no sheet has a header row", self.source, given=", ".join(wb.names),
+                        expected="a sheet whose first row names the columns, with an 'id' column; "
+                        "choose it with --sheet NAME")
+        except BaseException:
+            wb.close()
+            raise
+
+    def rows(self) -> Iterator[tuple[int, list[str]]]:
+        """The rows after the header that hold anything, with their spreadsheet row numbers."""
+        width = len(self.columns)
+        if self.kind == "xlsx":
+            rows, n = self._xlsx_rows
+            self._xlsx_rows = None
+            try:
+                for row in rows:
+                    n += 1
+                    if any(c is not None and str(c).strip() for c in row):
+                        yield n, _checked(row, width)
+            finally:
+                self._wb.close()
+            return
+        for n, row in self._csv:
+            if any(c.strip() for c in row):
+                yield n, _checked(row, width)
+
+    def chunks(self, size: int) -> Iterator[Inventory]:
+        """The rows in Inventories of at most `size` rows each."""
+        batch: list = []
+        for item in self.rows():
+            batch.append(item)
+            if len(batch) >= size:
+                yield self.part(batch)
+                batch = []
+        if batch:
+            yield self.part(batch)
+
+    def part(self, rows: list) -> Inventory:
+        return Inventory(self.source, self.columns, rows, self.delimiter, self.decimal, self.sheet, self.header_row)
 
 
-def read_inventory(path: str | Path, sheet: str | None = None) -> Inventory:
-    """The header and rows of an inventory file. File-level problems raise InputError (exit 2)."""
+def open_inventory(path: str | Path, sheet: str | None = None, decimal: str | None = None) -> Register:
+    """The inventory file opened: header read and checked (file-level problems raise InputError)."""
+    return Register(path, sheet, decimal)
+
+
+def read_inventory(path: str | Path, sheet: str | None = None, decimal: str | None = None) -> Inventory:
+    """The header and every row of an inventory file. File-level problems raise InputError (exit 2)."""
+    reg = open_inventory(path, sheet, decimal)
+    return reg.part(list(reg.rows()))
+
+
+# ----------------------------------------------------------------------------- defaults
+
+class Defaults(dict):
+    """The values of a defaults file (case-shaped, no id), with the file's path."""
+
+    def __init__(self, data: dict, source: str) -> None:
+        super().__init__(data)
+        self.source = source
+
+    def __reduce__(self):
+        return (Defaults, (dict(self), self.source))
+
+
+def _flat(data: dict) -> dict[str, object]:
+    out = {}
+    for k, v in data.items():
+        if isinstance(v, dict) and k not in ("scenario", "tolerance"):
+            for k2, v2 in v.items():
+                out[f"{k}.{k2}"] = v2
+        else:
+            out[k] = v
+    return out
+
+
+def load_defaults(path: str | Path, columns: list[Column] | None = None) -> Defaults:
+    """Values for missing columns and empty cells, from a case-shaped TOML file (no id). Every value is
+    checked here, once: a problem is an error of the defaults file (all of them in one message)."""
     p = Path(path)
     source = str(path)
-    if p.is_dir():
-        raise _fail("expected an inventory file, got a directory", source)
-    try:
-        raw = p.read_bytes()
-    except FileNotFoundError:
-        raise _fail("inventory file not found", source) from None
-    except OSError as exc:
-        raise _fail(f"cannot read the inventory file: {exc.strerror}", source) from None
-    if not raw.strip(b" \t\r\n\xef\xbb\xbf"):
-        raise _fail("the inventory file is empty", source, expected="a header row and one row per vessel")
-    if raw[:4] == b"PK\x03\x04" or p.suffix.lower() in (".xlsx", ".xlsm"):
-        table = _read_xlsx(p, source, sheet)
-    else:
-        if sheet is not None:
-            raise _fail("--sheet applies to .xlsx workbooks only", source, given=sheet)
-        table = _read_csv(raw, source)
-    # drop trailing empty cells and fully empty rows (but keep the row numbers)
-    numbered = [(i + 1, row) for i, row in enumerate(table)]
-    numbered = [(n, r) for n, r in numbered if any((c or "").strip() for c in r)]
-    if not numbered:
-        raise _fail("the inventory has no header row", source, expected="a header row and one row per vessel")
-    head_n, header = numbered[0]
-    while header and not (header[-1] or "").strip():
-        header = header[:-1]
-    cols = _columns(header, source)
-    return Inventory(source, cols, numbered[1:])
-
-
-def load_defaults(path: str | Path) -> dict:
-    """Values for missing columns and empty cells, from a case-shaped TOML file (no id)."""
-    p = Path(path)
     try:
         text = p.read_bytes().decode("utf-8-sig")
     except FileNotFoundError:
-        raise InputError("defaults file not found", file=str(path)) from None
+        raise InputError("defaults file not found", file=source) from None
+    except IsADirectoryError:
+        raise InputError("expected a defaults file, got a directory", file=source) from None
     except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(f"cannot read the defaults file ({exc.__class__.__name__})", file=str(path)) from None
+        raise InputError(f"cannot read the defaults file ({exc.__class__.__name__})", file=source) from None
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
-        raise InputError(f"not valid TOML: {exc}", file=str(path)) from None
+        raise InputError(f"not valid TOML: {exc}", file=source) from None
     if "id" in data:
-        raise InputError("a defaults file does not set an id", file=str(path), key="id", given=data["id"],
+        raise InputError("a defaults file does not set an id", file=source, key="id", given=data["id"],
                          expected="the id in the inventory's 'id' column")
-    return data
+    defaults = Defaults(data, source)
+    check_defaults(defaults, columns)
+    return defaults
 
+
+def check_defaults(defaults: Defaults, columns: list[Column] | None) -> None:
+    """Each value of the defaults read as the case reader reads it (with the column's unit where the
+    value is a bare number): every problem named in one InputError of the defaults file."""
+    from screening.inputs.gas_spec import parse_gas
+    from screening.units import parse
+
+    units = {c.key: c for c in columns or [] if c.key}
+    problems = []
+    for key, value in _flat(defaults).items():
+        if key in ("scenario", "tolerance", "pressure_basis") or key in TEXT_KEYS - {"fill.gas"}:
+            continue
+        if key not in KINDS and key != "fill.gas":
+            problems.append(f"key '{key}': not a key of a case")
+            continue
+        text = default_text(units.get(key), value)
+        if KINDS.get(key, "fraction") != "fraction" and _BARE_NUMBER.match(str(text)):
+            problems.append(f"key '{key}': a number without its unit (given: {value!r}; expected: a text with "
+                            f"the unit, e.g. \"{str(text).strip()} {_EXAMPLE_UNIT[KINDS[key]]}\", or the unit in "
+                            "the inventory's header)")
+            continue
+        try:
+            if key == "fill.gas":
+                parse_gas(text)
+            else:
+                parse(text, KINDS[key], pressure_basis=defaults.get("pressure_basis") or "gauge")
+        except InputError as exc:
+            problems.append(f"key '{key}': {exc.message} (given: {value!r}; expected: {exc.expected})")
+        except (TypeError, ValueError) as exc:
+            problems.append(f"key '{key}': {exc} (given: {value!r})")
+    if problems:
+        raise InputError(f"{len(problems)} value{'s' if len(problems) > 1 else ''} of the defaults cannot be read: "
+                         + "; ".join(problems), file=defaults.source)
+
+
+def default_text(col: Column | None, value) -> object:
+    """A default value as the case reads it: a bare number takes the column's unit."""
+    if isinstance(value, bool) or not isinstance(value, (int, float, str)):
+        return value
+    text = value if isinstance(value, str) else repr(value)
+    if col is not None and col.unit and col.key not in TEXT_KEYS and _BARE_NUMBER.match(text):
+        return f"{text.strip()} {col.unit}"
+    return value if isinstance(value, str) else text
+
+
+# ----------------------------------------------------------------------------- rows
 
 def cell_value(col: Column, cell: str | None) -> str:
-    """A cell's text as the case reads it: stripped, with the header's unit after a bare number."""
+    """A cell's text as the case reads it: stripped, a decimal comma read as a point, with the header's
+    unit after a bare number."""
     value = (cell or "").strip()
-    if value and col.unit and col.key not in _TEXT_KEYS and _BARE_NUMBER.match(value):
+    if not value or col.key is None or col.key in TEXT_KEYS:
+        return value
+    if col.decimal_comma and "," in value:
+        value = _DECIMAL_COMMA.sub(r"\1.\2", value, count=1)
+    if col.unit and _BARE_NUMBER.match(value):
         value = f"{value} {col.unit}"
     return value
 
@@ -202,13 +408,28 @@ def cell_value(col: Column, cell: str | None) -> str:
 def row_data(inv: Inventory, cells: list[str], defaults: dict | None) -> tuple[dict, str]:
     """The nested case data of one row (defaults first, then the row's non-empty cells) and its text."""
     data: dict = {}
+    by_key = {c.key: c for c in inv.columns if c.key}
     for k, v in (defaults or {}).items():
-        data[k] = dict(v) if isinstance(v, dict) else v
+        if isinstance(v, dict) and k not in ("scenario", "tolerance"):
+            data[k] = {k2: default_text(by_key.get(f"{k}.{k2}"), v2) for k2, v2 in v.items()}
+        elif isinstance(v, dict):
+            data[k] = dict(v)
+        else:
+            data[k] = default_text(by_key.get(k), v)
     lines = []
     for col, cell in zip(inv.columns, cells + [""] * (len(inv.columns) - len(cells))):
+        if isinstance(cell, Unreadable) and (col.key is not None or cell.in_any_column):
+            raise InputError("the cell cannot be read", column=col.header, given=str(cell), expected=cell.expected)
+        if col.key is None:
+            continue
         value = cell_value(col, cell)
         if not value:
             continue
+        if (col.key in KINDS and KINDS[col.key] != "fraction" and not col.unit
+                and _BARE_NUMBER.match(value)):
+            raise InputError("a number without its unit", column=col.header, given=value,
+                             expected=f"a number and its unit, e.g. '{value} {_EXAMPLE_UNIT[KINDS[col.key]]}', "
+                             f"or the unit in the header: '{col.header} [{_EXAMPLE_UNIT[KINDS[col.key]]}]'")
         lines.append(f"{col.header} = {value!r}")
         if "." in col.key:
             table, key = col.key.split(".", 1)
@@ -222,30 +443,63 @@ def row_data(inv: Inventory, cells: list[str], defaults: dict | None) -> tuple[d
     return data, "\n".join(lines) + "\n"
 
 
+_EXAMPLE_UNIT = {"pressure": "bar(g)", "temperature": "degC", "volume": "L", "length": "m", "mass": "kg",
+                 "density": "kg/L", "irradiance": "W/m2", "speed": "m/s", "fraction": "%"}
+
+
 def row_case(inv: Inventory, row_number: int, cells: list[str], defaults: dict | None) -> Case:
     """The Case of one row; an InputError names the file, the row and the column (not the case key)."""
     try:
         data, text = row_data(inv, cells, defaults)
-        return parse_case_data(data, inv.source, text)
+        case = parse_case_data(data, inv.source, text)
+        _check_finite(case, data)
+        return case
     except InputError as exc:
-        raise locate(exc, inv, row_number) from None
+        raise locate(exc, inv, row_number, defaults) from None
+    except (OverflowError, ArithmeticError) as exc:     # a value beyond the range of numbers
+        raise InputError(f"a value is out of range ({exc})", file=inv.source, row=row_number,
+                         expected="values of a real vessel") from None
 
 
-def locate(exc: InputError, inv: Inventory, row_number: int) -> InputError:
+#: Case fields in SI and the key they are read from.
+_FIELDS = {"water_capacity_m3": "vessel.water_capacity", "rated_pressure_pa": "vessel.rated_pressure",
+           "relief_set_pressure_pa": "vessel.relief_set_pressure", "max_filling_ratio_kg_m3": "vessel.max_filling_ratio",
+           "fill_pressure_pa": "fill.pressure", "fill_temperature_k": "fill.temperature", "fill_mass_kg": "fill.mass",
+           "ambient_max_k": "exposure.ambient_max", "gas_temperature_k": "exposure.gas_temperature",
+           "outside_diameter_m": "vessel.outside_diameter", "length_m": "vessel.length"}
+
+
+def _check_finite(case: Case, data: dict) -> None:
+    """A value whose number is finite as written but not once converted (1e308 psia) is refused here."""
+    for name, key in _FIELDS.items():
+        v = getattr(case, name, None)
+        if isinstance(v, float) and not math.isfinite(v):
+            table, k = key.split(".")
+            raise InputError("the value is beyond the range of numbers once converted to SI units", key=key,
+                             given=(data.get(table) or {}).get(k), expected="a value of a real vessel")
+
+
+def locate(exc: InputError, inv: Inventory, row_number: int, defaults: dict | None = None) -> InputError:
     """The error with the row and the column (header as written) in place of the case key."""
     column = None
     key = exc.key
-    if key:
-        headers = {c.key: c.header for c in inv.columns}
+    if exc.column:
+        column = exc.column
+    elif key:
+        headers = {c.key: c.header for c in inv.columns if c.key}
         base = key.split("[")[0]
         for k in (key, base, ".".join(base.split(".")[:2])):
             if k in headers:
                 column = headers[k]
                 break
         if column is None:
-            column = KEY_TO_COLUMN.get(key) or KEY_TO_COLUMN.get(".".join(key.split(".")[:2]))
-            if column is not None:
-                column = f"{column} (missing; from the defaults or required)"
-    err = InputError(exc.message, file=inv.source, row=row_number, column=column or exc.column,
-                     key=None if column else key, given=exc.given, expected=exc.expected)
-    return err
+            name = KEY_TO_COLUMN.get(key) or KEY_TO_COLUMN.get(".".join(base.split(".")[:2]))
+            if name is not None:
+                src = getattr(defaults, "source", None)
+                k2 = ".".join(base.split(".")[:2])
+                if src and (k2 in _flat(defaults) or key in _flat(defaults)):
+                    column = f"{name} (from the defaults file {src})"
+                else:
+                    column = f"{name} (no such column, and no default)"
+    return InputError(exc.message, file=inv.source, row=row_number, column=column,
+                      key=None if column else key, given=exc.given, expected=exc.expected)

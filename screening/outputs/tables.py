@@ -1,0 +1,183 @@
+"""The batch's tables: CSV, XLSX and JSON Lines, written row by row as the batch streams.
+
+Each output row is the input row as read (every column, the user's own included, in the original
+order), then the results as numbers with the unit in the header (``peak_pressure [bar(g)]``,
+``margin [%]``). The units of a file are those of the first screened row; every row's values are
+converted to them (a gauge pressure with that row's atmospheric pressure). The CSV starts with a
+UTF-8 byte-order mark and uses the input's separator and decimal mark, so that a spreadsheet opens it
+as numbers. The XLSX has numeric cells, a frozen header row, a filter, the verdict column shaded by
+severity (and written out), and a second sheet with the counts and the cautions.
+
+A view only: it formats finished results, never computes physics.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+import re
+
+from screening.cautions import ASSUMPTIONS, CAUTION
+from screening.units import format_pressure, format_temperature, pressure_in, temperature_in
+
+#: The verdicts from the most severe to the least (the order of `--sort severity` and of the counts).
+SEVERITY = ("input-error", "over", "out-of-scope", "low-margin", "within")
+#: XLSX fill of the verdict cell, by verdict (light tints, so that the words stay readable).
+SHADES = {"input-error": "D9D9D9", "over": "F4B6B6", "out-of-scope": "F8D7A8", "low-margin": "FFF2A8",
+          "within": "CFE8C9"}
+#: Excel's rows per sheet, less the header.
+XLSX_MAX_ROWS = 1_048_575
+
+
+def file_units(result: dict | None) -> tuple[str, str]:
+    """(pressure label, temperature label) of an output file: those of its first screened row."""
+    du = (result or {}).get("display_units") or {}
+    return du.get("pressure") or "bar(g)", du.get("temperature") or "degC"
+
+
+def result_headers(pu: str, tu: str) -> list[str]:
+    p = format_pressure(101325.0, pu, 101325.0).split(" ", 1)[1]
+    t = format_temperature(300.0, tu).split(" ", 1)[1]
+    return [f"peak_pressure [{p}]", "governing_model", "margin [%]", "verdict", "reasons",
+            f"max_gas_temperature [{t}]", f"max_fill_pressure [{p}]", "warnings"]
+
+
+def _num(x: float | None) -> float | None:
+    if x is None or not isinstance(x, (int, float)) or not math.isfinite(x):
+        return None
+    return float(f"{x:.6g}")
+
+
+def result_values(r: dict, pu: str, tu: str) -> list:
+    """The result columns of one row: numbers (None where there is none) and texts."""
+    warnings = " ".join(w["message"] for w in r.get("warnings") or [])
+    reasons = " ".join(str(x) for x in r.get("reasons") or [])
+    if r["verdict"] == "input-error":
+        return [None, "", None, "input-error", reasons, None, None, warnings]
+    atm = (r.get("site") or {}).get("atmospheric_pressure_pa") or 101325.0
+    lim = r.get("limits") or {}
+
+    def P(p):
+        return None if p is None else _num(pressure_in(p, pu, atm))
+
+    def T(t):
+        return None if t is None else _num(temperature_in(t, tu))
+
+    m = r.get("margin_fraction")
+    return [P(r.get("peak_pressure_pa")), r.get("governing_model") or "", None if m is None else _num(100.0 * m),
+            r["verdict"], reasons, T(lim.get("max_gas_temperature_k")), P(lim.get("max_fill_pressure_pa")), warnings]
+
+
+class CsvTable:
+    """The CSV output, opened on a file object of the atomic writer."""
+
+    def __init__(self, fh, headers: list[str], delimiter: str = ",", decimal: str = ".") -> None:
+        self.fh = fh
+        self.decimal = decimal
+        self.buf = io.StringIO(newline="")
+        self.w = csv.writer(self.buf, delimiter=delimiter)
+        fh.write("\ufeff")
+        self.w.writerow(headers)
+
+    def _text(self, v) -> str:
+        if v is None:
+            return ""
+        if isinstance(v, float):
+            text = repr(v) if not v.is_integer() else str(int(v)) if abs(v) < 1e16 else repr(v)
+            return text.replace(".", ",") if self.decimal == "," else text
+        return str(v)
+
+    def write(self, values: list) -> None:
+        self.w.writerow([self._text(v) for v in values])
+        if self.buf.tell() > 1 << 16:
+            self.flush()
+
+    def flush(self) -> None:
+        self.fh.write(self.buf.getvalue())
+        self.buf.seek(0)
+        self.buf.truncate()
+
+    def close(self) -> None:
+        self.flush()
+
+
+class XlsxTable:
+    """The XLSX output (openpyxl, write-only: rows go to disk as they come)."""
+
+    def __init__(self, headers: list[str], n_input: int, decimal: str = ".") -> None:
+        from openpyxl import Workbook
+        from openpyxl.cell import WriteOnlyCell
+        from openpyxl.styles import Font, PatternFill
+
+        self._Cell = WriteOnlyCell
+        self.wb = Workbook(write_only=True)
+        self.ws = self.wb.create_sheet("results")
+        self.ws.freeze_panes = "A2"
+        self.width = len(headers)
+        self.n_input = n_input
+        self._number = re.compile(r"^-?(?:0|[1-9]\d{0,14})(?:[%s]\d{1,15})?$" % re.escape(decimal))
+        self.verdict_col = headers.index("verdict")
+        self.fills = {v: PatternFill("solid", start_color=c, end_color=c) for v, c in SHADES.items()}
+        bold = Font(bold=True)
+        head = []
+        for h in headers:
+            c = WriteOnlyCell(self.ws, value=h)
+            c.font = bold
+            head.append(c)
+        self.ws.append(head)
+        self.rows = 0
+
+    def write(self, values: list) -> None:
+        self.rows += 1
+        if self.rows > XLSX_MAX_ROWS:
+            from screening.errors import InputError
+
+            raise InputError("the XLSX output holds at most 1 048 575 rows", given="more rows",
+                             expected="--csv or --jsonl for a register of this size")
+        out = list(values)
+        for j in range(1, self.n_input + 1):      # the input's plain numbers as numbers
+            c = out[j]
+            if isinstance(c, str) and c and self._number.match(c):
+                out[j] = float(c.replace(",", "."))
+        v = out[self.verdict_col]
+        cell = self._Cell(self.ws, value=v)
+        if v in self.fills:
+            cell.fill = self.fills[v]
+        out[self.verdict_col] = cell
+        self.ws.append(out)
+
+    def finish(self, fh, counts: dict, rows: int, duplicates: int, source: str) -> None:
+        from openpyxl.utils import get_column_letter
+
+        self.ws.auto_filter.ref = f"A1:{get_column_letter(self.width)}{self.rows + 1}"
+        s = self.wb.create_sheet("summary")
+        s.append(["inventory", source])
+        s.append(["rows", rows])
+        for v in SEVERITY:
+            s.append([v, counts.get(v, 0)])
+        s.append(["duplicate ids", duplicates])
+        s.append([])
+        s.append(["caution", CAUTION])
+        for a in ASSUMPTIONS:
+            s.append(["assumption", a])
+        self.wb.save(fh)
+
+
+def json_line(result: dict) -> str:
+    """One JSON Lines record: the full result (non-finite numbers as null)."""
+    try:
+        return json.dumps(result, ensure_ascii=False, allow_nan=False)
+    except ValueError:          # a non-finite number somewhere: written as null
+        return json.dumps(_json_safe(result), ensure_ascii=False, allow_nan=False)
+
+
+def _json_safe(x):
+    if isinstance(x, float) and not math.isfinite(x):
+        return None
+    if isinstance(x, dict):
+        return {k: _json_safe(v) for k, v in x.items()}
+    if isinstance(x, (list, tuple)):
+        return [_json_safe(v) for v in x]
+    return x
