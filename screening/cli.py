@@ -72,6 +72,12 @@ def _build() -> argparse.ArgumentParser:
                    "that are not within rating")
     b.add_argument("--date", type=_date, help="report date (YYYY-MM-DD; default today)")
     b.add_argument("--quiet", action="store_true", help="no progress bar and no table; counts only")
+
+    w = sub.add_parser("serve", help="start the local web page (vessel, inventory, gas library)")
+    w.add_argument("--host", default="127.0.0.1", help="address to listen on (default 127.0.0.1: this "
+                   "computer only; any other prints a warning)")
+    w.add_argument("--port", type=int, default=8765, help="port to listen on (default 8765)")
+    w.add_argument("--open", action="store_true", help="open the page in the web browser")
     return p
 
 
@@ -187,6 +193,10 @@ def run(argv: list[str] | None = None) -> int:
         code = run_batch(args)
         _ending(argv)
         return code
+    if args.command == "serve":
+        from screening.web.server import serve
+
+        return serve(args.host, args.port, open_browser=args.open)
     if args.command == "gases":
         from screening.outputs.gases_listing import format_library
 

@@ -1,0 +1,130 @@
+"""The server's warm worker processes and what it keeps of the answers.
+
+Two `concurrent.futures.ProcessPoolExecutor`s, started with the server: one for vessel answers and
+reports, one for inventories, so that a long inventory never stands in front of a vessel answer.
+Each worker imports the engine and screens a small case as it starts (`engine.warm`). The engine is not
+shared between threads: the server's threads only hand work to the processes and wait.
+
+Answers and inventory jobs are kept in bounded stores under a lock, addressed by random tokens.
+"""
+
+from __future__ import annotations
+
+import concurrent.futures as cf
+import datetime as _dt
+import multiprocessing
+import os
+import secrets
+import shutil
+import tempfile
+import threading
+from collections import OrderedDict
+from dataclasses import dataclass, field
+
+from screening.web import engine
+
+#: Answers kept for downloads (the oldest are dropped first).
+ANSWERS_KEPT = 200
+#: Inventory jobs kept with their files (the oldest are dropped first, with their folder).
+JOBS_KEPT = 20
+
+
+def _vessel_workers() -> int:
+    try:
+        n = len(os.sched_getaffinity(0))
+    except AttributeError:
+        n = os.cpu_count() or 1
+    return max(1, min(2, n))
+
+
+@dataclass
+class Answer:
+    token: str
+    case_text: str
+    source: str
+    result: dict
+    view: dict
+    plot_svg: str | None
+    phase_svg: str | None
+    seconds: float
+    pdf: bytes | None = None
+    lock: threading.Lock = field(default_factory=threading.Lock)
+
+
+@dataclass
+class Job:
+    token: str
+    folder: str
+    filename: str
+    future: cf.Future
+    started: _dt.datetime
+
+
+class Runner:
+    """The pools, started at once and warmed; `close()` stops them."""
+
+    def __init__(self, vessel_workers: int | None = None, warm: bool = True) -> None:
+        # forkserver: workers start from a small clean process, not from the server with its threads
+        ctx = multiprocessing.get_context("forkserver" if "forkserver" in multiprocessing.get_all_start_methods()
+                                          else "spawn")
+        n = vessel_workers or _vessel_workers()
+        self.vessel_pool = cf.ProcessPoolExecutor(max_workers=n, mp_context=ctx)
+        self.inventory_pool = cf.ProcessPoolExecutor(max_workers=1, mp_context=ctx)
+        self.warming: list[cf.Future] = []
+        if warm:
+            self.warming = [self.vessel_pool.submit(engine.warm) for _ in range(n)]
+            self.warming.append(self.inventory_pool.submit(engine.warm, True))
+        self._lock = threading.Lock()
+        self._answers: OrderedDict[str, Answer] = OrderedDict()
+        self._jobs: OrderedDict[str, Job] = OrderedDict()
+        self.workdir = tempfile.mkdtemp(prefix="screening-web-")
+
+    # -- vessels
+    def answer(self, text: str, source: str) -> Answer | Exception:
+        got = self.vessel_pool.submit(engine.answer, text, source).result()
+        if "error" in got:
+            return got["error"]
+        a = Answer(secrets.token_urlsafe(12), text, source, got["result"], got["view"], got["plot_svg"],
+                   got["phase_svg"], got["seconds"])
+        with self._lock:
+            self._answers[a.token] = a
+            while len(self._answers) > ANSWERS_KEPT:
+                self._answers.popitem(last=False)
+        return a
+
+    def get_answer(self, token: str) -> Answer | None:
+        with self._lock:
+            return self._answers.get(token)
+
+    def pdf(self, a: Answer) -> bytes:
+        with a.lock:
+            if a.pdf is None:
+                a.pdf = self.vessel_pool.submit(engine.report_pdf, a.result, a.case_text,
+                                                _dt.date.today().isoformat()).result()
+            return a.pdf
+
+    # -- inventories
+    def start_inventory(self, filename: str, data: bytes, sheet: str | None) -> Job:
+        token = secrets.token_urlsafe(12)
+        folder = os.path.join(self.workdir, token)
+        os.makedirs(folder)
+        with open(os.path.join(folder, filename), "wb") as fh:
+            fh.write(data)
+        future = self.inventory_pool.submit(engine.inventory, folder, filename, sheet, _dt.date.today().isoformat())
+        job = Job(token, folder, filename, future, _dt.datetime.now())
+        with self._lock:
+            self._jobs[token] = job
+            while len(self._jobs) > JOBS_KEPT:
+                _, old = self._jobs.popitem(last=False)
+                if old.future.done():
+                    shutil.rmtree(old.folder, ignore_errors=True)
+        return job
+
+    def get_job(self, token: str) -> Job | None:
+        with self._lock:
+            return self._jobs.get(token)
+
+    def close(self) -> None:
+        for pool in (self.vessel_pool, self.inventory_pool):
+            pool.shutdown(wait=True, cancel_futures=True)
+        shutil.rmtree(self.workdir, ignore_errors=True)
