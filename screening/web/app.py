@@ -93,9 +93,7 @@ class App:
         """Finish and verdict words (asked once of a worker: the server does not load the engine)."""
         with self._labels_lock:
             if self._labels is None:
-                from screening.web import engine
-
-                got = self.runner.vessel_pool.submit(engine.labels).result()
+                got = self.runner.labels()
                 got["verdicts"] = dict(got["verdicts"], **{"input-error": INPUT_ERROR_WORDS})
                 self._labels = got
             return self._labels

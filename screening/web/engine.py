@@ -60,7 +60,9 @@ def answer(text: str, source: str) -> dict:
     try:
         result = screen_text(text, source)
     except InputError as exc:
-        return {"error": exc}
+        # sent back as its fields: a subclass (UnknownGas) need not survive pickling on its own
+        return {"error": dict(message=exc.message, file=exc.file, key=exc.key, row=exc.row, column=exc.column,
+                              given=None if exc.given is None else str(exc.given), expected=exc.expected)}
     view = build_view(result, text, _dt.date.today())
     # the plots travel as SVG text and are served from this server (no data: URIs under the page's
     # content security policy)

@@ -91,7 +91,8 @@ FIELDS: tuple[Field, ...] = (
            TEMPERATURE_UNITS),
         _f(f"sc{i}_gas_temperature", f"Scenario {i}, worst-case gas temperature", f"scenario[{i}].gas_temperature",
            TEMPERATURE_UNITS),
-        _f(f"sc{i}_solar", f"Scenario {i}, in the sun", f"scenario[{i}].solar"))),
+        _f(f"sc{i}_solar", f"Scenario {i}, in the sun", f"scenario[{i}].solar"),
+        _f(f"sc{i}_finish", f"Scenario {i}, outside finish", f"scenario[{i}].finish"))),
     _f("tol_fill_pressure", "Fill pressure tolerance", "tolerance.fill_pressure",
        hint="e.g. 2 bar, 1 % (of the reading) or 1.6 % of 400 bar (of full scale)"),
     _f("tol_fill_temperature", "Fill temperature tolerance", "tolerance.fill_temperature", ("K",)),
@@ -210,7 +211,7 @@ def case_text(v: dict) -> str:
         put("required_margin", _quantity(v, "required_margin"))
     for i in range(1, SCENARIO_ROWS + 1):
         p = f"sc{i}_"
-        if not any(v[p + k] for k in ("name", "ambient_max", "gas_temperature", "solar")):
+        if not any(v[p + k] for k in ("name", "ambient_max", "gas_temperature", "solar", "finish")):
             continue
         lines += ["", "[[scenario]]"]
         put("name", v[p + "name"])
@@ -218,6 +219,7 @@ def case_text(v: dict) -> str:
         put("gas_temperature", _quantity(v, p + "gas_temperature"))
         if v[p + "solar"]:
             lines.append('solar = "sun"')
+        put("finish", v[p + "finish"])
     tol = [(k, v["tol_" + k]) for k in ("fill_pressure", "fill_temperature", "gas_temperature") if v["tol_" + k]]
     if tol:
         lines += ["", "[tolerance]"]
@@ -253,7 +255,7 @@ def field_for_key(key: str | None, v: dict) -> Field | None:
     m = _SCENARIO_KEY.match(key)
     if m and int(m.group(1)) > SCENARIO_ROWS:
         return None
-    if m and m.group(2) not in ("name", "ambient_max", "gas_temperature", "solar"):
+    if m and m.group(2) not in ("name", "ambient_max", "gas_temperature", "solar", "finish"):
         key = f"exposure.{m.group(2)}"
     if key.startswith("exposure.") and key not in BY_KEY and v.get("exposure_by") == "sun":
         key = "exposure.finish"
@@ -398,7 +400,9 @@ def values_from_case_text(text: str) -> tuple[dict, list[str]]:
                     _split(v, f"sc{i}_{k}", sc[k])
             if sc.get("solar") == "sun":
                 v[f"sc{i}_solar"] = "sun"
-            extra = set(sc) - {"name", "ambient_max", "gas_temperature", "solar"}
+            if "finish" in sc:
+                v[f"sc{i}_finish"] = str(sc["finish"])
+            extra = set(sc) - {"name", "ambient_max", "gas_temperature", "solar", "finish"}
             if extra:
                 notes.append(f"Scenario {i} sets {', '.join(sorted(extra))}; the form's scenarios take those "
                              "from the exposure.")

@@ -21,6 +21,7 @@ import threading
 from collections import OrderedDict
 from dataclasses import dataclass, field
 
+from screening.errors import InputError
 from screening.web import engine
 
 #: Answers kept for downloads (the oldest are dropped first).
@@ -68,6 +69,7 @@ class Runner:
         ctx = multiprocessing.get_context("forkserver" if "forkserver" in multiprocessing.get_all_start_methods()
                                           else "spawn")
         n = vessel_workers or _vessel_workers()
+        self._n, self._ctx = n, ctx
         self.vessel_pool = cf.ProcessPoolExecutor(max_workers=n, mp_context=ctx)
         self.inventory_pool = cf.ProcessPoolExecutor(max_workers=1, mp_context=ctx)
         self.warming: list[cf.Future] = []
@@ -80,10 +82,21 @@ class Runner:
         self.workdir = tempfile.mkdtemp(prefix="screening-web-")
 
     # -- vessels
-    def answer(self, text: str, source: str) -> Answer | Exception:
-        got = self.vessel_pool.submit(engine.answer, text, source).result()
+    def _vessel(self, fn, *args):
+        """fn(*args) in a vessel worker; a pool whose worker died is replaced once and the work retried."""
+        pool = self.vessel_pool
+        try:
+            return pool.submit(fn, *args).result()
+        except cf.process.BrokenProcessPool:
+            with self._lock:
+                if self.vessel_pool is pool:
+                    self.vessel_pool = cf.ProcessPoolExecutor(max_workers=self._n, mp_context=self._ctx)
+            return self.vessel_pool.submit(fn, *args).result()
+
+    def answer(self, text: str, source: str) -> Answer | InputError:
+        got = self._vessel(engine.answer, text, source)
         if "error" in got:
-            return got["error"]
+            return InputError(**got["error"])
         a = Answer(secrets.token_urlsafe(12), text, source, got["result"], got["view"], got["plot_svg"],
                    got["phase_svg"], got["seconds"])
         with self._lock:
@@ -92,6 +105,9 @@ class Runner:
                 self._answers.popitem(last=False)
         return a
 
+    def labels(self) -> dict:
+        return self._vessel(engine.labels)
+
     def get_answer(self, token: str) -> Answer | None:
         with self._lock:
             return self._answers.get(token)
@@ -99,8 +115,7 @@ class Runner:
     def pdf(self, a: Answer) -> bytes:
         with a.lock:
             if a.pdf is None:
-                a.pdf = self.vessel_pool.submit(engine.report_pdf, a.result, a.case_text,
-                                                _dt.date.today().isoformat()).result()
+                a.pdf = self._vessel(engine.report_pdf, a.result, a.case_text, _dt.date.today().isoformat())
             return a.pdf
 
     # -- inventories
