@@ -31,17 +31,23 @@ gas_temperature = "65 degC"
 """
 
 
-def warm(inventory: bool = False) -> float:
-    """Worker initializer: import and exercise the engine and the views; return the seconds taken."""
+def warm() -> float:
+    """Import and exercise the engine and the views (the fork server does this once, see
+    `screening.web.warmed`); return the seconds taken."""
     t0 = time.perf_counter()
-    if inventory:
-        # an inventory worker leaves the other core to the vessel answers (the batch would otherwise
-        # fork a worker per core for a large inventory)
-        os.environ["SCREENING_WORKERS"] = "1"
-        import screening.batch  # noqa: F401
-        import screening.vector  # noqa: F401
+    import screening.batch  # noqa: F401
+    import screening.vector  # noqa: F401
+
     answer(WARM_CASE, "warm-up.toml")
     return time.perf_counter() - t0
+
+
+def started(inventory: bool = False) -> int:
+    """A worker's first task (it starts the process); an inventory worker leaves the other core to the
+    vessel answers (the batch would otherwise fork a worker per core for a large inventory)."""
+    if inventory:
+        os.environ["SCREENING_WORKERS"] = "1"
+    return os.getpid()
 
 
 def _svg_of(uri: str | None) -> str | None:

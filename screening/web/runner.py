@@ -2,7 +2,8 @@
 
 Two `concurrent.futures.ProcessPoolExecutor`s, started with the server: one for vessel answers and
 reports, one for inventories, so that a long inventory never stands in front of a vessel answer.
-Each worker imports the engine and screens a small case as it starts (`engine.warm`). The engine is not
+The workers are forked from a fork server that has imported the engine and screened a small case once
+(`screening.web.warmed`), so each starts warm. The engine is not
 shared between threads: the server's threads only hand work to the processes and wait.
 
 Answers and inventory jobs are kept in bounded stores under a lock, addressed by random tokens.
@@ -65,21 +66,33 @@ class Runner:
     """The pools, started at once and warmed; `close()` stops them."""
 
     def __init__(self, vessel_workers: int | None = None, warm: bool = True) -> None:
-        # forkserver: workers start from a small clean process, not from the server with its threads
-        ctx = multiprocessing.get_context("forkserver" if "forkserver" in multiprocessing.get_all_start_methods()
-                                          else "spawn")
+        # forkserver: workers start from a clean process that has imported and warmed the engine once
+        # (screening.web.warmed), not from the server with its threads; each worker is forked ready
+        if "forkserver" in multiprocessing.get_all_start_methods():
+            ctx = multiprocessing.get_context("forkserver")
+            ctx.set_forkserver_preload(["screening.web.warmed"])
+        else:
+            ctx = multiprocessing.get_context("spawn")
         n = vessel_workers or _vessel_workers()
         self._n, self._ctx = n, ctx
         self.vessel_pool = cf.ProcessPoolExecutor(max_workers=n, mp_context=ctx)
         self.inventory_pool = cf.ProcessPoolExecutor(max_workers=1, mp_context=ctx)
         self.warming: list[cf.Future] = []
         if warm:
-            self.warming = [self.vessel_pool.submit(engine.warm) for _ in range(n)]
-            self.warming.append(self.inventory_pool.submit(engine.warm, True))
+            # started beside the server: the fork server's warm-up takes as long as one fresh screening, and
+            # the page is served meanwhile (an answer asked for in that time waits for it)
+            threading.Thread(target=self._warm, args=(n,), daemon=True).start()
         self._lock = threading.Lock()
         self._answers: OrderedDict[str, Answer] = OrderedDict()
         self._jobs: OrderedDict[str, Job] = OrderedDict()
         self.workdir = tempfile.mkdtemp(prefix="screening-web-")
+
+    def _warm(self, n: int) -> None:
+        try:
+            self.warming = [self.vessel_pool.submit(engine.started) for _ in range(n)]
+            self.warming.append(self.inventory_pool.submit(engine.started, True))
+        except RuntimeError:  # closed before it started
+            pass
 
     # -- vessels
     def _vessel(self, fn, *args):
