@@ -224,3 +224,29 @@ def test_the_gas_library_lists_every_gas_with_its_sources(client):
         assert f">{g.name} <span" in page
     for k in citations():
         assert f'id="src-{k}"' in page
+
+
+# ----------------------------------------------------------------------------- the command
+
+def _serve(*args):
+    import subprocess
+    import sys
+
+    return subprocess.run([sys.executable, "-m", "screening.cli", "serve", *args], cwd=ROOT, capture_output=True,
+                          text=True, timeout=120)
+
+
+def test_serve_warns_when_asked_to_listen_beyond_loopback_and_says_when_it_cannot():
+    # 192.0.2.1 is a documentation address (RFC 5737), not this machine's: nothing is sent anywhere
+    done = _serve("--host", "192.0.2.1", "--port", "8766")
+    assert "warning: listening on 192.0.2.1, not on this computer's loopback address" in done.stderr
+    assert done.returncode == 2
+    assert "could not listen on 192.0.2.1:8766" in done.stderr
+    assert "Traceback" not in done.stderr
+
+
+def test_loopback_names_are_recognised():
+    from screening.web.server import is_loopback
+
+    assert is_loopback("127.0.0.1") and is_loopback("localhost") and is_loopback("::1") and is_loopback("127.0.0.2")
+    assert not is_loopback("0.0.0.0") and not is_loopback("192.168.1.10")

@@ -8,6 +8,7 @@ jinja2 templates in ``templates/web/`` with autoescaping, and carries the cautio
 
 from __future__ import annotations
 
+import contextlib
 import json
 import math
 import re
@@ -294,8 +295,15 @@ def allowed_hosts(host: str, port: int) -> set[str]:
     """The Host header values this server answers to: its loopback names (and `host` if another), with
     the port (and without it for port 80)."""
     names = set(LOOPBACK_NAMES)
-    if host not in ("127.0.0.1", "localhost", "::1"):
-        names.add(f"[{host}]" if ":" in host else host)
+    extra = {host}
+    if host in ("0.0.0.0", "::", ""):  # every interface: the names this machine goes by
+        import socket
+
+        extra = {socket.gethostname(), socket.getfqdn()}
+        with contextlib.suppress(OSError):
+            extra |= {a[4][0] for a in socket.getaddrinfo(socket.gethostname(), None)}
+    for name in extra - {"127.0.0.1", "localhost", "::1", "0.0.0.0", "::", ""}:
+        names.add(f"[{name}]" if ":" in name else name.lower())
     out = {f"{n}:{port}" for n in names}
     if port == 80:
         out |= names

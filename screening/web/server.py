@@ -60,11 +60,13 @@ def serve(host: str = DEFAULT_HOST, port: int = DEFAULT_PORT, open_browser: bool
         server.run()
     except KeyboardInterrupt:
         pass
+    except SystemExit:  # uvicorn's answer to an address it cannot listen on (its message is printed)
+        pass
     finally:
         runner.close()
     if not server.started:
-        print(f"screening serve: could not listen on {host}:{port} (is another program using the port? "
-              "try --port)", file=sys.stderr)
+        print(f"screening serve: error: could not listen on {host}:{port} (is another program using the port? "
+              "try another --port; is the address this computer's?)", file=sys.stderr)
         return 2
     print("screening: stopped", file=out, flush=True)
     return 0
