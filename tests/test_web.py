@@ -121,6 +121,19 @@ def test_a_wrong_entry_is_shown_beside_its_field_in_label_words(client, field, v
     assert f'value="{value}"' in page.text
 
 
+def test_key_names_in_a_message_become_label_words_and_ordinary_words_stay():
+    from screening.errors import InputError
+
+    both = InputError("give either atmospheric_pressure or elevation, not both", key="site.elevation",
+                      given="240 m", expected="one of the two")
+    assert form.message_for_field(both, form.BY_KEY["site.elevation"]) == (
+        "Site elevation: give either atmospheric pressure at the site or elevation, not both "
+        "(given: '240 m'; expected: one of the two)")
+    unit = InputError("not a number followed by a unit", key="vessel.rated_pressure", given="x bar(g)",
+                      expected="a number and a pressure unit with its basis")
+    assert "a number and a pressure unit" in form.message_for_field(unit, form.BY_KEY["vessel.rated_pressure"])
+
+
 def test_a_mixture_wrong_sum_is_shown_beside_its_first_component(client):
     data = dict(N2, gas_mode="mixture", mix1_gas="argon", mix1_pct="80", mix2_gas="carbon dioxide", mix2_pct="10")
     page = client.post("/vessel", data=data)

@@ -266,7 +266,9 @@ def field_for_key(key: str | None, v: dict) -> Field | None:
 _KEY_WORDS = sorted(
     [(f"[{t}] {k}", BY_KEY[f"{t}.{k}"].label) for t, k in (("fill", "pressure"), ("fill", "mass"), ("fill", "temperature"))]
     + [(k, f.label) for k, f in BY_KEY.items() if "." in k]
-    + [(k.split(".", 1)[1], f.label) for k, f in BY_KEY.items() if "." in k and not k.startswith("scenario")],
+    # a key without its table only where it cannot be an ordinary word ("ambient_max", not "pressure")
+    + [(k.split(".", 1)[1], f.label) for k, f in BY_KEY.items()
+       if "." in k and not k.startswith("scenario") and "_" in k.split(".", 1)[1]],
     key=lambda p: -len(p[0]))
 
 

@@ -4,5 +4,5 @@
 document.addEventListener("htmx:afterSettle", function (event) {
   var target = event.detail && event.detail.elt ? event.detail.elt : document;
   var el = (target.querySelector ? target.querySelector("[autofocus]") : null) || document.querySelector("#work [autofocus]");
-  if (el) { el.focus(); if (el.scrollIntoView) { el.scrollIntoView({block: "start"}); } }
+  if (el) { el.focus(); if (el.scrollIntoView) { el.scrollIntoView({block: "center"}); } }
 });
