@@ -263,3 +263,57 @@ def test_loopback_names_are_recognised():
 
     assert is_loopback("127.0.0.1") and is_loopback("localhost") and is_loopback("::1") and is_loopback("127.0.0.2")
     assert not is_loopback("0.0.0.0") and not is_loopback("192.168.1.10")
+
+
+def _inventory_csv(rows: int) -> bytes:
+    """A register of `rows` nitrogen cylinders (invented, for the page's mechanics only)."""
+    head = "id;gas;water_capacity [L];rated_pressure [bar(g)];fill_pressure [bar(g)];fill_temperature [degC];" \
+           "gas_temperature [degC]\n"
+    return (head + "".join(f"T-{i:06d};nitrogen;50;300;{150 + i % 120};15;65\n" for i in range(rows))).encode()
+
+
+def _wait_done(client, job, seconds=300):
+    deadline = time.monotonic() + seconds
+    while "Done:" not in (status := client.get(job + "/status").text):
+        assert time.monotonic() < deadline and "could not be read:" not in status
+        time.sleep(0.5)
+    return status
+
+
+def test_a_long_inventory_is_listed_page_by_page(client):
+    sent = client.post("/inventory", files={"inventory_file": ("register.csv", _inventory_csv(120), "text/csv")},
+                       follow_redirects=False)
+    job = sent.headers["location"]
+    _wait_done(client, job)
+    first = client.get(job).text
+    assert first.count('<tr class="v-') == 50 and "page 1 of 3" in first
+    last = client.get(job + "?page=3").text
+    assert last.count('<tr class="v-') == 20 and "Rows 101–120 of 120" in last
+
+
+def test_an_xlsx_inventory_is_screened(client, tmp_path):
+    import csv as _csv
+
+    from openpyxl import Workbook
+
+    wb = Workbook()
+    ws = wb.active
+    with open(ROOT / "cases" / "inventory.csv", newline="", encoding="utf-8") as fh:
+        rows = list(_csv.reader(fh, delimiter=";"))
+    for r in rows:
+        ws.append(r)
+    path = tmp_path / "register.xlsx"
+    wb.save(path)
+    sent = client.post("/inventory", files={"inventory_file": (path.name, path.read_bytes(), "application/octet-stream")},
+                       follow_redirects=False)
+    status = _wait_done(client, sent.headers["location"])
+    assert f'id="count-rows">{len(rows) - 1}<' in status
+
+
+def test_a_long_inventory_does_not_hold_up_a_vessel_answer(client):
+    sent = client.post("/inventory", files={"inventory_file": ("big.csv", _inventory_csv(30000), "text/csv")},
+                       follow_redirects=False)
+    job = sent.headers["location"]
+    page = client.post("/vessel", data=N2)
+    assert page.status_code == 200 and "Stays within rating" in page.text
+    assert "Done:" not in client.get(job + "/status").text

@@ -153,6 +153,16 @@ class Runner:
             return self._jobs.get(token)
 
     def close(self) -> None:
+        """Stop the pools: queued work is dropped, and an inventory still being screened is stopped (its
+        worker ended) rather than waited for; the uploaded files and outputs are removed."""
         for pool in (self.vessel_pool, self.inventory_pool):
-            pool.shutdown(wait=True, cancel_futures=True)
+            pool.shutdown(wait=False, cancel_futures=True)
+        busy = [j for j in self._jobs.values() if not j.future.done()]
+        if busy:
+            # concurrent.futures has no public way to end a running task before Python 3.14
+            # (ProcessPoolExecutor.terminate_workers); its worker processes are ended here
+            for proc in list((getattr(self.inventory_pool, "_processes", None) or {}).values()):
+                proc.terminate()
+        for pool in (self.vessel_pool, self.inventory_pool):
+            pool.shutdown(wait=True)
         shutil.rmtree(self.workdir, ignore_errors=True)
