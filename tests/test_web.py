@@ -317,3 +317,12 @@ def test_a_long_inventory_does_not_hold_up_a_vessel_answer(client):
     page = client.post("/vessel", data=N2)
     assert page.status_code == 200 and "Stays within rating" in page.text
     assert "Done:" not in client.get(job + "/status").text
+
+
+def test_a_case_with_a_pressure_basis_fills_the_form_with_explicit_units():
+    text = (ROOT / "cases" / "kq-n2-014.toml").read_text(encoding="utf-8")
+    bare = 'pressure_basis = "gauge"\n' + text.replace("bar(g)", "bar")
+    values, notes = form.values_from_case_text(bare)
+    assert values["rated_pressure_unit"] == values["fill_pressure_unit"] == "bar(g)"
+    assert parse_case_text(form.case_text(values)).rated_pressure_pa == parse_case_text(text).rated_pressure_pa
+    assert notes

@@ -295,12 +295,20 @@ def message_for_field(exc, field: Field | None) -> str:
 _QTY = re.compile(r"^\s*([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,4})?)\s*(.*?)\s*$")
 
 
-def _split(v: dict, name: str, value) -> None:
+#: A pressure unit written without its basis, and how the form writes it on each basis.
+_BARE_PRESSURE = {u: (f"{u}(g)", f"{u}(a)") for u in ("bar", "mbar", "kPa", "MPa", "Pa")}
+_BARE_PRESSURE["psi"] = ("psig", "psia")
+
+
+def _split(v: dict, name: str, value, basis: str | None = None) -> None:
     text = str(value)
     f = BY_NAME[name]
     m = _QTY.match(text)
     if f.units and m:
         v[name], unit = m.group(1), m.group(2)
+        if basis in ("gauge", "absolute") and unit in _BARE_PRESSURE and f.units in (PRESSURE_UNITS, ATM_UNITS):
+            # the case's pressure_basis, written into the unit as the form always does
+            unit = _BARE_PRESSURE[unit][0 if basis == "gauge" else 1]
         v[name + "_unit"] = unit or ("" if "%" not in f.units else "%")
         if not unit and f.units == ("%",):
             v[name] = text
@@ -328,9 +336,10 @@ def values_from_case_text(text: str) -> tuple[dict, list[str]]:
     for key in ("id", "description"):
         if isinstance(data.get(key), str):
             v[key] = data[key]
-    if data.get("pressure_basis"):
-        notes.append("The case file sets pressure_basis; the form writes every pressure with (g) or (a) instead: "
-                     "check the units shown.")
+    basis = data.get("pressure_basis")
+    if basis:
+        notes.append(f"The case file says its pressures are {basis}; the form writes each pressure with its basis "
+                     "instead, (g) or (a) in its unit.")
     site = data.get("site") or {}
     if "name" in site:
         v["site_name"] = str(site["name"])
@@ -341,7 +350,7 @@ def values_from_case_text(text: str) -> tuple[dict, list[str]]:
     for k in ("water_capacity", "rated_pressure", "relief_set_pressure", "max_filling_ratio", "outside_diameter",
               "length"):
         if k in vessel:
-            _split(v, k, vessel[k])
+            _split(v, k, vessel[k], basis)
     if "rated_pressure_kind" in vessel:
         v["rated_pressure_kind"] = str(vessel["rated_pressure_kind"])
     fill = data.get("fill") or {}
@@ -371,7 +380,7 @@ def values_from_case_text(text: str) -> tuple[dict, list[str]]:
         _split(v, "fill_mass", fill["mass"])
     if "pressure" in fill:
         v["fill_by"] = "pressure"
-        _split(v, "fill_pressure", fill["pressure"])
+        _split(v, "fill_pressure", fill["pressure"], basis)
     if "temperature" in fill:
         _split(v, "fill_temperature", fill["temperature"])
     exp = data.get("exposure") or {}
