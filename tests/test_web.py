@@ -326,3 +326,26 @@ def test_a_case_with_a_pressure_basis_fills_the_form_with_explicit_units():
     assert values["rated_pressure_unit"] == values["fill_pressure_unit"] == "bar(g)"
     assert parse_case_text(form.case_text(values)).rated_pressure_pa == parse_case_text(text).rated_pressure_pa
     assert notes
+
+
+@pytest.mark.parametrize("path", sorted((ROOT / "cases").glob("*.toml")), ids=lambda p: p.name)
+def test_every_demo_case_gets_its_engine_verdict_on_the_page(client, path):
+    from screening.outputs.report import VERDICTS
+    from screening.screen import screen_text
+
+    text = path.read_text(encoding="utf-8")
+    page = client.post("/vessel/upload", files={"case_file": (path.name, text.encode(), "application/toml")})
+    assert page.status_code == 200
+    verdict = screen_text(text, path.name)["verdict"]
+    assert f"<strong>{VERDICTS[verdict]['label']}</strong> <span class=\"code\">(verdict: {verdict})</span>" in page.text
+
+
+def test_an_unreadable_inventory_says_why(client):
+    sent = client.post("/inventory", files={"inventory_file": ("bad.csv", b"id;colour\nA;red\n", "text/csv")},
+                       follow_redirects=False)
+    job = sent.headers["location"]
+    deadline = time.monotonic() + 120
+    while "could not be read:" not in (status := client.get(job + "/status").text):
+        assert time.monotonic() < deadline and "Done:" not in status
+        time.sleep(0.3)
+    assert "bad.csv" in status and "colour" in status
