@@ -102,10 +102,13 @@ class App:
     def finishes(self) -> list[tuple[str, str]]:
         return self.labels()["finishes"]
 
-    def gas_names(self) -> list[str]:
+    def gas_names(self) -> list[tuple[str, str]]:
+        """(name, other names) of every gas of the library, for the picker's suggestions."""
         from screening.physics.gases import library
 
-        return [g.name for g in library().values()]
+        return [(g.name, ", ".join(g.aliases)) for g in library().values() if g.kind != "dissolved"] + \
+               [(g.name, ", ".join(g.aliases) + " (dissolved: outside the method)") for g in library().values()
+                if g.kind == "dissolved"]
 
     def vessel(self, values: dict, *, answer=None, error=None, error_field=None, notes=(), status=200):
         return self.render("vessel.html.j2", status=status, page="vessel", v=values, answer=answer, error=error,
