@@ -217,11 +217,14 @@ class App:
         return state
 
     def _listing(self, job, page: int) -> dict | None:
-        path = Path(job.folder) / "rows.json"
-        if not path.is_file():
-            return None
-        with open(path, encoding="utf-8") as fh:
-            data = json.load(fh)
+        with job.lock:   # read once: the page polls, and a large inventory's listing is large
+            if job.listing is None:
+                path = Path(job.folder) / "rows.json"
+                if not path.is_file():
+                    return None
+                with open(path, encoding="utf-8") as fh:
+                    job.listing = json.load(fh)
+            data = job.listing
         rows = data["rows"]
         pages = max(1, math.ceil(len(rows) / PAGE_ROWS))
         page = min(max(1, page), pages)

@@ -28,7 +28,7 @@ from screening.web import engine
 #: Answers kept for downloads (the oldest are dropped first).
 ANSWERS_KEPT = 200
 #: Inventory jobs kept with their files (the oldest are dropped first, with their folder).
-JOBS_KEPT = 20
+JOBS_KEPT = 10
 
 
 def _vessel_workers() -> int:
@@ -60,6 +60,8 @@ class Job:
     filename: str
     future: cf.Future
     started: _dt.datetime
+    listing: dict | None = None          # rows.json once read (it is written once)
+    lock: threading.Lock = field(default_factory=threading.Lock)
 
 
 class Runner:
