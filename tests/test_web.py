@@ -265,11 +265,11 @@ def test_loopback_names_are_recognised():
     assert not is_loopback("0.0.0.0") and not is_loopback("192.168.1.10")
 
 
-def _inventory_csv(rows: int) -> bytes:
+def _inventory_csv(rows: int, spread: int = 120) -> bytes:
     """A register of `rows` nitrogen cylinders (invented, for the page's mechanics only)."""
     head = "id;gas;water_capacity [L];rated_pressure [bar(g)];fill_pressure [bar(g)];fill_temperature [degC];" \
            "gas_temperature [degC]\n"
-    return (head + "".join(f"T-{i:06d};nitrogen;50;300;{150 + i % 120};15;65\n" for i in range(rows))).encode()
+    return (head + "".join(f"T-{i:06d};nitrogen;50;300;{150 + i % spread};15;65\n" for i in range(rows))).encode()
 
 
 def _wait_done(client, job, seconds=300):
@@ -349,3 +349,22 @@ def test_an_unreadable_inventory_says_why(client):
         assert time.monotonic() < deadline and "Done:" not in status
         time.sleep(0.3)
     assert "bad.csv" in status and "colour" in status
+
+
+def test_a_large_inventory_offers_its_batch_pdf_and_writes_it_on_request(client):
+    from screening.web.engine import PDF_AT_ONCE_ROWS
+
+    rows = PDF_AT_ONCE_ROWS + 1
+    sent = client.post("/inventory", files={"inventory_file": ("large.csv", _inventory_csv(rows, spread=1), "text/csv")},
+                       follow_redirects=False)
+    job = sent.headers["location"]
+    status = _wait_done(client, job)
+    assert 'id="make-pdf"' in status and "large.report.pdf" not in status
+    assert client.post(job + "/pdf", follow_redirects=False).status_code == 303
+    deadline = time.monotonic() + 300
+    while "large.report.pdf" not in (status := client.get(job + "/status").text):
+        assert time.monotonic() < deadline
+        time.sleep(0.5)
+    pdf = client.get(f"{job}/file/large.report.pdf")
+    assert pdf.status_code == 200 and pdf.content.startswith(b"%PDF")
+    assert f'id="count-rows">{rows}<' in status

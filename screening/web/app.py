@@ -78,6 +78,7 @@ class App:
             Route("/inventory", self.inventory_post, methods=["POST"]),
             Route("/inventory/{token}", self.inventory_job, methods=["GET"]),
             Route("/inventory/{token}/status", self.inventory_status, methods=["GET"]),
+            Route("/inventory/{token}/pdf", self.inventory_pdf, methods=["POST"]),
             Route("/inventory/{token}/file/{name}", self.inventory_file, methods=["GET"]),
             Route("/gases", self.gases_page, methods=["GET"]),
             Route("/favicon.ico", lambda request: RedirectResponse("/static/icon.svg", status_code=301)),
@@ -240,7 +241,8 @@ class App:
         except ValueError:
             page_no = 1
         state = self._job_state(job)
-        listing = self._listing(job, page_no) if state.get("stage") in ("writing", "done") else None
+        listing = self._listing(job, page_no) if state.get("stage") in ("writing", "done") \
+            or job.listing is not None else None
         return self.render(template, page=page, title=f"Inventory {job.filename}", job=job, state=state,
                            listing=listing, verdict_words=self.labels()["verdicts"], order=VERDICT_ORDER, kinds=batch_outputs.MEDIA, error=None,
                            limit=INVENTORY_LIMIT)
@@ -250,6 +252,14 @@ class App:
 
     async def inventory_status(self, request: Request):
         return await run_in_threadpool(self._job_view, request, "inventory_status.html.j2")
+
+    async def inventory_pdf(self, request: Request):
+        job = self.runner.get_job(request.path_params["token"])
+        if job is None:
+            return self.render("gone.html.j2", status=404, page="", title="Inventory no longer kept")
+        await request.body()
+        self.runner.start_pdf(job)
+        return RedirectResponse(f"/inventory/{job.token}", status_code=303)
 
     async def inventory_file(self, request: Request):
         job = self.runner.get_job(request.path_params["token"])

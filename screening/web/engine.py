@@ -97,19 +97,32 @@ def _status(folder: str, **state) -> None:
     os.replace(tmp, path)
 
 
-def inventory(folder: str, filename: str, sheet: str | None, date_iso: str) -> dict:
+#: Inventories up to this many rows get their batch PDF at once; a larger one on request (its PDF
+#: details every vessel that is not within its rating: thousands of pages take minutes).
+PDF_AT_ONCE_ROWS = 2000
+
+
+def inventory(folder: str, filename: str, sheet: str | None, date_iso: str, pdf: bool | None = None) -> dict:
     """Screen the inventory file `folder/filename` with the batch engine and write its outputs.
 
     Progress goes to `folder/status.json` as stages; the counts and the ranked list of the vessels
-    (worst first, every row kept) to `folder/rows.json`; the downloads beside them. Returns the final
-    status. An unreadable file is a final status with its one message.
+    (worst first, every row kept) to `folder/rows.json`; the downloads beside them. The batch PDF is
+    written when `pdf` is true, or (None) for an inventory of up to PDF_AT_ONCE_ROWS rows; otherwise it
+    is offered ("pdf": "offered"). `pdf` alone (with the files already there) writes only the PDF.
+    Returns the final status. An unreadable file is a final status with its one message.
     """
     from screening import batch
     from screening.inputs.inventory import read_inventory
     from screening.web import batch_outputs
 
     t0 = time.perf_counter()
-    _status(folder, stage="reading", message="Reading the file", seconds=0.0)
+    only_pdf = bool(pdf) and os.path.exists(os.path.join(folder, "rows.json"))
+    previous = {}
+    if only_pdf:
+        with open(os.path.join(folder, "status.json"), encoding="utf-8") as fh:
+            previous = json.load(fh)
+    made = list(previous.get("made") or [])
+    _status(folder, **dict(previous, stage="reading", message="Reading the file", seconds=0.0))
     cwd = os.getcwd()
     try:
         os.chdir(folder)   # messages name the file as uploaded, not the server's folder
@@ -119,36 +132,41 @@ def inventory(folder: str, filename: str, sheet: str | None, date_iso: str) -> d
             state = dict(stage="failed", message=str(exc), seconds=time.perf_counter() - t0)
             _status(folder, **state)
             return state
-        _status(folder, stage="screening", message=f"Screening {len(inv.rows)} rows", rows=len(inv.rows),
-                seconds=time.perf_counter() - t0)
+        _status(folder, **dict(previous, stage="screening", message=f"Screening {len(inv.rows)} rows",
+                               rows=len(inv.rows), seconds=time.perf_counter() - t0))
         run = batch.BatchRun(inv, None, quiet=True)
         results = run.results
         s = batch.summary(results)
-        listing = [dict(row=r["row"], id=r.get("id"), verdict=r["verdict"], **batch.cells(r),
-                        reason=(r.get("reasons") or [""])[0] if r["verdict"] != "within" else "",
-                        warnings=[w["message"] for w in r.get("warnings") or []])
-                   for r in batch.ranked(results)]
-        with open(os.path.join(folder, "rows.json"), "w", encoding="utf-8") as fh:
-            json.dump({"summary": s, "rows": listing}, fh, ensure_ascii=False)
         stem = os.path.splitext(filename)[0]
-        made = []
-        for kind in batch_outputs.formats():
-            if kind == "pdf":
-                continue
-            _status(folder, stage="writing", message=f"Writing the {kind.upper()} file", rows=len(results),
-                    summary=s, made=made, seconds=time.perf_counter() - t0)
-            name = f"{stem}.result.{kind}"
-            batch_outputs.write(kind, inv, run, name, date_iso)
+        if not only_pdf:
+            listing = [dict(row=r["row"], id=r.get("id"), verdict=r["verdict"], **batch.cells(r),
+                            reason=(r.get("reasons") or [""])[0] if r["verdict"] != "within" else "",
+                            warnings=[w["message"] for w in r.get("warnings") or []])
+                       for r in batch.ranked(results)]
+            with open(os.path.join(folder, "rows.json"), "w", encoding="utf-8") as fh:
+                json.dump({"summary": s, "rows": listing}, fh, ensure_ascii=False)
+            for kind in batch_outputs.formats():
+                if kind == "pdf":
+                    continue
+                _status(folder, stage="writing", message=f"Writing the {kind.upper()} file", rows=len(results),
+                        summary=s, made=made, seconds=time.perf_counter() - t0)
+                name = f"{stem}.result.{kind}"
+                batch_outputs.write(kind, inv, run, name, date_iso)
+                made.append(name)
+        want_pdf = pdf if pdf is not None else len(results) <= PDF_AT_ONCE_ROWS
+        offered = None
+        if want_pdf:
+            _status(folder, stage="writing", message="Writing the PDF report", rows=len(results), summary=s,
+                    made=made, seconds=time.perf_counter() - t0)
+            name = f"{stem}.report.pdf"
+            batch_outputs.write("pdf", inv, run, name, date_iso)
             made.append(name)
-        _status(folder, stage="writing", message="Writing the PDF report", rows=len(results), summary=s,
-                made=made, seconds=time.perf_counter() - t0)
-        name = f"{stem}.report.pdf"
-        batch_outputs.write("pdf", inv, run, name, date_iso)
-        made.append(name)
+        else:
+            offered = "offered"
     finally:
         os.chdir(cwd)
     state = dict(stage="done", message="Done", rows=len(results), summary=s, made=made,
-                 seconds=time.perf_counter() - t0)
+                 seconds=time.perf_counter() - t0 + float(previous.get("seconds") or 0.0), pdf=offered)
     _status(folder, **state)
     return state
 

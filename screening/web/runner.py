@@ -60,7 +60,9 @@ class Job:
     filename: str
     future: cf.Future
     started: _dt.datetime
+    sheet: str | None = None
     listing: dict | None = None          # rows.json once read (it is written once)
+    pdf_asked: bool = False
     lock: threading.Lock = field(default_factory=threading.Lock)
 
 
@@ -141,7 +143,7 @@ class Runner:
         with open(os.path.join(folder, filename), "wb") as fh:
             fh.write(data)
         future = self.inventory_pool.submit(engine.inventory, folder, filename, sheet, _dt.date.today().isoformat())
-        job = Job(token, folder, filename, future, _dt.datetime.now())
+        job = Job(token, folder, filename, future, _dt.datetime.now(), sheet)
         with self._lock:
             self._jobs[token] = job
             while len(self._jobs) > JOBS_KEPT:
@@ -149,6 +151,14 @@ class Runner:
                 if old.future.done():
                     shutil.rmtree(old.folder, ignore_errors=True)
         return job
+
+    def start_pdf(self, job: Job) -> None:
+        """Write the batch PDF of a screened inventory that offered it (in the inventory worker)."""
+        with job.lock:
+            if job.future.done() and not job.pdf_asked:
+                job.pdf_asked = True
+                job.future = self.inventory_pool.submit(engine.inventory, job.folder, job.filename, job.sheet,
+                                                        _dt.date.today().isoformat(), True)
 
     def get_job(self, token: str) -> Job | None:
         with self._lock:
