@@ -86,6 +86,12 @@ def _build() -> argparse.ArgumentParser:
     t.add_argument("kind", choices=("inventory", "case"), help="inventory (CSV or XLSX) or case (TOML)")
     t.add_argument("-o", "--output", metavar="FILE", help="file to write (.csv or .xlsx for an inventory, "
                    ".toml for a case); default: print it")
+
+    w = sub.add_parser("serve", help="start the local web page (vessel, inventory, gas library)")
+    w.add_argument("--host", default="127.0.0.1", help="address to listen on (default 127.0.0.1: this "
+                   "computer only; any other prints a warning)")
+    w.add_argument("--port", type=int, default=8765, help="port to listen on (default 8765)")
+    w.add_argument("--open", action="store_true", help="open the page in the web browser")
     return p
 
 
@@ -312,6 +318,10 @@ def run(argv: list[str] | None = None) -> int:
         if written:
             print(f"template written: {written}", file=sys.stderr)
         return 0
+    if args.command == "serve":
+        from screening.web.server import serve
+
+        return serve(args.host, args.port, open_browser=args.open)
     if args.command == "gases":
         from screening.outputs.gases_listing import format_library
 

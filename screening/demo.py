@@ -48,6 +48,8 @@ def main(argv: list[str] | None = None) -> int:
         written.append(out / "inventory.pdf")
     for pdf in written:
         print(f"report written: {pdf.relative_to(root)}")
+    print("\nTo screen vessels in a web page instead: run `make serve` (or `.venv/bin/screening serve --open`); "
+          "the page opens at http://127.0.0.1:8765/ and Ctrl-C stops it.")
     return 0
 
 
