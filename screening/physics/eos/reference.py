@@ -114,12 +114,18 @@ def _citation(key: str) -> str:
 # The fluid
 # --------------------------------------------------------------------------------------------------
 
+#: What CoolProp's look-up functions raise for a name or binary pair they do not know: ValueError
+#: (CoolProp 8), RuntimeError (CoolProp 6 and 7; for a pair also when it is stored in the other order).
+#: Either way the fluid or pair is taken as missing, and the mixture is refused (NotApplicable), never screened.
+_LOOKUP_ERRORS = (ValueError, RuntimeError)
+
+
 def _binary_pair_missing(cas1: str, cas2: str) -> bool:
     for a, b in ((cas1, cas2), (cas2, cas1)):
         try:
             CP.get_mixture_binary_pair_data(a, b, "betaT")
             return False
-        except ValueError:
+        except _LOOKUP_ERRORS:
             continue
     return True
 
@@ -128,7 +134,7 @@ def _binary_pair_key(cas1: str, cas2: str) -> str | None:
     for a, b in ((cas1, cas2), (cas2, cas1)):
         try:
             return CP.get_mixture_binary_pair_data(a, b, "BibTeX")
-        except ValueError:
+        except _LOOKUP_ERRORS:
             continue
     return None
 
@@ -157,7 +163,7 @@ class ReferenceFluid:
         for n in names:
             try:
                 cas.append(CP.get_fluid_param_string(n, "CAS"))
-            except ValueError:
+            except _LOOKUP_ERRORS:
                 raise NotApplicable(MODEL, f"fluid '{n}' is not known to CoolProp", value=n) from None
         self.names = names
         self.is_mixture = len(names) > 1
