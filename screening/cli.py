@@ -2,12 +2,15 @@
 
 Exit codes: 0 within rating; 1 any other verdict (or a report that does not verify); 2 input error.
 
-Commands that write a PDF (`report`, `check --pdf`) screen the case in a forked child process: the
-child imports the screening core (CoolProp loads its whole fluid library) while this process reads the
-case and imports the report layer (WeasyPrint, Matplotlib, Jinja2), so the two slow import chains run
-on two cores at once (`parallel.Standby`). The child sends the result back pickled, so every value
-comes back unchanged; where fork is not available, or the child gives no answer, the case is screened
-here as before.
+Each command imports only what it needs, inside its own function: the screening core (numpy, scipy,
+CoolProp, which loads its whole fluid library at import) for `check`, `report` and `verify`; the report
+layer (WeasyPrint, Matplotlib, Jinja2) only where a PDF is written or read.
+
+Commands that write a PDF (`report`, `check --pdf`) from a fresh process read the case, then screen it
+in a `concurrent.futures.ProcessPoolExecutor` worker: the worker imports the screening core and screens
+the case while this process imports the report layer, so the two slow import chains run on two cores
+at once. The result comes back pickled (every value unchanged; an input error comes back
+as itself). Where no worker can be started, or it dies, the case is screened here.
 """
 
 from __future__ import annotations
@@ -15,8 +18,6 @@ from __future__ import annotations
 import argparse
 import contextlib
 import datetime as _dt
-import gc
-import json
 import os
 import sys
 
@@ -124,75 +125,63 @@ def _prepare_report_layer() -> None:
         pass
 
 
-def _screen_message(case) -> dict:
-    """Run in the forked child: {"result": ...} or {"input_error": "the one-line message"}."""
+def _screen_in_worker(case) -> dict:
+    """Run in the worker: the result of the case (an InputError raised here comes back as itself)."""
     from screening.screen import screen_case
 
-    try:
-        return {"result": screen_case(case)}
-    except InputError as exc:
-        return {"input_error": str(exc)}
+    return screen_case(case)
 
 
-def _fork_helps() -> bool:
-    """Fork where the platform has it and this process has not loaded the screening core yet (a fresh
-    command; a long-lived caller that has it loaded would only pay for the fork)."""
+def _worker_helps() -> bool:
+    """A worker pays off in a fresh command only: a long-lived caller that has the screening core
+    loaded already would only pay for the process. Where the platform cannot fork, a worker would
+    import everything again from scratch, so the case is screened here."""
     return hasattr(os, "fork") and "screening.screen" not in sys.modules
+
+
+def _worker_pool():
+    """One forked worker process; the caller shuts it down."""
+    import multiprocessing
+    from concurrent.futures import ProcessPoolExecutor
+
+    return ProcessPoolExecutor(max_workers=1, mp_context=multiprocessing.get_context("fork"))
 
 
 def _screened_for_pdf(path: str, *, fork: bool | None = None) -> tuple[dict, str]:
     """(result, case text as read) for a command that goes on to write a PDF.
 
-    With `fork` (default: `_fork_helps()`), a child (`parallel.Standby`) imports the screening core and
-    screens the case while this process reads the case and imports the report layer. The parent sends
-    it the parsed Case (so the child never needs the unit registry); an InputError found by the child is
-    raised here with the same message. Without a fork, or when the child gives no answer, the case is
-    screened here.
+    The case is read here first, so an unreadable case is reported at once and starts no process.
+    Then, with `fork` (default: `_worker_helps()`), one worker process (`_worker_pool`) imports the
+    screening core and screens the case while this process imports the report layer. The worker is
+    handed the parsed Case (it never builds the unit registry); an InputError it finds is raised here as
+    itself. Without a worker, or when it cannot be started, cannot be handed the case or dies, the case
+    is screened here.
     """
-    from screening import parallel
+    from screening.inputs.case import load_case
 
+    case = load_case(path)
     if fork is None:
-        fork = _fork_helps()
-    child = None
+        fork = _worker_helps()
     if fork:
+        pool = None
         try:
-            child = parallel.Standby(("screening.screen",))
-        except OSError:  # no memory, no more processes: screened here
-            child = None
-    try:
-        from screening.inputs.case import load_case
-
-        case = load_case(path)
-        if child is not None:
-            try:
-                child.send(_screen_message, case)
-                _prepare_report_layer()
-                message = child.answer()
-            except parallel.StandbyGone:
-                message = None
-            if message is not None:
-                if "input_error" in message:
-                    raise InputError(message["input_error"])
-                return message["result"], case.text
-    finally:
-        if child is not None:
-            child.close()
+            pool = _worker_pool()
+            job = pool.submit(_screen_in_worker, case)
+            _prepare_report_layer()
+            return job.result(), case.text
+        except InputError:
+            raise
+        except Exception:  # noqa: BLE001
+            # No process could be started (OSError), the worker died (BrokenProcessPool), or the case or
+            # the answer could not be handed over (a pickling error): screened here. An error of the
+            # screening itself is raised again by the screening here, with this process's traceback.
+            pass
+        finally:
+            if pool is not None:
+                pool.shutdown(wait=True, cancel_futures=True)
     from screening.screen import screen_case
 
     return screen_case(case), case.text
-
-
-def _ending(argv: list[str] | None) -> None:
-    """When this process runs its own command line (`argv` None), it ends after this: move every object
-    into the garbage collector's permanent generation. Interpreter shutdown still runs every exit
-    handler and closes every file, but its final collections no longer walk the hundreds of thousands
-    of objects the libraries created only to free memory the system reclaims anyway (about half a second
-    of a report command's run). A caller that passes `argv` lives on, and is left as it is.
-
-    Not where this process has loaded CoolProp: its binding library counts the objects still alive at
-    shutdown, and frozen ones never die, so it would print a page of "leaked" notices on the way out."""
-    if argv is None and "CoolProp.CoolProp" not in sys.modules:
-        gc.freeze()
 
 
 #: Largest inventory file [bytes] a batch reads (a 100 000-row inventory is about 10 MB).
@@ -332,7 +321,6 @@ def run(argv: list[str] | None = None) -> int:
 
         ok, message = verify_report(args.report)
         print(message)
-        _ending(argv)
         return EXIT_WITHIN if ok else EXIT_NOT_WITHIN
 
     if args.command == "report" or args.pdf:
@@ -342,9 +330,10 @@ def run(argv: list[str] | None = None) -> int:
     if args.command == "report":
         written = _write_pdf(result, case_text, args.output, args.date)
         print(f"report written: {written}")
-        _ending(argv)
         return _exit_for(result["verdict"])
     if args.json:
+        import json
+
         print(json.dumps(result, indent=2, ensure_ascii=False, allow_nan=False))
     else:
         from screening.outputs.summary import format_summary
@@ -353,7 +342,6 @@ def run(argv: list[str] | None = None) -> int:
     if args.pdf:
         written = _write_pdf(result, case_text, args.pdf, args.date)
         print(f"report written: {written}", file=sys.stderr if args.json else sys.stdout)
-    _ending(argv)
     return _exit_for(result["verdict"])
 
 

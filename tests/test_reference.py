@@ -240,3 +240,17 @@ def test_pressure_rises_with_T_nitrogen_single_phase(rho, T, dT):
     n2 = pure("Nitrogen")
     assert n2.pressure(rho, T + dT) > n2.pressure(rho, T)
     assert n2.dp_dt_at_constant_density(rho, T) > 0
+
+
+def test_a_binary_pair_lookup_that_raises_runtime_error_is_a_missing_pair(monkeypatch):
+    # CoolProp 6 and 7 raise RuntimeError where 8 raises ValueError (CoolProp.get_mixture_binary_pair_data
+    # for a pair it has no parameters for); either way the mixture is refused, never screened or a traceback.
+    from screening.physics.eos import reference as ref
+
+    def no_pair(cas1, cas2, key):
+        raise RuntimeError(f"Could not match the binary pair [{cas1},{cas2}] - for now this is an error.")
+
+    monkeypatch.setattr(ref.CP, "get_mixture_binary_pair_data", no_pair)
+    with pytest.raises(NotApplicable) as e:
+        ref.ReferenceFluid(("Argon", "CarbonDioxide"), (0.82, 0.18))
+    assert "no binary interaction parameters" in e.value.reason

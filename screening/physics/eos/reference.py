@@ -25,9 +25,11 @@ Units: SI throughout — pressure [Pa], temperature [K], molar density [mol/m3],
 
 from __future__ import annotations
 
+import functools
 import math
 import os
 import re
+import threading
 from functools import lru_cache
 
 import CoolProp
@@ -111,12 +113,18 @@ def _citation(key: str) -> str:
 # The fluid
 # --------------------------------------------------------------------------------------------------
 
+#: What CoolProp's look-up functions raise for a name or binary pair they do not know: ValueError
+#: (CoolProp 8), RuntimeError (CoolProp 6 and 7; for a pair also when it is stored in the other order).
+#: Either way the fluid or pair is taken as missing, and the mixture is refused (NotApplicable), never screened.
+_LOOKUP_ERRORS = (ValueError, RuntimeError)
+
+
 def _binary_pair_missing(cas1: str, cas2: str) -> bool:
     for a, b in ((cas1, cas2), (cas2, cas1)):
         try:
             CP.get_mixture_binary_pair_data(a, b, "betaT")
             return False
-        except ValueError:
+        except _LOOKUP_ERRORS:
             continue
     return True
 
@@ -125,9 +133,24 @@ def _binary_pair_key(cas1: str, cas2: str) -> str | None:
     for a, b in ((cas1, cas2), (cas2, cas1)):
         try:
             return CP.get_mixture_binary_pair_data(a, b, "BibTeX")
-        except ValueError:
+        except _LOOKUP_ERRORS:
             continue
     return None
+
+
+def _holding_the_state(method):
+    """Run a method that updates and reads the fluid's one AbstractState while holding the fluid's lock.
+
+    The cached fluid (one per process, see :func:`reference_fluid`) is shared by every thread, and an
+    evaluation is several CoolProp calls in a row (update, then pressure, phase, derivatives): another
+    thread updating the same state between them would hand out its numbers. A re-entrant lock per fluid
+    (methods call one another) costs well under a microsecond per call (DEVELOPERS.md); one state per
+    thread would have to build a mixture's phase envelope again in every thread."""
+    @functools.wraps(method)
+    def locked(self, *args, **kwargs):
+        with self._lock:
+            return method(self, *args, **kwargs)
+    return locked
 
 
 class ReferenceFluid:
@@ -145,6 +168,7 @@ class ReferenceFluid:
     """
 
     def __init__(self, names: tuple[str, ...], fractions: tuple[float, ...]) -> None:
+        self._lock = threading.RLock()  # held around every use of self._state (_holding_the_state)
         names = tuple(str(n) for n in names)
         fractions = tuple(float(x) for x in fractions)
         if not names or len(names) != len(fractions):
@@ -156,7 +180,7 @@ class ReferenceFluid:
         for n in names:
             try:
                 cas.append(CP.get_fluid_param_string(n, "CAS"))
-            except ValueError:
+            except _LOOKUP_ERRORS:
                 raise NotApplicable(MODEL, f"fluid '{n}' is not known to CoolProp", value=n) from None
         self.names = names
         self.is_mixture = len(names) > 1
@@ -377,6 +401,7 @@ class ReferenceFluid:
 
     # ---------------------------------------------------------------------------------------------
     # public scalar API
+    @_holding_the_state
     def pressure(self, rho_molar: float, T: float) -> float:
         """Pressure [Pa] at molar density rho_molar [mol/m3] and temperature T [K].
 
@@ -384,10 +409,12 @@ class ReferenceFluid:
         """
         return self._evaluate(float(rho_molar), float(T))[0]
 
+    @_holding_the_state
     def phase(self, rho_molar: float, T: float) -> str:
         """"gas" | "supercritical" | "two-phase" | "liquid" at rho_molar [mol/m3], T [K]."""
         return self._evaluate(float(rho_molar), float(T))[1]
 
+    @_holding_the_state
     def dp_dt_at_constant_density(self, rho_molar: float, T: float) -> float:
         """(dP/dT) along the isochore [Pa/K]; in the pure-fluid dome this is dp_sat/dT."""
         _, phase = self._evaluate(float(rho_molar), float(T))
@@ -401,6 +428,7 @@ class ReferenceFluid:
                                 value=(rho_molar, T))
         return float(d)
 
+    @_holding_the_state
     def density(self, p: float, T: float) -> float:
         """Molar density [mol/m3] at pressure p [Pa] and temperature T [K] (PT flash, checked).
 
@@ -489,6 +517,7 @@ class ReferenceFluid:
 
     # ---------------------------------------------------------------------------------------------
     # saturation (pure fluids)
+    @_holding_the_state
     def _saturation(self, T: float, q: float) -> tuple[float, float]:
         self._require_pure("saturation")
         T = float(T)
@@ -521,6 +550,7 @@ class ReferenceFluid:
         return self._saturation(T, 1.0)[1]
 
     # ---------------------------------------------------------------------------------------------
+    @_holding_the_state
     def pressures(self, rho_molar: np.ndarray, T: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """Vectorised :meth:`pressure` over rows (broadcast), looping the one cached AbstractState.
 
