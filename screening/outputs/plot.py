@@ -109,13 +109,16 @@ def worst_case_point_temperature(result: dict) -> float | None:
 
 
 def phase_diagram_wanted(result: dict) -> bool:
-    """Whether the report should show the phase diagram: a liquefiable gas, a liquid or two-phase state
-    at fill or at the worst case, or a liquid-full temperature in the result."""
+    """Whether the report should show the phase diagram: a liquid or two-phase state at fill or at the
+    worst case, or a liquid-full temperature on the heating path (at or above the fill
+    temperature). A gas far above its critical temperature, whose liquid-full point lies far below the
+    fill (hydrogen's at about -240 degC), gets none."""
     ref = (result.get("models") or {}).get("reference") or {}
     phases = (result["fill"].get("phase"), ref.get("phase_fill"), ref.get("phase_peak"))
-    return (result["gas"].get("kind") == "liquefiable"
-            or any(p in CONDENSED_PHASES for p in phases)
-            or (result.get("limits") or {}).get("liquid_full_temperature_k") is not None)
+    t_full = (result.get("limits") or {}).get("liquid_full_temperature_k")
+    t_fill = result["fill"].get("temperature_k")
+    return (any(p in CONDENSED_PHASES for p in phases)
+            or (_finite(t_full) and _finite(t_fill) and t_full >= t_fill))
 
 
 def phase_diagram_drawable(result: dict) -> bool:
@@ -231,7 +234,7 @@ def plot_svg(result: dict, png_dpi: int | None = None) -> str:
     P, T = _converters(result)
 
     with matplotlib.rc_context(_RC):
-        fig = Figure(figsize=(6.6, 4.3), dpi=100)
+        fig = Figure(figsize=(6.6, 3.6), dpi=100)
         FigureCanvasSVG(fig)
         ax = fig.add_subplot(1, 1, 1)
 
@@ -391,7 +394,7 @@ def phase_diagram_svg(result: dict) -> str:
     t_right = max(highs)
 
     with matplotlib.rc_context(_RC):
-        fig = Figure(figsize=(6.6, 4.6), dpi=100)
+        fig = Figure(figsize=(6.6, 4.0), dpi=100)
         FigureCanvasSVG(fig)
         ax = fig.add_subplot(1, 1, 1)
 
