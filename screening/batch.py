@@ -393,10 +393,11 @@ def run(args) -> int:
         if args.csv:
             write_csv(inv, results, args.csv)
         if args.pdf:
-            from screening.outputs.batch_report import render_batch_report
+            from screening.outputs.batch_report import render_batch_report, row_texts
 
             render_batch_report(results, args.pdf, source=inv.source, all_details=args.all_details,
-                                report_date=args.date, quiet=args.quiet, full=run_.full, standby=standby)
+                                report_date=args.date, quiet=args.quiet, full=run_.full, standby=standby,
+                                site=getattr(args, "site", None), texts=row_texts(inv, defaults))
     finally:
         for child in (standby, reader):
             if child is not None:

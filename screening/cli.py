@@ -68,6 +68,8 @@ def _build() -> argparse.ArgumentParser:
     b.add_argument("--json", metavar="OUT.json", help="write every row's result as JSON")
     b.add_argument("--csv", metavar="OUT.csv", help="write the inventory with the results as CSV")
     b.add_argument("--pdf", metavar="OUT.pdf", help="write the batch report as PDF")
+    b.add_argument("--site", metavar="NAME", help="site name for the title of the PDF (default: the site "
+                   "name the rows share, from their column or the defaults file)")
     b.add_argument("--all-details", action="store_true", help="detail every vessel in the PDF, not only those "
                    "that are not within rating")
     b.add_argument("--date", type=_date, help="report date (YYYY-MM-DD; default today)")

@@ -813,7 +813,7 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
     scenario_rows = _scenario_rows(result, fmt)
     tolerance = _tolerance_view(result, fmt)
     phase = _phase_view(result, fmt)
-    order = ["results", "inputs"] + (["exposure"] if exposure or scenario_rows else []) \
+    order = ["results", "inputs", "exposure"] \
         + (["phase"] if phase else []) + (["tolerance"] if tolerance else [])
     sections = {key: str(i) for i, key in enumerate(order, start=1)}
     if exposure is None or not exposure["governing"]:
