@@ -292,7 +292,7 @@ def plot_svg(result: dict, png_dpi: int | None = None, return_figure: bool = Fal
     P, T = _converters(result)
 
     with matplotlib.rc_context(_RC):
-        fig = Figure(figsize=(6.6, 3.6), dpi=100)
+        fig = Figure(figsize=(6.6, 3.4), dpi=100)
         FigureCanvasSVG(fig)
         ax = fig.add_subplot(1, 1, 1)
 

@@ -640,7 +640,7 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
         key_figures.append(("Governing scenario", f"{visible(result.get('governing_scenario'))} (worst of {len(scenarios)})"))
     if bounding:
         key_figures += [
-            ("Bounding peak pressure", P(result["peak_pressure_pa"])),
+            ("Peak pressure, bounding the input tolerances", P(result["peak_pressure_pa"])),
             ("at gas temperature", f"{T(worst_case_point_temperature(result))} (worst case "
              f"{T(t_peak)} + {num(tol.get('gas_temperature_band_k'), 1)} K; {result['worst_case_basis']})"),
             ("Nominal peak pressure", P(tol.get("nominal_peak_pressure_pa"))),
