@@ -182,7 +182,7 @@ def _listing(rows: list[dict]) -> tuple[list[str], list[tuple[str, list[str]]]]:
     a rule, and for each row its class and its lines (one, or more where a long id or gas name wraps)."""
     import textwrap
 
-    columns = [c for c in _COLUMNS if c[0] != "location" or any(r.get("location") for r in rows)]
+    columns = [c for c in _COLUMNS if c[0] not in ("location", "description") or any(r.get(c[0]) for r in rows)]
     keys = [k for k, _, _ in columns]
     width = {k: max([len(h) for h in head] + [len(r[k]) for r in rows]) for k, head, _ in columns}
     over = sum(width.values()) + len(_GAP) * (len(keys) - 1) - LISTING_WIDTH
