@@ -166,3 +166,22 @@ def test_cjk_text_is_set_in_an_embedded_wide_coverage_font():
             fonts.add(str(f.get_object().get("/BaseFont")))
     assert any("Noto" in f and "CJK" in f for f in fonts), fonts
     assert "圧縮ガス容器" in (reader.pages[0].extract_text() or "")
+
+
+def test_a_gas_below_its_critical_pressure_is_called_a_gas_not_supercritical():
+    text = """id = "T-AIR"
+[vessel]
+water_capacity = "50 L"
+rated_pressure = "16 bar(g)"
+[fill]
+gas = "air"
+pressure = "10 bar(g)"
+temperature = "15 degC"
+[exposure]
+gas_temperature = "50 degC"
+"""
+    result = screen_case(parse_case_text(text, "air.toml"))
+    out = format_summary(result, width=100)
+    assert "supercritical" not in out and "gas (above its critical temperature)" in out
+    html = report_mod.render_html(result, text, DATE)
+    assert "supercritical" not in html

@@ -49,7 +49,7 @@ from screening.outputs.plot import (
 )
 from screening.outputs.actions import action_line
 from screening.outputs.summary import scenarios_worst_first
-from screening.outputs.text import fmt_pressure, percent_pair, pressure_unit, reasons_shown, visible
+from screening.outputs.text import fmt_pressure, percent_pair, phase_words, pressure_unit, reasons_shown, visible
 from screening.units import format_percent, format_pressure, format_quantity, format_temperature, pressure_in
 
 TEMPLATE_NAME = "report.html.j2"
@@ -497,7 +497,7 @@ def _phase_view(result: dict, f: _Fmt) -> dict | None:
          "not stated in the case" if vessel.get("max_filling_ratio_kg_per_l") is None
          else _unit(num(vessel["max_filling_ratio_kg_per_l"], 4), "kg/L")),
         ("Phase at fill / at the worst case",
-         f"{_text(ref.get('phase_fill') or fill.get('phase')) or '—'} / {_text(ref.get('phase_peak')) or '—'}"),
+         f"{phase_words(result, ref.get('phase_fill') or fill.get('phase'))} / {phase_words(result, ref.get('phase_peak'))}"),
     ]
     if fill.get("vapour_pressure_pa") is not None:
         rows.append(("Vapour pressure at the fill temperature", f.P(fill["vapour_pressure_pa"])))
@@ -693,7 +693,7 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
         ("Filling ratio", _unit(num(fill["filling_ratio_kg_per_l"], 4), "kg/L")
          + ("" if vessel.get("max_filling_ratio_kg_per_l") is None
             else f" (largest allowed {num(vessel['max_filling_ratio_kg_per_l'], 3)} kg/L)")),
-        ("Phase at fill", _text(fill["phase"]) or "\u2014"),
+        ("Phase at fill", phase_words(result, fill["phase"])),
     ]
     if fill.get("vapour_pressure_pa") is not None:
         fill_rows.append(("Vapour pressure at the fill temperature", P(fill["vapour_pressure_pa"])))
@@ -748,7 +748,7 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
                 ("Fluid (CoolProp)", _text(m.get("fluid")) or "\u2014"),
                 (Markup("Molar density used, &rho;<sub>m</sub>"), _unit(sig(rho, 6), "mol/m\u00b3")),
                 ("Phase at fill / at peak", "\u2014" if m.get("phase_fill") is None and m.get("phase_peak") is None
-                 else f"{_text(m.get('phase_fill')) or '—'} / {_text(m.get('phase_peak')) or '—'}"),
+                 else f"{phase_words(result, m.get('phase_fill'))} / {phase_words(result, m.get('phase_peak'))}"),
                 (Markup("At fill: Z<sub>1</sub>"), num(m.get("z_fill"), 5)),
                 (Markup("At peak: Z<sub>2</sub>"), num(m.get("z_peak"), 5)),
             ]

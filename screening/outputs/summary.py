@@ -18,6 +18,7 @@ from screening.outputs.text import (
     fmt_pressure,
     fmt_temperature,
     percent_pair,
+    phase_words,
     pressure_unit,
     reasons_shown,
     shorten,
@@ -112,7 +113,7 @@ def format_summary(result: dict, width: int | None = None) -> str:
     w.add("Fill")
     if fill["pressure_pa"] is not None:
         w.add(f"pressure {P(fill['pressure_pa'])} at {T(fill['temperature_k'])}", "  ")
-    w.add(f"phase {fill['phase'] or 'not established'}; density "
+    w.add(f"phase {phase_words(result, fill['phase']) if fill['phase'] else 'not established'}; density "
           f"{format_quantity(fill['density_kg_m3'], 'kg/m3', 1)}; "
           f"filling ratio {format_quantity(fill['density_kg_m3'], 'kg/L', 3)}; "
           f"mass {format_quantity(fill['mass_kg'], du['mass'], 2)}", "  ")

@@ -125,3 +125,19 @@ def reasons_shown(result: dict) -> list[str]:
                 text = pattern.sub(lambda m: m.group(1) + a + m.group(3) + b, text, count=1)
         out.append(text)
     return out
+
+
+def phase_words(result: dict, phase: object) -> str:
+    """A phase name as a reader understands it. CoolProp calls every state above the critical temperature
+    'supercritical'; below the critical pressure that is plainly a gas (10 bar(g) air), above it a dense
+    gas above its critical point. The critical pressure is the generalized model's (pseudo)critical one."""
+    if phase is None:
+        return "\u2014"
+    text = str(phase)
+    if text not in ("supercritical", "supercritical_gas", "supercritical gas"):
+        return visible(text.replace("_", " "))
+    pc = ((result.get("models") or {}).get("generalized") or {}).get("pseudocritical_pressure_pa")
+    p_fill = (result.get("fill") or {}).get("pressure_pa")
+    if text != "supercritical" or (pc is not None and p_fill is not None and p_fill < pc):
+        return "gas (above its critical temperature)"
+    return "supercritical (dense gas above its critical point)"
