@@ -510,6 +510,7 @@ def run(args) -> int:
     tally = Tally()
     pdf_rows: list[dict] = []
     pdf_full: dict[int, dict] = {}
+    pdf_cells: list[tuple[int, list[str]]] = []     # the rows' own texts for the PDF listing
     bar = _progress(args.quiet)
     spill = _Spill() if by_severity else None
     kept: list = []
@@ -544,6 +545,7 @@ def run(args) -> int:
                         if f is not None:
                             pdf_full[len(pdf_rows)] = f
                         pdf_rows.append(s)
+                        pdf_cells.append((s["row"], cells_))
                 if bar:
                     bar.update(len(got))
             if outputs.headers is None:
@@ -553,11 +555,13 @@ def run(args) -> int:
                     outputs.write(values, line)
             outputs.finish(tally)
             if args.pdf:
-                from screening.outputs.batch_report import render_batch_report
+                from screening.outputs.batch_report import render_batch_report, row_texts
 
+                texts = row_texts(Inventory(reg.source, reg.columns, pdf_cells), defaults)
                 render_batch_report(pdf_rows, args.pdf, source=reg.source, all_details=args.all_details,
                                     report_date=args.date, quiet=args.quiet,
-                                    full=lambda i: pdf_full.get(i, pdf_rows[i]))
+                                    full=lambda i: pdf_full.get(i, pdf_rows[i]),
+                                    site=getattr(args, "site", None), texts=texts)
     except parallel.WorkerLost as exc:
         if bar:
             bar.close()

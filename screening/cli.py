@@ -26,6 +26,22 @@ from screening.errors import InputError, OutputError
 
 EXIT_WITHIN, EXIT_NOT_WITHIN, EXIT_INPUT = 0, 1, 2
 
+#: The exit codes of each command, as --help shows them (the README's table says the same).
+EXIT_HELP = {
+    "screening": "exit codes: 0 within rating; 1 any other verdict (or a report that does not verify);\n"
+                 "2 input error; 130 interrupted. 'screening COMMAND --help' gives each command's.",
+    "check": "exit codes: 0 within rating; 1 low-margin, over or out-of-scope (the summary, and the PDF\n"
+             "with --pdf, are still written); 2 input error or a report that could not be written.",
+    "report": "exit codes: 0 within rating; 1 the report was written but the verdict is low-margin, over or\n"
+              "out-of-scope; 2 input error or a report that could not be written (nothing written).",
+    "verify": "exit codes: 0 the attachments re-run to the same verdict and peak; 1 they do not;\n"
+              "2 not a readable report of this tool.",
+    "gases": "exit codes: 0.",
+    "batch": "exit codes: 0 every row within rating; 1 any row low-margin, over, out-of-scope or an\n"
+             "input-error row (the outputs are still written); 2 the inventory, the defaults file or an\n"
+             "output cannot be read or written (nothing written).",
+}
+
 
 class _Parser(argparse.ArgumentParser):
     def error(self, message: str):  # argparse's own usage errors: exit 2, one message
@@ -43,27 +59,33 @@ def _date(text: str) -> _dt.date:
 
 def _build() -> argparse.ArgumentParser:
     p = _Parser(prog="screening", description="Peak-pressure screening of gas cylinders and small rigid "
-                "pressure vessels exposed to heat. A screening aid only; see SAFETY.md.")
+                "pressure vessels exposed to heat. A screening aid only; see SAFETY.md.",
+                epilog=EXIT_HELP["screening"], formatter_class=argparse.RawDescriptionHelpFormatter)
     p.add_argument("--version", action="version", version=f"screening {__version__}")
     sub = p.add_subparsers(dest="command", required=True, parser_class=_Parser)
 
-    c = sub.add_parser("check", help="screen one vessel from a case file (TOML)")
+    c = sub.add_parser("check", help="screen one vessel from a case file (TOML)", epilog=EXIT_HELP["check"],
+                       formatter_class=argparse.RawDescriptionHelpFormatter)
     c.add_argument("case", help="case file (TOML)")
     c.add_argument("--json", action="store_true", help="print one JSON object instead of the summary")
     c.add_argument("--pdf", metavar="OUT.pdf", help="also write the screening report as PDF")
     c.add_argument("--date", type=_date, help="report date (YYYY-MM-DD; default today)")
 
-    r = sub.add_parser("report", help="write the screening report (PDF) of one case")
+    r = sub.add_parser("report", help="write the screening report (PDF) of one case", epilog=EXIT_HELP["report"],
+                       formatter_class=argparse.RawDescriptionHelpFormatter)
     r.add_argument("case", help="case file (TOML)")
     r.add_argument("-o", "--output", required=True, metavar="OUT.pdf", help="PDF to write")
     r.add_argument("--date", type=_date, help="report date (YYYY-MM-DD; default today)")
 
-    v = sub.add_parser("verify", help="re-run the case attached to a report and compare")
+    v = sub.add_parser("verify", help="re-run the case attached to a report and compare", epilog=EXIT_HELP["verify"],
+                       formatter_class=argparse.RawDescriptionHelpFormatter)
     v.add_argument("report", help="a PDF written by 'screening check --pdf' or 'screening report'")
 
-    sub.add_parser("gases", help="list the gas library with its sources")
+    sub.add_parser("gases", help="list the gas library with its sources", epilog=EXIT_HELP["gases"],
+                   formatter_class=argparse.RawDescriptionHelpFormatter)
 
-    b = sub.add_parser("batch", help="screen every vessel of an inventory (CSV or XLSX)")
+    b = sub.add_parser("batch", help="screen every vessel of an inventory (CSV or XLSX)", epilog=EXIT_HELP["batch"],
+                       formatter_class=argparse.RawDescriptionHelpFormatter)
     b.add_argument("inventory", help="inventory table: CSV (',' or ';') or .xlsx, one vessel per row")
     b.add_argument("--sheet", metavar="NAME", help="sheet of an .xlsx workbook (default: the first)")
     b.add_argument("--defaults", metavar="CASE.toml", help="values for missing columns and empty cells")
@@ -78,6 +100,8 @@ def _build() -> argparse.ArgumentParser:
                    "over, out-of-scope, low-margin, within, then lowest margin)")
     b.add_argument("--decimal", choices=(".", ","), help="decimal mark of the inventory's numbers (default: "
                    "',' where the CSV separator is ';', else '.')")
+    b.add_argument("--site", metavar="NAME", help="site name for the title of the PDF (default: the site "
+                   "name the rows share, from their column or the defaults file)")
     b.add_argument("--all-details", action="store_true", help="detail every vessel in the PDF, not only those "
                    "that are not within rating")
     b.add_argument("--date", type=_date, help="report date (YYYY-MM-DD; default today)")

@@ -29,6 +29,7 @@ from screening.physics.exposure import (
 from screening.physics.gases import Mixture
 from screening.physics.isochore import isochore_phases, max_liquid_density
 from screening.physics.roots import brentq
+from screening.units import percent_pair
 from screening.verdicts import Verdict
 
 #: Basis named for the worst case where the fill temperature is above every exposure temperature.
@@ -543,16 +544,6 @@ def filling_ratio_reason(fill_density_kg_m3: float | None, max_filling_ratio_kg_
         return None
     return (f"The filling ratio, {fill_density_kg_m3 / 1000.0:.3f} kg/L, is above the vessel's maximum filling "
             f"ratio of {max_filling_ratio_kg_m3 / 1000:.3f} kg/L.")
-
-
-def percent_pair(value: float, reference: float) -> tuple[str, str]:
-    """Two fractions as percentages with one decimal, or with as many more (up to three) as it takes for
-    values that differ to read differently: a reason never says "10.0 % is below the required 10.0 %"."""
-    for digits in (1, 2, 3):
-        a, b = f"{value * 100:.{digits}f}", f"{reference * 100:.{digits}f}"
-        if a != b or value == reference:
-            break
-    return a + " %", b + " %"
 
 
 def governing_text(governing: str | None, others: list[str]) -> str:

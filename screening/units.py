@@ -411,3 +411,22 @@ def format_percent(fraction: float | None, digits: int = 1) -> str:
     if fraction is None:
         return "—"
     return f"{100.0 * fraction:.{digits}f} %"
+
+
+def percent_pair(value: float | None, reference: float | None) -> tuple[str, str]:
+    """Two fractions as percentages rounded so that their order stays visible: one decimal, or more (up to
+    four) while the rounded values would tie or invert the true order; a reason never says "10.0 % is below
+    the required 10.0 %".
+
+    >>> percent_pair(0.0996, 0.10)
+    ('9.96 %', '10.00 %')
+    >>> percent_pair(0.167, 0.10)
+    ('16.7 %', '10.0 %')
+    """
+    if value is None or reference is None:
+        return format_percent(value), format_percent(reference)
+    for digits in (1, 2, 3, 4):
+        a, b = round(100 * value, digits), round(100 * reference, digits)
+        if (value < reference) == (a < b) and (value > reference) == (a > b):
+            break
+    return format_percent(value, digits), format_percent(reference, digits)

@@ -248,7 +248,7 @@ def test_kind_follows_the_critical_temperature_rule():
 
 def test_quantum_gases_carry_classical_constants():
     # Gunn, Chueh & Prausnitz (1966) classical constants as in Reid, Prausnitz & Poling (4th ed.):
-    # H2 43.6 K, 20.5 atm; He 10.47 K, 6.67 atm; Ne 45.5 K, 27.3 atm (from memory, via the project brief).
+    # H2 43.6 K, 20.5 atm; He 10.47 K, 6.67 atm; Ne 45.5 K, 27.3 atm (not independently checked here).
     atm = 101325.0  # [Pa], standard atmosphere (exact by definition)
     expected = {"hydrogen": (43.6, 20.5), "helium": (10.47, 6.67), "neon": (45.5, 27.3)}
     assert {g.name for g in LIB.values() if g.quantum} == set(expected)
@@ -262,7 +262,7 @@ def test_quantum_gases_carry_classical_constants():
 
 
 def test_hazard_words_for_named_gases():
-    # Hazards as on typical suppliers' GHS safety data sheets (from memory).
+    # Hazards as on typical suppliers' GHS safety data sheets (not independently checked here).
     assert set(LIB["nitrogen"].hazards) == {"asphyxiant"}
     assert set(LIB["oxygen"].hazards) == {"oxidizing"}
     assert set(LIB["ammonia"].hazards) == {"toxic", "corrosive", "flammable"}

@@ -21,11 +21,13 @@ import datetime as _dt
 import hashlib
 import io
 import os
+from pathlib import PurePath
 
 import numpy as np
 
 from screening import parallel
 from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
+from screening.outputs.actions import action_line
 from screening.outputs.plot import drawable_models, plot_png, png_data_uri, svg_data_uri
 from screening.outputs.report import (
     MODEL_TITLES,
@@ -36,6 +38,7 @@ from screening.outputs.report import (
     _source_date_epoch,
     templates_dir,
 )
+from screening.outputs.text import fmt_pressure, reasons_shown, visible
 from screening.units import format_percent, format_pressure, format_temperature
 
 TEMPLATE = "batch.html.j2"
@@ -45,10 +48,14 @@ LINES_PER_PAGE = 60
 LISTING_WIDTH = 115
 #: Listing columns: key in the row's cells, header (two lines), alignment; the id and the gas name
 #: may wrap onto continuation lines when the listing would be wider than LISTING_WIDTH.
-_COLUMNS = (("row", ("", "Row"), ">"), ("id", ("", "Id"), "<"), ("verdict", ("", "Verdict"), "<"),
+_COLUMNS = (("row", ("", "Row"), ">"), ("id", ("", "Id"), "<"), ("description", ("", "Description"), "<"),
+            ("location", ("", "Location"), "<"), ("verdict", ("", "Verdict"), "<"),
             ("gas", ("", "Gas"), "<"), ("peak", ("Peak", "pressure"), ">"), ("rated", ("Rated", "pressure"), ">"),
             ("margin", ("", "Margin"), ">"), ("t_max", ("Highest gas", "temperature"), ">"))
-_WRAPPING = ("gas", "id")
+#: Columns that may wrap onto continuation lines, the first narrowed first.
+_WRAPPING = ("description", "location", "gas", "id")
+#: Narrowest width a wrapping column is narrowed to [characters].
+_NARROWEST = {"description": 14, "location": 10, "gas": 8, "id": 8}
 _GAP = "  "
 #: Above this many units (pages, as predicted) the document is laid out in PARTS parts.
 SPLIT_ABOVE = 24
@@ -115,15 +122,20 @@ def _detail(r: dict) -> dict:
     atm = (r.get("site") or {}).get("atmospheric_pressure_pa") or 101325.0
     code = r["verdict"]
     v = VERDICTS.get(code, dict(mark="?", label="Input error: the row could not be read", line=""))
-    d = dict(row=str(r["row"]), id=str(r.get("id") or "—"), code=code, label=v["label"], mark=v["mark"],
-             css="v-" + (code if code in VERDICTS else "unknown"), reasons=[str(x) for x in r.get("reasons") or []],
-             warnings=[str(w["message"]) for w in r.get("warnings") or []], figures=[], models=[], plot=None)
+    d = dict(row=str(r["row"]), id=visible(r.get("id") or "—"), code=code, label=v["label"], mark=v["mark"],
+             css="v-" + (code if code in VERDICTS else "unknown"),
+             reasons=reasons_shown(r) if r.get("margin_fraction") is not None or code != "input-error"
+             else [visible(x) for x in r.get("reasons") or []],
+             description=visible(r.get("description") or ""), location=visible(r.get("location") or ""),
+             action=None, warnings=[visible(w["message"]) for w in r.get("warnings") or []], figures=[], models=[],
+             plot=None)
     if code == "input-error":
         return d
-    P = lambda p: format_pressure(p, pu, atm)  # noqa: E731
+    d["action"] = action_line(r)
+    P = lambda p: fmt_pressure(r, p) if r.get("inputs") else format_pressure(p, pu, atm)  # noqa: E731
     lim = r.get("limits") or {}
     d["figures"] = [
-        ("Gas", str(r["gas"]["name"])),
+        ("Gas", visible(r["gas"]["name"])),
         ("Fill", f"{P(r['fill']['pressure_pa'])} at {format_temperature(r['fill']['temperature_k'], tu)}"
          if r["fill"].get("pressure_pa") is not None else f"{r['fill'].get('mass_kg') or 0:.3f} kg"),
         ("Worst-case gas temperature", f"{format_temperature(r['worst_case_temperature_k'], tu)} "
@@ -170,21 +182,23 @@ def _listing(rows: list[dict]) -> tuple[list[str], list[tuple[str, list[str]]]]:
     a rule, and for each row its class and its lines (one, or more where a long id or gas name wraps)."""
     import textwrap
 
-    keys = [k for k, _, _ in _COLUMNS]
-    width = {k: max([len(h) for h in head] + [len(r[k]) for r in rows]) for k, head, _ in _COLUMNS}
+    columns = [c for c in _COLUMNS if c[0] not in ("location", "description") or any(r.get(c[0]) for r in rows)]
+    keys = [k for k, _, _ in columns]
+    width = {k: max([len(h) for h in head] + [len(r[k]) for r in rows]) for k, head, _ in columns}
     over = sum(width.values()) + len(_GAP) * (len(keys) - 1) - LISTING_WIDTH
     while over > 0:                      # narrow the widest wrapping column, one character at a time
-        k = max(_WRAPPING, key=lambda c: width[c])
-        if width[k] <= 8:
+        narrowable = [c for c in _WRAPPING if c in width and width[c] > _NARROWEST[c]]
+        if not narrowable:
             break
+        k = max(narrowable, key=lambda c: (width[c] - _NARROWEST[c], -_WRAPPING.index(c)))
         width[k] -= 1
         over -= 1
 
     def line(values: dict) -> str:
         return _GAP.join(values[k].rjust(width[k]) if a == ">" else values[k].ljust(width[k])
-                         for k, _, a in _COLUMNS).rstrip()
+                         for k, _, a in columns).rstrip()
 
-    head = [line({k: h[i] for k, h, _ in _COLUMNS}) for i in (0, 1)]
+    head = [line({k: h[i] for k, h, _ in columns}) for i in (0, 1)]
     head.append("\u2500" * (sum(width.values()) + len(_GAP) * (len(keys) - 1)))
     body = []
     for r in rows:
@@ -196,7 +210,60 @@ def _listing(rows: list[dict]) -> tuple[list[str], list[tuple[str, list[str]]]]:
     return head, body
 
 
-def _common(results: list[dict], *, source: str, all_details: bool, report_date: _dt.date) -> dict:
+def row_texts(inv, defaults: dict | None = None) -> dict[int, dict[str, str]]:
+    """Description, site name and location of every inventory row as written, by its row number: the
+    rows screened as arrays keep no text, so the listing takes it from the inventory (a cell left empty
+    takes the defaults file's value)."""
+    default_site = str(((defaults or {}).get("site") or {}).get("name") or "")
+    default_description = str((defaults or {}).get("description") or "")
+    where = {}
+    for i, col in enumerate(inv.columns):
+        if col.key in ("description", "site.name") or col.name.strip().lower() == "location":
+            where[i] = "location" if col.name.strip().lower() == "location" else col.key
+    out = {}
+    for number, cells in inv.rows:
+        row = {"description": default_description, "site.name": default_site, "location": ""}
+        for i, key in where.items():
+            value = (cells[i] if i < len(cells) else "") or ""
+            if value.strip():
+                row[key] = value.strip()
+        out[number] = row
+    return out
+
+
+def _with_texts(results: list[dict], texts: dict | None) -> list[dict]:
+    """The rows with the inventory's description, site name and location added where the row lacks them."""
+    if not texts:
+        return results
+    out = []
+    for r in results:
+        t = texts.get(r.get("row"))
+        if t is None:
+            out.append(r)
+            continue
+        r = dict(r)
+        if not r.get("description") and t["description"]:
+            r["description"] = t["description"]
+        if not r.get("location") and t["location"]:
+            r["location"] = t["location"]
+        if t["site.name"] and not (r.get("site") or {}).get("name"):
+            r["site"] = dict(r.get("site") or {}, name=t["site.name"])
+        out.append(r)
+    return out
+
+
+def site_name(results: list[dict], site: str | None = None) -> str | None:
+    """The site the batch PDF is titled with: the one given (``--site``), otherwise the site name every
+    screened row shares (from a column or the defaults file); None where the rows name none or several."""
+    if site:
+        return site
+    names = {str((r.get("site") or {}).get("name") or "") for r in results if r.get("verdict") != "input-error"}
+    names.discard("")
+    return names.pop() if len(names) == 1 else None
+
+
+def _common(results: list[dict], *, source: str, all_details: bool, report_date: _dt.date,
+            site: str | None = None) -> dict:
     """What every part of the document shares: title, counts, the listing's pages, cautions."""
     from screening.batch import ORDER, cells, ranked, summary
 
@@ -204,7 +271,9 @@ def _common(results: list[dict], *, source: str, all_details: bool, report_date:
     rows = []
     for r in ranked(results):
         c = cells(r)
-        rows.append(dict(row=str(r["row"]), id=str(r.get("id") or "\u2014"), verdict=r["verdict"], gas=c["gas"],
+        rows.append(dict(row=str(r["row"]), id=visible(r.get("id") or "\u2014"),
+                         description=visible(r.get("description") or ""), location=visible(r.get("location") or ""),
+                         verdict=r["verdict"], gas=visible(c["gas"]),
                          peak=c["peak"], rated=c["rated"], margin=c["margin"], t_max=c["t_max"]))
     head, body = _listing(rows)
     pages: list[list[tuple[str, str]]] = []
@@ -212,8 +281,11 @@ def _common(results: list[dict], *, source: str, all_details: bool, report_date:
         if not pages or len(pages[-1]) + len(lines) > LINES_PER_PAGE:
             pages.append([])
         pages[-1] += [(cls, text) for text in lines]
+    site = site_name(results, site)
+    name = PurePath(str(source).replace("\\", "/")).name
     return dict(
-        title=f"Batch pressure screening \u2014 {os.path.basename(source)}", source=str(source),
+        title=f"Batch pressure screening \u2014 {visible(site) if site else visible(name)}", source=visible(name),
+        site=visible(site) if site else None,
         report_date=report_date.isoformat(), counts=[(v, s["counts"][v]) for v in ORDER], rows=s["rows"],
         duplicates=s["duplicate_ids"], listing_head=head, pages=pages,
         all_details=all_details, caution=CAUTION, short_caution=SHORT_CAUTION, assumptions=list(ASSUMPTIONS),
@@ -236,16 +308,20 @@ def _part_view(units: list[tuple], common: dict, results: list[dict], full, *, f
         elif u[0] == "table":
             item.update(lines=common["pages"][u[1]], continued=u[1] > 0)
         elif u[0] == "detail":
-            item.update(d=_detail(full(u[1]) if full is not None else results[u[1]]), heading=u[2])
+            row = results[u[1]]
+            r = full(u[1]) if full is not None else row
+            if row.get("location") and not r.get("location"):
+                r = dict(r, location=row["location"])
+            item.update(d=_detail(r), heading=u[2])
         items.append(item)
     return dict(common, units=items, first_page=first_page, total_pages=total_pages)
 
 
 def build_view(results: list[dict], *, source: str, all_details: bool, report_date: _dt.date,
-               full=None) -> dict:
+               full=None, site: str | None = None) -> dict:
     """The template's view of the whole document as one part. ``full(i)``, where given, gives row i's
     full result for its detail section (the batch keeps only what the table needs for most rows)."""
-    common = _common(results, source=source, all_details=all_details, report_date=report_date)
+    common = _common(results, source=source, all_details=all_details, report_date=report_date, site=site)
     return _part_view(_units(results, common, all_details), common, results, full)
 
 
@@ -304,9 +380,9 @@ def _join(pdfs: list[bytes]) -> bytes:
 
 
 def render_batch_pdf_bytes(results: list[dict], *, source: str, all_details: bool = False,
-                           report_date: _dt.date | None = None, full=None) -> bytes:
+                           report_date: _dt.date | None = None, full=None, site: str | None = None) -> bytes:
     report_date = report_date or _dt.date.today()
-    common = _common(results, source=source, all_details=all_details, report_date=report_date)
+    common = _common(results, source=source, all_details=all_details, report_date=report_date, site=site)
     units = _units(results, common, all_details)
     parts = _split(units)
     if len(parts) == 1:
@@ -344,13 +420,14 @@ def _detail_results(results: list[dict], all_details: bool, full) -> dict[int, d
 
 
 def _render_with_details(results: list[dict], details: dict, source: str, all_details: bool,
-                         report_date: _dt.date | None) -> bytes:
+                         report_date: _dt.date | None, site: str | None = None) -> bytes:
     return render_batch_pdf_bytes(results, source=source, all_details=all_details, report_date=report_date,
-                                  full=details.__getitem__)
+                                  full=details.__getitem__, site=site)
 
 
 def render_batch_report(results: list[dict], out_path, *, source: str, all_details: bool = False,
-                        report_date: _dt.date | None = None, quiet: bool = True, full=None, standby=None):
+                        report_date: _dt.date | None = None, quiet: bool = True, full=None, standby=None,
+                        site: str | None = None, texts: dict | None = None):
     """Write the batch PDF atomically (temporary file beside the target, then moved into place).
 
     `standby`, where given, is a `parallel.Standby` that has imported the layout engine while the batch
@@ -358,16 +435,17 @@ def render_batch_report(results: list[dict], out_path, *, source: str, all_detai
     from screening.outputs.files import atomic_writer, check_target
 
     check_target(out_path, "PDF report")
+    results = _with_texts(results, texts)
     pdf = None
     if standby is not None:
         details = _detail_results(results, all_details, full)
         try:
-            pdf = standby.call(_render_with_details, results, details, source, all_details, report_date)
+            pdf = standby.call(_render_with_details, results, details, source, all_details, report_date, site)
         except parallel.StandbyGone:
             pdf = None
     if pdf is None:
         pdf = render_batch_pdf_bytes(results, source=source, all_details=all_details, report_date=report_date,
-                                     full=full)
+                                     full=full, site=site)
     with atomic_writer(out_path, "PDF report", binary=True) as fh:
         fh.write(pdf)
     return out_path

@@ -74,6 +74,8 @@ def _finite(x) -> bool:
     return x is not None and isinstance(x, (int, float)) and math.isfinite(x)
 
 
+#: The rated pressure: a wide mid-grey line, unlike every black model curve.
+RATED_GREY = "#5a5a5a"
 #: Dash pattern of the bounding-corner isochore (long dashes, thinner than the model lines).
 BOUNDING_STYLE = (0, (9, 2.5))
 #: The vapour-pressure curve on the phase diagram: a wide light-grey band with a thin dashed black
@@ -109,13 +111,16 @@ def worst_case_point_temperature(result: dict) -> float | None:
 
 
 def phase_diagram_wanted(result: dict) -> bool:
-    """Whether the report should show the phase diagram: a liquefiable gas, a liquid or two-phase state
-    at fill or at the worst case, or a liquid-full temperature in the result."""
+    """Whether the report should show the phase diagram: a liquid or two-phase state at fill or at the
+    worst case, or a liquid-full temperature on the heating path (at or above the fill
+    temperature). A gas far above its critical temperature, whose liquid-full point lies far below the
+    fill (hydrogen's at about -240 degC), gets none."""
     ref = (result.get("models") or {}).get("reference") or {}
     phases = (result["fill"].get("phase"), ref.get("phase_fill"), ref.get("phase_peak"))
-    return (result["gas"].get("kind") == "liquefiable"
-            or any(p in CONDENSED_PHASES for p in phases)
-            or (result.get("limits") or {}).get("liquid_full_temperature_k") is not None)
+    t_full = (result.get("limits") or {}).get("liquid_full_temperature_k")
+    t_fill = result["fill"].get("temperature_k")
+    return (any(p in CONDENSED_PHASES for p in phases)
+            or (_finite(t_full) and _finite(t_fill) and t_full >= t_fill))
 
 
 def phase_diagram_drawable(result: dict) -> bool:
@@ -182,6 +187,61 @@ def drawable_models(result: dict) -> list[str]:
     return out
 
 
+#: Two lines closer than this fraction of their value everywhere (curves) or of the axis span (vertical
+#: lines) cannot be told apart on the printed plot: drawn once and named together.
+COINCIDE_FRACTION = 0.004
+
+
+def coinciding_groups(result: dict) -> list[list[str]]:
+    """The drawable models grouped where their curves coincide (every common point within
+    COINCIDE_FRACTION of each other): each group is drawn as one line, named by all its models."""
+    curves = result["curves"]
+    temps = list(curves.get("temperature_k") or [])
+    groups: list[list[str]] = []
+    for name in drawable_models(result):
+        series = curves[name]
+        for group in groups:
+            other = curves[group[0]]
+            pairs = [(a, b) for t, a, b in zip(temps, series, other) if _finite(t) and _finite(a) and _finite(b)]
+            n_own = sum(1 for t, a in zip(temps, series) if _finite(t) and _finite(a))
+            n_other = sum(1 for t, b in zip(temps, other) if _finite(t) and _finite(b))
+            if pairs and len(pairs) == n_own == n_other and all(
+                    abs(a - b) <= COINCIDE_FRACTION * abs(b) for a, b in pairs):
+                group.append(name)
+                break
+        else:
+            groups.append([name])
+    return groups
+
+
+def text_boxes(fig) -> list[tuple[str, tuple[float, float, float, float]]]:
+    """(text, (x0, y0, x1, y1)) in display units of every text a drawn figure shows: the tick labels
+    inside the axis limits, the axis labels, the legend entries, any annotation."""
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+
+    FigureCanvasAgg(fig)
+    renderer = fig.canvas.get_renderer()
+    fig.draw(renderer)
+    texts = list(fig.texts)
+    for ax in fig.axes:
+        for axis in (ax.xaxis, ax.yaxis):
+            lo, hi = sorted(axis.get_view_interval())
+            eps = 1e-9 * max(abs(lo), abs(hi), 1.0)
+            texts += [tick.label1 for tick in axis.get_major_ticks() if lo - eps <= tick.get_loc() <= hi + eps]
+            texts.append(axis.label)
+        texts += list(ax.texts)
+        legend = ax.get_legend()
+        if legend is not None:
+            texts += list(legend.get_texts())
+    out = []
+    for artist in texts:
+        if not artist.get_visible() or not artist.get_text().strip():
+            continue
+        bb = artist.get_window_extent(renderer)
+        out.append((artist.get_text(), (bb.x0, bb.y0, bb.x1, bb.y1)))
+    return out
+
+
 def _converters(result: dict):
     """Functions from absolute Pa and from K into the result's display units."""
     units = result["display_units"]
@@ -221,8 +281,9 @@ def png_data_uri(png: bytes) -> str:
     return "data:image/png;base64," + base64.b64encode(png).decode("ascii")
 
 
-def plot_svg(result: dict, png_dpi: int | None = None) -> str:
-    """SVG text of the isochore plot of `result` (PNG bytes instead where `png_dpi` is given)."""
+def plot_svg(result: dict, png_dpi: int | None = None, return_figure: bool = False):
+    """SVG text of the isochore plot of `result` (PNG bytes instead where `png_dpi` is given; the drawn
+    matplotlib figure itself where `return_figure` is set, for measuring it)."""
     units = result["display_units"]
     p_unit, t_unit = units["pressure"], units["temperature"]
     curves = result["curves"]
@@ -231,29 +292,32 @@ def plot_svg(result: dict, png_dpi: int | None = None) -> str:
     P, T = _converters(result)
 
     with matplotlib.rc_context(_RC):
-        fig = Figure(figsize=(6.6, 4.3), dpi=100)
+        fig = Figure(figsize=(6.6, 3.4), dpi=100)
         FigureCanvasSVG(fig)
         ax = fig.add_subplot(1, 1, 1)
 
         temps_k = list(curves.get("temperature_k") or [])
         drawn = []
-        for name in MODEL_ORDER:
+        groups = coinciding_groups(result)
+        for group in groups:
+            name = group[0]
             series = curves.get(name)
-            model = models.get(name) or {}
-            if not series or not model.get("applicable"):
-                continue
             xs, ys = [], []
             for t, p in zip(temps_k, series):
                 if _finite(t) and _finite(p):
                     xs.append(T(t))
                     ys.append(P(p))
-            if len(xs) < 2:
-                continue
             style = MODEL_STYLE[name]
-            label = style["label"] + ("  \u2190 governs" if name == result["governing_model"] else "")
+            names = [MODEL_STYLE[n]["label"] for n in group]
+            label = "\n= ".join(names) + ("\n(coincide)" if len(group) > 1 else "")
+            if result["governing_model"] in group:
+                label += "  \u2190 governs"
             ax.plot(xs, ys, color="black", linestyle=style["linestyle"], linewidth=style["linewidth"],
                     label=label, zorder=3)
-            drawn.append(name)
+            drawn.extend(group)
+        for name in drawn:
+            style = MODEL_STYLE[name]
+            model = models.get(name) or {}
             peak = model.get("peak_pressure_pa")
             if _finite(peak) and _finite(result["worst_case_temperature_k"]):
                 ax.plot([T(result["worst_case_temperature_k"])], [P(peak)], linestyle="none",
@@ -282,7 +346,7 @@ def plot_svg(result: dict, png_dpi: int | None = None) -> str:
             if len(xs) >= 2:
                 name = MODEL_STYLE.get(str(curves.get("bounding_model")), {}).get("label", "governing model")
                 ax.plot(xs, ys, color="black", linestyle=BOUNDING_STYLE, linewidth=1.1, zorder=3,
-                        label=f"{name}, fill at the bounding corner")
+                        label=f"{name},\nfill at the bounding corner")
             lo, hi = tol["low_k"], tol["high_k"]
             ax.axvspan(T(lo), T(hi), facecolor="#dcdcdc", edgecolor="black", linewidth=0.5,
                        linestyle=(0, (1, 1.5)), zorder=0,
@@ -303,38 +367,34 @@ def plot_svg(result: dict, png_dpi: int | None = None) -> str:
             x0 = min(x0, T(t_fill) - 0.02 * (x1 - x0 or 1.0))
         ax.set_xlim(x0, x1)
 
-        # Horizontal reference lines, labelled on the plot (no colour needed to tell them apart).
+        # Horizontal and vertical reference lines, named in the legend below the plot (no text inside the
+        # axes, so no label can cover another or a line); lines that fall together are drawn once and named
+        # together.
         rated = result["rated_pressure_pa"]
         relief = result["relief_set_pressure_pa"]
         m_line = margin_line_pa(result)
+        same = lambda a, b: _finite(a) and _finite(b) and abs(P(a) - P(b)) <= COINCIDE_FRACTION * abs(P(b) or 1.0)  # noqa: E731
         if _finite(rated):
-            ax.axhline(P(rated), color="black", linewidth=1.8, linestyle="-", zorder=2)
-            ax.annotate("rated", xy=(0.005, P(rated)), xycoords=("axes fraction", "data"),
-                        xytext=(2, 2), textcoords="offset points", ha="left", fontsize=7.5, fontweight="bold",
-                        bbox=_LABEL_BOX)
+            label = "Vessel's rated pressure" + ("\n= relief set pressure" if same(relief, rated) else "")
+            ax.axhline(P(rated), color=RATED_GREY, linewidth=2.8, linestyle="-", zorder=2, label=label)
         if _finite(m_line) and _finite(rated):
-            ax.axhline(P(m_line), color="black", linewidth=1.0, linestyle=(0, (6, 2)), zorder=2)
+            pct = 100.0 * result["required_margin_fraction"]
+            ax.axhline(P(m_line), color="black", linewidth=0.9, linestyle=(0, (2, 1.2)), zorder=2,
+                       label=f"Rated \u00d7 (1 \u2212 {pct:g} %)")
             ax.axhspan(P(m_line), P(rated), facecolor="none", edgecolor="#777777", hatch="////",
                        linewidth=0, zorder=1)
-            pct = 100.0 * result["required_margin_fraction"]
-            ax.annotate(f"rated \u00d7 (1 \u2212 {pct:g} %)", xy=(0.005, P(m_line)),
-                        xycoords=("axes fraction", "data"), xytext=(2, -3), textcoords="offset points",
-                        ha="left", va="top", fontsize=7.5, bbox=_LABEL_BOX)
-        if _finite(relief):
-            ax.axhline(P(relief), color="black", linewidth=1.2, linestyle=(0, (8, 2, 1.5, 2)), zorder=2)
-            ax.annotate("relief set", xy=(0.005, P(relief)), xycoords=("axes fraction", "data"),
-                        xytext=(2, 2), textcoords="offset points", ha="left", fontsize=7.5, bbox=_LABEL_BOX)
-        if _finite(t_wc):
-            ax.axvline(T(t_wc), color="black", linewidth=0.9, linestyle=(0, (1, 2)), zorder=2)
-            ax.annotate("worst-case\ntemperature", xy=(T(t_wc), 0.03), xycoords=("data", "axes fraction"),
-                        xytext=(-4, 0), textcoords="offset points", ha="right", fontsize=7.5)
-
+        if _finite(relief) and not same(relief, rated):
+            ax.axhline(P(relief), color="black", linewidth=1.2, linestyle=(0, (8, 2, 1.5, 2)), zorder=2,
+                       label="Relief set pressure")
         t_full = (result.get("limits") or {}).get("liquid_full_temperature_k")
-        if _finite(t_full) and x0 <= T(t_full) <= x1:
-            ax.axvline(T(t_full), color="black", linewidth=0.9, linestyle=(0, (4, 1.5, 1, 1.5, 1, 1.5)), zorder=2)
-            ax.annotate("liquid fills\nthe vessel", xy=(T(t_full), 0.97), xycoords=("data", "axes fraction"),
-                        xytext=(-4, 0), textcoords="offset points", ha="right", va="top", fontsize=7.5,
-                        bbox=_LABEL_BOX)
+        full_shown = _finite(t_full) and x0 <= T(t_full) <= x1
+        full_at_worst = full_shown and _finite(t_wc) and abs(T(t_full) - T(t_wc)) <= COINCIDE_FRACTION * (x1 - x0)
+        if _finite(t_wc):
+            ax.axvline(T(t_wc), color="black", linewidth=0.9, linestyle=(0, (1, 2)), zorder=2,
+                       label="Worst-case temperature" + ("\n= liquid-full temperature" if full_at_worst else ""))
+        if full_shown and not full_at_worst:
+            ax.axvline(T(t_full), color="black", linewidth=0.9, linestyle=(0, (4, 1.5, 1, 1.5, 1, 1.5)), zorder=2,
+                       label="Liquid fills the vessel")
 
         ax.margins(y=0.08)
         ax.set_xlabel(f"Gas temperature [{_temp_label(t_unit)}]")
@@ -343,15 +403,17 @@ def plot_svg(result: dict, png_dpi: int | None = None) -> str:
         ax.set_axisbelow(True)
         handles = ax.get_legend_handles_labels()[0]
         if handles:
-            ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.16), ncol=3 if len(handles) <= 6 else 2,
-                      frameon=False, fontsize=7.5, handlelength=3.2, columnspacing=1.6)
+            # the legend beside the axes, one entry a line: long entries never meet
+            ax.legend(loc="upper left", bbox_to_anchor=(1.01, 1.0), ncol=1, frameon=False,
+                      fontsize=7, handlelength=3.0, borderaxespad=0.0, labelspacing=0.55)
         if png_dpi is None:
             fig.tight_layout(pad=0.4)
         else:
-            # the batch report's many detail plots: fixed margins that hold the tick labels and the two
-            # legend rows (the tight layout draws the figure an extra time to measure it)
-            fig.subplots_adjust(left=0.105, right=0.985, top=0.975, bottom=0.235)
-
+            # the batch report's many detail plots: fixed margins that hold the tick labels and the legend
+            # beside the axes (the tight layout draws the figure an extra time to measure it)
+            fig.subplots_adjust(left=0.1, right=0.6, top=0.97, bottom=0.13)
+        if return_figure:
+            return fig
         if png_dpi is not None:
             return _grey_png(fig, png_dpi)
         buf = io.StringIO()
@@ -359,15 +421,7 @@ def plot_svg(result: dict, png_dpi: int | None = None) -> str:
     return buf.getvalue()
 
 
-def _hline(ax, y: float, text: str, style, width: float, bold: bool = False, below: bool = False) -> None:
-    ax.axhline(y, color="black", linewidth=width, linestyle=style, zorder=2)
-    ax.annotate(text, xy=(0.005, y), xycoords=("axes fraction", "data"),
-                xytext=(2, -3 if below else 2), textcoords="offset points", ha="left",
-                va="top" if below else "baseline", fontsize=7.5, fontweight="bold" if bold else "normal",
-                bbox=_LABEL_BOX)
-
-
-def phase_diagram_svg(result: dict) -> str:
+def phase_diagram_svg(result: dict, return_figure: bool = False):
     """SVG text of the pressure–temperature phase diagram of a pure fluid with a saturation dome.
 
     Draws, from the result only: the vapour-pressure curve up to the critical point (marked), the
@@ -391,7 +445,7 @@ def phase_diagram_svg(result: dict) -> str:
     t_right = max(highs)
 
     with matplotlib.rc_context(_RC):
-        fig = Figure(figsize=(6.6, 4.6), dpi=100)
+        fig = Figure(figsize=(6.6, 4.0), dpi=100)
         FigureCanvasSVG(fig)
         ax = fig.add_subplot(1, 1, 1)
 
@@ -450,17 +504,20 @@ def phase_diagram_svg(result: dict) -> str:
         ax.set_xlim(T(t_left), T(t_right))
         rated, relief = result["rated_pressure_pa"], result["relief_set_pressure_pa"]
         if _finite(rated):
-            _hline(ax, P(rated), "rated", "-", 1.8, bold=True)
+            ax.axhline(P(rated), color=RATED_GREY, linewidth=2.8, linestyle="-", zorder=2, label="Vessel's rated pressure")
         if _finite(relief):
-            _hline(ax, P(relief), "relief set", (0, (8, 2, 1.5, 2)), 1.2)
+            ax.axhline(P(relief), color="black", linewidth=1.2, linestyle=(0, (8, 2, 1.5, 2)), zorder=2,
+                       label="Relief set pressure")
         ax.margins(y=0.06)
         ax.set_xlabel(f"Temperature [{_temp_label(t_unit)}]")
         ax.set_ylabel(f"Pressure [{p_unit}]")
         ax.grid(True, color="#bbbbbb", linewidth=0.4, linestyle="-")
         ax.set_axisbelow(True)
-        ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.14), ncol=3, frameon=False, fontsize=7.5,
-                  handlelength=3.2, columnspacing=1.4)
+        ax.legend(loc="upper left", bbox_to_anchor=(1.01, 1.0), ncol=1, frameon=False, fontsize=7,
+                  handlelength=3.0, borderaxespad=0.0, labelspacing=0.55)
         fig.tight_layout(pad=0.4)
+        if return_figure:
+            return fig
 
         buf = io.StringIO()
         fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": None, "Format": None, "Type": None})

@@ -33,6 +33,7 @@ import jinja2
 from markupsafe import Markup
 
 from screening.constants import R
+from screening.outputs.actions import action_line
 from screening.outputs.files import check_target, write_bytes
 from screening.outputs.plot import (
     CONDENSED_PHASES,
@@ -45,6 +46,15 @@ from screening.outputs.plot import (
     plot_svg,
     svg_data_uri,
     worst_case_point_temperature,
+)
+from screening.outputs.summary import scenarios_worst_first
+from screening.outputs.text import (
+    fmt_pressure,
+    percent_pair,
+    phase_words,
+    pressure_unit,
+    reasons_shown,
+    visible,
 )
 from screening.units import format_percent, format_pressure, format_quantity, format_temperature, pressure_in
 
@@ -74,23 +84,24 @@ MODEL_TITLES = {
     "reference": "Reference equation of state (Helmholtz energy)",
 }
 
+#: Model names short enough for the key figures under the verdict.
+MODEL_SHORT = {"ideal": "Ideal gas", "generalized": "Generalized (Lee\u2013Kesler)",
+               "reference": "Reference EOS (Helmholtz)"}
+
 VALIDITY = {
     "ideal": (
-        "Shown for comparison. Close to real behaviour only far from the critical point and at low "
-        "reduced pressure; at cylinder pressures it can be wrong by tens of percent, in either "
-        "direction depending on the gas."
+        "For comparison only: close to real behaviour far from the critical point at low reduced pressure; at "
+        "cylinder pressures it can be wrong by tens of percent, either way."
     ),
     "generalized": Markup(
-        "Three-parameter corresponding states. The Lee\u2013Kesler tables span reduced temperature "
-        "0.3 to 4 and reduced pressure 0 to 10; meant for non-polar and slightly polar gases in a "
-        "single phase. Mixtures enter through Kay&rsquo;s rule pseudocritical constants "
-        "(T<sub>pc</sub> = \u03a3 y<sub>i</sub> T<sub>c,i</sub>, P<sub>pc</sub> = \u03a3 y<sub>i</sub> P<sub>c,i</sub>). "
-        "Quantum gases at low temperature and strongly polar or associating fluids are outside it."
+        "Lee\u2013Kesler tables: reduced temperature 0.3 to 4, reduced pressure 0 to 10, non-polar and slightly "
+        "polar gases in one phase; mixtures by Kay&rsquo;s rule (T<sub>pc</sub> = \u03a3 y<sub>i</sub> T<sub>c,i</sub>, "
+        "P<sub>pc</sub> = \u03a3 y<sub>i</sub> P<sub>c,i</sub>). Not for quantum gases at low temperature or strongly "
+        "polar or associating fluids."
     ),
     "reference": (
-        "Multiparameter Helmholtz-energy equation of state of the named fluid, evaluated with "
-        "CoolProp, inside the temperature and pressure range its authors state. Where it applies it "
-        "is the most accurate model of the three."
+        "Multiparameter Helmholtz-energy equation of state of the named fluid (CoolProp), inside the temperature "
+        "and pressure range its authors state; where it applies, the most accurate of the three."
     ),
 }
 
@@ -282,7 +293,8 @@ class _Fmt:
 
     def __init__(self, result: dict) -> None:
         units = result["display_units"]
-        self.p_unit, self.t_unit = units["pressure"], units["temperature"]
+        self.result = result
+        self.p_unit, self.t_unit = pressure_unit(result), units["temperature"]
         self.m_unit = units.get("mass", "kg")
         self.atm = result["site"]["atmospheric_pressure_pa"]
         self.p_abs_unit = _absolute_label(self.p_unit)
@@ -293,7 +305,7 @@ class _Fmt:
             self.dp_unit = "kPa"
 
     def P(self, pa, digits=None):
-        return format_pressure(pa, self.p_unit, self.atm, digits)
+        return fmt_pressure(self.result, pa, digits)
 
     def Pabs(self, pa):
         return format_pressure(pa, self.p_abs_unit, self.atm)
@@ -385,7 +397,7 @@ def _exposure_view(result: dict, f: _Fmt) -> dict | None:
                        "({} K &minus; {} K) = {} W/m&sup2;").format(num(h, 4), num(tw, 2), num(ta, 2), num(q, 2))
     return dict(balance=balance, closure=closure, inputs=inputs, outcome=outcome, check=check,
                 notes=[str(n) for n in b.get("notes") or []],
-                scenario=str(name or ""), governing=(b is result.get("exposure")))
+                scenario=visible(name or ""), governing=(b is result.get("exposure")))
 
 
 def _scenario_rows(result: dict, f: _Fmt) -> list[dict] | None:
@@ -394,11 +406,11 @@ def _scenario_rows(result: dict, f: _Fmt) -> list[dict] | None:
     if len(scenarios) < 2:
         return None
     rows = []
-    for sc in scenarios:
+    for sc in scenarios_worst_first(result):
         code = str(sc.get("verdict"))
         word = VERDICTS.get(code, dict(mark="?", label=code))
         rows.append(dict(
-            name=str(sc.get("name")), temperature=f.T(sc.get("worst_case_temperature_k")),
+            name=visible(sc.get("name")), temperature=f.T(sc.get("worst_case_temperature_k")),
             basis=str(sc.get("worst_case_basis") or ""), peak=f.P(sc.get("peak_pressure_pa")),
             margin=format_percent(sc.get("margin_fraction")),
             verdict=f"{word['mark']} {word['label']}", governs=bool(sc.get("governing")),
@@ -491,7 +503,7 @@ def _phase_view(result: dict, f: _Fmt) -> dict | None:
          "not stated in the case" if vessel.get("max_filling_ratio_kg_per_l") is None
          else _unit(num(vessel["max_filling_ratio_kg_per_l"], 4), "kg/L")),
         ("Phase at fill / at the worst case",
-         f"{_text(ref.get('phase_fill') or fill.get('phase')) or '—'} / {_text(ref.get('phase_peak')) or '—'}"),
+         f"{phase_words(result, ref.get('phase_fill') or fill.get('phase'))} / {phase_words(result, ref.get('phase_peak'))}"),
     ]
     if fill.get("vapour_pressure_pa") is not None:
         rows.append(("Vapour pressure at the fill temperature", f.P(fill["vapour_pressure_pa"])))
@@ -550,7 +562,7 @@ def _phase_view(result: dict, f: _Fmt) -> dict | None:
     if not drawable:
         no_plot = ("The result carries no vapour-pressure curve for this gas (only a pure fluid has a single "
                    "saturation curve), so no phase diagram is drawn.")
-    return dict(rows=rows, paras=paras, plot_uri=svg_data_uri(phase_diagram_svg(result)) if drawable else None,
+    return dict(rows=rows, row_pairs=[rows[i:i + 2] for i in range(0, len(rows), 2)], paras=paras, plot_uri=svg_data_uri(phase_diagram_svg(result)) if drawable else None,
                 no_plot=no_plot, liquid_full=liquid_full_marked(result))
 
 
@@ -580,14 +592,14 @@ def _condensed_note(result: dict) -> str | None:
 def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
     """Everything the template shows, as strings (and lists of strings), from the result dict."""
     units = result["display_units"]
-    p_unit, t_unit = units["pressure"], units["temperature"]
+    p_unit, t_unit = pressure_unit(result), units["temperature"]
     v_unit = units.get("volume", "L")
     m_unit = units.get("mass", "kg")
     atm = result["site"]["atmospheric_pressure_pa"]
     p_abs_unit = _absolute_label(p_unit)
 
     def P(pa):
-        return format_pressure(pa, p_unit, atm)
+        return fmt_pressure(result, pa)
 
     def Pabs(pa):
         return format_pressure(pa, p_abs_unit, atm)
@@ -612,7 +624,7 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
     site = result["site"]
     site_parts = []
     if site.get("name"):
-        site_parts.append(str(site["name"]))
+        site_parts.append(visible(site["name"]))
     if site.get("elevation_m") is not None:
         site_parts.append(f"elevation {num(site['elevation_m'], 0)} m")
     site_parts.append(f"atmospheric pressure {format_pressure(atm, 'kPa(a)', atm, 2)}")
@@ -631,7 +643,7 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
     scenarios = result.get("scenarios") or []
     key_figures = []
     if len(scenarios) > 1:
-        key_figures.append(("Governing scenario", f"{result.get('governing_scenario')} (the worst of {len(scenarios)})"))
+        key_figures.append(("Governing scenario", f"{visible(result.get('governing_scenario'))} (worst of {len(scenarios)})"))
     if bounding:
         key_figures += [
             ("Peak pressure, bounding the input tolerances", P(result["peak_pressure_pa"])),
@@ -641,24 +653,24 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
         ]
     else:
         key_figures += [
-            ("Peak pressure (governing model)", P(result["peak_pressure_pa"])),
-            ("at worst-case gas temperature", f"{T(t_peak)} ({result['worst_case_basis']})"),
+            ("Peak pressure", P(result["peak_pressure_pa"])),
+            ("at gas temperature", f"{T(t_peak)} ({result['worst_case_basis']})"),
         ]
     key_figures += [
         ("Rated pressure", P(result["rated_pressure_pa"])),
-        ("Margin to rated", format_percent(result["margin_fraction"])),
-        ("Required margin", format_percent(result["required_margin_fraction"])
+        ("Margin to rated", percent_pair(result["margin_fraction"], result["required_margin_fraction"])[0]),
+        ("Required margin", percent_pair(result["margin_fraction"], result["required_margin_fraction"])[1]
          + (" (default)" if result["required_margin_is_default"] else " (stated in the case)")),
     ]
     if result["relief_set_pressure_pa"] is not None:
         key_figures += [
             ("Relief set pressure", P(result["relief_set_pressure_pa"])),
-            ("Margin to relief set pressure", format_percent(result["relief_margin_fraction"])),
+            ("Margin to relief set", format_percent(result["relief_margin_fraction"])),
         ]
-    key_figures.append(("Governing model", MODEL_TITLES.get(governing, "none") if governing else "none"))
+    key_figures.append(("Governing model", MODEL_SHORT.get(governing, "none") if governing else "none"))
 
     inputs = [
-        dict(key=str(row["key"]), entered=_text(row["entered"]) or "",
+        dict(key=visible(row["key"]), entered=visible(row["entered"] or ""),
              si="\u2014" if row["si_value"] is None else sig(row["si_value"], 7),
              si_unit=_text(row["si_unit"]) or "")
         for row in result["inputs"]
@@ -687,12 +699,16 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
         ("Filling ratio", _unit(num(fill["filling_ratio_kg_per_l"], 4), "kg/L")
          + ("" if vessel.get("max_filling_ratio_kg_per_l") is None
             else f" (largest allowed {num(vessel['max_filling_ratio_kg_per_l'], 3)} kg/L)")),
-        ("Phase at fill", _text(fill["phase"]) or "\u2014"),
+        ("Phase at fill", phase_words(result, fill["phase"])),
     ]
     if fill.get("vapour_pressure_pa") is not None:
         fill_rows.append(("Vapour pressure at the fill temperature", P(fill["vapour_pressure_pa"])))
     if vessel.get("rated_pressure_kind"):
         fill_rows.insert(1, ("Rated pressure stands for", vessel["rated_pressure_kind"]))
+
+    fill_all = [("Gas", f"{visible(gas['name'])} ({gas['kind']}); hazards: "
+                        f"{', '.join(str(h) for h in gas['hazards']) or 'none listed'}")] + fill_rows + [
+        ("Worst-case gas temperature", f"{T(t_peak)} = {TK(t_peak)} ({result['worst_case_basis']})")]
 
     # Models: every intermediate a reviewer needs.
     model_views = []
@@ -738,7 +754,7 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
                 ("Fluid (CoolProp)", _text(m.get("fluid")) or "\u2014"),
                 (Markup("Molar density used, &rho;<sub>m</sub>"), _unit(sig(rho, 6), "mol/m\u00b3")),
                 ("Phase at fill / at peak", "\u2014" if m.get("phase_fill") is None and m.get("phase_peak") is None
-                 else f"{_text(m.get('phase_fill')) or '—'} / {_text(m.get('phase_peak')) or '—'}"),
+                 else f"{phase_words(result, m.get('phase_fill'))} / {phase_words(result, m.get('phase_peak'))}"),
                 (Markup("At fill: Z<sub>1</sub>"), num(m.get("z_fill"), 5)),
                 (Markup("At peak: Z<sub>2</sub>"), num(m.get("z_peak"), 5)),
             ]
@@ -761,9 +777,9 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
     margin_rows = [
         ("Peak pressure" + (", bounding the input tolerances" if bounding else ""), PP(result['peak_pressure_pa'])),
         ("Rated pressure", PP(result['rated_pressure_pa'])),
-        ("Rated \u00d7 (1 \u2212 required margin), on gauge pressure", P(m_line)),
-        (Markup("Margin to rated, 1 &minus; P<sub>2,g</sub> / P<sub>rated,g</sub>"), format_percent(result["margin_fraction"], 2)),
-        ("Required margin", format_percent(result["required_margin_fraction"], 1)
+        ("Rated \u00d7 (1 \u2212 required margin)", P(m_line)),
+        ("Margin to rated", percent_pair(result["margin_fraction"], result["required_margin_fraction"])[0]),
+        ("Required margin", percent_pair(result["margin_fraction"], result["required_margin_fraction"])[1]
          + (" (tool default)" if result["required_margin_is_default"] else " (stated in the case)")),
     ]
     margin_check = None
@@ -782,14 +798,14 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
     limits = result["limits"]
     max_fill_p = limits.get("max_fill_pressure_pa")
     limit_rows = [
-        ("Highest gas temperature", T(limits.get("max_gas_temperature_k"))),
-        ("Highest fill pressure at the stated fill temperature",
+        ("Highest gas temperature (rated pressure reached)", T(limits.get("max_gas_temperature_k"))),
+        (f"Highest fill pressure at {T(t_fill)}",
          "not given (fill by mass)" if max_fill_p is None and fill["given"] == "mass" else P(max_fill_p)),
     ]
     if limits.get("max_fill_mass_kg") is not None:
         limit_rows.append(("Largest fill mass", format_quantity(limits["max_fill_mass_kg"], m_unit, 3)))
     if limits.get("target_peak_pressure_pa") is not None:
-        limit_rows.append(("Peak pressure these limits aim at", P(limits["target_peak_pressure_pa"])))
+        limit_rows.append(("Peak these limits aim at", P(limits["target_peak_pressure_pa"])))
     # Phase-change temperatures matter only on the heating path, from the fill temperature upwards.
     if limits.get("dry_out_temperature_k") is not None and limits["dry_out_temperature_k"] >= t_fill:
         limit_rows.append(("Temperature at which the last liquid evaporates", T(limits["dry_out_temperature_k"])))
@@ -803,13 +819,13 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
     scenario_rows = _scenario_rows(result, fmt)
     tolerance = _tolerance_view(result, fmt)
     phase = _phase_view(result, fmt)
-    order = ["inputs", "exposure", "method"] + (["phase"] if phase else []) + (["tolerance"] if tolerance else []) \
-        + ["margin", "limits", "assumptions", "references", "signoff"]
+    order = ["results", "inputs", "exposure"] \
+        + (["phase"] if phase else []) + (["tolerance"] if tolerance else [])
     sections = {key: str(i) for i, key in enumerate(order, start=1)}
     if exposure is None or not exposure["governing"]:
         basis = str(result["worst_case_basis"])
         worst_case_line = (f"The worst-case gas temperature, {T(t_peak)}, is the {basis}"
-                           + (f" of the governing scenario, \u2018{result.get('governing_scenario')}\u2019" if scenario_rows else "")
+                           + (f" of the governing scenario, \u2018{visible(result.get('governing_scenario'))}\u2019" if scenario_rows else "")
                            + (". No sun exposure is modelled for it, so no energy balance is shown."
                               if exposure is None else
                               f". The energy balance below is that of the scenario \u2018{exposure['scenario']}\u2019 "
@@ -822,7 +838,7 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
 
     created = f"{report_date.isoformat()}T00:00:00Z"
     cautions = result["cautions"]
-    description = _text(result.get("description"))
+    description = None if result.get("description") is None else visible(result["description"])
     title = f"Heat-exposure pressure screening \u2014 {result['id']}"
     return dict(
         title=title,
@@ -839,13 +855,16 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
             keywords=["pressure screening", f"verdict {verdict_code}", f"document {doc_id}",
                       f"case {result['id']}", f"gas {gas['name']}"],
         ),
-        case_id=str(result["id"]), description=description, site_line=" \u00b7 ".join(site_parts),
-        source=str(result["source"]), report_date=report_date.isoformat(),
+        case_id=visible(result["id"]), description=description, site_line=" \u00b7 ".join(site_parts),
+        source=visible(_case_name(result)), report_date=report_date.isoformat(),
         tool_version=str(result["tool_version"]), doc_id=doc_id, input_sha256=str(result["input_sha256"]),
-        verdict=verdict, reasons=[str(r) for r in result["reasons"]],
-        warnings=[dict(code=str(w["code"]), message=str(w["message"])) for w in result["warnings"]],
+        verdict=verdict, reasons=reasons_shown(result), action=action_line(result),
+        warnings=[dict(code=str(w["code"]), message=visible(w["message"])) for w in result["warnings"]],
         key_figures=key_figures,
+        key_figure_rows=[key_figures[i:i + 2] for i in range(0, len(key_figures), 2)],
         inputs=inputs,
+        input_rows=[inputs[i:i + 3] for i in range(0, len(inputs), 3)],
+        fill_pairs=[fill_all[i:i + 2] for i in range(0, len(fill_all), 2)],
         gas=dict(name=str(gas["name"]), kind=str(gas["kind"]), hazards=", ".join(str(h) for h in gas["hazards"]) or "none listed"),
         components=components, fill_rows=fill_rows,
         worst_case=dict(temperature=f"{T(t_peak)} = {TK(t_peak)}", basis=str(result["worst_case_basis"])),
@@ -857,16 +876,48 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
         plot_uri=svg_data_uri(plot_svg(result)) if drawable_models(result) else None,
         sections=sections, exposure=exposure, worst_case_line=worst_case_line, scenarios=scenario_rows,
         scenario_tolerance=bounding, tolerance=tolerance, phase=phase, condensed_note=_condensed_note(result),
-        governing_scenario=_text(result.get("governing_scenario")) or "",
+        governing_scenario=visible(result.get("governing_scenario") or ""),
         p_unit=p_unit, t_unit=format_temperature(0.0, t_unit).split(" ", 1)[1],
         R=str(R),
         caution=str(cautions["caution"]), short_caution=str(cautions["short_caution"]),
         assumptions=[str(a) for a in cautions["assumptions"]],
         references=list(GENERAL_REFERENCES) + eos_refs,
         eos_refs_given=bool(eos_refs),
-        case_text=case_text,
+        case_text=visible(case_text, keep_newlines=True),
+        case_columns=_case_columns(visible(case_text, keep_newlines=True)),
         result_name=_result_name(result),
     )
+
+
+#: Characters per line of the case file's two columns (DejaVu Sans Mono at 6.8 pt on the page's width).
+CASE_COLUMN_WIDTH = 60
+
+
+def _case_columns(text: str) -> str:
+    """The case file as fixed-width text in two side-by-side columns (a plain block the layout may break
+    across pages): the first half of the lines on the left, the rest on the right, split at the blank
+    line (a new TOML table) nearest the middle; long lines wrap inside their column."""
+    import textwrap
+
+    width = CASE_COLUMN_WIDTH
+    lines: list[str] = []
+    for line in text.rstrip("\n").split("\n"):
+        lines += textwrap.wrap(line, width, break_long_words=True, break_on_hyphens=False,
+                               drop_whitespace=False, replace_whitespace=False) or [""]
+    if len(lines) < 3:
+        return "\n".join(lines) + "\n"
+    middle = (len(lines) + 1) // 2
+    blanks = [i for i, line in enumerate(lines) if not line.strip() and 0 < i < len(lines) - 1]
+    cut = min(blanks, key=lambda i: abs(i - middle)) if blanks else middle
+    if abs(cut - middle) > len(lines) // 4:
+        cut = middle
+    left, right = lines[:cut], lines[cut:]
+    while right and not right[0].strip():
+        right = right[1:]
+    rows = max(len(left), len(right))
+    left += [""] * (rows - len(left))
+    right += [""] * (rows - len(right))
+    return "\n".join((a.ljust(width) + "   " + b).rstrip() for a, b in zip(left, right)) + "\n"
 
 
 def _case_name(result: dict) -> str:
@@ -879,8 +930,13 @@ def _result_name(result: dict) -> str:
 
 
 def result_json(result: dict) -> str:
-    """The result as the JSON text that travels inside the PDF (stable key order)."""
-    return json.dumps(result, sort_keys=True, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+    """The result as the JSON text that travels inside the PDF (stable key order). Its ``source`` is the
+    case file's name only: a document sent out carries no folder of the machine it was made on, and its
+    bytes do not depend on how the path was typed."""
+    shown = dict(result)
+    if "source" in shown:
+        shown["source"] = _case_name(result)
+    return json.dumps(shown, sort_keys=True, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
 
 
 # ----------------------------------------------------------------------------- rendering

@@ -25,8 +25,8 @@ Readings chosen (each is also recorded in `EnergyBalance.notes`):
   0.2 would add about 30 % to the absorbed flux of a horizontal cylinder -- pass `ground_albedo`.
 * Convection: natural convection (Churchill & Chu 1975) in still air; forced convection in
   cross-flow (Churchill & Bernstein 1977) with wind perpendicular to the axis; both combined by
-  Churchill's (1977) rule h^n = h_F^n + h_N^n with n = 4 (transverse flow over cylinders,
-  Incropera et al. 6th ed. Sec. 9.9, from memory). Default wind 0: still air is the conservative
+  Churchill's (1977) rule h^n = h_F^n + h_N^n with n = 4 (transverse flow over cylinders, after
+  Incropera et al. 2007, Sec. 9.9; not independently checked here). Default wind 0: still air is the conservative
   case. Air properties from CoolProp "Air" at the film temperature and 1 atm.
 * The gas is taken at the wall temperature (thermal mass and internal resistance ignored: the
   steady wall temperature is the upper bound of the gas temperature).
@@ -38,7 +38,8 @@ Sources: Churchill, S. W. & Chu, H. H. S., Int. J. Heat Mass Transfer 18 (1975) 
 (horizontal cylinder) and 1323-1329 (vertical plate); Churchill, S. W. & Bernstein, M.,
 J. Heat Transfer 99 (1977) 300-306; Churchill, S. W., AIChE J. 23 (1977) 10-16 (combining free
 and forced convection); Swinbank, W. C., Q. J. R. Meteorol. Soc. 89 (1963) 339-348; Incropera,
-DeWitt, Bergman & Lavine, Fundamentals of Heat and Mass Transfer, 6th ed., Wiley 2007.
+DeWitt, Bergman & Lavine (2007), Fundamentals of Heat and Mass Transfer, 6th ed., Wiley. Values
+quoted from these textbooks here are not independently checked (no readable copy at hand).
 Correlations are evaluated with Caleb Bell's `ht` library; air properties with CoolProp.
 """
 
@@ -84,17 +85,20 @@ __all__ = [
 DEFAULT_IRRADIANCE = 1000.0
 
 #: Assumed inside length / inside diameter of a cylinder when the case gives no dimensions [-].
-#: Rule of thumb (from memory): a 50 L industrial cylinder is about 229 mm OD x 1.4 m; 6.5 puts
+#: Common practice, not independently checked here (used only when the case gives no dimensions, and
+#: the report then says the dimensions are estimated): a 50 L industrial cylinder is about 229 mm OD x
+#: 1.4 m; 6.5 puts
 #: `estimate_dimensions(0.050)` at 0.227 m x 1.40 m.
 DEFAULT_ASPECT_RATIO = 6.5
 
 #: Wall allowance: wall thickness as a fraction of the inside diameter, added on every side [-].
-#: Rule of thumb (from memory): seamless steel industrial cylinders have walls of ~5-7 mm at
+#: Common practice, not independently checked here (used only with estimated dimensions): seamless
+#: steel industrial cylinders have walls of ~5-7 mm at
 #: ~220 mm bore, i.e. about 3 % of the bore.
 WALL_ALLOWANCE_FRACTION = 0.03
 
 #: Exponent n of the mixed-convection rule Nu^n = Nu_F^n + Nu_N^n [-]. Churchill (1977) proposed
-#: the form; Incropera et al. 6th ed. Sec. 9.9 (from memory) state n = 3 fits vertical geometries
+#: the form; Incropera et al. (2007), Sec. 9.9, state (not independently checked here) that n = 3 fits vertical geometries
 #: best and 3.5 / 4 suit transverse flow over horizontal plates / cylinders. The wind here crosses
 #: the cylinder transversely to the buoyant flow in both orientations, so n = 4. A larger n also
 #: gives the smaller combined h, i.e. the hotter (conservative) wall.
@@ -107,7 +111,7 @@ VIEW_FACTOR_GROUND = 0.5
 #: Rayleigh-number ranges of the natural-convection correlations [-].
 #: Horizontal cylinder, Churchill & Chu (1975): lower limit 1e-5 (authors), upper 1e12
 #: (Incropera et al. 6th ed., eq. 9.34). Vertical plate, Churchill & Chu (1975): 1e-1 .. 1e12
-#: (from memory; Incropera et al. 6th ed. eq. 9.26 apply it "over the entire range").
+#: (not independently checked here; Incropera et al. 2007, eq. 9.26, apply it "over the entire range").
 RA_RANGE_HORIZONTAL = (1e-5, 1e12)
 RA_RANGE_VERTICAL = (1e-1, 1e12)
 
@@ -250,8 +254,9 @@ def sky_temperature(ambient_k: float) -> float:
     """Clear-sky effective radiating temperature [K] from the screen air temperature [K].
 
     Swinbank, W. C. (1963), "Long-wave radiation from clear skies", Q. J. R. Meteorol. Soc. 89,
-    339-348; as given in Duffie & Beckman, Solar Engineering of Thermal Processes, Sec. 3.9
-    (from memory):  T_sky = 0.0552 * T_a^1.5   (both in K).
+    339-348; as given in Duffie, J. A. & Beckman, W. A. (2013), Solar Engineering of Thermal
+    Processes, 4th ed., Wiley, Sec. 3.9 (not independently checked here):
+    T_sky = 0.0552 * T_a^1.5   (both in K).
     Clear skies only. Cloud raises T_sky towards T_a and so makes the wall hotter: under a
     partly cloudy sky with the sun still out the clear-sky value is not the conservative one
     (pass sky_temperature_k = ambient to bound it). NotApplicable outside SWINBANK_RANGE_K
@@ -507,7 +512,7 @@ def solar_wall_temperature(
     if ground_temperature_k is None:
         t_g = t_a
         notes.append("ground at the ambient air temperature; sunlit ground is hotter and would make "
-                     "the wall hotter (give ground_temperature_k if known)")
+                     "the wall hotter (a case cannot state a ground temperature: not conservative over hot paving)")
     else:
         t_g = _positive(ground_temperature_k, "ground_temperature_k", "K")
         notes.append(f"ground temperature given: {t_g:.1f} K")

@@ -92,7 +92,10 @@ def _bib_entry(key: str) -> dict[str, str] | None:
 
 @lru_cache(maxsize=256)
 def _citation(key: str) -> str:
-    """Readable citation for a CoolProp bibliography key; the key itself when the entry is not there."""
+    """Readable citation for a CoolProp bibliography key; the key itself when the entry is not there.
+    A comma-separated list of keys (oxygen's 'Schmidt-FPE-1985,Stewart-JPCRD-1991') gives each citation."""
+    if "," in key:
+        return "; ".join(_citation(k.strip()) for k in key.split(",") if k.strip())
     f = _bib_entry(key) if key else None
     if not f or "title" not in f:
         return f"{key} (CoolProp bibliography key)"
