@@ -307,3 +307,51 @@ def test_pseudocritical_mixture_with_quantum_component():
     np.testing.assert_allclose(tc, 84.137575, rtol=1e-6)
     np.testing.assert_allclose(pc, 26.53092e5, rtol=1e-6)
     np.testing.assert_allclose(w, 0.0186, rtol=1e-12)
+
+
+# ---------------------------------------------------------------- quantum gases above the Lee–Kesler range
+
+from screening.physics.eos.generalized import (  # noqa: E402
+    SRK_QUANTUM_Z_ERROR,
+    srk_quantum_density,
+    srk_quantum_pressure,
+)
+
+# classical constants of Gunn, Chueh & Prausnitz as in the gas library (gcp-quantum source)
+QUANTUM = {"hydrogen": ("Hydrogen", 43.6, 2077162.5, 2.01588e-3),
+           "helium": ("Helium", 10.47, 675837.75, 4.002602e-3),
+           "neon": ("Neon", 45.5, 2766172.5, 20.1797e-3)}
+
+
+@pytest.mark.parametrize("gas", sorted(QUANTUM))
+@given(t=st.floats(233.15, 423.15), p_bar=st.floats(1.0, 1000.0))
+def test_quantum_gas_srk_z_is_within_its_stated_bound(gas, t, p_bar):
+    fluid, tc0, pc0, m = QUANTUM[gas]
+    s = srk_quantum_density(p_bar * 1e5, t, tc0, pc0, m)
+    assert bool(s.valid[()])
+    # source: CoolProp PropsSI, the reference equation of the gas (Leachman 2009, Ortiz-Vega 2019, Katti 1986)
+    z_ref = CP.PropsSI("Z", "P", p_bar * 1e5, "T", t, fluid)
+    assert float(s.z[()]) == pytest.approx(z_ref, rel=SRK_QUANTUM_Z_ERROR[gas])
+
+
+@pytest.mark.parametrize("gas", sorted(QUANTUM))
+def test_quantum_gas_srk_matches_thermo_srk_with_the_same_constants(gas):
+    from thermo import SRK
+    _, tc0, pc0, m = QUANTUM[gas]
+    t, p = 300.0, 700e5
+    tc, pc = quantum_effective_critical(tc0, pc0, m, t)
+    # source: thermo's SRK class (an independent implementation of Soave 1972) with omega = 0
+    eos = SRK(Tc=float(tc), Pc=float(pc), omega=0.0, T=t, P=p)
+    s = srk_quantum_density(p, t, tc0, pc0, m)
+    v = eos.V_g if hasattr(eos, "V_g") else eos.V_l   # one root above the critical temperature
+    assert float(s.molar_density[()]) == pytest.approx(1.0 / v, rel=1e-9)
+    back = srk_quantum_pressure(s.molar_density, t, tc0, pc0, m)
+    assert float(back.pressure[()]) == pytest.approx(p, rel=1e-10)
+
+
+def test_quantum_gas_srk_refuses_outside_its_checked_range():
+    _, tc0, pc0, m = QUANTUM["hydrogen"]
+    s = srk_quantum_density(np.array([500e5, 1200e5, 500e5]), np.array([300.0, 300.0, 500.0]), tc0, pc0, m)
+    assert list(s.valid) == [True, False, False]
+    assert "up to 1000 bar" in s.reason[1] and "233.15 K to 423.15 K" in s.reason[2]
+    assert np.isnan(s.molar_density[1:]).all()
