@@ -342,6 +342,10 @@ class GeneralizedState:
         raise NotApplicable(model, reason, value=value, valid_range=rng)
 
 
+#: Field names of GeneralizedState, in order (to merge two states element by element).
+GENERALIZED_FIELDS = ("pressure", "molar_density", "z", "reduced_temperature", "reduced_pressure", "valid", "reason")
+
+
 # --------------------------------------------------------------------------- public API
 
 
