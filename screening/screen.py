@@ -16,7 +16,14 @@ from screening import __version__
 from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
 from screening.errors import InputError, NotApplicable
 from screening.inputs.case import Case, Exposure, load_case, parse_case_text
-from screening.physics.eos.generalized import lee_kesler_density, lee_kesler_pressure, pseudocritical
+from screening.physics.eos.generalized import (
+    lee_kesler_density,
+    lee_kesler_pressure,
+    pseudocritical,
+    quantum_effective_critical,
+    srk_quantum_density,
+    srk_quantum_pressure,
+)
 from screening.physics.eos.ideal import ideal_gas_density, ideal_gas_pressure
 from screening.physics.eos.reference import ReferenceFluid, reference_fluid
 from screening.physics.exposure import (
@@ -140,6 +147,8 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
             fill, consts_fill = _lk_pressure(arrays, rho, t_fill)
         peak, consts_peak = _lk_pressure(arrays, rho, t_peak)
     except NotApplicable as exc:
+        if case.gas.is_pure and case.gas.components[0].quantum:
+            return _quantum_generalized(case, rho_mass, t_fill, t_peak, exc.reason)
         return not_applicable("generalized", f"Lee–Kesler correlation outside its range: {exc.reason}")
     extra = {
         "z_fill": float(fill.z[0]), "z_peak": float(peak.z[0]),
@@ -182,6 +191,62 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
     return Model("generalized", True, "Lee–Kesler corresponding states"
                  + (" with Kay's rule" if not case.gas.is_pure else ""),
                  float(peak.pressure[0]), rho, isochore, fill_to_peak, extra, isochore_array, fill_to_peak_array)
+
+
+#: The generalized model's note and method for pure H2, He, Ne above the Lee–Kesler tables.
+QUANTUM_SRK_NOTE = ("Soave–Redlich–Kwong with the Gunn–Chueh–Prausnitz quantum-gas constants (the Lee–Kesler "
+                    "tables end at reduced temperature 4)")
+QUANTUM_SRK_METHOD = "Soave–Redlich–Kwong with the Gunn–Chueh–Prausnitz constants"
+
+
+def _quantum_generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: float, lk_reason: str) -> Model:
+    """Pure hydrogen, helium or neon where the Lee–Kesler tables end: the quantum-gas SRK model
+    (physics.eos.generalized.srk_quantum_*), within its checked range."""
+    g = case.gas.components[0]
+    k = (g.classical_critical_temperature, g.classical_critical_pressure, g.molar_mass)
+    try:
+        if case.fill_pressure_pa is not None:
+            fill = srk_quantum_density(case.fill_pressure_pa, t_fill, *k).require()
+            rho = float(fill.molar_density[()])
+        else:
+            rho = rho_mass / g.molar_mass
+            fill = srk_quantum_pressure(rho, t_fill, *k).require()
+        peak = srk_quantum_pressure(rho, t_peak, *k).require()
+    except NotApplicable as exc:
+        return not_applicable("generalized", f"Lee–Kesler correlation outside its range: {lk_reason}; "
+                              f"quantum-gas model: {exc.reason}")
+    tc_p, pc_p = (float(x) for x in quantum_effective_critical(*k[:2], k[2], t_peak))
+    tc_f, pc_f = (float(x) for x in quantum_effective_critical(*k[:2], k[2], t_fill))
+    extra = {
+        "z_fill": float(fill.z[()]), "z_peak": float(peak.z[()]),
+        "reduced_temperature_fill": float(fill.reduced_temperature[()]),
+        "reduced_pressure_fill": float(fill.reduced_pressure[()]),
+        "reduced_temperature_peak": float(peak.reduced_temperature[()]),
+        "reduced_pressure_peak": float(peak.reduced_pressure[()]),
+        "pseudocritical_temperature_k": tc_p, "pseudocritical_pressure_pa": pc_p,
+        "pseudocritical_temperature_fill_k": tc_f, "pseudocritical_pressure_fill_pa": pc_f,
+        "acentric_factor": 0.0, "mixing_rule": None, "quantum_correction": True,
+        "method": QUANTUM_SRK_METHOD,
+    }
+
+    def isochore_array(ts: np.ndarray) -> np.ndarray:
+        st = srk_quantum_pressure(rho, np.asarray(ts, dtype=float), *k)
+        return np.where(st.valid, st.pressure, np.nan)
+
+    def isochore(t: float) -> float:
+        return float(srk_quantum_pressure(rho, t, *k).require().pressure[()])
+
+    def fill_to_peak_array(ps: np.ndarray) -> np.ndarray:
+        f = srk_quantum_density(np.asarray(ps, dtype=float), t_fill, *k)
+        pk = srk_quantum_pressure(np.where(f.valid, f.molar_density, 1.0), t_peak, *k)
+        return np.where(f.valid & pk.valid, pk.pressure, np.nan)
+
+    def fill_to_peak(p: float) -> float:
+        r = float(srk_quantum_density(p, t_fill, *k).require().molar_density[()])
+        return float(srk_quantum_pressure(r, t_peak, *k).require().pressure[()])
+
+    return Model("generalized", True, QUANTUM_SRK_NOTE, float(peak.pressure[()]), rho,
+                 isochore, fill_to_peak, extra, isochore_array, fill_to_peak_array)
 
 
 # ----------------------------------------------------------------------------- phase and reference

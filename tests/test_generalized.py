@@ -355,3 +355,24 @@ def test_quantum_gas_srk_refuses_outside_its_checked_range():
     assert list(s.valid) == [True, False, False]
     assert "up to 1000 bar" in s.reason[1] and "233.15 K to 423.15 K" in s.reason[2]
     assert np.isnan(s.molar_density[1:]).all()
+
+
+@pytest.mark.parametrize("gas, fluid, fill", [("hydrogen", "Hydrogen", 700.0), ("hydrogen", "Hydrogen", 200.0),
+                                               ("helium", "Helium", 300.0), ("neon", "Neon", 200.0)])
+def test_quantum_gas_cylinder_has_two_real_gas_models(gas, fluid, fill):
+    from screening.screen import MODEL_DISAGREEMENT_WARNING, screen_text
+    text = (f'id = "Q"\n[vessel]\nwater_capacity = "50 L"\nrated_pressure = "1050 bar(g)"\n'
+            f'[fill]\ngas = "{gas}"\npressure = "{fill} bar(g)"\ntemperature = "15 degC"\n'
+            '[exposure]\ngas_temperature = "65 degC"\n')
+    r = screen_text(text)
+    gen, ref = r["models"]["generalized"], r["models"]["reference"]
+    assert gen["applicable"] and ref["applicable"], gen["note"]
+    assert gen["method"].startswith("Soave–Redlich–Kwong")
+    # source: CoolProp PropsSI, the gas's reference equation (fill density, then the peak on its isochore)
+    rho = CP.PropsSI("Dmolar", "P", fill * 1e5 + 101325.0, "T", 288.15, fluid)
+    p_ref = CP.PropsSI("P", "Dmolar", rho, "T", 338.15, fluid)
+    # the peak follows from two Z values, each within the model's measured bound
+    assert gen["peak_pressure_pa"] == pytest.approx(p_ref, rel=2.5 * SRK_QUANTUM_Z_ERROR[gas])
+    diff = abs(gen["peak_pressure_pa"] - ref["peak_pressure_pa"]) / ref["peak_pressure_pa"]
+    warned = any(w["code"] == "models-disagree" for w in r["warnings"])
+    assert warned == (diff > MODEL_DISAGREEMENT_WARNING)
