@@ -128,6 +128,12 @@ def _load() -> tuple[dict[str, Gas], dict[str, str], dict[str, str], dict[str, s
     with open(DATA_FILE, "rb") as fh:
         data = tomllib.load(fh)
     citations = {str(k): str(v) for k, v in data.get("sources", {}).items()}
+    # a gas table may carry the citations of its own new source keys (tables appended after [sources])
+    for t in data.get("gas", []):
+        for k, v in t.get("citations", {}).items():
+            if citations.setdefault(str(k), str(v)) != str(v):
+                raise InputError(f"source key '{k}' is cited twice with different texts", file=file,
+                                 key=f"gas.{t.get('name')}.citations")
     gases: dict[str, Gas] = {}
     index: dict[str, str] = {}
     for t in data.get("gas", []):
