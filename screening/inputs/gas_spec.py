@@ -16,6 +16,8 @@ Accepted forms (nothing is ever evaluated):
   reading, common practice for gas mixtures) or ``ppm`` (parts per million by moles); mass percent when
   stated as such (``mass %``, ``wt %``, or the whole text ending in ``by mass``), converted to mole
   fractions with the library's molar masses. Mass and mole amounts cannot be mixed in one text;
+* a refrigerant blend by its designation (``"R-410A"``, ``"R-407C"``, ``"R-404A"``): its nominal mass
+  composition (:data:`NAMED_BLENDS`);
 * a table (dict) ``{gas name: value}`` where a value is either a number, the mole
   fraction [-] with 0 < x <= 1, or a text ``"<percent> %"`` (``"82 %"``, ``"82%"``).
 
@@ -71,11 +73,26 @@ def _is_mass(unit: str) -> bool:
     return unit.startswith("mass") or unit.startswith("wt")
 
 
+#: Refrigerant blends by their designation (ISO 817 / ANSI/ASHRAE Standard 34): nominal composition by mass,
+#: a fact of the trade (common practice). Screened as mixtures of their components.
+NAMED_BLENDS = {
+    "R410A": "R-32 50 % + R-125 50 % by mass",
+    "R407C": "R-32 23 % + R-125 25 % + R-134a 52 % by mass",
+    "R404A": "R-125 44 % + R-143a 52 % + R-134a 4 % by mass",
+}
+
+
+def _blend_key(text: str) -> str:
+    return "".join(ch for ch in text.upper() if ch not in " -_\t")
+
+
 def _parse_text(text: str, *, file, key) -> dict[str, float] | str:
     """A pure name (returned as str) or {name: mole fraction}."""
     s = text.strip()
     if not s:
         raise InputError("empty gas", file=file, key=key, given=text, expected=GRAMMAR)
+    if _blend_key(s) in NAMED_BLENDS:
+        return _parse_text(NAMED_BLENDS[_blend_key(s)], file=file, key=key)
     by_mass = bool(_BY_MASS.search(s))
     s = _BY_MOLE.sub("", _BY_MASS.sub("", s))
     if "+" not in s and "%" not in s and "ppm" not in s.lower():
