@@ -25,7 +25,7 @@ from screening.physics.eos.generalized import (
     srk_quantum_pressure,
 )
 from screening.physics.eos.ideal import ideal_gas_density, ideal_gas_pressure
-from screening.physics.eos.reference import ReferenceFluid, reference_fluid
+from screening.physics.eos.reference import LiquefiedBlend, ReferenceFluid, liquefied_blend, reference_fluid
 from screening.physics.exposure import (
     DEFAULT_ASPECT_RATIO,
     DEFAULT_IRRADIANCE,
@@ -280,6 +280,9 @@ def _reference_fluid(gas: Mixture) -> tuple[ReferenceFluid | None, str | None]:
         missing = [g.name for g in gas.components if g.coolprop_name is None]
         return None, f"no reference equation of state for {', '.join(missing)}"
     try:
+        if not gas.is_pure and all(g.kind == "liquefiable" for g in gas.components):
+            # a blend of liquefiable gases may be filled as a liquid: two-phase states are screened
+            return liquefied_blend(names, tuple(gas.fractions)), None
         return reference_fluid(names, tuple(gas.fractions)), None
     except NotApplicable as exc:
         return None, exc.reason
@@ -328,6 +331,9 @@ def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> Fil
         else:
             fs.phase_fill = fluid.phase(rho_molar, t_fill)
             fs.phase_peak = fluid.phase(rho_molar, t_peak)
+            if isinstance(fluid, LiquefiedBlend) and fs.phase_fill == "two-phase":
+                fs.liquid_full_temperature = fluid.liquid_full_temperature(rho_molar, t_fill,
+                                                                           max(t_fill, t_peak) + 100.0)
     except NotApplicable as exc:
         fs.fluid_error = exc.reason
         tc_max = max(g.critical_temperature for g in case.gas.components)
@@ -485,6 +491,13 @@ def _mass_limit(case: Case, models: list[Model], t_fill: float, t_peak: float, t
             # a fill denser than critical is liquid-full before the critical temperature is reached
             rho_lf = fluid.critical_molar_density
         else:
+            rho_lf = math.inf
+        if rho_lf < rho:
+            rho, basis = rho_lf, "the liquid-full point at the worst-case temperature"
+    elif isinstance(fluid, LiquefiedBlend):
+        try:   # the blend's bubble-point liquid at the worst-case temperature: liquid-full there
+            rho_lf = fluid.bubble_point(t_peak)[1]
+        except NotApplicable:
             rho_lf = math.inf
         if rho_lf < rho:
             rho, basis = rho_lf, "the liquid-full point at the worst-case temperature"
