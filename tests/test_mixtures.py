@@ -162,3 +162,15 @@ def test_cannot_be_established_is_said_once_in_the_result(monkeypatch):
     assert "&" not in text and "cricondentherm" not in text
 
 
+
+
+def test_gas_listing_names_the_models_of_each_trade_mixture():
+    from screening.outputs.gases_listing import format_library
+    text = " ".join(format_library().split())
+    assert "Mixtures of the trade" in text
+    # source: CoolProp.get_mixture_binary_pair_data lists Tkaczuk et al. 2020 for argon/helium and no pair
+    # for nitrogen/sulfur dioxide (CoolProp 8.0.0)
+    assert CP.get_mixture_binary_pair_data("7440-37-1", "7440-59-7", "BibTeX") == "Tkaczuk-JPCRD-2020"
+    assert "argon + helium (10-75 % He): reference" in text and "Tkaczuk-JPCRD-2020" in text
+    assert "sulfur dioxide in nitrogen: no reference model (no fitted parameters for nitrogen/sulfur dioxide)" \
+        in text

@@ -230,3 +230,58 @@ class IsochoreMemo:
                 self._t.pop(next(iter(self._t)))
             if t0 is None or T < t0:
                 self._t[rho] = T
+
+
+# --------------------------------------------------------------------------------------------------
+# the mixtures of the trade and the models that apply to them (listed by `screening gases`)
+
+#: Mixtures of the trade: a label and the library names of their components.
+TRADE_MIXTURES = (
+    ("argon + carbon dioxide (shielding gas, 1-30 % CO2)", ("argon", "carbon dioxide")),
+    ("argon + oxygen (shielding gas, 1-8 % O2)", ("argon", "oxygen")),
+    ("argon + helium (10-75 % He)", ("argon", "helium")),
+    ("helium + oxygen (heliox, 10-80 % O2)", ("helium", "oxygen")),
+    ("nitrogen + oxygen (synthetic and enriched air)", ("nitrogen", "oxygen")),
+    ("nitrogen + hydrogen (forming gas, 1-10 % H2)", ("nitrogen", "hydrogen")),
+    ("carbon dioxide + nitrogen (beverage gas)", ("carbon dioxide", "nitrogen")),
+    ("natural gas (methane, ethane, propane, nitrogen, CO2)",
+     ("methane", "ethane", "propane", "nitrogen", "carbon dioxide")),
+    ("propane + butanes (LPG, by mass)", ("propane", "n-butane", "isobutane")),
+    ("R-410A (R-32 + R-125)", ("R-32", "R-125")),
+    ("R-407C (R-32 + R-125 + R-134a)", ("R-32", "R-125", "R-134a")),
+    ("R-404A (R-125 + R-143a + R-134a)", ("R-125", "R-143a", "R-134a")),
+    ("calibration: carbon monoxide in nitrogen", ("nitrogen", "carbon monoxide")),
+    ("calibration: hydrogen sulfide in nitrogen", ("nitrogen", "hydrogen sulfide")),
+    ("calibration: methane in synthetic air", ("nitrogen", "oxygen", "methane")),
+    ("calibration: sulfur dioxide in nitrogen", ("nitrogen", "sulfur dioxide")),
+)
+
+
+def trade_mixture_models() -> list[dict]:
+    """For each of :data:`TRADE_MIXTURES`: ``label``, ``reference`` (True where CoolProp has fitted
+    binary parameters for every pair), ``pairs`` [(a, b, source key or None)], ``models`` (text)."""
+    from screening.physics.eos.reference import pair_source
+    from screening.physics.gases import lookup
+
+    rows = []
+    for label, names in TRADE_MIXTURES:
+        gases = [lookup(n) for n in names]
+        pairs = []
+        for i in range(len(gases)):
+            for j in range(i + 1, len(gases)):
+                pairs.append((gases[i].name, gases[j].name,
+                              pair_source(gases[i].coolprop_name, gases[j].coolprop_name)))
+        fitted = all(k is not None for _, _, k in pairs)
+        liquefied = all(g.kind == "liquefiable" for g in gases)
+        models = ["reference (multi-fluid Helmholtz mixing with fitted pairs)" if fitted else
+                  "no reference model (no fitted parameters for "
+                  + ", ".join(f"{a}/{b}" for a, b, k in pairs if k is None) + ")"]
+        if liquefied:
+            models.append("liquid and two-phase fills: bubble pressure and liquid-full point")
+        elif fitted:
+            models.append("generalized (Lee–Kesler, Kay's rule); ideal gas for comparison")
+        else:
+            models.append("the phase is taken as gas only above every component's critical temperature, "
+                          "then generalized (Lee–Kesler, Kay's rule) and ideal gas")
+        rows.append({"label": label, "reference": fitted, "pairs": pairs, "models": "; ".join(models)})
+    return rows

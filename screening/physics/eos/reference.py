@@ -127,6 +127,16 @@ def _binary_pair_key(cas1: str, cas2: str) -> str | None:
     return None
 
 
+def pair_source(name1: str | None, name2: str | None) -> str | None:
+    """CoolProp's source key of the fitted binary parameters of two CoolProp fluids, None where it has none."""
+    if not name1 or not name2:
+        return None
+    try:
+        return _binary_pair_key(CP.get_fluid_param_string(name1, "CAS"), CP.get_fluid_param_string(name2, "CAS"))
+    except ValueError:
+        return None
+
+
 class ReferenceFluid:
     """A pure fluid or mixture on CoolProp's HEOS backend, with checked state evaluations.
 
