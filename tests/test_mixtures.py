@@ -174,3 +174,22 @@ def test_gas_listing_names_the_models_of_each_trade_mixture():
     assert "argon + helium (10-75 % He): reference" in text and "Tkaczuk-JPCRD-2020" in text
     assert "sulfur dioxide in nitrogen: no reference model (no fitted parameters for nitrogen/sulfur dioxide)" \
         in text
+
+
+def test_calibration_mixture_without_fitted_pair_is_screened_with_its_phase_by_the_cubic_route():
+    r = screen_text(CASE.format(gas="nitrogen + 50 ppm sulfur dioxide", rated="300 bar(g)", fill="200 bar(g)"))
+    assert not r["models"]["reference"]["applicable"]
+    assert "no binary interaction parameters" in r["models"]["reference"]["note"]
+    gen = r["models"]["generalized"]
+    assert gen["applicable"] and r["verdict"] == "within"
+    assert any(w["code"] == "phase-by-one-route" for w in r["warnings"])
+    # source: CoolProp PropsSI for pure nitrogen (Span et al. 2000); 50 ppm of SO2 moves the peak by far less
+    # than Lee–Kesler's own 1-2 % against the reference equation
+    rho = CP.PropsSI("Dmolar", "P", 200e5 + ATM, "T", T_FILL, "Nitrogen")
+    assert gen["peak_pressure_pa"] == pytest.approx(CP.PropsSI("P", "Dmolar", rho, "T", T_PEAK, "Nitrogen"), rel=0.02)
+
+
+def test_mixture_without_fitted_pair_that_condenses_is_refused():
+    r = screen_text(CASE.format(gas="nitrogen + 10 % sulfur dioxide", rated="300 bar(g)", fill="200 bar(g)"))
+    assert r["verdict"] == "out-of-scope"
+    assert "two phases" in " ".join(r["reasons"])

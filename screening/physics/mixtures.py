@@ -35,6 +35,7 @@ Units: SI — pressure [Pa], temperature [K], molar density [mol/m3].
 
 from __future__ import annotations
 
+import math
 import threading
 import time
 from dataclasses import dataclass, field
@@ -285,3 +286,31 @@ def trade_mixture_models() -> list[dict]:
                           "then generalized (Lee–Kesler, Kay's rule) and ideal gas")
         rows.append({"label": label, "reference": fitted, "pairs": pairs, "models": "; ".join(models)})
     return rows
+
+
+def cubic_phase_on_isochore(components: tuple[CubicComponent, ...], fractions: tuple[float, ...],
+                            t_low: float, *, p: float | None = None, t_p: float | None = None,
+                            rho: float | None = None, budget: Budget | None = None) -> PhaseAnswer:
+    """Whether a fill is one phase from ``t_low`` [K] upwards on its isochore, by the cubic route alone
+    (for mixtures without a reference model). The fill is given by its pressure ``p`` [Pa] at ``t_p`` [K]
+    (its density then from the Peng–Robinson flash there) or by its molar density ``rho`` [mol/m3].
+    The state at t_low on the isochore is flashed; one phase there means one phase above it (module doc)."""
+    from thermo import PRMIX
+
+    budget = budget or Budget()
+    flasher, kijs = _cubic_flasher(tuple(components))
+    z = list(fractions)
+    try:
+        if rho is None:
+            first = cubic_route(components, fractions, p, t_p, budget)
+            if first.phases != 1:
+                return combine([first], budget)
+            rho = cubic_density(components, fractions, p, t_p)
+        eos = PRMIX(Tcs=[c.tc for c in components], Pcs=[c.pc for c in components],
+                    omegas=[c.omega for c in components], kijs=kijs, zs=z, T=float(t_low), V=1.0 / float(rho))
+        p_low = float(eos.P)
+    except Exception as exc:  # any failure of the library is "did not answer"
+        return combine([RouteAnswer("cubic", None, f"Peng–Robinson state not found ({type(exc).__name__})")], budget)
+    if not (math.isfinite(p_low) and p_low > 0.0):
+        return combine([RouteAnswer("cubic", 2, "no positive pressure on the isochore")], budget)
+    return combine([cubic_route(components, fractions, p_low, t_low, budget)], budget)
