@@ -35,6 +35,7 @@ from screening.physics.exposure import (
 )
 from screening.physics.gases import Mixture
 from screening.physics.isochore import isochore_phases, max_liquid_density
+from screening.physics.mixtures import CubicComponent, cubic_phase_on_isochore
 from screening.physics.roots import brentq
 
 VERDICTS = ("within", "low-margin", "over", "out-of-scope")
@@ -299,10 +300,25 @@ def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> Fil
         # Without the reference model the phase cannot be established; a gas is assumed only where
         # both temperatures are above every component's critical temperature.
         tc_max = max(g.critical_temperature for g in case.gas.components)
-        if min(t_fill, t_peak) <= tc_max:
+        cubic = None
+        if min(t_fill, t_peak) <= tc_max and not case.gas.is_pure and all(g.cas for g in case.gas.components):
+            # a mixture without a reference model: its phase by the cubic route alone (physics.mixtures)
+            comps = tuple(CubicComponent(g.cas, g.critical_temperature, g.critical_pressure, g.acentric_factor,
+                                         g.molar_mass) for g in case.gas.components)
+            rho_m = None if fs.rho_mass is None else fs.rho_mass / M
+            cubic = cubic_phase_on_isochore(comps, tuple(case.gas.fractions), min(t_fill, t_peak),
+                                            p=case.fill_pressure_pa, t_p=t_fill, rho=rho_m)
+        if cubic is not None and cubic.single:
+            fs.phase_fill = fs.phase_peak = "gas (one phase by the Peng–Robinson route; no reference model)"
+            warnings.append({"code": "phase-by-one-route", "message":
+                             f"No reference model for this mixture ({err}): its phase was established by the "
+                             "Peng–Robinson route alone."})
+        elif min(t_fill, t_peak) <= tc_max:
             fs.gas_ok = False
             fs.why_not_gas = ("the gas phase cannot be confirmed: the reference model is not available "
-                              f"({err}) and the temperature is below a component's critical temperature")
+                              f"({err}) and the temperature is below a component's critical temperature"
+                              + (f"; the Peng–Robinson route finds {cubic.reason}" if cubic is not None and
+                                 cubic.reason else ""))
         else:
             fs.phase_fill = fs.phase_peak = "gas (assumed: above every component's critical temperature)"
         return fs
