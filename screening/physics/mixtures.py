@@ -85,20 +85,21 @@ class Budget:
 def combine(answers: list[RouteAnswer], budget: Budget | None = None) -> PhaseAnswer:
     """Keep the conservative answer of the routes.
 
-    Two phases from any route → two-phase. One phase from at least one route and two from none → one
-    phase. No route answered → the phase cannot be established (one plain reason).
+    Two phases from any route → two-phase. Otherwise, a check that ran over its time budget → the phase
+    cannot be established. One phase from at least one route (and two from none) → one phase. No route
+    answered → the phase cannot be established (one plain reason).
     """
     routes = tuple(answers)
     if any(a.phases == 2 for a in routes):
         who = ", ".join(a.route for a in routes if a.phases == 2)
         return PhaseAnswer(False, routes, f"two phases (found by the {who} route)")
+    if budget is not None and budget.expired():
+        return PhaseAnswer(None, routes, f"{CANNOT}: the phase check did not finish within "
+                                         f"{budget.seconds:g} s")
     if any(a.phases == 1 for a in routes):
         failed = [a for a in routes if a.phases is None]
         note = ("; ".join(f"the {a.route} route did not answer ({a.failure})" for a in failed)) if failed else ""
         return PhaseAnswer(True, routes, note)
-    if budget is not None and budget.expired():
-        return PhaseAnswer(None, routes, f"{CANNOT}: the phase check did not finish within "
-                                         f"{budget.seconds:g} s")
     why = "; ".join(f"{a.route}: {a.failure}" for a in routes if a.failure)
     return PhaseAnswer(None, routes, f"{CANNOT} (neither route converged: {why})" if why else CANNOT)
 
