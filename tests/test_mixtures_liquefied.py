@@ -120,3 +120,11 @@ def test_new_gases_carry_their_hazards():
     assert set(parse_gas("hydrogen sulfide").hazards) >= {"toxic", "flammable"}
     assert "flammable" in parse_gas("R-32").hazards and "flammable" in parse_gas("R-1234yf").hazards
     assert parse_gas("R-744").components[0].name == "carbon dioxide"
+
+
+def test_blend_result_states_its_mixing_rules():
+    r = screen_text(CASE.format(v=26, rated="30 bar(g)", gas="R-407C", m="10", hot=40))
+    rule = r["models"]["reference"]["mixing_rule"]
+    # source: CoolProp.get_mixture_binary_pair_data names Lemmon (2004) for the HFC pairs (CoolProp 8.0.0)
+    assert CP.get_mixture_binary_pair_data("354-33-6", "75-10-5", "BibTeX") == "Lemmon-JPCRD-2004"
+    assert "Lemmon-JPCRD-2004" in rule and "bubble pressure" in rule and "Peng–Robinson" in rule

@@ -581,6 +581,11 @@ class LiquefiedBlend(ReferenceFluid):
     per cent low, which would move the liquid-full point by kelvins.
     """
 
+    def _init_mixture(self) -> None:
+        super()._init_mixture()
+        self.mixing_rule += ("; two-phase states: the bubble pressure of the overall composition (upper end of "
+                             "the glide), the higher of CoolProp's and the Peng–Robinson bubble points")
+
     def _evaluate_mixture(self, rho: float, T: float) -> tuple[float, str]:
         # two phases where the fill density lies between the dew-point vapour and the bubble-point liquid
         # densities of the overall composition at T
