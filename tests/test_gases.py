@@ -484,3 +484,9 @@ def test_parse_gas_trade_forms_refused_with_a_clear_message(text, words):
     with pytest.raises(InputError) as e:
         parse_gas(text, file="cyl.toml", key="fill.gas")
     assert words in str(e.value) and e.value.file == "cyl.toml" and e.value.key == "fill.gas"
+
+
+def test_a_composition_by_mass_keeps_its_mass_percentages_in_its_name():
+    m = parse_gas("propane + 40 % n-butane by mass")
+    assert m.name == "propane 60% + n-butane 40% by mass"
+    assert parse_gas(m.name).fractions == pytest.approx(m.fractions, rel=1e-12)

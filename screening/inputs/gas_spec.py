@@ -30,7 +30,7 @@ import math
 import re
 
 from screening.errors import InputError
-from screening.physics.gases import FRACTION_SUM_TOLERANCE, Mixture, lookup, make_mixture, pure
+from screening.physics.gases import FRACTION_SUM_TOLERANCE, Mixture, make_mixture, mixture_by_mass, pure
 
 GRAMMAR = ("a gas name, or '<gas> <percent>% + <gas> <percent>% ...' (e.g. 'argon 82% + carbon dioxide 18%', "
            "'argon + 8 % CO2', 'CO2 18 % in argon', 'nitrogen + 50 ppm carbon monoxide', "
@@ -136,19 +136,12 @@ def _parse_text(text: str, *, file, key) -> dict[str, float] | str:
                              expected=f"100 % within {FRACTION_SUM_TOLERANCE:.1%}, or a balance gas named without "
                              "an amount ('argon + 8 % CO2')")
     if mass:
-        out = _mass_to_mole(out, file=file, key=key, given=text)
+        return _MassFractions(out)
     return out
 
 
-def _mass_to_mole(mass_fractions: dict[str, float], *, file, key, given) -> dict[str, float]:
-    """Mole fractions from mass fractions with the library's molar masses: x_i = (w_i/M_i) / sum(w_j/M_j)."""
-    total = math.fsum(mass_fractions.values())
-    if abs(total - 1.0) > FRACTION_SUM_TOLERANCE:
-        raise InputError("mass fractions do not sum to 100 %", file=file, key=key, given=given,
-                         expected=f"a sum within {FRACTION_SUM_TOLERANCE:.1%} of 100 %")
-    moles = {name: w / lookup(name).molar_mass for name, w in mass_fractions.items()}
-    n = math.fsum(moles.values())
-    return {name: v / n for name, v in moles.items()}
+class _MassFractions(dict):
+    """{gas name: mass fraction}: a composition stated by mass (converted by gases.mixture_by_mass)."""
 
 
 def _parse_table(table: dict, *, file, key) -> dict[str, float]:
@@ -184,6 +177,8 @@ def parse_gas(value: object, *, file: str | None = None, key: str = "fill.gas") 
             spec = _parse_text(value, file=file, key=key)
             if isinstance(spec, str):
                 return pure(spec)
+            if isinstance(spec, _MassFractions):
+                return mixture_by_mass(dict(spec))
             return make_mixture(spec)
         if isinstance(value, dict):
             if not value:
