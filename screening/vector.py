@@ -16,7 +16,7 @@ tolerances, both temperatures above the critical temperature (the "vectorised pa
 * verdicts through :func:`screening.screen.decide`, the one place that decides a verdict.
 
 Everything else goes through :func:`screening.screen.screen_case` one row at a time, on purpose: liquefiable
-and dissolved gases and mixtures (their reference state is checked per row against the phase envelope),
+and dissolved gases and mixtures (their phase is checked per row by two routes, see physics.mixtures),
 mass fills, fills denser than critical (liquid-full analysis), two-phase or near-critical fills,
 tolerances and sun exposure, and any row where a vectorised step is not sure of itself (a root next to
 the edge of a model's range, a solve that did not settle). Those rows give exactly the single-case result.
