@@ -18,9 +18,9 @@ finds two phases; a state that neither route can establish is refused with the p
 cannot be established". Where only one route answers, its answer is used and the other route's failure is
 noted.
 
-**Time bound.** Every state check has a budget of :data:`PHASE_TIME_BOUND` seconds, checked between the
-steps (each route, each flash); a check that runs over is abandoned and the phase is "cannot be
-established". No step that can run unbounded is called: CoolProp's phase-envelope construction is not
+**Time bound.** Every state check has a budget of :data:`PHASE_TIME_BOUND` seconds, and all the checks of
+one screening together :data:`CASE_TIME_BOUND` seconds (:func:`case_budget`), checked between the steps
+(each route, each flash); a check that runs over is abandoned and the phase is "cannot be established". No step that can run unbounded is called: CoolProp's phase-envelope construction is not
 used at all (in CoolProp 8.0.0 it did not finish within 900 s for argon 70 % + helium 30 %, and for argon
 + 8 % CO2 it returned a maximum envelope temperature of 20 738 K), nor its critical-point search. A single CoolProp or thermo flash took at most about 0.05 s in the mixtures of the
 trade (measured on this project's machine, 2026-12-03).
@@ -35,6 +35,8 @@ Units: SI — pressure [Pa], temperature [K], molar density [mol/m3].
 
 from __future__ import annotations
 
+import contextlib
+import contextvars
 import math
 import threading
 import time
@@ -68,12 +70,38 @@ class PhaseAnswer:
     reason: str = ""
 
 
+#: Wall-clock budget [s] of all the phase checks of one screening (see :func:`case_budget`).
+CASE_TIME_BOUND = 8.0
+
+_CASE_DEADLINE: contextvars.ContextVar[tuple[float, float] | None] = contextvars.ContextVar(
+    "screening_phase_case_deadline", default=None)
+
+
+@contextlib.contextmanager
+def case_budget(seconds: float | None = None):
+    """Within the block, every phase check also stops at a common deadline ``seconds`` from now (default
+    :data:`CASE_TIME_BOUND`; one screening's phase checks together; per thread and per task, through a
+    context variable)."""
+    seconds = CASE_TIME_BOUND if seconds is None else float(seconds)
+    token = _CASE_DEADLINE.set((time.monotonic() + seconds, seconds))
+    try:
+        yield
+    finally:
+        _CASE_DEADLINE.reset(token)
+
+
 class Budget:
-    """A wall-clock deadline checked between steps (``time.monotonic``)."""
+    """A wall-clock deadline checked between steps (``time.monotonic``): ``seconds`` from now, or the
+    deadline of the enclosing :func:`case_budget`, whichever comes first."""
 
     def __init__(self, seconds: float = PHASE_TIME_BOUND) -> None:
         self.seconds = float(seconds)
         self.deadline = time.monotonic() + self.seconds
+        self.scope = "the phase check"
+        case = _CASE_DEADLINE.get()
+        if case is not None and case[0] < self.deadline:
+            self.deadline, self.seconds = case[0], case[1]
+            self.scope = "the phase checks of this screening"
 
     def left(self) -> float:
         return self.deadline - time.monotonic()
@@ -94,8 +122,7 @@ def combine(answers: list[RouteAnswer], budget: Budget | None = None) -> PhaseAn
         who = ", ".join(a.route for a in routes if a.phases == 2)
         return PhaseAnswer(False, routes, f"two phases (found by the {who} route)")
     if budget is not None and budget.expired():
-        return PhaseAnswer(None, routes, f"{CANNOT}: the phase check did not finish within "
-                                         f"{budget.seconds:g} s")
+        return PhaseAnswer(None, routes, f"{CANNOT}: {budget.scope} did not finish within {budget.seconds:g} s")
     if any(a.phases == 1 for a in routes):
         failed = [a for a in routes if a.phases is None]
         note = ("; ".join(f"the {a.route} route did not answer ({a.failure})" for a in failed)) if failed else ""
