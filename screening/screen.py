@@ -35,7 +35,7 @@ from screening.physics.exposure import (
 )
 from screening.physics.gases import Mixture
 from screening.physics.isochore import isochore_phases, max_liquid_density
-from screening.physics.mixtures import CubicComponent, cubic_phase_on_isochore
+from screening.physics.mixtures import CubicComponent, case_budget, cubic_phase_on_isochore
 from screening.physics.roots import brentq
 
 VERDICTS = ("within", "low-margin", "over", "out-of-scope")
@@ -985,14 +985,15 @@ def screen_case(case: Case) -> dict:
     """Screen one vessel over its exposure scenarios; return the governing scenario's result dict
     (JSON-ready, SI, pressures absolute) with every scenario side by side under "scenarios"."""
     per: list[tuple[str, dict, dict | None]] = []
-    for sc in case.scenarios:
-        warnings: list[dict] = []
-        if case.fill_temperature_k is None:
-            warnings.append({"code": "fill-temperature-assumed", "message":
-                             f"No fill temperature given: {DEFAULT_MASS_FILL_TEMPERATURE_K - 273.15:.0f} °C is "
-                             "assumed to describe the fill state; the peak pressure does not depend on it."})
-        t_peak, basis, balance = _worst_case_temperature(case, sc, warnings)
-        per.append((sc.name, _screen_at(case, t_peak, basis, warnings), balance))
+    with case_budget():   # a mixture's phase checks share one time bound per screening
+        for sc in case.scenarios:
+            warnings: list[dict] = []
+            if case.fill_temperature_k is None:
+                warnings.append({"code": "fill-temperature-assumed", "message":
+                                 f"No fill temperature given: {DEFAULT_MASS_FILL_TEMPERATURE_K - 273.15:.0f} °C "
+                                 "is assumed to describe the fill state; the peak pressure does not depend on it."})
+            t_peak, basis, balance = _worst_case_temperature(case, sc, warnings)
+            per.append((sc.name, _screen_at(case, t_peak, basis, warnings), balance))
     ranked = max(range(len(per)), key=lambda i: _rank(per[i][1]))
     name, result, balance = per[ranked]
     result = dict(result)

@@ -199,3 +199,25 @@ def test_mixture_without_fitted_pair_that_condenses_is_refused():
     r = screen_text(CASE.format(gas="nitrogen + 10 % sulfur dioxide", rated="300 bar(g)", fill="200 bar(g)"))
     assert r["verdict"] == "out-of-scope"
     assert "two phases" in " ".join(r["reasons"])
+
+
+def test_the_phase_checks_of_one_screening_share_a_time_bound(monkeypatch):
+    # every phase check of a fresh mixture takes 0.3 s here; with a 1 s bound for the whole screening
+    # the screening ends soon after the bound and says, once, that the phase cannot be established
+    from screening.physics.eos import reference as ref_mod
+    slow = 0.3
+    original = ref_mod.ReferenceFluid._reference_route
+
+    def slow_reference(self, rho, p, T, budget):
+        time.sleep(slow)
+        return original(self, rho, p, T, budget)
+
+    monkeypatch.setattr(ref_mod.ReferenceFluid, "_reference_route", slow_reference)
+    monkeypatch.setattr(mix, "CASE_TIME_BOUND", 1.0)
+    t0 = time.monotonic()
+    r = screen_text(CASE.format(gas="argon 91% + carbon dioxide 9%", rated="300 bar(g)", fill="210 bar(g)"))
+    elapsed = time.monotonic() - t0
+    assert elapsed < 1.0 + slow + 2.0     # the bound, one step that was running, and the models' own work
+    text = " ".join(r["reasons"]) + " ".join(str(m["note"]) for m in r["models"].values())
+    if r["verdict"] == "out-of-scope":
+        assert "the phase checks of this screening did not finish within 1 s" in text
