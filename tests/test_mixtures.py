@@ -214,6 +214,7 @@ def test_the_phase_checks_of_one_screening_share_a_time_bound(monkeypatch):
 
     monkeypatch.setattr(ref_mod.ReferenceFluid, "_reference_route", slow_reference)
     monkeypatch.setattr(mix, "CASE_TIME_BOUND", 1.0)
+    monkeypatch.setattr(mix, "PHASE_TIME_BOUND", 1.0)
     t0 = time.monotonic()
     r = screen_text(CASE.format(gas="argon 91% + carbon dioxide 9%", rated="300 bar(g)", fill="210 bar(g)"))
     elapsed = time.monotonic() - t0
@@ -221,3 +222,11 @@ def test_the_phase_checks_of_one_screening_share_a_time_bound(monkeypatch):
     text = " ".join(r["reasons"]) + " ".join(str(m["note"]) for m in r["models"].values())
     if r["verdict"] == "out-of-scope":
         assert "the phase checks of this screening did not finish within 1 s" in text
+
+
+def test_the_phase_checks_of_one_screening_are_bounded_in_number(monkeypatch):
+    monkeypatch.setattr(mix, "CASE_CHECK_BOUND", 0)
+    r = screen_text(CASE.format(gas="argon 90.5% + carbon dioxide 9.5%", rated="300 bar(g)", fill="205 bar(g)"))
+    assert r["verdict"] == "out-of-scope"
+    text = " ".join(r["reasons"])
+    assert text.count("this screening needed more than its 0 phase checks") == 1

@@ -43,8 +43,9 @@ import time
 from dataclasses import dataclass, field
 from functools import lru_cache
 
-#: Wall-clock budget [s] of one state's phase check (both routes together).
-PHASE_TIME_BOUND = 2.0
+#: Wall-clock budget [s] of one state's phase check (both routes together; a single flash of a
+#: five-component natural gas takes up to about 1 s on a loaded two-core machine).
+PHASE_TIME_BOUND = 5.0
 
 #: The phase words a state check returns.
 SINGLE_PHASES = ("gas", "supercritical", "liquid")
@@ -70,24 +71,42 @@ class PhaseAnswer:
     reason: str = ""
 
 
-#: Wall-clock budget [s] of all the phase checks of one screening (see :func:`case_budget`).
-CASE_TIME_BOUND = 8.0
+#: Most phase checks (states flashed) one screening may run: a deterministic bound, so that the same case
+#: gives the same result on a fast or a loaded machine (a screening of the trade's mixtures needs 35-75).
+CASE_CHECK_BOUND = 200
 
-_CASE_DEADLINE: contextvars.ContextVar[tuple[float, float] | None] = contextvars.ContextVar(
+#: Wall-clock budget [s] of all the phase checks of one screening together: a last-resort net
+#: (see :func:`case_budget`); the count above is what normally bounds a screening.
+CASE_TIME_BOUND = 60.0
+
+_CASE_DEADLINE: contextvars.ContextVar[list | None] = contextvars.ContextVar(
     "screening_phase_case_deadline", default=None)
 
 
 @contextlib.contextmanager
-def case_budget(seconds: float | None = None):
+def case_budget(seconds: float | None = None, checks: int | None = None):
     """Within the block, every phase check also stops at a common deadline ``seconds`` from now (default
-    :data:`CASE_TIME_BOUND`; one screening's phase checks together; per thread and per task, through a
-    context variable)."""
+    :data:`CASE_TIME_BOUND`), and at most ``checks`` states are flashed (default :data:`CASE_CHECK_BOUND`):
+    one screening's phase checks together, per thread and per task (a context variable)."""
     seconds = CASE_TIME_BOUND if seconds is None else float(seconds)
-    token = _CASE_DEADLINE.set((time.monotonic() + seconds, seconds))
+    checks = CASE_CHECK_BOUND if checks is None else int(checks)
+    token = _CASE_DEADLINE.set([time.monotonic() + seconds, seconds, checks])
     try:
         yield
     finally:
         _CASE_DEADLINE.reset(token)
+
+
+def take_check() -> str | None:
+    """Count one phase check against the enclosing :func:`case_budget`; the reason (plain words) when the
+    screening has used all its checks, else None."""
+    case = _CASE_DEADLINE.get()
+    if case is None:
+        return None
+    if case[2] <= 0:
+        return f"{CANNOT}: this screening needed more than its {CASE_CHECK_BOUND} phase checks"
+    case[2] -= 1
+    return None
 
 
 class Budget:

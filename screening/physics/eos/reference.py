@@ -317,6 +317,10 @@ class ReferenceFluid:
         self.pseudo_critical_temperature = math.fsum(x * t for x, t in zip(self.fractions, tcs))
         self.pseudo_critical_molar_density = 1.0 / math.fsum(x * v for x, v in zip(self.fractions, vcs))
         self.cubic_components = tuple(comps)
+        try:    # built here, once, so that no phase check's time budget pays for it
+            _mix.cubic_kij(self.cubic_components)
+        except Exception:  # the cubic route will say it did not answer
+            pass
         pairs = []
         for i in range(len(self.names)):
             for j in range(i + 1, len(self.names)):
@@ -372,6 +376,9 @@ class ReferenceFluid:
         """Whether the homogeneous state (rho [mol/m3], p [Pa], T [K]) is one phase, by both routes
         (reference: CoolProp's PT flash with its stability analysis, the density checked on the way
         back; cubic: thermo's Peng–Robinson flash), within ``phase_time_bound`` seconds."""
+        over = _mix.take_check()
+        if over:
+            return _mix.PhaseAnswer(None, (), over)
         budget = budget or _mix.Budget(self.phase_time_bound)
         # the cubic route first: about 1 ms, where the reference route's flash takes 0.05-1 s; two phases
         # found by it decide the answer (the conservative combination) without the slower route
