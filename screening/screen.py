@@ -16,9 +16,16 @@ from screening import __version__
 from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
 from screening.errors import InputError, NotApplicable
 from screening.inputs.case import Case, Exposure, load_case, parse_case_text
-from screening.physics.eos.generalized import lee_kesler_density, lee_kesler_pressure, pseudocritical
+from screening.physics.eos.generalized import (
+    lee_kesler_density,
+    lee_kesler_pressure,
+    pseudocritical,
+    quantum_effective_critical,
+    srk_quantum_density,
+    srk_quantum_pressure,
+)
 from screening.physics.eos.ideal import ideal_gas_density, ideal_gas_pressure
-from screening.physics.eos.reference import ReferenceFluid, reference_fluid
+from screening.physics.eos.reference import LiquefiedBlend, ReferenceFluid, liquefied_blend, reference_fluid
 from screening.physics.exposure import (
     DEFAULT_ASPECT_RATIO,
     DEFAULT_IRRADIANCE,
@@ -28,6 +35,7 @@ from screening.physics.exposure import (
 )
 from screening.physics.gases import Mixture
 from screening.physics.isochore import isochore_phases, max_liquid_density
+from screening.physics.mixtures import CubicComponent, case_budget, cubic_phase_on_isochore
 from screening.physics.roots import brentq
 from screening.units import percent_pair
 from screening.verdicts import Verdict
@@ -155,6 +163,8 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
             fill, consts_fill = _lk_pressure(arrays, rho, t_fill)
         peak, consts_peak = _lk_pressure(arrays, rho, t_peak)
     except NotApplicable as exc:
+        if case.gas.is_pure and case.gas.components[0].quantum:
+            return _quantum_generalized(case, rho_mass, t_fill, t_peak, exc.reason)
         return not_applicable("generalized", f"Lee–Kesler correlation outside its range: {exc.reason}")
     extra = {
         "z_fill": float(fill.z[0]), "z_peak": float(peak.z[0]),
@@ -199,6 +209,62 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
                  float(peak.pressure[0]), rho, isochore, fill_to_peak, extra, isochore_array, fill_to_peak_array)
 
 
+#: The generalized model's note and method for pure H2, He, Ne above the Lee–Kesler tables.
+QUANTUM_SRK_NOTE = ("Soave–Redlich–Kwong with the Gunn–Chueh–Prausnitz quantum-gas constants (the Lee–Kesler "
+                    "tables end at reduced temperature 4)")
+QUANTUM_SRK_METHOD = "Soave–Redlich–Kwong with the Gunn–Chueh–Prausnitz constants"
+
+
+def _quantum_generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: float, lk_reason: str) -> Model:
+    """Pure hydrogen, helium or neon where the Lee–Kesler tables end: the quantum-gas SRK model
+    (physics.eos.generalized.srk_quantum_*), within its checked range."""
+    g = case.gas.components[0]
+    k = (g.classical_critical_temperature, g.classical_critical_pressure, g.molar_mass)
+    try:
+        if case.fill_pressure_pa is not None:
+            fill = srk_quantum_density(case.fill_pressure_pa, t_fill, *k).require()
+            rho = float(fill.molar_density[()])
+        else:
+            rho = rho_mass / g.molar_mass
+            fill = srk_quantum_pressure(rho, t_fill, *k).require()
+        peak = srk_quantum_pressure(rho, t_peak, *k).require()
+    except NotApplicable as exc:
+        return not_applicable("generalized", f"Lee–Kesler correlation outside its range: {lk_reason}; "
+                              f"quantum-gas model: {exc.reason}")
+    tc_p, pc_p = (float(x) for x in quantum_effective_critical(*k[:2], k[2], t_peak))
+    tc_f, pc_f = (float(x) for x in quantum_effective_critical(*k[:2], k[2], t_fill))
+    extra = {
+        "z_fill": float(fill.z[()]), "z_peak": float(peak.z[()]),
+        "reduced_temperature_fill": float(fill.reduced_temperature[()]),
+        "reduced_pressure_fill": float(fill.reduced_pressure[()]),
+        "reduced_temperature_peak": float(peak.reduced_temperature[()]),
+        "reduced_pressure_peak": float(peak.reduced_pressure[()]),
+        "pseudocritical_temperature_k": tc_p, "pseudocritical_pressure_pa": pc_p,
+        "pseudocritical_temperature_fill_k": tc_f, "pseudocritical_pressure_fill_pa": pc_f,
+        "acentric_factor": 0.0, "mixing_rule": None, "quantum_correction": True,
+        "method": QUANTUM_SRK_METHOD,
+    }
+
+    def isochore_array(ts: np.ndarray) -> np.ndarray:
+        st = srk_quantum_pressure(rho, np.asarray(ts, dtype=float), *k)
+        return np.where(st.valid, st.pressure, np.nan)
+
+    def isochore(t: float) -> float:
+        return float(srk_quantum_pressure(rho, t, *k).require().pressure[()])
+
+    def fill_to_peak_array(ps: np.ndarray) -> np.ndarray:
+        f = srk_quantum_density(np.asarray(ps, dtype=float), t_fill, *k)
+        pk = srk_quantum_pressure(np.where(f.valid, f.molar_density, 1.0), t_peak, *k)
+        return np.where(f.valid & pk.valid, pk.pressure, np.nan)
+
+    def fill_to_peak(p: float) -> float:
+        r = float(srk_quantum_density(p, t_fill, *k).require().molar_density[()])
+        return float(srk_quantum_pressure(r, t_peak, *k).require().pressure[()])
+
+    return Model("generalized", True, QUANTUM_SRK_NOTE, float(peak.pressure[()]), rho,
+                 isochore, fill_to_peak, extra, isochore_array, fill_to_peak_array)
+
+
 # ----------------------------------------------------------------------------- phase and reference
 
 @dataclass
@@ -231,6 +297,9 @@ def _reference_fluid(gas: Mixture) -> tuple[ReferenceFluid | None, str | None]:
         missing = [g.name for g in gas.components if g.coolprop_name is None]
         return None, f"no reference equation of state for {', '.join(missing)}"
     try:
+        if not gas.is_pure and all(g.kind == "liquefiable" for g in gas.components):
+            # a blend of liquefiable gases may be filled as a liquid: two-phase states are screened
+            return liquefied_blend(names, tuple(gas.fractions)), None
         return reference_fluid(names, tuple(gas.fractions)), None
     except NotApplicable as exc:
         return None, exc.reason
@@ -283,10 +352,25 @@ def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> Fil
         # Without the reference model the phase cannot be established; a gas is assumed only where
         # both temperatures are above every component's critical temperature.
         tc_max = max(g.critical_temperature for g in case.gas.components)
-        if min(t_fill, t_peak) <= tc_max:
+        cubic = None
+        if min(t_fill, t_peak) <= tc_max and not case.gas.is_pure and all(g.cas for g in case.gas.components):
+            # a mixture without a reference model: its phase by the cubic route alone (physics.mixtures)
+            comps = tuple(CubicComponent(g.cas, g.critical_temperature, g.critical_pressure, g.acentric_factor,
+                                         g.molar_mass) for g in case.gas.components)
+            rho_m = None if fs.rho_mass is None else fs.rho_mass / M
+            cubic = cubic_phase_on_isochore(comps, tuple(case.gas.fractions), min(t_fill, t_peak),
+                                            p=case.fill_pressure_pa, t_p=t_fill, rho=rho_m)
+        if cubic is not None and cubic.single:
+            fs.phase_fill = fs.phase_peak = "gas (one phase by the Peng–Robinson route; no reference model)"
+            warnings.append({"code": "phase-by-one-route", "message":
+                             f"No reference model for this mixture ({err}): its phase was established by the "
+                             "Peng–Robinson route alone."})
+        elif min(t_fill, t_peak) <= tc_max:
             fs.gas_ok = False
             fs.why_not_gas = ("the gas phase cannot be confirmed: the reference model is not available "
-                              f"({err}) and the temperature is below a component's critical temperature")
+                              f"({err}) and the temperature is below a component's critical temperature"
+                              + (f"; the Peng–Robinson route finds {cubic.reason}" if cubic is not None and
+                                 cubic.reason else ""))
         else:
             fs.phase_fill = fs.phase_peak = "gas (assumed: above every component's critical temperature)"
         return fs
@@ -327,6 +411,9 @@ def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> Fil
         else:
             fs.phase_fill = fluid.phase(rho_molar, t_fill)
             fs.phase_peak = fluid.phase(rho_molar, t_peak)
+            if isinstance(fluid, LiquefiedBlend) and fs.phase_fill == "two-phase":
+                fs.liquid_full_temperature = fluid.liquid_full_temperature(rho_molar, t_fill,
+                                                                           max(t_fill, t_peak) + 100.0)
     except NotApplicable as exc:
         fs.fluid_error = exc.reason
         tc_max = max(g.critical_temperature for g in case.gas.components)
@@ -513,6 +600,13 @@ def _mass_limit(case: Case, models: list[Model], t_fill: float, t_peak: float, t
             rho_lf = liquid_full_density(fluid, t_fill, t_peak)
         except NotApplicable:
             return none
+        if rho_lf < rho:
+            rho, basis = rho_lf, "the liquid-full point at the worst-case temperature"
+    elif isinstance(fluid, LiquefiedBlend):
+        try:   # the blend's bubble-point liquid at the worst-case temperature: liquid-full there
+            rho_lf = fluid.bubble_point(t_peak)[1]
+        except NotApplicable:
+            rho_lf = math.inf
         if rho_lf < rho:
             rho, basis = rho_lf, "the liquid-full point at the worst-case temperature"
     rho_mass = rho * M
@@ -1072,14 +1166,15 @@ def screen_case(case: Case, *, curves: bool = True) -> dict:
     (JSON-ready, SI, pressures absolute) with every scenario side by side under "scenarios".
     `curves`: compute the plot data ("curves", "phase_diagram"); None where False."""
     per: list[tuple[str, dict, dict | None]] = []
-    for sc in case.scenarios:
-        warnings: list[dict] = []
-        if case.fill_temperature_k is None:
-            warnings.append({"code": "fill-temperature-assumed", "message":
-                             f"No fill temperature given: {DEFAULT_MASS_FILL_TEMPERATURE_K - 273.15:.0f} °C is "
-                             "assumed to describe the fill state; the peak pressure does not depend on it."})
-        t_peak, basis, balance = _worst_case_temperature(case, sc, warnings)
-        per.append((sc.name, _screen_at(case, t_peak, basis, warnings), balance))
+    with case_budget():   # a mixture's phase checks share one time bound per screening
+        for sc in case.scenarios:
+            warnings: list[dict] = []
+            if case.fill_temperature_k is None:
+                warnings.append({"code": "fill-temperature-assumed", "message":
+                                 f"No fill temperature given: {DEFAULT_MASS_FILL_TEMPERATURE_K - 273.15:.0f} °C "
+                                 "is assumed to describe the fill state; the peak pressure does not depend on it."})
+            t_peak, basis, balance = _worst_case_temperature(case, sc, warnings)
+            per.append((sc.name, _screen_at(case, t_peak, basis, warnings), balance))
     ranked = max(range(len(per)), key=lambda i: _rank(per[i][1]))
     plot = [r.pop("_plot") for _, r, _ in per][ranked]
     name, result, balance = per[ranked]

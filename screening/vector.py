@@ -16,7 +16,7 @@ tolerances, both temperatures above the critical temperature (the "vectorised pa
 * verdicts through :func:`screening.screen.decide`, the one place that decides a verdict.
 
 Everything else goes through :func:`screening.screen.screen_case` one row at a time, on purpose: liquefiable
-and dissolved gases and mixtures (their reference state is checked per row against the phase envelope),
+and dissolved gases and mixtures (their phase is checked per row by two routes, see physics.mixtures),
 mass fills, fills denser than critical (liquid-full analysis), two-phase or near-critical fills,
 tolerances and sun exposure, and any row where a vectorised step is not sure of itself (a root next to
 the edge of a model's range, a solve that did not settle). Those rows give exactly the single-case result.
@@ -41,7 +41,15 @@ from screening.constants import R
 from screening.errors import InputError, NotApplicable
 from screening.inputs.case import Case
 from screening.inputs.columns import PlainRows
-from screening.physics.eos.generalized import lee_kesler_density, lee_kesler_pressure, pseudocritical
+from screening.physics.eos.generalized import (
+    GENERALIZED_FIELDS,
+    GeneralizedState,
+    lee_kesler_density,
+    lee_kesler_pressure,
+    pseudocritical,
+    srk_quantum_density,
+    srk_quantum_pressure,
+)
 from screening.physics.eos.reference import ReferenceFluid, reference_fluid
 from screening.physics.gases import Mixture
 from screening.physics.isochore import LIQUID_FULL_STEP
@@ -467,15 +475,32 @@ def _columns(rows: Rows) -> dict:
     rho_lk = np.where(gf.valid, gf.molar_density, 1.0)
     gp = lee_kesler_pressure(rho_lk, t_peak, tcp, pcp, omp)
     lk_ok = gf.valid & gp.valid
-    out.update(tcf=tcf, pcf=pcf, tcp=tcp, pcp=pcp, omp=omp, lk_ok=lk_ok,
-               lk_reason=np.where(gf.valid, gp.reason, gf.reason).astype(object),
+    lk_reason = np.where(gf.valid, gp.reason, gf.reason).astype(object)
+    # pure hydrogen, helium or neon where the Lee–Kesler tables end: the quantum-gas SRK model, as
+    # screen._quantum_generalized has it
+    q_srk = np.zeros(n, dtype=bool)
+    kq = None
+    if gas.is_pure and comps[0].quantum and not lk_ok.all():
+        kq = (comps[0].classical_critical_temperature, comps[0].classical_critical_pressure, comps[0].molar_mass)
+        qf = srk_quantum_density(p_fill, t_fill, *kq)
+        qp = srk_quantum_pressure(np.where(qf.valid, qf.molar_density, 1.0), t_peak, *kq)
+        q_srk = ~lk_ok & qf.valid & qp.valid
+        q_reason = np.where(qf.valid, qp.reason, qf.reason).astype(object)
+        failed = ~lk_ok & ~q_srk
+        lk_reason[failed] = [f"{a}; quantum-gas model: {b}" for a, b in zip(lk_reason[failed], q_reason[failed])]
+        gf = GeneralizedState(*(np.where(q_srk, getattr(qf, f), getattr(gf, f)) for f in GENERALIZED_FIELDS))
+        gp = GeneralizedState(*(np.where(q_srk, getattr(qp, f), getattr(gp, f)) for f in GENERALIZED_FIELDS))
+        rho_lk = np.where(gf.valid, gf.molar_density, 1.0)
+        lk_ok = lk_ok | q_srk
+    out.update(tcf=tcf, pcf=pcf, tcp=tcp, pcp=pcp, omp=omp, lk_ok=lk_ok, q_srk=q_srk,
+               lk_reason=lk_reason,
                lk_rho_fill=gf.molar_density, lk_z_fill=gf.z, lk_tr_fill=gf.reduced_temperature,
                lk_pr_fill=gf.reduced_pressure, lk_peak=np.where(lk_ok, gp.pressure, np.nan), lk_z_peak=gp.z,
                lk_tr_peak=gp.reduced_temperature, lk_pr_peak=gp.reduced_pressure)
     peak_lk = out["lk_peak"]
     # the vectorised limits assume constant critical constants (not the quantum correction)
     if any(c.quantum for c in comps):
-        fallback |= lk_ok
+        fallback |= lk_ok & ~q_srk
 
     # --- limits: targets and scan ranges as screen._limits has them
     out["target"] = target = atm + (rated - atm) * (1.0 - margin_req)
@@ -484,9 +509,25 @@ def _columns(rows: Rows) -> dict:
     p_lo = atm * 1.01
     p_hi = np.maximum(target, p_fill) * np.maximum(1.0, t_fill / t_peak) * 1.05
 
-    rows_lk = np.flatnonzero(lk_ok & ~fallback)
+    rows_lk = np.flatnonzero(lk_ok & ~fallback & ~q_srk)
     t_lk = np.full(n, np.nan)
     max_p_lk = np.full(n, np.nan)
+    rows_q = np.flatnonzero(q_srk & ~fallback)
+    if rows_q.size:
+        # the quantum-gas model's limits, scanned as screen._root scans them
+        def iso_q(t, ix):
+            r = rows_q[ix]
+            st = srk_quantum_pressure(rho_lk[r], t, *kq)
+            return np.where(st.valid, st.pressure - rated[r], np.nan)
+
+        def fill_q(p, ix):
+            r = rows_q[ix]
+            s1 = srk_quantum_density(p, t_fill[r], *kq)
+            s2 = srk_quantum_pressure(np.where(s1.valid, s1.molar_density, 1.0), t_peak[r], *kq)
+            return np.where(s1.valid & s2.valid, s2.pressure - target[r], np.nan)
+
+        t_lk[rows_q] = _scan_root(iso_q, t_lo[rows_q], t_hi[rows_q])
+        max_p_lk[rows_q] = _scan_root(fill_q, p_lo[rows_q], p_hi[rows_q])
     if rows_lk.size:
         i = rows_lk
 
@@ -666,7 +707,8 @@ def _assemble(case: Case, cols: dict, k: int, v: dict | None = None) -> dict:
              "fill_molar_density_mol_m3": rho_ideal, "equation": "P v = R T, so at fixed density P2 = P1 T2 / T1"}
     if cols["lk_ok"][k]:
         gen = {"applicable": True, "peak_pressure_pa": float(cols["lk_peak"][k]),
-               "note": "Lee–Kesler corresponding states", "fill_molar_density_mol_m3": float(cols["lk_rho_fill"][k]),
+               "note": _screen.QUANTUM_SRK_NOTE if cols["q_srk"][k] else "Lee–Kesler corresponding states",
+               "fill_molar_density_mol_m3": float(cols["lk_rho_fill"][k]),
                "z_fill": float(cols["lk_z_fill"][k]), "z_peak": float(cols["lk_z_peak"][k]),
                "reduced_temperature_fill": float(cols["lk_tr_fill"][k]),
                "reduced_pressure_fill": float(cols["lk_pr_fill"][k]),
@@ -677,6 +719,8 @@ def _assemble(case: Case, cols: dict, k: int, v: dict | None = None) -> dict:
                "pseudocritical_pressure_fill_pa": float(cols["pcf"][k]),
                "acentric_factor": float(cols["omp"][k]), "mixing_rule": None,
                "quantum_correction": any(c.quantum for c in gas.components)}
+        if cols["q_srk"][k]:
+            gen["method"] = _screen.QUANTUM_SRK_METHOD
     else:
         gen = {"applicable": False, "peak_pressure_pa": None,
                "note": f"Lee–Kesler correlation outside its range: {cols['lk_reason'][k]}",

@@ -56,6 +56,18 @@ EOS_REFERENCE = {
     "isobutane": "Buecker-JPCRD-2006B",
     "ammonia": "Gao-JPCRD-2020",
     "sulfur hexafluoride": "Guder-JPCRD-2009",
+    "R-134a": "TillnerRoth-JPCRD-1994",
+    "R-32": "TillnerRoth-JPCRD-1997",
+    "R-125": "Lemmon-JPCRD-2005",
+    "R-143a": "LemmonJacobsen-JPCRD-2000",
+    "R-1234yf": "Lemmon-IJT-2022",
+    "R-1234ze(E)": "Thol-IJT-2016-R1234zeE",
+    "propylene": "Lemmon-PROPYLENE-2013",
+    "dimethyl ether": "Wu-JPCRD-2011",
+    "chlorine": "Thol-AICHE-2021",
+    "hydrogen sulfide": "Lemmon-JCED-2006",
+    "sulfur dioxide": "Gao-JCED-2016",
+    "hydrogen chloride": "Thol-JCED-2018-HCl",
 }
 
 
@@ -168,6 +180,9 @@ CRIT_METHODS = ("IUPAC", "MATTHEWS", "PINAMARTINES", "WEBBOOK")
 #   neon critical pressure, allowed 4 % explicitly.
 # Vc 2.5 %: the critical density is the least well-measured constant (oxygen 73.4 vs 75.0 cm3/mol, 2.1 %).
 PC_TOL = {"neon": 0.04}
+# Vc of hydrogen chloride: Mathews (1972) and Pina-Martinez give 81.0 cm3/mol, the Thol et al. (2018) equation
+# 84.2 cm3/mol (4.0 %), fitted to their newer density data near the critical point: 4.5 % allowed explicitly.
+VC_TOL = {"hydrogen chloride": 0.045}
 
 
 @pytest.mark.parametrize("gas", list(LIB.values()), ids=list(LIB))
@@ -182,14 +197,17 @@ def test_critical_constants_against_chemicals_compilation(gas):
     # Air's 'PINAMARTINES' Vc (91.5 cm3/mol) is a pseudo-critical volume fitted for cubic EOS, a different
     # quantity from the mixture critical volume of Lemmon et al. 2000 (84.5 cm3/mol): not compared.
     if vc_ref is not None and gas.name != "air":
-        assert gas.critical_volume == pytest.approx(vc_ref, rel=0.025), m
+        assert gas.critical_volume == pytest.approx(vc_ref, rel=VC_TOL.get(gas.name, 0.025)), m
 
 
 # Acentric factor against chemicals 'YAWS' (Yaws 2014), else 'PSRK' (Horstmann 2005), whichever is not
 # the library's own source. 0.025 absolute: compilations derive omega from different vapour-pressure
 # correlations at Tr = 0.7; largest spread seen is nitrous oxide (Yaws 0.1408, PSRK 0.1733, EOS 0.1613).
 # Air is left out: chemicals has only its own computed value for air (no compilation).
-OMEGA_GASES = [g for g in LIB.values() if g.name != "air"]
+# R-1234yf and R-1234ze(E) are left out too: chemicals 1.5.2 holds no compiled acentric factor or vapour-
+# pressure correlation for them other than ones taken from CoolProp itself; their acentric factor is checked
+# against its definition with the reference equation's saturation pressure above.
+OMEGA_GASES = [g for g in LIB.values() if g.name not in ("air", "R-1234yf", "R-1234ze(E)")]
 
 
 @pytest.mark.parametrize("gas", OMEGA_GASES, ids=ids(OMEGA_GASES))
@@ -466,3 +484,9 @@ def test_parse_gas_trade_forms_refused_with_a_clear_message(text, words):
     with pytest.raises(InputError) as e:
         parse_gas(text, file="cyl.toml", key="fill.gas")
     assert words in str(e.value) and e.value.file == "cyl.toml" and e.value.key == "fill.gas"
+
+
+def test_a_composition_by_mass_keeps_its_mass_percentages_in_its_name():
+    m = parse_gas("propane + 40 % n-butane by mass")
+    assert m.name == "propane 60% + n-butane 40% by mass"
+    assert parse_gas(m.name).fractions == pytest.approx(m.fractions, rel=1e-12)

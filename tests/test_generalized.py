@@ -307,3 +307,72 @@ def test_pseudocritical_mixture_with_quantum_component():
     np.testing.assert_allclose(tc, 84.137575, rtol=1e-6)
     np.testing.assert_allclose(pc, 26.53092e5, rtol=1e-6)
     np.testing.assert_allclose(w, 0.0186, rtol=1e-12)
+
+
+# ---------------------------------------------------------------- quantum gases above the Lee–Kesler range
+
+from screening.physics.eos.generalized import (  # noqa: E402
+    SRK_QUANTUM_Z_ERROR,
+    srk_quantum_density,
+    srk_quantum_pressure,
+)
+
+# classical constants of Gunn, Chueh & Prausnitz as in the gas library (gcp-quantum source)
+QUANTUM = {"hydrogen": ("Hydrogen", 43.6, 2077162.5, 2.01588e-3),
+           "helium": ("Helium", 10.47, 675837.75, 4.002602e-3),
+           "neon": ("Neon", 45.5, 2766172.5, 20.1797e-3)}
+
+
+@pytest.mark.parametrize("gas", sorted(QUANTUM))
+@given(t=st.floats(233.15, 423.15), p_bar=st.floats(1.0, 1000.0))
+def test_quantum_gas_srk_z_is_within_its_stated_bound(gas, t, p_bar):
+    fluid, tc0, pc0, m = QUANTUM[gas]
+    s = srk_quantum_density(p_bar * 1e5, t, tc0, pc0, m)
+    assert bool(s.valid[()])
+    # source: CoolProp PropsSI, the reference equation of the gas (Leachman 2009, Ortiz-Vega 2019, Katti 1986)
+    z_ref = CP.PropsSI("Z", "P", p_bar * 1e5, "T", t, fluid)
+    assert float(s.z[()]) == pytest.approx(z_ref, rel=SRK_QUANTUM_Z_ERROR[gas])
+
+
+@pytest.mark.parametrize("gas", sorted(QUANTUM))
+def test_quantum_gas_srk_matches_thermo_srk_with_the_same_constants(gas):
+    from thermo import SRK
+    _, tc0, pc0, m = QUANTUM[gas]
+    t, p = 300.0, 700e5
+    tc, pc = quantum_effective_critical(tc0, pc0, m, t)
+    # source: thermo's SRK class (an independent implementation of Soave 1972) with omega = 0
+    eos = SRK(Tc=float(tc), Pc=float(pc), omega=0.0, T=t, P=p)
+    s = srk_quantum_density(p, t, tc0, pc0, m)
+    v = eos.V_g if hasattr(eos, "V_g") else eos.V_l   # one root above the critical temperature
+    assert float(s.molar_density[()]) == pytest.approx(1.0 / v, rel=1e-9)
+    back = srk_quantum_pressure(s.molar_density, t, tc0, pc0, m)
+    assert float(back.pressure[()]) == pytest.approx(p, rel=1e-10)
+
+
+def test_quantum_gas_srk_refuses_outside_its_checked_range():
+    _, tc0, pc0, m = QUANTUM["hydrogen"]
+    s = srk_quantum_density(np.array([500e5, 1200e5, 500e5]), np.array([300.0, 300.0, 500.0]), tc0, pc0, m)
+    assert list(s.valid) == [True, False, False]
+    assert "up to 1000 bar" in s.reason[1] and "233.15 K to 423.15 K" in s.reason[2]
+    assert np.isnan(s.molar_density[1:]).all()
+
+
+@pytest.mark.parametrize("gas, fluid, fill", [("hydrogen", "Hydrogen", 700.0), ("hydrogen", "Hydrogen", 200.0),
+                                               ("helium", "Helium", 300.0), ("neon", "Neon", 200.0)])
+def test_quantum_gas_cylinder_has_two_real_gas_models(gas, fluid, fill):
+    from screening.screen import MODEL_DISAGREEMENT_WARNING, screen_text
+    text = (f'id = "Q"\n[vessel]\nwater_capacity = "50 L"\nrated_pressure = "1050 bar(g)"\n'
+            f'[fill]\ngas = "{gas}"\npressure = "{fill} bar(g)"\ntemperature = "15 degC"\n'
+            '[exposure]\ngas_temperature = "65 degC"\n')
+    r = screen_text(text)
+    gen, ref = r["models"]["generalized"], r["models"]["reference"]
+    assert gen["applicable"] and ref["applicable"], gen["note"]
+    assert gen["method"].startswith("Soave–Redlich–Kwong")
+    # source: CoolProp PropsSI, the gas's reference equation (fill density, then the peak on its isochore)
+    rho = CP.PropsSI("Dmolar", "P", fill * 1e5 + 101325.0, "T", 288.15, fluid)
+    p_ref = CP.PropsSI("P", "Dmolar", rho, "T", 338.15, fluid)
+    # the peak follows from two Z values, each within the model's measured bound
+    assert gen["peak_pressure_pa"] == pytest.approx(p_ref, rel=2.5 * SRK_QUANTUM_Z_ERROR[gas])
+    diff = abs(gen["peak_pressure_pa"] - ref["peak_pressure_pa"]) / ref["peak_pressure_pa"]
+    warned = any(w["code"] == "models-disagree" for w in r["warnings"])
+    assert warned == (diff > MODEL_DISAGREEMENT_WARNING)

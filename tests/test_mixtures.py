@@ -125,19 +125,25 @@ def test_a_phase_check_that_runs_over_its_time_bound_gives_cannot_be_established
     fluid = reference_fluid(("Argon", "CarbonDioxide"), (0.9, 0.1))
     bound = 0.2
     monkeypatch.setattr(fluid, "phase_time_bound", bound)
+    started = []
 
-    def slow_reference(rho, p, T, budget):
+    def slow_cubic(components, fractions, p, T, budget=None):
         time.sleep(bound * 1.5)
-        return mix.RouteAnswer("reference", None, "the reference flash did not converge")
+        return mix.RouteAnswer("cubic", 1)
 
-    monkeypatch.setattr(fluid, "_reference_route", slow_reference)
+    def reference_route(rho, p, T, budget):
+        started.append((rho, T))
+        return mix.RouteAnswer("reference", 1)
+
+    monkeypatch.setattr(mix, "cubic_route", slow_cubic)
+    monkeypatch.setattr(fluid, "_reference_route", reference_route)
     t0 = time.monotonic()
     answer = fluid.mixture_phase(9000.0, 200e5, 290.0)
     elapsed = time.monotonic() - t0
     assert answer.single is None
     assert answer.reason == f"{mix.CANNOT}: the phase check did not finish within {bound:g} s"
-    # the cubic route is not started once the budget is spent
-    assert elapsed < bound * 1.5 + 0.15
+    # the second route is not started once the budget is spent
+    assert started == [] and elapsed < bound * 1.5 + 0.15
     with pytest.raises(NotApplicable) as e:
         fluid.pressure(9000.0, 291.0)
     assert e.value.reason.count(mix.CANNOT) == 1 and "&" not in e.value.reason
@@ -162,3 +168,65 @@ def test_cannot_be_established_is_said_once_in_the_result(monkeypatch):
     assert "&" not in text and "cricondentherm" not in text
 
 
+
+
+def test_gas_listing_names_the_models_of_each_trade_mixture():
+    from screening.outputs.gases_listing import format_library
+    text = " ".join(format_library().split())
+    assert "Mixtures of the trade" in text
+    # source: CoolProp.get_mixture_binary_pair_data lists Tkaczuk et al. 2020 for argon/helium and no pair
+    # for nitrogen/sulfur dioxide (CoolProp 8.0.0)
+    assert CP.get_mixture_binary_pair_data("7440-37-1", "7440-59-7", "BibTeX") == "Tkaczuk-JPCRD-2020"
+    assert "argon + helium (10-75 % He): reference" in text and "Tkaczuk-JPCRD-2020" in text
+    assert "sulfur dioxide in nitrogen: no reference model (no fitted parameters for nitrogen/sulfur dioxide)" \
+        in text
+
+
+def test_calibration_mixture_without_fitted_pair_is_screened_with_its_phase_by_the_cubic_route():
+    r = screen_text(CASE.format(gas="nitrogen + 50 ppm sulfur dioxide", rated="300 bar(g)", fill="200 bar(g)"))
+    assert not r["models"]["reference"]["applicable"]
+    assert "no binary interaction parameters" in r["models"]["reference"]["note"]
+    gen = r["models"]["generalized"]
+    assert gen["applicable"] and r["verdict"] == "within"
+    assert any(w["code"] == "phase-by-one-route" for w in r["warnings"])
+    # source: CoolProp PropsSI for pure nitrogen (Span et al. 2000); 50 ppm of SO2 moves the peak by far less
+    # than Lee–Kesler's own 1-2 % against the reference equation
+    rho = CP.PropsSI("Dmolar", "P", 200e5 + ATM, "T", T_FILL, "Nitrogen")
+    assert gen["peak_pressure_pa"] == pytest.approx(CP.PropsSI("P", "Dmolar", rho, "T", T_PEAK, "Nitrogen"), rel=0.02)
+
+
+def test_mixture_without_fitted_pair_that_condenses_is_refused():
+    r = screen_text(CASE.format(gas="nitrogen + 10 % sulfur dioxide", rated="300 bar(g)", fill="200 bar(g)"))
+    assert r["verdict"] == "out-of-scope"
+    assert "two phases" in " ".join(r["reasons"])
+
+
+def test_the_phase_checks_of_one_screening_share_a_time_bound(monkeypatch):
+    # every phase check of a fresh mixture takes 0.3 s here; with a 1 s bound for the whole screening
+    # the screening ends soon after the bound and says, once, that the phase cannot be established
+    from screening.physics.eos import reference as ref_mod
+    slow = 0.3
+    original = ref_mod.ReferenceFluid._reference_route
+
+    def slow_reference(self, rho, p, T, budget):
+        time.sleep(slow)
+        return original(self, rho, p, T, budget)
+
+    monkeypatch.setattr(ref_mod.ReferenceFluid, "_reference_route", slow_reference)
+    monkeypatch.setattr(mix, "CASE_TIME_BOUND", 1.0)
+    monkeypatch.setattr(mix, "PHASE_TIME_BOUND", 1.0)
+    t0 = time.monotonic()
+    r = screen_text(CASE.format(gas="argon 91% + carbon dioxide 9%", rated="300 bar(g)", fill="210 bar(g)"))
+    elapsed = time.monotonic() - t0
+    assert elapsed < 1.0 + slow + 2.0     # the bound, one step that was running, and the models' own work
+    text = " ".join(r["reasons"]) + " ".join(str(m["note"]) for m in r["models"].values())
+    if r["verdict"] == "out-of-scope":
+        assert "the phase checks of this screening did not finish within 1 s" in text
+
+
+def test_the_phase_checks_of_one_screening_are_bounded_in_number(monkeypatch):
+    monkeypatch.setattr(mix, "CASE_CHECK_BOUND", 0)
+    r = screen_text(CASE.format(gas="argon 90.5% + carbon dioxide 9.5%", rated="300 bar(g)", fill="205 bar(g)"))
+    assert r["verdict"] == "out-of-scope"
+    text = " ".join(r["reasons"])
+    assert text.count("this screening needed more than its 0 phase checks") == 1

@@ -16,6 +16,8 @@ Accepted forms (nothing is ever evaluated):
   reading, common practice for gas mixtures) or ``ppm`` (parts per million by moles); mass percent when
   stated as such (``mass %``, ``wt %``, or the whole text ending in ``by mass``), converted to mole
   fractions with the library's molar masses. Mass and mole amounts cannot be mixed in one text;
+* a refrigerant blend by its designation (``"R-410A"``, ``"R-407C"``, ``"R-404A"``): its nominal mass
+  composition (:data:`NAMED_BLENDS`);
 * a table (dict) ``{gas name: value}`` where a value is either a number, the mole
   fraction [-] with 0 < x <= 1, or a text ``"<percent> %"`` (``"82 %"``, ``"82%"``).
 
@@ -28,7 +30,7 @@ import math
 import re
 
 from screening.errors import InputError
-from screening.physics.gases import FRACTION_SUM_TOLERANCE, Mixture, lookup, make_mixture, pure
+from screening.physics.gases import FRACTION_SUM_TOLERANCE, Mixture, make_mixture, mixture_by_mass, pure
 
 GRAMMAR = ("a gas name, or '<gas> <percent>% + <gas> <percent>% ...' (e.g. 'argon 82% + carbon dioxide 18%', "
            "'argon + 8 % CO2', 'CO2 18 % in argon', 'nitrogen + 50 ppm carbon monoxide', "
@@ -71,11 +73,26 @@ def _is_mass(unit: str) -> bool:
     return unit.startswith("mass") or unit.startswith("wt")
 
 
+#: Refrigerant blends by their designation (ISO 817 / ANSI/ASHRAE Standard 34): nominal composition by mass,
+#: a fact of the trade (common practice). Screened as mixtures of their components.
+NAMED_BLENDS = {
+    "R410A": "R-32 50 % + R-125 50 % by mass",
+    "R407C": "R-32 23 % + R-125 25 % + R-134a 52 % by mass",
+    "R404A": "R-125 44 % + R-143a 52 % + R-134a 4 % by mass",
+}
+
+
+def _blend_key(text: str) -> str:
+    return "".join(ch for ch in text.upper() if ch not in " -_\t")
+
+
 def _parse_text(text: str, *, file, key) -> dict[str, float] | str:
     """A pure name (returned as str) or {name: mole fraction}."""
     s = text.strip()
     if not s:
         raise InputError("empty gas", file=file, key=key, given=text, expected=GRAMMAR)
+    if _blend_key(s) in NAMED_BLENDS:
+        return _parse_text(NAMED_BLENDS[_blend_key(s)], file=file, key=key)
     by_mass = bool(_BY_MASS.search(s))
     s = _BY_MOLE.sub("", _BY_MASS.sub("", s))
     if "+" not in s and "%" not in s and "ppm" not in s.lower():
@@ -119,19 +136,12 @@ def _parse_text(text: str, *, file, key) -> dict[str, float] | str:
                              expected=f"100 % within {FRACTION_SUM_TOLERANCE:.1%}, or a balance gas named without "
                              "an amount ('argon + 8 % CO2')")
     if mass:
-        out = _mass_to_mole(out, file=file, key=key, given=text)
+        return _MassFractions(out)
     return out
 
 
-def _mass_to_mole(mass_fractions: dict[str, float], *, file, key, given) -> dict[str, float]:
-    """Mole fractions from mass fractions with the library's molar masses: x_i = (w_i/M_i) / sum(w_j/M_j)."""
-    total = math.fsum(mass_fractions.values())
-    if abs(total - 1.0) > FRACTION_SUM_TOLERANCE:
-        raise InputError("mass fractions do not sum to 100 %", file=file, key=key, given=given,
-                         expected=f"a sum within {FRACTION_SUM_TOLERANCE:.1%} of 100 %")
-    moles = {name: w / lookup(name).molar_mass for name, w in mass_fractions.items()}
-    n = math.fsum(moles.values())
-    return {name: v / n for name, v in moles.items()}
+class _MassFractions(dict):
+    """{gas name: mass fraction}: a composition stated by mass (converted by gases.mixture_by_mass)."""
 
 
 def _parse_table(table: dict, *, file, key) -> dict[str, float]:
@@ -167,6 +177,8 @@ def parse_gas(value: object, *, file: str | None = None, key: str = "fill.gas") 
             spec = _parse_text(value, file=file, key=key)
             if isinstance(spec, str):
                 return pure(spec)
+            if isinstance(spec, _MassFractions):
+                return mixture_by_mass(dict(spec))
             return make_mixture(spec)
         if isinstance(value, dict):
             if not value:

@@ -46,7 +46,21 @@ def format_library() -> str:
     out.append(line(["-" * w for w in widths]))
     out.extend(line(r) for r in rows)
     out += ["", "M molar mass, Tc and Pc critical temperature and pressure, omega acentric factor.",
-            "Dissolved gases cannot be screened by this method.", "", "Sources:"]
+            "Dissolved gases cannot be screened by this method.", ""]
+    out += _mixture_lines() + ["", "Sources:"]
     for k, v in citations().items():
         out.append(textwrap.fill(v, width=100, initial_indent=f"  [{k}] ", subsequent_indent="      "))
     return "\n".join(out) + "\n"
+
+
+def _mixture_lines() -> list[str]:
+    """The mixtures of the trade with the models that apply (physics.mixtures.trade_mixture_models)."""
+    from screening.physics.mixtures import trade_mixture_models
+
+    out = ["Mixtures of the trade (any composition of library gases may be given) and their models; in",
+           "brackets the CoolProp bibliography keys of the fitted binary parameters:"]
+    for row in trade_mixture_models():
+        sources = ", ".join(sorted({k for _, _, k in row["pairs"] if k}))
+        out.append(textwrap.fill(f"{row['label']}: {row['models']}" + (f" [{sources}]" if sources else ""),
+                                 width=100, initial_indent="  ", subsequent_indent="      "))
+    return out

@@ -746,6 +746,8 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
                  Markup("T<sub>r</sub> = {}, P<sub>r</sub> = {}").format(
                      num(m.get('reduced_temperature_peak'), 4), num(m.get('reduced_pressure_peak'), 4))),
                 (Markup("At peak: Z<sub>2</sub>"), num(m.get("z_peak"), 5)),
+                ("Equation used", _text(m.get("method")) or "\u2014"),
+                ("Mixing rule", _text(m.get("mixing_rule")) or "\u2014"),
             ]
             if m["applicable"] and peak is not None and rho is not None and m.get("z_peak") is not None:
                 check = _z_check(m["z_peak"], rho, t_peak, peak)
@@ -757,12 +759,14 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
                  else f"{phase_words(result, m.get('phase_fill'))} / {phase_words(result, m.get('phase_peak'))}"),
                 (Markup("At fill: Z<sub>1</sub>"), num(m.get("z_fill"), 5)),
                 (Markup("At peak: Z<sub>2</sub>"), num(m.get("z_peak"), 5)),
+                ("Mixing rule", _text(m.get("mixing_rule")) or "\u2014"),
             ]
             if m["applicable"] and peak is not None and rho is not None and m.get("z_peak") is not None:
                 check = _z_check(m["z_peak"], rho, t_peak, peak)
         rows = [(label, value) for label, value in rows if _has_value(value)]
         model_views.append(dict(
-            key=name, title=MODEL_TITLES[name], applicable=bool(m["applicable"]),
+            key=name, title=(f"Generalized compressibility ({m['method']})" if m.get("method") else MODEL_TITLES[name]),
+            applicable=bool(m["applicable"]),
             governs=(name == governing), peak=P(peak), peak_abs=mpa_abs(peak),
             note=_text(m.get("note")) or "", rows=rows, check=check, validity=VALIDITY[name],
         ))

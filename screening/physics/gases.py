@@ -128,6 +128,12 @@ def _load() -> tuple[dict[str, Gas], dict[str, str], dict[str, str], dict[str, s
     with open(DATA_FILE, "rb") as fh:
         data = tomllib.load(fh)
     citations = {str(k): str(v) for k, v in data.get("sources", {}).items()}
+    # a gas table may carry the citations of its own new source keys (tables appended after [sources])
+    for t in data.get("gas", []):
+        for k, v in t.get("citations", {}).items():
+            if citations.setdefault(str(k), str(v)) != str(v):
+                raise InputError(f"source key '{k}' is cited twice with different texts", file=file,
+                                 key=f"gas.{t.get('name')}.citations")
     gases: dict[str, Gas] = {}
     index: dict[str, str] = {}
     for t in data.get("gas", []):
@@ -204,6 +210,7 @@ class Mixture:
     components: tuple[Gas, ...]
     fractions: tuple[float, ...]  # [-] mole fractions, normalised
     given_fractions: tuple[float, ...] | None = None  # [-] as given
+    given_basis: str = "mole"  # "mole" or "mass": what given_fractions are
 
     @property
     def is_pure(self) -> bool:
@@ -215,7 +222,8 @@ class Mixture:
         if self.is_pure:
             return self.components[0].name
         shown = self.given_fractions or self.fractions
-        return " + ".join(f"{g.name} {_percent(x)}" for g, x in zip(self.components, shown))
+        text = " + ".join(f"{g.name} {_percent(x)}" for g, x in zip(self.components, shown))
+        return text + " by mass" if self.given_basis == "mass" and self.given_fractions else text
 
     @property
     def molar_mass(self) -> float:
@@ -281,3 +289,18 @@ def make_mixture(fractions: dict[str, float]) -> Mixture:
     i = max(range(len(norm)), key=norm.__getitem__)
     norm[i] = 1.0 - math.fsum(norm[:i] + norm[i + 1:])
     return Mixture(tuple(gases), tuple(norm), tuple(xs))
+
+
+def mixture_by_mass(mass_fractions: dict[str, float]) -> Mixture:
+    """Mixture from {gas name: mass fraction [-]} (sum within 0.5 % of 1): mole fractions
+    x_i = (w_i / M_i) / sum(w_j / M_j) with the library's molar masses; its name shows the mass fractions."""
+    total = math.fsum(mass_fractions.values()) if mass_fractions else 0.0
+    if not mass_fractions or abs(total - 1.0) > FRACTION_SUM_TOLERANCE:
+        raise InputError("mass fractions do not sum to 100 %", given=total,
+                         expected=f"a sum within {FRACTION_SUM_TOLERANCE:.1%} of 100 %")
+    moles = {name: w / lookup(name).molar_mass for name, w in mass_fractions.items()}
+    n = math.fsum(moles.values())
+    m = make_mixture({name: v / n for name, v in moles.items()})
+    if m.is_pure:
+        return m
+    return Mixture(m.components, m.fractions, tuple(mass_fractions.values()), "mass")

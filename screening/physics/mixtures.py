@@ -18,11 +18,11 @@ finds two phases; a state that neither route can establish is refused with the p
 cannot be established". Where only one route answers, its answer is used and the other route's failure is
 noted.
 
-**Time bound.** Every state check has a budget of :data:`PHASE_TIME_BOUND` seconds, checked between the
-steps (each route, each flash); a check that runs over is abandoned and the phase is "cannot be
-established". No step that can run unbounded is called: CoolProp's phase-envelope construction (which
-never finished for argon 70 % + helium 30 % and returned a 20 738 K "cricondentherm" for argon + 8 % CO2)
-is not used at all. A single CoolProp or thermo flash took at most about 0.05 s in the mixtures of the
+**Time bound.** Every state check has a budget of :data:`PHASE_TIME_BOUND` seconds, and all the checks of
+one screening together :data:`CASE_TIME_BOUND` seconds (:func:`case_budget`), checked between the steps
+(each route, each flash); a check that runs over is abandoned and the phase is "cannot be established". No step that can run unbounded is called: CoolProp's phase-envelope construction is not
+used at all (in CoolProp 8.0.0 it did not finish within 900 s for argon 70 % + helium 30 %, and for argon
++ 8 % CO2 it returned a maximum envelope temperature of 20 738 K), nor its critical-point search. A single CoolProp or thermo flash took at most about 0.05 s in the mixtures of the
 trade (measured on this project's machine, 2026-12-03).
 
 **Along an isochore.** At fixed overall composition and fixed density the two-phase region lies below a
@@ -35,13 +35,17 @@ Units: SI — pressure [Pa], temperature [K], molar density [mol/m3].
 
 from __future__ import annotations
 
+import contextlib
+import contextvars
+import math
 import threading
 import time
 from dataclasses import dataclass, field
 from functools import lru_cache
 
-#: Wall-clock budget [s] of one state's phase check (both routes together).
-PHASE_TIME_BOUND = 2.0
+#: Wall-clock budget [s] of one state's phase check (both routes together; a single flash of a
+#: five-component natural gas takes up to about 1 s on a loaded two-core machine).
+PHASE_TIME_BOUND = 5.0
 
 #: The phase words a state check returns.
 SINGLE_PHASES = ("gas", "supercritical", "liquid")
@@ -67,12 +71,56 @@ class PhaseAnswer:
     reason: str = ""
 
 
+#: Most phase checks (states flashed) one screening may run: a deterministic bound, so that the same case
+#: gives the same result on a fast or a loaded machine (a screening of the trade's mixtures needs 35-75).
+CASE_CHECK_BOUND = 200
+
+#: Wall-clock budget [s] of all the phase checks of one screening together: a last-resort net
+#: (see :func:`case_budget`); the count above is what normally bounds a screening.
+CASE_TIME_BOUND = 60.0
+
+_CASE_DEADLINE: contextvars.ContextVar[list | None] = contextvars.ContextVar(
+    "screening_phase_case_deadline", default=None)
+
+
+@contextlib.contextmanager
+def case_budget(seconds: float | None = None, checks: int | None = None):
+    """Within the block, every phase check also stops at a common deadline ``seconds`` from now (default
+    :data:`CASE_TIME_BOUND`), and at most ``checks`` states are flashed (default :data:`CASE_CHECK_BOUND`):
+    one screening's phase checks together, per thread and per task (a context variable)."""
+    seconds = CASE_TIME_BOUND if seconds is None else float(seconds)
+    checks = CASE_CHECK_BOUND if checks is None else int(checks)
+    token = _CASE_DEADLINE.set([time.monotonic() + seconds, seconds, checks])
+    try:
+        yield
+    finally:
+        _CASE_DEADLINE.reset(token)
+
+
+def take_check() -> str | None:
+    """Count one phase check against the enclosing :func:`case_budget`; the reason (plain words) when the
+    screening has used all its checks, else None."""
+    case = _CASE_DEADLINE.get()
+    if case is None:
+        return None
+    if case[2] <= 0:
+        return f"{CANNOT}: this screening needed more than its {CASE_CHECK_BOUND} phase checks"
+    case[2] -= 1
+    return None
+
+
 class Budget:
-    """A wall-clock deadline checked between steps (``time.monotonic``)."""
+    """A wall-clock deadline checked between steps (``time.monotonic``): ``seconds`` from now, or the
+    deadline of the enclosing :func:`case_budget`, whichever comes first."""
 
     def __init__(self, seconds: float = PHASE_TIME_BOUND) -> None:
         self.seconds = float(seconds)
         self.deadline = time.monotonic() + self.seconds
+        self.scope = "the phase check"
+        case = _CASE_DEADLINE.get()
+        if case is not None and case[0] < self.deadline:
+            self.deadline, self.seconds = case[0], case[1]
+            self.scope = "the phase checks of this screening"
 
     def left(self) -> float:
         return self.deadline - time.monotonic()
@@ -84,20 +132,20 @@ class Budget:
 def combine(answers: list[RouteAnswer], budget: Budget | None = None) -> PhaseAnswer:
     """Keep the conservative answer of the routes.
 
-    Two phases from any route → two-phase. One phase from at least one route and two from none → one
-    phase. No route answered → the phase cannot be established (one plain reason).
+    Two phases from any route → two-phase. Otherwise, a check that ran over its time budget → the phase
+    cannot be established. One phase from at least one route (and two from none) → one phase. No route
+    answered → the phase cannot be established (one plain reason).
     """
     routes = tuple(answers)
     if any(a.phases == 2 for a in routes):
         who = ", ".join(a.route for a in routes if a.phases == 2)
         return PhaseAnswer(False, routes, f"two phases (found by the {who} route)")
+    if budget is not None and budget.expired():
+        return PhaseAnswer(None, routes, f"{CANNOT}: {budget.scope} did not finish within {budget.seconds:g} s")
     if any(a.phases == 1 for a in routes):
         failed = [a for a in routes if a.phases is None]
         note = ("; ".join(f"the {a.route} route did not answer ({a.failure})" for a in failed)) if failed else ""
         return PhaseAnswer(True, routes, note)
-    if budget is not None and budget.expired():
-        return PhaseAnswer(None, routes, f"{CANNOT}: the phase check did not finish within "
-                                         f"{budget.seconds:g} s")
     why = "; ".join(f"{a.route}: {a.failure}" for a in routes if a.failure)
     return PhaseAnswer(None, routes, f"{CANNOT} (neither route converged: {why})" if why else CANNOT)
 
@@ -230,3 +278,86 @@ class IsochoreMemo:
                 self._t.pop(next(iter(self._t)))
             if t0 is None or T < t0:
                 self._t[rho] = T
+
+
+# --------------------------------------------------------------------------------------------------
+# the mixtures of the trade and the models that apply to them (listed by `screening gases`)
+
+#: Mixtures of the trade: a label and the library names of their components.
+TRADE_MIXTURES = (
+    ("argon + carbon dioxide (shielding gas, 1-30 % CO2)", ("argon", "carbon dioxide")),
+    ("argon + oxygen (shielding gas, 1-8 % O2)", ("argon", "oxygen")),
+    ("argon + helium (10-75 % He)", ("argon", "helium")),
+    ("helium + oxygen (heliox, 10-80 % O2)", ("helium", "oxygen")),
+    ("nitrogen + oxygen (synthetic and enriched air)", ("nitrogen", "oxygen")),
+    ("nitrogen + hydrogen (forming gas, 1-10 % H2)", ("nitrogen", "hydrogen")),
+    ("carbon dioxide + nitrogen (beverage gas)", ("carbon dioxide", "nitrogen")),
+    ("natural gas (methane, ethane, propane, nitrogen, CO2)",
+     ("methane", "ethane", "propane", "nitrogen", "carbon dioxide")),
+    ("propane + butanes (LPG, by mass)", ("propane", "n-butane", "isobutane")),
+    ("R-410A (R-32 + R-125)", ("R-32", "R-125")),
+    ("R-407C (R-32 + R-125 + R-134a)", ("R-32", "R-125", "R-134a")),
+    ("R-404A (R-125 + R-143a + R-134a)", ("R-125", "R-143a", "R-134a")),
+    ("calibration: carbon monoxide in nitrogen", ("nitrogen", "carbon monoxide")),
+    ("calibration: hydrogen sulfide in nitrogen", ("nitrogen", "hydrogen sulfide")),
+    ("calibration: methane in synthetic air", ("nitrogen", "oxygen", "methane")),
+    ("calibration: sulfur dioxide in nitrogen", ("nitrogen", "sulfur dioxide")),
+)
+
+
+def trade_mixture_models() -> list[dict]:
+    """For each of :data:`TRADE_MIXTURES`: ``label``, ``reference`` (True where CoolProp has fitted
+    binary parameters for every pair), ``pairs`` [(a, b, source key or None)], ``models`` (text)."""
+    from screening.physics.eos.reference import pair_source
+    from screening.physics.gases import lookup
+
+    rows = []
+    for label, names in TRADE_MIXTURES:
+        gases = [lookup(n) for n in names]
+        pairs = []
+        for i in range(len(gases)):
+            for j in range(i + 1, len(gases)):
+                pairs.append((gases[i].name, gases[j].name,
+                              pair_source(gases[i].coolprop_name, gases[j].coolprop_name)))
+        fitted = all(k is not None for _, _, k in pairs)
+        liquefied = all(g.kind == "liquefiable" for g in gases)
+        models = ["reference (multi-fluid Helmholtz mixing with fitted pairs)" if fitted else
+                  "no reference model (no fitted parameters for "
+                  + ", ".join(f"{a}/{b}" for a, b, k in pairs if k is None) + ")"]
+        if liquefied:
+            models.append("liquid and two-phase fills: bubble pressure and liquid-full point")
+        elif fitted:
+            models.append("generalized (Lee–Kesler, Kay's rule); ideal gas for comparison")
+        else:
+            models.append("the phase is taken as gas only above every component's critical temperature, "
+                          "then generalized (Lee–Kesler, Kay's rule) and ideal gas")
+        rows.append({"label": label, "reference": fitted, "pairs": pairs, "models": "; ".join(models)})
+    return rows
+
+
+def cubic_phase_on_isochore(components: tuple[CubicComponent, ...], fractions: tuple[float, ...],
+                            t_low: float, *, p: float | None = None, t_p: float | None = None,
+                            rho: float | None = None, budget: Budget | None = None) -> PhaseAnswer:
+    """Whether a fill is one phase from ``t_low`` [K] upwards on its isochore, by the cubic route alone
+    (for mixtures without a reference model). The fill is given by its pressure ``p`` [Pa] at ``t_p`` [K]
+    (its density then from the Peng–Robinson flash there) or by its molar density ``rho`` [mol/m3].
+    The state at t_low on the isochore is flashed; one phase there means one phase above it (module doc)."""
+    from thermo import PRMIX
+
+    budget = budget or Budget()
+    flasher, kijs = _cubic_flasher(tuple(components))
+    z = list(fractions)
+    try:
+        if rho is None:
+            first = cubic_route(components, fractions, p, t_p, budget)
+            if first.phases != 1:
+                return combine([first], budget)
+            rho = cubic_density(components, fractions, p, t_p)
+        eos = PRMIX(Tcs=[c.tc for c in components], Pcs=[c.pc for c in components],
+                    omegas=[c.omega for c in components], kijs=kijs, zs=z, T=float(t_low), V=1.0 / float(rho))
+        p_low = float(eos.P)
+    except Exception as exc:  # any failure of the library is "did not answer"
+        return combine([RouteAnswer("cubic", None, f"Peng–Robinson state not found ({type(exc).__name__})")], budget)
+    if not (math.isfinite(p_low) and p_low > 0.0):
+        return combine([RouteAnswer("cubic", 2, "no positive pressure on the isochore")], budget)
+    return combine([cubic_route(components, fractions, p_low, t_low, budget)], budget)

@@ -38,6 +38,7 @@ import numpy as np
 
 from screening.errors import NotApplicable
 from screening.physics import mixtures as _mix
+from screening.physics.roots import brentq as _brentq
 
 MODEL = "reference"
 
@@ -123,13 +124,9 @@ _LOOKUP_ERRORS = (ValueError, RuntimeError)
 
 
 def _binary_pair_missing(cas1: str, cas2: str) -> bool:
-    for a, b in ((cas1, cas2), (cas2, cas1)):
-        try:
-            CP.get_mixture_binary_pair_data(a, b, "betaT")
-            return False
-        except _LOOKUP_ERRORS:
-            continue
-    return True
+    # the pair's source key is listed for every fitted pair (the refrigerant pairs of Lemmon 2004 carry no
+    # "betaT": their reducing parameters are named differently)
+    return _binary_pair_key(cas1, cas2) is None
 
 
 def _binary_pair_key(cas1: str, cas2: str) -> str | None:
@@ -154,6 +151,16 @@ def _holding_the_state(method):
         with self._lock:
             return method(self, *args, **kwargs)
     return locked
+
+
+def pair_source(name1: str | None, name2: str | None) -> str | None:
+    """CoolProp's source key of the fitted binary parameters of two CoolProp fluids, None where it has none."""
+    if not name1 or not name2:
+        return None
+    try:
+        return _binary_pair_key(CP.get_fluid_param_string(name1, "CAS"), CP.get_fluid_param_string(name2, "CAS"))
+    except _LOOKUP_ERRORS:
+        return None
 
 
 class ReferenceFluid:
@@ -258,8 +265,15 @@ class ReferenceFluid:
 
     def _check_pressure(self, p: float) -> None:
         if not math.isfinite(p) or p <= 0.0:
+            if self.is_mixture:
+                raise NotApplicable(MODEL, f"{_mix.CANNOT}: the homogeneous mixture has no positive pressure at "
+                                    "this density and temperature (a state inside the two-phase region)",
+                                    value=p, valid_range="finite, > 0 Pa")
             raise NotApplicable(MODEL, f"equation of state gave a non-physical pressure {p!r} Pa for {self.label}",
                                 value=p, valid_range="finite, > 0 Pa")
+        if p > self.p_max and self.is_mixture:
+            raise NotApplicable(MODEL, f"the pressure, {p / 1e5:.6g} bar(a), is above the range of the mixture's "
+                                "equations", value=p, valid_range=f"up to {self.p_max / 1e5:.6g} bar(a)")
         if p > self.p_max:
             raise NotApplicable(MODEL, f"pressure {p:.6g} Pa is above the range of the {self.label} equation",
                                 value=p, valid_range=f"up to {self.p_max:.6g} Pa")
@@ -273,8 +287,11 @@ class ReferenceFluid:
         """The state just evaluated at rho [mol/m3], T [K] is mechanically stable, (dP/drho)_T > 0."""
         dpdrho = self._state.first_partial_deriv(CoolProp.iP, CoolProp.iDmolar, CoolProp.iT)
         if not (math.isfinite(dpdrho) and dpdrho > 0.0):
-            what = (f"the mixture at {T - 273.15:.1f} °C" if self.is_mixture
-                    else f"{self.label} at rho={rho:.6g} mol/m3, T={T:.6g} K")
+            if self.is_mixture:
+                raise NotApplicable(MODEL, f"{_mix.CANNOT} at {T - 273.15:.1f} °C: the homogeneous mixture is not "
+                                    "mechanically stable at this density (a state inside the two-phase region)",
+                                    value=dpdrho, valid_range="(dP/drho)_T > 0")
+            what = f"{self.label} at rho={rho:.6g} mol/m3, T={T:.6g} K"
             raise NotApplicable(MODEL, f"{what}: (dP/drho)_T = {dpdrho!r} is not positive — not a stable "
                                 "single-phase state", value=dpdrho, valid_range="(dP/drho)_T > 0")
 
@@ -327,6 +344,10 @@ class ReferenceFluid:
         self.pseudo_critical_temperature = math.fsum(x * t for x, t in zip(self.fractions, tcs))
         self.pseudo_critical_molar_density = 1.0 / math.fsum(x * v for x, v in zip(self.fractions, vcs))
         self.cubic_components = tuple(comps)
+        try:    # built here, once, so that no phase check's time budget pays for it
+            _mix.cubic_kij(self.cubic_components)
+        except Exception:  # the cubic route will say it did not answer
+            pass
         pairs = []
         for i in range(len(self.names)):
             for j in range(i + 1, len(self.names)):
@@ -367,25 +388,35 @@ class ReferenceFluid:
         if answer.single is None:
             raise NotApplicable(MODEL, f"{answer.reason} {where}", value=(rho, T))
         if not answer.single:
-            raise NotApplicable(MODEL, f"the mixture separates into {answer.reason} {where}; two-phase mixture states are "
-                                "not screened", value=(rho, T))
+            return self._two_phase(rho, T, answer, where)
         self._memo.record(rho, T)
         self._homogeneous(rho, T)  # leave the state at (rho, T) for derivative calls
         return p, label
 
+    def _two_phase(self, rho: float, T: float, answer: _mix.PhaseAnswer, where: str) -> tuple[float, str]:
+        """A two-phase mixture state: refused here (see :class:`LiquefiedBlend` for blends filled as liquids)."""
+        raise NotApplicable(MODEL, f"the mixture separates into {answer.reason} {where}; two-phase mixture "
+                            "states are not screened", value=(rho, T))
+
+    @_holding_the_state
     def mixture_phase(self, rho: float, p: float, T: float,
                       budget: _mix.Budget | None = None) -> _mix.PhaseAnswer:
         """Whether the homogeneous state (rho [mol/m3], p [Pa], T [K]) is one phase, by both routes
         (reference: CoolProp's PT flash with its stability analysis, the density checked on the way
         back; cubic: thermo's Peng–Robinson flash), within ``phase_time_bound`` seconds."""
+        over = _mix.take_check()
+        if over:
+            return _mix.PhaseAnswer(None, (), over)
         budget = budget or _mix.Budget(self.phase_time_bound)
-        answers = [self._reference_route(rho, p, T, budget)]
+        # the cubic route first: about 1 ms, where the reference route's flash takes 0.05-1 s; two phases
+        # found by it decide the answer (the conservative combination) without the slower route
+        answers = [_mix.cubic_route(self.cubic_components, self.fractions, p, T, budget)]
         if answers[0].phases == 2:
             return _mix.combine(answers, budget)
         if budget.expired():
-            answers.append(_mix.RouteAnswer("cubic", None, "no time left"))
+            answers.append(_mix.RouteAnswer("reference", None, "no time left"))
         else:
-            answers.append(_mix.cubic_route(self.cubic_components, self.fractions, p, T, budget))
+            answers.append(self._reference_route(rho, p, T, budget))
         return _mix.combine(answers, budget)
 
     def _reference_route(self, rho: float, p: float, T: float, budget: _mix.Budget) -> _mix.RouteAnswer:
@@ -575,6 +606,112 @@ class ReferenceFluid:
             except NotApplicable as exc:
                 reasons[i] = exc.reason
         return out.reshape(shape), valid.reshape(shape), np.array(reasons, dtype=str).reshape(shape)
+
+
+class LiquefiedBlend(ReferenceFluid):
+    """A mixture of liquefiable gases filled by mass (propane/butane, refrigerant blends), whose closed vessel
+    holds liquid and vapour.
+
+    Inside the two-phase region the vessel's pressure lies between the dew and the bubble pressure of the
+    overall composition at the temperature (zeotropic glide); it is taken as the bubble pressure, the upper
+    end (conservative; exact for a vessel nearly full of liquid), the higher of the reference route
+    (CoolProp's bubble-point flash on the multiparameter mixture model) and the cubic route (thermo's
+    Peng–Robinson bubble point). The liquid-full temperature is where the bubble-point liquid density of
+    the reference route falls to the fill density; above it the state is one liquid phase, checked like any
+    mixture state. The cubic route's liquid density (no volume translation) is not used: it is several
+    per cent low, which would move the liquid-full point by kelvins.
+    """
+
+    def _init_mixture(self) -> None:
+        super()._init_mixture()
+        self.mixing_rule += ("; two-phase states: the bubble pressure of the overall composition (upper end of "
+                             "the glide), the higher of CoolProp's and the Peng–Robinson bubble points")
+
+    def _evaluate_mixture(self, rho: float, T: float) -> tuple[float, str]:
+        # two phases where the fill density lies between the dew-point vapour and the bubble-point liquid
+        # densities of the overall composition at T
+        try:
+            p_bubble, rho_liquid, rho_vapour = self._saturation(T)
+        except NotApplicable:
+            p_bubble = None     # no bubble point (above the blend's critical region): one phase
+        if p_bubble is not None and rho_vapour < rho < rho_liquid:
+            return p_bubble, "two-phase"
+        return super()._evaluate_mixture(rho, T)
+
+    def _two_phase(self, rho: float, T: float, answer: _mix.PhaseAnswer, where: str) -> tuple[float, str]:
+        raise NotApplicable(MODEL, f"{_mix.CANNOT} {where}: two phases were found outside the densities of the "
+                            "blend's bubble and dew points", value=(rho, T))
+
+    @_holding_the_state
+    def _saturation(self, T: float) -> tuple[float, float, float]:
+        """Bubble pressure [Pa] (higher of the two routes), bubble-point liquid and dew-point vapour molar
+        densities [mol/m3] (reference route) at T [K]."""
+        p, rho_liquid = self.bubble_point(T)
+        a = self._state
+        try:
+            a.update(CoolProp.QT_INPUTS, 1.0, float(T))
+            rho_vapour = float(a.rhomolar())
+        except ValueError:
+            raise NotApplicable(MODEL, f"{_mix.CANNOT} at {T - 273.15:.1f} °C: the dew point of the blend "
+                                "was not found", value=T) from None
+        return p, rho_liquid, rho_vapour
+
+    @_holding_the_state
+    def bubble_point(self, T: float) -> tuple[float, float]:
+        """Bubble pressure [Pa] (the higher of the two routes) and the reference route's bubble-point liquid
+        molar density [mol/m3] at T [K]. NotApplicable where the reference route finds none (above the
+        mixture's critical region, or not converged)."""
+        self._check_temperature(T)
+        a = self._state
+        try:
+            a.update(CoolProp.QT_INPUTS, 0.0, float(T))
+            p_ref, rho_liquid = float(a.p()), float(a.rhomolar())
+        except ValueError:
+            raise NotApplicable(MODEL, f"{_mix.CANNOT} at {T - 273.15:.1f} °C: the bubble point of the blend "
+                                "was not found", value=T) from None
+        if not (math.isfinite(p_ref) and p_ref > 0.0 and math.isfinite(rho_liquid) and rho_liquid > 0.0):
+            raise NotApplicable(MODEL, f"{_mix.CANNOT} at {T - 273.15:.1f} °C: the bubble point of the blend "
+                                "was not found", value=T)
+        try:
+            p_cubic, _ = _mix.cubic_bubble(self.cubic_components, self.fractions, T)
+        except Exception:  # the cubic route did not converge: the reference route's answer stands
+            p_cubic = float("nan")
+        return (max(p_ref, p_cubic) if math.isfinite(p_cubic) else p_ref), rho_liquid
+
+    def vapour_pressure(self, T: float) -> float:
+        """Bubble pressure [Pa] of the blend at T [K] (see :meth:`bubble_point`)."""
+        return self.bubble_point(T)[0]
+
+    @_holding_the_state
+    def liquid_full_temperature(self, rho_molar: float, t_lo: float, t_hi: float, step: float = 2.0
+                                ) -> float | None:
+        """Temperature [K] in [t_lo, t_hi] where the bubble-point liquid density equals rho_molar [mol/m3]
+        (the vessel fills with liquid), or None if it is not reached there. A scan in steps of ``step`` K
+        (bounded: at most (t_hi - t_lo) / step + 1 bubble points), then Brent's method in the bracket."""
+        rho = float(rho_molar)
+
+        def f(T: float) -> float:
+            return self.bubble_point(T)[1] - rho
+
+        n = max(2, int(math.ceil((t_hi - t_lo) / step)) + 1)
+        prev_t = None
+        for T in np.linspace(t_lo, t_hi, n):
+            try:
+                fx = f(float(T))
+            except NotApplicable:
+                break               # past the blend's critical region: no bubble point beyond
+            if fx <= 0.0:
+                if prev_t is None:
+                    return float(T)   # already liquid-full at t_lo
+                return float(_brentq(f, prev_t, float(T), xtol=1e-6, maxiter=60))
+            prev_t = float(T)
+        return None
+
+
+@lru_cache(maxsize=None)
+def liquefied_blend(names: tuple[str, ...], fractions: tuple[float, ...]) -> LiquefiedBlend:
+    """The cached :class:`LiquefiedBlend` for CoolProp fluid names and mole fractions (a mixture)."""
+    return LiquefiedBlend(tuple(names), tuple(fractions))
 
 
 @lru_cache(maxsize=None)
