@@ -10,7 +10,7 @@ import pickle
 import pytest
 
 from screening import errors
-from screening.errors import InputError, NotApplicable, ScreeningError, UnknownGas
+from screening.errors import InputError, NotApplicable, OutputError, ScreeningError, UnknownGas
 
 #: One instance of every class in screening/errors.py, every field set.
 EXAMPLES = {
@@ -20,6 +20,8 @@ EXAMPLES = {
     UnknownGas: UnknownGas("nitrogn", ["nitrogen", "nitrous oxide"], file="inv.csv", row=7, column="gas"),
     NotApplicable: NotApplicable("reference", "temperature 2000 K is outside the range", value=2000.0,
                                  valid_range="63.151 K to 2000 K"),
+    OutputError: OutputError("cannot write the report: No space left on device", file="out/report.pdf",
+                             given="out/report.pdf", expected="a folder with room for the file"),
 }
 
 
