@@ -544,7 +544,7 @@ def run(args) -> int:
                         if f is not None:
                             pdf_full[len(pdf_rows)] = f
                         pdf_rows.append(s)
-                if bar:
+                if bar is not None:
                     bar.update(len(got))
             if outputs.headers is None:
                 outputs.open(None)
@@ -559,13 +559,13 @@ def run(args) -> int:
                                     report_date=args.date, quiet=args.quiet,
                                     full=lambda i: pdf_full.get(i, pdf_rows[i]))
     except parallel.WorkerLost as exc:
-        if bar:
+        if bar is not None:
             bar.close()
         print(f"screening: batch stopped: {exc}", file=sys.stderr)
         return EXIT_INPUT
     finally:
         ids.close()
-    if bar:
+    if bar is not None:
         bar.close()
     s = tally.summary()
     if args.quiet:
