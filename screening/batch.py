@@ -546,8 +546,9 @@ def run(args) -> int:
                         pdf_rows.append(s)
                 if bar is not None:
                     bar.update(len(got))
-            if outputs.headers is None:
-                outputs.open(None)
+            if tally.rows == 0:
+                raise InputError("the inventory has a header but no rows", file=reg.source,
+                                 row=(reg.header_row or 1) + 1, expected="one row per vessel under the header")
             if spill is not None:
                 for values, line in spill.merged():
                     outputs.write(values, line)
