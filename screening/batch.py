@@ -41,7 +41,7 @@ EXIT_WITHIN, EXIT_NOT_WITHIN, EXIT_INPUT = 0, 1, 2
 ORDER = SEVERITY
 _RANK = {v: i for i, v in enumerate(ORDER)}
 #: Keys of a result left out of the JSON outputs (shared or bulky parts).
-_DROP = ("curves", "cautions", "phase_diagram")
+_DROP = ("curves", "cautions")
 #: Rows screened as one piece of work (the unit of streaming and of the worker pool).
 CHUNK_ROWS = 5000
 #: Worst rows kept for the terminal table (all rows where there are at most this many).
