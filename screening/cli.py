@@ -62,8 +62,10 @@ def _build() -> argparse.ArgumentParser:
     sub.add_parser("gases", help="list the gas library with its sources")
 
     b = sub.add_parser("batch", help="screen every vessel of an inventory (CSV or XLSX)")
-    b.add_argument("inventory", help="inventory table: CSV (',' or ';') or .xlsx, one vessel per row")
-    b.add_argument("--sheet", metavar="NAME", help="sheet of an .xlsx workbook (default: the first)")
+    b.add_argument("inventory", help="inventory table: CSV (',', ';' or tab) or .xlsx, one vessel per row; "
+                   "headers as listed in the README")
+    b.add_argument("--sheet", metavar="NAME", help="sheet of an .xlsx workbook (default: the first sheet whose "
+                   "first row is a header)")
     b.add_argument("--defaults", metavar="CASE.toml", help="values for missing columns and empty cells")
     b.add_argument("--json", metavar="OUT.json", help="write every row's result as one JSON document")
     b.add_argument("--jsonl", metavar="OUT.jsonl", help="write every row's full result as JSON Lines (one a line)")
@@ -74,8 +76,9 @@ def _build() -> argparse.ArgumentParser:
     b.add_argument("--sort", choices=("input", "severity"), default="input",
                    help="order of the rows in the files: input order (default) or worst first (input-error, "
                    "over, out-of-scope, low-margin, within, then lowest margin)")
-    b.add_argument("--decimal", choices=(".", ","), help="decimal mark of the inventory's numbers (default: "
-                   "',' where the CSV separator is ';', else '.')")
+    b.add_argument("--decimal", choices=(".", ","), metavar="MARK", help="decimal mark of the inventory's numbers, "
+                   "'.' or ',' (default: '.'; a ';'-separated CSV also reads decimal commas, and its outputs "
+                   "use the mark its first rows use)")
     b.add_argument("--all-details", action="store_true", help="detail every vessel in the PDF, not only those "
                    "that are not within rating")
     b.add_argument("--date", type=_date, help="report date (YYYY-MM-DD; default today)")
