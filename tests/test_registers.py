@@ -362,7 +362,7 @@ def test_a_progress_bar_counts_the_rows_on_a_terminal_only(tmp_path, monkeypatch
     assert term2.getvalue() == ""
 
 
-def test_an_unclosed_quote_and_a_header_without_rows_are_errors_of_the_file(tmp_path):
+def test_an_unclosed_quote_and_a_header_without_rows_are_errors_of_the_file(tmp_path, capsys):
     from screening.cli import main
 
     for text, words in ((HEAD + GOOD.format(id="A") + GOOD.format(id='"B') + GOOD.format(id="C"), "row 3"),
@@ -371,3 +371,4 @@ def test_an_unclosed_quote_and_a_header_without_rows_are_errors_of_the_file(tmp_
         with pytest.raises(SystemExit) as e:
             main(["batch", str(write(tmp_path, text)), "--csv", str(out), "--quiet"])
         assert e.value.code == 2 and not out.exists()
+        assert words in capsys.readouterr().err
