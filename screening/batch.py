@@ -22,8 +22,6 @@ import pickle
 import sys
 import tempfile
 
-import numpy as np
-
 from screening.errors import InputError
 from screening.inputs.inventory import Inventory, load_defaults, open_inventory, read_inventory, row_case
 from screening.outputs.files import atomic_writer, check_target
@@ -43,7 +41,7 @@ EXIT_WITHIN, EXIT_NOT_WITHIN, EXIT_INPUT = 0, 1, 2
 ORDER = SEVERITY
 _RANK = {v: i for i, v in enumerate(ORDER)}
 #: Keys of a result left out of the JSON outputs (shared or bulky parts).
-_DROP = ("curves", "cautions", "phase_diagram")
+_DROP = ("curves", "cautions")
 #: Rows screened as one piece of work (the unit of streaming and of the worker pool).
 CHUNK_ROWS = 5000
 #: Worst rows kept for the terminal table (all rows where there are at most this many).
@@ -258,45 +256,43 @@ class Tally:
 
 
 class _Ids:
-    """Ids seen so far, as 64-bit hashes in sorted arrays (12 bytes an id): for duplicate-id warnings
-    on any number of rows. Two different ids share a hash with a chance of about n²/2⁶⁵."""
+    """Ids seen so far, for duplicate-id warnings on any number of rows in bounded memory: each id's
+    64-bit hash and first row in a temporary SQLite table on disk (sqlite3 of the standard library; a
+    page cache of a few MB). Two different ids share a hash with a chance of about n²/2⁶⁵."""
 
     def __init__(self) -> None:
-        self.runs: list[tuple[np.ndarray, np.ndarray]] = []
+        import sqlite3
 
-    def _find(self, h: int) -> int | None:
-        for keys, rows in self.runs:
-            i = int(np.searchsorted(keys, h))
-            if i < keys.size and keys[i] == h:
-                return int(rows[i])
-        return None
+        self._dir = tempfile.TemporaryDirectory(prefix="screening-ids-")
+        self._db = sqlite3.connect(os.path.join(self._dir.name, "ids.sqlite"))
+        self._db.execute("PRAGMA journal_mode=OFF")
+        self._db.execute("PRAGMA synchronous=OFF")
+        self._db.execute("CREATE TABLE ids (h INTEGER PRIMARY KEY, row INTEGER NOT NULL)")
 
     def first_rows(self, rows: list[tuple[int, str]]) -> dict[int, int]:
         """{row: first row with the same id} for the rows (row, id) of a chunk; then remembers them."""
         out: dict[int, int] = {}
         local: dict[int, int] = {}
-        for n, cid in rows:
-            if not cid:
-                continue
-            h = hash(cid)
-            first = local.get(h)
-            if first is None:
-                first = self._find(h)
+        hashes = [(n, hash(cid)) for n, cid in rows if cid]
+        known: dict[int, int] = {}
+        uniq = list({h for _, h in hashes})
+        for k in range(0, len(uniq), 500):
+            part = uniq[k:k + 500]
+            known.update(self._db.execute(f"SELECT h, row FROM ids WHERE h IN ({','.join('?' * len(part))})",
+                                          part).fetchall())
+        for n, h in hashes:
+            first = known.get(h, local.get(h))
             if first is not None:
                 out[n] = first
             else:
                 local[h] = n
         if local:
-            keys = np.fromiter(local.keys(), dtype=np.int64, count=len(local))
-            vals = np.fromiter(local.values(), dtype=np.int64, count=len(local))
-            order = np.argsort(keys, kind="stable")
-            self.runs.append((keys[order], vals[order]))
-            while len(self.runs) > 1 and self.runs[-2][0].size <= 2 * self.runs[-1][0].size:
-                (k1, v1), (k2, v2) = self.runs[-2], self.runs[-1]
-                k, v = np.concatenate([k1, k2]), np.concatenate([v1, v2])
-                order = np.argsort(k, kind="stable")
-                self.runs[-2:] = [(k[order], v[order])]
+            self._db.executemany("INSERT INTO ids (h, row) VALUES (?, ?)", local.items())
         return out
+
+    def close(self) -> None:
+        self._db.close()
+        self._dir.cleanup()
 
 
 # ----------------------------------------------------------------------------- display helpers
@@ -356,10 +352,14 @@ def run_inventory(inv: Inventory, defaults: dict | None = None, quiet: bool = Tr
     ids = _Ids()
     id_col = _id_column(inv)
     out = []
-    for k in range(0, len(inv.rows), CHUNK_ROWS):
-        part = Inventory(inv.source, inv.columns, inv.rows[k:k + CHUNK_ROWS], inv.delimiter, inv.decimal, inv.sheet)
-        dups = ids.first_rows([(n, c[id_col].strip() if id_col < len(c) else "") for n, c in part.rows])
-        out += [f for _, _, f in screen_chunk((part, defaults, dups, {"full": "all"}))]
+    try:
+        for k in range(0, len(inv.rows), CHUNK_ROWS):
+            part = Inventory(inv.source, inv.columns, inv.rows[k:k + CHUNK_ROWS], inv.delimiter, inv.decimal,
+                             inv.sheet)
+            dups = ids.first_rows([(n, c[id_col].strip() if id_col < len(c) else "") for n, c in part.rows])
+            out += [f for _, _, f in screen_chunk((part, defaults, dups, {"full": "all"}))]
+    finally:
+        ids.close()
     return out
 
 
@@ -546,10 +546,11 @@ def run(args) -> int:
                             pdf_full[len(pdf_rows)] = f
                         pdf_rows.append(s)
                         pdf_cells.append((s["row"], cells_))
-                if bar:
+                if bar is not None:
                     bar.update(len(got))
-            if outputs.headers is None:
-                outputs.open(None)
+            if tally.rows == 0:
+                raise InputError("the inventory has a header but no rows", file=reg.source,
+                                 row=(reg.header_row or 1) + 1, expected="one row per vessel under the header")
             if spill is not None:
                 for values, line in spill.merged():
                     outputs.write(values, line)
@@ -563,11 +564,13 @@ def run(args) -> int:
                                     full=lambda i: pdf_full.get(i, pdf_rows[i]),
                                     site=getattr(args, "site", None), texts=texts)
     except parallel.WorkerLost as exc:
-        if bar:
+        if bar is not None:
             bar.close()
         print(f"screening: batch stopped: {exc}", file=sys.stderr)
         return EXIT_INPUT
-    if bar:
+    finally:
+        ids.close()
+    if bar is not None:
         bar.close()
     s = tally.summary()
     if args.quiet:

@@ -86,8 +86,10 @@ def _build() -> argparse.ArgumentParser:
 
     b = sub.add_parser("batch", help="screen every vessel of an inventory (CSV or XLSX)", epilog=EXIT_HELP["batch"],
                        formatter_class=argparse.RawDescriptionHelpFormatter)
-    b.add_argument("inventory", help="inventory table: CSV (',' or ';') or .xlsx, one vessel per row")
-    b.add_argument("--sheet", metavar="NAME", help="sheet of an .xlsx workbook (default: the first)")
+    b.add_argument("inventory", help="inventory table: CSV (',', ';' or tab) or .xlsx, one vessel per row; "
+                   "headers as listed in the README")
+    b.add_argument("--sheet", metavar="NAME", help="sheet of an .xlsx workbook (default: the first sheet whose "
+                   "first row is a header)")
     b.add_argument("--defaults", metavar="CASE.toml", help="values for missing columns and empty cells")
     b.add_argument("--json", metavar="OUT.json", help="write every row's result as one JSON document")
     b.add_argument("--jsonl", metavar="OUT.jsonl", help="write every row's full result as JSON Lines (one a line)")
@@ -98,8 +100,9 @@ def _build() -> argparse.ArgumentParser:
     b.add_argument("--sort", choices=("input", "severity"), default="input",
                    help="order of the rows in the files: input order (default) or worst first (input-error, "
                    "over, out-of-scope, low-margin, within, then lowest margin)")
-    b.add_argument("--decimal", choices=(".", ","), help="decimal mark of the inventory's numbers (default: "
-                   "',' where the CSV separator is ';', else '.')")
+    b.add_argument("--decimal", choices=(".", ","), metavar="MARK", help="decimal mark of the inventory's numbers, "
+                   "'.' or ',' (default: '.'; a ';'-separated CSV also reads decimal commas, and its outputs "
+                   "use the mark its first rows use)")
     b.add_argument("--site", metavar="NAME", help="site name for the title of the PDF (default: the site "
                    "name the rows share, from their column or the defaults file)")
     b.add_argument("--all-details", action="store_true", help="detail every vessel in the PDF, not only those "
@@ -208,8 +211,9 @@ def _screened_for_pdf(path: str, *, fork: bool | None = None) -> tuple[dict, str
     return screen_case(case), case.text
 
 
-#: Largest inventory file [bytes] a batch reads (a 100 000-row inventory is about 10 MB).
-MAX_INVENTORY_BYTES = 200 * 1024 * 1024
+#: Largest inventory file [bytes] a batch reads: a 10 000 000-row register is about 1 GB (the reader
+#: itself streams in bounded memory and bounds rows, columns and cells).
+MAX_INVENTORY_BYTES = 8 * 1024 ** 3
 
 
 def _check_outputs(args) -> None:
@@ -258,59 +262,6 @@ def _check_batch_inputs(args) -> None:
                              given=f"{st.st_size} bytes", expected=f"at most {limit // (1024 * 1024)} MB")
 
 
-#: Inventory files below this size [bytes] are read once before the batch starts, for what the batch
-#: itself would not say: a header with no rows, the row of an unclosed quote. (Larger files hold rows.)
-PRECHECK_BYTES = 256 * 1024
-
-
-def _csv_error_row(raw: bytes) -> int | None:
-    """The row (header = 1) of the record a strict CSV reading fails in (an unclosed quote: the row where
-    the quoted cell opens), or None."""
-    import csv
-    import io
-
-    try:
-        text = raw.decode("utf-8-sig")
-    except UnicodeDecodeError:
-        return None
-    first = text.split("\n", 1)[0]
-    delimiter = ";" if first.count(";") > first.count(",") else ","
-    reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter, strict=True)
-    records = 0
-    try:
-        for _ in reader:
-            records += 1
-    except csv.Error:
-        return records + 1
-    return None
-
-
-def _precheck_inventory(args) -> None:
-    """For a small inventory: a header without rows, or a CSV error located at its row."""
-    from screening.inputs.inventory import read_inventory
-
-    path = args.inventory
-    try:
-        if not os.path.isfile(path) or os.path.getsize(path) >= PRECHECK_BYTES:
-            return
-        with open(path, "rb") as fh:
-            raw = fh.read()
-    except OSError:
-        return                       # the batch's reader says what is wrong
-    try:
-        inv = read_inventory(path, sheet=args.sheet)
-    except InputError as exc:
-        csv_error = exc.row is None and exc.message.startswith("not a readable CSV")
-        row = _csv_error_row(raw) if csv_error else None
-        if row is not None:
-            raise InputError(exc.message + " (a quoted cell that is never closed?)", file=exc.file, row=row,
-                             expected="every opening quote closed in the same cell") from None
-        return                       # the batch says it
-    if not inv.rows:
-        raise InputError("the inventory has a header but no rows", file=str(path), row=2,
-                         expected="one row per vessel below the header")
-
-
 def _exit_for(verdict: str) -> int:
     return EXIT_WITHIN if verdict == "within" else EXIT_NOT_WITHIN
 
@@ -320,7 +271,6 @@ def run(argv: list[str] | None = None) -> int:
     _check_outputs(args)
     if args.command == "batch":
         _check_batch_inputs(args)
-        _precheck_inventory(args)
         from screening.batch import run as run_batch
 
         return run_batch(args)

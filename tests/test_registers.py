@@ -338,3 +338,37 @@ def test_rows_are_streamed_in_chunks_and_every_row_is_accounted_for(tmp_path, mo
     code, rows = batch(tmp_path, write(tmp_path, "".join(lines)), "--sort", "severity")
     assert sorted(int(r["row"]) for r in rows) == list(range(2, 52))
     assert [r["verdict"] for r in rows[:6]] == ["input-error"] * 6 and rows[6]["verdict"] == "within"
+
+
+class _Terminal(io.StringIO):
+    def isatty(self):
+        return True
+
+
+def test_a_progress_bar_counts_the_rows_on_a_terminal_only(tmp_path, monkeypatch, capsys):
+    import sys
+
+    from screening import batch as batch_mod
+
+    monkeypatch.setattr(batch_mod, "CHUNK_ROWS", 3)
+    inv = write(tmp_path, HEAD + "".join(GOOD.format(id=f"R{i}") for i in range(7)))
+    term = _Terminal()
+    monkeypatch.setattr(sys, "stderr", term)
+    assert run(["batch", str(inv)]) == 0
+    assert re.search(r"screening: [0-9.]+k? rows", term.getvalue())
+    term2 = _Terminal()
+    monkeypatch.setattr(sys, "stderr", term2)
+    run(["batch", str(inv), "--quiet"])
+    assert term2.getvalue() == ""
+
+
+def test_an_unclosed_quote_and_a_header_without_rows_are_errors_of_the_file(tmp_path, capsys):
+    from screening.cli import main
+
+    for text, words in ((HEAD + GOOD.format(id="A") + GOOD.format(id='"B') + GOOD.format(id="C"), "row 3"),
+                        (HEAD, "no rows")):
+        out = tmp_path / "o.csv"
+        with pytest.raises(SystemExit) as e:
+            main(["batch", str(write(tmp_path, text)), "--csv", str(out), "--quiet"])
+        assert e.value.code == 2 and not out.exists()
+        assert words in capsys.readouterr().err

@@ -207,7 +207,7 @@ class Register:
         except OSError as exc:
             raise _fail(f"cannot read the inventory file: {exc.strerror}", self.source) from None
         with fh:
-            reader = csv.reader(fh, delimiter=self.delimiter)
+            reader = csv.reader(fh, delimiter=self.delimiter, strict=True)
             n = 0
             while True:
                 try:
@@ -215,8 +215,16 @@ class Register:
                 except StopIteration:
                     return
                 except csv.Error as exc:
-                    raise _fail(f"not a readable CSV file: {exc}", self.source, row=n + 1,
-                                expected=f"cells of at most {MAX_FIELD_CHARS // 2**20} MiB") from None
+                    text = str(exc)
+                    if "field larger" in text:
+                        expected = f"cells of at most {MAX_FIELD_CHARS // 2**20} MiB"
+                    elif "end of data" in text or "expected after" in text:
+                        text += " (a quoted cell that is never closed?)"
+                        expected = "every opening quote closed in the same cell"
+                    else:
+                        expected = "a CSV file"
+                    raise _fail(f"not a readable CSV file: {text}", self.source, row=n + 1,
+                                expected=expected) from None
                 n += 1
                 if n > MAX_ROWS + 1:
                     raise _fail(f"more than {MAX_ROWS:,} rows", self.source,
@@ -475,7 +483,7 @@ def _check_finite(case: Case, data: dict) -> None:
         v = getattr(case, name, None)
         if isinstance(v, float) and not math.isfinite(v):
             table, k = key.split(".")
-            raise InputError("the value is beyond the range of numbers once converted to SI units", key=key,
+            raise InputError("the value is out of range once converted to SI units", key=key,
                              given=(data.get(table) or {}).get(k), expected="a value of a real vessel")
 
 
