@@ -341,14 +341,16 @@ def test_every_demo_case_gets_its_engine_verdict_on_the_page(client, path):
 
 
 def test_an_unreadable_inventory_says_why(client):
-    sent = client.post("/inventory", files={"inventory_file": ("bad.csv", b"id;colour\nA;red\n", "text/csv")},
-                       follow_redirects=False)
+    # a header that nearly names a key the tool reads: the whole file is refused with a "did you mean"
+    # (a column of the user's own, such as "colour", would be carried through instead)
+    sent = client.post("/inventory", files={"inventory_file": ("bad.csv", b"id;gas;colour;fill_presure\nA;nitrogen;red;200\n",
+                                                               "text/csv")}, follow_redirects=False)
     job = sent.headers["location"]
     deadline = time.monotonic() + 120
     while "could not be read:" not in (status := client.get(job + "/status").text):
         assert time.monotonic() < deadline and "Done:" not in status
         time.sleep(0.3)
-    assert "bad.csv" in status and "colour" in status
+    assert "bad.csv" in status and "fill_presure" in status
 
 
 def test_a_large_inventory_offers_its_batch_pdf_and_writes_it_on_request(client):
