@@ -429,7 +429,7 @@ def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> Fil
         phase = fs.phase_fill if fs.phase_fill in condensed else fs.phase_peak
         fs.why_not_gas = (f"the contents are {phase} {where}; gas models do not apply to a liquid or a "
                           "liquid–vapour mixture")
-    if not _is_pure(fluid) and _mixture_liquid_like(case.gas, fluid, fs, rho_molar, t_fill):
+    if not _has_liquid_full_analysis(fluid) and _mixture_liquid_like(case.gas, fluid, fs, rho_molar, t_fill):
         fs.refusal = (f"The mixture {case.gas.name} is liquid or a dense, liquid-like fluid at fill "
                       f"({fs.rho_mass:.0f} kg/m3): the temperature at which it fills the vessel cannot be "
                       "established for a mixture by this method, so the vessel cannot be screened.")
@@ -447,8 +447,7 @@ def _mixture_liquid_like(gas: Mixture, fluid: ReferenceFluid, fs: FillState, rho
     tc = fluid.critical_temperature
     rho_c = fluid.critical_molar_density
     if not tc or not rho_c or not math.isfinite(tc) or not math.isfinite(rho_c):
-        tc = sum(x * g.critical_temperature for g, x in zip(gas.components, gas.fractions))
-        rho_c = 1.0 / sum(x * g.critical_volume for g, x in zip(gas.components, gas.fractions))
+        tc, rho_c = _kay_critical(gas)
     return rho_molar >= rho_c and t_fill <= LIQUID_LIKE_TEMPERATURE_RATIO * tc
 
 
@@ -595,18 +594,11 @@ def _mass_limit(case: Case, models: list[Model], t_fill: float, t_peak: float, t
     rho = _root(lambda r: fluid.pressure(r, t_peak) - target, 1e-6 * rho_top, rho_top * 0.999, n=60)
     if rho is None:
         return none
-    if _is_pure(fluid):
+    if _has_liquid_full_analysis(fluid):
         try:
-            rho_lf = liquid_full_density(fluid, t_fill, t_peak)
+            rho_lf = liquid_full_density(fluid, t_fill, t_peak, case.gas)
         except NotApplicable:
             return none
-        if rho_lf < rho:
-            rho, basis = rho_lf, "the liquid-full point at the worst-case temperature"
-    elif isinstance(fluid, LiquefiedBlend):
-        try:   # the blend's bubble-point liquid at the worst-case temperature: liquid-full there
-            rho_lf = fluid.bubble_point(t_peak)[1]
-        except NotApplicable:
-            rho_lf = math.inf
         if rho_lf < rho:
             rho, basis = rho_lf, "the liquid-full point at the worst-case temperature"
     rho_mass = rho * M
@@ -773,14 +765,23 @@ LIQUID_LIKE_TEMPERATURE_RATIO = 1.2
 DENSE_FLUID_TEMPERATURE_RATIO = LIQUID_LIKE_TEMPERATURE_RATIO
 
 
-def liquid_full_density(fluid: ReferenceFluid, t_fill: float, t_peak: float) -> float:
-    """Molar density [mol/m3] at and above which a pure fluid's vessel counts as liquid-full (or a dense,
-    liquid-like fluid) at the worst-case temperature t_peak [K] for a fill at t_fill [K]; inf where none.
+def liquid_full_density(fluid: ReferenceFluid, t_fill: float, t_peak: float, gas: Mixture | None = None) -> float:
+    """Molar density [mol/m3] at and above which a vessel of a pure fluid or a liquefied blend counts as
+    liquid-full (or a dense, liquid-like fluid) at the worst-case temperature t_peak [K] for a fill at
+    t_fill [K]; inf where none. One rule for the verdict and for the fill-mass limit.
 
-    Below the critical temperature it is the saturated-liquid density at t_peak (the liquid fills the vessel at
-    or below t_peak); above it, the critical density if the fill was at or below
-    LIQUID_LIKE_TEMPERATURE_RATIO × Tc, else none. One rule for the verdict and for the fill-mass limit.
+    Pure fluid: below the critical temperature the saturated-liquid density at t_peak (the liquid fills the
+    vessel at or below t_peak); above it, the critical density if the fill was at or below
+    LIQUID_LIKE_TEMPERATURE_RATIO × Tc, else none. Liquefied blend: its bubble-point liquid density at t_peak;
+    where the blend has no bubble point there (above its critical region), the dense-fluid rule with Kay's-rule
+    critical constants of `gas`.
     """
+    if isinstance(fluid, LiquefiedBlend):
+        try:
+            return fluid.bubble_point(t_peak)[1]
+        except NotApplicable:
+            tc, rho_c = _kay_critical(gas)
+            return rho_c if t_fill <= LIQUID_LIKE_TEMPERATURE_RATIO * tc else math.inf
     tc = fluid.critical_temperature
     if t_peak < tc:
         return fluid.saturated_liquid_density(t_peak)
@@ -789,13 +790,26 @@ def liquid_full_density(fluid: ReferenceFluid, t_fill: float, t_peak: float) -> 
     return math.inf
 
 
-def _liquid_full_applies(fs: FillState, rho: float | None, t_fill: float, t_peak: float) -> bool:
+def _kay_critical(gas: Mixture) -> tuple[float, float]:
+    """Pseudo-critical temperature [K] and molar density [mol/m3] of a mixture by Kay's rule (mole-fraction
+    averages of the components' critical temperatures and volumes)."""
+    tc = sum(x * g.critical_temperature for g, x in zip(gas.components, gas.fractions))
+    return tc, 1.0 / sum(x * g.critical_volume for g, x in zip(gas.components, gas.fractions))
+
+
+def _has_liquid_full_analysis(fluid: ReferenceFluid | None) -> bool:
+    """A pure fluid with a saturation dome, or a liquefied blend: the liquid-full point is established."""
+    return fluid is not None and (_is_pure(fluid) or isinstance(fluid, LiquefiedBlend))
+
+
+def _liquid_full_applies(fs: FillState, rho: float | None, t_fill: float, t_peak: float,
+                         gas: Mixture | None = None) -> bool:
     """Whether the vessel with fill molar density rho [mol/m3] is liquid-full (or a dense, liquid-like fluid) at
     the worst-case temperature."""
-    if fs.fluid is None or rho is None or not _is_pure(fs.fluid):
+    if rho is None or not _has_liquid_full_analysis(fs.fluid):
         return False
     try:
-        return rho >= liquid_full_density(fs.fluid, t_fill, t_peak)
+        return rho >= liquid_full_density(fs.fluid, t_fill, t_peak, gas)
     except NotApplicable:
         return True  # the liquid side cannot be evaluated: not shown to be away from it
 
@@ -864,7 +878,7 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
         reasons_na = "; ".join(f"{', '.join(names)}: {note}" for note, names in notes.items())
         out_of_scope = f"No real-gas model applies to this vessel ({reasons_na}), so it cannot be screened."
 
-    liquid_full = [liquid_full_text(fs, t_peak)] if _liquid_full_applies(fs, _molar(case, fs), t_fill, t_peak) \
+    liquid_full = [liquid_full_text(fs, t_peak)] if _liquid_full_applies(fs, _molar(case, fs), t_fill, t_peak, case.gas) \
         else []
     ratio_reason = filling_ratio_reason(fs.rho_mass, case.max_filling_ratio_kg_m3)
 
@@ -958,7 +972,7 @@ def _corner_peak(case: Case, p_fill: float | None, t_fill: float, t_peak: float)
     out["governing"] = gov.peak_pa if gov else None
     out["_out_of_scope"] = out_of_scope
     out["_liquid_full"] = (liquid_full_text(fs, t_peak, corner=True)
-                           if _liquid_full_applies(fs, _molar(variant, fs), t_fill, t_peak) else None)
+                           if _liquid_full_applies(fs, _molar(variant, fs), t_fill, t_peak, case.gas) else None)
     return out
 
 

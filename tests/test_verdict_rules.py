@@ -266,3 +266,21 @@ def test_batch_rows_with_a_cold_worst_case_get_the_single_case_verdict_and_limit
         assert full["peak_pressure_pa"] >= (single["fill"]["pressure_pa"] or 0.0) * (1 - 1e-12)
         if single["fill"]["pressure_pa"] > single["rated_pressure_pa"]:
             assert full["verdict"] == "over"
+
+
+def test_a_liquefied_blend_that_is_liquid_full_at_the_worst_case_is_not_within():
+    # CoolProp PropsSI on the mixture string: bubble-point liquid density of propane 60 % + n-butane 40 % by
+    # mass at 40 °C; a fill at 98 % of it is liquid-full before 50 °C (the liquid expands as it warms)
+    from screening.inputs.gas_spec import parse_gas
+
+    m = parse_gas("propane 60 % + n-butane 40 % by mass")
+    fluid = "HEOS::" + "&".join(f"{g.coolprop_name}[{x!r}]" for g, x in zip(m.components, m.fractions))
+    rho_40 = CP.PropsSI("Dmass", "T", 313.15, "Q", 0, fluid)
+    rho_50 = CP.PropsSI("Dmass", "T", 323.15, "Q", 0, fluid)
+    fill = 0.98 * rho_40
+    assert rho_50 < fill
+    r = screen_text(_case("propane 60 % + n-butane 40 % by mass", f'mass = "{fill * 0.040:.4f} kg"\ntemperature = "15 degC"',
+                          'gas_temperature = "50 degC"', 'water_capacity = "40 L"\nrated_pressure = "40 bar(g)"'))
+    assert r["verdict"] != "within"
+    assert any("fills the whole vessel" in x or "liquid-like" in x for x in r["reasons"])
+    assert r["limits"]["max_fill_mass_kg"] <= rho_50 * 0.040 * (1 + 1e-6)
