@@ -674,7 +674,7 @@ def decide(*, peak: float | None, rated: float, relief: float | None, atm: float
     real-gas model, or a reason given by the caller. The reasons that decide the verdict come first.
     """
     if out_of_scope_reason or not any_real_model or peak is None:
-        return Verdict.OUT_OF_SCOPE, [out_of_scope_reason or "No real-gas model applies to this vessel, so it cannot "
+        return Verdict.OUT_OF_SCOPE.value, [out_of_scope_reason or "No real-gas model applies to this vessel, so it cannot "
                                 "be screened."], None, None
     margin = 1.0 - (peak - atm) / (rated - atm)
     relief_margin = None if relief is None else 1.0 - (peak - atm) / (relief - atm)
@@ -702,7 +702,7 @@ def decide(*, peak: float | None, rated: float, relief: float | None, atm: float
     if peak <= rated and margin >= required_margin:
         m, req = percent_pair(margin, required_margin)
         reasons.append(f"The peak pressure stays within the rating with a margin of {m} (required {req}).")
-    return verdict, reasons, margin, relief_margin
+    return verdict.value, reasons, margin, relief_margin   # the word itself: results are plain data
 
 
 # ----------------------------------------------------------------------------- the screening

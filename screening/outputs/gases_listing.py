@@ -57,10 +57,18 @@ def _mixture_lines() -> list[str]:
     """The mixtures of the trade with the models that apply (physics.mixtures.trade_mixture_models)."""
     from screening.physics.mixtures import trade_mixture_models
 
+    from screening.physics.eos.reference import citation
+
     out = ["Mixtures of the trade (any composition of library gases may be given) and their models; in",
-           "brackets the CoolProp bibliography keys of the fitted binary parameters:"]
+           "brackets the sources of the fitted binary parameters, listed below:"]
+    numbers: dict[str, int] = {}
     for row in trade_mixture_models():
-        sources = ", ".join(sorted({k for _, _, k in row["pairs"] if k}))
-        out.append(textwrap.fill(f"{row['label']}: {row['models']}" + (f" [{sources}]" if sources else ""),
+        keys = sorted({k for _, _, k in row["pairs"] if k})
+        refs = ", ".join(str(numbers.setdefault(k, len(numbers) + 1)) for k in keys)
+        out.append(textwrap.fill(f"{row['label']}: {row['models']}" + (f" [{refs}]" if refs else ""),
                                  width=100, initial_indent="  ", subsequent_indent="      "))
+    out.append("Sources of the fitted binary parameters:")
+    for key, n in numbers.items():
+        out.append(textwrap.fill(f"[{n}] {citation(key)}", width=100, initial_indent="  ",
+                                 subsequent_indent="      "))
     return out

@@ -92,6 +92,11 @@ def _bib_entry(key: str) -> dict[str, str] | None:
 
 
 @lru_cache(maxsize=256)
+def citation(key: str) -> str:
+    """Readable citation for a CoolProp bibliography key (author, year, title, journal, DOI)."""
+    return _citation(key)
+
+
 def _citation(key: str) -> str:
     """Readable citation for a CoolProp bibliography key; the key itself when the entry is not there.
     A comma-separated list of keys (oxygen's 'Schmidt-FPE-1985,Stewart-JPCRD-1991') gives each citation."""
