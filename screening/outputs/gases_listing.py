@@ -55,9 +55,8 @@ def format_library() -> str:
 
 def _mixture_lines() -> list[str]:
     """The mixtures of the trade with the models that apply (physics.mixtures.trade_mixture_models)."""
-    from screening.physics.mixtures import trade_mixture_models
-
     from screening.physics.eos.reference import citation
+    from screening.physics.mixtures import trade_mixture_models
 
     out = ["Mixtures of the trade (any composition of library gases may be given) and their models; in",
            "brackets the sources of the fitted binary parameters, listed below:"]
