@@ -298,6 +298,51 @@ def _scan_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray
     return out
 
 
+def _increasing_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np.ndarray, lo: np.ndarray,
+                     mid: np.ndarray, f_mid: np.ndarray, hi: np.ndarray, top: float) -> tuple[np.ndarray, np.ndarray]:
+    """Per row, the root screen._root finds for an increasing f(x, rows) on [lo, hi] (NaN: none), where f is
+    known at an inside point mid (f_mid) and can be evaluated only up to `top` (a model's range).
+
+    As there: where hi <= top, the root is the one inside [lo, hi] (none where f(lo) > 0 or f(hi) < 0); where
+    hi > top, screen._root scans np.linspace(lo, hi, _SCAN_N) and finds the root only inside a scan interval
+    whose ends it can evaluate, so a root in the interval that holds `top` is none as well. The solve is
+    bracketed on [mid, min(hi, top)] or [lo, mid] (Illinois, to _SECANT_RTOL); where f cannot be evaluated at
+    that bracket's end, by screen._root's scan (:func:`_scan_root`). Returns (root, ok): ok False where the
+    bracketed solve met a point it could not evaluate (those rows go per row).
+    """
+    m = rows.size
+    root = np.full(m, np.nan)
+    ok = np.ones(m, dtype=bool)
+    end = np.minimum(hi, top)
+    root[f_mid == 0.0] = mid[f_mid == 0.0]
+    for up in (True, False):
+        k = np.flatnonzero((f_mid < 0.0) if up else (f_mid > 0.0))
+        if k.size == 0:
+            continue
+        x_end = end[k] if up else lo[k]
+        f_end = f(x_end, rows[k])
+        bad = ~np.isfinite(f_end)
+        if bad.any():   # an end outside the model's range (e.g. above its highest pressure): screen._root scans
+            kb = k[bad]
+            root[kb] = _scan_root(lambda x, ix, sub=rows[kb]: f(x, sub[ix]), lo[kb], hi[kb])
+        at_end = ~bad & (f_end == 0.0)
+        root[k[at_end]] = x_end[at_end]
+        go = ~bad & ((f_end > 0.0) if up else (f_end < 0.0))
+        g = k[go]
+        if g.size:
+            a, b = (mid[g], x_end[go]) if up else (x_end[go], mid[g])
+            fa, fb = (f_mid[g], f_end[go]) if up else (f_end[go], f_mid[g])
+            r = _illinois(f, a, b, fa, fb, rows[g])
+            ok[g[~np.isfinite(r)]] = False
+            root[g] = r
+    # beyond `top` screen._root scans: a root in a scan interval that reaches past `top` is not found
+    past = np.flatnonzero(ok & np.isfinite(root) & (hi > top))
+    if past.size:
+        _a, b = _linspace_bracket(lo[past], hi[past], root[past])
+        root[past[b > top]] = np.nan
+    return root, ok
+
+
 # ----------------------------------------------------------------------------- one gas group
 
 @dataclass
@@ -546,7 +591,8 @@ def _columns(rows: Rows) -> dict:
     t_ref = np.full(n, np.nan)
     if live.size:
         need = live.copy()
-        with_lk = np.isfinite(t_lk[live])
+        top = np.minimum(t_hi, fluid.t_max)     # the reference equation's range caps the scan
+        with_lk = np.isfinite(t_lk[live]) & (t_lk[live] <= top[live])
         if with_lk.any():
             j = live[with_lk]
             pj, vj, _ = fluid.pressures(rho_ref[j], t_lk[j])
@@ -559,18 +605,10 @@ def _columns(rows: Rows) -> dict:
                 p, _v, _r = fluid.pressures(rho_ref[ix], t)
                 return p / rated[ix] - 1.0
 
-            x0 = t_peak[need]
-            f0 = peak_ref[need] / rated[need] - 1.0
-            x1 = np.where(np.isfinite(t_lk[need]), t_lk[need], t_peak[need] * rated[need] / peak_ref[need])
-            x1 = np.where(np.abs(x1 - x0) < 1e-6 * x0, x0 * (1 + 1e-3), x1)
-            root, conv = _secant(f_ref, x0, f0, x1, need)
-            fallback[need[~conv]] = True
-            root = _settle_edges(lambda t, ix: f_ref(t, need[ix]) * rated[need[ix]], root, conv, t_lo[need],
-                                 t_hi[need])
-            inside = conv & (root >= t_lo[need]) & (root <= t_hi[need])
-            _a, b = _linspace_bracket(t_lo[need], t_hi[need], root)
-            fallback[need[inside & (b > fluid.t_max)]] = True
-            t_ref[need[inside]] = root[inside]
+            root, ok = _increasing_root(f_ref, need, t_lo[need], t_peak[need], peak_ref[need] / rated[need] - 1.0,
+                                        t_hi[need], fluid.t_max)
+            fallback[need[~ok]] = True
+            t_ref[need[ok]] = root[ok]
     out["max_t"] = np.fmin(t_lk, t_ref)
 
     # reference: max fill pressure, density at the target on the peak isochore, then its fill pressure
