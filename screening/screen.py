@@ -199,7 +199,11 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
         return np.where(fill_state.valid & peak_state.valid, peak_state.pressure, np.nan)
 
     def fill_for_peak(p_peak: float) -> float | None:
-        # the density at the peak pressure and temperature, then the pressure of that density at the fill
+        # the density at the peak pressure and temperature, then the pressure of that density at the fill;
+        # below the critical temperature at fill that density may be liquid-like, whose pressure solve is slow
+        # to fail: the caller's scan decides there
+        if t_fill < consts_fill[0]:
+            return None
         t2 = np.array([t_peak])
         at_peak = lee_kesler_density(np.array([p_peak]), t2, *constants_at(t2))
         if not at_peak.valid[0]:
