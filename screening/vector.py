@@ -1,7 +1,10 @@
 """Screen many vessels at once: the batch engine.
 
-Rows are grouped by gas. For a pure permanent gas filled by pressure, with one plain exposure and no
-tolerances, both temperatures above the critical temperature (the "vectorised path"):
+Rows are grouped by gas. For a pure permanent gas filled by pressure, with one exposure (in the sun or
+not) and no tolerances, both temperatures above the critical temperature (the "vectorised path"):
+
+* a row in the sun gets its worst case from :func:`screening.screen._worst_case_temperature` (the energy
+  balance, per row and cheap), with its basis, balance and warnings; the rest of the row runs on the arrays;
 
 * the ideal and generalized models run as numpy arrays over every row of the group (no Python loop
   per row; the Lee–Kesler functions of :mod:`screening.physics.eos.generalized` are array functions);
@@ -9,8 +12,9 @@ tolerances, both temperatures above the critical temperature (the "vectorised pa
   ``pressures()`` loop, and ``density()`` for the fill state);
 * the limits are solved without the per-row scalar scan: on the generalized model by inverting the
   isochore at the target pressure (a vectorised secant on T, and density-at-pressure for the fill
-  limit), on the reference model by a few vectorised secant steps through ``pressures()`` started from
-  the generalized answer, and only where the reference limit can be the lower one;
+  limit), on the reference model by a bracketed solve (Illinois) through ``pressures()`` inside the
+  equation's range, with screen._root's scan where the range ends inside its bracket, and only where the
+  reference limit can be the lower one;
 * the dry-out temperature (where the isochore meets the saturation dome) by a per-fluid table of the
   saturated-vapour density and a few secant steps;
 * verdicts through :func:`screening.screen.decide`, the one place that decides a verdict.
@@ -18,7 +22,7 @@ tolerances, both temperatures above the critical temperature (the "vectorised pa
 Everything else goes through :func:`screening.screen.screen_case` one row at a time, on purpose: liquefiable
 and dissolved gases and mixtures (their reference state is checked per row against the phase envelope),
 mass fills, fills denser than critical (liquid-full analysis), two-phase or near-critical fills,
-tolerances and sun exposure, and any row where a vectorised step is not sure of itself (a root next to
+tolerances and several scenarios, and any row where a vectorised step is not sure of itself (a root next to
 the edge of a model's range, a solve that did not settle). Those rows give exactly the single-case result.
 
 The result of a row has the keys of ``screen_case``; its numbers agree with it to the solve tolerance
@@ -69,9 +73,34 @@ def vectorisable(case: Case) -> bool:
     if getattr(case, "tolerance", None) is not None:
         return False
     scenarios = getattr(case, "scenarios", ())
-    if len(scenarios) > 1 or any(getattr(s, "solar", "none") != "none" for s in scenarios):
+    if len(scenarios) > 1 or any(getattr(s, "solar", "none") not in ("none", "sun") for s in scenarios):
         return False
     return True
+
+
+@dataclass
+class SunRow:
+    """A row in the sun: its worst case as screen._worst_case_temperature finds it (the energy balance is per
+    row and cheap), so that the rest of the row runs on the arrays: the basis in words, the balance and the
+    warnings of that step (in the single screening's order)."""
+
+    basis: str
+    balance: dict
+    warnings: list
+    t_exposure: float       # the highest exposure temperature [K] (before the fill state is considered)
+
+
+def _sun_row(case: Case) -> SunRow | None:
+    """The worst case of a row with one scenario in the sun; None for other rows. Raises InputError as the
+    single screening does (the row then goes per row, which raises it again in its place)."""
+    sc = case.scenarios[0] if getattr(case, "scenarios", ()) else None
+    if sc is None or getattr(sc, "solar", "none") != "sun":
+        return None
+    warnings: list = []
+    _t, basis, balance = _screen._worst_case_temperature(case, sc, warnings)
+    t_exposure = max(t for t in (sc.gas_temperature_k, sc.ambient_max_k, balance["wall_temperature_k"])
+                     if t is not None)
+    return SunRow(basis, balance, warnings, t_exposure)
 
 
 # ----------------------------------------------------------------------------- helpers
@@ -360,13 +389,18 @@ class Rows:
     margin_req: np.ndarray
 
     @staticmethod
-    def of_cases(cases: list[Case]) -> "Rows":
+    def of_cases(cases: list[Case], sun: list[SunRow | None] | None = None) -> "Rows":
+        """The rows of cases; a row in the sun (``sun[k]``) enters with its highest exposure temperature as
+        the gas temperature and no ambient (its basis and warnings are the SunRow's)."""
         sc = [c.scenarios[0] if getattr(c, "scenarios", ()) else c for c in cases]
+        sun = sun or [None] * len(cases)
         nan = math.nan
         return Rows(cases[0].gas, np.array([c.fill_pressure_pa for c in cases], dtype=float),
                     np.array([c.fill_temperature_k for c in cases], dtype=float),
-                    np.array([nan if s.ambient_max_k is None else s.ambient_max_k for s in sc], dtype=float),
-                    np.array([nan if s.gas_temperature_k is None else s.gas_temperature_k for s in sc], dtype=float),
+                    np.array([nan if (s.ambient_max_k is None or u is not None) else s.ambient_max_k
+                              for s, u in zip(sc, sun)], dtype=float),
+                    np.array([u.t_exposure if u is not None else nan if s.gas_temperature_k is None
+                              else s.gas_temperature_k for s, u in zip(sc, sun)], dtype=float),
                     np.array([c.rated_pressure_pa for c in cases], dtype=float),
                     np.array([c.site.atmospheric_pressure_pa for c in cases], dtype=float),
                     np.array([c.required_margin for c in cases], dtype=float))
@@ -685,7 +719,7 @@ def _verdict(cols: dict, k: int, molar_mass: float, rated: float, relief: float 
             "applicable": [nm for nm, _ in applicable]}
 
 
-def _assemble(case: Case, cols: dict, k: int, v: dict | None = None) -> dict:
+def _assemble(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:
     """One row's result dict, laid out as screen.screen_case lays out a single-scenario result."""
     gas = case.gas
     fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
@@ -694,6 +728,8 @@ def _assemble(case: Case, cols: dict, k: int, v: dict | None = None) -> dict:
     if v is None:
         v = _verdict(cols, k, gas.molar_mass, case.rated_pressure_pa, case.relief_set_pressure_pa, atm, case.required_margin,
                      case.max_filling_ratio_kg_m3, getattr(sc, "name", None))
+    if sun is not None:   # the worst-case step's warnings (screen._worst_case_temperature), then the models'
+        v = {**v, "warnings": list(sun.warnings) + [w for w in v["warnings"] if w["code"] == "models-disagree"]}
     t_fill, t_peak = float(case.fill_temperature_k), float(cols["t_peak"][k])
     rho_molar = float(cols["rho_molar"][k])
     rho_mass = rho_molar * gas.molar_mass
@@ -765,7 +801,7 @@ def _assemble(case: Case, cols: dict, k: int, v: dict | None = None) -> dict:
                  "phase": phase, "filling_ratio_kg_per_l": rho_mass / 1000.0 if rho_mass else None,
                  "vapour_pressure_pa": None, "given": "pressure"},
         "worst_case_temperature_k": t_peak,
-        "worst_case_basis": (_screen.FILL_STATE_BASIS if cols["fill_governs"][k] else
+        "worst_case_basis": (sun.basis if sun is not None else _screen.FILL_STATE_BASIS if cols["fill_governs"][k] else
                              "gas temperature stated in the case" if cols["stated"][k] else "ambient maximum"),
         "models": models,
         "peak_pressure_pa": peak, "nominal_peak_pressure_pa": peak, "tolerance": None,
@@ -784,11 +820,12 @@ def _assemble(case: Case, cols: dict, k: int, v: dict | None = None) -> dict:
         keys = ("verdict", "reasons", "worst_case_temperature_k", "worst_case_basis", "peak_pressure_pa",
                 "nominal_peak_pressure_pa", "governing_model", "margin_fraction", "relief_margin_fraction",
                 "limits", "tolerance")
-        result["scenarios"] = [{"name": name, **{k2: result[k2] for k2 in keys}, "exposure": None,
+        balance = sun.balance if sun is not None else None
+        result["scenarios"] = [{"name": name, **{k2: result[k2] for k2 in keys}, "exposure": balance,
                                 "models": {nm: {"applicable": m["applicable"], "peak_pressure_pa": m["peak_pressure_pa"]}
                                            for nm, m in models.items()}, "governing": True}]
         result["governing_scenario"] = name
-        result["exposure"] = None
+        result["exposure"] = balance
     return result
 
 
@@ -824,13 +861,20 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
     results: list[dict | None] = [None] * len(cases)
     groups: dict[str, list[int]] = {}
     rest: list[int] = []
+    sun: dict[int, SunRow | None] = {}
     for i, c in enumerate(cases):
         if vectorisable(c):
+            try:
+                sun[i] = _sun_row(c)
+            except InputError:
+                rest.append(i)      # the per-row path raises it again, in its place
+                continue
             groups.setdefault(c.gas.name, []).append(i)
         else:
             rest.append(i)
     names = list(groups)
-    all_cols = _run_columns([Rows.of_cases([cases[i] for i in groups[nm]]) for nm in names])
+    all_cols = _run_columns([Rows.of_cases([cases[i] for i in groups[nm]], [sun[i] for i in groups[nm]])
+                             for nm in names])
     for nm, cols in zip(names, all_cols):
         idx = groups[nm]
         done = 0
@@ -838,7 +882,7 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
             if cols["fallback"][k]:
                 rest.append(i)
             else:
-                results[i] = _assemble(cases[i], cols, k)
+                results[i] = _assemble(cases[i], cols, k, sun=sun[i])
                 done += 1
         if progress:
             progress(done)
