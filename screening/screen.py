@@ -78,6 +78,8 @@ class Model:
     fill_for_peak: Callable[[float], float | None] | None = None
     #: p [Pa] -> the temperature [K] at which the isochore reaches it (the inverse of isochore), None where not found
     temperature_at: Callable[[float], float | None] | None = None
+    #: the model's pressure [Pa] at the fill density and temperature (the isochore at the fill), where computed
+    fill_pa: float | None = None
 
     def isochore_values(self, temperatures: np.ndarray) -> list[float | None]:
         """The isochore at many temperatures; None where the model does not apply."""
@@ -224,9 +226,14 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
             return None
         x1 = x0 * (1.0 + 1e-4)
         f0 = g(x0)
-        for _ in range(30):
+        if not math.isfinite(f0):
+            return None
+        for _ in range(40):
             f1 = g(x1)
-            if not (math.isfinite(f0) and math.isfinite(f1)) or f1 == f0:
+            if not math.isfinite(f1):       # a step out of the model's range: halve it
+                x1 = 0.5 * (x0 + x1)
+                continue
+            if f1 == f0:
                 return x1 if f1 == 0.0 else None
             x0, f0, x1 = x1, f1, x1 - f1 * (x1 - x0) / (f1 - f0)
             if not (math.isfinite(x1) and x1 > 0.0):
@@ -238,7 +245,7 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
     return Model("generalized", True, "Lee–Kesler corresponding states"
                  + (" with Kay's rule" if not case.gas.is_pure else ""),
                  float(peak.pressure[0]), rho, isochore, fill_to_peak, extra, isochore_array, fill_to_peak_array,
-                 fill_for_peak, temperature_at)
+                 fill_for_peak, temperature_at, float(fill.pressure[0]))
 
 
 # ----------------------------------------------------------------------------- phase and reference
@@ -481,15 +488,20 @@ def _known_root(x: float | None, f_array: Callable[[np.ndarray], np.ndarray], lo
     brackets it; where f cannot be evaluated at hi, where the scan interval of np.linspace(lo, hi, n) that holds
     x brackets it and no earlier scan point has f >= 0."""
     if x is None or not (lo < x < hi):
+        # no root inside: f evaluated at both ends with one sign has none (f increasing), as _root finds
+        f_lo, f_hi = (float(v) for v in f_array(np.array([lo, hi])))
+        if math.isfinite(f_lo) and math.isfinite(f_hi) and (f_lo > 0.0 and f_hi > 0.0 or f_lo < 0.0 and f_hi < 0.0):
+            return True, None
         return False, None
     xs = np.linspace(lo, hi, n)
     k = min(max(int(np.searchsorted(xs, x, side="right")) - 1, 0), n - 2)
     f_lo, f_hi, f_a, f_b, f_x = (float(v) for v in f_array(np.array([lo, hi, xs[k], xs[k + 1], x])))
     if not (math.isfinite(f_x) and abs(f_x) <= f_tol):
         return False, None
-    if math.isfinite(f_lo) and math.isfinite(f_hi) and f_lo < 0.0 < f_hi:
-        return True, float(x)
-    if not math.isfinite(f_hi) and math.isfinite(f_a) and math.isfinite(f_b) and f_a < 0.0 < f_b:
+    if math.isfinite(f_lo) and math.isfinite(f_hi):
+        return (True, float(x)) if f_lo < 0.0 < f_hi else (False, None)
+    # an end that cannot be evaluated: _root scans, and finds the first scan interval that brackets a root
+    if math.isfinite(f_a) and math.isfinite(f_b) and f_a < 0.0 < f_b:
         before = f_array(xs[:k]) if k else np.array([])
         if np.all(~np.isfinite(before) | (before < 0.0)):
             return True, float(x)
@@ -560,7 +572,7 @@ def _fill_over_rating(case: Case, real: list[Model], t_fill: float) -> bool:
         return case.fill_pressure_pa >= case.rated_pressure_pa
     for m in real:
         try:
-            if m.isochore(t_fill) >= case.rated_pressure_pa:
+            if (m.fill_pa if m.fill_pa is not None else m.isochore(t_fill)) >= case.rated_pressure_pa:
                 return True
         except NotApplicable:
             return True
