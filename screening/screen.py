@@ -82,6 +82,13 @@ class Model:
     isochore_array: Callable[[np.ndarray], np.ndarray] | None = None
     #: p_fill array [Pa] -> p_peak array [Pa], NaN where the model does not apply
     fill_to_peak_array: Callable[[np.ndarray], np.ndarray] | None = None
+    #: p_peak [Pa] -> the fill pressure [Pa] whose peak it is (the inverse of fill_to_peak), None where the model
+    #: does not apply there
+    fill_for_peak: Callable[[float], float | None] | None = None
+    #: p [Pa] -> the temperature [K] at which the isochore reaches it (the inverse of isochore), None where not found
+    temperature_at: Callable[[float], float | None] | None = None
+    #: the model's pressure [Pa] at the fill density and temperature (the isochore at the fill), where computed
+    fill_pa: float | None = None
 
     def isochore_values(self, temperatures: np.ndarray) -> list[float | None]:
         """The isochore at many temperatures; None where the model does not apply."""
@@ -204,9 +211,52 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
         peak_state = lee_kesler_pressure(rho_fill, t2, *constants_at(t2))
         return np.where(fill_state.valid & peak_state.valid, peak_state.pressure, np.nan)
 
+    def fill_for_peak(p_peak: float) -> float | None:
+        # the density at the peak pressure and temperature, then the pressure of that density at the fill;
+        # below the critical temperature at fill that density may be liquid-like, whose pressure solve is slow
+        # to fail: the caller's scan decides there
+        if t_fill < consts_fill[0]:
+            return None
+        t2 = np.array([t_peak])
+        at_peak = lee_kesler_density(np.array([p_peak]), t2, *constants_at(t2))
+        if not at_peak.valid[0]:
+            return None
+        t1 = np.array([t_fill])
+        at_fill = lee_kesler_pressure(at_peak.molar_density, t1, *constants_at(t1))
+        return float(at_fill.pressure[0]) if at_fill.valid[0] else None
+
+    def temperature_at(p: float) -> float | None:
+        # secant on T for the density at (p, T) equal to the fill density, from the ideal-gas estimate
+        def g(t: float) -> float:
+            ts = np.array([t])
+            s = lee_kesler_density(np.array([p]), ts, *constants_at(ts))
+            return float(s.molar_density[0]) / rho - 1.0 if s.valid[0] else math.nan
+
+        x0 = t_peak * p / float(peak.pressure[0])
+        if not (math.isfinite(x0) and x0 > 0.0):
+            return None
+        x1 = x0 * (1.0 + 1e-4)
+        f0 = g(x0)
+        if not math.isfinite(f0):
+            return None
+        for _ in range(40):
+            f1 = g(x1)
+            if not math.isfinite(f1):       # a step out of the model's range: halve it
+                x1 = 0.5 * (x0 + x1)
+                continue
+            if f1 == f0:
+                return x1 if f1 == 0.0 else None
+            x0, f0, x1 = x1, f1, x1 - f1 * (x1 - x0) / (f1 - f0)
+            if not (math.isfinite(x1) and x1 > 0.0):
+                return None         # a step out of the physical range: the caller scans
+            if abs(x1 - x0) <= 1e-13 * abs(x1):
+                return x1
+        return None
+
     return Model("generalized", True, "Lee–Kesler corresponding states"
                  + (" with Kay's rule" if not case.gas.is_pure else ""),
-                 float(peak.pressure[0]), rho, isochore, fill_to_peak, extra, isochore_array, fill_to_peak_array)
+                 float(peak.pressure[0]), rho, isochore, fill_to_peak, extra, isochore_array, fill_to_peak_array,
+                 fill_for_peak, temperature_at, float(fill.pressure[0]))
 
 
 #: The generalized model's note and method for pure H2, He, Ne above the Lee–Kesler tables.
@@ -517,6 +567,34 @@ def _root(f: Callable[[float], float], lo: float, hi: float, n: int = 24,
     return None
 
 
+def _known_root(x: float | None, f_array: Callable[[np.ndarray], np.ndarray], lo: float, hi: float,
+                n: int, f_tol: float) -> tuple[bool, float | None]:
+    """(settled, root): the root that _root(f, lo, hi, n, f_array) finds for an increasing f, given a root x found
+    another way (the model's inverse) and confirmed in one vectorised call (|f(x)| <= f_tol); settled False where
+    it cannot be confirmed so (the caller then runs _root). As in _root: x is the root where f at lo and hi
+    brackets it; where f cannot be evaluated at hi, where the scan interval of np.linspace(lo, hi, n) that holds
+    x brackets it and no earlier scan point has f >= 0."""
+    if x is None or not (lo < x < hi):
+        # no root inside: f evaluated at both ends with one sign has none (f increasing), as _root finds
+        f_lo, f_hi = (float(v) for v in f_array(np.array([lo, hi])))
+        if math.isfinite(f_lo) and math.isfinite(f_hi) and (f_lo > 0.0 and f_hi > 0.0 or f_lo < 0.0 and f_hi < 0.0):
+            return True, None
+        return False, None
+    xs = np.linspace(lo, hi, n)
+    k = min(max(int(np.searchsorted(xs, x, side="right")) - 1, 0), n - 2)
+    f_lo, f_hi, f_a, f_b, f_x = (float(v) for v in f_array(np.array([lo, hi, xs[k], xs[k + 1], x])))
+    if not (math.isfinite(f_x) and abs(f_x) <= f_tol):
+        return False, None
+    if math.isfinite(f_lo) and math.isfinite(f_hi):
+        return (True, float(x)) if f_lo < 0.0 < f_hi else (False, None)
+    # an end that cannot be evaluated: _root scans, and finds the first scan interval that brackets a root
+    if math.isfinite(f_a) and math.isfinite(f_b) and f_a < 0.0 < f_b:
+        before = f_array(xs[:k]) if k else np.array([])
+        if np.all(~np.isfinite(before) | (before < 0.0)):
+            return True, float(x)
+    return False, None
+
+
 def _limits(case: Case, models: list[Model], t_fill: float, t_peak: float) -> dict:
     real = [m for m in models if m.applicable and m.name != "ideal"]
     target = case.site.atmospheric_pressure_pa + (case.rated_pressure_pa - case.site.atmospheric_pressure_pa) \
@@ -525,19 +603,32 @@ def _limits(case: Case, models: list[Model], t_fill: float, t_peak: float) -> di
     t_hi = max(t_peak, t_fill) + 300.0
     max_t = []
     for m in real:
-        t = _root(lambda t, m=m: m.isochore(t) - case.rated_pressure_pa, t_lo, t_hi, n=40,
-                  f_array=(lambda ts, m=m: m.isochore_array(ts) - case.rated_pressure_pa)
-                  if m.isochore_array is not None else None)
+        f_array = ((lambda ts, m=m: m.isochore_array(ts) - case.rated_pressure_pa)
+                   if m.isochore_array is not None else None)
+        settled = False
+        if m.temperature_at is not None and f_array is not None:
+            # the model's inverse and one check instead of a scan and a scalar solve
+            settled, t = _known_root(m.temperature_at(case.rated_pressure_pa), f_array, t_lo, t_hi, 40,
+                                     1e-9 * case.rated_pressure_pa)
+        if not settled:
+            t = _root(lambda t, m=m: m.isochore(t) - case.rated_pressure_pa, t_lo, t_hi, n=40, f_array=f_array)
         if t is not None:
             max_t.append(t)
     max_p = []
     if case.fill_pressure_pa is not None:
+        p_lo = case.site.atmospheric_pressure_pa * 1.01
+        p_hi = max(target, case.fill_pressure_pa) * max(1.0, t_fill / t_peak) * 1.05
         for m in real:
-            p = _root(lambda p, m=m: m.fill_to_peak(p) - target, case.site.atmospheric_pressure_pa * 1.01,
-                      max(target, case.fill_pressure_pa) * max(1.0, t_fill / t_peak) * 1.05, n=40,
-                      f_array=(lambda ps, m=m: m.fill_to_peak_array(ps) - target)
-                      if m.fill_to_peak_array is not None else None)
-            if p is not None and abs(m.fill_to_peak(p) - target) <= 1e-6 * target:
+            f_array = (lambda ps, m=m: m.fill_to_peak_array(ps) - target) if m.fill_to_peak_array is not None else None
+            settled = False
+            if m.fill_for_peak is not None and f_array is not None:
+                # the model's inverse and one check instead of a scan and a scalar solve
+                settled, p = _known_root(m.fill_for_peak(target), f_array, p_lo, p_hi, 40, 1e-6 * target)
+            if not settled:
+                p = _root(lambda p, m=m: m.fill_to_peak(p) - target, p_lo, p_hi, n=40, f_array=f_array)
+                if p is not None and abs(m.fill_to_peak(p) - target) > 1e-6 * target:
+                    p = None
+            if p is not None:
                 max_p.append(p)
     mass_limit = _mass_limit(case, models, t_fill, t_peak, target)
     fill_over = case.fill_temperature_k is not None and _fill_over_rating(case, real, t_fill)
@@ -568,7 +659,7 @@ def _fill_over_rating(case: Case, real: list[Model], t_fill: float) -> bool:
         return case.fill_pressure_pa >= case.rated_pressure_pa
     for m in real:
         try:
-            if m.isochore(t_fill) >= case.rated_pressure_pa:
+            if (m.fill_pa if m.fill_pa is not None else m.isochore(t_fill)) >= case.rated_pressure_pa:
                 return True
         except NotApplicable:
             return True

@@ -1,7 +1,10 @@
 """Screen many vessels at once: the batch engine.
 
-Rows are grouped by gas. For a pure permanent gas filled by pressure, with one plain exposure and no
-tolerances, both temperatures above the critical temperature (the "vectorised path"):
+Rows are grouped by gas. For a pure permanent gas filled by pressure, with one exposure (in the sun or
+not) and no tolerances, both temperatures above the critical temperature (the "vectorised path"):
+
+* a row in the sun gets its worst case from :func:`screening.screen._worst_case_temperature` (the energy
+  balance, per row and cheap), with its basis, balance and warnings; the rest of the row runs on the arrays;
 
 * the ideal and generalized models run as numpy arrays over every row of the group (no Python loop
   per row; the Lee–Kesler functions of :mod:`screening.physics.eos.generalized` are array functions);
@@ -9,8 +12,9 @@ tolerances, both temperatures above the critical temperature (the "vectorised pa
   ``pressures()`` loop, and ``density()`` for the fill state);
 * the limits are solved without the per-row scalar scan: on the generalized model by inverting the
   isochore at the target pressure (a vectorised secant on T, and density-at-pressure for the fill
-  limit), on the reference model by a few vectorised secant steps through ``pressures()`` started from
-  the generalized answer, and only where the reference limit can be the lower one;
+  limit), on the reference model by a bracketed solve (Illinois) through ``pressures()`` inside the
+  equation's range, with screen._root's scan where the range ends inside its bracket, and only where the
+  reference limit can be the lower one;
 * the dry-out temperature (where the isochore meets the saturation dome) by a per-fluid table of the
   saturated-vapour density and a few secant steps;
 * verdicts through :func:`screening.screen.decide`, the one place that decides a verdict.
@@ -18,7 +22,7 @@ tolerances, both temperatures above the critical temperature (the "vectorised pa
 Everything else goes through :func:`screening.screen.screen_case` one row at a time, on purpose: liquefiable
 and dissolved gases and mixtures (their phase is checked per row by two routes, see physics.mixtures),
 mass fills, fills denser than critical (liquid-full analysis), two-phase or near-critical fills,
-tolerances and sun exposure, and any row where a vectorised step is not sure of itself (a root next to
+tolerances and several scenarios, and any row where a vectorised step is not sure of itself (a root next to
 the edge of a model's range, a solve that did not settle). Those rows give exactly the single-case result.
 
 The result of a row has the keys of ``screen_case``; its numbers agree with it to the solve tolerance
@@ -77,9 +81,34 @@ def vectorisable(case: Case) -> bool:
     if getattr(case, "tolerance", None) is not None:
         return False
     scenarios = getattr(case, "scenarios", ())
-    if len(scenarios) > 1 or any(getattr(s, "solar", "none") != "none" for s in scenarios):
+    if len(scenarios) > 1 or any(getattr(s, "solar", "none") not in ("none", "sun") for s in scenarios):
         return False
     return True
+
+
+@dataclass
+class SunRow:
+    """A row in the sun: its worst case as screen._worst_case_temperature finds it (the energy balance is per
+    row and cheap), so that the rest of the row runs on the arrays: the basis in words, the balance and the
+    warnings of that step (in the single screening's order)."""
+
+    basis: str
+    balance: dict
+    warnings: list
+    t_exposure: float       # the highest exposure temperature [K] (before the fill state is considered)
+
+
+def _sun_row(case: Case) -> SunRow | None:
+    """The worst case of a row with one scenario in the sun; None for other rows. Raises InputError as the
+    single screening does (the row then goes per row, which raises it again in its place)."""
+    sc = case.scenarios[0] if getattr(case, "scenarios", ()) else None
+    if sc is None or getattr(sc, "solar", "none") != "sun":
+        return None
+    warnings: list = []
+    _t, basis, balance = _screen._worst_case_temperature(case, sc, warnings)
+    t_exposure = max(t for t in (sc.gas_temperature_k, sc.ambient_max_k, balance["wall_temperature_k"])
+                     if t is not None)
+    return SunRow(basis, balance, warnings, t_exposure)
 
 
 # ----------------------------------------------------------------------------- helpers
@@ -306,6 +335,51 @@ def _scan_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray
     return out
 
 
+def _increasing_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np.ndarray, lo: np.ndarray,
+                     mid: np.ndarray, f_mid: np.ndarray, hi: np.ndarray, top: float) -> tuple[np.ndarray, np.ndarray]:
+    """Per row, the root screen._root finds for an increasing f(x, rows) on [lo, hi] (NaN: none), where f is
+    known at an inside point mid (f_mid) and can be evaluated only up to `top` (a model's range).
+
+    As there: where hi <= top, the root is the one inside [lo, hi] (none where f(lo) > 0 or f(hi) < 0); where
+    hi > top, screen._root scans np.linspace(lo, hi, _SCAN_N) and finds the root only inside a scan interval
+    whose ends it can evaluate, so a root in the interval that holds `top` is none as well. The solve is
+    bracketed on [mid, min(hi, top)] or [lo, mid] (Illinois, to _SECANT_RTOL); where f cannot be evaluated at
+    that bracket's end, by screen._root's scan (:func:`_scan_root`). Returns (root, ok): ok False where the
+    bracketed solve met a point it could not evaluate (those rows go per row).
+    """
+    m = rows.size
+    root = np.full(m, np.nan)
+    ok = np.ones(m, dtype=bool)
+    end = np.minimum(hi, top)
+    root[f_mid == 0.0] = mid[f_mid == 0.0]
+    for up in (True, False):
+        k = np.flatnonzero((f_mid < 0.0) if up else (f_mid > 0.0))
+        if k.size == 0:
+            continue
+        x_end = end[k] if up else lo[k]
+        f_end = f(x_end, rows[k])
+        bad = ~np.isfinite(f_end)
+        if bad.any():   # an end outside the model's range (e.g. above its highest pressure): screen._root scans
+            kb = k[bad]
+            root[kb] = _scan_root(lambda x, ix, sub=rows[kb]: f(x, sub[ix]), lo[kb], hi[kb])
+        at_end = ~bad & (f_end == 0.0)
+        root[k[at_end]] = x_end[at_end]
+        go = ~bad & ((f_end > 0.0) if up else (f_end < 0.0))
+        g = k[go]
+        if g.size:
+            a, b = (mid[g], x_end[go]) if up else (x_end[go], mid[g])
+            fa, fb = (f_mid[g], f_end[go]) if up else (f_end[go], f_mid[g])
+            r = _illinois(f, a, b, fa, fb, rows[g])
+            ok[g[~np.isfinite(r)]] = False
+            root[g] = r
+    # beyond `top` screen._root scans: a root in a scan interval that reaches past `top` is not found
+    past = np.flatnonzero(ok & np.isfinite(root) & (hi > top))
+    if past.size:
+        _a, b = _linspace_bracket(lo[past], hi[past], root[past])
+        root[past[b > top]] = np.nan
+    return root, ok
+
+
 # ----------------------------------------------------------------------------- one gas group
 
 @dataclass
@@ -323,13 +397,18 @@ class Rows:
     margin_req: np.ndarray
 
     @staticmethod
-    def of_cases(cases: list[Case]) -> "Rows":
+    def of_cases(cases: list[Case], sun: list[SunRow | None] | None = None) -> "Rows":
+        """The rows of cases; a row in the sun (``sun[k]``) enters with its highest exposure temperature as
+        the gas temperature and no ambient (its basis and warnings are the SunRow's)."""
         sc = [c.scenarios[0] if getattr(c, "scenarios", ()) else c for c in cases]
+        sun = sun or [None] * len(cases)
         nan = math.nan
         return Rows(cases[0].gas, np.array([c.fill_pressure_pa for c in cases], dtype=float),
                     np.array([c.fill_temperature_k for c in cases], dtype=float),
-                    np.array([nan if s.ambient_max_k is None else s.ambient_max_k for s in sc], dtype=float),
-                    np.array([nan if s.gas_temperature_k is None else s.gas_temperature_k for s in sc], dtype=float),
+                    np.array([nan if (s.ambient_max_k is None or u is not None) else s.ambient_max_k
+                              for s, u in zip(sc, sun)], dtype=float),
+                    np.array([u.t_exposure if u is not None else nan if s.gas_temperature_k is None
+                              else s.gas_temperature_k for s, u in zip(sc, sun)], dtype=float),
                     np.array([c.rated_pressure_pa for c in cases], dtype=float),
                     np.array([c.site.atmospheric_pressure_pa for c in cases], dtype=float),
                     np.array([c.required_margin for c in cases], dtype=float))
@@ -587,7 +666,8 @@ def _columns(rows: Rows) -> dict:
     t_ref = np.full(n, np.nan)
     if live.size:
         need = live.copy()
-        with_lk = np.isfinite(t_lk[live])
+        top = np.minimum(t_hi, fluid.t_max)     # the reference equation's range caps the scan
+        with_lk = np.isfinite(t_lk[live]) & (t_lk[live] <= top[live])
         if with_lk.any():
             j = live[with_lk]
             pj, vj, _ = fluid.pressures(rho_ref[j], t_lk[j])
@@ -600,18 +680,10 @@ def _columns(rows: Rows) -> dict:
                 p, _v, _r = fluid.pressures(rho_ref[ix], t)
                 return p / rated[ix] - 1.0
 
-            x0 = t_peak[need]
-            f0 = peak_ref[need] / rated[need] - 1.0
-            x1 = np.where(np.isfinite(t_lk[need]), t_lk[need], t_peak[need] * rated[need] / peak_ref[need])
-            x1 = np.where(np.abs(x1 - x0) < 1e-6 * x0, x0 * (1 + 1e-3), x1)
-            root, conv = _secant(f_ref, x0, f0, x1, need)
-            fallback[need[~conv]] = True
-            root = _settle_edges(lambda t, ix: f_ref(t, need[ix]) * rated[need[ix]], root, conv, t_lo[need],
-                                 t_hi[need])
-            inside = conv & (root >= t_lo[need]) & (root <= t_hi[need])
-            _a, b = _linspace_bracket(t_lo[need], t_hi[need], root)
-            fallback[need[inside & (b > fluid.t_max)]] = True
-            t_ref[need[inside]] = root[inside]
+            root, ok = _increasing_root(f_ref, need, t_lo[need], t_peak[need], peak_ref[need] / rated[need] - 1.0,
+                                        t_hi[need], fluid.t_max)
+            fallback[need[~ok]] = True
+            t_ref[need[ok]] = root[ok]
     out["max_t"] = np.fmin(t_lk, t_ref)
 
     # reference: max fill pressure, density at the target on the peak isochore, then its fill pressure
@@ -688,7 +760,7 @@ def _verdict(cols: dict, k: int, molar_mass: float, rated: float, relief: float 
             "applicable": [nm for nm, _ in applicable]}
 
 
-def _assemble(case: Case, cols: dict, k: int, v: dict | None = None) -> dict:
+def _assemble(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:
     """One row's result dict, laid out as screen.screen_case lays out a single-scenario result."""
     gas = case.gas
     fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
@@ -697,6 +769,8 @@ def _assemble(case: Case, cols: dict, k: int, v: dict | None = None) -> dict:
     if v is None:
         v = _verdict(cols, k, gas.molar_mass, case.rated_pressure_pa, case.relief_set_pressure_pa, atm, case.required_margin,
                      case.max_filling_ratio_kg_m3, getattr(sc, "name", None))
+    if sun is not None:   # the worst-case step's warnings (screen._worst_case_temperature), then the models'
+        v = {**v, "warnings": list(sun.warnings) + [w for w in v["warnings"] if w["code"] == "models-disagree"]}
     t_fill, t_peak = float(case.fill_temperature_k), float(cols["t_peak"][k])
     rho_molar = float(cols["rho_molar"][k])
     rho_mass = rho_molar * gas.molar_mass
@@ -771,7 +845,7 @@ def _assemble(case: Case, cols: dict, k: int, v: dict | None = None) -> dict:
                  "phase": phase, "filling_ratio_kg_per_l": rho_mass / 1000.0 if rho_mass else None,
                  "vapour_pressure_pa": None, "given": "pressure"},
         "worst_case_temperature_k": t_peak,
-        "worst_case_basis": (_screen.FILL_STATE_BASIS if cols["fill_governs"][k] else
+        "worst_case_basis": (sun.basis if sun is not None else _screen.FILL_STATE_BASIS if cols["fill_governs"][k] else
                              "gas temperature stated in the case" if cols["stated"][k] else "ambient maximum"),
         "models": models,
         "peak_pressure_pa": peak, "nominal_peak_pressure_pa": peak, "tolerance": None,
@@ -790,11 +864,12 @@ def _assemble(case: Case, cols: dict, k: int, v: dict | None = None) -> dict:
         keys = ("verdict", "reasons", "worst_case_temperature_k", "worst_case_basis", "peak_pressure_pa",
                 "nominal_peak_pressure_pa", "governing_model", "margin_fraction", "relief_margin_fraction",
                 "limits", "tolerance")
-        result["scenarios"] = [{"name": name, **{k2: result[k2] for k2 in keys}, "exposure": None,
+        balance = sun.balance if sun is not None else None
+        result["scenarios"] = [{"name": name, **{k2: result[k2] for k2 in keys}, "exposure": balance,
                                 "models": {nm: {"applicable": m["applicable"], "peak_pressure_pa": m["peak_pressure_pa"]}
                                            for nm, m in models.items()}, "governing": True}]
         result["governing_scenario"] = name
-        result["exposure"] = None
+        result["exposure"] = balance
     return result
 
 
@@ -830,13 +905,20 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
     results: list[dict | None] = [None] * len(cases)
     groups: dict[str, list[int]] = {}
     rest: list[int] = []
+    sun: dict[int, SunRow | None] = {}
     for i, c in enumerate(cases):
         if vectorisable(c):
+            try:
+                sun[i] = _sun_row(c)
+            except InputError:
+                rest.append(i)      # the per-row path raises it again, in its place
+                continue
             groups.setdefault(c.gas.name, []).append(i)
         else:
             rest.append(i)
     names = list(groups)
-    all_cols = _run_columns([Rows.of_cases([cases[i] for i in groups[nm]]) for nm in names])
+    all_cols = _run_columns([Rows.of_cases([cases[i] for i in groups[nm]], [sun[i] for i in groups[nm]])
+                             for nm in names])
     for nm, cols in zip(names, all_cols):
         idx = groups[nm]
         done = 0
@@ -844,7 +926,7 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
             if cols["fallback"][k]:
                 rest.append(i)
             else:
-                results[i] = _assemble(cases[i], cols, k)
+                results[i] = _assemble(cases[i], cols, k, sun=sun[i])
                 done += 1
         if progress:
             progress(done)
