@@ -555,9 +555,9 @@ def run(args) -> int:
             if args.pdf:
                 from screening.outputs.batch_report import render_batch_report
 
-                render_batch_report(pdf_rows, args.pdf, source=reg.source, all_details=args.all_details,
-                                    report_date=args.date, quiet=args.quiet,
-                                    full=lambda i: pdf_full.get(i, pdf_rows[i]))
+                render_batch_report(pdf_rows, args.pdf, source=os.path.basename(reg.source),
+                                    all_details=args.all_details, report_date=args.date, quiet=args.quiet,
+                                    full=lambda i: pdf_full.get(i, pdf_rows[i]), inputs=vars(args))
     except parallel.WorkerLost as exc:
         if bar:
             bar.close()
