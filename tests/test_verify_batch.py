@@ -129,7 +129,7 @@ def test_an_altered_inventory_is_reported_as_differing(made, tmp_path, capsys):
     sha = [k for k, ln in enumerate(lines) if "inventory SHA-256" in ln][0]
     assert lines[sha + 1].rstrip().endswith("DIFFERENT")
     assert "within 0" in [ln for ln in lines if "re-run:" in ln and "within" in ln][0]
-    assert "listing            DIFFERENT" in out and "re-run row 2 (id N2-LOW) over" in out
+    assert "listing            DIFFERENT" in out and "row 2 (id N2-LOW): attached within; re-run over" in out
     assert "pages are the ones this version renders from them: NO" in out
 
 
@@ -190,3 +190,15 @@ def test_another_version_re_runs_the_counts_but_does_not_check_the_pages(made, m
 
 def _version_of(pdf: Path) -> str:
     return json.loads(_attachments(pdf)["inv.batch.json"])["tool_version"]
+
+
+def test_control_characters_in_an_attached_run_record_are_shown_not_obeyed(made, tmp_path, capsys):
+    got = _attachments(made["pdf"])
+    record = json.loads(got["inv.batch.json"])
+    record["listing"][2][1] = "N2-\x1b[2J\u202eWOL"      # a terminal clear-screen and a right-to-left override
+    got["inv.batch.json"] = json.dumps(record).encode()
+    pdf = _rebuilt(made["pdf"], got, tmp_path / "escapes.pdf")
+    code, out = _verify(pdf, capsys)
+    assert code == 1 and "the attached inventory screens again to the same counts and listing: NO" in out
+    assert "\x1b" not in out and "\u202e" not in out
+    assert "N2-\\u001b[2J\\u202eWOL" in out

@@ -11,9 +11,16 @@
    tool version and a report date; otherwise it is said that the pages were not checked.
 
 ``agree`` is True only when both hold. A report of this tool carries exactly two attachments (the case
-file and its ``*.result.json``); more or fewer are named in the message. A batch report carries no
-attachment to re-run: the message says what cannot be checked. A file that is not a PDF, a directory,
-a PDF without a result attachment or with two raise InputError.
+file and its ``*.result.json``); more or fewer are named in the message. A file that is not a PDF, a
+directory, a PDF without a result attachment or with two raise InputError.
+
+A batch report carries the inventory, the defaults file (if one was used) and a run record
+``*.batch.json`` (see ``screening.outputs.batch_report``). Its three statements: the attachments are the
+ones a batch report carries (missing, extra and second copies named); the attached inventory screens again,
+through ``screening.batch`` in a temporary folder with the recorded options, to the recorded counts and
+listing (rows, ids and verdicts, worst first); the pages are the ones this version renders from them (at
+the recorded report date; the folder written before the inventory's name is not compared). A batch report
+without a run record, or with a single report's attachments, is said to be so and does not agree.
 
 What this proves: the document's numbers follow from the attached case through this version of the tool,
 and its pages say what this version would print. What it does not: who made the document, or that the
@@ -29,6 +36,7 @@ import json
 import logging
 import math
 import re
+import unicodedata
 from pathlib import Path
 
 from screening.errors import InputError
@@ -272,10 +280,10 @@ def verify_report(pdf_path: str | Path) -> tuple[bool, str]:
         return _verify_batch(pdf, pdf_path)
     has_result = any(n.endswith(RESULT_SUFFIX) for n in pdf.copies)
     if has_result and pdf.title.startswith(BATCH_TITLE):
-        return False, _single_in_batch_message(pdf, pdf_path)
+        return False, "\n".join(map(_visible, _single_in_batch_message(pdf, pdf_path).split("\n")))
     if not has_result and (
             pdf.title.startswith(BATCH_TITLE) or any("INVENTORY" in t[:200] for t in pdf.page_texts()[:1])):
-        return False, _batch_message(pdf, pdf_path)
+        return False, "\n".join(map(_visible, _batch_message(pdf, pdf_path).split("\n")))
     case_name, case_text, attached, notes = _case_and_result(pdf, pdf_path)
 
     from screening import __version__
@@ -344,28 +352,48 @@ def _counts_text(counts) -> str:
     return ", ".join(f"{v} {counts.get(v, 0)}" for v in ORDER)
 
 
+def _visible(text) -> str:
+    """`text` with control and format characters (ANSI escapes, bidirectional overrides) as visible escapes."""
+    return "".join(c if unicodedata.category(c) not in ("Cc", "Cf") else f"\\u{ord(c):04x}" for c in str(text))
+
+
+def _row_name(row, ident) -> str:
+    return f"row {_visible(row)} (id {_visible(ident) if ident not in (None, '') else '-'})"
+
+
 def _row_text(entry) -> str:
     if not (isinstance(entry, list) and len(entry) == 3):
         return repr(entry)
-    row, ident, verdict = entry
-    return f"row {row} (id {ident if ident not in (None, '') else '-'}) {verdict}"
+    return f"{_row_name(entry[0], entry[1])} {_visible(entry[2])}"
 
 
 def _listing_diff(attached: list, again: list) -> list[str]:
-    """Lines saying where the attached listing and the re-run's differ (none when they are the same)."""
+    """Lines saying where the attached listing and the re-run's differ (none when they are the same): the
+    rows whose verdict changed, rows only in one of them, then (where those agree) places out of order."""
     if attached == again:
         return []
+
+    def by_row(listing: list) -> dict:
+        return {(e[0], e[1]): e[2] for e in listing if isinstance(e, list) and len(e) == 3
+                and isinstance(e[0], int) and (e[1] is None or isinstance(e[1], str))}
+
+    was, now = by_row(attached), by_row(again)
     lines = []
     if len(attached) != len(again):
         lines.append(f"the attached listing has {len(attached)} rows, the re-run {len(again)}")
-    differing = [k for k in range(max(len(attached), len(again)))
-                 if k >= len(attached) or k >= len(again) or attached[k] != again[k]]
-    for k in differing[:LISTING_SHOWN]:
-        was = _row_text(attached[k]) if k < len(attached) else "nothing"
-        now = _row_text(again[k]) if k < len(again) else "nothing"
-        lines.append(f"place {k + 1}: attached {was}; re-run {now}")
+    changed = [f"{_row_name(*k)}: attached {_visible(was[k])}; re-run {now[k]}"
+               for k in was if k in now and was[k] != now[k]]
+    gone = [f"{_row_text([k[0], k[1], was[k]])}: in the attached listing only" for k in was if k not in now]
+    new = [f"{_row_text([k[0], k[1], now[k]])}: in the re-run only" for k in now if k not in was]
+    differing = changed + gone + new
+    if not differing:               # the same rows and verdicts, in another order (or entries unreadable)
+        places = [k for k in range(max(len(attached), len(again)))
+                  if k >= len(attached) or k >= len(again) or attached[k] != again[k]]
+        differing = [f"place {k + 1}: attached {_row_text(attached[k]) if k < len(attached) else 'nothing'}; "
+                     f"re-run {_row_text(again[k]) if k < len(again) else 'nothing'}" for k in places]
+    lines += differing[:LISTING_SHOWN]
     if len(differing) > LISTING_SHOWN:
-        lines.append(f"... and {len(differing) - LISTING_SHOWN} more places differ")
+        lines.append(f"... and {len(differing) - LISTING_SHOWN} more")
     return lines
 
 
@@ -511,7 +539,7 @@ def _verify_batch(pdf: _Pdf, pdf_path) -> tuple[bool, str]:
             pages_ok, pages_detail = _compare_pages(
                 [_without_folders(t, names) for t in _page_texts(PdfReader(io.BytesIO(fresh)))],
                 [_without_folders(t, names) for t in pdf.page_texts()], date)
-            pages_detail += " (the folder shown before the inventory's name is not compared)"
+            pages_detail += "; the folder shown before the inventory's name is not compared"
 
     def said(ok) -> str:
         return "yes" if ok is True else "NOT CHECKED" if ok is None else "NO"
@@ -527,4 +555,4 @@ def _verify_batch(pdf: _Pdf, pdf_path) -> tuple[bool, str]:
              f"  pages are the ones this version renders from them: {said(pages_ok)}",
              f"    {pages_detail}",
              f"  ({_NOT_A_SIGNATURE_BATCH})"]
-    return agree, "\n".join(lines)
+    return agree, "\n".join(_visible(line) for line in lines)  # what the attachments say is shown, never obeyed
