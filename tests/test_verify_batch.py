@@ -202,3 +202,9 @@ def test_control_characters_in_an_attached_run_record_are_shown_not_obeyed(made,
     assert code == 1 and "the attached inventory screens again to the same counts and listing: NO" in out
     assert "\x1b" not in out and "\u202e" not in out
     assert "N2-\\u001b[2J\\u202eWOL" in out
+
+
+def test_verify_and_the_batch_report_name_the_run_record_alike():
+    from screening.outputs import batch_report, verify
+
+    assert verify.RUN_SUFFIX == batch_report.RUN_SUFFIX

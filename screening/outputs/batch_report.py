@@ -373,16 +373,24 @@ def _batch_attachments(results: list[dict], inputs: dict, all_details: bool,
     from pathlib import Path
 
     from screening import __version__
+    from screening.errors import InputError
 
     def name_of(path) -> str:
         return Path(str(path).replace("\\", "/")).name
 
+    def read(path, what: str) -> bytes:
+        try:
+            return Path(path).read_bytes()
+        except OSError as exc:
+            raise InputError(f"cannot read the {what} again to attach it to the PDF: {exc.strerror or exc}",
+                             file=str(path)) from None
+
     inv = Path(inputs["inventory"])
-    inv_bytes = inv.read_bytes()
+    inv_bytes = read(inv, "inventory")
     out = [(name_of(inv), inv_bytes, "Inventory as entered")]
     defaults = None
     if inputs.get("defaults"):
-        d_bytes = Path(inputs["defaults"]).read_bytes()
+        d_bytes = read(inputs["defaults"], "defaults file")
         d_name = name_of(inputs["defaults"])
         if d_name == out[0][0]:
             d_name = "defaults-" + d_name
