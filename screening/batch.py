@@ -559,10 +559,11 @@ def run(args) -> int:
                 from screening.outputs.batch_report import render_batch_report, row_texts
 
                 texts = row_texts(Inventory(reg.source, reg.columns, pdf_cells), defaults)
-                render_batch_report(pdf_rows, args.pdf, source=reg.source, all_details=args.all_details,
+                render_batch_report(pdf_rows, args.pdf, source=os.path.basename(reg.source), all_details=args.all_details,
                                     report_date=args.date, quiet=args.quiet,
                                     full=lambda i: pdf_full.get(i, pdf_rows[i]),
-                                    site=getattr(args, "site", None), texts=texts)
+                                    site=getattr(args, "site", None), texts=texts,
+                                    inputs=vars(args))
     except parallel.WorkerLost as exc:
         if bar is not None:
             bar.close()

@@ -34,7 +34,8 @@ EXIT_HELP = {
              "with --pdf, are still written); 2 input error or a report that could not be written.",
     "report": "exit codes: 0 within rating; 1 the report was written but the verdict is low-margin, over or\n"
               "out-of-scope; 2 input error or a report that could not be written (nothing written).",
-    "verify": "exit codes: 0 the attachments re-run to the same verdict and peak; 1 they do not;\n"
+    "verify": "exit codes: 0 everything verify checks holds (the attachments re-run to the same answer and\n"
+              "the pages are the ones this version renders); 1 any of it does not, or cannot be checked;\n"
               "2 not a readable report of this tool.",
     "gases": "exit codes: 0.",
     "batch": "exit codes: 0 every row within rating; 1 any row low-margin, over, out-of-scope or an\n"
@@ -77,9 +78,10 @@ def _build() -> argparse.ArgumentParser:
     r.add_argument("-o", "--output", required=True, metavar="OUT.pdf", help="PDF to write")
     r.add_argument("--date", type=_date, help="report date (YYYY-MM-DD; default today)")
 
-    v = sub.add_parser("verify", help="re-run the case attached to a report and compare", epilog=EXIT_HELP["verify"],
+    v = sub.add_parser("verify", help="re-run what a report or batch report carries and compare", epilog=EXIT_HELP["verify"],
                        formatter_class=argparse.RawDescriptionHelpFormatter)
-    v.add_argument("report", help="a PDF written by 'screening check --pdf' or 'screening report'")
+    v.add_argument("report", help="a PDF written by 'screening check --pdf', 'screening report' or "
+                   "'screening batch --pdf'")
 
     sub.add_parser("gases", help="list the gas library with its sources", epilog=EXIT_HELP["gases"],
                    formatter_class=argparse.RawDescriptionHelpFormatter)

@@ -125,13 +125,18 @@ def test_a_report_of_another_version_has_its_attachments_rerun_and_its_pages_lef
     assert "pages are the ones this version renders from them: NOT CHECKED" in message
 
 
-def test_a_batch_report_says_what_cannot_be_checked(tmp_path, capsys):
+def test_a_batch_report_without_attachments_says_what_cannot_be_checked(tmp_path, capsys):
+    # a batch report carries its inventory and run record (tests/test_verify_batch.py); one without them
+    # (an earlier version's, the web page's, or with its attachments removed) cannot be re-run
+    from screening.batch import run_inventory
+    from screening.inputs.inventory import read_inventory
+    from screening.outputs.batch_report import render_batch_report
+
     inv = tmp_path / "inv.csv"
     inv.write_text("id,gas,water_capacity,rated_pressure,fill_pressure,fill_temperature,ambient_max\n"
                    "A,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC\n", encoding="utf-8")
-    pdf = tmp_path / "b.pdf"
-    with pytest.raises(SystemExit):
-        main(["batch", str(inv), "--pdf", str(pdf), "--quiet", "--date", "2026-12-01"])
+    pdf = render_batch_report(run_inventory(read_inventory(inv)), tmp_path / "b.pdf", source="inv.csv",
+                              report_date=DATE)
     capsys.readouterr()
     with pytest.raises(SystemExit) as exc:
         main(["verify", str(pdf)])

@@ -20,6 +20,7 @@ from __future__ import annotations
 import datetime as _dt
 import hashlib
 import io
+import json
 import os
 from pathlib import PurePath
 
@@ -419,33 +420,93 @@ def _detail_results(results: list[dict], all_details: bool, full) -> dict[int, d
     return out
 
 
-def _render_with_details(results: list[dict], details: dict, source: str, all_details: bool,
-                         report_date: _dt.date | None, site: str | None = None) -> bytes:
-    return render_batch_pdf_bytes(results, source=source, all_details=all_details, report_date=report_date,
-                                  full=details.__getitem__, site=site)
+#: The run record a batch PDF carries beside its inventory ends so (a single report's result: ".result.json").
+RUN_SUFFIX = ".batch.json"
+#: The command options recorded in the run record, as the batch reads them from its arguments.
+RUN_OPTIONS = ("sheet", "decimal", "sort", "all_details", "site")
+
+
+def run_listing(results: list[dict]) -> dict:
+    """What the run record says of the results: row count, counts by verdict, and the listing (row, id,
+    verdict) in the document's order, worst first."""
+    from screening.batch import ranked, summary
+
+    s = summary(results)
+    return dict(rows=s["rows"], counts=s["counts"],
+                listing=[[r["row"], r.get("id"), r["verdict"]] for r in ranked(results)])
+
+
+def _batch_attachments(results: list[dict], inputs: dict, all_details: bool,
+                       report_date: _dt.date) -> list[tuple[str, bytes, str]]:
+    """(name, bytes, description) of what the batch PDF was made from: the inventory file, the defaults
+    file if one was given (each under its file name only), and the run record (JSON)."""
+    from pathlib import Path
+
+    from screening import __version__
+    from screening.errors import InputError
+
+    def name_of(path) -> str:
+        return Path(str(path).replace("\\", "/")).name
+
+    def read(path, what: str) -> bytes:
+        try:
+            return Path(path).read_bytes()
+        except OSError as exc:
+            raise InputError(f"cannot read the {what} again to attach it to the PDF: {exc.strerror or exc}",
+                             file=str(path)) from None
+
+    inv = Path(inputs["inventory"])
+    inv_bytes = read(inv, "inventory")
+    out = [(name_of(inv), inv_bytes, "Inventory as entered")]
+    defaults = None
+    if inputs.get("defaults"):
+        d_bytes = read(inputs["defaults"], "defaults file")
+        d_name = name_of(inputs["defaults"])
+        if d_name == out[0][0]:
+            d_name = "defaults-" + d_name
+        out.append((d_name, d_bytes, "Defaults file as entered"))
+        defaults = dict(name=d_name, sha256=hashlib.sha256(d_bytes).hexdigest())
+    options = {k: inputs.get(k) for k in RUN_OPTIONS}
+    options["all_details"] = bool(all_details)
+    record = dict(record="screening batch run", tool_version=__version__, report_date=report_date.isoformat(),
+                  inventory=dict(name=out[0][0], sha256=hashlib.sha256(inv_bytes).hexdigest()),
+                  defaults=defaults, options=options, **run_listing(results))
+    text = json.dumps(record, ensure_ascii=False, allow_nan=False, separators=(",", ":"))
+    out.append((Path(out[0][0]).stem + RUN_SUFFIX, text.encode("utf-8"),
+                "Batch run: tool version, report date, options, counts and listing (JSON)"))
+    return out
+
+
+def _attach(pdf: bytes, attachments: list[tuple[str, bytes, str]]) -> bytes:
+    """The PDF with the attachments added as an incremental update (its pages untouched)."""
+    from pypdf import PdfReader, PdfWriter
+    from pypdf.generic import TextStringObject
+
+    writer = PdfWriter(PdfReader(io.BytesIO(pdf)), incremental=True)
+    for name, data, description in attachments:
+        writer.add_attachment(name, data).description = TextStringObject(description)
+    out = io.BytesIO()
+    writer.write(out)
+    return out.getvalue()
 
 
 def render_batch_report(results: list[dict], out_path, *, source: str, all_details: bool = False,
-                        report_date: _dt.date | None = None, quiet: bool = True, full=None, standby=None,
-                        site: str | None = None, texts: dict | None = None):
+                        report_date: _dt.date | None = None, quiet: bool = True, full=None,
+                        site: str | None = None, texts: dict | None = None, inputs: dict | None = None):
     """Write the batch PDF atomically (temporary file beside the target, then moved into place).
 
-    `standby`, where given, is a `parallel.Standby` that has imported the layout engine while the batch
-    screened (`screening.batch.RENDER_MODULES`): the document is laid out there. If it gives no answer, it is laid out here."""
+    `inputs`, where given, are the batch's arguments (``inventory``, ``defaults`` paths and the options in
+    RUN_OPTIONS): the PDF then carries the inventory, the defaults file and a run record, so that
+    `screening verify` can screen the inventory again and compare."""
     from screening.outputs.files import atomic_writer, check_target
 
     check_target(out_path, "PDF report")
     results = _with_texts(results, texts)
-    pdf = None
-    if standby is not None:
-        details = _detail_results(results, all_details, full)
-        try:
-            pdf = standby.call(_render_with_details, results, details, source, all_details, report_date, site)
-        except parallel.StandbyGone:
-            pdf = None
-    if pdf is None:
-        pdf = render_batch_pdf_bytes(results, source=source, all_details=all_details, report_date=report_date,
-                                     full=full, site=site)
+    report_date = report_date or _dt.date.today()
+    pdf = render_batch_pdf_bytes(results, source=source, all_details=all_details, report_date=report_date,
+                                 full=full, site=site)
+    if inputs is not None:
+        pdf = _attach(pdf, _batch_attachments(results, inputs, all_details, report_date))
     with atomic_writer(out_path, "PDF report", binary=True) as fh:
         fh.write(pdf)
     return out_path
