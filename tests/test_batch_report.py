@@ -3,7 +3,6 @@ document whose pages are numbered as if it had been laid out whole."""
 
 import datetime as dt
 import io
-import os
 import re
 
 import pytest
@@ -31,10 +30,6 @@ def inventory(tmp_path, n_over=4, n_within=6, long_id=False):
     p = tmp_path / "inv.csv"
     p.write_text("".join(lines), encoding="utf-8")
     return run_inventory(read_inventory(p))
-
-
-def _die(*args):
-    os._exit(1)
 
 
 def page_texts(pdf: bytes) -> list[str]:
@@ -101,18 +96,6 @@ def test_a_short_document_is_one_part(tmp_path, monkeypatch):
     monkeypatch.setattr(br, "_render_part", lambda spec: pytest.fail("a short document needs no parts"))
     texts = page_texts(br.render_batch_pdf_bytes(rs, source="inv.csv", report_date=DATE))
     assert footers(texts) == [(k, len(texts)) for k in range(1, len(texts) + 1)]
-
-
-def test_a_standby_renderer_writes_the_same_document(tmp_path, monkeypatch):
-    rs = inventory(tmp_path, n_over=2, n_within=2)
-    out_here, out_there = tmp_path / "here.pdf", tmp_path / "there.pdf"
-    br.render_batch_report(rs, out_here, source="inv.csv", report_date=DATE)
-    br.render_batch_report(rs, out_there, source="inv.csv", report_date=DATE, standby=parallel.Standby(()))
-    assert out_here.read_bytes() == out_there.read_bytes()
-    # a standby that gives no answer: the document is laid out here
-    monkeypatch.setattr(br, "_render_with_details", _die)
-    br.render_batch_report(rs, out_there, source="inv.csv", report_date=DATE, standby=parallel.Standby(()))
-    assert out_here.read_bytes() == out_there.read_bytes()
 
 
 def test_the_chart_caption_describes_the_chart_drawn(tmp_path, monkeypatch):
