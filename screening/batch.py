@@ -16,7 +16,6 @@ from __future__ import annotations
 
 import heapq
 import json
-import math
 import os
 import pickle
 import sys
@@ -25,8 +24,8 @@ import tempfile
 from screening.errors import InputError
 from screening.inputs.inventory import Inventory, load_defaults, open_inventory, read_inventory, row_case
 from screening.outputs.files import atomic_writer, check_target
+from screening.outputs.listing import ORDER, cells, ranked, severity_key, summary
 from screening.outputs.tables import (
-    SEVERITY,
     CsvTable,
     XlsxTable,
     file_units,
@@ -34,12 +33,8 @@ from screening.outputs.tables import (
     result_headers,
     result_values,
 )
-from screening.units import format_percent, format_pressure, format_temperature
 
 EXIT_WITHIN, EXIT_NOT_WITHIN, EXIT_INPUT = 0, 1, 2
-#: The verdicts, most severe first: the order of the counts, of the terminal table and of --sort severity.
-ORDER = SEVERITY
-_RANK = {v: i for i, v in enumerate(ORDER)}
 #: Keys of a result left out of the JSON outputs (shared or bulky parts).
 _DROP = ("curves", "cautions")
 #: Rows screened as one piece of work (the unit of streaming and of the worker pool).
@@ -87,14 +82,14 @@ class BatchRun:
             self._plain_at[pos] = j
             slots[pos] = self._placed(pos, r, plain.case(j).id if r.get("verdict") == "input-error" else None)
         cases, where = [], []
-        for pos, (n, cells) in enumerate(inv.rows):
+        for pos, (n, row_cells) in enumerate(inv.rows):
             if slots[pos] is not None:
                 continue
             try:
-                cases.append(row_case(inv, n, cells, defaults))
+                cases.append(row_case(inv, n, row_cells, defaults))
                 where.append(pos)
             except InputError as exc:
-                cid = cells[id_col].strip() if id_col < len(cells) and cells[id_col].strip() else None
+                cid = row_cells[id_col].strip() if id_col < len(row_cells) and row_cells[id_col].strip() else None
                 slots[pos] = error_row(n, exc, cid)
         for pos, case, r in zip(where, cases, screen_cases(cases)):
             slots[pos] = self._placed(pos, r, case.id)
@@ -136,14 +131,14 @@ def _screened(inv: Inventory, defaults: dict | None) -> tuple[list[dict], object
             raise
     results, fulls = [], []
     id_col = _id_column(inv)
-    for n, cells in inv.rows:
-        one = Inventory(inv.source, inv.columns, [(n, cells)], inv.delimiter, inv.decimal, inv.sheet)
+    for n, row_cells in inv.rows:
+        one = Inventory(inv.source, inv.columns, [(n, row_cells)], inv.delimiter, inv.decimal, inv.sheet)
         try:
             run = BatchRun(one, defaults)
             results.append(run.results[0])
             fulls.append(run.full(0))
         except (InputError, ArithmeticError, ValueError) as exc:
-            cid = cells[id_col].strip() if id_col < len(cells) and cells[id_col].strip() else None
+            cid = row_cells[id_col].strip() if id_col < len(row_cells) and row_cells[id_col].strip() else None
             msg = exc.message if isinstance(exc, InputError) else f"the values cannot be screened ({exc})"
             err = InputError(msg, file=inv.source, row=n, column=getattr(exc, "column", None),
                              given=getattr(exc, "given", None), expected=getattr(exc, "expected", None)
@@ -199,25 +194,6 @@ def screen_chunk(job: tuple) -> list[tuple]:
 
 
 # ----------------------------------------------------------------------------- counts, order, table
-
-def severity_key(r: dict) -> tuple:
-    """Worst first: input-error, over, out-of-scope, low-margin, within; then lowest margin; then row."""
-    m = r.get("margin_fraction")
-    return (_RANK.get(r["verdict"], 0), m if m is not None else -math.inf, r["row"])
-
-
-def ranked(results: list[dict]) -> list[dict]:
-    """The results worst first (see severity_key)."""
-    return sorted(results, key=severity_key)
-
-
-def summary(results: list[dict]) -> dict:
-    counts = {v: 0 for v in ORDER}
-    for r in results:
-        counts[r["verdict"]] = counts.get(r["verdict"], 0) + 1
-    dups = sum(1 for r in results for w in r.get("warnings", []) if w.get("code") == "duplicate-id")
-    return {"rows": len(results), "counts": counts, "duplicate_ids": dups}
-
 
 def exit_code(results: list[dict]) -> int:
     return EXIT_WITHIN if results and all(r["verdict"] == "within" for r in results) else EXIT_NOT_WITHIN
@@ -296,28 +272,6 @@ class _Ids:
 
 
 # ----------------------------------------------------------------------------- display helpers
-
-def _units(r: dict) -> tuple[str, str, float]:
-    du = r.get("display_units") or {}
-    atm = (r.get("site") or {}).get("atmospheric_pressure_pa") or 101325.0
-    return du.get("pressure", "bar(g)"), du.get("temperature", "degC"), atm
-
-
-def cells(r: dict) -> dict:
-    """The row's figures as text in the user's units."""
-    if r["verdict"] == "input-error":
-        return {"peak": "", "rated": "", "margin": "", "t_max": "", "p_max": "", "gas": ""}
-    pu, tu, atm = _units(r)
-    lim = r.get("limits") or {}
-    return {
-        "peak": format_pressure(r["peak_pressure_pa"], pu, atm),
-        "rated": format_pressure(r["rated_pressure_pa"], pu, atm),
-        "margin": format_percent(r["margin_fraction"]),
-        "t_max": format_temperature(lim.get("max_gas_temperature_k"), tu),
-        "p_max": format_pressure(lim.get("max_fill_pressure_pa"), pu, atm),
-        "gas": (r.get("gas") or {}).get("name", ""),
-    }
-
 
 def _counts_line(s: dict) -> str:
     return "  ".join(f"{v}: {s['counts'][v]}" for v in ORDER) + f"  (rows: {s['rows']})"

@@ -32,6 +32,12 @@ class Verdict(StrEnum):
 _SEVERITY = {Verdict.WITHIN: 0, Verdict.LOW_MARGIN: 1, Verdict.OVER: 2, Verdict.OUT_OF_SCOPE: 3,
              Verdict.INPUT_ERROR: 4}
 
+#: The order of a listing of many vessels, worst first, as the trade reads it: a row that could not be read,
+#: then a vessel over its rating, then one that cannot be screened, then too close to the limit, then within.
+#: (Between the scenarios of one vessel, `severity` governs: one that cannot be established outweighs one that
+#: is over, since nothing is known of it.)
+LISTING_ORDER = (Verdict.INPUT_ERROR, Verdict.OVER, Verdict.OUT_OF_SCOPE, Verdict.LOW_MARGIN, Verdict.WITHIN)
+
 #: The verdicts a screening gives (every one but INPUT_ERROR), least severe first.
 SCREENED = (Verdict.WITHIN, Verdict.LOW_MARGIN, Verdict.OVER, Verdict.OUT_OF_SCOPE)
 

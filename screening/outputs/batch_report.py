@@ -164,7 +164,7 @@ def _detail(r: dict) -> dict:
 
 def _detail_positions(results: list[dict], all_details: bool) -> list[int]:
     """Positions in `results` of the rows that get a detail section, worst first."""
-    from screening.batch import ranked
+    from screening.outputs.listing import ranked
 
     position = {id(r): i for i, r in enumerate(results)}
     return [position[id(r)] for r in ranked(results) if all_details or r["verdict"] != "within"]
@@ -266,7 +266,7 @@ def site_name(results: list[dict], site: str | None = None) -> str | None:
 def _common(results: list[dict], *, source: str, all_details: bool, report_date: _dt.date,
             site: str | None = None) -> dict:
     """What every part of the document shares: title, counts, the listing's pages, cautions."""
-    from screening.batch import ORDER, cells, ranked, summary
+    from screening.outputs.listing import ORDER, cells, ranked, summary
 
     s = summary(results)
     rows = []
@@ -429,7 +429,7 @@ RUN_OPTIONS = ("sheet", "decimal", "sort", "all_details", "site")
 def run_listing(results: list[dict]) -> dict:
     """What the run record says of the results: row count, counts by verdict, and the listing (row, id,
     verdict) in the document's order, worst first."""
-    from screening.batch import ranked, summary
+    from screening.outputs.listing import ranked, summary
 
     s = summary(results)
     return dict(rows=s["rows"], counts=s["counts"],

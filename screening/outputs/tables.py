@@ -21,9 +21,10 @@ import re
 
 from screening.cautions import ASSUMPTIONS, CAUTION
 from screening.units import format_pressure, format_temperature, pressure_in, temperature_in
+from screening.verdicts import LISTING_ORDER
 
 #: The verdicts from the most severe to the least (the order of `--sort severity` and of the counts).
-SEVERITY = ("input-error", "over", "out-of-scope", "low-margin", "within")
+SEVERITY = tuple(str(v) for v in LISTING_ORDER)
 #: XLSX fill of the verdict cell, by verdict (light tints, so that the words stay readable).
 SHADES = {"input-error": "D9D9D9", "over": "F4B6B6", "out-of-scope": "F8D7A8", "low-margin": "FFF2A8",
           "within": "CFE8C9"}

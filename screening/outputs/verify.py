@@ -345,7 +345,7 @@ def _run_record(pdf: _Pdf, pdf_path) -> tuple[str, dict]:
 
 
 def _counts_text(counts) -> str:
-    from screening.batch import ORDER
+    from screening.outputs.listing import ORDER
 
     if not isinstance(counts, dict):
         return repr(counts)

@@ -1,0 +1,57 @@
+"""Results listed as a site reads them: counts by verdict, worst first, the figures of a row in the user's units.
+
+Formatting of finished results only (no physics); shared by the batch, its files, the batch PDF and verify.
+"""
+
+from __future__ import annotations
+
+import math
+
+from screening.units import format_percent, format_pressure, format_temperature
+from screening.verdicts import LISTING_ORDER
+
+#: The verdict words, most severe first: the order of the counts, of the terminal table, of the batch PDF's
+#: listing and of --sort severity.
+ORDER = tuple(str(v) for v in LISTING_ORDER)
+_RANK = {v: i for i, v in enumerate(ORDER)}
+
+
+def severity_key(r: dict) -> tuple:
+    """Worst first: input-error, over, out-of-scope, low-margin, within; then lowest margin; then row."""
+    m = r.get("margin_fraction")
+    return (_RANK.get(r["verdict"], 0), m if m is not None else -math.inf, r["row"])
+
+
+def ranked(results: list[dict]) -> list[dict]:
+    """The results worst first (see severity_key)."""
+    return sorted(results, key=severity_key)
+
+
+def summary(results: list[dict]) -> dict:
+    counts = {v: 0 for v in ORDER}
+    for r in results:
+        counts[r["verdict"]] = counts.get(r["verdict"], 0) + 1
+    dups = sum(1 for r in results for w in r.get("warnings", []) if w.get("code") == "duplicate-id")
+    return {"rows": len(results), "counts": counts, "duplicate_ids": dups}
+
+
+def _units(r: dict) -> tuple[str, str, float]:
+    du = r.get("display_units") or {}
+    atm = (r.get("site") or {}).get("atmospheric_pressure_pa") or 101325.0
+    return du.get("pressure", "bar(g)"), du.get("temperature", "degC"), atm
+
+
+def cells(r: dict) -> dict:
+    """The row's figures as text in the user's units."""
+    if r["verdict"] == "input-error":
+        return {"peak": "", "rated": "", "margin": "", "t_max": "", "p_max": "", "gas": ""}
+    pu, tu, atm = _units(r)
+    lim = r.get("limits") or {}
+    return {
+        "peak": format_pressure(r["peak_pressure_pa"], pu, atm),
+        "rated": format_pressure(r["rated_pressure_pa"], pu, atm),
+        "margin": format_percent(r["margin_fraction"]),
+        "t_max": format_temperature(lim.get("max_gas_temperature_k"), tu),
+        "p_max": format_pressure(lim.get("max_fill_pressure_pa"), pu, atm),
+        "gas": (r.get("gas") or {}).get("name", ""),
+    }
