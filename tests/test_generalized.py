@@ -48,7 +48,8 @@ def z0_z1(tr, pr):
 def test_z0_z1_svna_n_butane_example():
     # Smith, Van Ness & Abbott, Introduction to Chemical Engineering Thermodynamics (7th ed.),
     # worked example for n-butane at 510 K and 25 bar: T_r = 1.200, P_r = 0.659, and by
-    # interpolation in Tables E.1/E.2, Z0 = 0.865, Z1 = 0.038 (from memory).
+    # interpolation in Tables E.1/E.2, Z0 = 0.865, Z1 = 0.038 (the book's worked example; not
+    # independently checked against a copy here).
     # Tolerance 1e-3: the book's values are rounded to 3 decimals after linear interpolation
     # between table columns P_r = 0.6 and 0.8 (interpolation error a few 1e-4).
     z0, z1 = z0_z1(1.200, 0.659)
@@ -122,7 +123,8 @@ def test_carbon_dioxide_hot_supercritical_against_coolprop():
     rho = np.array([500.0, 2000.0, 5000.0])
     expected = np.array([CP.PropsSI("P", "T", 338.15, "Dmolar", r, "CarbonDioxide") for r in rho])
     state = lee_kesler_pressure(rho, 338.15, tc, pc, w).require()
-    # LK reports ~2 % for nonpolar fluids near the critical region (Lee & Kesler 1975, from memory): 2 %.
+    # 2 %: the deviation Lee & Kesler (1975) state for nonpolar fluids near the critical region (not
+    # independently checked against the paper here).
     np.testing.assert_allclose(state.pressure, expected, rtol=0.02)
 
 
@@ -195,13 +197,15 @@ def test_shapes_broadcast():
 
 
 def test_ranges_are_the_published_table_range():
-    # Lee & Kesler (1975) tables span T_r 0.3-4 and P_r 0.01-10 (from memory).
+    # Lee & Kesler (1975) tables span T_r 0.3-4 and P_r 0.01-10 (not independently checked against the
+    # paper here; the span the module docstring states).
     assert LK_REDUCED_TEMPERATURE_RANGE == (0.3, 4.0)
     assert LK_REDUCED_PRESSURE_RANGE == (0.0, 10.0)
 
 
 def test_helium_hot_is_not_applicable():
-    # Helium, classical T_c0 = 10.47 K, P_c0 = 6.76 bar (Reid, Prausnitz & Poling, from memory),
+    # Helium, classical T_c0 = 10.47 K, P_c0 = 6.76 bar (the gas library's quantum constants, source
+    # 'gcp-quantum' in gases.toml),
     # at 338 K: effective T_c ~ 10.3 K, T_r ~ 33 > 4.
     tc, pc = quantum_effective_critical(10.47, 6.76e5, 4.0026e-3, 338.0)
     s = lee_kesler_pressure(8000.0, 338.0, tc, pc, 0.0)
@@ -287,7 +291,7 @@ def test_kay_rule_two_components():
 
 def test_quantum_correction_hydrogen_300k():
     # Hand arithmetic from the Gunn–Chueh–Prausnitz formula with the classical hydrogen
-    # constants T_c0 = 43.6 K, P_c0 = 20.5 bar (Reid, Prausnitz & Poling, from memory), M = 2.016:
+    # constants T_c0 = 43.6 K, P_c0 = 20.5 bar (the gas library's source 'gcp-quantum'), M = 2.016:
     # M T = 604.8; T_c = 43.6/(1 + 21.8/604.8) = 43.6/1.0360450 = 42.08315 K;
     # P_c = 20.5/(1 + 44.2/604.8) = 20.5/1.0730820 = 19.10384 bar.
     tc, pc = quantum_effective_critical(43.6, 20.5e5, 2.016e-3, 300.0)

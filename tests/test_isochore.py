@@ -47,10 +47,11 @@ def test_liquid_full_temperature(name, kg_per_l):
 
 
 def test_co2_075_liquid_full_near_22C():
-    # source: computed by this module and cross-checked above with PropsSI; handbook rule of thumb for
-    # a 0.75 kg/L CO2 fill: liquid-full in the low 20s °C (from memory)
+    # source: CoolProp PropsSI, the temperature at which saturated liquid CO2 has a density of 750 kg/m3
+    t_lf = CP.PropsSI("T", "Dmass", 750.0, "Q", 0, "CO2")
     r = isochore_phases(pure("CarbonDioxide"), 750.0 / 0.0440098, 288.15, 338.15)
     assert 290.0 < r.liquid_full_temperature < 300.0
+    assert r.liquid_full_temperature == pytest.approx(t_lf, abs=0.05)
     assert r.peak_phase == "supercritical"
 
 

@@ -9,8 +9,9 @@ Model
 -----
 Reference: Lee, B. I.; Kesler, M. G. "A generalized thermodynamic correlation based on
 three-parameter corresponding states." AIChE J. 1975, 21 (3), 510–527,
-doi:10.1002/aic.690210313 (called LK below). Equation numbers are quoted from memory
-and were not re-checked against the paper; the constants are those of LK Table 1.
+doi:10.1002/aic.690210313 (called LK below). Equation numbers are not independently checked
+against the paper here (no copy at hand); the constants are those of LK Table 1, and the
+correlation is tested against the reference equations of state (CoolProp) and `chemicals`.
 
 * LK eq. (1), the interpolation between a simple fluid (0) and the reference fluid
   n-octane (r), both evaluated at the same (T_r, P_r)::
@@ -31,7 +32,7 @@ and were not re-checked against the paper; the constants are those of LK Table 1
 
 * LK vapour-pressure equation (the LK paper's saturation relation, as reproduced in
   Reid, Prausnitz & Poling, The Properties of Gases and Liquids, 4th ed., 1987, eq. 7-2.6,
-  equation number from memory)::
+  equation number not independently checked here)::
 
       ln P_r,sat = f0(T_r) + omega f1(T_r)
       f0 = 5.92714 - 6.09648/T_r - 1.28862 ln T_r + 0.169347 T_r^6
@@ -106,8 +107,9 @@ _MAX_OUTER = 200
 _MAX_NEWTON = 30      # steps of the coupled Newton before the bracketed solve takes over
 _PR_SOLVE_MAX = 40.0   # [-] the pressure solve brackets P_r in (0, 40]; above 10 is reported invalid
 
-# Gunn, Chueh & Prausnitz (1966) constants of the quantum correction [g K/mol], from the
-# brief and from memory of Reid, Prausnitz & Poling.
+# Gunn, Chueh & Prausnitz (1966) constants of the quantum correction [g K/mol], as given in Reid,
+# Prausnitz & Poling (not independently checked here; tested through the compressibility they give
+# against the reference equations of H2, He and Ne).
 _GCP_TC = 21.8
 _GCP_PC = 44.2
 
@@ -607,8 +609,8 @@ def quantum_effective_critical(tc_classical, pc_classical, molar_mass, temperatu
     """Effective critical temperature [K] and pressure [Pa] of a quantum gas at temperature [K].
 
     Gunn, Chueh & Prausnitz, AIChE J. 1966, 12, 937, as given in Reid, Prausnitz &
-    Poling, The Properties of Gases and Liquids (constants 21.8 and 44.2 quoted from the
-    brief and from memory)::
+    Poling, The Properties of Gases and Liquids (constants 21.8 and 44.2; not independently
+    checked here)::
 
         T_c = T_c0 / (1 + 21.8 / (M T)),   P_c = P_c0 / (1 + 44.2 / (M T)),  M in g/mol, T in K
 
