@@ -552,5 +552,21 @@ def write_csv(inv: Inventory, results: list[dict], path) -> None:
         t.close()
 
 
+def write_xlsx(inv: Inventory, results: list[dict], path) -> None:
+    """The XLSX output of finished results of `inv` (in memory, for the web page; the command streams)."""
+    width = len(inv.columns)
+    first = next((r for r in results if r["verdict"] != "input-error"), None)
+    pu, tu = file_units(first)
+    cells_by_row = {n: c for n, c in inv.rows}
+    s = summary(results)
+    with atomic_writer(path, "XLSX output", binary=True) as fh:
+        t = XlsxTable(["row"] + [c.header for c in inv.columns] + result_headers(pu, tu), width, inv.decimal)
+        for r in results:
+            row = (list(cells_by_row.get(r["row"], [])) + [""] * width)[:width]
+            t.write([r["row"]] + [str(c) for c in row] + result_values(r, pu, tu))
+        t.finish(fh, s["counts"], s["rows"], s["duplicate_ids"], inv.source)
+
+
 __all__ = ["BatchRun", "ORDER", "Tally", "cells", "exit_code", "ranked", "read_inventory", "run",
-           "run_inventory", "screen_chunk", "summary", "terminal_table", "write_csv", "write_json", "os"]
+           "run_inventory", "screen_chunk", "summary", "terminal_table", "write_csv", "write_json", "write_xlsx",
+           "os"]

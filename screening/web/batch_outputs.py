@@ -36,9 +36,12 @@ def write(kind: str, inv, run, path: str, date_iso: str) -> None:
     elif kind == "xlsx":
         batch.write_xlsx(inv, run.results, path)  # type: ignore[attr-defined]
     elif kind == "pdf":
-        from screening.outputs.batch_report import render_batch_report
+        from screening.outputs.batch_report import render_batch_report, row_texts
 
+        # the inventory as uploaded (the page works in its folder) travels in the PDF, so that
+        # `screening verify` can screen it again
         render_batch_report(run.results, path, source=inv.source, report_date=_dt.date.fromisoformat(date_iso),
-                            quiet=True, full=run.full)
+                            quiet=True, full=run.full, texts=row_texts(inv, None),
+                            inputs={"inventory": inv.source, "sheet": inv.sheet})
     else:
         raise ValueError(f"unknown output kind {kind!r}")
