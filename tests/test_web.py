@@ -370,3 +370,22 @@ def test_a_large_inventory_offers_its_batch_pdf_and_writes_it_on_request(client)
     pdf = client.get(f"{job}/file/large.report.pdf")
     assert pdf.status_code == 200 and pdf.content.startswith(b"%PDF")
     assert f'id="count-rows">{rows}<' in status
+
+
+def test_the_inventory_page_writes_an_xlsx_and_a_batch_pdf_that_verifies(tmp_path):
+    # the page's downloads come from the batch's own writers; its PDF carries the uploaded inventory, so
+    # `screening verify` screens it again and renders the same pages
+    import shutil
+
+    from openpyxl import load_workbook
+
+    from screening.outputs.verify import verify_report
+    from screening.web.engine import inventory
+
+    shutil.copy(ROOT / "cases" / "inventory.csv", tmp_path / "inventory.csv")
+    state = inventory(str(tmp_path), "inventory.csv", None, "2026-12-03", pdf=True)
+    assert state["stage"] == "done"
+    book = load_workbook(tmp_path / "inventory.result.xlsx", read_only=True)
+    assert "summary" in book.sheetnames
+    ok, message = verify_report(str(tmp_path / "inventory.report.pdf"))
+    assert ok, message
