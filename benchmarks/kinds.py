@@ -6,7 +6,8 @@ For every kind below it writes an invented inventory over realistic random range
 to 875, fill temperatures -20...40 degC, worst-case temperatures -40...85 degC, rated pressures 1.1 to 2 times the
 fill, a quarter of the rows partly used cylinders at 3-30 % of their rating; liquefied gases by mass over their
 filling ratios and by pressure as vapour or liquid away from the saturation band; mixtures; a tenth of the
-nitrogen rows in the sun), then measures in one run:
+nitrogen rows in the sun, a nitrogen inventory with input tolerances and two scenarios from a defaults file),
+then measures in one run:
 
 * tool: `screening batch INV --csv OUT` in a fresh process with one worker; the child's CPU time (user + system)
   minus that of the same command on a one-row inventory of the same kind (imports and process start excluded);
@@ -72,7 +73,21 @@ def _vapour_or_liquid_rows(gas: str, cp: str, rated: float):
     return make
 
 
-# (label, gas name for the tool, CoolProp fluid string, row maker, share of the rows)
+#: A defaults file giving every row input tolerances and two exposure scenarios (the worst governs).
+TOLERANCES_AND_SCENARIOS = """[tolerance]
+fill_pressure = "2 bar"
+fill_temperature = "2 K"
+gas_temperature = "3 K"
+
+[[scenario]]
+name = "as listed"
+
+[[scenario]]
+name = "closed van"
+gas_temperature = "65 degC"
+"""
+
+# (label, gas name for the tool, CoolProp fluid string, row maker, share of the rows[, defaults file text])
 KINDS = [
     ("nitrogen", "nitrogen", "Nitrogen", _pressure_rows("nitrogen"), 1.0),
     ("oxygen", "oxygen", "Oxygen", _pressure_rows("oxygen"), 1.0),
@@ -83,6 +98,8 @@ KINDS = [
     ("neon", "neon", "Neon", _pressure_rows("neon"), 1.0),
     ("hydrogen to 875 bar(g)", "hydrogen", "Hydrogen", _pressure_rows("hydrogen", 875.0), 1.0),
     ("nitrogen, 10 % in the sun", "nitrogen", "Nitrogen", _pressure_rows("nitrogen", sun_share=0.1), 1.0),
+    ("nitrogen, tolerances and two scenarios", "nitrogen", "Nitrogen", _pressure_rows("nitrogen"), 0.1,
+     TOLERANCES_AND_SCENARIOS),
     ("carbon dioxide by mass", "carbon dioxide", "CO2", _mass_rows("carbon dioxide", 0.05, 0.80, 150, 300), 1.0),
     ("propane by mass", "propane", "Propane", _mass_rows("propane", 0.05, 0.45, 25, 40), 1.0),
     ("ammonia by mass", "ammonia", "Ammonia", _mass_rows("ammonia", 0.05, 0.55, 25, 40), 1.0),
@@ -110,9 +127,10 @@ def write(path: Path, make, n: int, seed: int) -> list[tuple]:
     return states
 
 
-def child_cpu(inv: Path, out: Path) -> float:
+def child_cpu(inv: Path, out: Path, defaults: Path | None = None) -> float:
     before = resource.getrusage(resource.RUSAGE_CHILDREN)
-    subprocess.run([sys.executable, "-m", "screening.cli", "batch", str(inv), "--csv", str(out)], env=ENV,
+    extra = ["--defaults", str(defaults)] if defaults is not None else []
+    subprocess.run([sys.executable, "-m", "screening.cli", "batch", str(inv), "--csv", str(out)] + extra, env=ENV,
                    stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, check=False)
     after = resource.getrusage(resource.RUSAGE_CHILDREN)
     return (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
@@ -133,17 +151,22 @@ def naive(fluid: str, states: list[tuple]) -> float:
 
 def main() -> None:
     n = int(sys.argv[1]) if len(sys.argv) > 1 else 2000
-    print(f"# {time.strftime('%Y-%m-%d %H:%M')}, {n} rows per kind (mixtures {max(1, n // 10)}), one worker")
+    print(f"# {time.strftime('%Y-%m-%d %H:%M')}, {n} rows per kind (mixtures and tolerances {max(1, n // 10)}), "
+          "one worker")
     print(f"{'kind':44s} {'rows':>6s} {'tool ms/row':>12s} {'naive ms/row':>13s} {'ratio':>7s}")
     with tempfile.TemporaryDirectory() as tmp:
         tmp_path = Path(tmp)
-        for k, (label, _gas, fluid, make, share) in enumerate(KINDS):
+        for k, (label, _gas, fluid, make, share, *more) in enumerate(KINDS):
             rows = max(1, int(n * share))
             inv, one, out = tmp_path / f"k{k}.csv", tmp_path / f"k{k}-1.csv", tmp_path / f"k{k}-out.csv"
+            defaults = None
+            if more:
+                defaults = tmp_path / f"k{k}-defaults.toml"
+                defaults.write_text(more[0], encoding="utf-8")
             states = write(inv, make, rows, seed=k + 1)
             write(one, make, 1, seed=k + 1)
-            start = child_cpu(one, out)
-            tool = max(child_cpu(inv, out) - start, 0.0)
+            start = child_cpu(one, out, defaults)
+            tool = max(child_cpu(inv, out, defaults) - start, 0.0)
             loop = naive(fluid, states)
             ratio = tool / loop if loop > 0 else math.inf
             print(f"{label:44s} {rows:6d} {tool / rows * 1e3:12.3f} {loop / rows * 1e3:13.3f} {ratio:7.1f}", flush=True)
