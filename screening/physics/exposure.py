@@ -21,8 +21,9 @@ Readings chosen (each is also recorded in `EnergyBalance.notes`):
   (infinite ground, no nearby walls). Sky at the Swinbank (1963) clear-sky temperature, ground
   at the ambient air temperature unless given (sunlit ground is hotter: give it if known).
   Sky and ground are black; the wall is grey with emissivity eps.
-* Ground-reflected solar: rho_g = 0 by default (the brief's balance); a typical ground albedo of
-  0.2 would add about 30 % to the absorbed flux of a horizontal cylinder -- pass `ground_albedo`.
+* Ground-reflected solar: rho_g = 0 by default in this function (the screening passes 0.2,
+  GROUND_ALBEDO in screen.py); a typical ground albedo of 0.2 adds about 30 % to the absorbed flux
+  of a horizontal cylinder -- pass `ground_albedo`.
 * Convection: natural convection (Churchill & Chu 1975) in still air; forced convection in
   cross-flow (Churchill & Bernstein 1977) with wind perpendicular to the axis; both combined by
   Churchill's (1977) rule h^n = h_F^n + h_N^n with n = 4 (transverse flow over cylinders, after
