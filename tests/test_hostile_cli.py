@@ -6,37 +6,19 @@ from __future__ import annotations
 import os
 import subprocess
 import sys
-import textwrap
 from pathlib import Path
 
 import pytest
+from helpers import cli, nitrogen_case
 
 import screening
 from screening.cli import MAX_INVENTORY_BYTES, main
 from screening.inputs.case import MAX_CASE_BYTES
 
 ROOT = Path(__file__).resolve().parents[1]
-CASE = textwrap.dedent("""\
-    id = "H-3"
-    [vessel]
-    water_capacity = "50 L"
-    rated_pressure = "300 bar(g)"
-    [fill]
-    gas = "nitrogen"
-    pressure = "200 bar(g)"
-    temperature = "15 degC"
-    [exposure]
-    ambient_max = "45 degC"
-    """)
+CASE = nitrogen_case("H-3")
 HEAD = "id,gas,water_capacity,rated_pressure,fill_pressure,fill_temperature,ambient_max\n"
 ROW = "{id},nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC\n"
-
-
-def cli(capsys, *args: str) -> tuple[int, str, str]:
-    with pytest.raises(SystemExit) as exc:
-        main(list(args))
-    out = capsys.readouterr()
-    return exc.value.code, out.out, out.err
 
 
 def _into_a_closed_pipe(*args: str) -> subprocess.CompletedProcess:

@@ -5,34 +5,15 @@ from __future__ import annotations
 
 import json
 import math
-import textwrap
 from pathlib import Path
 
 import pytest
+from helpers import cli, nitrogen_case
 
-from screening.cli import main
 from screening.errors import InputError
 from screening.units import KIND_RANGES, QUANTITY_RANGES, parse
 
-GOOD = textwrap.dedent("""\
-    id = "H-2"
-    [vessel]
-    water_capacity = "50 L"
-    rated_pressure = "300 bar(g)"
-    [fill]
-    gas = "nitrogen"
-    pressure = "200 bar(g)"
-    temperature = "15 degC"
-    [exposure]
-    ambient_max = "45 degC"
-    """)
-
-
-def cli(capsys, *args: str) -> tuple[int, str, str]:
-    with pytest.raises(SystemExit) as exc:
-        main(list(args))
-    out = capsys.readouterr()
-    return exc.value.code, out.out, out.err
+GOOD = nitrogen_case("H-2")
 
 
 def case_file(tmp_path: Path, text: str) -> Path:

@@ -9,37 +9,18 @@ import errno
 import os
 import shutil
 import stat
-import textwrap
 from pathlib import Path
 
 import pytest
+from helpers import cli, nitrogen_case
 
-from screening.cli import main
 from screening.errors import InputError, OutputError
 from screening.outputs import files
 
 ROOT = Path(__file__).resolve().parents[1]
-CASE = textwrap.dedent("""\
-    id = "H-1"
-    [vessel]
-    water_capacity = "50 L"
-    rated_pressure = "300 bar(g)"
-    [fill]
-    gas = "nitrogen"
-    pressure = "200 bar(g)"
-    temperature = "15 degC"
-    [exposure]
-    ambient_max = "45 degC"
-    """)
+CASE = nitrogen_case("H-1")
 HEAD = "id,gas,water_capacity,rated_pressure,fill_pressure,fill_temperature,ambient_max\n"
 ROW = "A,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC\n"
-
-
-def cli(capsys, *args: str) -> tuple[int, str, str]:
-    with pytest.raises(SystemExit) as exc:
-        main(list(args))
-    out = capsys.readouterr()
-    return exc.value.code, out.out, out.err
 
 
 def one_message(err: str) -> None:

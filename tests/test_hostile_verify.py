@@ -9,6 +9,7 @@ import textwrap
 from pathlib import Path
 
 import pytest
+from helpers import nitrogen_case
 from pypdf import PdfReader, PdfWriter
 
 from screening.cli import main
@@ -18,18 +19,7 @@ from screening.outputs.verify import verify_report
 from screening.screen import screen_text
 
 DATE = dt.date(2026, 12, 1)
-NITROGEN = textwrap.dedent("""\
-    id = "V-N2"
-    [vessel]
-    water_capacity = "50 L"
-    rated_pressure = "300 bar(g)"
-    [fill]
-    gas = "nitrogen"
-    pressure = "200 bar(g)"
-    temperature = "15 degC"
-    [exposure]
-    ambient_max = "45 degC"
-    """)
+NITROGEN = nitrogen_case("V-N2")
 # a methane vessel filled close to its rating, in psi: heated, it goes over
 METHANE = textwrap.dedent("""\
     id = "V-CH4"
