@@ -226,6 +226,7 @@ def _check_outputs(args) -> None:
     if args.command == "batch":
         inputs = (args.inventory, args.defaults)
         targets = [(p, what) for p, what in ((args.json, "JSON output"), (args.csv, "CSV output"),
+                                             (args.xlsx, "XLSX output"), (args.jsonl, "JSON Lines output"),
                                              (args.pdf, "PDF report")) if p is not None]
     elif args.command in ("check", "report"):
         inputs = (args.case,)

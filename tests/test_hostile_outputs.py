@@ -96,6 +96,22 @@ def test_batch_csv_onto_its_own_inventory_is_refused_and_the_inventory_stays(cap
     assert inventory.read_text(encoding="utf-8") == HEAD + ROW
 
 
+@pytest.mark.parametrize("option", ["--xlsx", "--jsonl"])
+def test_a_spreadsheet_or_json_lines_output_onto_its_own_inventory_is_refused(capsys, inventory, no_screening,
+                                                                              option):
+    code, _, err = cli(capsys, "batch", str(inventory), option, str(inventory), "--quiet")
+    assert code == 2 and "is the input file" in err
+    one_message(err)
+    assert inventory.read_text(encoding="utf-8") == HEAD + ROW
+
+
+def test_an_xlsx_and_a_json_lines_output_onto_one_file_are_refused(capsys, inventory, tmp_path, no_screening):
+    out = tmp_path / "o.xlsx"
+    code, _, err = cli(capsys, "batch", str(inventory), "--xlsx", str(out), "--jsonl", str(out), "--quiet")
+    assert code == 2 and "another output" in err
+    assert not out.exists()
+
+
 def test_two_batch_outputs_onto_one_file_are_refused(capsys, inventory, tmp_path, no_screening):
     out = tmp_path / "o.txt"
     code, _, err = cli(capsys, "batch", str(inventory), "--csv", str(out), "--json", str(out), "--quiet")
