@@ -853,7 +853,6 @@ def _curves(models: list[Model], t_fill: float, t_peak: float, limits: dict,
 #: 1.2 Tc a dense isochore of carbon dioxide still rises about 2 bar per kelvin, CoolProp's reference equation);
 #: a permanent gas filled at room temperature (above 1.5 Tc) is never caught by it.
 LIQUID_LIKE_TEMPERATURE_RATIO = 1.2
-DENSE_FLUID_TEMPERATURE_RATIO = LIQUID_LIKE_TEMPERATURE_RATIO
 
 
 def liquid_full_density(fluid: ReferenceFluid, t_fill: float, t_peak: float, gas: Mixture | None = None) -> float:
@@ -1050,31 +1049,36 @@ def _fill_temperature(case: Case) -> float:
     return case.fill_temperature_k if case.fill_temperature_k is not None else DEFAULT_MASS_FILL_TEMPERATURE_K
 
 
-def _corner_peak(case: Case, p_fill: float | None, t_fill: float, t_peak: float) -> dict:
-    """Peak of every model at one combination of fill pressure, fill and worst-case temperature, and what the
-    state rules find there ("_out_of_scope", "_liquid_full": reasons or None). The corner is a state of its
-    own: the same rules as the nominal state, the screened temperature never below its fill temperature."""
+def _corner_state(case: Case, p_fill: float | None, t_fill: float, t_peak: float):
+    """(variant case, screened temperature, fill state, models, out-of-scope reason) at one tolerance corner:
+    a state of its own, through the same rules as the nominal state (the corner's own bands, not widened by the
+    tolerance again; the screened temperature never below its fill temperature)."""
     variant = replace(case, fill_pressure_pa=p_fill, fill_temperature_k=t_fill, tolerance=None)
-    if case.fill_temperature_k is not None:
-        t_peak = max(t_peak, t_fill)
-    fs, models, out_of_scope = _evaluate(variant, t_fill, t_peak, [])
+    t_screen = screened_temperature(t_peak, t_fill if case.fill_temperature_k is not None else None)
+    fs, models, out_of_scope = _evaluate(variant, t_fill, t_screen, [])
+    return variant, t_screen, fs, models, out_of_scope
+
+
+def _corner_peak(case: Case, p_fill: float | None, t_fill: float, t_peak: float) -> dict:
+    """Peak of every model at one tolerance corner (see _corner_state), and what the state rules find there
+    ("_out_of_scope", "_liquid_full": reasons or None)."""
+    variant, t_screen, fs, models, out_of_scope = _corner_state(case, p_fill, t_fill, t_peak)
     gov = _governing(models)
     out = {m.name: (m.peak_pa if m.applicable else None) for m in models}
     out["governing"] = gov.peak_pa if gov else None
     out["_out_of_scope"] = out_of_scope
-    out["_liquid_full"] = (liquid_full_text(fs, t_peak, corner=True)
-                           if _liquid_full_applies(fs, _molar(variant, fs), t_fill, t_peak, case.gas) else None)
+    out["_liquid_full"] = (liquid_full_text(fs, t_screen, corner=True)
+                           if _liquid_full_applies(fs, _molar(variant, fs), t_fill, t_screen, case.gas) else None)
     return out
 
 
 def _bounding_model(case: Case, tolerance: dict | None) -> Model | None:
-    """The governing model at the bounding corner's fill (for drawing the tolerance band)."""
+    """The governing model at the bounding corner (for drawing the tolerance band)."""
     if not tolerance or tolerance.get("bounding_peak_pressure_pa") is None:
         return None
     corner = tolerance["bounding_corner"]
-    variant = replace(case, fill_pressure_pa=corner["fill_pressure_pa"],
-                      fill_temperature_k=corner["fill_temperature_k"])
-    _, models, _ = _evaluate(variant, corner["fill_temperature_k"], corner["worst_case_temperature_k"], [])
+    _, _, _, models, _ = _corner_state(case, corner["fill_pressure_pa"], corner["fill_temperature_k"],
+                                       corner["worst_case_temperature_k"])
     return _governing(models)
 
 
