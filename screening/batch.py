@@ -33,8 +33,8 @@ from screening.outputs.tables import (
     result_headers,
     result_values,
 )
+from screening.verdicts import EXIT_INPUT, EXIT_NOT_WITHIN, EXIT_WITHIN
 
-EXIT_WITHIN, EXIT_NOT_WITHIN, EXIT_INPUT = 0, 1, 2
 #: Keys of a result left out of the JSON outputs (shared or bulky parts).
 _DROP = ("curves", "cautions")
 #: Rows screened as one piece of work (the unit of streaming and of the worker pool).

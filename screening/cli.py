@@ -23,8 +23,7 @@ import sys
 
 from screening import __version__
 from screening.errors import InputError, OutputError
-
-EXIT_WITHIN, EXIT_NOT_WITHIN, EXIT_INPUT = 0, 1, 2
+from screening.verdicts import EXIT_INPUT, EXIT_NOT_WITHIN, EXIT_WITHIN
 
 #: The exit codes of each command, as --help shows them (the README's table says the same).
 EXIT_HELP = {

@@ -38,6 +38,10 @@ _SEVERITY = {Verdict.WITHIN: 0, Verdict.LOW_MARGIN: 1, Verdict.OVER: 2, Verdict.
 #: is over, since nothing is known of it.)
 LISTING_ORDER = (Verdict.INPUT_ERROR, Verdict.OVER, Verdict.OUT_OF_SCOPE, Verdict.LOW_MARGIN, Verdict.WITHIN)
 
+#: Exit codes of the commands, the one place they are defined: every vessel within its rating; any other
+#: verdict (or a report that does not verify); bad input or an output that cannot be written.
+EXIT_WITHIN, EXIT_NOT_WITHIN, EXIT_INPUT = 0, 1, 2
+
 #: The verdicts a screening gives (every one but INPUT_ERROR), least severe first.
 SCREENED = (Verdict.WITHIN, Verdict.LOW_MARGIN, Verdict.OVER, Verdict.OUT_OF_SCOPE)
 
