@@ -142,6 +142,8 @@ class _Reader:
         self.inputs: list[dict] = []
         self.labels: dict[str, str] = {}
         self.extra: dict[str, dict] = {}     # scenario tables by their key, e.g. "scenario[2]"
+        self.basis: str | None = None        # the case's pressure_basis
+        self.p_atm: float = P_STANDARD_ATMOSPHERE   # the site's, once read
 
     def err(self, message: str, key: str, **kw) -> InputError:
         return InputError(message, file=self.source, key=key, **kw)
@@ -185,6 +187,40 @@ class _Reader:
         if reading is not None and all(item["key"] != key for item in self.inputs):
             self.inputs.append({"key": key, "entered": reading.text, "si_value": si_value, "si_unit": si_unit})
 
+    def pressure(self, table: str, key: str, required: bool = False) -> float | None:
+        """An absolute pressure [Pa] on the case's pressure basis and the site's atmosphere (set first)."""
+        reading = self.quantity(table, key, "pressure", required, pressure_basis=self.basis)
+        if reading is None:
+            return None
+        p_abs = to_absolute_pressure(reading, self.p_atm)
+        if p_abs <= 0.0:
+            raise self.err("absolute pressure must be above zero", f"{table}.{key}", given=reading.text,
+                           expected="an absolute pressure above 0")
+        self.record(f"{table}.{key}", reading, p_abs, "Pa (absolute)")
+        return p_abs
+
+    def temperature(self, table: str, key: str, required: bool = False) -> float | None:
+        reading = self.quantity(table, key, "temperature", required)
+        if reading is None:
+            return None
+        t = reading.si()
+        if t <= 0.0:
+            raise self.err("temperature at or below absolute zero", f"{table}.{key}", given=reading.text,
+                           expected="a temperature above 0 K")
+        self.record(f"{table}.{key}", reading, t, "K")
+        return t
+
+    def positive(self, table: str, key: str, kind: str, si_unit: str, required: bool = False) -> float | None:
+        reading = self.quantity(table, key, kind, required)
+        if reading is None:
+            return None
+        v = reading.si()
+        if v <= 0.0:
+            raise self.err(f"{kind} must be above zero", f"{table}.{key}", given=reading.text,
+                           expected=f"a positive {kind}")
+        self.record(f"{table}.{key}", reading, v, si_unit)
+        return v
+
 
 def _check_keys(data: dict, source: str) -> None:
     scenarios = data.get("scenario", [])
@@ -227,15 +263,38 @@ def parse_case_data(data: dict, source: str, text: str) -> Case:
     their own text (the row as read)."""
     _check_keys(data, source)
     r = _Reader(data, source)
-
     case_id = r.text("", "id", required=True)
     description = r.text("", "description")
     basis = r.raw("", "pressure_basis")
     if basis is not None and basis not in ("gauge", "absolute"):
         raise r.err("pressure_basis must be gauge or absolute", "pressure_basis", given=basis,
                     expected='"gauge" or "absolute"')
+    r.basis = basis
+    site = _site(r)
+    r.p_atm = site.atmospheric_pressure_pa
+    water_capacity, rated, rated_kind, relief, max_ratio = _vessel(r)
+    gas, fill_p, fill_t, fill_m = _fill(r)
+    diameter = r.positive("vessel", "outside_diameter", "length", "m")     # for the solar balance
+    length = r.positive("vessel", "length", "length", "m")
+    scenarios = _scenarios(r)
+    tolerance = _tolerance(r, fill_p, fill_t, scenarios) if "tolerance" in data else None
+    margin, margin_default = _criteria(r)
+    return Case(
+        id=case_id, description=description, source=source, text=text,
+        site=site, gas=gas,
+        water_capacity_m3=water_capacity, rated_pressure_pa=rated, rated_pressure_kind=rated_kind,
+        relief_set_pressure_pa=relief, max_filling_ratio_kg_m3=max_ratio,
+        fill_pressure_pa=fill_p, fill_temperature_k=fill_t, fill_mass_kg=fill_m,
+        ambient_max_k=scenarios[0].ambient_max_k, gas_temperature_k=scenarios[0].gas_temperature_k,
+        required_margin=margin, required_margin_is_default=margin_default,
+        inputs=tuple(r.inputs), display_units=_display_units(r),
+        scenarios=scenarios, tolerance=tolerance, outside_diameter_m=diameter, length_m=length,
+    )
 
-    # --- site: atmospheric pressure for gauge conversion
+
+def _site(r: _Reader) -> Site:
+    """The [site] table: its name and the atmospheric pressure for gauge conversion (given, from the
+    elevation, or the standard atmosphere)."""
     site_name = r.text("site", "name")
     p_atm_reading = r.quantity("site", "atmospheric_pressure", "pressure", pressure_basis="absolute")
     elev_reading = r.quantity("site", "elevation", "length")
@@ -257,63 +316,35 @@ def parse_case_data(data: dict, source: str, text: str) -> Case:
         try:
             p_atm = standard_atmosphere_pressure(elevation)
         except InputError as exc:
-            raise exc.located(file=source, key="site.elevation") from None
+            raise exc.located(file=r.source, key="site.elevation") from None
         r.record("site.elevation", elev_reading, elevation, "m")
     else:
         p_atm = P_STANDARD_ATMOSPHERE
+    return Site(site_name, p_atm, elevation)
 
-    def pressure(table: str, key: str, required: bool = False) -> float | None:
-        reading = r.quantity(table, key, "pressure", required, pressure_basis=basis)
-        if reading is None:
-            return None
-        p_abs = to_absolute_pressure(reading, p_atm)
-        if p_abs <= 0.0:
-            raise r.err("absolute pressure must be above zero", f"{table}.{key}", given=reading.text,
-                        expected="an absolute pressure above 0")
-        r.record(f"{table}.{key}", reading, p_abs, "Pa (absolute)")
-        return p_abs
 
-    def temperature(table: str, key: str, required: bool = False) -> float | None:
-        reading = r.quantity(table, key, "temperature", required)
-        if reading is None:
-            return None
-        t = reading.si()
-        if t <= 0.0:
-            raise r.err("temperature at or below absolute zero", f"{table}.{key}", given=reading.text,
-                        expected="a temperature above 0 K")
-        r.record(f"{table}.{key}", reading, t, "K")
-        return t
-
-    def positive(table: str, key: str, kind: str, si_unit: str, required: bool = False) -> float | None:
-        reading = r.quantity(table, key, kind, required)
-        if reading is None:
-            return None
-        v = reading.si()
-        if v <= 0.0:
-            raise r.err(f"{kind} must be above zero", f"{table}.{key}", given=reading.text,
-                        expected=f"a positive {kind}")
-        r.record(f"{table}.{key}", reading, v, si_unit)
-        return v
-
-    # --- vessel
-    water_capacity = positive("vessel", "water_capacity", "volume", "m3", required=True)
-    rated = pressure("vessel", "rated_pressure", required=True)
-    if rated <= p_atm:
+def _vessel(r: _Reader) -> tuple:
+    """The [vessel] table: water capacity, rated pressure and its kind, relief setting, filling ratio."""
+    water_capacity = r.positive("vessel", "water_capacity", "volume", "m3", required=True)
+    rated = r.pressure("vessel", "rated_pressure", required=True)
+    if rated <= r.p_atm:
         raise r.err("rated pressure must be above atmospheric pressure", "vessel.rated_pressure",
                     given=r.raw("vessel", "rated_pressure"), expected="a gauge pressure above 0")
     rated_kind = r.text("vessel", "rated_pressure_kind")
-    relief = pressure("vessel", "relief_set_pressure")
-    if relief is not None and relief <= p_atm:
+    relief = r.pressure("vessel", "relief_set_pressure")
+    if relief is not None and relief <= r.p_atm:
         raise r.err("relief set pressure must be above atmospheric pressure", "vessel.relief_set_pressure",
                     given=r.raw("vessel", "relief_set_pressure"), expected="a gauge pressure above 0")
-    max_ratio = positive("vessel", "max_filling_ratio", "density", "kg/m3")
+    max_ratio = r.positive("vessel", "max_filling_ratio", "density", "kg/m3")
+    return water_capacity, rated, rated_kind, relief, max_ratio
 
-    # --- fill
-    gas_value = r.raw("fill", "gas", required=True)
-    gas = parse_gas(gas_value, file=source, key="fill.gas")
-    fill_p = pressure("fill", "pressure")
-    fill_t = temperature("fill", "temperature")
-    fill_m = positive("fill", "mass", "mass", "kg")
+
+def _fill(r: _Reader) -> tuple:
+    """The [fill] table: the gas and either pressure with temperature, or mass."""
+    gas = parse_gas(r.raw("fill", "gas", required=True), file=r.source, key="fill.gas")
+    fill_p = r.pressure("fill", "pressure")
+    fill_t = r.temperature("fill", "temperature")
+    fill_m = r.positive("fill", "mass", "mass", "kg")
     if fill_m is not None and fill_p is not None:
         raise r.err("give the fill as pressure and temperature, or as mass, not both", "fill.mass",
                     given=r.raw("fill", "mass"), expected="either [fill] pressure + temperature, or [fill] mass")
@@ -323,140 +354,149 @@ def parse_case_data(data: dict, source: str, text: str) -> Case:
     if fill_p is not None and fill_t is None:
         raise r.err("a fill pressure needs the temperature at which it was read", "fill.temperature",
                     expected="e.g. temperature = \"15 degC\" in [fill]")
+    return gas, fill_p, fill_t, fill_m
 
-    # --- vessel dimensions (for the solar balance)
-    diameter = positive("vessel", "outside_diameter", "length", "m")
-    length = positive("vessel", "length", "length", "m")
 
-    # --- exposure scenarios: [[scenario]] tables, each inheriting what it does not set from [exposure]
-    def exposure(table: str, name: str) -> Exposure:
-        def pick(key):
-            return table if key in r.table(table) else "exposure"
-        ambient = temperature(pick("ambient_max"), "ambient_max")
-        gas_t = temperature(pick("gas_temperature"), "gas_temperature")
-        solar = r.raw(pick("solar"), "solar") or "none"
-        if solar not in _SOLAR:
-            raise r.err("unknown solar exposure", f"{pick('solar')}.solar", given=solar, expected='"none" or "sun"')
-        if ambient is None and gas_t is None:
-            raise r.err("the worst case needs ambient_max or gas_temperature", f"{table}.ambient_max",
-                        expected=f"[{table}] ambient_max = \"45 degC\" or gas_temperature = \"65 degC\"")
-        if solar == "sun" and ambient is None:
-            raise r.err("a sun exposure needs the ambient air temperature", f"{table}.ambient_max",
-                        expected="ambient_max = \"40 degC\" beside solar = \"sun\"")
-        def non_negative(key: str, kind: str, si_unit: str, zero: str) -> float | None:
-            reading = r.quantity(pick(key), key, kind)
-            if reading is None:
-                return None
-            value = reading.si()
-            if value < 0.0:
-                raise r.err(f"{key.replace('_', ' ')} cannot be negative", f"{pick(key)}.{key}", given=reading.text,
-                            expected=f"{zero} or more")
-            r.record(f"{pick(key)}.{key}", reading, value, si_unit)
-            return value
-        irradiance = non_negative("irradiance", "irradiance", "W/m2", "0 W/m2")
-        wind_speed = non_negative("wind_speed", "speed", "m/s", "0 m/s") or 0.0
-
-        def unit_fraction(key):
-            value = r.raw(pick(key), key)
-            if value is None:
-                return None
-            reading = parse(value, "fraction", file=source, key=f"{pick(key)}.{key}")
-            v = reading.si()
-            if not 0.0 <= v <= 1.0:
-                raise r.err(f"{key} must lie between 0 and 1", f"{pick(key)}.{key}", given=value,
-                            expected="a number from 0 to 1, e.g. 0.6")
-            return v
-        absorptivity = unit_fraction("absorptivity")
-        emissivity = unit_fraction("emissivity")
-        finish = r.text(pick("finish"), "finish")
-        if finish is not None and absorptivity is not None:
-            raise r.err("give a finish or an absorptivity, not both", f"{pick('finish')}.finish", given=finish,
-                        expected="one of the two")
-        orientation = r.raw(pick("orientation"), "orientation") or "horizontal"
-        if orientation not in _ORIENTATIONS:
-            raise r.err("unknown orientation", f"{pick('orientation')}.orientation", given=orientation,
-                        expected='"horizontal" (lying) or "vertical" (standing)')
-        return Exposure(name, ambient, gas_t, solar, irradiance, absorptivity, emissivity, finish, wind_speed,
-                        orientation, key=table)
-
-    scenario_tables = data.get("scenario", [])
+def _scenarios(r: _Reader) -> tuple[Exposure, ...]:
+    """The exposure scenarios: [[scenario]] tables, each inheriting what it does not set from [exposure];
+    without them, the [exposure] table alone."""
+    scenario_tables = r.data.get("scenario", [])
     if len(scenario_tables) > MAX_SCENARIOS:
         raise r.err("too many scenarios", "scenario", given=f"{len(scenario_tables)} [[scenario]] tables",
                     expected=f"at most {MAX_SCENARIOS} scenarios in one case")
-    if scenario_tables:
-        scenarios = []
-        names = set()
-        for i, sc in enumerate(scenario_tables, 1):
-            key = f"scenario[{i}]"
-            r.extra[key] = sc
-            name = r.text(key, "name", required=True)
-            if name in names:
-                raise r.err("two scenarios have the same name", f"{key}.name", given=name, expected="distinct names")
-            names.add(name)
-            scenarios.append(exposure(key, name))
-        scenarios = tuple(scenarios)
+    if not scenario_tables:
+        return (_exposure(r, "exposure", "exposure"),)
+    scenarios = []
+    names = set()
+    for i, sc in enumerate(scenario_tables, 1):
+        key = f"scenario[{i}]"
+        r.extra[key] = sc
+        name = r.text(key, "name", required=True)
+        if name in names:
+            raise r.err("two scenarios have the same name", f"{key}.name", given=name, expected="distinct names")
+        names.add(name)
+        scenarios.append(_exposure(r, key, name))
+    return tuple(scenarios)
+
+
+def _exposure(r: _Reader, table: str, name: str) -> Exposure:
+    """One exposure scenario read from `table`, each key falling back to [exposure]."""
+    def pick(key):
+        return table if key in r.table(table) else "exposure"
+    ambient = r.temperature(pick("ambient_max"), "ambient_max")
+    gas_t = r.temperature(pick("gas_temperature"), "gas_temperature")
+    solar = r.raw(pick("solar"), "solar") or "none"
+    if solar not in _SOLAR:
+        raise r.err("unknown solar exposure", f"{pick('solar')}.solar", given=solar, expected='"none" or "sun"')
+    if ambient is None and gas_t is None:
+        raise r.err("the worst case needs ambient_max or gas_temperature", f"{table}.ambient_max",
+                    expected=f"[{table}] ambient_max = \"45 degC\" or gas_temperature = \"65 degC\"")
+    if solar == "sun" and ambient is None:
+        raise r.err("a sun exposure needs the ambient air temperature", f"{table}.ambient_max",
+                    expected="ambient_max = \"40 degC\" beside solar = \"sun\"")
+
+    def non_negative(key: str, kind: str, si_unit: str, zero: str) -> float | None:
+        reading = r.quantity(pick(key), key, kind)
+        if reading is None:
+            return None
+        value = reading.si()
+        if value < 0.0:
+            raise r.err(f"{key.replace('_', ' ')} cannot be negative", f"{pick(key)}.{key}", given=reading.text,
+                        expected=f"{zero} or more")
+        r.record(f"{pick(key)}.{key}", reading, value, si_unit)
+        return value
+    irradiance = non_negative("irradiance", "irradiance", "W/m2", "0 W/m2")
+    wind_speed = non_negative("wind_speed", "speed", "m/s", "0 m/s") or 0.0
+
+    def unit_fraction(key):
+        value = r.raw(pick(key), key)
+        if value is None:
+            return None
+        v = parse(value, "fraction", file=r.source, key=f"{pick(key)}.{key}").si()
+        if not 0.0 <= v <= 1.0:
+            raise r.err(f"{key} must lie between 0 and 1", f"{pick(key)}.{key}", given=value,
+                        expected="a number from 0 to 1, e.g. 0.6")
+        return v
+    absorptivity = unit_fraction("absorptivity")
+    emissivity = unit_fraction("emissivity")
+    finish = r.text(pick("finish"), "finish")
+    if finish is not None and absorptivity is not None:
+        raise r.err("give a finish or an absorptivity, not both", f"{pick('finish')}.finish", given=finish,
+                    expected="one of the two")
+    orientation = r.raw(pick("orientation"), "orientation") or "horizontal"
+    if orientation not in _ORIENTATIONS:
+        raise r.err("unknown orientation", f"{pick('orientation')}.orientation", given=orientation,
+                    expected='"horizontal" (lying) or "vertical" (standing)')
+    return Exposure(name, ambient, gas_t, solar, irradiance, absorptivity, emissivity, finish, wind_speed,
+                    orientation, key=table)
+
+
+def _tolerance(r: _Reader, fill_p: float | None, fill_t: float | None,
+               scenarios: tuple[Exposure, ...]) -> Tolerance:
+    """The [tolerance] table: the bands of the fill pressure and of the fill and gas temperatures."""
+    entered = {}
+    band_p = 0.0
+    tp = r.raw("tolerance", "fill_pressure")
+    if tp is not None:
+        if fill_p is None:
+            raise r.err("a fill-pressure tolerance needs a fill pressure", "tolerance.fill_pressure", given=tp,
+                        expected="[fill] pressure, or no fill_pressure tolerance")
+        band_p = _pressure_band(r, tp)
+        entered["fill_pressure"] = tp
+
+    def band_t(key, reading_k):
+        value = r.raw("tolerance", key)
+        if value is None:
+            return 0.0
+        band = parse(value, "temperature", file=r.source, key=f"tolerance.{key}").si_difference()
+        if band < 0.0 or (reading_k is not None and band >= reading_k):
+            raise r.err(f"the {key.replace('_', ' ')} tolerance must be at least zero and smaller than the "
+                        "reading", f"tolerance.{key}", given=value, expected="e.g. '2 K' or '3 degC'")
+        entered[key] = value
+        return band
+    return Tolerance(band_p, band_t("fill_temperature", fill_t),
+                     band_t("gas_temperature", min(t for s in scenarios for t in
+                                                   (s.gas_temperature_k, s.ambient_max_k) if t)),
+                     entered)
+
+
+def _pressure_band(r: _Reader, tp) -> float:
+    """The fill-pressure band [Pa]: a pressure ('2 bar'), a share of the reading ('1 %') or of a gauge's
+    full scale ('1.6 % of 400 bar')."""
+    source = r.source
+    reading_value = parse(r.raw("fill", "pressure"), "pressure", pressure_basis=r.basis).si()  # as shown [Pa]
+    m = _FULL_SCALE.match(tp) if isinstance(tp, str) else None
+    if m:
+        pct = parse(m.group(1), "fraction", file=source, key="tolerance.fill_pressure").si()
+        scale = parse(m.group(2), "pressure", pressure_basis="gauge", file=source,
+                      key="tolerance.fill_pressure").si()
+        band_p = pct * scale
+    elif isinstance(tp, str) and tp.strip().endswith("%"):
+        band_p = parse(tp, "fraction", file=source, key="tolerance.fill_pressure").si() * reading_value
     else:
-        scenarios = (exposure("exposure", "exposure"),)
-    ambient, gas_t = scenarios[0].ambient_max_k, scenarios[0].gas_temperature_k
+        band_p = parse(tp, "pressure", pressure_basis="gauge", file=source, key="tolerance.fill_pressure").si()
+    if band_p < 0.0 or band_p >= reading_value:
+        raise r.err("the fill-pressure tolerance must be at least zero and smaller than the reading",
+                    "tolerance.fill_pressure", given=tp,
+                    expected=f"below {r.raw('fill', 'pressure')}, e.g. '2 bar', '1 %' or '1.6 % of 400 bar'")
+    return band_p
 
-    # --- tolerances
-    tolerance = None
-    if "tolerance" in data:
-        entered = {}
-        band_p = 0.0
-        tp = r.raw("tolerance", "fill_pressure")
-        if tp is not None:
-            if fill_p is None:
-                raise r.err("a fill-pressure tolerance needs a fill pressure", "tolerance.fill_pressure", given=tp,
-                            expected="[fill] pressure, or no fill_pressure tolerance")
-            reading_p = parse(r.raw("fill", "pressure"), "pressure", pressure_basis=basis)
-            reading_value = reading_p.si()  # the reading as shown, on its own basis [Pa]
-            m = _FULL_SCALE.match(tp) if isinstance(tp, str) else None
-            if m:
-                pct = parse(m.group(1), "fraction", file=source, key="tolerance.fill_pressure").si()
-                scale = parse(m.group(2), "pressure", pressure_basis="gauge", file=source,
-                              key="tolerance.fill_pressure").si()
-                band_p = pct * scale
-            else:
-                t_read = parse(tp, "fraction", file=source, key="tolerance.fill_pressure") \
-                    if isinstance(tp, str) and tp.strip().endswith("%") else None
-                if t_read is not None:
-                    band_p = t_read.si() * reading_value
-                else:
-                    band_p = parse(tp, "pressure", pressure_basis="gauge", file=source,
-                                   key="tolerance.fill_pressure").si()
-            if band_p < 0.0 or band_p >= reading_value:
-                raise r.err("the fill-pressure tolerance must be at least zero and smaller than the reading",
-                            "tolerance.fill_pressure", given=tp,
-                            expected=f"below {r.raw('fill', 'pressure')}, e.g. '2 bar', '1 %' or '1.6 % of 400 bar'")
-            entered["fill_pressure"] = tp
 
-        def band_t(key, reading_k):
-            value = r.raw("tolerance", key)
-            if value is None:
-                return 0.0
-            band = parse(value, "temperature", file=source, key=f"tolerance.{key}").si_difference()
-            if band < 0.0 or (reading_k is not None and band >= reading_k):
-                raise r.err(f"the {key.replace('_', ' ')} tolerance must be at least zero and smaller than the "
-                            "reading", f"tolerance.{key}", given=value, expected="e.g. '2 K' or '3 degC'")
-            entered[key] = value
-            return band
-        tolerance = Tolerance(band_p, band_t("fill_temperature", fill_t),
-                              band_t("gas_temperature", min(t for s in scenarios for t in
-                                                            (s.gas_temperature_k, s.ambient_max_k) if t)),
-                              entered)
-
-    # --- criteria
+def _criteria(r: _Reader) -> tuple[float, bool]:
+    """The [criteria] table: the required margin below the rating, and whether it is the default."""
     margin_reading = r.quantity("criteria", "required_margin", "fraction")
     if margin_reading is None:
-        margin, margin_default = DEFAULT_REQUIRED_MARGIN, True
-    else:
-        margin, margin_default = margin_reading.si(), False
-        if not 0.0 <= margin < 1.0:
-            raise r.err("required margin out of range", "criteria.required_margin", given=margin_reading.text,
-                        expected="0 % to below 100 %")
-        r.record("criteria.required_margin", margin_reading, margin, "(fraction)")
+        return DEFAULT_REQUIRED_MARGIN, True
+    margin = margin_reading.si()
+    if not 0.0 <= margin < 1.0:
+        raise r.err("required margin out of range", "criteria.required_margin", given=margin_reading.text,
+                    expected="0 % to below 100 %")
+    r.record("criteria.required_margin", margin_reading, margin, "(fraction)")
+    return margin, False
 
+
+def _display_units(r: _Reader) -> dict[str, str]:
+    """The units the case was entered in, for showing results back (atm is shown as bar(a))."""
     display = {
         "pressure": r.labels.get("pressure", "bar(g)"),
         "temperature": r.labels.get("temperature", "degC"),
@@ -465,18 +505,7 @@ def parse_case_data(data: dict, source: str, text: str) -> Case:
     }
     if display["pressure"] == "atm":
         display["pressure"] = "bar(a)"
-
-    return Case(
-        id=case_id, description=description, source=source, text=text,
-        site=Site(site_name, p_atm, elevation), gas=gas,
-        water_capacity_m3=water_capacity, rated_pressure_pa=rated, rated_pressure_kind=rated_kind,
-        relief_set_pressure_pa=relief, max_filling_ratio_kg_m3=max_ratio,
-        fill_pressure_pa=fill_p, fill_temperature_k=fill_t, fill_mass_kg=fill_m,
-        ambient_max_k=ambient, gas_temperature_k=gas_t,
-        required_margin=margin, required_margin_is_default=margin_default,
-        inputs=tuple(r.inputs), display_units=display,
-        scenarios=scenarios, tolerance=tolerance, outside_diameter_m=diameter, length_m=length,
-    )
+    return display
 
 
 def load_case(path: str | Path) -> Case:
