@@ -59,6 +59,7 @@ from ht.conv_free_immersed import Nu_horizontal_cylinder_Churchill_Chu, Nu_verti
 
 from screening.constants import G0, P_STANDARD_ATMOSPHERE, STEFAN_BOLTZMANN
 from screening.errors import InputError, NotApplicable
+from screening.physics.eos import coolprop_library
 from screening.physics.roots import brentq
 
 __all__ = [
@@ -295,6 +296,7 @@ def air_properties(temperature_k: float, pressure_pa: float = P_STANDARD_ATMOSPH
     0.707
     """
     t, p = float(temperature_k), float(pressure_pa)
+    coolprop_library.use(("Air",))   # whole before its first state (see coolprop_library)
     k = CP.PropsSI("L", "T", t, "P", p, "Air")
     mu = CP.PropsSI("V", "T", t, "P", p, "Air")
     rho = CP.PropsSI("D", "T", t, "P", p, "Air")
