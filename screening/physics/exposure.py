@@ -41,7 +41,8 @@ J. Heat Transfer 99 (1977) 300-306; Churchill, S. W., AIChE J. 23 (1977) 10-16 (
 and forced convection); Swinbank, W. C., Q. J. R. Meteorol. Soc. 89 (1963) 339-348; Incropera,
 DeWitt, Bergman & Lavine (2007), Fundamentals of Heat and Mass Transfer, 6th ed., Wiley. Values
 quoted from these textbooks here are not independently checked (no readable copy at hand).
-Correlations are evaluated with Caleb Bell's `ht` library; air properties with CoolProp.
+Correlations are evaluated with Caleb Bell's `ht` library, imported where used (only a case with the sun's
+energy balance needs it); air properties with CoolProp.
 """
 
 from __future__ import annotations
@@ -54,11 +55,10 @@ from functools import lru_cache
 from pathlib import Path
 
 import CoolProp.CoolProp as CP
-from ht.conv_external import Nu_cylinder_Churchill_Bernstein
-from ht.conv_free_immersed import Nu_horizontal_cylinder_Churchill_Chu, Nu_vertical_plate_Churchill
 
 from screening.constants import G0, P_STANDARD_ATMOSPHERE, STEFAN_BOLTZMANN
 from screening.errors import InputError, NotApplicable
+from screening.physics.eos import coolprop_library
 from screening.physics.roots import brentq
 
 __all__ = [
@@ -295,6 +295,7 @@ def air_properties(temperature_k: float, pressure_pa: float = P_STANDARD_ATMOSPH
     0.707
     """
     t, p = float(temperature_k), float(pressure_pa)
+    coolprop_library.use(("Air",))   # whole before its first state (see coolprop_library)
     k = CP.PropsSI("L", "T", t, "P", p, "Air")
     mu = CP.PropsSI("V", "T", t, "P", p, "Air")
     rho = CP.PropsSI("D", "T", t, "P", p, "Air")
@@ -319,6 +320,8 @@ def natural_nusselt(rayleigh: float, prandtl: float, orientation: str = "horizon
     >>> round(natural_nusselt(1e7, 0.7), 2)
     28.2
     """
+    from ht.conv_free_immersed import Nu_horizontal_cylinder_Churchill_Chu, Nu_vertical_plate_Churchill
+
     ra = _non_negative(rayleigh, "rayleigh", "-")
     pr = _positive(prandtl, "prandtl", "-")
     if orientation == "horizontal":
@@ -348,6 +351,8 @@ def forced_nusselt(reynolds: float, prandtl: float) -> float:
     >>> round(forced_nusselt(1e4, 0.7), 2)
     53.33
     """
+    from ht.conv_external import Nu_cylinder_Churchill_Bernstein
+
     re = _non_negative(reynolds, "reynolds", "-")
     pr = _positive(prandtl, "prandtl", "-")
     if re * pr <= RE_PR_MIN_CHURCHILL_BERNSTEIN:
@@ -437,6 +442,9 @@ def _convection(t_wall: float, t_amb: float, wind: float, d: float, length: floa
                 orientation: str, *, check: bool) -> _Convection:
     """h [W/(m2 K)] at the film temperature. With check=False the correlations are evaluated
     without range checks (inside the root search); the final state is checked."""
+    from ht.conv_external import Nu_cylinder_Churchill_Bernstein
+    from ht.conv_free_immersed import Nu_horizontal_cylinder_Churchill_Chu, Nu_vertical_plate_Churchill
+
     air = air_properties(0.5 * (t_wall + t_amb))
     k, nu, pr = air.conductivity_w_mk, air.kinematic_viscosity_m2_s, air.prandtl
     l_nat = d if orientation == "horizontal" else length

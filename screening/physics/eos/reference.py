@@ -38,6 +38,7 @@ import numpy as np
 
 from screening.errors import NotApplicable
 from screening.physics import mixtures as _mix
+from screening.physics.eos import coolprop_library
 from screening.physics.roots import brentq as _brentq
 
 MODEL = "reference"
@@ -191,6 +192,7 @@ class ReferenceFluid:
         if any(not math.isfinite(x) or x <= 0.0 for x in fractions) or abs(sum(fractions) - 1.0) > 1e-6:
             raise NotApplicable(MODEL, "mole fractions must be positive and sum to 1", value=fractions,
                                 valid_range="each in (0, 1], sum 1 +- 1e-6")
+        coolprop_library.use(names)   # whole (superancillaries included) before any state of them
         cas = []
         for n in names:
             try:
