@@ -101,3 +101,15 @@ def test_nothing_changes_where_coolprop_was_imported_already():
     assert coolprop_library.is_lean() is False
     coolprop_library.use(["Nitrogen"])   # nothing to add back: the library is whole
     assert coolprop_library.SWITCH not in os.environ
+
+
+def test_golden_corpus_of_single_cases_is_unchanged_with_the_lean_library():
+    # reference: the golden corpus (tests/golden/), captured with CoolProp loaded whole
+    script = ("import runpy, sys\n"
+              "from screening.physics.eos import coolprop_library\n"
+              "assert coolprop_library.load_lean()\n"
+              "sys.argv = ['compare.py', '--no-batch']\n"
+              "runpy.run_path('tests/golden/compare.py', run_name='__main__')\n")
+    done = subprocess.run([sys.executable, "-c", script], cwd=ROOT, capture_output=True, text=True)
+    assert done.returncode == 0, done.stdout[-3000:] + done.stderr[-3000:]
+    assert "no differences" in done.stdout
