@@ -35,7 +35,7 @@ from screening.physics.exposure import (
 )
 from screening.physics.gases import Mixture
 from screening.physics.isochore import isochore_phases, max_liquid_density
-from screening.physics.mixtures import CubicComponent, case_budget, cubic_phase_on_isochore
+from screening.physics.mixtures import NEIGHBOUR_MARGIN_K, CubicComponent, case_budget, cubic_phase_on_isochore
 from screening.physics.roots import brentq
 from screening.units import percent_pair
 from screening.verdicts import Verdict
@@ -671,10 +671,12 @@ def _limits(case: Case, models: list[Model], t_fill: float, t_peak: float) -> di
                 fill_to_peak = m.fill_to_peak
                 fluid = _reference_fluid(case.gas)[0] if m.name == "reference" else None
                 if _phase_at_root(fluid):
-                    # the root's isochore established from the lower of its two temperatures (one check)
+                    # the root's isochore established from NEIGHBOUR_MARGIN_K below the lower of its two
+                    # temperatures: one check covers its fill and worst-case states, and the fill-mass limit's
+                    # root on the same isochore (IsochoreMemo)
                     def fill_to_peak(p: float, fluid=fluid) -> float:
-                        if t_peak < t_fill:
-                            _isochore_from_below(fluid, lambda: fluid.homogeneous_density(p, t_fill), t_peak)
+                        _isochore_from_below(fluid, lambda: fluid.homogeneous_density(p, t_fill),
+                                             min(t_fill, t_peak) - NEIGHBOUR_MARGIN_K)
                         return fluid.pressure(fluid.density(p, t_fill), t_peak)
                     p = _checked_at_root(fluid, p, fill_to_peak, lambda: _root(
                         lambda p: fill_to_peak(p) - target, p_lo, p_hi, n=40))

@@ -257,25 +257,61 @@ def single_phase_label(T: float, rho: float, t_pseudo: float, rho_pseudo: float)
     return "liquid" if rho > rho_pseudo else "gas"
 
 
+#: A neighbouring isochore [-, relative density] and the margin [K] above its established temperature within
+#: which :class:`IsochoreMemo` carries an established state over to it (see there).
+NEIGHBOUR_RTOL = 1e-6
+NEIGHBOUR_MARGIN_K = 1.0
+
+
 class IsochoreMemo:
     """Lowest temperature [K] established one-phase on each isochore (keyed by the exact density), so a
-    state higher up the same isochore needs no new flash (see the module doc). Thread-safe; bounded size."""
+    state higher up the same isochore needs no new flash (see the module doc). Thread-safe; bounded size.
+
+    A neighbouring isochore is covered too: a state (rho, T) with an isochore rho' established one-phase from
+    t0, |rho - rho'| <= NEIGHBOUR_RTOL rho' and T >= t0 + NEIGHBOUR_MARGIN_K. Argument: the boundary of the
+    two-phase region in the temperature-density plane, T_b(rho), is continuous, and its slope
+    |dT_b/d ln rho| is far below 1e6 K (about T over the fluid's relative density change along the boundary:
+    tens of kelvins on the dew side, about 1/alpha = 500-1000 K on the bubble side where alpha ~ 1e-3 /K is a
+    liquid's thermal expansion), so T_b(rho) <= t0 + 1e6 K x 1e-6 = t0 + 1 K <= T. This carries a limit's
+    state over from one root solve to another of the same isochore solved in other variables (the fill
+    pressure and the fill density reaching the same peak), whose roots agree to the solves' tolerance."""
 
     def __init__(self, size: int = 4096) -> None:
         self._lock = threading.Lock()
         self._t: dict[float, float] = {}
+        self._near: dict[int, list[float]] = {}   # densities by ln(rho) / NEIGHBOUR_RTOL, rounded down
         self._size = size
+
+    @staticmethod
+    def _bucket(rho: float) -> int:
+        return math.floor(math.log(rho) / NEIGHBOUR_RTOL)
 
     def covers(self, rho: float, T: float) -> bool:
         with self._lock:
             t0 = self._t.get(rho)
-        return t0 is not None and T >= t0
+            if t0 is not None and T >= t0:
+                return True
+            if not (rho > 0.0 and math.isfinite(rho)):
+                return False
+            b = self._bucket(rho)
+            for k in (b - 1, b, b + 1):
+                for r in self._near.get(k, ()):
+                    if abs(rho - r) <= NEIGHBOUR_RTOL * r and T >= self._t[r] + NEIGHBOUR_MARGIN_K:
+                        return True
+        return False
 
     def record(self, rho: float, T: float) -> None:
         with self._lock:
             t0 = self._t.get(rho)
             if t0 is None and len(self._t) >= self._size:
-                self._t.pop(next(iter(self._t)))
+                old = next(iter(self._t))
+                self._t.pop(old)
+                near = self._near[self._bucket(old)]
+                near.remove(old)
+                if not near:
+                    del self._near[self._bucket(old)]
+            if t0 is None:
+                self._near.setdefault(self._bucket(rho), []).append(rho)
             if t0 is None or T < t0:
                 self._t[rho] = T
 
