@@ -35,7 +35,7 @@ from screening.physics.exposure import (
 )
 from screening.physics.gases import Mixture
 from screening.physics.isochore import isochore_phases, max_liquid_density
-from screening.physics.mixtures import NEIGHBOUR_MARGIN_K, CubicComponent, case_budget, cubic_phase_on_isochore
+from screening.physics.mixtures import ESTABLISH_BELOW_K, CubicComponent, case_budget, cubic_phase_on_isochore
 from screening.physics.roots import brentq
 from screening.units import percent_pair
 from screening.verdicts import Verdict
@@ -439,8 +439,9 @@ def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> Fil
             return fs
     try:
         if case.fill_pressure_pa is not None:
-            if _phase_at_root(fluid) and t_peak < t_fill:
-                _isochore_from_below(fluid, lambda: fluid.homogeneous_density(case.fill_pressure_pa, t_fill), t_peak)
+            if _phase_at_root(fluid):
+                _isochore_from_below(fluid, lambda: fluid.homogeneous_density(case.fill_pressure_pa, t_fill),
+                                     min(t_fill, t_peak))
             rho_molar = fluid.density(case.fill_pressure_pa, t_fill)
             fs.rho_mass = rho_molar * M
         else:
@@ -461,8 +462,8 @@ def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> Fil
             fs.dp_dt_after_liquid_full = ph.dp_dt_after_liquid_full
             fs.crossing_pressure = ph.crossing_pressure
         else:
-            if _phase_at_root(fluid) and t_peak < t_fill:
-                _isochore_from_below(fluid, lambda: rho_molar, t_peak)
+            if _phase_at_root(fluid):
+                _isochore_from_below(fluid, lambda: rho_molar, min(t_fill, t_peak))
             fs.phase_fill = fluid.phase(rho_molar, t_fill)
             fs.phase_peak = fluid.phase(rho_molar, t_peak)
             if isinstance(fluid, LiquefiedBlend) and fs.phase_fill == "two-phase":
@@ -511,14 +512,18 @@ def _phase_at_root(fluid: ReferenceFluid | None) -> bool:
     return fluid is not None and fluid.is_mixture and not isinstance(fluid, LiquefiedBlend)
 
 
-def _isochore_from_below(fluid: ReferenceFluid, density: Callable[[], float], t_low: float) -> None:
-    """Establish a mixture's isochore at t_low [K] before its states above it: one phase there means one phase
-    at every higher temperature on the same isochore (physics.mixtures, "Along an isochore"), so the checks
-    that follow at the fill and the worst case need no flash of their own. Where it does not establish the
-    phase nothing is concluded here: the checks that follow, in their usual order, give their own reason (the
-    answer at t_low is kept by the fluid, so asking again costs nothing)."""
+def _isochore_from_below(fluid: ReferenceFluid, density: Callable[[], float], t_need: float) -> None:
+    """Establish a mixture's isochore ESTABLISH_BELOW_K under t_need [K], the lowest temperature a screening
+    needs on it, before its states above it, unless those are established already: one phase there means one phase at every higher temperature on the
+    same isochore and on its close neighbours 1 K higher (physics.mixtures, IsochoreMemo), so the checks that
+    follow at the fill, the worst case, the tolerance steps and the limits need no flash of their own. Where it
+    does not establish the phase (an isochore that meets the two-phase region within those kelvins, a
+    temperature below the equations' range) nothing is concluded here: the checks that follow, in their usual
+    order, decide and give their own reason, as they would without this step, for one flash more."""
     try:
-        fluid.phase(density(), t_low)
+        rho = density()
+        if not fluid.phase_established(rho, t_need):
+            fluid.phase(rho, t_need - ESTABLISH_BELOW_K)
     except NotApplicable:
         pass
 
@@ -671,12 +676,12 @@ def _limits(case: Case, models: list[Model], t_fill: float, t_peak: float) -> di
                 fill_to_peak = m.fill_to_peak
                 fluid = _reference_fluid(case.gas)[0] if m.name == "reference" else None
                 if _phase_at_root(fluid):
-                    # the root's isochore established from NEIGHBOUR_MARGIN_K below the lower of its two
-                    # temperatures: one check covers its fill and worst-case states, and the fill-mass limit's
-                    # root on the same isochore (IsochoreMemo)
+                    # the root's isochore established from below the lower of its two temperatures: one
+                    # check covers its fill and worst-case states, and the fill-mass limit's root on the same
+                    # isochore (IsochoreMemo)
                     def fill_to_peak(p: float, fluid=fluid) -> float:
                         _isochore_from_below(fluid, lambda: fluid.homogeneous_density(p, t_fill),
-                                             min(t_fill, t_peak) - NEIGHBOUR_MARGIN_K)
+                                             min(t_fill, t_peak))
                         return fluid.pressure(fluid.density(p, t_fill), t_peak)
                     p = _checked_at_root(fluid, p, fill_to_peak, lambda: _root(
                         lambda p: fill_to_peak(p) - target, p_lo, p_hi, n=40))

@@ -259,8 +259,12 @@ def single_phase_label(T: float, rho: float, t_pseudo: float, rho_pseudo: float)
 
 #: A neighbouring isochore [-, relative density] and the margin [K] above its established temperature within
 #: which :class:`IsochoreMemo` carries an established state over to it (see there).
-NEIGHBOUR_RTOL = 1e-6
+NEIGHBOUR_RTOL = 1e-4
 NEIGHBOUR_MARGIN_K = 1.0
+#: How far [K] below the lowest temperature it needs a screening establishes an isochore (fill, limits), so
+#: that it covers its neighbours' states down to 1 K below that temperature too (the small steps of the
+#: tolerance sensitivities, a limit solved in other variables on the same isochore).
+ESTABLISH_BELOW_K = 2.0 * NEIGHBOUR_MARGIN_K
 
 
 class IsochoreMemo:
@@ -269,12 +273,16 @@ class IsochoreMemo:
 
     A neighbouring isochore is covered too: a state (rho, T) with an isochore rho' established one-phase from
     t0, |rho - rho'| <= NEIGHBOUR_RTOL rho' and T >= t0 + NEIGHBOUR_MARGIN_K. Argument: the boundary of the
-    two-phase region in the temperature-density plane, T_b(rho), is continuous, and its slope
-    |dT_b/d ln rho| is far below 1e6 K (about T over the fluid's relative density change along the boundary:
-    tens of kelvins on the dew side, about 1/alpha = 500-1000 K on the bubble side where alpha ~ 1e-3 /K is a
-    liquid's thermal expansion), so T_b(rho) <= t0 + 1e6 K x 1e-6 = t0 + 1 K <= T. This carries a limit's
-    state over from one root solve to another of the same isochore solved in other variables (the fill
-    pressure and the fill density reaching the same peak), whose roots agree to the solves' tolerance."""
+    two-phase region in the temperature-density plane, T_b(rho), is continuous, with a slope |dT_b/d ln rho|
+    of tens of kelvins on the dew side (about R T^2 / (heat of vaporisation)) and about 1/alpha on the bubble
+    side, alpha the saturated liquid's thermal expansion; alpha is at least 1.27e-3 /K for every liquefiable
+    gas of the library between its triple and critical points (n-butane at its triple point is the lowest;
+    CoolProp's reference equations, isobaric expansion coefficient of the saturated liquid, 200 temperatures
+    each), so |dT_b/d ln rho| <= 800 K and T_b(rho) <= t0 + 800 K x 1e-4 = t0 + 0.08 K, under the 1 K
+    margin with a factor over 10 to spare (a mixture's liquid expands about as its components do). It
+    carries an established state over to the sensitivity steps of the input tolerances (fill pressure and
+    temperature moved by 1e-5 and 0.05 K) and from one limit solve to another of the same isochore solved
+    in other variables (the fill pressure and the fill density that reach the same peak)."""
 
     def __init__(self, size: int = 4096) -> None:
         self._lock = threading.Lock()

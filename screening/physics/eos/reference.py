@@ -581,6 +581,11 @@ class ReferenceFluid:
         self._check_stable(rho, T)
         return p, "homogeneous"
 
+    def phase_established(self, rho_molar: float, T: float) -> bool:
+        """Whether the state (rho_molar [mol/m3], T [K]) of a mixture is one phase by what this fluid has
+        established already (its isochores, :class:`screening.physics.mixtures.IsochoreMemo`); no flash."""
+        return self.is_mixture and self._memo.covers(float(rho_molar), float(T))
+
     @_holding_the_state
     def homogeneous_pressure(self, rho_molar: float, T: float) -> float:
         """Pressure [Pa] at rho_molar [mol/m3] and T [K] as :meth:`pressure`, but for a mixture *without*
