@@ -6,6 +6,7 @@ absolute [Pa] and temperatures [K]; summaries and reports are views of it.
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass, field, replace
 from typing import Callable
@@ -514,12 +515,13 @@ def _phase_at_root(fluid: ReferenceFluid | None) -> bool:
 
 def _isochore_from_below(fluid: ReferenceFluid, density: Callable[[], float], t_need: float) -> None:
     """Establish a mixture's isochore ESTABLISH_BELOW_K under t_need [K], the lowest temperature a screening
-    needs on it, before its states above it, unless those are established already: one phase there means one phase at every higher temperature on the
-    same isochore and on its close neighbours 1 K higher (physics.mixtures, IsochoreMemo), so the checks that
-    follow at the fill, the worst case, the tolerance steps and the limits need no flash of their own. Where it
-    does not establish the phase (an isochore that meets the two-phase region within those kelvins, a
-    temperature below the equations' range) nothing is concluded here: the checks that follow, in their usual
-    order, decide and give their own reason, as they would without this step, for one flash more."""
+    needs on it, before its states above it, unless those are established already: one phase there means one
+    phase at every higher temperature on the same isochore and on its close neighbours 1 K higher
+    (physics.mixtures, IsochoreMemo), so the checks that follow at the fill, the worst case, the tolerance
+    steps and the limits need no flash of their own. Where it does not establish the phase (an isochore that
+    meets the two-phase region within those kelvins, a temperature below the equations' range) nothing is
+    concluded here: the checks that follow, in their usual order, decide and give their own reason, as they
+    would without this step, for one flash more."""
     try:
         rho = density()
         if not fluid.phase_established(rho, t_need):
@@ -544,6 +546,14 @@ def _checked_at_root(fluid: ReferenceFluid, root: float | None, checked: Callabl
         return root
     except NotApplicable:
         return solve_checked()
+
+
+def _established_fill_to_peak(fluid: ReferenceFluid, p: float, t_fill: float, t_peak: float) -> float:
+    """A mixture's peak [Pa] at t_peak [K] for the fill p [Pa] at t_fill [K], its isochore established from below
+    the lower of the two temperatures: one check covers its fill and worst-case states, and the fill-mass
+    limit's root on the same isochore (IsochoreMemo)."""
+    _isochore_from_below(fluid, lambda: fluid.homogeneous_density(p, t_fill), min(t_fill, t_peak))
+    return fluid.pressure(fluid.density(p, t_fill), t_peak)
 
 
 def _reference(case: Case, fs: FillState, t_fill: float, t_peak: float) -> Model:
@@ -676,15 +686,9 @@ def _limits(case: Case, models: list[Model], t_fill: float, t_peak: float) -> di
                 fill_to_peak = m.fill_to_peak
                 fluid = _reference_fluid(case.gas)[0] if m.name == "reference" else None
                 if _phase_at_root(fluid):
-                    # the root's isochore established from below the lower of its two temperatures: one
-                    # check covers its fill and worst-case states, and the fill-mass limit's root on the same
-                    # isochore (IsochoreMemo)
-                    def fill_to_peak(p: float, fluid=fluid) -> float:
-                        _isochore_from_below(fluid, lambda: fluid.homogeneous_density(p, t_fill),
-                                             min(t_fill, t_peak))
-                        return fluid.pressure(fluid.density(p, t_fill), t_peak)
-                    p = _checked_at_root(fluid, p, fill_to_peak, lambda: _root(
-                        lambda p: fill_to_peak(p) - target, p_lo, p_hi, n=40))
+                    fill_to_peak = functools.partial(_established_fill_to_peak, fluid, t_fill=t_fill, t_peak=t_peak)
+                    p = _checked_at_root(fluid, p, fill_to_peak, lambda f=fill_to_peak: _root(
+                        lambda x: f(x) - target, p_lo, p_hi, n=40))
                 if p is not None and abs(fill_to_peak(p) - target) > 1e-6 * target:
                     p = None
             if p is not None:

@@ -143,3 +143,17 @@ def test_a_kept_phase_answer_is_the_answer_of_both_routes_again():
     assert fluid.mixture_phase(rho, p, T) is first
     fluid._answers.clear()
     assert fluid.mixture_phase(rho, p, T) == first
+
+
+def test_a_limit_root_not_established_is_solved_again_with_every_step_checked():
+    from screening.errors import NotApplicable
+    from screening.screen import _checked_at_root
+
+    fluid = reference_fluid(("Argon", "CarbonDioxide"), (0.82, 0.18))
+
+    def two_phase(x):
+        raise NotApplicable("reference", "two phases")
+
+    assert _checked_at_root(fluid, 5.0, two_phase, lambda: 4.0) == 4.0
+    assert _checked_at_root(fluid, 5.0, lambda x: x, lambda: 4.0) == 5.0
+    assert _checked_at_root(fluid, None, lambda x: x, lambda: 4.0) is None
