@@ -1,7 +1,8 @@
 """Screening CPU per row by kind of row, against a naive PropsSI loop, on inventories that do not flatter the engine.
 
 Run from the repository root:  python benchmarks/kinds.py [ROWS_PER_KIND] [KIND_FILTER]
-(default 2000 rows, mixtures a tenth; KIND_FILTER, e.g. "%", runs only the kinds whose label contains it)
+(default 2000 rows, mixtures a tenth; KIND_FILTER, e.g. "+" for the mixtures, runs only the kinds whose label
+contains it)
 
 For every kind below it writes an invented inventory over realistic random ranges (fills 20-300 bar(g), hydrogen
 to 875, fill temperatures -20...40 degC, worst-case temperatures -40...85 degC, rated pressures 1.1 to 2 times the
