@@ -8,6 +8,7 @@ one process after CoolProp is imported:
 * a repeated screening of the same case (warm: the fluid and its established isochores are reused);
 * the naive cost of the reference peak alone: two PropsSI calls on the mixture string (fill density, peak).
 Targets: warm screen_case below 100 ms; the first screening no more than a few seconds. Plain Python.
+Wall-clock times and the process's CPU times are both printed (on a shared machine the CPU time is the steadier).
 """
 
 from __future__ import annotations
@@ -45,22 +46,25 @@ gas_temperature = "65 degC"
 
 
 def main() -> None:
-    print(f"{'mixture':40s} {'first [s]':>10s} {'warm [ms]':>10s} {'naive PropsSI [ms]':>19s}")
+    print(f"{'mixture':40s} {'first [s]':>10s} {'warm [ms]':>10s} {'naive PropsSI [ms]':>19s} "
+          f"{'first CPU [s]':>14s} {'warm CPU [ms]':>14s}")
     for gas, heos in MIXTURES:
         case = parse_case_text(CASE.format(gas=gas), "<bench>")
-        t0 = time.perf_counter()
+        t0, c0 = time.perf_counter(), time.process_time()
         screen_case(case)
-        first = time.perf_counter() - t0
-        warm = []
+        first, first_cpu = time.perf_counter() - t0, time.process_time() - c0
+        warm, warm_cpu = [], []
         for _ in range(5):
-            t0 = time.perf_counter()
+            t0, c0 = time.perf_counter(), time.process_time()
             screen_case(case)
             warm.append(time.perf_counter() - t0)
+            warm_cpu.append(time.process_time() - c0)
         t0 = time.perf_counter()
         rho = CP.PropsSI("Dmolar", "P", 201.325e5, "T", 288.15, "HEOS::" + heos)
         CP.PropsSI("P", "Dmolar", rho, "T", 338.15, "HEOS::" + heos)
         naive = time.perf_counter() - t0
-        print(f"{gas[:40]:40s} {first:10.2f} {statistics.median(warm) * 1e3:10.1f} {naive * 1e3:19.1f}")
+        print(f"{gas[:40]:40s} {first:10.2f} {statistics.median(warm) * 1e3:10.1f} {naive * 1e3:19.1f} "
+              f"{first_cpu:14.2f} {statistics.median(warm_cpu) * 1e3:14.1f}", flush=True)
 
 
 if __name__ == "__main__":

@@ -6,6 +6,7 @@ absolute [Pa] and temperatures [K]; summaries and reports are views of it.
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass, field, replace
 from typing import Callable
@@ -35,7 +36,7 @@ from screening.physics.exposure import (
 )
 from screening.physics.gases import Mixture
 from screening.physics.isochore import isochore_phases, max_liquid_density
-from screening.physics.mixtures import CubicComponent, case_budget, cubic_phase_on_isochore
+from screening.physics.mixtures import ESTABLISH_BELOW_K, CubicComponent, case_budget, cubic_phase_on_isochore
 from screening.physics.roots import brentq
 from screening.units import percent_pair
 from screening.verdicts import Verdict
@@ -439,6 +440,9 @@ def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> Fil
             return fs
     try:
         if case.fill_pressure_pa is not None:
+            if _phase_at_root(fluid):
+                _isochore_from_below(fluid, lambda: fluid.homogeneous_density(case.fill_pressure_pa, t_fill),
+                                     min(t_fill, t_peak))
             rho_molar = fluid.density(case.fill_pressure_pa, t_fill)
             fs.rho_mass = rho_molar * M
         else:
@@ -459,6 +463,8 @@ def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> Fil
             fs.dp_dt_after_liquid_full = ph.dp_dt_after_liquid_full
             fs.crossing_pressure = ph.crossing_pressure
         else:
+            if _phase_at_root(fluid):
+                _isochore_from_below(fluid, lambda: rho_molar, min(t_fill, t_peak))
             fs.phase_fill = fluid.phase(rho_molar, t_fill)
             fs.phase_peak = fluid.phase(rho_molar, t_peak)
             if isinstance(fluid, LiquefiedBlend) and fs.phase_fill == "two-phase":
@@ -501,6 +507,55 @@ def _mixture_liquid_like(gas: Mixture, fluid: ReferenceFluid, fs: FillState, rho
     return rho_molar >= rho_c and t_fill <= LIQUID_LIKE_TEMPERATURE_RATIO * tc
 
 
+def _phase_at_root(fluid: ReferenceFluid | None) -> bool:
+    """A mixture (not a liquefied blend) whose limit solves run on its homogeneous states, the phase then
+    established at the root only (see :func:`_checked_at_root`)."""
+    return fluid is not None and fluid.is_mixture and not isinstance(fluid, LiquefiedBlend)
+
+
+def _isochore_from_below(fluid: ReferenceFluid, density: Callable[[], float], t_need: float) -> None:
+    """Establish a mixture's isochore ESTABLISH_BELOW_K under t_need [K], the lowest temperature a screening
+    needs on it, before its states above it, unless those are established already: one phase there means one
+    phase at every higher temperature on the same isochore and on its close neighbours 1 K higher
+    (physics.mixtures, IsochoreMemo), so the checks that follow at the fill, the worst case, the tolerance
+    steps and the limits need no flash of their own. Where it does not establish the phase (an isochore that
+    meets the two-phase region within those kelvins, a temperature below the equations' range) nothing is
+    concluded here: the checks that follow, in their usual order, decide and give their own reason, as they
+    would without this step, for one flash more."""
+    try:
+        rho = density()
+        if not fluid.phase_established(rho, t_need):
+            fluid.phase(rho, t_need - ESTABLISH_BELOW_K)
+    except NotApplicable:
+        pass
+
+
+def _checked_at_root(fluid: ReferenceFluid, root: float | None, checked: Callable[[float], float],
+                     solve_checked: Callable[[], float | None]) -> float | None:
+    """A root found on a mixture's homogeneous states (:meth:`ReferenceFluid.homogeneous_pressure`), kept
+    where ``checked(root)`` establishes its state by both phase routes; else the solve again with the phase
+    established at every step (``solve_checked``), as for any state.
+
+    Why the iterates need no phase of their own: a limit is one state, the root; the solver's other states are
+    no vessel's state, and where the phase holds there the homogeneous pressure is the very number the checked
+    evaluation gives. Only the root is reported, and it is reported only once established."""
+    if root is None:
+        return None
+    try:
+        checked(root)
+        return root
+    except NotApplicable:
+        return solve_checked()
+
+
+def _established_fill_to_peak(fluid: ReferenceFluid, p: float, t_fill: float, t_peak: float) -> float:
+    """A mixture's peak [Pa] at t_peak [K] for the fill p [Pa] at t_fill [K], its isochore established from below
+    the lower of the two temperatures: one check covers its fill and worst-case states, and the fill-mass
+    limit's root on the same isochore (IsochoreMemo)."""
+    _isochore_from_below(fluid, lambda: fluid.homogeneous_density(p, t_fill), min(t_fill, t_peak))
+    return fluid.pressure(fluid.density(p, t_fill), t_peak)
+
+
 def _reference(case: Case, fs: FillState, t_fill: float, t_peak: float) -> Model:
     fluid = fs.fluid
     if fluid is None or fs.rho_mass is None:
@@ -521,6 +576,8 @@ def _reference(case: Case, fs: FillState, t_fill: float, t_peak: float) -> Model
         extra["mixing_rule"] = fluid.mixing_rule
 
     def fill_to_peak(p: float) -> float:
+        if _phase_at_root(fluid):  # a mixture's limit is solved on homogeneous states (see _limits)
+            return fluid.homogeneous_pressure(fluid.homogeneous_density(p, t_fill), t_peak)
         return fluid.pressure(fluid.density(p, t_fill), t_peak)
 
     return Model("reference", True, "multiparameter Helmholtz-energy equation of state (CoolProp)",
@@ -626,7 +683,13 @@ def _limits(case: Case, models: list[Model], t_fill: float, t_peak: float) -> di
                 settled, p = _known_root(m.fill_for_peak(target), f_array, p_lo, p_hi, 40, 1e-6 * target)
             if not settled:
                 p = _root(lambda p, m=m: m.fill_to_peak(p) - target, p_lo, p_hi, n=40, f_array=f_array)
-                if p is not None and abs(m.fill_to_peak(p) - target) > 1e-6 * target:
+                fill_to_peak = m.fill_to_peak
+                fluid = _reference_fluid(case.gas)[0] if m.name == "reference" else None
+                if _phase_at_root(fluid):
+                    fill_to_peak = functools.partial(_established_fill_to_peak, fluid, t_fill=t_fill, t_peak=t_peak)
+                    p = _checked_at_root(fluid, p, fill_to_peak, lambda f=fill_to_peak: _root(
+                        lambda x: f(x) - target, p_lo, p_hi, n=40))
+                if p is not None and abs(fill_to_peak(p) - target) > 1e-6 * target:
                     p = None
             if p is not None:
                 max_p.append(p)
@@ -682,7 +745,10 @@ def _mass_limit(case: Case, models: list[Model], t_fill: float, t_peak: float, t
     except NotApplicable:
         return none
     basis = "the required margin at the worst-case temperature"
-    rho = _root(lambda r: fluid.pressure(r, t_peak) - target, 1e-6 * rho_top, rho_top * 0.999, n=60)
+    rho = _root(lambda r: fluid.homogeneous_pressure(r, t_peak) - target, 1e-6 * rho_top, rho_top * 0.999, n=60)
+    if _phase_at_root(fluid):
+        rho = _checked_at_root(fluid, rho, lambda r: fluid.pressure(r, t_peak), lambda: _root(
+            lambda r: fluid.pressure(r, t_peak) - target, 1e-6 * rho_top, rho_top * 0.999, n=60))
     if rho is None:
         return none
     if _has_liquid_full_analysis(fluid):

@@ -257,25 +257,69 @@ def single_phase_label(T: float, rho: float, t_pseudo: float, rho_pseudo: float)
     return "liquid" if rho > rho_pseudo else "gas"
 
 
+#: A neighbouring isochore [-, relative density] and the margin [K] above its established temperature within
+#: which :class:`IsochoreMemo` carries an established state over to it (see there).
+NEIGHBOUR_RTOL = 1e-4
+NEIGHBOUR_MARGIN_K = 1.0
+#: How far [K] below the lowest temperature it needs a screening establishes an isochore (fill, limits), so
+#: that it covers its neighbours' states down to 1 K below that temperature too (the small steps of the
+#: tolerance sensitivities, a limit solved in other variables on the same isochore).
+ESTABLISH_BELOW_K = 2.0 * NEIGHBOUR_MARGIN_K
+
+
 class IsochoreMemo:
     """Lowest temperature [K] established one-phase on each isochore (keyed by the exact density), so a
-    state higher up the same isochore needs no new flash (see the module doc). Thread-safe; bounded size."""
+    state higher up the same isochore needs no new flash (see the module doc). Thread-safe; bounded size.
+
+    A neighbouring isochore is covered too: a state (rho, T) with an isochore rho' established one-phase from
+    t0, |rho - rho'| <= NEIGHBOUR_RTOL rho' and T >= t0 + NEIGHBOUR_MARGIN_K. Argument: the boundary of the
+    two-phase region in the temperature-density plane, T_b(rho), is continuous, with a slope |dT_b/d ln rho|
+    of tens of kelvins on the dew side (about R T^2 / (heat of vaporisation)) and about 1/alpha on the bubble
+    side, alpha the saturated liquid's thermal expansion; alpha is at least 1.27e-3 /K for every liquefiable
+    gas of the library between its triple and critical points (n-butane at its triple point is the lowest;
+    CoolProp's reference equations, isobaric expansion coefficient of the saturated liquid, 200 temperatures
+    each), so |dT_b/d ln rho| <= 800 K and T_b(rho) <= t0 + 800 K x 1e-4 = t0 + 0.08 K, under the 1 K
+    margin with a factor over 10 to spare (a mixture's liquid expands about as its components do). It
+    carries an established state over to the sensitivity steps of the input tolerances (fill pressure and
+    temperature moved by 1e-5 and 0.05 K) and from one limit solve to another of the same isochore solved
+    in other variables (the fill pressure and the fill density that reach the same peak)."""
 
     def __init__(self, size: int = 4096) -> None:
         self._lock = threading.Lock()
         self._t: dict[float, float] = {}
+        self._near: dict[int, list[float]] = {}   # densities by ln(rho) / NEIGHBOUR_RTOL, rounded down
         self._size = size
+
+    @staticmethod
+    def _bucket(rho: float) -> int:
+        return math.floor(math.log(rho) / NEIGHBOUR_RTOL)
 
     def covers(self, rho: float, T: float) -> bool:
         with self._lock:
             t0 = self._t.get(rho)
-        return t0 is not None and T >= t0
+            if t0 is not None and T >= t0:
+                return True
+            if not (rho > 0.0 and math.isfinite(rho)):
+                return False
+            b = self._bucket(rho)
+            for k in (b - 1, b, b + 1):
+                for r in self._near.get(k, ()):
+                    if abs(rho - r) <= NEIGHBOUR_RTOL * r and T >= self._t[r] + NEIGHBOUR_MARGIN_K:
+                        return True
+        return False
 
     def record(self, rho: float, T: float) -> None:
         with self._lock:
             t0 = self._t.get(rho)
             if t0 is None and len(self._t) >= self._size:
-                self._t.pop(next(iter(self._t)))
+                old = next(iter(self._t))
+                self._t.pop(old)
+                near = self._near[self._bucket(old)]
+                near.remove(old)
+                if not near:
+                    del self._near[self._bucket(old)]
+            if t0 is None:
+                self._near.setdefault(self._bucket(rho), []).append(rho)
             if t0 is None or T < t0:
                 self._t[rho] = T
 

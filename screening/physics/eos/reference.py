@@ -51,6 +51,9 @@ SATURATION_BAND = 1e-9
 
 _TWO_PHASE = CoolProp.iphase_twophase
 
+#: Most settled phase answers one mixture keeps (oldest dropped first).
+_ANSWERS_KEPT = 4096
+
 
 # --------------------------------------------------------------------------------------------------
 # Bibliography (CoolProp ships its BibTeX library next to the extension module)
@@ -243,7 +246,14 @@ class ReferenceFluid:
 
     # ---------------------------------------------------------------------------------------------
     def eos_references(self) -> list[str]:
-        """Published sources of the equations of state used (components, then mixture departure functions)."""
+        """Published sources of the equations of state used (components, then mixture departure functions).
+        Read from CoolProp's bibliography once per fluid (a few milliseconds a citation), a new list each call."""
+        refs = self.__dict__.get("_eos_references")
+        if refs is None:
+            refs = self._eos_references = self._read_eos_references()   # same text whichever thread writes it
+        return list(refs)
+
+    def _read_eos_references(self) -> tuple[str, ...]:
         refs = []
         for n in self.names:
             key = CP.get_fluid_param_string(n, "BibTeX-EOS")
@@ -256,7 +266,7 @@ class ReferenceFluid:
                     if key and key not in seen:
                         seen.add(key)
                         refs.append(f"{self.names[i]}/{self.names[j]} interaction: {_citation(key)}")
-        return refs
+        return tuple(refs)
 
     # ---------------------------------------------------------------------------------------------
     # range checks
@@ -366,6 +376,11 @@ class ReferenceFluid:
             f"fitted for every pair ({', '.join(pairs)}); phase checked by CoolProp's flash and by "
             f"{_mix.CUBIC_MIXING_RULE}")
         self._memo = _mix.IsochoreMemo()
+        #: Settled phase answers (one phase or two) keyed by the exact state (rho, p, T): both routes are
+        #: deterministic, so the same state asked again (a scenario, a tolerance corner, a repeated row, a
+        #: warm screening) gets the same answer without a flash. Answers that could not be established (a
+        #: route that failed or ran out of time) are not kept. Read and written under the fluid's lock.
+        self._answers: dict[tuple[float, float, float], _mix.PhaseAnswer] = {}
         self.phase_time_bound = _mix.PHASE_TIME_BOUND
 
     def _homogeneous(self, rho: float, T: float) -> float:
@@ -410,7 +425,20 @@ class ReferenceFluid:
                       budget: _mix.Budget | None = None) -> _mix.PhaseAnswer:
         """Whether the homogeneous state (rho [mol/m3], p [Pa], T [K]) is one phase, by both routes
         (reference: CoolProp's PT flash with its stability analysis, the density checked on the way
-        back; cubic: thermo's Peng–Robinson flash), within ``phase_time_bound`` seconds."""
+        back; cubic: thermo's Peng–Robinson flash), within ``phase_time_bound`` seconds. A settled answer is
+        kept for the exact state (see ``_answers``)."""
+        key = (float(rho), float(p), float(T))
+        known = self._answers.get(key)
+        if known is not None:
+            return known
+        answer = self._mixture_phase(rho, p, T, budget)
+        if answer.single is not None and not any(a.phases is None for a in answer.routes):
+            if len(self._answers) >= _ANSWERS_KEPT:
+                self._answers.pop(next(iter(self._answers)))
+            self._answers[key] = answer
+        return answer
+
+    def _mixture_phase(self, rho: float, p: float, T: float, budget: _mix.Budget | None) -> _mix.PhaseAnswer:
         over = _mix.take_check()
         if over:
             return _mix.PhaseAnswer(None, (), over)
@@ -507,7 +535,13 @@ class ReferenceFluid:
                 raise NotApplicable(MODEL, f"{self.label}: PT flash at p={p:.6g} Pa, T={T:.6g} K gave "
                                     f"{rho:.6g} mol/m3 which maps back to {p_back:.6g} Pa", value=(p, T))
             return float(rho)
+        return self._mixture_density(p, T, self._evaluate)
+
+    def _mixture_density(self, p: float, T: float, evaluate) -> float:
+        """A mixture's density [mol/m3] at (p [Pa], T [K]); ``evaluate(rho, T) -> (p, phase)`` re-checks the
+        state found (:meth:`_evaluate`, or the homogeneous state alone for :meth:`homogeneous_density`)."""
         where = f"at {T - 273.15:.1f} °C and {p / 1e5:.4g} bar(a)"
+        a = self._state
         # The homogeneous root at (p, T) with the phase imposed (no stability analysis: 0.1 ms instead of
         # 40-70 ms); whether it is the stable state is decided by both routes in the density-temperature path.
         rho = None
@@ -531,11 +565,53 @@ class ReferenceFluid:
                 raise NotApplicable(MODEL, f"{_mix.CANNOT} {where}: neither the reference nor the cubic "
                                     "equation gives a density there", value=(p, T)) from None
         # the density-temperature path re-checks: stability, round trip and both phase routes
-        p_back, _ = self._evaluate(rho, T)
+        p_back, _ = evaluate(rho, T)
         if abs(p_back - p) > ROUND_TRIP_RTOL * p:
             raise NotApplicable(MODEL, f"{_mix.CANNOT} {where}: the density found maps back to "
                                 f"{p_back / 1e5:.6g} bar(a)", value=(p, T))
         return float(rho)
+
+    # ---------------------------------------------------------------------------------------------
+    # homogeneous states of a mixture, for root solving: the phase is established afterwards, at the root
+    def _homogeneous_checked(self, rho: float, T: float) -> tuple[float, str]:
+        """(p [Pa], "homogeneous") of a mixture at (rho, T): ranges and mechanical stability checked, the
+        phase not established."""
+        self._check_density(rho)
+        self._check_temperature(T)
+        p = self._homogeneous(rho, T)
+        self._check_pressure(p)
+        self._check_stable(rho, T)
+        return p, "homogeneous"
+
+    def phase_established(self, rho_molar: float, T: float) -> bool:
+        """Whether the state (rho_molar [mol/m3], T [K]) of a mixture is one phase by what this fluid has
+        established already (its isochores, :class:`screening.physics.mixtures.IsochoreMemo`); no flash."""
+        return self.is_mixture and self._memo.covers(float(rho_molar), float(T))
+
+    @_holding_the_state
+    def homogeneous_pressure(self, rho_molar: float, T: float) -> float:
+        """Pressure [Pa] at rho_molar [mol/m3] and T [K] as :meth:`pressure`, but for a mixture *without*
+        establishing its phase (ranges and (dP/drho)_T > 0 are checked): the same number :meth:`pressure`
+        gives wherever that gives one, at no phase check's cost. For a pure fluid, :meth:`pressure` itself.
+
+        For root solving only (the limits): the iterates of a solve are no state of any vessel, so their
+        phase does not matter; the state kept (the root) must then be established by :meth:`pressure`,
+        :meth:`density` or :meth:`phase`, which run both phase routes. Nothing else may use this number.
+        """
+        if not self.is_mixture:
+            return self._evaluate(float(rho_molar), float(T))[0]
+        return self._homogeneous_checked(float(rho_molar), float(T))[0]
+
+    @_holding_the_state
+    def homogeneous_density(self, p: float, T: float) -> float:
+        """Molar density [mol/m3] at p [Pa] and T [K] as :meth:`density`, but for a mixture *without*
+        establishing its phase (see :meth:`homogeneous_pressure`: for root solving only)."""
+        p, T = float(p), float(T)
+        if not self.is_mixture:
+            return self.density(p, T)
+        self._check_temperature(T)
+        self._check_pressure(p)
+        return self._mixture_density(p, T, self._homogeneous_checked)
 
     def _density_from_cubic(self, p: float, T: float) -> float:
         """Density [mol/m3] where the reference equation's homogeneous pressure is p [Pa] at T [K], started
@@ -684,6 +760,14 @@ class LiquefiedBlend(ReferenceFluid):
         except Exception:  # the cubic route did not converge: the reference route's answer stands
             p_cubic = float("nan")
         return (max(p_ref, p_cubic) if math.isfinite(p_cubic) else p_ref), rho_liquid
+
+    def homogeneous_pressure(self, rho_molar: float, T: float) -> float:
+        """:meth:`pressure` itself: a blend's two-phase states have their own pressure (the bubble point)."""
+        return self.pressure(rho_molar, T)
+
+    def homogeneous_density(self, p: float, T: float) -> float:
+        """:meth:`density` itself (see :meth:`homogeneous_pressure`)."""
+        return self.density(p, T)
 
     def vapour_pressure(self, T: float) -> float:
         """Bubble pressure [Pa] of the blend at T [K] (see :meth:`bubble_point`)."""
