@@ -433,7 +433,9 @@ class PlainPart(Rows):
 
 def _plain_columns(part: PlainPart) -> dict:
     """_columns of the part plus ``verdict``: each vectorised row's :func:`_verdict` (None on fallback rows),
-    so that forked workers decide the verdicts of their own rows."""
+    so that forked workers decide the verdicts of their own rows (a liquefied gas: :func:`_liquefied_plain_columns`)."""
+    if _liquefied_gas(part.gas):
+        return _liquefied_plain_columns(part)
     cols = _columns(part)
     verdicts = np.full(part.p_fill.size, None, dtype=object)
     molar_mass = part.gas.molar_mass
@@ -762,6 +764,8 @@ def _verdict(cols: dict, k: int, molar_mass: float, rated: float, relief: float 
 
 def _assemble(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:
     """One row's result dict, laid out as screen.screen_case lays out a single-scenario result."""
+    if cols.get("kind") == "liquefied":
+        return _assemble_liquefied(case, cols, k, v, sun)
     gas = case.gas
     fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
     atm = case.site.atmospheric_pressure_pa
@@ -907,7 +911,7 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
     rest: list[int] = []
     sun: dict[int, SunRow | None] = {}
     for i, c in enumerate(cases):
-        if vectorisable(c):
+        if vectorisable(c) or liquefied_vectorisable(c):
             try:
                 sun[i] = _sun_row(c)
             except InputError:
@@ -917,8 +921,8 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
         else:
             rest.append(i)
     names = list(groups)
-    all_cols = _run_columns([Rows.of_cases([cases[i] for i in groups[nm]], [sun[i] for i in groups[nm]])
-                             for nm in names])
+    all_cols = _run_columns([(LiquefiedRows if _liquefied_gas(cases[groups[nm][0]].gas) else Rows).of_cases(
+        [cases[i] for i in groups[nm]], [sun[i] for i in groups[nm]]) for nm in names], _group_columns)
     for nm, cols in zip(names, all_cols):
         idx = groups[nm]
         done = 0
@@ -973,7 +977,7 @@ class PlainScreening:
         groups: dict[str, list[int]] = {}
         rest: list[int] = []
         for j, gas in enumerate(plain.gases):
-            (groups.setdefault(gas.name, []) if _vector_gas(gas) else rest).append(j)
+            (groups.setdefault(gas.name, []) if _vector_gas(gas) or _liquefied_gas(gas) else rest).append(j)
         names = list(groups)
         parts = []
         for nm in names:
@@ -1059,3 +1063,501 @@ def curves(r: dict) -> dict:
         p, v, _ = fluid.pressures(np.full(grid.shape, ref["fill_molar_density_mol_m3"]), grid)
         out["reference"] = [float(x) if ok else None for x, ok in zip(p, v)]
     return out
+
+
+# ----------------------------------------------------------------------------- liquefied gases
+
+def _liquefied_gas(gas: Mixture) -> bool:
+    """A pure liquefiable gas whose reference equation has a saturation dome (carbon dioxide, propane, ammonia,
+    the refrigerants…): its rows by mass and by pressure run on :func:`_liquefied_columns`."""
+    if not (gas.is_pure and gas.kind == "liquefiable" and gas.components[0].coolprop_name):
+        return False
+    try:
+        fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
+    except NotApplicable:
+        return False
+    return _screen._is_pure(fluid)
+
+
+def liquefied_vectorisable(case: Case) -> bool:
+    """Whether the liquefied-gas columns cover this row: a pure liquefied gas filled by mass or by pressure at a
+    stated fill temperature, with one exposure (in the sun or not) and no tolerances. Rows those columns are not
+    sure of (a gas at fill and at the worst case, where the gas models apply; a state the reference equation
+    refuses) still go per row."""
+    if not _liquefied_gas(case.gas) or case.fill_temperature_k is None:
+        return False
+    if (case.fill_pressure_pa is None) == (case.fill_mass_kg is None):
+        return False
+    if getattr(case, "tolerance", None) is not None:
+        return False
+    scenarios = getattr(case, "scenarios", ())
+    return not (len(scenarios) > 1 or any(getattr(s, "solar", "none") not in ("none", "sun") for s in scenarios))
+
+
+@dataclass
+class LiquefiedRows(Rows):
+    """Rows of one liquefied gas: besides :class:`Rows`, the fill mass per water capacity [kg/m3] (NaN where the
+    fill is given by pressure; ``p_fill`` is then NaN)."""
+
+    rho_mass: np.ndarray
+
+    @staticmethod
+    def of_cases(cases: list[Case], sun: list[SunRow | None] | None = None) -> "LiquefiedRows":
+        base = Rows.of_cases(cases, sun)
+        base.p_fill = np.array([math.nan if c.fill_pressure_pa is None else c.fill_pressure_pa for c in cases],
+                               dtype=float)
+        rho_mass = np.array([math.nan if c.fill_mass_kg is None else c.fill_mass_kg / c.water_capacity_m3
+                             for c in cases], dtype=float)
+        return LiquefiedRows(**{k: getattr(base, k) for k in ("gas", "p_fill", "t_fill", "ambient_max",
+                                                              "gas_temperature", "rated", "atm", "margin_req")},
+                             rho_mass=rho_mass)
+
+
+def _group_columns(rows: Rows) -> dict:
+    """The columns of one gas group: :func:`_liquefied_columns` for a liquefied gas, else :func:`_columns`."""
+    return _liquefied_columns(rows) if _liquefied_gas(rows.gas) else _columns(rows)
+
+
+def _known_scan_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], x: np.ndarray, lo: np.ndarray,
+                     hi: np.ndarray, n: int) -> tuple[np.ndarray, np.ndarray]:
+    """(root, ok): what screen._root(f, lo, hi, n) finds for a non-decreasing f(x, rows) whose only sign change is
+    at x (found another way; NaN: not known), where f can be evaluated on a prefix of [lo, hi] (beyond it the
+    equation's range ends). As there: with f finite at both ends, x where they bracket it (lo where f(lo) = 0),
+    none where they do not; else the scan interval of np.linspace(lo, hi, n) that holds x must have both ends
+    evaluable (then x, else none). ok False where x is needed but not known (those rows go per row)."""
+    m = x.size
+    rows = np.arange(m)
+    root = np.full(m, np.nan)
+    ok = np.ones(m, dtype=bool)
+    if m == 0:
+        return root, ok
+    f_lo, f_hi = f(lo, rows), f(hi, rows)
+    both = np.isfinite(f_lo) & np.isfinite(f_hi)
+    at_lo = both & (f_lo == 0.0)
+    root[at_lo] = lo[at_lo]
+    at_hi = both & ~at_lo & (f_lo < 0.0) & (f_hi == 0.0)     # the scan's last point
+    root[at_hi] = hi[at_hi]
+    inside = both & ~at_lo & ~at_hi & (f_lo * f_hi < 0.0)
+    known = np.isfinite(x) & (x > lo) & (x < hi)
+    root[inside & known] = x[inside & known]
+    ok[inside & ~known] = False
+    scan = np.flatnonzero(~both)
+    if scan.size:
+        have = known[scan]
+        ok[scan[~have]] = False
+        s = scan[have]
+        if s.size:
+            a, b = _linspace_bracket(lo[s], hi[s], x[s], n)
+            fa, fb = f(a, s), f(b, s)
+            good = np.isfinite(fa) & np.isfinite(fb) & (fa < 0.0) & (fb > 0.0)
+            root[s[good]] = x[s[good]]
+            # the upper end of x's interval not evaluable: the scan passes over it and, f being non-decreasing with
+            # the evaluable states a prefix, meets no later sign change (none); anything else is not that shape
+            ok[s[~good & ~(np.isfinite(fa) & (fa < 0.0) & ~np.isfinite(fb))]] = False
+    return root, ok
+
+
+#: A mass-limit density below this fraction of the top of screen._mass_limit's range is solved as it solves it.
+_SMALL_ROOT = 0.35
+
+#: Columns of the liquefied-gas path per row (floats; NaN for none), besides _FLOAT_COLUMNS' shared names.
+_LIQUEFIED_FLOAT_COLUMNS = ("t_peak", "rho_molar", "rho_fill_mass", "peak_ref", "p_fill_ref", "vapour_pressure",
+                            "dry", "liquid_full", "dpdt_liquid_full", "crossing", "max_t", "max_p", "target",
+                            "mass_rho", "lf_density")
+
+
+def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:
+    """Fill state of liquefied-gas rows (screen._fill_state): the vapour pressure at a pressure fill, the
+    saturation and critical bands (screen.band_reason: such rows are refused), the fill density (given by mass,
+    or the reference equation's at the fill pressure), the phases and pressures at fill and at the worst case."""
+    gas = rows.gas
+    molar_mass = gas.molar_mass
+    n = rows.t_fill.size
+    t_fill, t_peak = rows.t_fill, out["t_peak"]
+    given_mass = getattr(rows, "rho_mass", None)
+    if given_mass is None:      # plain rows: filled by pressure
+        given_mass = np.full(n, np.nan)
+    by_pressure = np.isnan(given_mass)
+    out["by_pressure"] = by_pressure
+    band = np.full(n, None, dtype=object)
+    tc = fluid.critical_temperature
+    ip = np.flatnonzero(by_pressure)
+    below = ip[t_fill[ip] < tc]
+    if below.size:
+        out["vapour_pressure"][below], _ok, _r = _loop(fluid.vapour_pressure, t_fill[below])
+    name = gas.name
+    p_fill, atm = rows.p_fill.tolist(), rows.atm.tolist()
+    tf = t_fill.tolist()
+    for k in ip.tolist():
+        band[k] = _screen.band_reason(p_fill[k], tf[k], fluid, name, atm[k])
+    refused = np.array([b is not None for b in band], dtype=bool)
+    out["band"], out["refused"] = band, refused
+    rho_molar = np.full(n, np.nan)
+    live = np.flatnonzero(by_pressure & ~refused)
+    if live.size:
+        rho_molar[live], ok, _ = _loop(fluid.density, rows.p_fill[live], t_fill[live])
+        fallback[live[~ok]] = True
+    mass = np.flatnonzero(~by_pressure)
+    fill_mass = np.full(n, np.nan)
+    fill_mass[live] = rho_molar[live] * molar_mass
+    fill_mass[mass] = given_mass[mass]
+    rho_molar[mass] = given_mass[mass] / molar_mass
+    # a mass fill denser than the liquid at the triple point is an input error: per row, where it is raised
+    fallback[mass[rho_molar[mass] > _rho_top(fluid, True)]] = True
+    out["rho_fill_mass"] = fill_mass
+    # every model takes the fill's mass density divided by the molar mass again (screen._molar): so here
+    out["rho_molar"] = rho = fill_mass / molar_mass
+    live = np.flatnonzero(~refused & ~fallback)
+    phases = {}
+    for key, t in (("fill", t_fill), ("peak", t_peak)):
+        p, ph, ok = fluid.states(rho[live], t[live])
+        phases[key] = np.full(n, None, dtype=object)
+        phases[key][live] = ph
+        out["p_fill_ref" if key == "fill" else "peak_ref"][live] = p
+        fallback[live[~ok]] = True
+    out["phase_fill"], out["phase_peak"] = phases["fill"], phases["peak"]
+    why = np.full(n, None, dtype=object)
+    for k in np.flatnonzero(~refused & ~fallback).tolist():
+        why[k] = _screen.condensed_reason(phases["fill"][k], phases["peak"][k])
+    out["why_not_gas"] = why
+    # a gas at fill and at the worst case: the ideal and generalized models apply, and their limits with them;
+    # those rows go per row
+    fallback[(why == None) & ~refused] = True   # noqa: E711  (an object array)
+
+
+def _dome_columns(fluid: ReferenceFluid, rho_molar: np.ndarray, out: dict, fallback: np.ndarray) -> None:
+    """Where each row's isochore meets the saturation dome (isochore.isochore_phases): the dry-out temperature
+    below the critical density, the liquid-full temperature above it with the slope just past it, and the
+    vapour pressure where the isochore leaves the dome. Rows the table solve is not sure of fall back."""
+    rc = fluid.critical_molar_density
+    for side, key in (("vapour", "dry"), ("liquid", "liquid_full")):
+        d_rows = np.flatnonzero(~fallback & np.isfinite(rho_molar) & ((rho_molar <= rc) if side == "vapour"
+                                                                      else (rho_molar > rc)))
+        if d_rows.size:
+            t_b, ok_b = _dome(fluid, side).boundary(rho_molar[d_rows])
+            out[key][d_rows] = t_b
+            fallback[d_rows[~ok_b]] = True
+    lf = np.flatnonzero(~fallback & np.isfinite(out["liquid_full"]))
+    if lf.size:
+        out["dpdt_liquid_full"][lf], ok, _ = _loop(fluid.dp_dt_at_constant_density, rho_molar[lf],
+                                                   out["liquid_full"][lf] + LIQUID_FULL_STEP)
+        fallback[lf[~ok]] = True
+    crossing = out["crossing"]
+    boundary = np.fmin(out["dry"], out["liquid_full"])
+    for k in np.flatnonzero(~fallback & np.isfinite(boundary)):
+        try:
+            crossing[k] = (fluid.critical_pressure if boundary[k] >= fluid.critical_temperature
+                           else fluid.vapour_pressure(float(boundary[k])))
+        except NotApplicable:
+            fallback[k] = True
+
+
+def _liquid_full_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:
+    """The liquid-full rule per row (screen.liquid_full_density and screen._liquid_full_applies, the rule the
+    verdict and the mass limit share): the density at which the vessel counts as liquid-full at the worst case
+    (NaN where it cannot be evaluated) and whether the fill reaches it."""
+    n = rows.t_fill.size
+    applies = np.zeros(n, dtype=bool)
+    fs = _screen.FillState(fluid=fluid)
+    gas = rows.gas
+    tf, tp, rho = rows.t_fill.tolist(), out["t_peak"].tolist(), out["rho_molar"].tolist()
+    lfd = out["lf_density"]
+    for k in np.flatnonzero(~fallback & ~out["refused"]).tolist():
+        applies[k] = _screen._liquid_full_applies(fs, rho[k], tf[k], tp[k], gas)
+        try:
+            lfd[k] = _screen.liquid_full_density(fluid, tf[k], tp[k], gas)
+        except NotApplicable:
+            lfd[k] = np.nan
+    out["liquid_full_applies"] = applies
+
+
+def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:
+    """Limits of liquefied-gas rows on the reference model (screen._limits, screen._mass_limit): the highest
+    gas temperature (none where the fill itself is at or above the rating), the highest fill pressure of a
+    pressure fill, the highest fill density (capped by the liquid-full rule); each as screen._root finds it."""
+    n = rows.t_fill.size
+    t_fill, t_peak, rated, atm = rows.t_fill, out["t_peak"], rows.rated, rows.atm
+    rho, peak = out["rho_molar"], out["peak_ref"]
+    out["target"] = target = atm + (rated - atm) * (1.0 - rows.margin_req)
+    by_pressure = out["by_pressure"]
+    # the fill itself at or above the rating (screen._fill_over_rating): the fill pressure, or for a mass fill
+    # the reference pressure at the fill
+    with np.errstate(invalid="ignore"):
+        fill_over = np.where(by_pressure, rows.p_fill >= rated, ~(out["p_fill_ref"] < rated))
+    out["fill_over"] = fill_over
+    t_lo = np.minimum(t_fill, t_peak)
+    t_hi = np.maximum(t_peak, t_fill) + 300.0
+    live = np.flatnonzero(~fallback & ~out["refused"])
+    if live.size == 0:
+        return
+
+    def f_t(t, ix):
+        p, _v, _r = fluid.pressures(rho[ix], t)
+        return p / rated[ix] - 1.0
+
+    root, ok = _increasing_root(f_t, live, t_lo[live], t_peak[live], peak[live] / rated[live] - 1.0, t_hi[live],
+                                fluid.t_max)
+    fallback[live[~ok]] = True
+    max_t = out["max_t"]
+    max_t[live[ok]] = root[ok]
+    max_t[fill_over] = np.nan
+
+    # the density at the target on the worst-case isochore (the PT flash), for the fill-pressure and mass limits
+    live = np.flatnonzero(~fallback & ~out["refused"])
+    rho_star = np.full(n, np.nan)
+    rho_star[live], _ok, _r = _loop(fluid.density, target[live], t_peak[live])
+
+    # fill pressure whose peak is the target: the pressure of that density at the fill temperature, where that
+    # state is one phase there (inside the dome no fill pressure gives that density: no limit)
+    pr = live[by_pressure[live]]
+    if pr.size:
+        p_lo = atm[pr] * 1.01
+        p_hi = np.maximum(target[pr], rows.p_fill[pr]) * np.maximum(1.0, t_fill[pr] / t_peak[pr]) * 1.05
+        have = np.isfinite(rho_star[pr])
+        p_star = np.full(pr.size, np.nan)
+        if have.any():
+            p, ph, v = fluid.states(rho_star[pr][have], t_fill[pr][have])
+            p_star[have] = np.where(v & (ph != "two-phase"), p, np.nan)
+
+        def f_p(p, ix):
+            r = pr[ix]
+            res = np.full(p.size, np.nan)
+            for j, (pj, i) in enumerate(zip(p.tolist(), r.tolist())):
+                try:
+                    res[j] = fluid.pressure(fluid.density(pj, float(t_fill[i])), float(t_peak[i])) - target[i]
+                except NotApplicable:
+                    pass
+            return res
+
+        # screen._root first looks at both ends: a fill at the top of the range may be a liquid heated past the
+        # equation's range; only those rows need the look (a vapour fill there stays far inside it)
+        vap = np.full(pr.size, np.inf)
+        below = t_fill[pr] < fluid.critical_temperature
+        vap[below] = out["vapour_pressure"][pr][below]
+        risky = np.flatnonzero(p_hi > vap)
+        p_max = np.full(pr.size, np.nan)
+        inside = np.isfinite(p_star) & (p_star > p_lo) & (p_star < p_hi)
+        p_max[inside] = p_star[inside]
+        miss = ~np.isfinite(rho_star[pr])
+        fallback[pr[miss]] = True
+        if risky.size:
+            f_hi = f_p(p_hi[risky], risky)
+            bad = ~np.isfinite(f_hi)
+            if bad.any():
+                b = risky[bad]
+                r, okb = _known_scan_root(lambda x, ix, b=b: f_p(x, b[ix]), p_star[b], p_lo[b], p_hi[b], 40)
+                p_max[b] = r
+                fallback[pr[b[~okb]]] = True
+        out["max_p"][pr] = p_max
+
+    # fill density whose peak is the target (screen._mass_limit), then the liquid-full cap
+    live = np.flatnonzero(~fallback & ~out["refused"])
+    if live.size:
+        top = _rho_top(fluid, True)
+        lo, hi = np.full(live.size, 1e-6 * top), np.full(live.size, top * 0.999)
+
+        def f_r(r, ix):
+            p, _v, _r = fluid.pressures(r, t_peak[live[ix]])
+            return p - target[live[ix]]
+
+        r, ok = _known_scan_root(f_r, rho_star[live], lo, hi, 60)
+        fallback[live[~ok]] = True
+        out["mass_rho"][live] = r
+        # screen._mass_limit's solve stops within 1e-9 of the whole density range: a root far below the range's
+        # top (a vapour-side density) is known there only to a few 1e-8 of itself, so such rows take that same
+        # solve, row by row, for the same number
+        small = np.flatnonzero(ok & np.isfinite(r) & (r < _SMALL_ROOT * hi))
+        for j in small.tolist():
+            i = int(live[j])
+            tp, tg = float(t_peak[i]), float(target[i])
+            out["mass_rho"][i] = _screen._root(lambda x: fluid.pressure(x, tp) - tg, float(lo[j]), float(hi[j]),
+                                               n=60) or np.nan
+
+
+def _liquefied_columns(rows: Rows) -> dict:
+    """Fill state, phases, the reference model, the liquid-full rule and the limits of rows of one pure liquefied
+    gas, as arrays (the liquefied-gas counterpart of :func:`_columns`). Rows where the contents are a gas at fill
+    and at the worst case (the gas models apply), and rows a step is not sure of, are marked ``fallback``."""
+    n = rows.t_fill.size
+    t_peak, stated, fill_governs, t_exposure = worst_case(rows.ambient_max, rows.gas_temperature, rows.t_fill)
+    fallback = np.zeros(n, dtype=bool)
+    out: dict = {k: np.full(n, np.nan) for k in _LIQUEFIED_FLOAT_COLUMNS}
+    out.update(kind="liquefied", t_peak=t_peak, stated=stated, fill_governs=fill_governs, t_exposure=t_exposure,
+               fallback=fallback,
+               gas_below_ambient=~np.isnan(rows.gas_temperature) & (rows.gas_temperature < rows.ambient_max))
+    fluid = reference_fluid((rows.gas.components[0].coolprop_name,), (1.0,))
+    fallback |= ~(rows.t_fill >= fluid.t_min) | ~(t_peak <= fluid.t_max)
+    _liquefied_fill(rows, fluid, out, fallback)
+    live = ~out["refused"]
+    rho = np.where(live, out["rho_molar"], np.nan)
+    _dome_columns(fluid, rho, out, fallback)
+    _liquid_full_columns(rows, fluid, out, fallback)
+    _liquefied_limits(rows, fluid, out, fallback)
+    return out
+
+
+def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, atm: float, required_margin: float,
+                       max_ratio: float | None, name: str | None) -> dict:
+    """One liquefied-gas row's verdict, reasons, margins, governing model and warnings (through screen.decide and
+    the rules of screen.py), as :func:`_verdict` gives them for a permanent gas."""
+    warnings: list[dict] = []
+    if cols["gas_below_ambient"][k]:
+        msg = "the stated gas temperature is below the ambient maximum; the ambient maximum is used."
+        warnings.append({"code": "gas-below-ambient", "message": f"{name}: {msg}" if name else msg[0].upper() + msg[1:]})
+    if cols["fill_governs"][k]:
+        warnings.append(_screen.fill_state_warning(name or "exposure", float(cols["t_exposure"][k]),
+                                                   float(cols["t_peak"][k])))
+    band = cols["band"][k]
+    if band is not None:
+        code, reason, warning = band
+        warnings.append({"code": code, "message": warning})
+        verdict, reasons, margin, relief_margin = _screen.decide(
+            peak=None, rated=rated, relief=relief, atm=atm, required_margin=required_margin, any_real_model=False,
+            out_of_scope_reason=reason)
+        return {"verdict": verdict, "reasons": reasons, "warnings": warnings, "margin_fraction": margin,
+                "relief_margin_fraction": relief_margin, "governing_model": None, "peak_pressure_pa": None,
+                "applicable": []}
+    peak = float(cols["peak_ref"][k])
+    liquid_full = None
+    if cols["liquid_full_applies"][k]:
+        fs = _screen.FillState(liquid_full_temperature=_opt(cols["liquid_full"][k]),
+                               dp_dt_after_liquid_full=_opt(cols["dpdt_liquid_full"][k]))
+        liquid_full = _screen.liquid_full_text(fs, float(cols["t_peak"][k]))
+    ratio_reason = _screen.filling_ratio_reason(float(cols["rho_fill_mass"][k]), max_ratio)
+    verdict, reasons, margin, relief_margin = _screen.decide(
+        peak=peak, rated=rated, relief=relief, atm=atm, required_margin=required_margin, any_real_model=True,
+        out_of_scope_reason=None, liquid_full_reason=liquid_full, filling_ratio_reason=ratio_reason)
+    return {"verdict": verdict, "reasons": reasons, "warnings": warnings, "margin_fraction": margin,
+            "relief_margin_fraction": relief_margin, "governing_model": "reference", "peak_pressure_pa": peak,
+            "applicable": ["reference"]}
+
+
+def _liquefied_plain_columns(part: PlainPart) -> dict:
+    """_liquefied_columns of a part of plain rows (filled by pressure) plus each row's ``verdict``."""
+    cols = _liquefied_columns(part)
+    verdicts = np.full(part.p_fill.size, None, dtype=object)
+    rated, atm, margin_req = part.rated.tolist(), part.atm.tolist(), part.margin_req.tolist()
+    relief, ratio = part.relief.tolist(), part.ratio.tolist()
+    for k in np.flatnonzero(~cols["fallback"]).tolist():
+        verdicts[k] = _liquefied_verdict(cols, k, rated[k], None if math.isnan(relief[k]) else relief[k], atm[k],
+                                         margin_req[k], None if math.isnan(ratio[k]) else ratio[k], "exposure")
+    cols["verdict"] = verdicts
+    return cols
+
+
+def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:
+    """One liquefied-gas row's result dict, laid out as screen.screen_case lays out a single-scenario result."""
+    gas = case.gas
+    fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
+    atm = case.site.atmospheric_pressure_pa
+    sc = case.scenarios[0] if getattr(case, "scenarios", ()) else case
+    if v is None:
+        v = _liquefied_verdict(cols, k, case.rated_pressure_pa, case.relief_set_pressure_pa, atm,
+                               case.required_margin, case.max_filling_ratio_kg_m3, getattr(sc, "name", None))
+    if sun is not None:   # the worst-case step's warnings (screen._worst_case_temperature), then the fill state's
+        v = {**v, "warnings": list(sun.warnings) + [w for w in v["warnings"]
+                                                     if w["code"] in ("near-critical", "near-saturation")]}
+    t_fill, t_peak = float(case.fill_temperature_k), float(cols["t_peak"][k])
+    by_pressure = case.fill_pressure_pa is not None
+    refused = bool(cols["refused"][k])
+    lim_extra = {"liquid_full_temperature_k": _opt(cols["liquid_full"][k]),
+                 "dry_out_temperature_k": _opt(cols["dry"][k]),
+                 "phase_boundary_pressure_pa": _opt(cols["crossing"][k]),
+                 "dp_dt_after_liquid_full_pa_k": _opt(cols["dpdt_liquid_full"][k])}
+    if refused:
+        na = "the fill state cannot be established (see the verdict's reason)"
+        models = {nm: _screen.not_applicable(nm, na).as_dict() for nm in ("ideal", "generalized", "reference")}
+        limits = {"max_gas_temperature_k": None, "max_fill_pressure_pa": None, "target_peak_pressure_pa": None,
+                  "max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,
+                  "note": "no real-gas model applies, so no limit is given", **lim_extra}
+        fill_rho_molar = rho_mass = mass = None
+        phase = None
+        peak = None
+        governing_reason = _screen.governing_text(None, [])
+        nominal_margin = None
+    else:
+        why = cols["why_not_gas"][k]
+        rho_fill_mass = float(cols["rho_fill_mass"][k])
+        rho = rho_fill_mass / gas.molar_mass
+        peak = float(cols["peak_ref"][k])
+        p_fill_ref = float(cols["p_fill_ref"][k])
+        phase = cols["phase_fill"][k]
+        models = {
+            "ideal": _screen.not_applicable("ideal", why, equation="P v = R T, so at fixed density P2 = P1 T2 / T1")
+            .as_dict(),
+            "generalized": _screen.not_applicable("generalized", why).as_dict(),
+            "reference": {"applicable": True, "peak_pressure_pa": peak,
+                          "note": "multiparameter Helmholtz-energy equation of state (CoolProp)",
+                          "fill_molar_density_mol_m3": rho, "fluid": fluid.label, "phase_fill": phase,
+                          "phase_peak": cols["phase_peak"][k],
+                          "z_fill": (case.fill_pressure_pa or p_fill_ref) / (rho * 8.314462618 * t_fill),
+                          "z_peak": peak / (rho * R * t_peak), "eos_references": fluid.eos_references()}}
+        governing_reason = _screen.governing_text("reference", [])
+        # screen._mass_limit: the target's density, capped by the liquid-full density, then the filling ratio
+        mass_rho, lf_density = _opt(cols["mass_rho"][k]), _opt(cols["lf_density"][k])
+        if mass_rho is None or lf_density is None:
+            mass_limit = {"max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None}
+        else:
+            basis = "the required margin at the worst-case temperature"
+            if lf_density < mass_rho:
+                mass_rho, basis = lf_density, "the liquid-full point at the worst-case temperature"
+            rm = mass_rho * gas.molar_mass
+            if case.max_filling_ratio_kg_m3 is not None and case.max_filling_ratio_kg_m3 < rm:
+                rm, basis = case.max_filling_ratio_kg_m3, "the vessel's maximum filling ratio"
+            mass_limit = {"max_fill_mass_kg": rm * case.water_capacity_m3, "max_filling_ratio_kg_per_l": rm / 1000.0,
+                          "max_fill_mass_basis": basis}
+        fill_over = bool(cols["fill_over"][k])
+        limits = {**mass_limit, "max_gas_temperature_k": None if fill_over else _opt(cols["max_t"][k]),
+                  "max_fill_pressure_pa": _opt(cols["max_p"][k]) if by_pressure else None,
+                  "target_peak_pressure_pa": float(cols["target"][k]), "note": _screen.limits_note(True, fill_over),
+                  **lim_extra}
+        fill_rho_molar = rho
+        rho_mass = rho * gas.molar_mass
+        mass = rho_fill_mass * case.water_capacity_m3
+        nominal_margin = 1.0 - (peak - atm) / (case.rated_pressure_pa - atm)
+    vap = _opt(cols["vapour_pressure"][k]) if by_pressure else None
+    result = {
+        "id": case.id, "description": case.description, "source": case.source,
+        "tool_version": __version__, "input_sha256": case.input_sha256,
+        "site": {"name": case.site.name, "atmospheric_pressure_pa": atm, "elevation_m": case.site.elevation_m},
+        "verdict": v["verdict"], "reasons": v["reasons"], "warnings": v["warnings"],
+        "gas": {"name": gas.name, "kind": gas.kind, "hazards": list(gas.hazards),
+                "components": [{"name": c.name, "formula": c.formula, "fraction": x,
+                                "molar_mass_kg_mol": c.molar_mass, "coolprop_name": c.coolprop_name}
+                               for c, x in zip(gas.components, gas.fractions)]},
+        "vessel": {"water_capacity_m3": case.water_capacity_m3, "rated_pressure_pa": case.rated_pressure_pa,
+                   "rated_pressure_kind": case.rated_pressure_kind,
+                   "relief_set_pressure_pa": case.relief_set_pressure_pa,
+                   "max_filling_ratio_kg_per_l": (case.max_filling_ratio_kg_m3 / 1000.0
+                                                  if case.max_filling_ratio_kg_m3 is not None else None)},
+        "fill": {"pressure_pa": case.fill_pressure_pa, "temperature_k": t_fill, "temperature_given": True,
+                 "density_kg_m3": rho_mass, "molar_density_mol_m3": fill_rho_molar, "mass_kg": mass,
+                 "phase": phase, "filling_ratio_kg_per_l": rho_mass / 1000.0 if rho_mass else None,
+                 "vapour_pressure_pa": vap, "given": "pressure" if by_pressure else "mass"},
+        "worst_case_temperature_k": t_peak,
+        "worst_case_basis": (sun.basis if sun is not None else _screen.FILL_STATE_BASIS if cols["fill_governs"][k] else
+                             "gas temperature stated in the case" if cols["stated"][k] else "ambient maximum"),
+        "models": models,
+        "peak_pressure_pa": peak, "nominal_peak_pressure_pa": peak, "tolerance": None,
+        "governing_model": v["governing_model"], "governing_reason": governing_reason,
+        "rated_pressure_pa": case.rated_pressure_pa, "relief_set_pressure_pa": case.relief_set_pressure_pa,
+        "required_margin_fraction": case.required_margin,
+        "required_margin_is_default": case.required_margin_is_default,
+        "margin_fraction": v["margin_fraction"], "relief_margin_fraction": v["relief_margin_fraction"],
+        "nominal_margin_fraction": nominal_margin,
+        "limits": limits, "curves": None, "phase_diagram": None,
+        "inputs": list(case.inputs), "display_units": dict(case.display_units),
+        "cautions": _CAUTIONS,
+    }
+    if hasattr(case, "scenarios"):
+        name = case.scenarios[0].name if case.scenarios else "exposure"
+        keys = ("verdict", "reasons", "worst_case_temperature_k", "worst_case_basis", "peak_pressure_pa",
+                "nominal_peak_pressure_pa", "governing_model", "margin_fraction", "relief_margin_fraction",
+                "limits", "tolerance")
+        balance = sun.balance if sun is not None else None
+        result["scenarios"] = [{"name": name, **{k2: result[k2] for k2 in keys}, "exposure": balance,
+                                "models": {nm: {"applicable": m["applicable"], "peak_pressure_pa": m["peak_pressure_pa"]}
+                                           for nm, m in models.items()}, "governing": True}]
+        result["governing_scenario"] = name
+        result["exposure"] = balance
+    return result

@@ -613,6 +613,28 @@ class ReferenceFluid:
         return out.reshape(shape), valid.reshape(shape), np.array(reasons, dtype=str).reshape(shape)
 
 
+    @_holding_the_state
+    def states(self, rho_molar: np.ndarray, T: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """:meth:`pressure` and :meth:`phase` of many rows in one evaluation each (1-D arrays of equal length).
+
+        Returns (pressures [Pa], phases (object array of the words of :meth:`phase`), valid mask); invalid rows
+        carry NaN, None and False.
+        """
+        rho_f, t_f = np.asarray(rho_molar, dtype=float).tolist(), np.asarray(T, dtype=float).tolist()
+        n = len(rho_f)
+        out = np.full(n, np.nan)
+        phases = np.full(n, None, dtype=object)
+        valid = np.zeros(n, dtype=bool)
+        evaluate = self._evaluate
+        for i in range(n):
+            try:
+                out[i], phases[i] = evaluate(rho_f[i], t_f[i])
+                valid[i] = True
+            except NotApplicable:
+                pass
+        return out, phases, valid
+
+
 class LiquefiedBlend(ReferenceFluid):
     """A mixture of liquefiable gases filled by mass (propane/butane, refrigerant blends), whose closed vessel
     holds liquid and vapour.
