@@ -463,6 +463,59 @@ def worst_case(ambient_max: np.ndarray, gas_temperature: np.ndarray,
     return t, stated, t > t_exposure, t_exposure
 
 
+def _generalized_columns(gas: Mixture, p_fill: np.ndarray, t_fill: np.ndarray, t_peak: np.ndarray,
+                         rho_given: np.ndarray | None = None) -> dict:
+    """The generalized model of rows of one gas as arrays (screen._generalized, screen._quantum_generalized): the
+    Lee–Kesler fill and peak states, the pseudocritical constants at both, and for pure hydrogen, helium or neon
+    where the Lee–Kesler tables end, the quantum-gas SRK model. A row's fill is its pressure, or where
+    ``rho_given`` [mol/m3] is finite (a mass fill), that density. Keys starting with "_" are for the limits."""
+    n = t_fill.size
+    fr = np.array(gas.fractions)
+    comps = gas.components
+    by_density = np.zeros(n, dtype=bool) if rho_given is None else np.isfinite(rho_given)
+
+    def consts(t):
+        return pseudocritical(fr, np.array([c.critical_temperature for c in comps]),
+                              np.array([c.critical_pressure for c in comps]),
+                              np.array([c.acentric_factor for c in comps]),
+                              np.array([c.molar_mass for c in comps]), np.array([c.quantum for c in comps]),
+                              np.array([c.classical_critical_temperature or c.critical_temperature for c in comps]),
+                              np.array([c.classical_critical_pressure or c.critical_pressure for c in comps]),
+                              np.asarray(t, dtype=float))
+
+    tcf, pcf, omf = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_fill))
+    tcp, pcp, omp = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_peak))
+    gf = lee_kesler_density(np.where(by_density, 1e5, p_fill), t_fill, tcf, pcf, omf)
+    if by_density.any():
+        gd = lee_kesler_pressure(np.where(by_density, rho_given, 1.0), t_fill, tcf, pcf, omf)
+        gf = GeneralizedState(*(np.where(by_density, getattr(gd, f), getattr(gf, f)) for f in GENERALIZED_FIELDS))
+    rho_lk = np.where(gf.valid, gf.molar_density, 1.0)
+    gp = lee_kesler_pressure(rho_lk, t_peak, tcp, pcp, omp)
+    lk_ok = gf.valid & gp.valid
+    lk_reason = np.where(gf.valid, gp.reason, gf.reason).astype(object)
+    # pure hydrogen, helium or neon where the Lee–Kesler tables end: the quantum-gas SRK model, as
+    # screen._quantum_generalized has it
+    q_srk = np.zeros(n, dtype=bool)
+    kq = None
+    if gas.is_pure and comps[0].quantum and not lk_ok.all():
+        kq = (comps[0].classical_critical_temperature, comps[0].classical_critical_pressure, comps[0].molar_mass)
+        qf = srk_quantum_density(p_fill, t_fill, *kq)
+        qp = srk_quantum_pressure(np.where(qf.valid, qf.molar_density, 1.0), t_peak, *kq)
+        q_srk = ~lk_ok & qf.valid & qp.valid
+        q_reason = np.where(qf.valid, qp.reason, qf.reason).astype(object)
+        failed = ~lk_ok & ~q_srk
+        lk_reason[failed] = [f"{a}; quantum-gas model: {b}" for a, b in zip(lk_reason[failed], q_reason[failed])]
+        gf = GeneralizedState(*(np.where(q_srk, getattr(qf, f), getattr(gf, f)) for f in GENERALIZED_FIELDS))
+        gp = GeneralizedState(*(np.where(q_srk, getattr(qp, f), getattr(gp, f)) for f in GENERALIZED_FIELDS))
+        rho_lk = np.where(gf.valid, gf.molar_density, 1.0)
+        lk_ok = lk_ok | q_srk
+    return dict(tcf=tcf, pcf=pcf, tcp=tcp, pcp=pcp, omp=omp, lk_ok=lk_ok, q_srk=q_srk, lk_reason=lk_reason,
+                lk_rho_fill=gf.molar_density, lk_z_fill=gf.z, lk_tr_fill=gf.reduced_temperature,
+                lk_pr_fill=gf.reduced_pressure, lk_p_fill=gf.pressure, lk_peak=np.where(lk_ok, gp.pressure, np.nan),
+                lk_z_peak=gp.z, lk_tr_peak=gp.reduced_temperature, lk_pr_peak=gp.reduced_pressure,
+                _omf=omf, _rho_lk=rho_lk, _kq=kq)
+
+
 #: Columns a group computes per row (floats; NaN for none) besides the masks.
 _FLOAT_COLUMNS = ("t_peak", "rho_molar", "peak_ref", "rho_ideal", "peak_ideal", "lk_rho_fill", "lk_z_fill",
                   "lk_tr_fill", "lk_pr_fill", "lk_peak", "lk_z_peak", "lk_tr_peak", "lk_pr_peak", "tcf", "pcf",
@@ -538,49 +591,13 @@ def _columns(rows: Rows) -> dict:
     out["peak_ideal"] = rho_ideal * R * t_peak
 
     # --- generalized, as arrays
-    fr = np.array(gas.fractions)
-    comps = gas.components
-
-    def consts(t):
-        return pseudocritical(fr, np.array([c.critical_temperature for c in comps]),
-                              np.array([c.critical_pressure for c in comps]),
-                              np.array([c.acentric_factor for c in comps]),
-                              np.array([c.molar_mass for c in comps]), np.array([c.quantum for c in comps]),
-                              np.array([c.classical_critical_temperature or c.critical_temperature for c in comps]),
-                              np.array([c.classical_critical_pressure or c.critical_pressure for c in comps]),
-                              np.asarray(t, dtype=float))
-
-    tcf, pcf, omf = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_fill))
-    tcp, pcp, omp = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_peak))
-    gf = lee_kesler_density(p_fill, t_fill, tcf, pcf, omf)
-    rho_lk = np.where(gf.valid, gf.molar_density, 1.0)
-    gp = lee_kesler_pressure(rho_lk, t_peak, tcp, pcp, omp)
-    lk_ok = gf.valid & gp.valid
-    lk_reason = np.where(gf.valid, gp.reason, gf.reason).astype(object)
-    # pure hydrogen, helium or neon where the Lee–Kesler tables end: the quantum-gas SRK model, as
-    # screen._quantum_generalized has it
-    q_srk = np.zeros(n, dtype=bool)
-    kq = None
-    if gas.is_pure and comps[0].quantum and not lk_ok.all():
-        kq = (comps[0].classical_critical_temperature, comps[0].classical_critical_pressure, comps[0].molar_mass)
-        qf = srk_quantum_density(p_fill, t_fill, *kq)
-        qp = srk_quantum_pressure(np.where(qf.valid, qf.molar_density, 1.0), t_peak, *kq)
-        q_srk = ~lk_ok & qf.valid & qp.valid
-        q_reason = np.where(qf.valid, qp.reason, qf.reason).astype(object)
-        failed = ~lk_ok & ~q_srk
-        lk_reason[failed] = [f"{a}; quantum-gas model: {b}" for a, b in zip(lk_reason[failed], q_reason[failed])]
-        gf = GeneralizedState(*(np.where(q_srk, getattr(qf, f), getattr(gf, f)) for f in GENERALIZED_FIELDS))
-        gp = GeneralizedState(*(np.where(q_srk, getattr(qp, f), getattr(gp, f)) for f in GENERALIZED_FIELDS))
-        rho_lk = np.where(gf.valid, gf.molar_density, 1.0)
-        lk_ok = lk_ok | q_srk
-    out.update(tcf=tcf, pcf=pcf, tcp=tcp, pcp=pcp, omp=omp, lk_ok=lk_ok, q_srk=q_srk,
-               lk_reason=lk_reason,
-               lk_rho_fill=gf.molar_density, lk_z_fill=gf.z, lk_tr_fill=gf.reduced_temperature,
-               lk_pr_fill=gf.reduced_pressure, lk_peak=np.where(lk_ok, gp.pressure, np.nan), lk_z_peak=gp.z,
-               lk_tr_peak=gp.reduced_temperature, lk_pr_peak=gp.reduced_pressure)
+    gen = _generalized_columns(gas, p_fill, t_fill, t_peak)
+    out.update({k: v for k, v in gen.items() if not k.startswith("_")})
+    lk_ok, q_srk, rho_lk, kq = gen["lk_ok"], gen["q_srk"], gen["_rho_lk"], gen["_kq"]
+    tcf, pcf, omf, tcp, pcp, omp = (gen[k] for k in ("tcf", "pcf", "_omf", "tcp", "pcp", "omp"))
     peak_lk = out["lk_peak"]
     # the vectorised limits assume constant critical constants (not the quantum correction)
-    if any(c.quantum for c in comps):
+    if any(c.quantum for c in gas.components):
         fallback |= lk_ok & ~q_srk
 
     # --- limits: targets and scan ranges as screen._limits has them
@@ -762,6 +779,31 @@ def _verdict(cols: dict, k: int, molar_mass: float, rated: float, relief: float 
             "applicable": [nm for nm, _ in applicable]}
 
 
+def _generalized_model(cols: dict, k: int, gas: Mixture) -> dict:
+    """Row k's generalized model as screen._generalized (or screen._quantum_generalized) lays it out."""
+    if cols["lk_ok"][k]:
+        gen = {"applicable": True, "peak_pressure_pa": float(cols["lk_peak"][k]),
+               "note": _screen.QUANTUM_SRK_NOTE if cols["q_srk"][k] else "Lee–Kesler corresponding states",
+               "fill_molar_density_mol_m3": float(cols["lk_rho_fill"][k]),
+               "z_fill": float(cols["lk_z_fill"][k]), "z_peak": float(cols["lk_z_peak"][k]),
+               "reduced_temperature_fill": float(cols["lk_tr_fill"][k]),
+               "reduced_pressure_fill": float(cols["lk_pr_fill"][k]),
+               "reduced_temperature_peak": float(cols["lk_tr_peak"][k]),
+               "reduced_pressure_peak": float(cols["lk_pr_peak"][k]),
+               "pseudocritical_temperature_k": float(cols["tcp"][k]), "pseudocritical_pressure_pa": float(cols["pcp"][k]),
+               "pseudocritical_temperature_fill_k": float(cols["tcf"][k]),
+               "pseudocritical_pressure_fill_pa": float(cols["pcf"][k]),
+               "acentric_factor": float(cols["omp"][k]), "mixing_rule": None,
+               "quantum_correction": any(c.quantum for c in gas.components)}
+        if cols["q_srk"][k]:
+            gen["method"] = _screen.QUANTUM_SRK_METHOD
+    else:
+        gen = {"applicable": False, "peak_pressure_pa": None,
+               "note": f"Lee–Kesler correlation outside its range: {cols['lk_reason'][k]}",
+               "fill_molar_density_mol_m3": None}
+    return gen
+
+
 def _assemble(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:
     """One row's result dict, laid out as screen.screen_case lays out a single-scenario result."""
     if cols.get("kind") == "liquefied":
@@ -783,26 +825,7 @@ def _assemble(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
     ideal = {"applicable": True, "peak_pressure_pa": peak_ideal,
              "note": "ideal-gas law; shown for comparison, it ignores real-gas behaviour",
              "fill_molar_density_mol_m3": rho_ideal, "equation": "P v = R T, so at fixed density P2 = P1 T2 / T1"}
-    if cols["lk_ok"][k]:
-        gen = {"applicable": True, "peak_pressure_pa": float(cols["lk_peak"][k]),
-               "note": _screen.QUANTUM_SRK_NOTE if cols["q_srk"][k] else "Lee–Kesler corresponding states",
-               "fill_molar_density_mol_m3": float(cols["lk_rho_fill"][k]),
-               "z_fill": float(cols["lk_z_fill"][k]), "z_peak": float(cols["lk_z_peak"][k]),
-               "reduced_temperature_fill": float(cols["lk_tr_fill"][k]),
-               "reduced_pressure_fill": float(cols["lk_pr_fill"][k]),
-               "reduced_temperature_peak": float(cols["lk_tr_peak"][k]),
-               "reduced_pressure_peak": float(cols["lk_pr_peak"][k]),
-               "pseudocritical_temperature_k": float(cols["tcp"][k]), "pseudocritical_pressure_pa": float(cols["pcp"][k]),
-               "pseudocritical_temperature_fill_k": float(cols["tcf"][k]),
-               "pseudocritical_pressure_fill_pa": float(cols["pcf"][k]),
-               "acentric_factor": float(cols["omp"][k]), "mixing_rule": None,
-               "quantum_correction": any(c.quantum for c in gas.components)}
-        if cols["q_srk"][k]:
-            gen["method"] = _screen.QUANTUM_SRK_METHOD
-    else:
-        gen = {"applicable": False, "peak_pressure_pa": None,
-               "note": f"Lee–Kesler correlation outside its range: {cols['lk_reason'][k]}",
-               "fill_molar_density_mol_m3": None}
+    gen = _generalized_model(cols, k, gas)
     ref = {"applicable": True, "peak_pressure_pa": peak_ref,
            "note": "multiparameter Helmholtz-energy equation of state (CoolProp)",
            "fill_molar_density_mol_m3": rho_molar, "fluid": fluid.label, "phase_fill": phase, "phase_peak": phase,
@@ -1220,9 +1243,64 @@ def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.n
     for k in np.flatnonzero(~refused & ~fallback).tolist():
         why[k] = _screen.condensed_reason(phases["fill"][k], phases["peak"][k])
     out["why_not_gas"] = why
-    # a gas at fill and at the worst case: the ideal and generalized models apply, and their limits with them;
-    # those rows go per row
-    fallback[(why == None) & ~refused] = True   # noqa: E711  (an object array)
+    # a gas at fill and at the worst case: the ideal and generalized models apply as well
+    out["gas_ok"] = (why == None) & ~refused & ~fallback   # noqa: E711  (an object array)
+
+
+def _liquefied_gas_models(rows: Rows, out: dict, fallback: np.ndarray) -> None:
+    """The ideal and generalized models of the liquefied-gas rows that are a gas at fill and at the worst case
+    (screen._ideal, screen._generalized), and the generalized model's limits as screen._limits finds them: the
+    gas temperature at which its isochore reaches the rating, the fill pressure whose peak is the target (each
+    by screen._root's scan, :func:`_scan_root`)."""
+    n = rows.t_fill.size
+    gas_ok = out["gas_ok"]
+    by_pressure = out["by_pressure"]
+    t_fill, t_peak, rated, atm = rows.t_fill, out["t_peak"], rows.rated, rows.atm
+    rho = out["rho_molar"]
+    out["rho_ideal"] = rho_ideal = np.where(by_pressure, rows.p_fill / (R * t_fill), rho)
+    out["peak_ideal"] = rho_ideal * R * t_peak
+    g = np.flatnonzero(gas_ok)
+    gen = {k: np.full(n, np.nan) for k in ("tcf", "pcf", "tcp", "pcp", "omp", "lk_rho_fill", "lk_z_fill",
+                                           "lk_tr_fill", "lk_pr_fill", "lk_p_fill", "lk_peak", "lk_z_peak",
+                                           "lk_tr_peak", "lk_pr_peak", "_omf")}
+    gen.update(lk_ok=np.zeros(n, dtype=bool), q_srk=np.zeros(n, dtype=bool), lk_reason=np.full(n, "", dtype=object))
+    if g.size:
+        part = _generalized_columns(rows.gas, rows.p_fill[g], t_fill[g], t_peak[g],
+                                    np.where(by_pressure[g], np.nan, rho[g]))
+        for k in gen:
+            gen[k][g] = part[k]
+    out.update({k: v for k, v in gen.items() if not k.startswith("_")})
+    out["max_t_lk"] = max_t_lk = np.full(n, np.nan)
+    out["max_p_lk"] = max_p_lk = np.full(n, np.nan)
+    out["target"] = target = atm + (rated - atm) * (1.0 - rows.margin_req)
+    lk = np.flatnonzero(gen["lk_ok"] & ~fallback)
+    if lk.size == 0:
+        return
+    tcf, pcf, omf, tcp, pcp, omp, rho_lk = (gen[k] for k in ("tcf", "pcf", "_omf", "tcp", "pcp", "omp", "lk_rho_fill"))
+
+    def isochore(t, ix):
+        r = lk[ix]
+        st = lee_kesler_pressure(rho_lk[r], t, tcp[r], pcp[r], omp[r])
+        return np.where(st.valid, st.pressure - rated[r], np.nan)
+
+    t_lo, t_hi = np.minimum(t_fill, t_peak)[lk], (np.maximum(t_peak, t_fill) + 300.0)[lk]
+    max_t_lk[lk] = _scan_root(isochore, t_lo, t_hi)
+    pk = lk[by_pressure[lk]]
+    if pk.size:
+        def fill(p, ix):
+            r = pk[ix]
+            s1 = lee_kesler_density(p, t_fill[r], tcf[r], pcf[r], omf[r])
+            s2 = lee_kesler_pressure(np.where(s1.valid, s1.molar_density, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
+            return np.where(s1.valid & s2.valid, s2.pressure - target[r], np.nan)
+
+        p_lo = atm[pk] * 1.01
+        p_hi = np.maximum(target[pk], rows.p_fill[pk]) * np.maximum(1.0, t_fill[pk] / t_peak[pk]) * 1.05
+        root = _scan_root(fill, p_lo, p_hi)
+        # screen._limits keeps a fill-pressure root only where its peak is the target (not a jump of the model)
+        at = np.flatnonzero(np.isfinite(root))
+        hit = np.abs(fill(root[at], at)) <= 1e-6 * target[pk[at]]
+        root[at[~hit]] = np.nan
+        max_p_lk[pk] = root
 
 
 def _dome_columns(fluid: ReferenceFluid, rho_molar: np.ndarray, out: dict, fallback: np.ndarray) -> None:
@@ -1281,9 +1359,10 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
     out["target"] = target = atm + (rated - atm) * (1.0 - rows.margin_req)
     by_pressure = out["by_pressure"]
     # the fill itself at or above the rating (screen._fill_over_rating): the fill pressure, or for a mass fill
-    # the reference pressure at the fill
+    # each applicable real-gas model's pressure at the fill
     with np.errstate(invalid="ignore"):
-        fill_over = np.where(by_pressure, rows.p_fill >= rated, ~(out["p_fill_ref"] < rated))
+        fill_over = np.where(by_pressure, rows.p_fill >= rated,
+                             ~(out["p_fill_ref"] < rated) | (out["lk_ok"] & (out["lk_p_fill"] >= rated)))
     out["fill_over"] = fill_over
     t_lo = np.minimum(t_fill, t_peak)
     t_hi = np.maximum(t_peak, t_fill) + 300.0
@@ -1300,6 +1379,7 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
     fallback[live[~ok]] = True
     max_t = out["max_t"]
     max_t[live[ok]] = root[ok]
+    max_t[:] = np.fmin(max_t, out["max_t_lk"])
     max_t[fill_over] = np.nan
 
     # the density at the target on the worst-case isochore (the PT flash), for the fill-pressure and mass limits
@@ -1348,7 +1428,7 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
                 r, okb = _known_scan_root(lambda x, ix, b=b: f_p(x, b[ix]), p_star[b], p_lo[b], p_hi[b], 40)
                 p_max[b] = r
                 fallback[pr[b[~okb]]] = True
-        out["max_p"][pr] = p_max
+        out["max_p"][pr] = np.fmin(p_max, out["max_p_lk"][pr])
 
     # fill density whose peak is the target (screen._mass_limit), then the liquid-full cap
     live = np.flatnonzero(~fallback & ~out["refused"])
@@ -1388,6 +1468,7 @@ def _liquefied_columns(rows: Rows) -> dict:
     fluid = reference_fluid((rows.gas.components[0].coolprop_name,), (1.0,))
     fallback |= ~(rows.t_fill >= fluid.t_min) | ~(t_peak <= fluid.t_max)
     _liquefied_fill(rows, fluid, out, fallback)
+    _liquefied_gas_models(rows, out, fallback)
     live = ~out["refused"]
     rho = np.where(live, out["rho_molar"], np.nan)
     _dome_columns(fluid, rho, out, fallback)
@@ -1417,7 +1498,15 @@ def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, a
         return {"verdict": verdict, "reasons": reasons, "warnings": warnings, "margin_fraction": margin,
                 "relief_margin_fraction": relief_margin, "governing_model": None, "peak_pressure_pa": None,
                 "applicable": []}
-    peak = float(cols["peak_ref"][k])
+    peak_ref = float(cols["peak_ref"][k])
+    gas_ok = bool(cols["gas_ok"][k])
+    peak_gen = float(cols["lk_peak"][k]) if gas_ok and cols["lk_ok"][k] else None
+    # the governing model: the highest real-gas peak (screen._governing); the ideal gas governs nothing
+    real = [(nm, p) for nm, p in (("generalized", peak_gen), ("reference", peak_ref)) if p is not None]
+    gov_name, peak = max(real, key=lambda x: x[1])
+    disagree = _screen.models_disagree(peak_gen, peak_ref)
+    if disagree:
+        warnings.append(disagree)
     liquid_full = None
     if cols["liquid_full_applies"][k]:
         fs = _screen.FillState(liquid_full_temperature=_opt(cols["liquid_full"][k]),
@@ -1428,8 +1517,8 @@ def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, a
         peak=peak, rated=rated, relief=relief, atm=atm, required_margin=required_margin, any_real_model=True,
         out_of_scope_reason=None, liquid_full_reason=liquid_full, filling_ratio_reason=ratio_reason)
     return {"verdict": verdict, "reasons": reasons, "warnings": warnings, "margin_fraction": margin,
-            "relief_margin_fraction": relief_margin, "governing_model": "reference", "peak_pressure_pa": peak,
-            "applicable": ["reference"]}
+            "relief_margin_fraction": relief_margin, "governing_model": gov_name, "peak_pressure_pa": peak,
+            "applicable": (["ideal"] if gas_ok else []) + [nm for nm, _ in real]}
 
 
 def _liquefied_plain_columns(part: PlainPart) -> dict:
@@ -1456,7 +1545,7 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
                                case.required_margin, case.max_filling_ratio_kg_m3, getattr(sc, "name", None))
     if sun is not None:   # the worst-case step's warnings (screen._worst_case_temperature), then the fill state's
         v = {**v, "warnings": list(sun.warnings) + [w for w in v["warnings"]
-                                                     if w["code"] in ("near-critical", "near-saturation")]}
+                                                     if w["code"] in ("near-critical", "near-saturation", "models-disagree")]}
     t_fill, t_peak = float(case.fill_temperature_k), float(cols["t_peak"][k])
     by_pressure = case.fill_pressure_pa is not None
     refused = bool(cols["refused"][k])
@@ -1479,20 +1568,32 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
         why = cols["why_not_gas"][k]
         rho_fill_mass = float(cols["rho_fill_mass"][k])
         rho = rho_fill_mass / gas.molar_mass
-        peak = float(cols["peak_ref"][k])
         p_fill_ref = float(cols["p_fill_ref"][k])
         phase = cols["phase_fill"][k]
+        peak = v["peak_pressure_pa"]
+        equation = "P v = R T, so at fixed density P2 = P1 T2 / T1"
+        if why is None:     # a gas at fill and at the worst case
+            peak_ideal = float(cols["peak_ideal"][k])
+            ideal = {"applicable": True, "peak_pressure_pa": peak_ideal,
+                     "note": "ideal-gas law; shown for comparison, it ignores real-gas behaviour",
+                     "fill_molar_density_mol_m3": float(cols["rho_ideal"][k]), "equation": equation,
+                     "off_governing_fraction": peak_ideal / peak - 1.0}
+            gen = _generalized_model(cols, k, gas)
+            governing_reason = _screen.governing_text(v["governing_model"], [
+                nm for nm in v["applicable"] if nm not in (v["governing_model"], "ideal")])
+        else:
+            ideal = _screen.not_applicable("ideal", why, equation=equation).as_dict()
+            gen = _screen.not_applicable("generalized", why).as_dict()
+            governing_reason = _screen.governing_text("reference", [])
+        peak_ref = float(cols["peak_ref"][k])
         models = {
-            "ideal": _screen.not_applicable("ideal", why, equation="P v = R T, so at fixed density P2 = P1 T2 / T1")
-            .as_dict(),
-            "generalized": _screen.not_applicable("generalized", why).as_dict(),
-            "reference": {"applicable": True, "peak_pressure_pa": peak,
+            "ideal": ideal, "generalized": gen,
+            "reference": {"applicable": True, "peak_pressure_pa": peak_ref,
                           "note": "multiparameter Helmholtz-energy equation of state (CoolProp)",
                           "fill_molar_density_mol_m3": rho, "fluid": fluid.label, "phase_fill": phase,
                           "phase_peak": cols["phase_peak"][k],
                           "z_fill": (case.fill_pressure_pa or p_fill_ref) / (rho * 8.314462618 * t_fill),
-                          "z_peak": peak / (rho * R * t_peak), "eos_references": fluid.eos_references()}}
-        governing_reason = _screen.governing_text("reference", [])
+                          "z_peak": peak_ref / (rho * R * t_peak), "eos_references": fluid.eos_references()}}
         # screen._mass_limit: the target's density, capped by the liquid-full density, then the filling ratio
         mass_rho, lf_density = _opt(cols["mass_rho"][k]), _opt(cols["lf_density"][k])
         if mass_rho is None or lf_density is None:
