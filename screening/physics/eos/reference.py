@@ -97,6 +97,7 @@ def citation(key: str) -> str:
     return _citation(key)
 
 
+@lru_cache(maxsize=None)
 def _citation(key: str) -> str:
     """Readable citation for a CoolProp bibliography key; the key itself when the entry is not there.
     A comma-separated list of keys (oxygen's 'Schmidt-FPE-1985,Stewart-JPCRD-1991') gives each citation."""
