@@ -523,38 +523,11 @@ _FLOAT_COLUMNS = ("t_peak", "rho_molar", "peak_ref", "rho_ideal", "peak_ideal", 
                   "mass_rho", "crossing")
 
 
-def _columns(rows: Rows) -> dict:
-    """Every model, the phase boundary and the limits for rows of one pure permanent gas, as arrays.
-
-    Returns a dict of the arrays named in _FLOAT_COLUMNS plus ``stated`` (the stated gas temperature is the
-    worst-case basis), ``lk_ok``, ``lk_reason`` and ``fallback`` (rows that must go per row)."""
+def _reference_fill_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> np.ndarray:
+    """The reference fill state of permanent-gas rows: the density at the fill (PT flash, checked) and the peak
+    on the same isochore (``rho_molar``, ``peak_ref``). Returns the fill's molar density as the flash gives it."""
     n = rows.p_fill.size
-    gas = rows.gas
-    g = gas.components[0]
-    p_fill, t_fill, rated, atm, margin_req = rows.p_fill, rows.t_fill, rows.rated, rows.atm, rows.margin_req
-    t_peak, stated, fill_governs, t_exposure = worst_case(rows.ambient_max, rows.gas_temperature, t_fill)
-    fallback = np.zeros(n, dtype=bool)
-    nan = np.full(n, np.nan)
-    out = {k: nan.copy() for k in _FLOAT_COLUMNS}
-    out.update(t_peak=t_peak, stated=stated, fill_governs=fill_governs, t_exposure=t_exposure, fallback=fallback, lk_ok=np.zeros(n, dtype=bool),
-               lk_reason=np.full(n, "", dtype=object),
-               gas_below_ambient=~np.isnan(rows.gas_temperature) & (rows.gas_temperature < rows.ambient_max))
-    try:
-        fluid = reference_fluid((g.coolprop_name,), (1.0,))
-    except NotApplicable:
-        fallback[:] = True
-        return out
-    tc_ref = fluid.critical_temperature
-    # both temperatures above the critical temperature: a single-phase fluid, no saturation checks
-    fallback |= ~(np.minimum(t_fill, t_peak) > max(tc_ref, g.critical_temperature))
-    fallback |= (t_fill < fluid.t_min) | (t_peak > fluid.t_max)
-    pure = not fluid.is_pseudo_pure
-    if pure:
-        # fills near the critical temperature (the liquid-like rule, the mass limit capped at the critical
-        # density): per row
-        fallback |= t_fill <= _screen.LIQUID_LIKE_TEMPERATURE_RATIO * tc_ref
-
-    # --- reference fill state: density at the fill (PT flash, checked), peak on the same isochore
+    gas, p_fill, t_fill, t_peak = rows.gas, rows.p_fill, rows.t_fill, out["t_peak"]
     rho_molar = np.full(n, np.nan)
     live = np.flatnonzero(~fallback)
     rho_molar[live], ok_fill, _ = _loop(fluid.density, p_fill[live], t_fill[live])
@@ -569,44 +542,20 @@ def _columns(rows: Rows) -> dict:
         peak_ref[live] = p
         # a reference failure at the peak is rare on this path; leave such rows to the per-row path
         fallback[live[~v]] = True
+    return rho_molar
 
-    # --- where the isochore meets the dome (pure fluids; the pseudo-pure air has no phase analysis):
-    # dry-out below the critical density, liquid-full above it (isochore.isochore_phases)
-    if pure:
-        rc = fluid.critical_molar_density
-        for side, key in (("vapour", "dry"), ("liquid", "liquid_full")):
-            d_rows = np.flatnonzero(~fallback & ((rho_molar <= rc) if side == "vapour" else (rho_molar > rc)))
-            if d_rows.size:
-                t_b, ok_b = _dome(fluid, side).boundary(rho_molar[d_rows])
-                out[key][d_rows] = t_b
-                fallback[d_rows[~ok_b]] = True
-        lf = np.flatnonzero(~fallback & np.isfinite(out["liquid_full"]))
-        if lf.size:
-            out["dpdt_liquid_full"][lf], ok, _ = _loop(fluid.dp_dt_at_constant_density, rho_molar[lf],
-                                                       out["liquid_full"][lf] + LIQUID_FULL_STEP)
-            fallback[lf[~ok]] = True
 
-    # --- ideal
-    out["rho_ideal"] = rho_ideal = p_fill / (R * t_fill)
-    out["peak_ideal"] = rho_ideal * R * t_peak
-
-    # --- generalized, as arrays
-    gen = _generalized_columns(gas, p_fill, t_fill, t_peak)
-    out.update({k: v for k, v in gen.items() if not k.startswith("_")})
+def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, t_lo: np.ndarray, t_hi: np.ndarray,
+                        p_lo: np.ndarray, p_hi: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The generalized model's limits of permanent-gas rows (screen._limits): the gas temperature at which the
+    isochore reaches the rating and the fill pressure whose peak is the target, by the model's inverse where it
+    is sure of itself and by screen._root's scan (:func:`_scan_root`) where a root lies at the edge of the range;
+    the quantum-gas SRK rows by the scan. Returns (temperatures [K], fill pressures [Pa]), NaN for none."""
+    n = rows.p_fill.size
+    rated, t_fill, t_peak, target = rows.rated, rows.t_fill, out["t_peak"], out["target"]
     lk_ok, q_srk, rho_lk, kq = gen["lk_ok"], gen["q_srk"], gen["_rho_lk"], gen["_kq"]
     tcf, pcf, omf, tcp, pcp, omp = (gen[k] for k in ("tcf", "pcf", "_omf", "tcp", "pcp", "omp"))
     peak_lk = out["lk_peak"]
-    # the vectorised limits assume constant critical constants (not the quantum correction)
-    if any(c.quantum for c in gas.components):
-        fallback |= lk_ok & ~q_srk
-
-    # --- limits: targets and scan ranges as screen._limits has them
-    out["target"] = target = atm + (rated - atm) * (1.0 - margin_req)
-    t_lo = np.minimum(t_fill, t_peak)
-    t_hi = np.maximum(t_peak, t_fill) + 300.0
-    p_lo = atm * 1.01
-    p_hi = np.maximum(target, p_fill) * np.maximum(1.0, t_fill / t_peak) * 1.05
-
     rows_lk = np.flatnonzero(lk_ok & ~fallback & ~q_srk)
     t_lk = np.full(n, np.nan)
     max_p_lk = np.full(n, np.nan)
@@ -679,7 +628,18 @@ def _columns(rows: Rows) -> dict:
                 s2 = lee_kesler_pressure(np.where(s1.valid, s1.molar_density, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
                 return np.where(s1.valid & s2.valid, s2.pressure - target[r], np.nan)
             max_p_lk[u] = _scan_root(f_fill, p_lo[u], p_hi[u])
+    return t_lk, max_p_lk
 
+
+def _reference_limits(rows: Rows, fluid: ReferenceFluid, pure: bool, out: dict, fallback: np.ndarray,
+                      t_lk: np.ndarray, max_p_lk: np.ndarray, t_lo: np.ndarray, t_hi: np.ndarray, p_lo: np.ndarray,
+                      p_hi: np.ndarray) -> None:
+    """The reference model's limits of permanent-gas rows, and with the generalized ones (t_lk, max_p_lk) the
+    lowest: the highest gas temperature (solved only where it can be below the generalized one), the highest
+    fill pressure and the fill density whose peak is the target (screen._limits, screen._mass_limit)."""
+    n = rows.p_fill.size
+    rated, t_fill, t_peak, target = rows.rated, rows.t_fill, out["t_peak"], out["target"]
+    rho_ref, peak_ref = out["rho_molar"], out["peak_ref"]
     # reference: max temperature, solved only where it can be below the generalized one
     live = np.flatnonzero(~fallback)
     t_ref = np.full(n, np.nan)
@@ -733,15 +693,70 @@ def _columns(rows: Rows) -> dict:
         inside = np.isfinite(r) & (r >= 1e-6 * rho_top) & (r <= 0.999 * rho_top)
         out["mass_rho"][live[inside]] = r[inside]
 
+
+def _columns(rows: Rows) -> dict:
+    """Every model, the phase boundary and the limits for rows of one pure permanent gas, as arrays.
+
+    Returns a dict of the arrays named in _FLOAT_COLUMNS plus ``stated`` (the stated gas temperature is the
+    worst-case basis), ``lk_ok``, ``lk_reason`` and ``fallback`` (rows that must go per row)."""
+    n = rows.p_fill.size
+    gas = rows.gas
+    g = gas.components[0]
+    p_fill, t_fill, rated, atm, margin_req = rows.p_fill, rows.t_fill, rows.rated, rows.atm, rows.margin_req
+    t_peak, stated, fill_governs, t_exposure = worst_case(rows.ambient_max, rows.gas_temperature, t_fill)
+    fallback = np.zeros(n, dtype=bool)
+    nan = np.full(n, np.nan)
+    out = {k: nan.copy() for k in _FLOAT_COLUMNS}
+    out.update(t_peak=t_peak, stated=stated, fill_governs=fill_governs, t_exposure=t_exposure, fallback=fallback, lk_ok=np.zeros(n, dtype=bool),
+               lk_reason=np.full(n, "", dtype=object),
+               gas_below_ambient=~np.isnan(rows.gas_temperature) & (rows.gas_temperature < rows.ambient_max))
+    try:
+        fluid = reference_fluid((g.coolprop_name,), (1.0,))
+    except NotApplicable:
+        fallback[:] = True
+        return out
+    tc_ref = fluid.critical_temperature
+    # both temperatures above the critical temperature: a single-phase fluid, no saturation checks
+    fallback |= ~(np.minimum(t_fill, t_peak) > max(tc_ref, g.critical_temperature))
+    fallback |= (t_fill < fluid.t_min) | (t_peak > fluid.t_max)
+    pure = not fluid.is_pseudo_pure
+    if pure:
+        # fills near the critical temperature (the liquid-like rule, the mass limit capped at the critical
+        # density): per row
+        fallback |= t_fill <= _screen.LIQUID_LIKE_TEMPERATURE_RATIO * tc_ref
+
+    # --- reference fill state: density at the fill (PT flash, checked), peak on the same isochore
+    rho_molar = _reference_fill_columns(rows, fluid, out, fallback)
+
+    # --- where the isochore meets the dome (pure fluids; the pseudo-pure air has no phase analysis)
+    if pure:
+        _dome_columns(fluid, rho_molar, out, fallback)
+
+    # --- ideal
+    out["rho_ideal"] = rho_ideal = p_fill / (R * t_fill)
+    out["peak_ideal"] = rho_ideal * R * t_peak
+
+    # --- generalized, as arrays
+    gen = _generalized_columns(gas, p_fill, t_fill, t_peak)
+    out.update({k: v for k, v in gen.items() if not k.startswith("_")})
+    lk_ok, q_srk = gen["lk_ok"], gen["q_srk"]
+    # the vectorised limits assume constant critical constants (not the quantum correction)
+    if any(c.quantum for c in gas.components):
+        fallback |= lk_ok & ~q_srk
+
+    # --- limits: targets and scan ranges as screen._limits has them
+    out["target"] = target = atm + (rated - atm) * (1.0 - margin_req)
+    t_lo = np.minimum(t_fill, t_peak)
+    t_hi = np.maximum(t_peak, t_fill) + 300.0
+    p_lo = atm * 1.01
+    p_hi = np.maximum(target, p_fill) * np.maximum(1.0, t_fill / t_peak) * 1.05
+
+    t_lk, max_p_lk = _generalized_limits(rows, out, gen, fallback, t_lo, t_hi, p_lo, p_hi)
+
+    _reference_limits(rows, fluid, pure, out, fallback, t_lk, max_p_lk, t_lo, t_hi, p_lo, p_hi)
+
     # vapour pressure where the isochore leaves the dome (isochore.isochore_phases: crossing_pressure)
-    crossing = out["crossing"]
-    boundary = np.fmin(out["dry"], out["liquid_full"])
-    for k in np.flatnonzero(~fallback & np.isfinite(boundary)):
-        try:
-            crossing[k] = (fluid.critical_pressure if boundary[k] >= fluid.critical_temperature
-                           else fluid.vapour_pressure(float(boundary[k])))
-        except NotApplicable:
-            fallback[k] = True
+    _crossing_columns(fluid, out, fallback)
     return out
 
 
@@ -1320,6 +1335,11 @@ def _dome_columns(fluid: ReferenceFluid, rho_molar: np.ndarray, out: dict, fallb
         out["dpdt_liquid_full"][lf], ok, _ = _loop(fluid.dp_dt_at_constant_density, rho_molar[lf],
                                                    out["liquid_full"][lf] + LIQUID_FULL_STEP)
         fallback[lf[~ok]] = True
+
+
+def _crossing_columns(fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:
+    """The vapour pressure where each row's isochore leaves the dome (isochore.isochore_phases:
+    crossing_pressure); the critical pressure where it leaves at the critical point."""
     crossing = out["crossing"]
     boundary = np.fmin(out["dry"], out["liquid_full"])
     for k in np.flatnonzero(~fallback & np.isfinite(boundary)):
@@ -1450,8 +1470,8 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         for j in small.tolist():
             i = int(live[j])
             tp, tg = float(t_peak[i]), float(target[i])
-            out["mass_rho"][i] = _screen._root(lambda x: fluid.pressure(x, tp) - tg, float(lo[j]), float(hi[j]),
-                                               n=60) or np.nan
+            out["mass_rho"][i] = _screen._root(lambda x, tp=tp, tg=tg: fluid.pressure(x, tp) - tg, float(lo[j]),
+                                               float(hi[j]), n=60) or np.nan
 
 
 def _liquefied_columns(rows: Rows) -> dict:
@@ -1472,6 +1492,7 @@ def _liquefied_columns(rows: Rows) -> dict:
     live = ~out["refused"]
     rho = np.where(live, out["rho_molar"], np.nan)
     _dome_columns(fluid, rho, out, fallback)
+    _crossing_columns(fluid, out, fallback)
     _liquid_full_columns(rows, fluid, out, fallback)
     _liquefied_limits(rows, fluid, out, fallback)
     return out
