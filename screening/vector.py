@@ -335,6 +335,32 @@ def _scan_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray
     return out
 
 
+def _monotone_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray, hi: np.ndarray,
+                   n: int = _SCAN_N) -> np.ndarray:
+    """Per row, the root screen._root finds for a monotonic f(x, rows) on [lo, hi] (NaN: none), looking first
+    where it looks first: f evaluable at both ends with a sign change, the root inside the whole bracket
+    (Illinois, to _SECANT_RTOL); the same sign at both ends, none; lo where f(lo) = 0. Where an end cannot be
+    evaluated, or the solve meets a point it cannot evaluate, screen._root's scan (:func:`_scan_root`)."""
+    m = lo.size
+    out = np.full(m, np.nan)
+    if m == 0:
+        return out
+    rows = np.arange(m)
+    f_lo, f_hi = f(lo, rows), f(hi, rows)
+    both = np.isfinite(f_lo) & np.isfinite(f_hi)
+    at_lo = both & (f_lo == 0.0)
+    out[at_lo] = lo[at_lo]
+    go = np.flatnonzero(both & ~at_lo & (f_lo * f_hi < 0.0))
+    at_hi = both & ~at_lo & (f_hi == 0.0)          # the scan's last point
+    out[at_hi] = hi[at_hi]
+    if go.size:
+        out[go] = _illinois(f, lo[go], hi[go], f_lo[go], f_hi[go], go)
+    scan = np.flatnonzero(~both | np.isin(rows, go[~np.isfinite(out[go])]))
+    if scan.size:
+        out[scan] = _scan_root(lambda x, ix: f(x, scan[ix]), lo[scan], hi[scan], n)
+    return out
+
+
 def _increasing_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np.ndarray, lo: np.ndarray,
                      mid: np.ndarray, f_mid: np.ndarray, hi: np.ndarray, top: float) -> tuple[np.ndarray, np.ndarray]:
     """Per row, the root screen._root finds for an increasing f(x, rows) on [lo, hi] (NaN: none), where f is
@@ -1158,40 +1184,30 @@ def _group_columns(rows: Rows) -> dict:
 
 def _known_scan_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], x: np.ndarray, lo: np.ndarray,
                      hi: np.ndarray, n: int) -> tuple[np.ndarray, np.ndarray]:
-    """(root, ok): what screen._root(f, lo, hi, n) finds for a non-decreasing f(x, rows) whose only sign change is
-    at x (found another way; NaN: not known), where f can be evaluated on a prefix of [lo, hi] (beyond it the
-    equation's range ends). As there: with f finite at both ends, x where they bracket it (lo where f(lo) = 0),
-    none where they do not; else the scan interval of np.linspace(lo, hi, n) that holds x must have both ends
-    evaluable (then x, else none). ok False where x is needed but not known (those rows go per row)."""
+    """(root, ok): what screen._root(f, lo, hi, n) finds for an increasing f(x, rows) whose only sign change is at
+    x (found another way; NaN: not known), where f can be evaluated on one interval of [lo, hi] (a model's range).
+
+    screen._root takes the root inside the whole bracket where f is evaluable at both ends, else inside the first
+    interval of its scan (np.linspace(lo, hi, n)) whose two ends are evaluable and bracket a sign change. For such
+    an f both come to this: x where the scan interval that holds it has both ends evaluable (each then on its
+    side of zero), none where x lies outside [lo, hi] or that interval reaches past the range (screen._root meets
+    no other sign change). Two evaluations a row; ok False where x is not known or the ends contradict it (those
+    rows go another way)."""
     m = x.size
-    rows = np.arange(m)
     root = np.full(m, np.nan)
     ok = np.ones(m, dtype=bool)
-    if m == 0:
-        return root, ok
-    f_lo, f_hi = f(lo, rows), f(hi, rows)
-    both = np.isfinite(f_lo) & np.isfinite(f_hi)
-    at_lo = both & (f_lo == 0.0)
-    root[at_lo] = lo[at_lo]
-    at_hi = both & ~at_lo & (f_lo < 0.0) & (f_hi == 0.0)     # the scan's last point
-    root[at_hi] = hi[at_hi]
-    inside = both & ~at_lo & ~at_hi & (f_lo * f_hi < 0.0)
-    known = np.isfinite(x) & (x > lo) & (x < hi)
-    root[inside & known] = x[inside & known]
-    ok[inside & ~known] = False
-    scan = np.flatnonzero(~both)
-    if scan.size:
-        have = known[scan]
-        ok[scan[~have]] = False
-        s = scan[have]
-        if s.size:
-            a, b = _linspace_bracket(lo[s], hi[s], x[s], n)
-            fa, fb = f(a, s), f(b, s)
-            good = np.isfinite(fa) & np.isfinite(fb) & (fa < 0.0) & (fb > 0.0)
-            root[s[good]] = x[s[good]]
-            # the upper end of x's interval not evaluable: the scan passes over it and, f being non-decreasing with
-            # the evaluable states a prefix, meets no later sign change (none); anything else is not that shape
-            ok[s[~good & ~(np.isfinite(fa) & (fa < 0.0) & ~np.isfinite(fb))]] = False
+    known = np.isfinite(x)
+    ok[~known] = False
+    s = np.flatnonzero(known & (x > lo) & (x < hi))
+    if s.size:
+        a, b = _linspace_bracket(lo[s], hi[s], x[s], n)
+        fa, fb = f(a, s), f(b, s)
+        good = np.isfinite(fa) & np.isfinite(fb) & (fa < 0.0) & (fb > 0.0)
+        root[s[good]] = x[s[good]]
+        # one end out of the range: the scan passes over it and meets no later sign change (none);
+        # anything else is not the shape assumed here
+        past = (np.isfinite(fa) & (fa < 0.0) & ~np.isfinite(fb)) | (~np.isfinite(fa) & np.isfinite(fb) & (fb > 0.0))
+        ok[s[~good & ~past]] = False
     return root, ok
 
 
@@ -1266,7 +1282,7 @@ def _liquefied_gas_models(rows: Rows, out: dict, fallback: np.ndarray) -> None:
     """The ideal and generalized models of the liquefied-gas rows that are a gas at fill and at the worst case
     (screen._ideal, screen._generalized), and the generalized model's limits as screen._limits finds them: the
     gas temperature at which its isochore reaches the rating, the fill pressure whose peak is the target (each
-    by screen._root's scan, :func:`_scan_root`)."""
+    as screen._root finds it, :func:`_monotone_root`)."""
     n = rows.t_fill.size
     gas_ok = out["gas_ok"]
     by_pressure = out["by_pressure"]
@@ -1299,7 +1315,7 @@ def _liquefied_gas_models(rows: Rows, out: dict, fallback: np.ndarray) -> None:
         return np.where(st.valid, st.pressure - rated[r], np.nan)
 
     t_lo, t_hi = np.minimum(t_fill, t_peak)[lk], (np.maximum(t_peak, t_fill) + 300.0)[lk]
-    max_t_lk[lk] = _scan_root(isochore, t_lo, t_hi)
+    max_t_lk[lk] = _monotone_root(isochore, t_lo, t_hi)
     pk = lk[by_pressure[lk]]
     if pk.size:
         def fill(p, ix):
@@ -1310,7 +1326,7 @@ def _liquefied_gas_models(rows: Rows, out: dict, fallback: np.ndarray) -> None:
 
         p_lo = atm[pk] * 1.01
         p_hi = np.maximum(target[pk], rows.p_fill[pk]) * np.maximum(1.0, t_fill[pk] / t_peak[pk]) * 1.05
-        root = _scan_root(fill, p_lo, p_hi)
+        root = _monotone_root(fill, p_lo, p_hi)
         # screen._limits keeps a fill-pressure root only where its peak is the target (not a jump of the model)
         at = np.flatnonzero(np.isfinite(root))
         hit = np.abs(fill(root[at], at)) <= 1e-6 * target[pk[at]]
