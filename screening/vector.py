@@ -19,11 +19,19 @@ not) and no tolerances, both temperatures above the critical temperature (the "v
   saturated-vapour density and a few secant steps;
 * verdicts through :func:`screening.screen.decide`, the one place that decides a verdict.
 
-Everything else goes through :func:`screening.screen.screen_case` one row at a time, on purpose: liquefiable
-and dissolved gases and mixtures (their phase is checked per row by two routes, see physics.mixtures),
-mass fills, fills denser than critical (liquid-full analysis), two-phase or near-critical fills,
-tolerances and several scenarios, and any row where a vectorised step is not sure of itself (a root next to
-the edge of a model's range, a solve that did not settle). Those rows give exactly the single-case result.
+A pure liquefied gas (carbon dioxide, propane, ammonia, the refrigerants: a pure fluid with a saturation dome)
+filled by mass or by pressure at a stated fill temperature, with one exposure and no tolerances, runs on
+:func:`_liquefied_columns`: the saturation and critical bands (such rows are refused as the single screening
+refuses them), the fill density and the phases at fill and at the worst case on the reference equation, the
+dome crossings, the liquid-full rule, the ideal and generalized models where the contents are a gas at both,
+and the limits, each root as screen._root finds it; the verdict through the same rules of screen.py
+(:func:`_liquefied_verdict`).
+
+Everything else goes through :func:`screening.screen.screen_case` one row at a time, on purpose: dissolved gases
+and mixtures (their phase is checked per row by two routes, see physics.mixtures), permanent-gas fills by mass,
+fills of a permanent gas near its critical temperature, tolerances and several scenarios, and any row where a
+vectorised step is not sure of itself (a root next to the edge of a model's range, a solve that did not
+settle, a state the reference equation refuses). Those rows give exactly the single-case result.
 
 The result of a row has the keys of ``screen_case``; its numbers agree with it to the solve tolerance
 (about 1e-9 relative; ``screen_case`` stops its limit solves there). ``curves`` and ``phase_diagram`` are None
