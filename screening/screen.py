@@ -359,16 +359,22 @@ def _reference_fluid(gas: Mixture) -> tuple[ReferenceFluid | None, str | None]:
 def _band_reason(case: Case, fluid: ReferenceFluid, t_fill: float) -> tuple[str, str, str] | None:
     """(code, reason, warning) where a fill given by pressure lies within the saturation band or the critical
     band, so the pressure cannot fix the density; None elsewhere. Pure fluids with a saturation dome only."""
-    p = case.fill_pressure_pa
-    atm = case.site.atmospheric_pressure_pa
     tol = case.tolerance
-    tol_p = tol.fill_pressure_pa if tol is not None else 0.0
-    tol_t = tol.fill_temperature_k if tol is not None else 0.0
+    return band_reason(case.fill_pressure_pa, t_fill, fluid, case.gas.name, case.site.atmospheric_pressure_pa,
+                       tol.fill_pressure_pa if tol is not None else 0.0,
+                       tol.fill_temperature_k if tol is not None else 0.0)
+
+
+def band_reason(p: float, t_fill: float, fluid: ReferenceFluid, gas_name: str, atm: float, tol_p: float = 0.0,
+                tol_t: float = 0.0) -> tuple[str, str, str] | None:
+    """The rule of :func:`_band_reason` on plain values (one row of a batch as well as one case): fill pressure
+    p [Pa] absolute at t_fill [K], atmospheric pressure atm [Pa], the input tolerances' half-bands tol_p [Pa] and
+    tol_t [K] (0: none)."""
     tc, pc = fluid.critical_temperature, fluid.critical_pressure
     band_t, band_p = max(CRITICAL_BAND_K, tol_t), max(CRITICAL_BAND_FRACTION * pc, tol_p)
     ask = "the fill pressure cannot fix how much is in the vessel. Give the fill mass instead."
     if abs(t_fill - tc) <= band_t and abs(p - pc) <= band_p:
-        point = f"the critical point of {case.gas.name} ({tc - 273.15:.1f} °C, {(pc - atm) / 1e5:.1f} bar(g))"
+        point = f"the critical point of {gas_name} ({tc - 273.15:.1f} °C, {(pc - atm) / 1e5:.1f} bar(g))"
         return "near-critical", (
             f"The fill state lies within {band_t:g} K and {band_p / 1e5:.1f} bar of {point}, where a small error in "
             f"the fill pressure or temperature changes the density a great deal: {ask}"), (
@@ -385,7 +391,7 @@ def _band_reason(case: Case, fluid: ReferenceFluid, t_fill: float) -> tuple[str,
     band_p = max(SATURATION_BAND_FRACTION * psat, tol_p)
     if abs(p - psat) <= band_p or lo <= p <= hi:
         return "near-saturation", (
-            f"The fill pressure is within {band_p / psat * 100:.0f} % of the vapour pressure of {case.gas.name} at "
+            f"The fill pressure is within {band_p / psat * 100:.0f} % of the vapour pressure of {gas_name} at "
             f"the fill temperature ({(psat - atm) / 1e5:.1f} bar(g)) or within {band_t:g} K of the saturation "
             f"temperature: the contents may be vapour, liquid or both, and {ask}"), (
             f"The fill pressure is {p / psat * 100:.1f} % of the vapour pressure at the fill temperature.")
@@ -478,18 +484,25 @@ def _fill_state(case: Case, t_fill: float, t_peak: float, warnings: list) -> Fil
             fs.why_not_gas = f"the gas phase cannot be confirmed: {exc.reason}"
         return fs
 
-    condensed = {"liquid", "two-phase"}
-    if fs.phase_fill in condensed or fs.phase_peak in condensed:
-        fs.gas_ok = False
-        where = "at fill" if fs.phase_fill in condensed else "at the worst-case temperature"
-        phase = fs.phase_fill if fs.phase_fill in condensed else fs.phase_peak
-        fs.why_not_gas = (f"the contents are {phase} {where}; gas models do not apply to a liquid or a "
-                          "liquid–vapour mixture")
+    condensed = condensed_reason(fs.phase_fill, fs.phase_peak)
+    if condensed is not None:
+        fs.gas_ok, fs.why_not_gas = False, condensed
     if not _has_liquid_full_analysis(fluid) and _mixture_liquid_like(case.gas, fluid, fs, rho_molar, t_fill):
         fs.refusal = (f"The mixture {case.gas.name} is liquid or a dense, liquid-like fluid at fill "
                       f"({fs.rho_mass:.0f} kg/m3): the temperature at which it fills the vessel cannot be "
                       "established for a mixture by this method, so the vessel cannot be screened.")
     return fs
+
+
+def condensed_reason(phase_fill: str | None, phase_peak: str | None) -> str | None:
+    """Why the gas models (ideal, generalized) do not apply where the contents are liquid or two-phase at fill or
+    at the worst case; None where they are a gas (or supercritical) at both."""
+    condensed = {"liquid", "two-phase"}
+    if phase_fill not in condensed and phase_peak not in condensed:
+        return None
+    where = "at fill" if phase_fill in condensed else "at the worst-case temperature"
+    phase = phase_fill if phase_fill in condensed else phase_peak
+    return f"the contents are {phase} {where}; gas models do not apply to a liquid or a liquid–vapour mixture"
 
 
 def _mixture_liquid_like(gas: Mixture, fluid: ReferenceFluid, fs: FillState, rho_molar: float,

@@ -19,11 +19,19 @@ not) and no tolerances, both temperatures above the critical temperature (the "v
   saturated-vapour density and a few secant steps;
 * verdicts through :func:`screening.screen.decide`, the one place that decides a verdict.
 
-Everything else goes through :func:`screening.screen.screen_case` one row at a time, on purpose: liquefiable
-and dissolved gases and mixtures (their phase is checked per row by two routes, see physics.mixtures),
-mass fills, fills denser than critical (liquid-full analysis), two-phase or near-critical fills,
-tolerances and several scenarios, and any row where a vectorised step is not sure of itself (a root next to
-the edge of a model's range, a solve that did not settle). Those rows give exactly the single-case result.
+A pure liquefied gas (carbon dioxide, propane, ammonia, the refrigerants: a pure fluid with a saturation dome)
+filled by mass or by pressure at a stated fill temperature, with one exposure and no tolerances, runs on
+:func:`_liquefied_columns`: the saturation and critical bands (such rows are refused as the single screening
+refuses them), the fill density and the phases at fill and at the worst case on the reference equation, the
+dome crossings, the liquid-full rule, the ideal and generalized models where the contents are a gas at both,
+and the limits, each root as screen._root finds it; the verdict through the same rules of screen.py
+(:func:`_liquefied_verdict`).
+
+Everything else goes through :func:`screening.screen.screen_case` one row at a time, on purpose: dissolved gases
+and mixtures (their phase is checked per row by two routes, see physics.mixtures), permanent-gas fills by mass,
+fills of a permanent gas near its critical temperature, tolerances and several scenarios, and any row where a
+vectorised step is not sure of itself (a root next to the edge of a model's range, a solve that did not
+settle, a state the reference equation refuses). Those rows give exactly the single-case result.
 
 The result of a row has the keys of ``screen_case``; its numbers agree with it to the solve tolerance
 (about 1e-9 relative; ``screen_case`` stops its limit solves there). ``curves`` and ``phase_diagram`` are None
@@ -335,6 +343,32 @@ def _scan_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray
     return out
 
 
+def _monotone_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray, hi: np.ndarray,
+                   n: int = _SCAN_N) -> np.ndarray:
+    """Per row, the root screen._root finds for a monotonic f(x, rows) on [lo, hi] (NaN: none), looking first
+    where it looks first: f evaluable at both ends with a sign change, the root inside the whole bracket
+    (Illinois, to _SECANT_RTOL); the same sign at both ends, none; lo where f(lo) = 0. Where an end cannot be
+    evaluated, or the solve meets a point it cannot evaluate, screen._root's scan (:func:`_scan_root`)."""
+    m = lo.size
+    out = np.full(m, np.nan)
+    if m == 0:
+        return out
+    rows = np.arange(m)
+    f_lo, f_hi = f(lo, rows), f(hi, rows)
+    both = np.isfinite(f_lo) & np.isfinite(f_hi)
+    at_lo = both & (f_lo == 0.0)
+    out[at_lo] = lo[at_lo]
+    go = np.flatnonzero(both & ~at_lo & (f_lo * f_hi < 0.0))
+    at_hi = both & ~at_lo & (f_hi == 0.0)          # the scan's last point
+    out[at_hi] = hi[at_hi]
+    if go.size:
+        out[go] = _illinois(f, lo[go], hi[go], f_lo[go], f_hi[go], go)
+    scan = np.flatnonzero(~both | np.isin(rows, go[~np.isfinite(out[go])]))
+    if scan.size:
+        out[scan] = _scan_root(lambda x, ix: f(x, scan[ix]), lo[scan], hi[scan], n)
+    return out
+
+
 def _increasing_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np.ndarray, lo: np.ndarray,
                      mid: np.ndarray, f_mid: np.ndarray, hi: np.ndarray, top: float) -> tuple[np.ndarray, np.ndarray]:
     """Per row, the root screen._root finds for an increasing f(x, rows) on [lo, hi] (NaN: none), where f is
@@ -433,7 +467,9 @@ class PlainPart(Rows):
 
 def _plain_columns(part: PlainPart) -> dict:
     """_columns of the part plus ``verdict``: each vectorised row's :func:`_verdict` (None on fallback rows),
-    so that forked workers decide the verdicts of their own rows."""
+    so that forked workers decide the verdicts of their own rows (a liquefied gas: :func:`_liquefied_plain_columns`)."""
+    if _liquefied_gas(part.gas):
+        return _liquefied_plain_columns(part)
     cols = _columns(part)
     verdicts = np.full(part.p_fill.size, None, dtype=object)
     molar_mass = part.gas.molar_mass
@@ -461,83 +497,16 @@ def worst_case(ambient_max: np.ndarray, gas_temperature: np.ndarray,
     return t, stated, t > t_exposure, t_exposure
 
 
-#: Columns a group computes per row (floats; NaN for none) besides the masks.
-_FLOAT_COLUMNS = ("t_peak", "rho_molar", "peak_ref", "rho_ideal", "peak_ideal", "lk_rho_fill", "lk_z_fill",
-                  "lk_tr_fill", "lk_pr_fill", "lk_peak", "lk_z_peak", "lk_tr_peak", "lk_pr_peak", "tcf", "pcf",
-                  "tcp", "pcp", "omp", "dry", "liquid_full", "dpdt_liquid_full", "max_t", "max_p", "target",
-                  "mass_rho", "crossing")
-
-
-def _columns(rows: Rows) -> dict:
-    """Every model, the phase boundary and the limits for rows of one pure permanent gas, as arrays.
-
-    Returns a dict of the arrays named in _FLOAT_COLUMNS plus ``stated`` (the stated gas temperature is the
-    worst-case basis), ``lk_ok``, ``lk_reason`` and ``fallback`` (rows that must go per row)."""
-    n = rows.p_fill.size
-    gas = rows.gas
-    g = gas.components[0]
-    p_fill, t_fill, rated, atm, margin_req = rows.p_fill, rows.t_fill, rows.rated, rows.atm, rows.margin_req
-    t_peak, stated, fill_governs, t_exposure = worst_case(rows.ambient_max, rows.gas_temperature, t_fill)
-    fallback = np.zeros(n, dtype=bool)
-    nan = np.full(n, np.nan)
-    out = {k: nan.copy() for k in _FLOAT_COLUMNS}
-    out.update(t_peak=t_peak, stated=stated, fill_governs=fill_governs, t_exposure=t_exposure, fallback=fallback, lk_ok=np.zeros(n, dtype=bool),
-               lk_reason=np.full(n, "", dtype=object),
-               gas_below_ambient=~np.isnan(rows.gas_temperature) & (rows.gas_temperature < rows.ambient_max))
-    try:
-        fluid = reference_fluid((g.coolprop_name,), (1.0,))
-    except NotApplicable:
-        fallback[:] = True
-        return out
-    tc_ref = fluid.critical_temperature
-    # both temperatures above the critical temperature: a single-phase fluid, no saturation checks
-    fallback |= ~(np.minimum(t_fill, t_peak) > max(tc_ref, g.critical_temperature))
-    fallback |= (t_fill < fluid.t_min) | (t_peak > fluid.t_max)
-    pure = not fluid.is_pseudo_pure
-    if pure:
-        # fills near the critical temperature (the liquid-like rule, the mass limit capped at the critical
-        # density): per row
-        fallback |= t_fill <= _screen.LIQUID_LIKE_TEMPERATURE_RATIO * tc_ref
-
-    # --- reference fill state: density at the fill (PT flash, checked), peak on the same isochore
-    rho_molar = np.full(n, np.nan)
-    live = np.flatnonzero(~fallback)
-    rho_molar[live], ok_fill, _ = _loop(fluid.density, p_fill[live], t_fill[live])
-    fallback[live[~ok_fill]] = True
-    # the single screening takes the fill's mass density and divides by the molar mass again: so here
-    rho_ref = (rho_molar * gas.molar_mass) / gas.molar_mass
-    out["rho_molar"] = rho_ref
-    peak_ref = out["peak_ref"]
-    live = np.flatnonzero(~fallback)
-    if live.size:
-        p, v, _rs = fluid.pressures(rho_ref[live], t_peak[live])
-        peak_ref[live] = p
-        # a reference failure at the peak is rare on this path; leave such rows to the per-row path
-        fallback[live[~v]] = True
-
-    # --- where the isochore meets the dome (pure fluids; the pseudo-pure air has no phase analysis):
-    # dry-out below the critical density, liquid-full above it (isochore.isochore_phases)
-    if pure:
-        rc = fluid.critical_molar_density
-        for side, key in (("vapour", "dry"), ("liquid", "liquid_full")):
-            d_rows = np.flatnonzero(~fallback & ((rho_molar <= rc) if side == "vapour" else (rho_molar > rc)))
-            if d_rows.size:
-                t_b, ok_b = _dome(fluid, side).boundary(rho_molar[d_rows])
-                out[key][d_rows] = t_b
-                fallback[d_rows[~ok_b]] = True
-        lf = np.flatnonzero(~fallback & np.isfinite(out["liquid_full"]))
-        if lf.size:
-            out["dpdt_liquid_full"][lf], ok, _ = _loop(fluid.dp_dt_at_constant_density, rho_molar[lf],
-                                                       out["liquid_full"][lf] + LIQUID_FULL_STEP)
-            fallback[lf[~ok]] = True
-
-    # --- ideal
-    out["rho_ideal"] = rho_ideal = p_fill / (R * t_fill)
-    out["peak_ideal"] = rho_ideal * R * t_peak
-
-    # --- generalized, as arrays
+def _generalized_columns(gas: Mixture, p_fill: np.ndarray, t_fill: np.ndarray, t_peak: np.ndarray,
+                         rho_given: np.ndarray | None = None) -> dict:
+    """The generalized model of rows of one gas as arrays (screen._generalized, screen._quantum_generalized): the
+    Lee–Kesler fill and peak states, the pseudocritical constants at both, and for pure hydrogen, helium or neon
+    where the Lee–Kesler tables end, the quantum-gas SRK model. A row's fill is its pressure, or where
+    ``rho_given`` [mol/m3] is finite (a mass fill), that density. Keys starting with "_" are for the limits."""
+    n = t_fill.size
     fr = np.array(gas.fractions)
     comps = gas.components
+    by_density = np.zeros(n, dtype=bool) if rho_given is None else np.isfinite(rho_given)
 
     def consts(t):
         return pseudocritical(fr, np.array([c.critical_temperature for c in comps]),
@@ -550,7 +519,10 @@ def _columns(rows: Rows) -> dict:
 
     tcf, pcf, omf = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_fill))
     tcp, pcp, omp = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_peak))
-    gf = lee_kesler_density(p_fill, t_fill, tcf, pcf, omf)
+    gf = lee_kesler_density(np.where(by_density, 1e5, p_fill), t_fill, tcf, pcf, omf)
+    if by_density.any():
+        gd = lee_kesler_pressure(np.where(by_density, rho_given, 1.0), t_fill, tcf, pcf, omf)
+        gf = GeneralizedState(*(np.where(by_density, getattr(gd, f), getattr(gf, f)) for f in GENERALIZED_FIELDS))
     rho_lk = np.where(gf.valid, gf.molar_density, 1.0)
     gp = lee_kesler_pressure(rho_lk, t_peak, tcp, pcp, omp)
     lk_ok = gf.valid & gp.valid
@@ -571,23 +543,53 @@ def _columns(rows: Rows) -> dict:
         gp = GeneralizedState(*(np.where(q_srk, getattr(qp, f), getattr(gp, f)) for f in GENERALIZED_FIELDS))
         rho_lk = np.where(gf.valid, gf.molar_density, 1.0)
         lk_ok = lk_ok | q_srk
-    out.update(tcf=tcf, pcf=pcf, tcp=tcp, pcp=pcp, omp=omp, lk_ok=lk_ok, q_srk=q_srk,
-               lk_reason=lk_reason,
-               lk_rho_fill=gf.molar_density, lk_z_fill=gf.z, lk_tr_fill=gf.reduced_temperature,
-               lk_pr_fill=gf.reduced_pressure, lk_peak=np.where(lk_ok, gp.pressure, np.nan), lk_z_peak=gp.z,
-               lk_tr_peak=gp.reduced_temperature, lk_pr_peak=gp.reduced_pressure)
+    return dict(tcf=tcf, pcf=pcf, tcp=tcp, pcp=pcp, omp=omp, lk_ok=lk_ok, q_srk=q_srk, lk_reason=lk_reason,
+                lk_rho_fill=gf.molar_density, lk_z_fill=gf.z, lk_tr_fill=gf.reduced_temperature,
+                lk_pr_fill=gf.reduced_pressure, lk_p_fill=gf.pressure, lk_peak=np.where(lk_ok, gp.pressure, np.nan),
+                lk_z_peak=gp.z, lk_tr_peak=gp.reduced_temperature, lk_pr_peak=gp.reduced_pressure,
+                _omf=omf, _rho_lk=rho_lk, _kq=kq)
+
+
+#: Columns a group computes per row (floats; NaN for none) besides the masks.
+_FLOAT_COLUMNS = ("t_peak", "rho_molar", "peak_ref", "rho_ideal", "peak_ideal", "lk_rho_fill", "lk_z_fill",
+                  "lk_tr_fill", "lk_pr_fill", "lk_peak", "lk_z_peak", "lk_tr_peak", "lk_pr_peak", "tcf", "pcf",
+                  "tcp", "pcp", "omp", "dry", "liquid_full", "dpdt_liquid_full", "max_t", "max_p", "target",
+                  "mass_rho", "crossing")
+
+
+def _reference_fill_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> np.ndarray:
+    """The reference fill state of permanent-gas rows: the density at the fill (PT flash, checked) and the peak
+    on the same isochore (``rho_molar``, ``peak_ref``). Returns the fill's molar density as the flash gives it."""
+    n = rows.p_fill.size
+    gas, p_fill, t_fill, t_peak = rows.gas, rows.p_fill, rows.t_fill, out["t_peak"]
+    rho_molar = np.full(n, np.nan)
+    live = np.flatnonzero(~fallback)
+    rho_molar[live], ok_fill, _ = _loop(fluid.density, p_fill[live], t_fill[live])
+    fallback[live[~ok_fill]] = True
+    # the single screening takes the fill's mass density and divides by the molar mass again: so here
+    rho_ref = (rho_molar * gas.molar_mass) / gas.molar_mass
+    out["rho_molar"] = rho_ref
+    peak_ref = out["peak_ref"]
+    live = np.flatnonzero(~fallback)
+    if live.size:
+        p, v, _rs = fluid.pressures(rho_ref[live], t_peak[live])
+        peak_ref[live] = p
+        # a reference failure at the peak is rare on this path; leave such rows to the per-row path
+        fallback[live[~v]] = True
+    return rho_molar
+
+
+def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, t_lo: np.ndarray, t_hi: np.ndarray,
+                        p_lo: np.ndarray, p_hi: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The generalized model's limits of permanent-gas rows (screen._limits): the gas temperature at which the
+    isochore reaches the rating and the fill pressure whose peak is the target, by the model's inverse where it
+    is sure of itself and by screen._root's scan (:func:`_scan_root`) where a root lies at the edge of the range;
+    the quantum-gas SRK rows by the scan. Returns (temperatures [K], fill pressures [Pa]), NaN for none."""
+    n = rows.p_fill.size
+    rated, t_fill, t_peak, target = rows.rated, rows.t_fill, out["t_peak"], out["target"]
+    lk_ok, q_srk, rho_lk, kq = gen["lk_ok"], gen["q_srk"], gen["_rho_lk"], gen["_kq"]
+    tcf, pcf, omf, tcp, pcp, omp = (gen[k] for k in ("tcf", "pcf", "_omf", "tcp", "pcp", "omp"))
     peak_lk = out["lk_peak"]
-    # the vectorised limits assume constant critical constants (not the quantum correction)
-    if any(c.quantum for c in comps):
-        fallback |= lk_ok & ~q_srk
-
-    # --- limits: targets and scan ranges as screen._limits has them
-    out["target"] = target = atm + (rated - atm) * (1.0 - margin_req)
-    t_lo = np.minimum(t_fill, t_peak)
-    t_hi = np.maximum(t_peak, t_fill) + 300.0
-    p_lo = atm * 1.01
-    p_hi = np.maximum(target, p_fill) * np.maximum(1.0, t_fill / t_peak) * 1.05
-
     rows_lk = np.flatnonzero(lk_ok & ~fallback & ~q_srk)
     t_lk = np.full(n, np.nan)
     max_p_lk = np.full(n, np.nan)
@@ -660,7 +662,18 @@ def _columns(rows: Rows) -> dict:
                 s2 = lee_kesler_pressure(np.where(s1.valid, s1.molar_density, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
                 return np.where(s1.valid & s2.valid, s2.pressure - target[r], np.nan)
             max_p_lk[u] = _scan_root(f_fill, p_lo[u], p_hi[u])
+    return t_lk, max_p_lk
 
+
+def _reference_limits(rows: Rows, fluid: ReferenceFluid, pure: bool, out: dict, fallback: np.ndarray,
+                      t_lk: np.ndarray, max_p_lk: np.ndarray, t_lo: np.ndarray, t_hi: np.ndarray, p_lo: np.ndarray,
+                      p_hi: np.ndarray) -> None:
+    """The reference model's limits of permanent-gas rows, and with the generalized ones (t_lk, max_p_lk) the
+    lowest: the highest gas temperature (solved only where it can be below the generalized one), the highest
+    fill pressure and the fill density whose peak is the target (screen._limits, screen._mass_limit)."""
+    n = rows.p_fill.size
+    rated, t_fill, t_peak, target = rows.rated, rows.t_fill, out["t_peak"], out["target"]
+    rho_ref, peak_ref = out["rho_molar"], out["peak_ref"]
     # reference: max temperature, solved only where it can be below the generalized one
     live = np.flatnonzero(~fallback)
     t_ref = np.full(n, np.nan)
@@ -714,15 +727,70 @@ def _columns(rows: Rows) -> dict:
         inside = np.isfinite(r) & (r >= 1e-6 * rho_top) & (r <= 0.999 * rho_top)
         out["mass_rho"][live[inside]] = r[inside]
 
+
+def _columns(rows: Rows) -> dict:
+    """Every model, the phase boundary and the limits for rows of one pure permanent gas, as arrays.
+
+    Returns a dict of the arrays named in _FLOAT_COLUMNS plus ``stated`` (the stated gas temperature is the
+    worst-case basis), ``lk_ok``, ``lk_reason`` and ``fallback`` (rows that must go per row)."""
+    n = rows.p_fill.size
+    gas = rows.gas
+    g = gas.components[0]
+    p_fill, t_fill, rated, atm, margin_req = rows.p_fill, rows.t_fill, rows.rated, rows.atm, rows.margin_req
+    t_peak, stated, fill_governs, t_exposure = worst_case(rows.ambient_max, rows.gas_temperature, t_fill)
+    fallback = np.zeros(n, dtype=bool)
+    nan = np.full(n, np.nan)
+    out = {k: nan.copy() for k in _FLOAT_COLUMNS}
+    out.update(t_peak=t_peak, stated=stated, fill_governs=fill_governs, t_exposure=t_exposure, fallback=fallback, lk_ok=np.zeros(n, dtype=bool),
+               lk_reason=np.full(n, "", dtype=object),
+               gas_below_ambient=~np.isnan(rows.gas_temperature) & (rows.gas_temperature < rows.ambient_max))
+    try:
+        fluid = reference_fluid((g.coolprop_name,), (1.0,))
+    except NotApplicable:
+        fallback[:] = True
+        return out
+    tc_ref = fluid.critical_temperature
+    # both temperatures above the critical temperature: a single-phase fluid, no saturation checks
+    fallback |= ~(np.minimum(t_fill, t_peak) > max(tc_ref, g.critical_temperature))
+    fallback |= (t_fill < fluid.t_min) | (t_peak > fluid.t_max)
+    pure = not fluid.is_pseudo_pure
+    if pure:
+        # fills near the critical temperature (the liquid-like rule, the mass limit capped at the critical
+        # density): per row
+        fallback |= t_fill <= _screen.LIQUID_LIKE_TEMPERATURE_RATIO * tc_ref
+
+    # --- reference fill state: density at the fill (PT flash, checked), peak on the same isochore
+    rho_molar = _reference_fill_columns(rows, fluid, out, fallback)
+
+    # --- where the isochore meets the dome (pure fluids; the pseudo-pure air has no phase analysis)
+    if pure:
+        _dome_columns(fluid, rho_molar, out, fallback)
+
+    # --- ideal
+    out["rho_ideal"] = rho_ideal = p_fill / (R * t_fill)
+    out["peak_ideal"] = rho_ideal * R * t_peak
+
+    # --- generalized, as arrays
+    gen = _generalized_columns(gas, p_fill, t_fill, t_peak)
+    out.update({k: v for k, v in gen.items() if not k.startswith("_")})
+    lk_ok, q_srk = gen["lk_ok"], gen["q_srk"]
+    # the vectorised limits assume constant critical constants (not the quantum correction)
+    if any(c.quantum for c in gas.components):
+        fallback |= lk_ok & ~q_srk
+
+    # --- limits: targets and scan ranges as screen._limits has them
+    out["target"] = target = atm + (rated - atm) * (1.0 - margin_req)
+    t_lo = np.minimum(t_fill, t_peak)
+    t_hi = np.maximum(t_peak, t_fill) + 300.0
+    p_lo = atm * 1.01
+    p_hi = np.maximum(target, p_fill) * np.maximum(1.0, t_fill / t_peak) * 1.05
+
+    t_lk, max_p_lk = _generalized_limits(rows, out, gen, fallback, t_lo, t_hi, p_lo, p_hi)
+
+    _reference_limits(rows, fluid, pure, out, fallback, t_lk, max_p_lk, t_lo, t_hi, p_lo, p_hi)
+
     # vapour pressure where the isochore leaves the dome (isochore.isochore_phases: crossing_pressure)
-    crossing = out["crossing"]
-    boundary = np.fmin(out["dry"], out["liquid_full"])
-    for k in np.flatnonzero(~fallback & np.isfinite(boundary)):
-        try:
-            crossing[k] = (fluid.critical_pressure if boundary[k] >= fluid.critical_temperature
-                           else fluid.vapour_pressure(float(boundary[k])))
-        except NotApplicable:
-            fallback[k] = True
+    _crossing_columns(fluid, out, fallback)
     return out
 
 
@@ -760,25 +828,8 @@ def _verdict(cols: dict, k: int, molar_mass: float, rated: float, relief: float 
             "applicable": [nm for nm, _ in applicable]}
 
 
-def _assemble(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:
-    """One row's result dict, laid out as screen.screen_case lays out a single-scenario result."""
-    gas = case.gas
-    fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
-    atm = case.site.atmospheric_pressure_pa
-    sc = case.scenarios[0] if getattr(case, "scenarios", ()) else case
-    if v is None:
-        v = _verdict(cols, k, gas.molar_mass, case.rated_pressure_pa, case.relief_set_pressure_pa, atm, case.required_margin,
-                     case.max_filling_ratio_kg_m3, getattr(sc, "name", None))
-    if sun is not None:   # the worst-case step's warnings (screen._worst_case_temperature), then the models'
-        v = {**v, "warnings": list(sun.warnings) + [w for w in v["warnings"] if w["code"] == "models-disagree"]}
-    t_fill, t_peak = float(case.fill_temperature_k), float(cols["t_peak"][k])
-    rho_molar = float(cols["rho_molar"][k])
-    rho_mass = rho_molar * gas.molar_mass
-    peak_ref, peak_ideal, rho_ideal = float(cols["peak_ref"][k]), float(cols["peak_ideal"][k]), float(cols["rho_ideal"][k])
-    phase = "supercritical"   # both temperatures above the critical temperature, single phase
-    ideal = {"applicable": True, "peak_pressure_pa": peak_ideal,
-             "note": "ideal-gas law; shown for comparison, it ignores real-gas behaviour",
-             "fill_molar_density_mol_m3": rho_ideal, "equation": "P v = R T, so at fixed density P2 = P1 T2 / T1"}
+def _generalized_model(cols: dict, k: int, gas: Mixture) -> dict:
+    """Row k's generalized model as screen._generalized (or screen._quantum_generalized) lays it out."""
     if cols["lk_ok"][k]:
         gen = {"applicable": True, "peak_pressure_pa": float(cols["lk_peak"][k]),
                "note": _screen.QUANTUM_SRK_NOTE if cols["q_srk"][k] else "Lee–Kesler corresponding states",
@@ -799,6 +850,31 @@ def _assemble(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
         gen = {"applicable": False, "peak_pressure_pa": None,
                "note": f"Lee–Kesler correlation outside its range: {cols['lk_reason'][k]}",
                "fill_molar_density_mol_m3": None}
+    return gen
+
+
+def _assemble(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:
+    """One row's result dict, laid out as screen.screen_case lays out a single-scenario result."""
+    if cols.get("kind") == "liquefied":
+        return _assemble_liquefied(case, cols, k, v, sun)
+    gas = case.gas
+    fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
+    atm = case.site.atmospheric_pressure_pa
+    sc = case.scenarios[0] if getattr(case, "scenarios", ()) else case
+    if v is None:
+        v = _verdict(cols, k, gas.molar_mass, case.rated_pressure_pa, case.relief_set_pressure_pa, atm, case.required_margin,
+                     case.max_filling_ratio_kg_m3, getattr(sc, "name", None))
+    if sun is not None:   # the worst-case step's warnings (screen._worst_case_temperature), then the models'
+        v = {**v, "warnings": list(sun.warnings) + [w for w in v["warnings"] if w["code"] == "models-disagree"]}
+    t_fill, t_peak = float(case.fill_temperature_k), float(cols["t_peak"][k])
+    rho_molar = float(cols["rho_molar"][k])
+    rho_mass = rho_molar * gas.molar_mass
+    peak_ref, peak_ideal, rho_ideal = float(cols["peak_ref"][k]), float(cols["peak_ideal"][k]), float(cols["rho_ideal"][k])
+    phase = "supercritical"   # both temperatures above the critical temperature, single phase
+    ideal = {"applicable": True, "peak_pressure_pa": peak_ideal,
+             "note": "ideal-gas law; shown for comparison, it ignores real-gas behaviour",
+             "fill_molar_density_mol_m3": rho_ideal, "equation": "P v = R T, so at fixed density P2 = P1 T2 / T1"}
+    gen = _generalized_model(cols, k, gas)
     ref = {"applicable": True, "peak_pressure_pa": peak_ref,
            "note": "multiparameter Helmholtz-energy equation of state (CoolProp)",
            "fill_molar_density_mol_m3": rho_molar, "fluid": fluid.label, "phase_fill": phase, "phase_peak": phase,
@@ -907,7 +983,7 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
     rest: list[int] = []
     sun: dict[int, SunRow | None] = {}
     for i, c in enumerate(cases):
-        if vectorisable(c):
+        if vectorisable(c) or liquefied_vectorisable(c):
             try:
                 sun[i] = _sun_row(c)
             except InputError:
@@ -917,8 +993,8 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
         else:
             rest.append(i)
     names = list(groups)
-    all_cols = _run_columns([Rows.of_cases([cases[i] for i in groups[nm]], [sun[i] for i in groups[nm]])
-                             for nm in names])
+    all_cols = _run_columns([(LiquefiedRows if _liquefied_gas(cases[groups[nm][0]].gas) else Rows).of_cases(
+        [cases[i] for i in groups[nm]], [sun[i] for i in groups[nm]]) for nm in names], _group_columns)
     for nm, cols in zip(names, all_cols):
         idx = groups[nm]
         done = 0
@@ -973,7 +1049,7 @@ class PlainScreening:
         groups: dict[str, list[int]] = {}
         rest: list[int] = []
         for j, gas in enumerate(plain.gases):
-            (groups.setdefault(gas.name, []) if _vector_gas(gas) else rest).append(j)
+            (groups.setdefault(gas.name, []) if _vector_gas(gas) or _liquefied_gas(gas) else rest).append(j)
         names = list(groups)
         parts = []
         for nm in names:
@@ -1059,3 +1135,575 @@ def curves(r: dict) -> dict:
         p, v, _ = fluid.pressures(np.full(grid.shape, ref["fill_molar_density_mol_m3"]), grid)
         out["reference"] = [float(x) if ok else None for x, ok in zip(p, v)]
     return out
+
+
+# ----------------------------------------------------------------------------- liquefied gases
+
+def _liquefied_gas(gas: Mixture) -> bool:
+    """A pure liquefiable gas whose reference equation has a saturation dome (carbon dioxide, propane, ammonia,
+    the refrigerants…): its rows by mass and by pressure run on :func:`_liquefied_columns`."""
+    if not (gas.is_pure and gas.kind == "liquefiable" and gas.components[0].coolprop_name):
+        return False
+    try:
+        fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
+    except NotApplicable:
+        return False
+    return _screen._is_pure(fluid)
+
+
+def liquefied_vectorisable(case: Case) -> bool:
+    """Whether the liquefied-gas columns cover this row: a pure liquefied gas filled by mass or by pressure at a
+    stated fill temperature, with one exposure (in the sun or not) and no tolerances. Rows those columns are not
+    sure of (a gas at fill and at the worst case, where the gas models apply; a state the reference equation
+    refuses) still go per row."""
+    if not _liquefied_gas(case.gas) or case.fill_temperature_k is None:
+        return False
+    if (case.fill_pressure_pa is None) == (case.fill_mass_kg is None):
+        return False
+    if getattr(case, "tolerance", None) is not None:
+        return False
+    scenarios = getattr(case, "scenarios", ())
+    return not (len(scenarios) > 1 or any(getattr(s, "solar", "none") not in ("none", "sun") for s in scenarios))
+
+
+@dataclass
+class LiquefiedRows(Rows):
+    """Rows of one liquefied gas: besides :class:`Rows`, the fill mass per water capacity [kg/m3] (NaN where the
+    fill is given by pressure; ``p_fill`` is then NaN)."""
+
+    rho_mass: np.ndarray
+
+    @staticmethod
+    def of_cases(cases: list[Case], sun: list[SunRow | None] | None = None) -> "LiquefiedRows":
+        base = Rows.of_cases(cases, sun)
+        base.p_fill = np.array([math.nan if c.fill_pressure_pa is None else c.fill_pressure_pa for c in cases],
+                               dtype=float)
+        rho_mass = np.array([math.nan if c.fill_mass_kg is None else c.fill_mass_kg / c.water_capacity_m3
+                             for c in cases], dtype=float)
+        return LiquefiedRows(**{k: getattr(base, k) for k in ("gas", "p_fill", "t_fill", "ambient_max",
+                                                              "gas_temperature", "rated", "atm", "margin_req")},
+                             rho_mass=rho_mass)
+
+
+def _group_columns(rows: Rows) -> dict:
+    """The columns of one gas group: :func:`_liquefied_columns` for a liquefied gas, else :func:`_columns`."""
+    return _liquefied_columns(rows) if _liquefied_gas(rows.gas) else _columns(rows)
+
+
+def _known_scan_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], x: np.ndarray, lo: np.ndarray,
+                     hi: np.ndarray, n: int) -> tuple[np.ndarray, np.ndarray]:
+    """(root, ok): what screen._root(f, lo, hi, n) finds for an increasing f(x, rows) whose only sign change is at
+    x (found another way; NaN: not known), where f can be evaluated on one interval of [lo, hi] (a model's range).
+
+    screen._root takes the root inside the whole bracket where f is evaluable at both ends, else inside the first
+    interval of its scan (np.linspace(lo, hi, n)) whose two ends are evaluable and bracket a sign change. For such
+    an f both come to this: x where the scan interval that holds it has both ends evaluable (each then on its
+    side of zero), none where x lies outside [lo, hi] or that interval reaches past the range (screen._root meets
+    no other sign change). Two evaluations a row; ok False where x is not known or the ends contradict it (those
+    rows go another way)."""
+    m = x.size
+    root = np.full(m, np.nan)
+    ok = np.ones(m, dtype=bool)
+    known = np.isfinite(x)
+    ok[~known] = False
+    s = np.flatnonzero(known & (x > lo) & (x < hi))
+    if s.size:
+        a, b = _linspace_bracket(lo[s], hi[s], x[s], n)
+        fa, fb = f(a, s), f(b, s)
+        good = np.isfinite(fa) & np.isfinite(fb) & (fa < 0.0) & (fb > 0.0)
+        root[s[good]] = x[s[good]]
+        # one end out of the range: the scan passes over it and meets no later sign change (none);
+        # anything else is not the shape assumed here
+        past = (np.isfinite(fa) & (fa < 0.0) & ~np.isfinite(fb)) | (~np.isfinite(fa) & np.isfinite(fb) & (fb > 0.0))
+        ok[s[~good & ~past]] = False
+    return root, ok
+
+
+#: A mass-limit density below this fraction of the top of screen._mass_limit's range is solved as it solves it.
+_SMALL_ROOT = 0.35
+
+#: Columns of the liquefied-gas path per row (floats; NaN for none), besides _FLOAT_COLUMNS' shared names.
+_LIQUEFIED_FLOAT_COLUMNS = ("t_peak", "rho_molar", "rho_fill_mass", "peak_ref", "p_fill_ref", "vapour_pressure",
+                            "dry", "liquid_full", "dpdt_liquid_full", "crossing", "max_t", "max_p", "target",
+                            "mass_rho", "lf_density")
+
+
+def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:
+    """Fill state of liquefied-gas rows (screen._fill_state): the vapour pressure at a pressure fill, the
+    saturation and critical bands (screen.band_reason: such rows are refused), the fill density (given by mass,
+    or the reference equation's at the fill pressure), the phases and pressures at fill and at the worst case."""
+    gas = rows.gas
+    molar_mass = gas.molar_mass
+    n = rows.t_fill.size
+    t_fill, t_peak = rows.t_fill, out["t_peak"]
+    given_mass = getattr(rows, "rho_mass", None)
+    if given_mass is None:      # plain rows: filled by pressure
+        given_mass = np.full(n, np.nan)
+    by_pressure = np.isnan(given_mass)
+    out["by_pressure"] = by_pressure
+    band = np.full(n, None, dtype=object)
+    tc = fluid.critical_temperature
+    ip = np.flatnonzero(by_pressure)
+    below = ip[t_fill[ip] < tc]
+    if below.size:
+        out["vapour_pressure"][below], _ok, _r = _loop(fluid.vapour_pressure, t_fill[below])
+    name = gas.name
+    p_fill, atm = rows.p_fill.tolist(), rows.atm.tolist()
+    tf = t_fill.tolist()
+    for k in ip.tolist():
+        band[k] = _screen.band_reason(p_fill[k], tf[k], fluid, name, atm[k])
+    refused = np.array([b is not None for b in band], dtype=bool)
+    out["band"], out["refused"] = band, refused
+    rho_molar = np.full(n, np.nan)
+    live = np.flatnonzero(by_pressure & ~refused)
+    if live.size:
+        rho_molar[live], ok, _ = _loop(fluid.density, rows.p_fill[live], t_fill[live])
+        fallback[live[~ok]] = True
+    mass = np.flatnonzero(~by_pressure)
+    fill_mass = np.full(n, np.nan)
+    fill_mass[live] = rho_molar[live] * molar_mass
+    fill_mass[mass] = given_mass[mass]
+    rho_molar[mass] = given_mass[mass] / molar_mass
+    # a mass fill denser than the liquid at the triple point is an input error: per row, where it is raised
+    fallback[mass[rho_molar[mass] > _rho_top(fluid, True)]] = True
+    out["rho_fill_mass"] = fill_mass
+    # every model takes the fill's mass density divided by the molar mass again (screen._molar): so here
+    out["rho_molar"] = rho = fill_mass / molar_mass
+    live = np.flatnonzero(~refused & ~fallback)
+    phases = {}
+    for key, t in (("fill", t_fill), ("peak", t_peak)):
+        p, ph, ok = fluid.states(rho[live], t[live])
+        phases[key] = np.full(n, None, dtype=object)
+        phases[key][live] = ph
+        out["p_fill_ref" if key == "fill" else "peak_ref"][live] = p
+        fallback[live[~ok]] = True
+    out["phase_fill"], out["phase_peak"] = phases["fill"], phases["peak"]
+    why = np.full(n, None, dtype=object)
+    for k in np.flatnonzero(~refused & ~fallback).tolist():
+        why[k] = _screen.condensed_reason(phases["fill"][k], phases["peak"][k])
+    out["why_not_gas"] = why
+    # a gas at fill and at the worst case: the ideal and generalized models apply as well
+    out["gas_ok"] = (why == None) & ~refused & ~fallback   # noqa: E711  (an object array)
+
+
+def _liquefied_gas_models(rows: Rows, out: dict, fallback: np.ndarray) -> None:
+    """The ideal and generalized models of the liquefied-gas rows that are a gas at fill and at the worst case
+    (screen._ideal, screen._generalized), and the generalized model's limits as screen._limits finds them: the
+    gas temperature at which its isochore reaches the rating, the fill pressure whose peak is the target (each
+    as screen._root finds it, :func:`_monotone_root`)."""
+    n = rows.t_fill.size
+    gas_ok = out["gas_ok"]
+    by_pressure = out["by_pressure"]
+    t_fill, t_peak, rated, atm = rows.t_fill, out["t_peak"], rows.rated, rows.atm
+    rho = out["rho_molar"]
+    out["rho_ideal"] = rho_ideal = np.where(by_pressure, rows.p_fill / (R * t_fill), rho)
+    out["peak_ideal"] = rho_ideal * R * t_peak
+    g = np.flatnonzero(gas_ok)
+    gen = {k: np.full(n, np.nan) for k in ("tcf", "pcf", "tcp", "pcp", "omp", "lk_rho_fill", "lk_z_fill",
+                                           "lk_tr_fill", "lk_pr_fill", "lk_p_fill", "lk_peak", "lk_z_peak",
+                                           "lk_tr_peak", "lk_pr_peak", "_omf")}
+    gen.update(lk_ok=np.zeros(n, dtype=bool), q_srk=np.zeros(n, dtype=bool), lk_reason=np.full(n, "", dtype=object))
+    if g.size:
+        part = _generalized_columns(rows.gas, rows.p_fill[g], t_fill[g], t_peak[g],
+                                    np.where(by_pressure[g], np.nan, rho[g]))
+        for k in gen:
+            gen[k][g] = part[k]
+    out.update({k: v for k, v in gen.items() if not k.startswith("_")})
+    out["max_t_lk"] = max_t_lk = np.full(n, np.nan)
+    out["max_p_lk"] = max_p_lk = np.full(n, np.nan)
+    out["target"] = target = atm + (rated - atm) * (1.0 - rows.margin_req)
+    lk = np.flatnonzero(gen["lk_ok"] & ~fallback)
+    if lk.size == 0:
+        return
+    tcf, pcf, omf, tcp, pcp, omp, rho_lk = (gen[k] for k in ("tcf", "pcf", "_omf", "tcp", "pcp", "omp", "lk_rho_fill"))
+
+    def isochore(t, ix):
+        r = lk[ix]
+        st = lee_kesler_pressure(rho_lk[r], t, tcp[r], pcp[r], omp[r])
+        return np.where(st.valid, st.pressure - rated[r], np.nan)
+
+    t_lo, t_hi = np.minimum(t_fill, t_peak)[lk], (np.maximum(t_peak, t_fill) + 300.0)[lk]
+    max_t_lk[lk] = _monotone_root(isochore, t_lo, t_hi)
+    pk = lk[by_pressure[lk]]
+    if pk.size:
+        def fill(p, ix):
+            r = pk[ix]
+            s1 = lee_kesler_density(p, t_fill[r], tcf[r], pcf[r], omf[r])
+            s2 = lee_kesler_pressure(np.where(s1.valid, s1.molar_density, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
+            return np.where(s1.valid & s2.valid, s2.pressure - target[r], np.nan)
+
+        p_lo = atm[pk] * 1.01
+        p_hi = np.maximum(target[pk], rows.p_fill[pk]) * np.maximum(1.0, t_fill[pk] / t_peak[pk]) * 1.05
+        root = _monotone_root(fill, p_lo, p_hi)
+        # screen._limits keeps a fill-pressure root only where its peak is the target (not a jump of the model)
+        at = np.flatnonzero(np.isfinite(root))
+        hit = np.abs(fill(root[at], at)) <= 1e-6 * target[pk[at]]
+        root[at[~hit]] = np.nan
+        max_p_lk[pk] = root
+
+
+def _dome_columns(fluid: ReferenceFluid, rho_molar: np.ndarray, out: dict, fallback: np.ndarray) -> None:
+    """Where each row's isochore meets the saturation dome (isochore.isochore_phases): the dry-out temperature
+    below the critical density, the liquid-full temperature above it with the slope just past it, and the
+    vapour pressure where the isochore leaves the dome. Rows the table solve is not sure of fall back."""
+    rc = fluid.critical_molar_density
+    for side, key in (("vapour", "dry"), ("liquid", "liquid_full")):
+        d_rows = np.flatnonzero(~fallback & np.isfinite(rho_molar) & ((rho_molar <= rc) if side == "vapour"
+                                                                      else (rho_molar > rc)))
+        if d_rows.size:
+            t_b, ok_b = _dome(fluid, side).boundary(rho_molar[d_rows])
+            out[key][d_rows] = t_b
+            fallback[d_rows[~ok_b]] = True
+    lf = np.flatnonzero(~fallback & np.isfinite(out["liquid_full"]))
+    if lf.size:
+        out["dpdt_liquid_full"][lf], ok, _ = _loop(fluid.dp_dt_at_constant_density, rho_molar[lf],
+                                                   out["liquid_full"][lf] + LIQUID_FULL_STEP)
+        fallback[lf[~ok]] = True
+
+
+def _crossing_columns(fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:
+    """The vapour pressure where each row's isochore leaves the dome (isochore.isochore_phases:
+    crossing_pressure); the critical pressure where it leaves at the critical point."""
+    crossing = out["crossing"]
+    boundary = np.fmin(out["dry"], out["liquid_full"])
+    for k in np.flatnonzero(~fallback & np.isfinite(boundary)):
+        try:
+            crossing[k] = (fluid.critical_pressure if boundary[k] >= fluid.critical_temperature
+                           else fluid.vapour_pressure(float(boundary[k])))
+        except NotApplicable:
+            fallback[k] = True
+
+
+def _liquid_full_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:
+    """The liquid-full rule per row (screen.liquid_full_density and screen._liquid_full_applies, the rule the
+    verdict and the mass limit share): the density at which the vessel counts as liquid-full at the worst case
+    (NaN where it cannot be evaluated) and whether the fill reaches it."""
+    n = rows.t_fill.size
+    applies = np.zeros(n, dtype=bool)
+    fs = _screen.FillState(fluid=fluid)
+    gas = rows.gas
+    tf, tp, rho = rows.t_fill.tolist(), out["t_peak"].tolist(), out["rho_molar"].tolist()
+    lfd = out["lf_density"]
+    for k in np.flatnonzero(~fallback & ~out["refused"]).tolist():
+        applies[k] = _screen._liquid_full_applies(fs, rho[k], tf[k], tp[k], gas)
+        try:
+            lfd[k] = _screen.liquid_full_density(fluid, tf[k], tp[k], gas)
+        except NotApplicable:
+            lfd[k] = np.nan
+    out["liquid_full_applies"] = applies
+
+
+def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:
+    """Limits of liquefied-gas rows on the reference model (screen._limits, screen._mass_limit): the highest
+    gas temperature (none where the fill itself is at or above the rating), the highest fill pressure of a
+    pressure fill, the highest fill density (capped by the liquid-full rule); each as screen._root finds it."""
+    n = rows.t_fill.size
+    t_fill, t_peak, rated, atm = rows.t_fill, out["t_peak"], rows.rated, rows.atm
+    rho, peak = out["rho_molar"], out["peak_ref"]
+    out["target"] = target = atm + (rated - atm) * (1.0 - rows.margin_req)
+    by_pressure = out["by_pressure"]
+    # the fill itself at or above the rating (screen._fill_over_rating): the fill pressure, or for a mass fill
+    # each applicable real-gas model's pressure at the fill
+    with np.errstate(invalid="ignore"):
+        fill_over = np.where(by_pressure, rows.p_fill >= rated,
+                             ~(out["p_fill_ref"] < rated) | (out["lk_ok"] & (out["lk_p_fill"] >= rated)))
+    out["fill_over"] = fill_over
+    t_lo = np.minimum(t_fill, t_peak)
+    t_hi = np.maximum(t_peak, t_fill) + 300.0
+    live = np.flatnonzero(~fallback & ~out["refused"])
+    if live.size == 0:
+        return
+
+    def f_t(t, ix):
+        p, _v, _r = fluid.pressures(rho[ix], t)
+        return p / rated[ix] - 1.0
+
+    root, ok = _increasing_root(f_t, live, t_lo[live], t_peak[live], peak[live] / rated[live] - 1.0, t_hi[live],
+                                fluid.t_max)
+    fallback[live[~ok]] = True
+    max_t = out["max_t"]
+    max_t[live[ok]] = root[ok]
+    max_t[:] = np.fmin(max_t, out["max_t_lk"])
+    max_t[fill_over] = np.nan
+
+    # the density at the target on the worst-case isochore (the PT flash), for the fill-pressure and mass limits
+    live = np.flatnonzero(~fallback & ~out["refused"])
+    rho_star = np.full(n, np.nan)
+    rho_star[live], _ok, _r = _loop(fluid.density, target[live], t_peak[live])
+
+    # fill pressure whose peak is the target: the pressure of that density at the fill temperature, where that
+    # state is one phase there (inside the dome no fill pressure gives that density: no limit)
+    pr = live[by_pressure[live]]
+    if pr.size:
+        p_lo = atm[pr] * 1.01
+        p_hi = np.maximum(target[pr], rows.p_fill[pr]) * np.maximum(1.0, t_fill[pr] / t_peak[pr]) * 1.05
+        have = np.isfinite(rho_star[pr])
+        p_star = np.full(pr.size, np.nan)
+        if have.any():
+            p, ph, v = fluid.states(rho_star[pr][have], t_fill[pr][have])
+            p_star[have] = np.where(v & (ph != "two-phase"), p, np.nan)
+
+        def f_p(p, ix):
+            r = pr[ix]
+            res = np.full(p.size, np.nan)
+            for j, (pj, i) in enumerate(zip(p.tolist(), r.tolist())):
+                try:
+                    res[j] = fluid.pressure(fluid.density(pj, float(t_fill[i])), float(t_peak[i])) - target[i]
+                except NotApplicable:
+                    pass
+            return res
+
+        # screen._root first looks at both ends: a fill at the top of the range may be a liquid heated past the
+        # equation's range; only those rows need the look (a vapour fill there stays far inside it)
+        vap = np.full(pr.size, np.inf)
+        below = t_fill[pr] < fluid.critical_temperature
+        vap[below] = out["vapour_pressure"][pr][below]
+        risky = np.flatnonzero(p_hi > vap)
+        p_max = np.full(pr.size, np.nan)
+        inside = np.isfinite(p_star) & (p_star > p_lo) & (p_star < p_hi)
+        p_max[inside] = p_star[inside]
+        miss = ~np.isfinite(rho_star[pr])
+        fallback[pr[miss]] = True
+        if risky.size:
+            f_hi = f_p(p_hi[risky], risky)
+            bad = ~np.isfinite(f_hi)
+            if bad.any():
+                b = risky[bad]
+                r, okb = _known_scan_root(lambda x, ix, b=b: f_p(x, b[ix]), p_star[b], p_lo[b], p_hi[b], 40)
+                p_max[b] = r
+                fallback[pr[b[~okb]]] = True
+        out["max_p"][pr] = np.fmin(p_max, out["max_p_lk"][pr])
+
+    # fill density whose peak is the target (screen._mass_limit), then the liquid-full cap
+    live = np.flatnonzero(~fallback & ~out["refused"])
+    if live.size:
+        top = _rho_top(fluid, True)
+        lo, hi = np.full(live.size, 1e-6 * top), np.full(live.size, top * 0.999)
+
+        def f_r(r, ix):
+            p, _v, _r = fluid.pressures(r, t_peak[live[ix]])
+            return p - target[live[ix]]
+
+        r, ok = _known_scan_root(f_r, rho_star[live], lo, hi, 60)
+        fallback[live[~ok]] = True
+        out["mass_rho"][live] = r
+        # screen._mass_limit's solve stops within 1e-9 of the whole density range: a root far below the range's
+        # top (a vapour-side density) is known there only to a few 1e-8 of itself, so such rows take that same
+        # solve, row by row, for the same number
+        small = np.flatnonzero(ok & np.isfinite(r) & (r < _SMALL_ROOT * hi))
+        for j in small.tolist():
+            i = int(live[j])
+            tp, tg = float(t_peak[i]), float(target[i])
+            out["mass_rho"][i] = _screen._root(lambda x, tp=tp, tg=tg: fluid.pressure(x, tp) - tg, float(lo[j]),
+                                               float(hi[j]), n=60) or np.nan
+
+
+def _liquefied_columns(rows: Rows) -> dict:
+    """Fill state, phases, the reference model, the liquid-full rule and the limits of rows of one pure liquefied
+    gas, as arrays (the liquefied-gas counterpart of :func:`_columns`). Rows where the contents are a gas at fill
+    and at the worst case (the gas models apply), and rows a step is not sure of, are marked ``fallback``."""
+    n = rows.t_fill.size
+    t_peak, stated, fill_governs, t_exposure = worst_case(rows.ambient_max, rows.gas_temperature, rows.t_fill)
+    fallback = np.zeros(n, dtype=bool)
+    out: dict = {k: np.full(n, np.nan) for k in _LIQUEFIED_FLOAT_COLUMNS}
+    out.update(kind="liquefied", t_peak=t_peak, stated=stated, fill_governs=fill_governs, t_exposure=t_exposure,
+               fallback=fallback,
+               gas_below_ambient=~np.isnan(rows.gas_temperature) & (rows.gas_temperature < rows.ambient_max))
+    fluid = reference_fluid((rows.gas.components[0].coolprop_name,), (1.0,))
+    fallback |= ~(rows.t_fill >= fluid.t_min) | ~(t_peak <= fluid.t_max)
+    _liquefied_fill(rows, fluid, out, fallback)
+    _liquefied_gas_models(rows, out, fallback)
+    live = ~out["refused"]
+    rho = np.where(live, out["rho_molar"], np.nan)
+    _dome_columns(fluid, rho, out, fallback)
+    _crossing_columns(fluid, out, fallback)
+    _liquid_full_columns(rows, fluid, out, fallback)
+    _liquefied_limits(rows, fluid, out, fallback)
+    return out
+
+
+def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, atm: float, required_margin: float,
+                       max_ratio: float | None, name: str | None) -> dict:
+    """One liquefied-gas row's verdict, reasons, margins, governing model and warnings (through screen.decide and
+    the rules of screen.py), as :func:`_verdict` gives them for a permanent gas."""
+    warnings: list[dict] = []
+    if cols["gas_below_ambient"][k]:
+        msg = "the stated gas temperature is below the ambient maximum; the ambient maximum is used."
+        warnings.append({"code": "gas-below-ambient", "message": f"{name}: {msg}" if name else msg[0].upper() + msg[1:]})
+    if cols["fill_governs"][k]:
+        warnings.append(_screen.fill_state_warning(name or "exposure", float(cols["t_exposure"][k]),
+                                                   float(cols["t_peak"][k])))
+    band = cols["band"][k]
+    if band is not None:
+        code, reason, warning = band
+        warnings.append({"code": code, "message": warning})
+        verdict, reasons, margin, relief_margin = _screen.decide(
+            peak=None, rated=rated, relief=relief, atm=atm, required_margin=required_margin, any_real_model=False,
+            out_of_scope_reason=reason)
+        return {"verdict": verdict, "reasons": reasons, "warnings": warnings, "margin_fraction": margin,
+                "relief_margin_fraction": relief_margin, "governing_model": None, "peak_pressure_pa": None,
+                "applicable": []}
+    peak_ref = float(cols["peak_ref"][k])
+    gas_ok = bool(cols["gas_ok"][k])
+    peak_gen = float(cols["lk_peak"][k]) if gas_ok and cols["lk_ok"][k] else None
+    # the governing model: the highest real-gas peak (screen._governing); the ideal gas governs nothing
+    real = [(nm, p) for nm, p in (("generalized", peak_gen), ("reference", peak_ref)) if p is not None]
+    gov_name, peak = max(real, key=lambda x: x[1])
+    disagree = _screen.models_disagree(peak_gen, peak_ref)
+    if disagree:
+        warnings.append(disagree)
+    liquid_full = None
+    if cols["liquid_full_applies"][k]:
+        fs = _screen.FillState(liquid_full_temperature=_opt(cols["liquid_full"][k]),
+                               dp_dt_after_liquid_full=_opt(cols["dpdt_liquid_full"][k]))
+        liquid_full = _screen.liquid_full_text(fs, float(cols["t_peak"][k]))
+    ratio_reason = _screen.filling_ratio_reason(float(cols["rho_fill_mass"][k]), max_ratio)
+    verdict, reasons, margin, relief_margin = _screen.decide(
+        peak=peak, rated=rated, relief=relief, atm=atm, required_margin=required_margin, any_real_model=True,
+        out_of_scope_reason=None, liquid_full_reason=liquid_full, filling_ratio_reason=ratio_reason)
+    return {"verdict": verdict, "reasons": reasons, "warnings": warnings, "margin_fraction": margin,
+            "relief_margin_fraction": relief_margin, "governing_model": gov_name, "peak_pressure_pa": peak,
+            "applicable": (["ideal"] if gas_ok else []) + [nm for nm, _ in real]}
+
+
+def _liquefied_plain_columns(part: PlainPart) -> dict:
+    """_liquefied_columns of a part of plain rows (filled by pressure) plus each row's ``verdict``."""
+    cols = _liquefied_columns(part)
+    verdicts = np.full(part.p_fill.size, None, dtype=object)
+    rated, atm, margin_req = part.rated.tolist(), part.atm.tolist(), part.margin_req.tolist()
+    relief, ratio = part.relief.tolist(), part.ratio.tolist()
+    for k in np.flatnonzero(~cols["fallback"]).tolist():
+        verdicts[k] = _liquefied_verdict(cols, k, rated[k], None if math.isnan(relief[k]) else relief[k], atm[k],
+                                         margin_req[k], None if math.isnan(ratio[k]) else ratio[k], "exposure")
+    cols["verdict"] = verdicts
+    return cols
+
+
+def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:
+    """One liquefied-gas row's result dict, laid out as screen.screen_case lays out a single-scenario result."""
+    gas = case.gas
+    fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
+    atm = case.site.atmospheric_pressure_pa
+    sc = case.scenarios[0] if getattr(case, "scenarios", ()) else case
+    if v is None:
+        v = _liquefied_verdict(cols, k, case.rated_pressure_pa, case.relief_set_pressure_pa, atm,
+                               case.required_margin, case.max_filling_ratio_kg_m3, getattr(sc, "name", None))
+    if sun is not None:   # the worst-case step's warnings (screen._worst_case_temperature), then the fill state's
+        v = {**v, "warnings": list(sun.warnings) + [w for w in v["warnings"]
+                                                     if w["code"] in ("near-critical", "near-saturation", "models-disagree")]}
+    t_fill, t_peak = float(case.fill_temperature_k), float(cols["t_peak"][k])
+    by_pressure = case.fill_pressure_pa is not None
+    refused = bool(cols["refused"][k])
+    lim_extra = {"liquid_full_temperature_k": _opt(cols["liquid_full"][k]),
+                 "dry_out_temperature_k": _opt(cols["dry"][k]),
+                 "phase_boundary_pressure_pa": _opt(cols["crossing"][k]),
+                 "dp_dt_after_liquid_full_pa_k": _opt(cols["dpdt_liquid_full"][k])}
+    if refused:
+        na = "the fill state cannot be established (see the verdict's reason)"
+        models = {nm: _screen.not_applicable(nm, na).as_dict() for nm in ("ideal", "generalized", "reference")}
+        limits = {"max_gas_temperature_k": None, "max_fill_pressure_pa": None, "target_peak_pressure_pa": None,
+                  "max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,
+                  "note": "no real-gas model applies, so no limit is given", **lim_extra}
+        fill_rho_molar = rho_mass = mass = None
+        phase = None
+        peak = None
+        governing_reason = _screen.governing_text(None, [])
+        nominal_margin = None
+    else:
+        why = cols["why_not_gas"][k]
+        rho_fill_mass = float(cols["rho_fill_mass"][k])
+        rho = rho_fill_mass / gas.molar_mass
+        p_fill_ref = float(cols["p_fill_ref"][k])
+        phase = cols["phase_fill"][k]
+        peak = v["peak_pressure_pa"]
+        equation = "P v = R T, so at fixed density P2 = P1 T2 / T1"
+        if why is None:     # a gas at fill and at the worst case
+            peak_ideal = float(cols["peak_ideal"][k])
+            ideal = {"applicable": True, "peak_pressure_pa": peak_ideal,
+                     "note": "ideal-gas law; shown for comparison, it ignores real-gas behaviour",
+                     "fill_molar_density_mol_m3": float(cols["rho_ideal"][k]), "equation": equation,
+                     "off_governing_fraction": peak_ideal / peak - 1.0}
+            gen = _generalized_model(cols, k, gas)
+            governing_reason = _screen.governing_text(v["governing_model"], [
+                nm for nm in v["applicable"] if nm not in (v["governing_model"], "ideal")])
+        else:
+            ideal = _screen.not_applicable("ideal", why, equation=equation).as_dict()
+            gen = _screen.not_applicable("generalized", why).as_dict()
+            governing_reason = _screen.governing_text("reference", [])
+        peak_ref = float(cols["peak_ref"][k])
+        models = {
+            "ideal": ideal, "generalized": gen,
+            "reference": {"applicable": True, "peak_pressure_pa": peak_ref,
+                          "note": "multiparameter Helmholtz-energy equation of state (CoolProp)",
+                          "fill_molar_density_mol_m3": rho, "fluid": fluid.label, "phase_fill": phase,
+                          "phase_peak": cols["phase_peak"][k],
+                          "z_fill": (case.fill_pressure_pa or p_fill_ref) / (rho * 8.314462618 * t_fill),
+                          "z_peak": peak_ref / (rho * R * t_peak), "eos_references": fluid.eos_references()}}
+        # screen._mass_limit: the target's density, capped by the liquid-full density, then the filling ratio
+        mass_rho, lf_density = _opt(cols["mass_rho"][k]), _opt(cols["lf_density"][k])
+        if mass_rho is None or lf_density is None:
+            mass_limit = {"max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None}
+        else:
+            basis = "the required margin at the worst-case temperature"
+            if lf_density < mass_rho:
+                mass_rho, basis = lf_density, "the liquid-full point at the worst-case temperature"
+            rm = mass_rho * gas.molar_mass
+            if case.max_filling_ratio_kg_m3 is not None and case.max_filling_ratio_kg_m3 < rm:
+                rm, basis = case.max_filling_ratio_kg_m3, "the vessel's maximum filling ratio"
+            mass_limit = {"max_fill_mass_kg": rm * case.water_capacity_m3, "max_filling_ratio_kg_per_l": rm / 1000.0,
+                          "max_fill_mass_basis": basis}
+        fill_over = bool(cols["fill_over"][k])
+        limits = {**mass_limit, "max_gas_temperature_k": None if fill_over else _opt(cols["max_t"][k]),
+                  "max_fill_pressure_pa": _opt(cols["max_p"][k]) if by_pressure else None,
+                  "target_peak_pressure_pa": float(cols["target"][k]), "note": _screen.limits_note(True, fill_over),
+                  **lim_extra}
+        fill_rho_molar = rho
+        rho_mass = rho * gas.molar_mass
+        mass = rho_fill_mass * case.water_capacity_m3
+        nominal_margin = 1.0 - (peak - atm) / (case.rated_pressure_pa - atm)
+    vap = _opt(cols["vapour_pressure"][k]) if by_pressure else None
+    result = {
+        "id": case.id, "description": case.description, "source": case.source,
+        "tool_version": __version__, "input_sha256": case.input_sha256,
+        "site": {"name": case.site.name, "atmospheric_pressure_pa": atm, "elevation_m": case.site.elevation_m},
+        "verdict": v["verdict"], "reasons": v["reasons"], "warnings": v["warnings"],
+        "gas": {"name": gas.name, "kind": gas.kind, "hazards": list(gas.hazards),
+                "components": [{"name": c.name, "formula": c.formula, "fraction": x,
+                                "molar_mass_kg_mol": c.molar_mass, "coolprop_name": c.coolprop_name}
+                               for c, x in zip(gas.components, gas.fractions)]},
+        "vessel": {"water_capacity_m3": case.water_capacity_m3, "rated_pressure_pa": case.rated_pressure_pa,
+                   "rated_pressure_kind": case.rated_pressure_kind,
+                   "relief_set_pressure_pa": case.relief_set_pressure_pa,
+                   "max_filling_ratio_kg_per_l": (case.max_filling_ratio_kg_m3 / 1000.0
+                                                  if case.max_filling_ratio_kg_m3 is not None else None)},
+        "fill": {"pressure_pa": case.fill_pressure_pa, "temperature_k": t_fill, "temperature_given": True,
+                 "density_kg_m3": rho_mass, "molar_density_mol_m3": fill_rho_molar, "mass_kg": mass,
+                 "phase": phase, "filling_ratio_kg_per_l": rho_mass / 1000.0 if rho_mass else None,
+                 "vapour_pressure_pa": vap, "given": "pressure" if by_pressure else "mass"},
+        "worst_case_temperature_k": t_peak,
+        "worst_case_basis": (sun.basis if sun is not None else _screen.FILL_STATE_BASIS if cols["fill_governs"][k] else
+                             "gas temperature stated in the case" if cols["stated"][k] else "ambient maximum"),
+        "models": models,
+        "peak_pressure_pa": peak, "nominal_peak_pressure_pa": peak, "tolerance": None,
+        "governing_model": v["governing_model"], "governing_reason": governing_reason,
+        "rated_pressure_pa": case.rated_pressure_pa, "relief_set_pressure_pa": case.relief_set_pressure_pa,
+        "required_margin_fraction": case.required_margin,
+        "required_margin_is_default": case.required_margin_is_default,
+        "margin_fraction": v["margin_fraction"], "relief_margin_fraction": v["relief_margin_fraction"],
+        "nominal_margin_fraction": nominal_margin,
+        "limits": limits, "curves": None, "phase_diagram": None,
+        "inputs": list(case.inputs), "display_units": dict(case.display_units),
+        "cautions": _CAUTIONS,
+    }
+    if hasattr(case, "scenarios"):
+        name = case.scenarios[0].name if case.scenarios else "exposure"
+        keys = ("verdict", "reasons", "worst_case_temperature_k", "worst_case_basis", "peak_pressure_pa",
+                "nominal_peak_pressure_pa", "governing_model", "margin_fraction", "relief_margin_fraction",
+                "limits", "tolerance")
+        balance = sun.balance if sun is not None else None
+        result["scenarios"] = [{"name": name, **{k2: result[k2] for k2 in keys}, "exposure": balance,
+                                "models": {nm: {"applicable": m["applicable"], "peak_pressure_pa": m["peak_pressure_pa"]}
+                                           for nm, m in models.items()}, "governing": True}]
+        result["governing_scenario"] = name
+        result["exposure"] = balance
+    return result

@@ -95,12 +95,13 @@ def _bib_entry(key: str) -> dict[str, str] | None:
     return fields
 
 
-@lru_cache(maxsize=256)
 def citation(key: str) -> str:
-    """Readable citation for a CoolProp bibliography key (author, year, title, journal, DOI)."""
+    """Readable citation for a CoolProp bibliography key (author, year, title, journal, DOI); read once
+    per key (`_citation` is cached)."""
     return _citation(key)
 
 
+@lru_cache(maxsize=None)
 def _citation(key: str) -> str:
     """Readable citation for a CoolProp bibliography key; the key itself when the entry is not there.
     A comma-separated list of keys (oxygen's 'Schmidt-FPE-1985,Stewart-JPCRD-1991') gives each citation."""
@@ -689,6 +690,28 @@ class ReferenceFluid:
             except NotApplicable as exc:
                 reasons[i] = exc.reason
         return out.reshape(shape), valid.reshape(shape), np.array(reasons, dtype=str).reshape(shape)
+
+
+    @_holding_the_state
+    def states(self, rho_molar: np.ndarray, T: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """:meth:`pressure` and :meth:`phase` of many rows in one evaluation each (1-D arrays of equal length).
+
+        Returns (pressures [Pa], phases (object array of the words of :meth:`phase`), valid mask); invalid rows
+        carry NaN, None and False.
+        """
+        rho_f, t_f = np.asarray(rho_molar, dtype=float).tolist(), np.asarray(T, dtype=float).tolist()
+        n = len(rho_f)
+        out = np.full(n, np.nan)
+        phases = np.full(n, None, dtype=object)
+        valid = np.zeros(n, dtype=bool)
+        evaluate = self._evaluate
+        for i in range(n):
+            try:
+                out[i], phases[i] = evaluate(rho_f[i], t_f[i])
+                valid[i] = True
+            except NotApplicable:
+                pass
+        return out, phases, valid
 
 
 class LiquefiedBlend(ReferenceFluid):
