@@ -245,7 +245,7 @@ class ReferenceFluid:
         refs = []
         for n in self.names:
             key = CP.get_fluid_param_string(n, "BibTeX-EOS")
-            refs.append(f"{n}: {_citation(key)}")
+            refs.append(f"{n}: {citation(key)}")
         if self.is_mixture:
             seen = set()
             for i in range(len(self.names)):
@@ -253,7 +253,7 @@ class ReferenceFluid:
                     key = _binary_pair_key(self._cas[i], self._cas[j])
                     if key and key not in seen:
                         seen.add(key)
-                        refs.append(f"{self.names[i]}/{self.names[j]} interaction: {_citation(key)}")
+                        refs.append(f"{self.names[i]}/{self.names[j]} interaction: {citation(key)}")
         return refs
 
     # ---------------------------------------------------------------------------------------------
