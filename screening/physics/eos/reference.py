@@ -241,7 +241,14 @@ class ReferenceFluid:
 
     # ---------------------------------------------------------------------------------------------
     def eos_references(self) -> list[str]:
-        """Published sources of the equations of state used (components, then mixture departure functions)."""
+        """Published sources of the equations of state used (components, then mixture departure functions);
+        looked up once per fluid (a new list on each call)."""
+        refs = self.__dict__.get("_eos_references")
+        if refs is None:
+            refs = self.__dict__["_eos_references"] = tuple(self._eos_references())
+        return list(refs)
+
+    def _eos_references(self) -> list[str]:
         refs = []
         for n in self.names:
             key = CP.get_fluid_param_string(n, "BibTeX-EOS")
