@@ -17,12 +17,18 @@ not) and no tolerances, both temperatures above the critical temperature (the "v
   reference limit can be the lower one;
 * the dry-out temperature (where the isochore meets the saturation dome) by a per-fluid table of the
   saturated-vapour density and a few secant steps;
-* verdicts through :func:`screening.screen.decide`, the one place that decides a verdict.
+* verdicts through :func:`screening.screen.decide`, the one place that decides a verdict;
+* rows with input tolerances or several exposure scenarios (each in the sun or not): every scenario is a
+  row of the table and every state of the tolerance analysis (the nominal state, the central differences of
+  the sensitivities, the corners) an extra row whose models alone are computed; the steps are
+  :func:`screening.screen.tolerance_steps`, driven for many vessels at once, and the scenarios are folded by
+  :func:`screening.screen.fold_scenarios`, as the single screening does (:func:`_screen_expanded`).
 
 Everything else goes through :func:`screening.screen.screen_case` one row at a time, on purpose: liquefiable
 and dissolved gases and mixtures (their phase is checked per row by two routes, see physics.mixtures),
 mass fills, fills denser than critical (liquid-full analysis), two-phase or near-critical fills,
-tolerances and several scenarios, and any row where a vectorised step is not sure of itself (a root next to
+a row any of whose scenario or tolerance states falls outside this path, and any row where a vectorised step
+is not sure of itself (a root next to
 the edge of a model's range, a solve that did not settle). Those rows give exactly the single-case result.
 
 The result of a row has the keys of ``screen_case``; its numbers agree with it to the solve tolerance
