@@ -1138,13 +1138,19 @@ def _corner_state(case: Case, p_fill: float | None, t_fill: float, t_peak: float
     return variant, t_screen, fs, models, out_of_scope
 
 
+def governing_peak(peaks: dict) -> float | None:
+    """The governing peak [Pa] from the models' peaks by name (None: not applicable): the highest real-gas peak,
+    the ideal gas governing nothing (as _governing); None where no real-gas model applies."""
+    real = [p for name, p in peaks.items() if name != "ideal" and p is not None]
+    return max(real) if real else None
+
+
 def _corner_peak(case: Case, p_fill: float | None, t_fill: float, t_peak: float) -> dict:
     """Peak of every model at one tolerance corner (see _corner_state), and what the state rules find there
     ("_out_of_scope", "_liquid_full": reasons or None)."""
     variant, t_screen, fs, models, out_of_scope = _corner_state(case, p_fill, t_fill, t_peak)
-    gov = _governing(models)
     out = {m.name: (m.peak_pa if m.applicable else None) for m in models}
-    out["governing"] = gov.peak_pa if gov else None
+    out["governing"] = governing_peak(out)
     out["_out_of_scope"] = out_of_scope
     out["_liquid_full"] = (liquid_full_text(fs, t_screen, corner=True)
                            if _liquid_full_applies(fs, _molar(variant, fs), t_fill, t_screen, case.gas) else None)
@@ -1162,7 +1168,24 @@ def _bounding_model(case: Case, tolerance: dict | None) -> Model | None:
 
 
 def _tolerance(case: Case, t_fill: float, t_peak: float, models: list[Model]) -> dict:
-    """Nominal and bounding peak under the input tolerances.
+    """Nominal and bounding peak under the input tolerances (see tolerance_steps), each state evaluated by
+    _corner_peak, the corners one after the other (the first out of scope ends the search)."""
+    steps = tolerance_steps(case, t_fill, t_peak, [m.name for m in models if m.applicable])
+    states = next(steps)
+    try:
+        while True:
+            states = steps.send(map(lambda s: _corner_peak(case, *s), states))
+    except StopIteration as done:
+        return done.value
+
+
+def tolerance_steps(case: Case, t_fill: float, t_peak: float, names: list[str]):
+    """Nominal and bounding peak under the input tolerances, as a generator: it yields the states to evaluate
+    (lists of (fill pressure [Pa] or None, fill temperature [K], worst-case temperature [K])), is sent back an
+    iterable of their corner peaks in the same order (dicts as _corner_peak gives them; read in order and only as
+    far as needed) and returns the tolerance block. `names`: the models applicable at the nominal state.
+    The one-vessel screening evaluates each state by _corner_peak; the batch evaluates the states of many
+    vessels at once as rows of one table.
 
     The expected bounding corner is fill pressure high, fill temperature low, worst-case temperature high.
     The signs of dP_peak/dP_fill (> 0), dP_peak/dT_fill (< 0 at a fixed fill pressure) and dP_peak/dT (> 0)
@@ -1172,22 +1195,29 @@ def _tolerance(case: Case, t_fill: float, t_peak: float, models: list[Model]) ->
     tol = case.tolerance
     dp, dtf, dtg = tol.fill_pressure_pa, tol.fill_temperature_k, tol.gas_temperature_k
     p0 = case.fill_pressure_pa
-    nominal = _corner_peak(case, p0, t_fill, t_peak)
-    names = [m.name for m in models if m.applicable]
+    h_t = 0.05
+    h_p = max(1e-5 * p0, 10.0) if p0 is not None else None
 
-    def deriv(step_p, step_tf, step_tg, h):
-        hi = _corner_peak(case, p0 + step_p if p0 else None, t_fill + step_tf, t_peak + step_tg)
-        lo = _corner_peak(case, p0 - step_p if p0 else None, t_fill - step_tf, t_peak - step_tg)
+    def pair(step_p, step_tf, step_tg):
+        return [(p0 + step_p if p0 else None, t_fill + step_tf, t_peak + step_tg),
+                (p0 - step_p if p0 else None, t_fill - step_tf, t_peak - step_tg)]
+
+    states = [(p0, t_fill, t_peak)] + pair(0.0, 0.0, h_t)
+    if p0 is not None:
+        states += pair(h_p, 0.0, 0.0) + pair(0.0, h_t, 0.0)
+    got = list((yield states))
+    nominal = got[0]
+
+    def deriv(j, h):
+        hi, lo = got[j], got[j + 1]
         return {n: (hi[n] - lo[n]) / (2 * h) if hi.get(n) is not None and lo.get(n) is not None else None
                 for n in names + ["governing"]}
 
-    h_t = 0.05
-    sens = {"dp_peak_dt_gas": deriv(0.0, 0.0, h_t, h_t), "dp_peak_dt_fill": None, "dp_peak_dp_fill": None}
+    sens = {"dp_peak_dt_gas": deriv(1, h_t), "dp_peak_dt_fill": None, "dp_peak_dp_fill": None}
     expected = all((v or 0.0) > 0.0 for v in sens["dp_peak_dt_gas"].values())
     if p0 is not None:
-        h_p = max(1e-5 * p0, 10.0)
-        sens["dp_peak_dp_fill"] = deriv(h_p, 0.0, 0.0, h_p)
-        sens["dp_peak_dt_fill"] = deriv(0.0, h_t, 0.0, h_t)
+        sens["dp_peak_dp_fill"] = deriv(3, h_p)
+        sens["dp_peak_dt_fill"] = deriv(5, h_t)
         expected = expected and all((v or 0.0) > 0.0 for v in sens["dp_peak_dp_fill"].values()) \
             and all((v or 0.0) < 0.0 for v in sens["dp_peak_dt_fill"].values())
     # a mass fill has no fill-pressure reading; its fill temperature does not change the contents
@@ -1198,10 +1228,11 @@ def _tolerance(case: Case, t_fill: float, t_peak: float, models: list[Model]) ->
         corners = [(max(p_signs), min(tf_signs), max(tg_signs))]
     else:
         corners = [(a, b, c) for a in p_signs for b in tf_signs for c in tg_signs]
+    peaks = yield [(p0 + a * dp if p0 is not None else None, t_fill + b * dtf, t_peak + c * dtg)
+                   for a, b, c in corners]
     best, best_corner = None, None
     findings: dict = {"out_of_scope": None, "liquid_full": []}
-    for a, b, c in corners:
-        peak = _corner_peak(case, p0 + a * dp if p0 is not None else None, t_fill + b * dtf, t_peak + c * dtg)
+    for (a, b, c), peak in zip(corners, peaks):
         if peak["_liquid_full"] and peak["_liquid_full"] not in findings["liquid_full"]:
             findings["liquid_full"].append(peak["_liquid_full"])
         g = peak["governing"]
@@ -1363,12 +1394,20 @@ def screen_case(case: Case, *, curves: bool = True) -> dict:
                                  "is assumed to describe the fill state; the peak pressure does not depend on it."})
             t_peak, basis, balance = _worst_case_temperature(case, sc, warnings)
             per.append((sc.name, _screen_at(case, t_peak, basis, warnings), balance))
+    plots = [r.pop("_plot") for _, r, _ in per]
+    ranked, result = fold_scenarios(per)
+    if curves:
+        result["curves"], result["phase_diagram"] = plots[ranked]()
+    return result
+
+
+def fold_scenarios(per: list[tuple[str, dict, dict | None]]) -> tuple[int, dict]:
+    """(index, result) of the governing scenario among per = [(name, result, energy balance or None)] (the worst
+    by _rank), its result with every scenario side by side under "scenarios", the governing scenario's name
+    and exposure, the reason naming it where there are several, and every scenario's warnings once."""
     ranked = max(range(len(per)), key=lambda i: _rank(per[i][1]))
-    plot = [r.pop("_plot") for _, r, _ in per][ranked]
     name, result, balance = per[ranked]
     result = dict(result)
-    if curves:
-        result["curves"], result["phase_diagram"] = plot()
     result["scenarios"] = [dict(_scenario_summary(n, r, b), governing=(i == ranked))
                            for i, (n, r, b) in enumerate(per)]
     result["governing_scenario"] = name
@@ -1381,7 +1420,7 @@ def screen_case(case: Case, *, curves: bool = True) -> dict:
                 if w["message"] not in seen:
                     result["warnings"].append(w)
                     seen.add(w["message"])
-    return result
+    return ranked, result
 
 
 def screen_text(text: str, source: str = "<case>") -> dict:

@@ -17,7 +17,12 @@ not) and no tolerances, both temperatures above the critical temperature (the "v
   reference limit can be the lower one;
 * the dry-out temperature (where the isochore meets the saturation dome) by a per-fluid table of the
   saturated-vapour density and a few secant steps;
-* verdicts through :func:`screening.screen.decide`, the one place that decides a verdict.
+* verdicts through :func:`screening.screen.decide`, the one place that decides a verdict;
+* rows with input tolerances or several exposure scenarios (each in the sun or not): every scenario is a
+  row of the table and every state of the tolerance analysis (the nominal state, the central differences of
+  the sensitivities, the corners) an extra row whose models alone are computed; the steps are
+  :func:`screening.screen.tolerance_steps`, driven for many vessels at once, and the scenarios are folded by
+  :func:`screening.screen.fold_scenarios`, as the single screening does (:func:`_screen_expanded`).
 
 A pure liquefied gas (carbon dioxide, propane, ammonia, the refrigerants: a pure fluid with a saturation dome)
 filled by mass or by pressure at a stated fill temperature, with one exposure and no tolerances, runs on
@@ -29,7 +34,8 @@ and the limits, each root as screen._root finds it; the verdict through the same
 
 Everything else goes through :func:`screening.screen.screen_case` one row at a time, on purpose: dissolved gases
 and mixtures (their phase is checked per row by two routes, see physics.mixtures), permanent-gas fills by mass,
-fills of a permanent gas near its critical temperature, tolerances and several scenarios, and any row where a
+fills of a permanent gas near its critical temperature, liquefied gases with tolerances or several scenarios, a
+permanent-gas row any of whose scenario or tolerance states falls outside this path, and any row where a
 vectorised step is not sure of itself (a root next to the edge of a model's range, a solve that did not
 settle, a state the reference equation refuses). Those rows give exactly the single-case result.
 
@@ -564,7 +570,7 @@ def _reference_fill_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallba
     gas, p_fill, t_fill, t_peak = rows.gas, rows.p_fill, rows.t_fill, out["t_peak"]
     rho_molar = np.full(n, np.nan)
     live = np.flatnonzero(~fallback)
-    rho_molar[live], ok_fill, _ = _loop(fluid.density, p_fill[live], t_fill[live])
+    rho_molar[live], ok_fill = _density_once(fluid, p_fill[live], t_fill[live])
     fallback[live[~ok_fill]] = True
     # the single screening takes the fill's mass density and divides by the molar mass again: so here
     rho_ref = (rho_molar * gas.molar_mass) / gas.molar_mass
@@ -728,8 +734,9 @@ def _reference_limits(rows: Rows, fluid: ReferenceFluid, pure: bool, out: dict, 
         out["mass_rho"][live[inside]] = r[inside]
 
 
-def _columns(rows: Rows) -> dict:
-    """Every model, the phase boundary and the limits for rows of one pure permanent gas, as arrays.
+def _columns(rows: Rows, limits: bool = True) -> dict:
+    """Every model, the phase boundary and the limits for rows of one pure permanent gas, as arrays
+    (`limits` False: the models alone, for the states of tolerance corners, see :func:`_corner_peaks`).
 
     Returns a dict of the arrays named in _FLOAT_COLUMNS plus ``stated`` (the stated gas temperature is the
     worst-case basis), ``lk_ok``, ``lk_reason`` and ``fallback`` (rows that must go per row)."""
@@ -763,7 +770,7 @@ def _columns(rows: Rows) -> dict:
     rho_molar = _reference_fill_columns(rows, fluid, out, fallback)
 
     # --- where the isochore meets the dome (pure fluids; the pseudo-pure air has no phase analysis)
-    if pure:
+    if pure and limits:
         _dome_columns(fluid, rho_molar, out, fallback)
 
     # --- ideal
@@ -777,6 +784,8 @@ def _columns(rows: Rows) -> dict:
     # the vectorised limits assume constant critical constants (not the quantum correction)
     if any(c.quantum for c in gas.components):
         fallback |= lk_ok & ~q_srk
+    if not limits:
+        return out
 
     # --- limits: targets and scan ranges as screen._limits has them
     out["target"] = target = atm + (rated - atm) * (1.0 - margin_req)
@@ -800,8 +809,9 @@ def _opt(x) -> float | None:
 
 
 def _verdict(cols: dict, k: int, molar_mass: float, rated: float, relief: float | None, atm: float,
-             required_margin: float, max_ratio: float | None, name: str | None) -> dict:
-    """One row's verdict, reasons, margins, governing model and warnings (through screen.decide)."""
+             required_margin: float, max_ratio: float | None, name: str | None, bounding: float | None = None) -> dict:
+    """One row's verdict, reasons, margins, governing model and warnings (through screen.decide); `bounding`:
+    the bounding peak under the input tolerances [Pa], decided on where it is higher (as screen._screen_at)."""
     warnings: list[dict] = []
     if cols["gas_below_ambient"][k]:
         msg = "the stated gas temperature is below the ambient maximum; the ambient maximum is used."
@@ -815,6 +825,8 @@ def _verdict(cols: dict, k: int, molar_mass: float, rated: float, relief: float 
     # the governing model: the highest real-gas peak (screen._governing); the ideal gas governs nothing
     real = [(nm, p) for nm, p in (("generalized", peak_gen), ("reference", peak_ref)) if p is not None]
     gov_name, peak = max(real, key=lambda x: x[1])
+    if bounding is not None:
+        peak = max(peak, bounding)
     applicable = [("ideal", peak_ideal)] + real
     disagree = _screen.models_disagree(peak_gen, peak_ref)
     if disagree:
@@ -949,6 +961,151 @@ def _assemble(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
     return result
 
 
+# ----------------------------------------------------------------------------- tolerances and scenarios as rows
+
+def _density_once(fluid: ReferenceFluid, p: np.ndarray, t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """fluid.density at each row's (p, t) [mol/m3] and whether it applies, each distinct state solved once (the
+    states of tolerance corners repeat across scenarios, and an inventory repeats its fills)."""
+    if p.size == 0:
+        return np.empty(0), np.zeros(0, dtype=bool)
+    uniq, back = np.unique(np.stack([p, t], axis=1), axis=0, return_inverse=True)
+    values, valid, _ = _loop(fluid.density, uniq[:, 0], uniq[:, 1])
+    back = back.ravel()
+    return values[back], valid[back]
+
+
+def expandable(case: Case) -> bool:
+    """Whether a row with input tolerances or several scenarios goes on the array path, its scenarios and
+    tolerance corners as extra rows of the table (:func:`_screen_expanded`)."""
+    scenarios = getattr(case, "scenarios", ())
+    if getattr(case, "tolerance", None) is None and len(scenarios) <= 1:
+        return False
+    return (_vector_gas(case.gas) and case.fill_pressure_pa is not None and case.fill_temperature_k is not None
+            and bool(scenarios) and all(getattr(s, "solar", "none") in ("none", "sun") for s in scenarios))
+
+
+def _exposure_row(case: Case, sc) -> SunRow:
+    """One scenario's worst case as screen._worst_case_temperature finds it (basis, energy balance, warnings),
+    with its highest exposure temperature. Raises InputError as the single screening does."""
+    warnings: list = []
+    _t, basis, balance = _screen._worst_case_temperature(case, sc, warnings)
+    t_exposure = max(t for t in (sc.gas_temperature_k, sc.ambient_max_k,
+                                 balance["wall_temperature_k"] if balance is not None else None) if t is not None)
+    return SunRow(basis, balance, warnings, t_exposure)
+
+
+def _state_rows(gas: Mixture, states: list[tuple[float, float, float]]) -> Rows:
+    """Rows of states (fill pressure [Pa], fill temperature [K], worst-case temperature [K]) for their models
+    alone: the worst case enters as the stated gas temperature, so that the row's screened temperature is
+    screen.screened_temperature of it and the fill temperature, as at a tolerance corner (screen._corner_state)."""
+    a = np.array(states, dtype=float).reshape(-1, 3)
+    nan, one = np.full(a.shape[0], np.nan), np.ones(a.shape[0])
+    return Rows(gas, a[:, 0], a[:, 1], nan, a[:, 2], 2.0 * a[:, 0], one, 0.0 * one)
+
+
+def _corner_peaks(gas: Mixture, states: list[tuple[float, float, float]]) -> dict:
+    """{state: its corner peaks as screen._corner_peak gives them, or None where the row must go per row}, every
+    state a row of one table. On this path (single phase, away from the critical and dense-fluid regions) no
+    state is out of scope or liquid-full: a state where that cannot be shown falls back."""
+    if not states:
+        return {}
+    cols = _columns(_state_rows(gas, states), limits=False)
+    fallback, lk_ok = cols["fallback"].tolist(), cols["lk_ok"].tolist()
+    ideal, gen, ref = (cols[k].tolist() for k in ("peak_ideal", "lk_peak", "peak_ref"))
+    out: dict = {}
+    for k, s in enumerate(states):
+        if fallback[k]:
+            out[s] = None
+            continue
+        peaks = {"ideal": ideal[k], "generalized": gen[k] if lk_ok[k] else None, "reference": ref[k]}
+        peaks["governing"] = _screen.governing_peak(peaks)
+        peaks["_out_of_scope"] = peaks["_liquid_full"] = None
+        out[s] = peaks
+    return out
+
+
+def _drive(gas: Mixture, steps: dict) -> dict:
+    """Run the tolerance generators (screen.tolerance_steps) of many vessels in lockstep: each round's states
+    of every vessel are rows of one table. Returns {key: tolerance block or None (per row)}."""
+    done: dict = {}
+    asked = {key: next(gen) for key, gen in steps.items()}
+    while asked:
+        peaks = _corner_peaks(gas, list(dict.fromkeys(s for states in asked.values() for s in states)))
+        nxt = {}
+        for key, states in asked.items():
+            got = [peaks[s] for s in states]
+            if any(g is None for g in got):
+                done[key] = None
+                continue
+            try:
+                nxt[key] = steps[key].send(got)
+            except StopIteration as stop:
+                done[key] = stop.value
+        asked = nxt
+    return done
+
+
+def _screen_expanded(cases: list[Case]) -> list[dict | None]:
+    """Rows of one pure permanent gas with input tolerances and/or several scenarios, on the arrays: every
+    scenario a row of the table, every tolerance corner (and the states of its sensitivities) an extra row; the
+    rows folded back into one result per vessel as screen.screen_case gives it (tolerance block, scenarios, the
+    governing scenario by screen.fold_scenarios). None where a row must go per row (a row of its table fell
+    back, or its worst case raises)."""
+    out: list[dict | None] = [None] * len(cases)
+    gas = cases[0].gas
+    exposures: dict[int, list[SunRow]] = {}
+    for i, c in enumerate(cases):
+        try:
+            exposures[i] = [_exposure_row(c, sc) for sc in c.scenarios]
+        except (InputError, ValueError):
+            continue                    # the per-row path raises it again, in its place
+    keys = [(i, j) for i, rows in exposures.items() for j in range(len(rows))]
+    if not keys:
+        return out
+    nominal = Rows(gas, *(np.array(v, dtype=float) for v in zip(*(
+        (cases[i].fill_pressure_pa, cases[i].fill_temperature_k, math.nan, exposures[i][j].t_exposure,
+         cases[i].rated_pressure_pa, cases[i].site.atmospheric_pressure_pa, cases[i].required_margin)
+        for i, j in keys))))
+    cols = _columns(nominal)
+    fallback = cols["fallback"].tolist()
+    bad = {i for (i, _j), f in zip(keys, fallback) if f}
+    row_of = {key: k for k, key in enumerate(keys)}
+    steps = {}
+    for k, (i, j) in enumerate(keys):
+        c = cases[i]
+        if i in bad or c.tolerance is None:
+            continue
+        names = ["ideal"] + (["generalized"] if cols["lk_ok"][k] else []) + ["reference"]
+        steps[(i, j)] = _screen.tolerance_steps(c, float(c.fill_temperature_k), float(cols["t_peak"][k]), names)
+    tolerances = _drive(gas, steps)
+    bad |= {i for (i, _j), t in tolerances.items() if t is None}
+    for i, rows in exposures.items():
+        if i in bad:
+            continue
+        c = cases[i]
+        per = []
+        for j, (sc, ex) in enumerate(zip(c.scenarios, rows)):
+            k = row_of[(i, j)]
+            args = (cols, k, gas.molar_mass, c.rated_pressure_pa, c.relief_set_pressure_pa,
+                    c.site.atmospheric_pressure_pa, c.required_margin, c.max_filling_ratio_kg_m3, sc.name)
+            r = _assemble(c, cols, k, _verdict(*args), sun=ex)
+            for key in ("scenarios", "governing_scenario", "exposure"):
+                r.pop(key, None)
+            tol = tolerances.get((i, j))
+            if tol is not None:
+                findings = tol.pop("_findings")
+                if tol["bounding_peak_pressure_pa"] is None or findings["out_of_scope"] or findings["liquid_full"]:
+                    break               # not on this path (see _corner_peaks): per row
+                v = _verdict(*args, bounding=tol["bounding_peak_pressure_pa"])
+                r.update(verdict=v["verdict"], reasons=v["reasons"], peak_pressure_pa=v["peak_pressure_pa"],
+                         margin_fraction=v["margin_fraction"], relief_margin_fraction=v["relief_margin_fraction"],
+                         tolerance=tol)
+            per.append((sc.name, r, ex.balance))
+        else:
+            out[i] = _screen.fold_scenarios(per)[1]
+    return out
+
+
 # ----------------------------------------------------------------------------- the batch
 
 #: Rows of the last screen_cases call on each path (for the batch summary and the tests).
@@ -982,7 +1139,11 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
     groups: dict[str, list[int]] = {}
     rest: list[int] = []
     sun: dict[int, SunRow | None] = {}
+    expanded: dict[str, list[int]] = {}
     for i, c in enumerate(cases):
+        if expandable(c):
+            expanded.setdefault(c.gas.name, []).append(i)
+            continue
         if vectorisable(c) or liquefied_vectorisable(c):
             try:
                 sun[i] = _sun_row(c)
@@ -1003,6 +1164,16 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
                 rest.append(i)
             else:
                 results[i] = _assemble(cases[i], cols, k, sun=sun[i])
+                done += 1
+        if progress:
+            progress(done)
+    for idx in expanded.values():
+        done = 0
+        for i, r in zip(idx, _screen_expanded([cases[i] for i in idx])):
+            if r is None:
+                rest.append(i)
+            else:
+                results[i] = r
                 done += 1
         if progress:
             progress(done)

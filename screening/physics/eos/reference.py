@@ -258,7 +258,7 @@ class ReferenceFluid:
         refs = []
         for n in self.names:
             key = CP.get_fluid_param_string(n, "BibTeX-EOS")
-            refs.append(f"{n}: {_citation(key)}")
+            refs.append(f"{n}: {citation(key)}")
         if self.is_mixture:
             seen = set()
             for i in range(len(self.names)):
