@@ -952,7 +952,7 @@ class PlainScreening:
     """The screening of an inventory's plain rows: a slim result per row at once, the full result on demand.
 
     ``summaries[j]`` holds what the batch table, CSV and counts need (see :func:`slim`); ``full(j)`` gives
-    the result dict of :func:`screen_cases` for the row (read again through the case reader for the
+    the full Result of :func:`screen_cases` for the row (read again through the case reader for the
     row's own texts). Rows the vectorised path does not cover are screened per row, in full, here.
     """
 

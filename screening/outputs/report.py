@@ -1,12 +1,13 @@
 """The PDF report: a view of a finished screening result.
 
-``render_report(result, case_text, out_path, report_date=...)`` formats the result dict into HTML
-(Jinja2, autoescaped, strict about undefined names), lays it out with WeasyPrint and writes a PDF
-that carries the case file as entered and the JSON result as attachments.
+``render_report(result, case_text, out_path, report_date=...)`` formats the typed result
+(:class:`screening.result.Result`) into HTML (Jinja2, autoescaped, strict about undefined names), lays
+it out with WeasyPrint and writes a PDF that carries the case file as entered and the JSON result as
+attachments.
 
 Rules this module keeps:
 
-* It computes no physics. Every number shown comes from the result dict; the only arithmetic is
+* It computes no physics. Every number shown comes from the result; the only arithmetic is
   unit conversion for display (screening.units) and the gauge-basis margin line.
 * Text from the case (id, description, site, file name) is only ever element content, escaped.
   Numbers are formatted here, in Python, never in the template.
