@@ -20,6 +20,7 @@ import os
 import pickle
 import sys
 import tempfile
+from dataclasses import replace
 
 from screening.errors import InputError
 from screening.inputs.inventory import Inventory, load_defaults, open_inventory, read_inventory, row_case
@@ -33,6 +34,7 @@ from screening.outputs.tables import (
     result_headers,
     result_values,
 )
+from screening.result import Result, ScreeningWarning
 from screening.verdicts import EXIT_INPUT, EXIT_NOT_WITHIN, EXIT_WITHIN
 
 #: Keys of a result left out of the JSON outputs (shared or bulky parts).
@@ -61,9 +63,9 @@ def _id_column(inv: Inventory) -> int:
 class BatchRun:
     """Every row of an inventory (or of one chunk of it) screened, in input order.
 
-    ``results[i]`` is row i's result with its "row": the slim part the table, CSV and counts use for rows
-    of the vectorised path (see :func:`screening.vector.slim`), the full result for the rest and the
-    ``input-error`` rows. ``full(i)`` gives row i's full result dict (built on demand)."""
+    ``results[i]`` is row i's slim record with its "row": the part the table, CSV and counts use (see
+    :func:`screening.vector.slim`), or the ``input-error`` record. ``full(i)`` gives row i's full
+    :class:`~screening.result.Result` (built on demand; the input-error record for such a row)."""
 
     def __init__(self, inv: Inventory, defaults: dict | None = None, quiet: bool = True, plain=None) -> None:
         from screening.inputs.columns import read_plain
@@ -76,6 +78,7 @@ class BatchRun:
         self._plain = PlainScreening(plain)
         slots: list[dict | None] = [None] * len(inv.rows)
         self._plain_at: dict[int, int] = {}
+        self._fulls: dict[int, Result] = {}
         for j, pos in enumerate(plain.index):
             pos = int(pos)
             r = self._plain.summaries[j]
@@ -95,9 +98,14 @@ class BatchRun:
             slots[pos] = self._placed(pos, r, case.id)
         self.results: list[dict] = slots  # type: ignore[assignment]
 
-    def _placed(self, pos: int, r: dict, case_id: str | None) -> dict:
+    def _placed(self, pos: int, r: Result | dict, case_id: str | None) -> dict:
         n = self.inv.rows[pos][0]
-        if r.get("verdict") == "input-error":
+        if isinstance(r, Result):
+            from screening.vector import slim
+
+            self._fulls[pos] = replace(r, row=n)
+            r = slim(r)
+        elif r["verdict"] == "input-error":
             exc = r["error"]
             located = InputError(exc.message, file=self.inv.source, row=n, key=exc.key, given=exc.given,
                                  expected=exc.expected)
@@ -105,19 +113,23 @@ class BatchRun:
         r["row"] = n
         return r
 
-    def full(self, i: int) -> dict:
-        """Row i's full result dict (with its "row" and the batch's warnings)."""
+    def full(self, i: int) -> Result | dict:
+        """Row i's full result (with its "row" and the batch's warnings); its input-error record for a
+        row that could not be screened."""
         r = self.results[i]
+        if i in self._fulls:
+            return self._fulls[i]
         j = self._plain_at.get(i)
         if j is None or r["verdict"] == "input-error":
             return r
         f = self._plain.full(j)
-        if f is r:
+        if not isinstance(f, Result):
             return r
-        f = dict(f)
-        f["row"] = r["row"]
-        f["warnings"] = r["warnings"]
-        return f
+        return replace(f, row=r["row"], warnings=_warnings(r["warnings"]))
+
+
+def _warnings(records: list[dict]) -> tuple[ScreeningWarning, ...]:
+    return tuple(ScreeningWarning.from_json(w) for w in records)
 
 
 def _screened(inv: Inventory, defaults: dict | None) -> tuple[list[dict], object]:
@@ -148,16 +160,6 @@ def _screened(inv: Inventory, defaults: dict | None) -> tuple[list[dict], object
     return results, fulls.__getitem__
 
 
-def _slim(r: dict) -> dict:
-    if r["verdict"] == "input-error" or "fill" not in r:
-        return r
-    from screening.vector import slim
-
-    s = slim(r)
-    s["row"] = r["row"]
-    return s
-
-
 def screen_chunk(job: tuple) -> list[tuple]:
     """Screen one chunk (run in a worker): per row (short result, JSON line or None, full result or None).
 
@@ -177,20 +179,24 @@ def screen_chunk(job: tuple) -> list[tuple]:
         if want.get("json") or (want.get("full") == "all"
                                 or (want.get("full") == "not-within" and r["verdict"] != "within")):
             f = full(i)
-            if f is not r:
-                f = dict(f)
-                f["warnings"] = r["warnings"]
+            if isinstance(f, Result):
+                f = replace(f, warnings=_warnings(r["warnings"]))
         line = None
         if want.get("json"):
             cells = inv.rows[i][1]
-            rec = {k: v for k, v in f.items() if k not in _DROP}
+            rec = {k: v for k, v in _json(f).items() if k not in _DROP}
             rec["row"] = n
             rec["input"] = {h: str(cells[j]) if j < len(cells) else "" for j, h in enumerate(headers)}
             line = json_line(rec)
         keep_full = f if want.get("full") == "all" or (want.get("full") == "not-within"
                                                        and r["verdict"] != "within") else None
-        out.append((_slim(r), line, keep_full))
+        out.append((r, line, keep_full))
     return out
+
+
+def _json(r: Result | dict) -> dict:
+    """A full result, or an input-error record, as JSON-ready data."""
+    return r.to_json() if isinstance(r, Result) else r
 
 
 # ----------------------------------------------------------------------------- counts, order, table
@@ -324,7 +330,7 @@ def write_json(results: list[dict], path, full=None) -> None:
         for i, r in enumerate(results):
             if full is not None:
                 r = full(i)
-            fh.write(("  " if i == 0 else ",\n  ") + json_line({k: v for k, v in r.items() if k not in _DROP}))
+            fh.write(("  " if i == 0 else ",\n  ") + json_line({k: v for k, v in _json(r).items() if k not in _DROP}))
         fh.write('\n],\n "summary": ' + json.dumps(summary(results)) + "}\n")
 
 

@@ -20,10 +20,14 @@ import contextlib
 import datetime as _dt
 import os
 import sys
+from typing import TYPE_CHECKING
 
 from screening import __version__
 from screening.errors import InputError, OutputError
 from screening.verdicts import EXIT_INPUT, EXIT_NOT_WITHIN, EXIT_WITHIN
+
+if TYPE_CHECKING:
+    from screening.result import Result
 
 #: The exit codes of each command, as --help shows them (the README's table says the same).
 EXIT_HELP = {
@@ -124,7 +128,7 @@ def _build() -> argparse.ArgumentParser:
     return p
 
 
-def _write_pdf(result: dict, case_text: str, out: str, date: _dt.date | None) -> str:
+def _write_pdf(result: Result, case_text: str, out: str, date: _dt.date | None) -> str:
     from screening.outputs.report import render_report
 
     path = render_report(result, case_text, out, report_date=date or _dt.date.today())
@@ -139,7 +143,7 @@ def _lean_coolprop() -> None:
     load_lean()
 
 
-def _screened_here(path: str) -> tuple[dict, str]:
+def _screened_here(path: str) -> tuple[Result, str]:
     """(result, case text as read) of the case file at `path`, screened in this process."""
     from screening.inputs.case import load_case
 
@@ -162,7 +166,7 @@ def _prepare_report_layer() -> None:
         pass
 
 
-def _screen_in_worker(case) -> dict:
+def _screen_in_worker(case) -> Result:
     """Run in the worker: the result of the case (an InputError raised here comes back as itself)."""
     _lean_coolprop()
     from screening.screen import screen_case
@@ -185,7 +189,7 @@ def _worker_pool():
     return ProcessPoolExecutor(max_workers=1, mp_context=multiprocessing.get_context("fork"))
 
 
-def _screened_for_pdf(path: str, *, fork: bool | None = None) -> tuple[dict, str]:
+def _screened_for_pdf(path: str, *, fork: bool | None = None) -> tuple[Result, str]:
     """(result, case text as read) for a command that goes on to write a PDF.
 
     The case is read here first, so an unreadable case is reported at once and starts no process.
@@ -305,9 +309,10 @@ def run(argv: list[str] | None = None) -> int:
         return 0
     if args.command == "verify":
         _lean_coolprop()
+        from screening.batch import run as run_batch
         from screening.outputs.verify import verify_report
 
-        ok, message = verify_report(args.report)
+        ok, message = verify_report(args.report, run_batch=run_batch)
         print(message)
         return EXIT_WITHIN if ok else EXIT_NOT_WITHIN
 
@@ -318,11 +323,11 @@ def run(argv: list[str] | None = None) -> int:
     if args.command == "report":
         written = _write_pdf(result, case_text, args.output, args.date)
         print(f"report written: {written}")
-        return _exit_for(result["verdict"])
+        return _exit_for(result.verdict)
     if args.json:
         import json
 
-        print(json.dumps(result, indent=2, ensure_ascii=False, allow_nan=False))
+        print(json.dumps(result.to_json(), indent=2, ensure_ascii=False, allow_nan=False))
     else:
         from screening.outputs.summary import format_summary
 
@@ -330,7 +335,7 @@ def run(argv: list[str] | None = None) -> int:
     if args.pdf:
         written = _write_pdf(result, case_text, args.pdf, args.date)
         print(f"report written: {written}", file=sys.stderr if args.json else sys.stdout)
-    return _exit_for(result["verdict"])
+    return _exit_for(result.verdict)
 
 
 def _quiet_stdout() -> None:

@@ -38,6 +38,7 @@ from screening.physics.gases import Mixture
 from screening.physics.isochore import isochore_phases, max_liquid_density
 from screening.physics.mixtures import ESTABLISH_BELOW_K, CubicComponent, case_budget, cubic_phase_on_isochore
 from screening.physics.roots import brentq
+from screening.result import Result
 from screening.units import percent_pair
 from screening.verdicts import Verdict
 
@@ -1068,8 +1069,8 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
         liquid_full_reason=liquid_full_reason, filling_ratio_reason=ratio_reason)
 
     limits = _limits(case, models, t_fill, t_peak) if real else {
-        "max_gas_temperature_k": None, "max_fill_pressure_pa": None, "target_peak_pressure_pa": None,
         "max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,
+        "max_gas_temperature_k": None, "max_fill_pressure_pa": None, "target_peak_pressure_pa": None,
         "note": "no real-gas model applies, so no limit is given"}
     limits["liquid_full_temperature_k"] = fs.liquid_full_temperature
     limits["dry_out_temperature_k"] = fs.dry_out_temperature
@@ -1380,9 +1381,9 @@ def _rank(r: dict) -> tuple:
     return (Verdict(r["verdict"]).severity, -(margin if margin is not None else -math.inf))
 
 
-def screen_case(case: Case, *, curves: bool = True) -> dict:
-    """Screen one vessel over its exposure scenarios; return the governing scenario's result dict
-    (JSON-ready, SI, pressures absolute) with every scenario side by side under "scenarios".
+def screen_case(case: Case, *, curves: bool = True) -> Result:
+    """Screen one vessel over its exposure scenarios; return the governing scenario's result (SI, pressures
+    absolute; `Result.to_json()` is the JSON layout) with every scenario side by side under "scenarios".
     `curves`: compute the plot data ("curves", "phase_diagram"); None where False."""
     per: list[tuple[str, dict, dict | None]] = []
     with case_budget():   # a mixture's phase checks share one time bound per screening
@@ -1398,7 +1399,7 @@ def screen_case(case: Case, *, curves: bool = True) -> dict:
     ranked, result = fold_scenarios(per)
     if curves:
         result["curves"], result["phase_diagram"] = plots[ranked]()
-    return result
+    return Result.from_json(result)
 
 
 def fold_scenarios(per: list[tuple[str, dict, dict | None]]) -> tuple[int, dict]:
@@ -1423,11 +1424,11 @@ def fold_scenarios(per: list[tuple[str, dict, dict | None]]) -> tuple[int, dict]
     return ranked, result
 
 
-def screen_text(text: str, source: str = "<case>") -> dict:
+def screen_text(text: str, source: str = "<case>") -> Result:
     """Parse a TOML case text and screen it. Raises InputError on bad input."""
     return screen_case(parse_case_text(text, source))
 
 
-def screen_file(path) -> dict:
+def screen_file(path) -> Result:
     """Read a case file and screen it. Raises InputError on bad input."""
     return screen_case(load_case(path))

@@ -71,6 +71,7 @@ from screening.physics.eos.generalized import (
 from screening.physics.eos.reference import ReferenceFluid, reference_fluid
 from screening.physics.gases import Mixture
 from screening.physics.isochore import LIQUID_FULL_STEP
+from screening.result import Curves, Result
 
 #: Number of scan points screen._limits uses (kept equal so the bracket checks agree).
 _SCAN_N = 40
@@ -865,8 +866,13 @@ def _generalized_model(cols: dict, k: int, gas: Mixture) -> dict:
     return gen
 
 
-def _assemble(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:
-    """One row's result dict, laid out as screen.screen_case lays out a single-scenario result."""
+def _assemble(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> Result:
+    """One row's result, laid out as screen.screen_case lays out a single-scenario result."""
+    return Result.from_json(_row_dict(case, cols, k, v, sun))
+
+
+def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:
+    """One row's result as its JSON layout (:func:`_assemble`; the tolerance and scenario fold works on it)."""
     if cols.get("kind") == "liquefied":
         return _assemble_liquefied(case, cols, k, v, sun)
     gas = case.gas
@@ -1045,13 +1051,13 @@ def _drive(gas: Mixture, steps: dict) -> dict:
     return done
 
 
-def _screen_expanded(cases: list[Case]) -> list[dict | None]:
+def _screen_expanded(cases: list[Case]) -> list[Result | None]:
     """Rows of one pure permanent gas with input tolerances and/or several scenarios, on the arrays: every
     scenario a row of the table, every tolerance corner (and the states of its sensitivities) an extra row; the
     rows folded back into one result per vessel as screen.screen_case gives it (tolerance block, scenarios, the
     governing scenario by screen.fold_scenarios). None where a row must go per row (a row of its table fell
     back, or its worst case raises)."""
-    out: list[dict | None] = [None] * len(cases)
+    out: list[Result | None] = [None] * len(cases)
     gas = cases[0].gas
     exposures: dict[int, list[SunRow]] = {}
     for i, c in enumerate(cases):
@@ -1088,7 +1094,7 @@ def _screen_expanded(cases: list[Case]) -> list[dict | None]:
             k = row_of[(i, j)]
             args = (cols, k, gas.molar_mass, c.rated_pressure_pa, c.relief_set_pressure_pa,
                     c.site.atmospheric_pressure_pa, c.required_margin, c.max_filling_ratio_kg_m3, sc.name)
-            r = _assemble(c, cols, k, _verdict(*args), sun=ex)
+            r = _row_dict(c, cols, k, _verdict(*args), sun=ex)
             for key in ("scenarios", "governing_scenario", "exposure"):
                 r.pop(key, None)
             tol = tolerances.get((i, j))
@@ -1102,7 +1108,7 @@ def _screen_expanded(cases: list[Case]) -> list[dict | None]:
                          tolerance=tol)
             per.append((sc.name, r, ex.balance))
         else:
-            out[i] = _screen.fold_scenarios(per)[1]
+            out[i] = Result.from_json(_screen.fold_scenarios(per)[1])
     return out
 
 
@@ -1112,7 +1118,7 @@ def _screen_expanded(cases: list[Case]) -> list[dict | None]:
 STATS = {"vectorised": 0, "per_row": 0}
 
 
-def single(case: Case) -> dict:
+def single(case: Case) -> Result:
     """One row through the per-row path (screen.screen_case) without plot data, as on the vectorised path."""
     return _screen.screen_case(case, curves=False)
 
@@ -1189,25 +1195,16 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
     return results  # type: ignore[return-value]
 
 
-def slim(r: dict) -> dict:
+def slim(r: Result) -> dict:
     """The part of a result the batch table, CSV and counts use."""
-    lim = r.get("limits") or {}
-    return {"id": r.get("id"), "verdict": r["verdict"], "reasons": r.get("reasons") or [],
-            "warnings": r.get("warnings") or [], "peak_pressure_pa": r.get("peak_pressure_pa"),
-            "rated_pressure_pa": r.get("rated_pressure_pa"), "margin_fraction": r.get("margin_fraction"),
-            "required_margin_fraction": r.get("required_margin_fraction"),
-            "governing_model": r.get("governing_model"),
-            "limits": {"max_gas_temperature_k": lim.get("max_gas_temperature_k"),
-                       "max_fill_pressure_pa": lim.get("max_fill_pressure_pa")},
-            "gas": {"name": (r.get("gas") or {}).get("name", "")}, "display_units": r.get("display_units") or {},
-            "site": {"atmospheric_pressure_pa": (r.get("site") or {}).get("atmospheric_pressure_pa")}}
+    return r.summary_record()
 
 
 class PlainScreening:
     """The screening of an inventory's plain rows: a slim result per row at once, the full result on demand.
 
     ``summaries[j]`` holds what the batch table, CSV and counts need (see :func:`slim`); ``full(j)`` gives
-    the result dict of :func:`screen_cases` for the row (read again through the case reader for the
+    the full Result of :func:`screen_cases` for the row (read again through the case reader for the
     row's own texts). Rows the vectorised path does not cover are screened per row, in full, here.
     """
 
@@ -1264,12 +1261,12 @@ class PlainScreening:
             except InputError as exc:
                 r = {"verdict": "input-error", "error": exc}
             self._full[j] = r
-            self.summaries[j] = slim(r) if r["verdict"] != "input-error" else r
+            self.summaries[j] = slim(r) if isinstance(r, Result) else r
             if progress:
                 progress(1)
 
-    def full(self, j: int) -> dict:
-        """The full result dict of the j-th plain row."""
+    def full(self, j: int) -> Result | dict:
+        """The full result of the j-th plain row (the input-error record where it could not be screened)."""
         if j in self._full:
             return self._full[j]
         cols, k = self._where[j]
@@ -1281,31 +1278,26 @@ def iter_chunks(items: list, size: int) -> Iterable[list]:
         yield items[k:k + size]
 
 
-def curves(r: dict) -> dict:
+def curves(r: Result) -> Curves:
     """Isochore curves of a row's full result, on the single screening's grid
     (`screen.curve_temperatures`): what a view draws for a row the vectorised path screened, whose
     result carries no curves."""
-    grid = _screen.curve_temperatures(r["fill"]["temperature_k"], r["worst_case_temperature_k"],
-                                      r.get("limits") or {})
-    out: dict = {"temperature_k": [float(t) for t in grid]}
-    models = r["models"]
-    ide = models.get("ideal") or {}
-    out["ideal"] = ([float(ide["fill_molar_density_mol_m3"] * R * t) for t in grid]
-                    if ide.get("applicable") else None)
-    gen = models.get("generalized") or {}
-    out["generalized"] = None
-    if gen.get("applicable") and not gen.get("quantum_correction") and not gen.get("mixing_rule"):
-        s = lee_kesler_pressure(gen["fill_molar_density_mol_m3"], grid, gen["pseudocritical_temperature_k"],
-                                gen["pseudocritical_pressure_pa"], gen["acentric_factor"])
-        out["generalized"] = [float(p) if v else None for p, v in zip(s.pressure, s.valid)]
-    ref = models.get("reference") or {}
-    out["reference"] = None
-    comps = r["gas"]["components"]
-    if ref.get("applicable") and len(comps) == 1 and comps[0].get("coolprop_name"):
-        fluid = reference_fluid((comps[0]["coolprop_name"],), (1.0,))
-        p, v, _ = fluid.pressures(np.full(grid.shape, ref["fill_molar_density_mol_m3"]), grid)
-        out["reference"] = [float(x) if ok else None for x, ok in zip(p, v)]
-    return out
+    grid = _screen.curve_temperatures(r.fill.temperature_k, r.worst_case_temperature_k,
+                                      {"max_gas_temperature_k": r.limits.max_gas_temperature_k})
+    ide, gen, ref = r.models["ideal"], r.models["generalized"], r.models["reference"]
+    ideal = (tuple(float(ide.fill_molar_density_mol_m3 * R * t) for t in grid) if ide.applicable else None)
+    generalized = None
+    if gen.applicable and not gen.quantum_correction and not gen.mixing_rule:
+        s = lee_kesler_pressure(gen.fill_molar_density_mol_m3, grid, gen.pseudocritical_temperature_k,
+                                gen.pseudocritical_pressure_pa, gen.acentric_factor)
+        generalized = tuple(float(p) if v else None for p, v in zip(s.pressure, s.valid))
+    reference = None
+    comps = r.gas.components
+    if ref.applicable and len(comps) == 1 and comps[0].coolprop_name:
+        fluid = reference_fluid((comps[0].coolprop_name,), (1.0,))
+        p, v, _ = fluid.pressures(np.full(grid.shape, ref.fill_molar_density_mol_m3), grid)
+        reference = tuple(float(x) if ok else None for x, ok in zip(p, v))
+    return Curves(tuple(float(t) for t in grid), ideal, generalized, reference)
 
 
 # ----------------------------------------------------------------------------- liquefied gases

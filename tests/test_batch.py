@@ -9,9 +9,15 @@ import pytest
 from screening.batch import run_inventory
 from screening.cli import run
 from screening.inputs.inventory import read_inventory
+from screening.result import Result
 
 HEAD = "id,gas,water_capacity,rated_pressure,fill_pressure,fill_temperature,ambient_max\n"
 GOOD = "{id},nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC\n"
+
+
+def _json(r):
+    """A full result as its JSON object (an input-error record is one already)."""
+    return r.to_json() if isinstance(r, Result) else r
 
 
 def write(tmp_path, text, name="inv.csv", encoding="utf-8"):
@@ -21,7 +27,7 @@ def write(tmp_path, text, name="inv.csv", encoding="utf-8"):
 
 
 def results(path, **kw):
-    return run_inventory(read_inventory(path), **kw)
+    return [_json(r) for r in run_inventory(read_inventory(path), **kw)]
 
 
 def test_bad_row_in_the_middle_keeps_every_other_row(tmp_path):
@@ -54,7 +60,7 @@ def test_xlsx_first_sheet_and_named_sheet(tmp_path):
     p = tmp_path / "inv.xlsx"
     wb.save(p)
     inv = read_inventory(p, sheet="cylinders")
-    assert run_inventory(inv)[0]["verdict"] == "within"
+    assert run_inventory(inv)[0].verdict == "within"
 
 
 def test_defaults_fill_missing_columns(tmp_path):

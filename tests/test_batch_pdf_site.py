@@ -39,8 +39,9 @@ def _texts(pdf: bytes) -> list[str]:
 
 def test_title_names_the_site_the_rows_share_and_the_file_without_its_folder(tmp_path):
     inv, results = _inventory(tmp_path)
-    rows = br._with_texts(results, br.row_texts(inv))
-    pdf = br.render_batch_pdf_bytes(rows, source=inv.source, report_date=DATE)
+    rows, full = br._as_rows(results, None)
+    rows = br._with_texts(rows, br.row_texts(inv))
+    pdf = br.render_batch_pdf_bytes(rows, source=inv.source, report_date=DATE, full=full)
     texts = _texts(pdf)
     assert "SITE Kestrel Quarry workshop" in texts[0]
     assert "inv.csv" in texts[0] and "private folder" not in " ".join(texts)
@@ -50,9 +51,10 @@ def test_title_names_the_site_the_rows_share_and_the_file_without_its_folder(tmp
 
 def test_site_option_overrides_and_each_detailed_vessel_takes_one_page(tmp_path):
     inv, results = _inventory(tmp_path)
-    rows = br._with_texts(results, br.row_texts(inv))
+    rows, full = br._as_rows(results, None)
+    rows = br._with_texts(rows, br.row_texts(inv))
     pdf = br.render_batch_pdf_bytes(rows, source=inv.source, report_date=DATE, all_details=True,
-                                    site="North yard")
+                                    site="North yard", full=full)
     texts = _texts(pdf)
     assert "SITE North yard" in texts[0]
     details = [t for t in texts if re.search(r"Row \d+ · (OVER|OK)-\d", t)]
@@ -67,8 +69,8 @@ def test_location_column_is_carried_into_the_listing(tmp_path):
     inv, results = _inventory(tmp_path)
     texts = br.row_texts(inv)
     for r in results:
-        texts[r["row"]]["location"] = f"Shelf {r['row']}"
-    rows = br._with_texts(results, texts)
+        texts[r.row]["location"] = f"Shelf {r.row}"
+    rows = br._with_texts(br._as_rows(results, None)[0], texts)
     common = br._common(rows, source=inv.source, all_details=False, report_date=DATE)
     assert "Location" in common["listing_head"][1]
     listing = "\n".join(t for page in common["pages"] for _, t in page)

@@ -42,12 +42,12 @@ def footers(texts):
 
 def test_listing_has_every_row_and_keeps_its_width(tmp_path):
     rs = inventory(tmp_path, long_id=True)
-    common = br._common(rs, source="inv.csv", all_details=False, report_date=DATE)
+    common = br._common(br._as_rows(rs, None)[0], source="inv.csv", all_details=False, report_date=DATE)
     head, lines = common["listing_head"], [t for page in common["pages"] for _, t in page]
     assert all(len(x) <= br.LISTING_WIDTH for x in head + lines)
     text = "\n".join(lines)
     for r in rs:
-        assert f" {r['row']} " in f" {text} "
+        assert f" {r.row} " in f" {text} "
     # the long id wraps within its column: its pieces, read down the column, give it back whole
     a, b = head[1].index("Id"), head[1].index("Verdict")
     start = next(k for k, ln in enumerate(lines) if "RACK" in ln)
@@ -99,7 +99,7 @@ def test_a_short_document_is_one_part(tmp_path, monkeypatch):
 
 
 def test_the_chart_caption_describes_the_chart_drawn(tmp_path, monkeypatch):
-    rs = inventory(tmp_path, n_over=2, n_within=2)
+    rs, _ = br._as_rows(inventory(tmp_path, n_over=2, n_within=2), None)
     common = br._common(rs, source="inv.csv", all_details=False, report_date=DATE)
     view = br._part_view([("summary",)], common, rs, None)
     assert "worst first" in view["units"][0]["chart_caption"]

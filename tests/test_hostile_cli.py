@@ -122,7 +122,7 @@ def test_the_version_follows_the_releases_and_the_report_names_it(capsys):
         main(["--version"])
     assert capsys.readouterr().out.strip() == f"screening {screening.__version__}"
     result = screen_text(CASE, "case.toml")
-    assert result["tool_version"] == screening.__version__
+    assert result.tool_version == screening.__version__
     assert f"screening {screening.__version__}" in render_html(result, CASE, __import__("datetime").date(2026, 12, 1))
 
 

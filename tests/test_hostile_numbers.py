@@ -3,6 +3,7 @@ and the column); no infinite or overflowing number reaches a result, and every J
 
 from __future__ import annotations
 
+import dataclasses
 import json
 import math
 from pathlib import Path
@@ -114,7 +115,7 @@ def test_the_json_attached_to_a_report_is_strict(tmp_path):
 
     result = screen_text(GOOD, "case.toml")
     json.loads(result_json(result), parse_constant=lambda name: pytest.fail(name))
-    broken = dict(result, peak_pressure_pa=math.inf)
+    broken = dataclasses.replace(result, peak_pressure_pa=math.inf)
     with pytest.raises(ValueError):
         result_json(broken)
 

@@ -52,7 +52,7 @@ LIQUEFIED = [
 
 @pytest.mark.parametrize("gas, fluid, ratio, hot", LIQUEFIED)
 def test_liquid_full_temperature_matches_the_reference_eos(gas, fluid, ratio, hot):
-    r = screen_text(mass_case(gas, 40, ratio * 40, f"{hot} degC"))
+    r = screen_text(mass_case(gas, 40, ratio * 40, f"{hot} degC")).to_json()
     # the gas's reference EOS through CoolProp PropsSI (Span & Wagner 1996 for CO2, Lemmon 2009 propane,
     # Gao 2020 ammonia, Guder & Wagner 2009 SF6)
     assert r["limits"]["liquid_full_temperature_k"] == pytest.approx(propssi_liquid_full(fluid, ratio * 1000),
@@ -61,7 +61,7 @@ def test_liquid_full_temperature_matches_the_reference_eos(gas, fluid, ratio, ho
 
 @pytest.mark.parametrize("gas, fluid, ratio, hot", LIQUEFIED)
 def test_liquid_full_density_agrees_with_rackett(gas, fluid, ratio, hot):
-    r = screen_text(mass_case(gas, 40, ratio * 40, f"{hot} degC"))
+    r = screen_text(mass_case(gas, 40, ratio * 40, f"{hot} degC")).to_json()
     g = lookup(gas)
     t_lf = r["limits"]["liquid_full_temperature_k"]
     # Rackett saturated-liquid volume (Rackett, J. Chem. Eng. Data 15 (1970) 514) via `chemicals`;
@@ -72,7 +72,7 @@ def test_liquid_full_density_agrees_with_rackett(gas, fluid, ratio, hot):
 
 @pytest.mark.parametrize("gas, fluid, ratio, hot", LIQUEFIED)
 def test_two_phase_peak_is_the_vapour_pressure(gas, fluid, ratio, hot):
-    r = screen_text(mass_case(gas, 40, ratio * 40, f"{hot} degC"))
+    r = screen_text(mass_case(gas, 40, ratio * 40, f"{hot} degC")).to_json()
     t = hot + 273.15
     assert r["fill"]["phase"] == "two-phase"
     assert r["models"]["reference"]["phase_peak"] == "two-phase"
@@ -89,8 +89,8 @@ def test_two_phase_peak_is_the_vapour_pressure(gas, fluid, ratio, hot):
 @pytest.mark.parametrize("gas, fluid, ratio, hot", LIQUEFIED)
 def test_verdict_flips_as_the_worst_case_crosses_the_liquid_full_point(gas, fluid, ratio, hot):
     t_lf = propssi_liquid_full(fluid, ratio * 1000) - 273.15   # CoolProp PropsSI
-    below = screen_text(mass_case(gas, 40, ratio * 40, f"{t_lf - 1.0:.3f} degC", rated="500 bar(g)"))
-    above = screen_text(mass_case(gas, 40, ratio * 40, f"{t_lf + 0.5:.3f} degC", rated="500 bar(g)"))
+    below = screen_text(mass_case(gas, 40, ratio * 40, f"{t_lf - 1.0:.3f} degC", rated="500 bar(g)")).to_json()
+    above = screen_text(mass_case(gas, 40, ratio * 40, f"{t_lf + 0.5:.3f} degC", rated="500 bar(g)")).to_json()
     assert below["verdict"] == "within"
     assert above["verdict"] != "within"
     assert any("liquid fills the whole vessel" in x for x in above["reasons"])
@@ -99,24 +99,24 @@ def test_verdict_flips_as_the_worst_case_crosses_the_liquid_full_point(gas, flui
 
 
 def test_fill_above_the_maximum_filling_ratio_is_over():
-    r = screen_text(mass_case("carbon dioxide", 40, 32, "10 degC", extra='max_filling_ratio = "0.75 kg/L"'))
+    r = screen_text(mass_case("carbon dioxide", 40, 32, "10 degC", extra='max_filling_ratio = "0.75 kg/L"')).to_json()
     assert r["verdict"] == "over"
     assert any("maximum filling ratio" in x for x in r["reasons"])
 
 
 def test_mass_limit_keeps_the_vessel_off_the_liquid_full_point():
-    r = screen_text(mass_case("propane", 40, 16.8, "70 degC", rated="30 bar(g)"))
+    r = screen_text(mass_case("propane", 40, 16.8, "70 degC", rated="30 bar(g)")).to_json()
     lim = r["limits"]
     assert r["verdict"] != "within"
     # at the limit the fill density is no more than the saturated liquid at 70 degC (CoolProp PropsSI)
     assert lim["max_filling_ratio_kg_per_l"] * 1000 <= CP.PropsSI("D", "T", 343.15, "Q", 0, "Propane") * (1 + 1e-6)
-    again = screen_text(mass_case("propane", 40, lim["max_fill_mass_kg"] * 0.995, "70 degC", rated="30 bar(g)"))
+    again = screen_text(mass_case("propane", 40, lim["max_fill_mass_kg"] * 0.995, "70 degC", rated="30 bar(g)")).to_json()
     assert again["verdict"] == "within"
 
 
 def test_propane_butane_mixture_is_never_screened_as_a_gas():
     text = mass_case("propane 60% + n-butane 40%", 26, 11, "50 degC", rated="30 bar(g)")
-    r = screen_text(text)
+    r = screen_text(text).to_json()
     assert not r["models"]["ideal"]["applicable"] and not r["models"]["generalized"]["applicable"]
     assert r["verdict"] != "within" or r["models"]["reference"]["applicable"]
 

@@ -75,7 +75,7 @@ TRADE = [
 @pytest.mark.parametrize("gas, names, fractions", TRADE, ids=[t[0] for t in TRADE])
 def test_trade_mixture_at_200_bar_is_screened_with_all_models(gas, names, fractions):
     p_fill = 200e5 + ATM
-    r = screen_text(CASE.format(gas=gas, rated="300 bar(g)", fill="200 bar(g)"))
+    r = screen_text(CASE.format(gas=gas, rated="300 bar(g)", fill="200 bar(g)")).to_json()
     assert r["verdict"] != "out-of-scope", r["reasons"]
     ref = r["models"]["reference"]
     assert ref["applicable"], ref["note"]
@@ -92,7 +92,7 @@ def test_trade_mixture_at_200_bar_is_screened_with_all_models(gas, names, fracti
 
 def test_argon_helium_finishes_where_the_phase_envelope_never_did():
     t0 = time.monotonic()
-    r = screen_text(CASE.format(gas="argon 70% + helium 30%", rated="300 bar(g)", fill="200 bar(g)"))
+    r = screen_text(CASE.format(gas="argon 70% + helium 30%", rated="300 bar(g)", fill="200 bar(g)")).to_json()
     assert r["verdict"] == "within"
     # common practice: a single screening answers in seconds, not minutes (bound generous for a shared machine)
     assert time.monotonic() - t0 < 60.0
@@ -150,7 +150,7 @@ def test_a_phase_check_that_runs_over_its_time_bound_gives_cannot_be_established
 
 
 def test_nitrogen_hydrogen_phase_is_established_before_within():
-    r = screen_text(CASE.format(gas="nitrogen 95% + hydrogen 5%", rated="300 bar(g)", fill="200 bar(g)"))
+    r = screen_text(CASE.format(gas="nitrogen 95% + hydrogen 5%", rated="300 bar(g)", fill="200 bar(g)")).to_json()
     assert r["verdict"] == "within"
     assert r["models"]["reference"]["applicable"] and r["models"]["generalized"]["applicable"]
     assert r["models"]["reference"]["phase_fill"] == "supercritical"
@@ -161,7 +161,7 @@ def test_cannot_be_established_is_said_once_in_the_result(monkeypatch):
         return mix.PhaseAnswer(None, (), mix.CANNOT)
 
     monkeypatch.setattr(ref_mod.ReferenceFluid, "mixture_phase", never)
-    r = screen_text(CASE.format(gas="argon 93% + carbon dioxide 7%", rated="300 bar(g)", fill="200 bar(g)"))
+    r = screen_text(CASE.format(gas="argon 93% + carbon dioxide 7%", rated="300 bar(g)", fill="200 bar(g)")).to_json()
     assert r["verdict"] == "out-of-scope"
     text = " ".join(r["reasons"])
     assert text.count(mix.CANNOT) == 1, text
@@ -183,7 +183,7 @@ def test_gas_listing_names_the_models_of_each_trade_mixture():
 
 
 def test_calibration_mixture_without_fitted_pair_is_screened_with_its_phase_by_the_cubic_route():
-    r = screen_text(CASE.format(gas="nitrogen + 50 ppm sulfur dioxide", rated="300 bar(g)", fill="200 bar(g)"))
+    r = screen_text(CASE.format(gas="nitrogen + 50 ppm sulfur dioxide", rated="300 bar(g)", fill="200 bar(g)")).to_json()
     assert not r["models"]["reference"]["applicable"]
     assert "no binary interaction parameters" in r["models"]["reference"]["note"]
     gen = r["models"]["generalized"]
@@ -196,7 +196,7 @@ def test_calibration_mixture_without_fitted_pair_is_screened_with_its_phase_by_t
 
 
 def test_mixture_without_fitted_pair_that_condenses_is_refused():
-    r = screen_text(CASE.format(gas="nitrogen + 10 % sulfur dioxide", rated="300 bar(g)", fill="200 bar(g)"))
+    r = screen_text(CASE.format(gas="nitrogen + 10 % sulfur dioxide", rated="300 bar(g)", fill="200 bar(g)")).to_json()
     assert r["verdict"] == "out-of-scope"
     assert "two phases" in " ".join(r["reasons"])
 
@@ -216,7 +216,7 @@ def test_the_phase_checks_of_one_screening_share_a_time_bound(monkeypatch):
     monkeypatch.setattr(mix, "CASE_TIME_BOUND", 1.0)
     monkeypatch.setattr(mix, "PHASE_TIME_BOUND", 1.0)
     t0 = time.monotonic()
-    r = screen_text(CASE.format(gas="argon 91% + carbon dioxide 9%", rated="300 bar(g)", fill="210 bar(g)"))
+    r = screen_text(CASE.format(gas="argon 91% + carbon dioxide 9%", rated="300 bar(g)", fill="210 bar(g)")).to_json()
     elapsed = time.monotonic() - t0
     assert elapsed < 1.0 + slow + 2.0     # the bound, one step that was running, and the models' own work
     text = " ".join(r["reasons"]) + " ".join(str(m["note"]) for m in r["models"].values())
@@ -226,7 +226,7 @@ def test_the_phase_checks_of_one_screening_share_a_time_bound(monkeypatch):
 
 def test_the_phase_checks_of_one_screening_are_bounded_in_number(monkeypatch):
     monkeypatch.setattr(mix, "CASE_CHECK_BOUND", 0)
-    r = screen_text(CASE.format(gas="argon 90.5% + carbon dioxide 9.5%", rated="300 bar(g)", fill="205 bar(g)"))
+    r = screen_text(CASE.format(gas="argon 90.5% + carbon dioxide 9.5%", rated="300 bar(g)", fill="205 bar(g)")).to_json()
     assert r["verdict"] == "out-of-scope"
     text = " ".join(r["reasons"])
     assert text.count("this screening needed more than its 0 phase checks") == 1

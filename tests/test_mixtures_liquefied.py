@@ -41,7 +41,7 @@ def test_two_phase_blend_peak_is_its_bubble_pressure(gas):
     # source: CoolProp PropsSI on the mixture string (bubble point, Q = 0)
     rho_l = CP.PropsSI("Dmolar", "T", t_peak, "Q", 0, _heos(names, z))
     mass = 0.5 * rho_l * M * 0.020
-    r = screen_text(CASE.format(v=20, rated="60 bar(g)", gas=gas, m=f"{mass:.6f}", hot=50))
+    r = screen_text(CASE.format(v=20, rated="60 bar(g)", gas=gas, m=f"{mass:.6f}", hot=50)).to_json()
     ref = r["models"]["reference"]
     assert ref["applicable"], ref["note"]
     assert ref["phase_fill"] == "two-phase" and ref["phase_peak"] == "two-phase"
@@ -66,7 +66,7 @@ def test_zeotropic_glide_is_seen_between_dew_and_bubble():
 def test_blend_liquid_full_temperature_where_the_bubble_liquid_density_meets_the_fill():
     gas = "propane 60 % + n-butane 40 % by mass"
     names, z, M = _names_fractions(gas)
-    r = screen_text(CASE.format(v=26, rated="30 bar(g)", gas=gas, m="12.5", hot=65))
+    r = screen_text(CASE.format(v=26, rated="30 bar(g)", gas=gas, m="12.5", hot=65)).to_json()
     t_lf = r["limits"]["liquid_full_temperature_k"]
     assert t_lf is not None and 288.15 < t_lf < 338.15
     rho_fill = 12.5 / 0.026 / M
@@ -79,7 +79,7 @@ def test_blend_liquid_full_temperature_where_the_bubble_liquid_density_meets_the
 def test_blend_fill_limit_stops_at_the_liquid_full_point():
     gas = "propane 60 % + n-butane 40 % by mass"
     names, z, M = _names_fractions(gas)
-    r = screen_text(CASE.format(v=26, rated="30 bar(g)", gas=gas, m="10", hot=50))
+    r = screen_text(CASE.format(v=26, rated="30 bar(g)", gas=gas, m="10", hot=50)).to_json()
     lim = r["limits"]
     # source: CoolProp PropsSI, bubble-point liquid density of the blend at the worst case
     rho_l = CP.PropsSI("D", "T", 323.15, "Q", 0, _heos(names, z))
@@ -107,7 +107,7 @@ def test_new_liquefied_gas_by_mass_peaks_at_its_vapour_pressure(gas, fluid):
     # source: CoolProp PropsSI, saturated liquid density of the gas's reference equation at the worst case
     rho_l = CP.PropsSI("D", "T", t_peak, "Q", 0, fluid)
     mass = 0.5 * rho_l * 0.010
-    r = screen_text(CASE.format(v=10, rated="250 bar(g)", gas=gas, m=f"{mass:.6f}", hot=25))
+    r = screen_text(CASE.format(v=10, rated="250 bar(g)", gas=gas, m=f"{mass:.6f}", hot=25)).to_json()
     ref = r["models"]["reference"]
     assert ref["applicable"], ref["note"]
     # source: CoolProp PropsSI, vapour pressure of the reference equation
@@ -123,7 +123,7 @@ def test_new_gases_carry_their_hazards():
 
 
 def test_blend_result_states_its_mixing_rules():
-    r = screen_text(CASE.format(v=26, rated="30 bar(g)", gas="R-407C", m="10", hot=40))
+    r = screen_text(CASE.format(v=26, rated="30 bar(g)", gas="R-407C", m="10", hot=40)).to_json()
     rule = r["models"]["reference"]["mixing_rule"]
     # source: CoolProp.get_mixture_binary_pair_data names Lemmon (2004) for the HFC pairs (CoolProp 8.0.0)
     assert CP.get_mixture_binary_pair_data("354-33-6", "75-10-5", "BibTeX") == "Lemmon-JPCRD-2004"

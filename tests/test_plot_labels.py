@@ -7,6 +7,7 @@ axis label and legend entry of the drawn figure).
 from __future__ import annotations
 
 import itertools
+from dataclasses import replace
 from pathlib import Path
 
 import pytest
@@ -70,7 +71,7 @@ def test_coinciding_model_curves_are_drawn_once_and_named_together(results):
 def test_liquid_full_line_meeting_the_worst_case_line_is_drawn_once():
     # A result whose liquid-full temperature equals its worst-case temperature: one vertical line, one name.
     result = screen_case(load_case(CASES[[p.stem for p in CASES].index("kq-co2-002")]))
-    result = dict(result, limits=dict(result["limits"], liquid_full_temperature_k=result["worst_case_temperature_k"]))
+    result = replace(result, limits=replace(result.limits, liquid_full_temperature_k=result.worst_case_temperature_k))
     fig = plot.plot_svg(result, return_figure=True)
     labels = [t for t, _ in plot.text_boxes(fig)]
     assert any("Worst-case temperature" in t and "liquid-full" in t for t in labels)

@@ -162,7 +162,7 @@ def test_the_column_unit_applies_to_a_default_value(tmp_path):
     from screening.batch import run_inventory
 
     rs = run_inventory(inv_, load_defaults(d, inv_.columns))
-    assert rs[0]["verdict"] == "within" and rs[0]["peak_pressure_pa"] == rs[1]["peak_pressure_pa"]
+    assert rs[0].verdict == "within" and rs[0].peak_pressure_pa == rs[1].peak_pressure_pa
     # without a column to take the unit from, a bare number is refused at once, in the defaults file
     inv2 = write(tmp_path, HEAD.replace(",ambient_max", "") + "A,nitrogen,50 L,300 bar(g),200 bar(g),15 degC\n",
                  "i2.csv")

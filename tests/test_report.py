@@ -10,6 +10,7 @@ import datetime as dt
 import hashlib
 import json
 import os
+from dataclasses import replace
 from pathlib import Path
 
 import pytest
@@ -20,8 +21,10 @@ from screening.errors import InputError
 from screening.outputs import report as report_mod
 from screening.outputs.report import VERDICTS, render_pdf_bytes, render_report, templates_dir
 from screening.outputs.verify import verify_report
+from screening.result import Result
 from screening.screen import screen_text
 from screening.units import format_percent, format_pressure
+from screening.verdicts import Verdict
 
 ROOT = Path(__file__).resolve().parents[1]
 CASES = sorted((ROOT / "cases").glob("*.toml"))
@@ -84,39 +87,39 @@ def test_each_demo_case_renders_with_its_numbers(case, outdir):
     assert _flat(CAUTION) in pages[0]
 
     # verdict in words and its code, first page
-    verdict = result["verdict"]
+    verdict = result.verdict
     assert _flat(VERDICTS[verdict]["label"]) in pages[0]
     assert f"Result code: {verdict}" in pages[0]
-    for reason in result["reasons"]:
+    for reason in result.reasons:
         assert _flat(reason) in whole
 
     # document id (title block and every footer)
-    doc_id = result["input_sha256"][:12]
+    doc_id = result.input_sha256[:12]
     assert all(doc_id in page for page in pages)
 
     # peak pressure and margin in the units the user wrote (a pressure entered in psig is shown in psig)
-    entered_unit = next(i["entered"].split()[-1] for i in result["inputs"] if i["si_unit"].startswith("Pa"))
-    atm = result["site"]["atmospheric_pressure_pa"]
+    entered_unit = next(i.entered.split()[-1] for i in result.inputs if i.si_unit.startswith("Pa"))
+    atm = result.site.atmospheric_pressure_pa
 
     def shown(p_abs):
         value = format_pressure(p_abs, entered_unit, atm).split()[0]
         return f"{value} {entered_unit}"
 
-    if result["peak_pressure_pa"] is not None:
-        assert _flat(shown(result["peak_pressure_pa"])) in pages[0]
-    if result["margin_fraction"] is not None:
-        assert _flat(format_percent(result["margin_fraction"])) in pages[0]
-    assert _flat(shown(result["rated_pressure_pa"])) in pages[0]
+    if result.peak_pressure_pa is not None:
+        assert _flat(shown(result.peak_pressure_pa)) in pages[0]
+    if result.margin_fraction is not None:
+        assert _flat(format_percent(result.margin_fraction)) in pages[0]
+    assert _flat(shown(result.rated_pressure_pa)) in pages[0]
 
     # the method carries the references
     assert "doi:10.1002/aic.690210313" in whole
     assert "8.314462618" in whole
-    for ref in result["models"]["reference"].get("eos_references") or []:
+    for ref in result.models["reference"].eos_references or []:
         assert _flat(ref)[:40] in whole
 
     # metadata
     meta = PdfReader(str(pdf)).metadata
-    assert result["id"] in meta.title
+    assert result.id in meta.title
     assert f"verdict {verdict}" in meta["/Keywords"]
     assert meta["/CreationDate"].startswith("D:20261201")
 
@@ -126,11 +129,11 @@ def test_attachments_parse_back_to_case_and_result(case, outdir):
     text, result = screened(case)
     files = {name: copies[0] for name, copies in PdfReader(str(rendered(case, outdir))).attachments.items()}
     assert files[case.name].decode("utf-8") == text
-    assert hashlib.sha256(files[case.name]).hexdigest() == result["input_sha256"]
+    assert hashlib.sha256(files[case.name]).hexdigest() == result.input_sha256
     attached = json.loads(files[case.stem + ".result.json"].decode("utf-8"))
     # the attached result names the case file by its name only (no folder of the machine it was made on)
     assert attached["source"] == case.name
-    assert attached == json.loads(json.dumps(dict(result, source=case.name)))
+    assert attached == json.loads(json.dumps(dict(result.to_json(), source=case.name)))
 
 
 def test_two_renders_are_byte_identical(tmp_path):
@@ -156,7 +159,7 @@ def test_case_text_appears_literally_and_fetches_nothing(tmp_path, monkeypatch):
     lines = [ln for ln in base.splitlines() if not ln.startswith("description")]
     text = f"description = '{HOSTILE}'\n" + "\n".join(lines) + "\n"
     result = screen_text(text, "hostile.toml")
-    assert result["description"] == HOSTILE
+    assert result.description == HOSTILE
 
     fetched: list[str] = []
     real = report_mod._make_fetcher
@@ -209,10 +212,10 @@ def test_missing_stylesheet_fails_the_render(tmp_path, monkeypatch):
 
 def test_template_is_strict_about_missing_keys():
     text, result = screened(CASES[0])
-    broken = dict(result)
+    broken = result.to_json()
     del broken["verdict"]
     with pytest.raises(KeyError):
-        report_mod.render_html(broken, text, DATE)
+        report_mod.render_html(Result.from_json(broken), text, DATE)
 
 
 def test_directory_target_is_an_input_error(tmp_path):
@@ -275,22 +278,21 @@ def test_verify_agrees_on_a_fresh_report(outdir):
     ok, message = verify_report(rendered(CASES[0], outdir))
     assert ok, message
     _, result = screened(CASES[0])
-    assert result["verdict"] in message
-    assert message.count(repr(result["peak_pressure_pa"])) == 2 or result["peak_pressure_pa"] is None
+    assert result.verdict in message
+    assert message.count(repr(result.peak_pressure_pa)) == 2 or result.peak_pressure_pa is None
 
 
 def _first_with_peak() -> tuple[str, dict]:
     for case in CASES:
         text, result = screened(case)
-        if result["peak_pressure_pa"] is not None:
+        if result.peak_pressure_pa is not None:
             return text, result
     pytest.skip("no demo case with a peak pressure")
 
 
 def test_verify_disagrees_when_the_attached_peak_was_altered(tmp_path):
     text, result = _first_with_peak()
-    tampered = json.loads(json.dumps(result))
-    tampered["peak_pressure_pa"] *= 1.0 + 1e-6
+    tampered = replace(result, peak_pressure_pa=result.peak_pressure_pa * (1.0 + 1e-6))
     pdf = render_report(tampered, text, tmp_path / "tampered.pdf", report_date=DATE)
     ok, message = verify_report(pdf)
     assert not ok
@@ -299,8 +301,7 @@ def test_verify_disagrees_when_the_attached_peak_was_altered(tmp_path):
 
 def test_verify_disagrees_when_the_attached_verdict_was_altered(tmp_path):
     text, result = screened(CASES[0])
-    tampered = json.loads(json.dumps(result))
-    tampered["verdict"] = "over" if result["verdict"] != "over" else "within"
+    tampered = replace(result, verdict=Verdict.OVER if result.verdict != "over" else Verdict.WITHIN)
     pdf = render_report(tampered, text, tmp_path / "tampered.pdf", report_date=DATE)
     ok, _ = verify_report(pdf)
     assert not ok
@@ -332,10 +333,10 @@ def test_each_demo_case_says_what_its_worst_case_temperature_rests_on(case, outd
     assert numbers == list(range(1, len(numbers) + 1))
     whole = " ".join(pages_text(rendered(case, outdir)))
     assert "Worst-case temperature" in whole
-    assert _flat(str(result["worst_case_basis"])) in whole
-    if result["exposure"] is not None:
+    assert _flat(str(result.worst_case_basis)) in whole
+    if result.exposure is not None:
         assert "Energy balance on the sunlit wall" in whole
-    if result["tolerance"] is not None:
+    if result.tolerance is not None:
         assert "Input tolerances" in whole
     shows_diagram = report_mod.build_view(result, text, DATE)["phase"] is not None and \
         report_mod.build_view(result, text, DATE)["phase"]["plot_uri"] is not None

@@ -26,6 +26,7 @@ import pytest
 from screening import cli
 from screening.errors import InputError
 from screening.outputs.report import render_pdf_bytes, result_json
+from screening.result import Result
 from screening.screen import screen_file
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -48,6 +49,9 @@ gas_temperature = "65 degC"
 
 def _same_types(a, b, where: str = "result") -> None:
     """Equal values of equal types all the way down (a list stays a list, an int stays an int)."""
+    if isinstance(a, Result) or isinstance(b, Result):   # a typed result: compared as its JSON object
+        assert isinstance(b, Result), f"{where}: {type(b).__name__} is not a Result"
+        a, b = (x.to_json() if isinstance(x, Result) else x for x in (a, b))
     assert type(a) is type(b), f"{where}: {type(a).__name__} != {type(b).__name__}"
     if isinstance(a, dict):
         assert list(a) == list(b), f"{where}: keys or key order differ"
@@ -94,7 +98,7 @@ def test_report_command_from_a_fresh_process_writes_the_in_process_bytes(tmp_pat
     out = tmp_path / "n2.pdf"
     done = _cli("report", str(case), "-o", str(out), "--date", DATE.isoformat(), cwd=tmp_path)
     result = screen_file(case)
-    assert done.returncode == (0 if result["verdict"] == "within" else 1), done.stderr
+    assert done.returncode == (0 if result.verdict == "within" else 1), done.stderr
     assert done.stdout == f"report written: {out}\n" and done.stderr == ""
     assert out.read_bytes() == render_pdf_bytes(result, case.read_text(encoding="utf-8"), report_date=DATE)
     assert [p.name for p in tmp_path.iterdir()] == ["n2.pdf"]  # no temporary file left beside it
@@ -106,8 +110,8 @@ def test_check_json_with_pdf_from_a_fresh_process_prints_and_writes_what_the_in_
     out = tmp_path / "c3h8.pdf"
     done = _cli("check", str(case), "--json", "--pdf", str(out), "--date", DATE.isoformat(), cwd=tmp_path)
     result = screen_file(case)
-    assert done.returncode == (0 if result["verdict"] == "within" else 1), done.stderr
-    assert done.stdout == json.dumps(result, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+    assert done.returncode == (0 if result.verdict == "within" else 1), done.stderr
+    assert done.stdout == json.dumps(result.to_json(), indent=2, ensure_ascii=False, allow_nan=False) + "\n"
     assert done.stderr == f"report written: {out}\n"
     assert out.read_bytes() == render_pdf_bytes(result, case.read_text(encoding="utf-8"), report_date=DATE)
 
@@ -289,7 +293,7 @@ def test_the_child_screens_a_read_case_without_the_unit_registry():
             "import screening.units as u\n"
             "assert type(u.ureg).__name__ == '_RegistryOnFirstUse'\n"
             "assert u.parse('50 L', 'volume').si() > 0 and type(u.ureg).__name__ == 'UnitRegistry'\n"
-            "sys.stdout.write(json.dumps(result))\n")
+            "sys.stdout.write(json.dumps(result.to_json()))\n")
     done = subprocess.run([sys.executable, "-c", code], input=pickle.dumps(load_case(case)), cwd=ROOT,
                           capture_output=True)
     assert done.returncode == 0, done.stderr.decode()

@@ -4,6 +4,7 @@ on the first pages, one batch-PDF page per vessel, and an action line on every r
 from __future__ import annotations
 
 import datetime as dt
+from dataclasses import replace
 from pathlib import Path
 
 import pytest
@@ -13,6 +14,7 @@ from screening.inputs.case import load_case
 from screening.outputs.actions import action_line
 from screening.outputs.report import render_report
 from screening.screen import screen_case
+from screening.verdicts import Verdict
 
 ROOT = Path(__file__).resolve().parent.parent
 CASES = sorted((ROOT / "cases").glob("*.toml"))
@@ -32,9 +34,9 @@ def rendered(tmp_path_factory):
 
 
 def _liquefied_or_several(result) -> bool:
-    ref = (result["models"].get("reference") or {})
-    phases = {result["fill"].get("phase"), ref.get("phase_fill"), ref.get("phase_peak")}
-    return bool(phases & {"liquid", "two-phase"}) or len(result.get("scenarios") or []) > 1
+    ref = result.models["reference"]
+    phases = {result.fill.phase, ref.phase_fill, ref.phase_peak}
+    return bool(phases & {"liquid", "two-phase"}) or len(result.scenarios) > 1
 
 
 @pytest.mark.parametrize("case", [p.stem for p in CASES])
@@ -48,8 +50,8 @@ def test_demo_report_fits_its_page_budget(rendered, case):
 def test_verdict_numbers_and_plot_come_first(rendered, case):
     result, pages = rendered[case]
     first = " ".join(" ".join(pages[:2]).split())
-    assert "Result code: " + result["verdict"] in " ".join(pages[0].split())
-    if result["peak_pressure_pa"] is not None:
+    assert "Result code: " + result.verdict in " ".join(pages[0].split())
+    if result.peak_pressure_pa is not None:
         assert "Peak pressure" in first and "Margin to rated" in first
         assert "Pressure against gas temperature along the fill isochore" in first
     # the method, references and case file are in the appendix, after the results
@@ -63,7 +65,7 @@ def test_every_result_but_within_says_what_would_make_it_pass(rendered, case):
     result, pages = rendered[case]
     line = action_line(result)
     whole = " ".join(" ".join(pages).split())
-    if result["verdict"] == "within":
+    if result.verdict == "within":
         assert line is None and "What would make it pass" not in whole
     else:
         assert line and "What would make it pass" in " ".join(pages[0].split())
@@ -98,11 +100,8 @@ gas_temperature = "65 degC"
 def test_action_line_moves_a_vessel_out_of_the_sun_where_a_shaded_scenario_passes():
     # Formatting only: a result whose sunny scenario governs and whose shaded one is within.
     result = screen_case(load_case(ROOT / "cases" / "kq-n2-031.toml"))
-    scenarios = [dict(sc) for sc in result["scenarios"]]
-    for sc in scenarios:
-        sc["governing"] = bool(sc.get("exposure"))
-        if sc.get("exposure"):
-            sc["verdict"] = "low-margin"
-    result = dict(result, verdict="low-margin", scenarios=scenarios)
+    scenarios = tuple(replace(sc, governing=bool(sc.exposure),
+                              verdict=Verdict.LOW_MARGIN if sc.exposure else sc.verdict) for sc in result.scenarios)
+    result = replace(result, verdict=Verdict.LOW_MARGIN, scenarios=scenarios)
     line = action_line(result)
     assert line.startswith("To pass: move it out of the sun (scenario \u2018store, shaded\u2019 is within)")

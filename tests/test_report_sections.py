@@ -96,11 +96,11 @@ def whole(name: str) -> str:
 
 
 def P(result: dict, pa: float) -> str:
-    return _flat(format_pressure(pa, result["display_units"]["pressure"], result["site"]["atmospheric_pressure_pa"]))
+    return _flat(format_pressure(pa, result.display_units["pressure"], result.site.atmospheric_pressure_pa))
 
 
 def T(result: dict, k: float) -> str:
-    return _flat(format_temperature(k, result["display_units"]["temperature"]))
+    return _flat(format_temperature(k, result.display_units["temperature"]))
 
 
 # ----------------------------------------------------------------------------- every page, every case
@@ -125,22 +125,22 @@ def test_sections_are_numbered_in_order(name):
 
 def test_co2_has_the_phase_diagram_and_the_filling_ratio_paragraph():
     text, result, pages = case("co2")
-    assert result["phase_diagram"] is not None and result["fill"]["phase"] == "two-phase"
+    assert result.phase_diagram is not None and result.fill.phase == "two-phase"
     view = build_view(result, text, DATE)
     assert view["phase"] is not None and view["phase"]["plot_uri"].startswith("data:image/svg+xml;base64,")
     w = whole("co2")
     assert "Phase and filling ratio" in w
     assert "Phase diagram, pressure against temperature" in w
-    fill, limits, vessel = result["fill"], result["limits"], result["vessel"]
-    assert f"filling ratio of {num(fill['filling_ratio_kg_per_l'], 4)} kg/L" in w
-    assert f"largest allowed filling ratio of {num(vessel['max_filling_ratio_kg_per_l'], 4)} kg/L" in w
+    fill, limits, vessel = result.fill, result.limits, result.vessel
+    assert f"filling ratio of {num(fill.filling_ratio_kg_per_l, 4)} kg/L" in w
+    assert f"largest allowed filling ratio of {num(vessel.max_filling_ratio_kg_per_l, 4)} kg/L" in w
     # the liquid-full temperature and what it means
-    assert limits["liquid_full_temperature_k"] is not None
-    assert T(result, limits["liquid_full_temperature_k"]) in w
+    assert limits.liquid_full_temperature_k is not None
+    assert T(result, limits.liquid_full_temperature_k) in w
     assert "the liquid-full temperature, it fills the whole vessel" in w
     assert "rises by many bar per kelvin" in w
     # the highest fill mass with its basis
-    assert _flat(f"(filling ratio {num(limits['max_filling_ratio_kg_per_l'], 4)} kg/L), set by {limits['max_fill_mass_basis']}") in w
+    assert _flat(f"(filling ratio {num(limits.max_filling_ratio_kg_per_l, 4)} kg/L), set by {limits.max_fill_mass_basis}") in w
     # the method section says why only the reference model applies
     assert "Liquid in the vessel." in w
     assert "two-phase at fill" in w
@@ -151,7 +151,7 @@ def test_co2_has_the_phase_diagram_and_the_filling_ratio_paragraph():
 def test_nitrogen_has_no_phase_diagram():
     for name in ("n2", "n2-scenarios"):
         text, result, _ = case(name)
-        assert result["gas"]["kind"] == "permanent"
+        assert result.gas.kind == "permanent"
         assert build_view(result, text, DATE)["phase"] is None
         w = whole(name)
         assert "Phase diagram" not in w and "Phase and filling ratio" not in w
@@ -172,7 +172,7 @@ def test_a_mixture_that_can_liquefy_says_why_there_is_no_diagram(tmp_path):
     text = CO2.replace('gas = "carbon dioxide"\nmass = "30 kg"', 'gas = "argon 82% + carbon dioxide 18%"\n'
                        'pressure = "200 bar(g)"').replace('max_filling_ratio = "0.75 kg/L"\n', "")
     result = screen_text(text, "mix.toml")
-    if result["phase_diagram"] is not None or not plot_mod.phase_diagram_wanted(result):
+    if result.phase_diagram is not None or not plot_mod.phase_diagram_wanted(result):
         pytest.skip("this mixture does not exercise the no-diagram branch")
     view = build_view(result, text, DATE)
     assert view["phase"]["plot_uri"] is None
@@ -183,34 +183,34 @@ def test_a_mixture_that_can_liquefy_says_why_there_is_no_diagram(tmp_path):
 
 def test_energy_balance_table_and_its_notes():
     _, result, _ = case("n2-scenarios")
-    b = result["exposure"]
-    assert b is not None and result["governing_scenario"] == "yard, full sun"
+    b = result.exposure
+    assert b is not None and result.governing_scenario == "yard, full sun"
     w = whole("n2-scenarios")
     assert "Energy balance on the sunlit wall" in w
     for key in ("absorbed_w_m2", "convected_w_m2", "radiated_w_m2"):
-        assert _flat(f"{num(b[key], 2)} W/m²") in w, key
-    assert _flat(f"absorbed = convected + radiated: {num(b['absorbed_w_m2'], 2)} W/m² = "
-                 f"{num(b['convected_w_m2'], 2)} W/m² + {num(b['radiated_w_m2'], 2)} W/m²") in w
+        assert _flat(f"{num(getattr(b, key), 2)} W/m²") in w, key
+    assert _flat(f"absorbed = convected + radiated: {num(b.absorbed_w_m2, 2)} W/m² = "
+                 f"{num(b.convected_w_m2, 2)} W/m² + {num(b.radiated_w_m2, 2)} W/m²") in w
     assert "estimated from the water capacity" in w
-    assert f"{num(b['irradiance_w_m2'], 0)} W/m²" in w
-    assert "Solar absorptivity of the surface " + num(b["absorptivity"], 2) in w
-    assert "Long-wave emissivity of the surface " + num(b["emissivity"], 2) in w
-    assert "Ground albedo (solar reflectance) " + num(b["ground_albedo"], 2) in w
-    assert T(result, b["sky_temperature_k"]) in w
-    assert T(result, b["wall_temperature_k"]) in w
-    for note in b["notes"]:
+    assert f"{num(b.irradiance_w_m2, 0)} W/m²" in w
+    assert "Solar absorptivity of the surface " + num(b.absorptivity, 2) in w
+    assert "Long-wave emissivity of the surface " + num(b.emissivity, 2) in w
+    assert "Ground albedo (solar reflectance) " + num(b.ground_albedo, 2) in w
+    assert T(result, b.sky_temperature_k) in w
+    assert T(result, b.wall_temperature_k) in w
+    for note in b.notes:
         assert _flat(note) in w, note
     # the convection term multiplied out
-    assert _flat(f"= {num(b['h_convection_w_m2k'], 4)} W/(m²·K) × ({num(b['wall_temperature_k'], 2)} K − "
-                 f"{num(b['ambient_k'], 2)} K) = {num(b['convected_w_m2'], 2)} W/m²") in w
+    assert _flat(f"= {num(b.h_convection_w_m2k, 4)} W/(m²·K) × ({num(b.wall_temperature_k, 2)} K − "
+                 f"{num(b.ambient_k, 2)} K) = {num(b.convected_w_m2, 2)} W/m²") in w
 
 
 def test_without_sun_one_sentence_names_the_basis():
     _, result, _ = case("n2")
-    assert result["exposure"] is None
+    assert result.exposure is None
     w = whole("n2")
-    assert _flat(f"The worst-case gas temperature, {T(result, result['worst_case_temperature_k'])}, is the "
-                 f"{result['worst_case_basis']}.") in w
+    assert _flat(f"The worst-case gas temperature, {T(result, result.worst_case_temperature_k)}, is the "
+                 f"{result.worst_case_basis}.") in w
     assert "Energy balance on the sunlit wall" not in w
     assert "Input tolerances" not in w
 
@@ -219,22 +219,22 @@ def test_scenario_table_marks_the_governing_one_in_words():
     _, result, _ = case("n2-scenarios")
     w = whole("n2-scenarios")
     assert "Worst-case temperature and scenarios" in w
-    gov = [s for s in result["scenarios"] if s["governing"]]
-    assert len(gov) == 1 and gov[0]["name"] == result["governing_scenario"]
-    for s in result["scenarios"]:
-        word = VERDICTS[s["verdict"]]["label"]
-        row = _flat(f"{T(result, s['worst_case_temperature_k'])} {s['worst_case_basis']} "
-                    f"{P(result, s['peak_pressure_pa'])} {format_percent(s['margin_fraction'])}")
+    gov = [s for s in result.scenarios if s.governing]
+    assert len(gov) == 1 and gov[0].name == result.governing_scenario
+    for s in result.scenarios:
+        word = VERDICTS[s.verdict]["label"]
+        row = _flat(f"{T(result, s.worst_case_temperature_k)} {s.worst_case_basis} "
+                    f"{P(result, s.peak_pressure_pa)} {format_percent(s.margin_fraction)}")
         # names and verdict words may wrap inside their cells; the numbers of the row stay together
-        assert row in w, s["name"]
+        assert row in w, s.name
         assert _flat(word) in w
     assert w.count("◀ governs") == 1
-    assert _flat(f"{VERDICTS[gov[0]['verdict']]['label']} ◀ governs") in w
+    assert _flat(f"{VERDICTS[gov[0].verdict]['label']} ◀ governs") in w
 
 
 def test_a_single_scenario_has_no_scenario_table():
     text, result, _ = case("n2")
-    assert len(result["scenarios"]) == 1
+    assert len(result.scenarios) == 1
     assert build_view(result, text, DATE)["scenarios"] is None
     assert "◀ governs" not in whole("n2")
 
@@ -243,48 +243,48 @@ def test_a_single_scenario_has_no_scenario_table():
 
 def test_tolerance_section_shows_nominal_and_bounding_side_by_side():
     _, result, _ = case("n2-scenarios")
-    tol = result["tolerance"]
-    assert tol is not None and result["peak_pressure_pa"] == tol["bounding_peak_pressure_pa"]
+    tol = result.tolerance
+    assert tol is not None and result.peak_pressure_pa == tol.bounding_peak_pressure_pa
     w = whole("n2-scenarios")
     assert "Input tolerances" in w
     assert "Nominal Bounding corner" in w
-    corner = tol["bounding_corner"]
-    assert _flat(f"Fill pressure {P(result, result['fill']['pressure_pa'])} {P(result, corner['fill_pressure_pa'])}") in w
-    assert _flat(f"Fill temperature {T(result, result['fill']['temperature_k'])} "
-                 f"{T(result, corner['fill_temperature_k'])}") in w
-    assert _flat(f"Worst-case gas temperature {T(result, result['worst_case_temperature_k'])} "
-                 f"{T(result, corner['worst_case_temperature_k'])}") in w
-    assert P(result, tol["nominal_peak_pressure_pa"]) in w and P(result, tol["bounding_peak_pressure_pa"]) in w
+    corner = tol.bounding_corner
+    assert _flat(f"Fill pressure {P(result, result.fill.pressure_pa)} {P(result, corner.fill_pressure_pa)}") in w
+    assert _flat(f"Fill temperature {T(result, result.fill.temperature_k)} "
+                 f"{T(result, corner.fill_temperature_k)}") in w
+    assert _flat(f"Worst-case gas temperature {T(result, result.worst_case_temperature_k)} "
+                 f"{T(result, corner.worst_case_temperature_k)}") in w
+    assert P(result, tol.nominal_peak_pressure_pa) in w and P(result, tol.bounding_peak_pressure_pa) in w
     # the bands as entered, and their half-widths
-    for key, entered in tol["entered"].items():
+    for key, entered in tol.entered.items():
         assert _flat(f"tolerance.{key} {entered}") in w
-    assert _flat(f"± {num(tol['fill_pressure_band_pa'] / 1e5, 2)} bar") in w
-    assert _flat(f"± {num(tol['gas_temperature_band_k'], 2)} K") in w
+    assert _flat(f"± {num(tol.fill_pressure_band_pa / 1e5, 2)} bar") in w
+    assert _flat(f"± {num(tol.gas_temperature_band_k, 2)} K") in w
     # sensitivities in display units (bar per kelvin here) and dimensionless
-    s = tol["sensitivities"]
-    assert f"{num(s['dp_peak_dt_gas'] / 1e5, 4)} bar/K" in w
-    assert f"{num(s['dp_peak_dt_fill'] / 1e5, 4)} bar/K".replace("-", "−") in w
-    assert f"{num(s['dp_peak_dp_fill'], 4)} (dimensionless)" in w
-    assert tol["expected_corner_confirmed"]
-    assert f"{tol['corners_evaluated']} corner evaluated" in w
+    s = tol.sensitivities
+    assert f"{num(s.dp_peak_dt_gas / 1e5, 4)} bar/K" in w
+    assert f"{num(s.dp_peak_dt_fill / 1e5, 4)} bar/K".replace("-", "−") in w
+    assert f"{num(s.dp_peak_dp_fill, 4)} (dimensionless)" in w
+    assert tol.expected_corner_confirmed
+    assert f"{tol.corners_evaluated} corner evaluated" in w
     # the first page names both peaks
     first = case("n2-scenarios")[2][0]
     assert "Peak pressure, bounding the input tolerances" in first
-    assert P(result, tol["nominal_peak_pressure_pa"]) in first
+    assert P(result, tol.nominal_peak_pressure_pa) in first
 
 
 def test_isochore_plot_draws_the_tolerance_band_and_the_bounding_curve():
     _, result, _ = case("n2-scenarios")
-    assert result["curves"].get("bounding") and result["curves"]["bounding_model"]
+    assert result.curves.bounding and result.curves.bounding_model
     svg = plot_mod.plot_svg(result)
     assert "fill at the bounding corner" in svg
     assert "Worst-case temperature ± 3 K (tolerance)" in svg
     assert "Bounding peak (verdict)" in svg
     # the star sits at the bounding corner, where the bounding peak is reached
-    assert plot_mod.worst_case_point_temperature(result) == result["tolerance"]["bounding_corner"][
-        "worst_case_temperature_k"]
+    assert plot_mod.worst_case_point_temperature(result) == result.tolerance.bounding_corner\
+        .worst_case_temperature_k
     _, plain, _ = case("n2")
-    assert plot_mod.worst_case_point_temperature(plain) == plain["worst_case_temperature_k"]
+    assert plot_mod.worst_case_point_temperature(plain) == plain.worst_case_temperature_k
     assert "(tolerance)" not in plot_mod.plot_svg(plain)
 
 
@@ -296,7 +296,7 @@ HOSTILE = '<img src="file:///etc/passwd"> {{ 7*7 }} <b>x</b>'
 def test_scenario_names_and_tolerance_text_are_only_escaped_text(tmp_path):
     text = N2_SCENARIOS.replace('name = "closed van"', f"name = '{HOSTILE}'")
     result = screen_text(text, "hostile.toml")
-    assert any(s["name"] == HOSTILE for s in result["scenarios"])
+    assert any(s.name == HOSTILE for s in result.scenarios)
     html = report_mod.render_html(result, text, DATE)
     assert "<img src=\"file:///etc/passwd\">" not in html
     assert "<b>x</b>" not in html

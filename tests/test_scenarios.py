@@ -31,13 +31,13 @@ def base(p=200.0, t=15.0, amb=40.0):
 
 
 def test_no_sun_gives_the_ambient_temperature():
-    r = screen_text(base() + 'solar = "none"\n')
+    r = screen_text(base() + 'solar = "none"\n').to_json()
     assert r["worst_case_temperature_k"] == pytest.approx(313.15)
     assert r["exposure"] is None
 
 
 def test_sun_raises_the_gas_temperature_and_the_balance_closes():
-    r = screen_text(base() + 'solar = "sun"\nfinish = "medium grey paint"\n')
+    r = screen_text(base() + 'solar = "sun"\nfinish = "medium grey paint"\n').to_json()
     b = r["exposure"]
     assert r["worst_case_temperature_k"] == pytest.approx(b["wall_temperature_k"])
     assert b["wall_temperature_k"] > 313.15
@@ -46,9 +46,9 @@ def test_sun_raises_the_gas_temperature_and_the_balance_closes():
 
 
 def test_black_is_hotter_than_white_and_wind_cools():
-    black = screen_text(base() + 'solar = "sun"\nfinish = "black paint"\n')
-    white = screen_text(base() + 'solar = "sun"\nfinish = "white paint"\n')
-    windy = screen_text(base() + 'solar = "sun"\nfinish = "black paint"\nwind_speed = "3 m/s"\n')
+    black = screen_text(base() + 'solar = "sun"\nfinish = "black paint"\n').to_json()
+    white = screen_text(base() + 'solar = "sun"\nfinish = "white paint"\n').to_json()
+    windy = screen_text(base() + 'solar = "sun"\nfinish = "black paint"\nwind_speed = "3 m/s"\n').to_json()
     assert black["worst_case_temperature_k"] > white["worst_case_temperature_k"]
     assert windy["worst_case_temperature_k"] < black["worst_case_temperature_k"]
     assert black["peak_pressure_pa"] > white["peak_pressure_pa"]
@@ -68,7 +68,7 @@ SCENARIOS = base(amb=35.0) + textwrap.dedent("""\
 
 
 def test_each_scenario_is_screened_and_the_worst_governs():
-    r = screen_text(SCENARIOS)
+    r = screen_text(SCENARIOS).to_json()
     names = [s["name"] for s in r["scenarios"]]
     assert names == ["store, shaded", "yard, full sun", "closed van"]
     assert r["governing_scenario"] == "closed van"
@@ -83,7 +83,7 @@ def test_each_scenario_is_screened_and_the_worst_governs():
 
 def test_tolerances_give_a_bounding_peak_above_the_nominal():
     r = screen_text(base() + '[tolerance]\nfill_pressure = "2 bar"\nfill_temperature = "2 K"\n'
-                    'gas_temperature = "3 K"\n')
+                    'gas_temperature = "3 K"\n').to_json()
     tol = r["tolerance"]
     assert tol["bounding_peak_pressure_pa"] > tol["nominal_peak_pressure_pa"]
     assert r["peak_pressure_pa"] == tol["bounding_peak_pressure_pa"]
@@ -94,9 +94,9 @@ def test_tolerances_give_a_bounding_peak_above_the_nominal():
 
 
 def test_percent_of_full_scale_tolerance():
-    r = screen_text(base() + '[tolerance]\nfill_pressure = "1.6 % of 400 bar"\n')
+    r = screen_text(base() + '[tolerance]\nfill_pressure = "1.6 % of 400 bar"\n').to_json()
     assert r["tolerance"]["fill_pressure_band_pa"] == pytest.approx(0.016 * 400e5)
-    r = screen_text(base() + '[tolerance]\nfill_pressure = "1 %"\n')
+    r = screen_text(base() + '[tolerance]\nfill_pressure = "1 %"\n').to_json()
     assert r["tolerance"]["fill_pressure_band_pa"] == pytest.approx(0.01 * 200e5)
 
 
@@ -107,11 +107,11 @@ def test_bounding_peak_is_at_least_every_corner(dp, dtf, dtg, p):
     dp, dtf, dtg, p = (round(x, 3) for x in (dp, dtf, dtg, p))  # the same numbers in every case text
     text = base(p=p) + f'[tolerance]\nfill_pressure = "{dp:.4f} bar"\nfill_temperature = "{dtf:.4f} K"\n' \
                        f'gas_temperature = "{dtg:.4f} K"\n'
-    bounding = screen_text(text)["peak_pressure_pa"]
+    bounding = screen_text(text).to_json()["peak_pressure_pa"]
     for a in (-1, 1):
         for b in (-1, 1):
             for c in (-1, 1):
-                corner = screen_text(base(p=p + a * dp, t=15.0 + b * dtf, amb=40.0 + c * dtg))
+                corner = screen_text(base(p=p + a * dp, t=15.0 + b * dtf, amb=40.0 + c * dtg)).to_json()
                 assert bounding >= corner["peak_pressure_pa"] * (1 - 1e-9)
 
 

@@ -8,6 +8,7 @@ import os
 import shutil
 import subprocess
 from pathlib import Path
+from types import SimpleNamespace
 
 import pytest
 from pypdf import PdfReader
@@ -94,7 +95,7 @@ def test_rounded_margins_never_contradict_the_comparison():
     verdict, reasons, _, _ = decide(peak=peak, rated=rated, relief=None, atm=atm, required_margin=0.10,
                                     any_real_model=True, out_of_scope_reason=None)
     assert verdict == "low-margin"
-    assert reasons_shown({"reasons": reasons}) == ["The peak pressure stays within the rating but the margin, "
+    assert reasons_shown(SimpleNamespace(reasons=tuple(reasons))) == ["The peak pressure stays within the rating but the margin, "
                                                    "9.96 %, is below the required 10.00 %."]
 
 

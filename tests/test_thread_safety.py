@@ -30,7 +30,7 @@ def _cases() -> list[tuple[str, str]]:
 
 
 def _answer(name: str, text: str) -> str:
-    return json.dumps(screen_text(text, source=name), sort_keys=True, allow_nan=False)
+    return json.dumps(screen_text(text, source=name).to_json(), sort_keys=True, allow_nan=False)
 
 
 def test_eight_threads_screening_at_once_give_the_sequential_answers():

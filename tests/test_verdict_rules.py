@@ -37,7 +37,7 @@ def _bar_g(p_abs: float) -> float:
 
 def test_overfilled_vessel_is_over_even_when_the_worst_case_is_colder_than_the_fill():
     r = screen_text(_case("nitrogen", 'pressure = "330 bar(g)"\ntemperature = "40 degC"',
-                          'ambient_max = "-40 degC"'))
+                          'ambient_max = "-40 degC"')).to_json()
     assert r["verdict"] == "over"
     # the fill state itself: 330 bar(g) at 40 °C, the pressure the vessel held then
     assert r["peak_pressure_pa"] == pytest.approx(330e5 + ATM, rel=1e-9)
@@ -52,7 +52,7 @@ def test_overfilled_vessel_is_over_even_when_the_worst_case_is_colder_than_the_f
 
 def test_cold_worst_case_screens_the_fill_state_with_the_reference_pressure():
     # nitrogen filled to 200 bar(g) at 30 °C, worst case 0 °C: the vessel held 200 bar(g) at fill
-    r = screen_text(_case("nitrogen", 'pressure = "200 bar(g)"\ntemperature = "30 degC"', 'ambient_max = "0 degC"'))
+    r = screen_text(_case("nitrogen", 'pressure = "200 bar(g)"\ntemperature = "30 degC"', 'ambient_max = "0 degC"')).to_json()
     ref = r["models"]["reference"]["peak_pressure_pa"]
     # CoolProp PropsSI: nitrogen at the fill density, evaluated back at the fill temperature
     rho = CP.PropsSI("Dmolar", "P", 200e5 + ATM, "T", 303.15, "Nitrogen")
@@ -69,7 +69,7 @@ def test_a_relief_device_set_just_above_the_peak_is_not_within():
     relief = _bar_g(peak) + 1.0
     r = screen_text(_case("nitrogen", 'pressure = "200 bar(g)"\ntemperature = "15 degC"',
                           'gas_temperature = "65 degC"',
-                          f'water_capacity = "50 L"\nrated_pressure = "300 bar(g)"\nrelief_set_pressure = "{relief:.3f} bar(g)"'))
+                          f'water_capacity = "50 L"\nrated_pressure = "300 bar(g)"\nrelief_set_pressure = "{relief:.3f} bar(g)"')).to_json()
     assert r["verdict"] == "low-margin"
     assert "relief device may open" in r["reasons"][0]
     assert r["relief_margin_fraction"] < r["required_margin_fraction"]
@@ -83,7 +83,7 @@ def test_a_fill_pressure_near_the_vapour_pressure_is_refused_and_asks_for_the_ma
     # CoolProp PropsSI: vapour pressure of carbon dioxide at 15 °C
     psat = CP.PropsSI("P", "T", 288.15, "Q", 0, "CO2")
     r = screen_text(_case("carbon dioxide", f'pressure = "{psat * fraction / 1e5:.4f} bar(a)"\ntemperature = "15 degC"',
-                          'ambient_max = "45 degC"', 'water_capacity = "40 L"\nrated_pressure = "250 bar(g)"'))
+                          'ambient_max = "45 degC"', 'water_capacity = "40 L"\nrated_pressure = "250 bar(g)"')).to_json()
     assert r["verdict"] == "out-of-scope"
     assert r["peak_pressure_pa"] is None
     assert "fill mass" in r["reasons"][0]
@@ -95,12 +95,12 @@ def test_a_co2_cylinder_that_holds_0_75_kg_per_litre_cannot_be_screened_by_its_g
     psat = CP.PropsSI("P", "T", 288.15, "Q", 0, "CO2")
     reading = psat - 0.8e5                      # within 1 bar of it, inside ordinary gauge error
     r = screen_text(_case("carbon dioxide", f'pressure = "{reading / 1e5:.3f} bar(a)"\ntemperature = "15 degC"',
-                          'ambient_max = "45 degC"', 'water_capacity = "40 L"\nrated_pressure = "250 bar(g)"'))
+                          'ambient_max = "45 degC"', 'water_capacity = "40 L"\nrated_pressure = "250 bar(g)"')).to_json()
     assert r["verdict"] != "within"
     # the same cylinder screened by its mass is liquid-full before 45 °C (CoolProp PropsSI saturated liquid density)
     assert CP.PropsSI("Dmass", "T", 318.15 - 15.0, "Q", 0, "CO2") < 750.0
     by_mass = screen_text(_case("carbon dioxide", 'mass = "30 kg"\ntemperature = "15 degC"', 'ambient_max = "45 degC"',
-                                'water_capacity = "40 L"\nrated_pressure = "250 bar(g)"'))
+                                'water_capacity = "40 L"\nrated_pressure = "250 bar(g)"')).to_json()
     assert by_mass["verdict"] != "within"
 
 
@@ -109,7 +109,7 @@ def test_a_near_critical_fill_is_refused_with_a_warning_naming_the_critical_poin
     tc, pc = CP.PropsSI("Tcrit", "CO2"), CP.PropsSI("pcrit", "CO2")
     r = screen_text(_case("carbon dioxide", f'pressure = "{(pc + 0.5e5) / 1e5:.3f} bar(a)"\n'
                                             f'temperature = "{tc + 0.5:.3f} K"',
-                          'ambient_max = "45 degC"', 'water_capacity = "40 L"\nrated_pressure = "250 bar(g)"'))
+                          'ambient_max = "45 degC"', 'water_capacity = "40 L"\nrated_pressure = "250 bar(g)"')).to_json()
     assert r["verdict"] == "out-of-scope"
     warning = next(w for w in r["warnings"] if w["code"] == "near-critical")
     assert f"{tc - 273.15:.1f} °C" in warning["message"]
@@ -123,7 +123,7 @@ def test_a_liquid_mixture_fill_is_not_screened_as_within():
     rho = CP.PropsSI("Dmass", "P", 200e5 + ATM, "T", 288.15, "HEOS::CO2[0.8]&Argon[0.2]")
     assert rho > 600.0
     r = screen_text(_case("carbon dioxide 80% + argon 20%", 'pressure = "200 bar(g)"\ntemperature = "15 degC"',
-                          'ambient_max = "45 degC"'))
+                          'ambient_max = "45 degC"')).to_json()
     assert r["verdict"] == "out-of-scope"
     assert r["peak_pressure_pa"] is None
 
@@ -132,7 +132,7 @@ def test_the_ideal_gas_governs_nothing_and_a_dense_fill_is_not_a_false_over():
     # ethylene at 0.3 kg/L heated to 40 °C: CoolProp PropsSI gives the real peak far below the ideal gas's
     peak_ref = CP.PropsSI("P", "T", 313.15, "Dmass", 300.0, "Ethylene")
     r = screen_text(_case("ethylene", 'mass = "15 kg"\ntemperature = "15 degC"', 'ambient_max = "40 degC"',
-                          'water_capacity = "50 L"\nrated_pressure = "250 bar(g)"'))
+                          'water_capacity = "50 L"\nrated_pressure = "250 bar(g)"')).to_json()
     assert r["models"]["reference"]["peak_pressure_pa"] == pytest.approx(peak_ref, rel=1e-6)
     assert r["models"]["ideal"]["peak_pressure_pa"] > 250e5
     assert r["governing_model"] != "ideal"
@@ -141,7 +141,7 @@ def test_the_ideal_gas_governs_nothing_and_a_dense_fill_is_not_a_false_over():
 
 
 def test_helium_is_governed_by_a_real_gas_model():
-    r = screen_text(_case("helium", 'pressure = "200 bar(g)"\ntemperature = "15 degC"', 'ambient_max = "65 degC"'))
+    r = screen_text(_case("helium", 'pressure = "200 bar(g)"\ntemperature = "15 degC"', 'ambient_max = "65 degC"')).to_json()
     assert r["governing_model"] in ("reference", "generalized")
 
 
@@ -153,9 +153,9 @@ def test_a_tolerance_corner_that_is_liquid_full_makes_the_vessel_not_within():
     t_worst = t_lf - 1.0
     text = _case("carbon dioxide", 'mass = "28 kg"\ntemperature = "10 degC"', f'gas_temperature = "{t_worst:.3f} K"',
                  'water_capacity = "40 L"\nrated_pressure = "250 bar(g)"')
-    nominal = screen_text(text)
+    nominal = screen_text(text).to_json()
     assert nominal["verdict"] == "within"
-    widened = screen_text(text + '[tolerance]\ngas_temperature = "3 K"\n')
+    widened = screen_text(text + '[tolerance]\ngas_temperature = "3 K"\n').to_json()
     assert widened["verdict"] == "low-margin"
     assert any("corner of the input tolerances" in x for x in widened["reasons"])
 
@@ -164,7 +164,7 @@ def test_a_tolerance_corner_that_is_liquid_full_makes_the_vessel_not_within():
 
 def test_the_deciding_reason_comes_first_for_an_overfilled_liquefied_gas():
     r = screen_text(_case("propane", 'mass = "20 kg"\ntemperature = "15 degC"', 'ambient_max = "30 degC"',
-                          'water_capacity = "47 L"\nrated_pressure = "30 bar(g)"\nmax_filling_ratio = "0.40 kg/L"'))
+                          'water_capacity = "47 L"\nrated_pressure = "30 bar(g)"\nmax_filling_ratio = "0.40 kg/L"')).to_json()
     assert r["verdict"] == "over"
     assert r["reasons"][0].startswith("The filling ratio")
 
@@ -197,8 +197,8 @@ def _mass_case(gas: str, ratio: float, t_fill_c: float, t_worst_c: float, tol: s
 def test_a_hotter_worst_case_never_gives_a_better_verdict(gas, share, t_fill, t1, dt):
     name, lo, hi = gas
     ratio = lo + share * (hi - lo)
-    cold = screen_text(_mass_case(name, ratio, t_fill, t1))
-    hot = screen_text(_mass_case(name, ratio, t_fill, t1 + dt))
+    cold = screen_text(_mass_case(name, ratio, t_fill, t1)).to_json()
+    hot = screen_text(_mass_case(name, ratio, t_fill, t1 + dt)).to_json()
     assert _rank(hot) >= _rank(cold)
 
 
@@ -208,8 +208,8 @@ def test_a_hotter_worst_case_never_gives_a_better_verdict(gas, share, t_fill, t1
 def test_more_fill_mass_never_gives_a_better_verdict(gas, share, more, t_fill, t_worst):
     name, lo, hi = gas
     ratio = lo + share * (hi - lo)
-    less = screen_text(_mass_case(name, ratio, t_fill, t_worst))
-    more_r = screen_text(_mass_case(name, ratio * (1.0 + more), t_fill, t_worst))
+    less = screen_text(_mass_case(name, ratio, t_fill, t_worst)).to_json()
+    more_r = screen_text(_mass_case(name, ratio * (1.0 + more), t_fill, t_worst)).to_json()
     assert _rank(more_r) >= _rank(less)
 
 
@@ -219,7 +219,7 @@ def test_more_fill_mass_never_gives_a_better_verdict(gas, share, more, t_fill, t
 def test_a_higher_fill_pressure_never_gives_a_better_verdict(gas, p, dp, t_fill, t_worst):
     def run(pressure):
         return screen_text(_case(gas, f'pressure = "{pressure:.4f} bar(g)"\ntemperature = "{t_fill:.3f} degC"',
-                                 f'gas_temperature = "{t_worst:.3f} degC"'))
+                                 f'gas_temperature = "{t_worst:.3f} degC"')).to_json()
     assert _rank(run(p + dp)) >= _rank(run(p))
 
 
@@ -229,8 +229,8 @@ def test_a_higher_fill_pressure_never_gives_a_better_verdict(gas, p, dp, t_fill,
 def test_adding_a_tolerance_never_gives_a_better_verdict(gas, share, t_fill, t_worst, band):
     name, lo, hi = gas
     ratio = lo + share * (hi - lo)
-    plain = screen_text(_mass_case(name, ratio, t_fill, t_worst))
-    banded = screen_text(_mass_case(name, ratio, t_fill, t_worst, f'[tolerance]\ngas_temperature = "{band:.3f} K"\n'))
+    plain = screen_text(_mass_case(name, ratio, t_fill, t_worst)).to_json()
+    banded = screen_text(_mass_case(name, ratio, t_fill, t_worst, f'[tolerance]\ngas_temperature = "{band:.3f} K"\n')).to_json()
     assert _rank(banded) >= _rank(plain)
 
 
@@ -255,8 +255,8 @@ def test_batch_rows_with_a_cold_worst_case_get_the_single_case_verdict_and_limit
     inv = read_inventory(path)
     run = BatchRun(inv)
     for i, (n, cells) in enumerate(inv.rows):
-        single = screen_case(row_case(inv, n, cells, None), curves=False)
-        full = run.full(i)
+        single = screen_case(row_case(inv, n, cells, None), curves=False).to_json()
+        full = run.full(i).to_json()
         assert full["verdict"] == single["verdict"] and full["reasons"] == single["reasons"]
         assert full["warnings"] == single["warnings"] and full["worst_case_basis"] == single["worst_case_basis"]
         assert full["peak_pressure_pa"] == pytest.approx(single["peak_pressure_pa"], rel=1e-9)
@@ -280,7 +280,7 @@ def test_a_liquefied_blend_that_is_liquid_full_at_the_worst_case_is_not_within()
     fill = 0.98 * rho_40
     assert rho_50 < fill
     r = screen_text(_case("propane 60 % + n-butane 40 % by mass", f'mass = "{fill * 0.040:.4f} kg"\ntemperature = "15 degC"',
-                          'gas_temperature = "50 degC"', 'water_capacity = "40 L"\nrated_pressure = "40 bar(g)"'))
+                          'gas_temperature = "50 degC"', 'water_capacity = "40 L"\nrated_pressure = "40 bar(g)"')).to_json()
     assert r["verdict"] != "within"
     assert any("fills the whole vessel" in x or "liquid-like" in x for x in r["reasons"])
     assert r["limits"]["max_fill_mass_kg"] <= rho_50 * 0.040 * (1 + 1e-6)

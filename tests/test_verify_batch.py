@@ -12,6 +12,7 @@ import pytest
 from pypdf import PdfReader, PdfWriter
 
 import screening
+from screening.batch import run as run_batch
 from screening.cli import main
 from screening.outputs.verify import verify_report
 from screening.screen import screen_text
@@ -181,7 +182,7 @@ def test_a_run_record_that_is_not_json_is_an_input_error(made, tmp_path, capsys)
 
 def test_another_version_re_runs_the_counts_but_does_not_check_the_pages(made, monkeypatch):
     monkeypatch.setattr(screening, "__version__", "99.0.0")
-    ok, message = verify_report(made["pdf"])
+    ok, message = verify_report(made["pdf"], run_batch=run_batch)
     assert not ok and message.startswith("NOT VERIFIED")
     assert "the attached inventory screens again to the same counts and listing: yes" in message
     assert "pages are the ones this version renders from them: NOT CHECKED" in message

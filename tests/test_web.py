@@ -97,7 +97,7 @@ def test_downloads_carry_the_case_text_and_the_engine_result(client):
     assert case.status_code == 200
     assert 'filename="KQ-N2-014.toml"' in case.headers["content-disposition"]
     result = client.get(f"/answer/{token}/result.json").json()
-    again = screen_text(case.text, "KQ-N2-014.toml")
+    again = screen_text(case.text, "KQ-N2-014.toml").to_json()
     assert result["verdict"] == again["verdict"] == "within"
     assert result["peak_pressure_pa"] == again["peak_pressure_pa"]
     assert result["input_sha256"] == hashlib.sha256(case.content).hexdigest()
@@ -336,7 +336,7 @@ def test_every_demo_case_gets_its_engine_verdict_on_the_page(client, path):
     text = path.read_text(encoding="utf-8")
     page = client.post("/vessel/upload", files={"case_file": (path.name, text.encode(), "application/toml")})
     assert page.status_code == 200
-    verdict = screen_text(text, path.name)["verdict"]
+    verdict = screen_text(text, path.name).verdict
     assert f"<strong>{VERDICTS[verdict]['label']}</strong> <span class=\"code\">(verdict: {verdict})</span>" in page.text
 
 
@@ -379,6 +379,7 @@ def test_the_inventory_page_writes_an_xlsx_and_a_batch_pdf_that_verifies(tmp_pat
 
     from openpyxl import load_workbook
 
+    from screening.batch import run as run_batch
     from screening.outputs.verify import verify_report
     from screening.web.engine import inventory
 
@@ -387,5 +388,5 @@ def test_the_inventory_page_writes_an_xlsx_and_a_batch_pdf_that_verifies(tmp_pat
     assert state["stage"] == "done"
     book = load_workbook(tmp_path / "inventory.result.xlsx", read_only=True)
     assert "summary" in book.sheetnames
-    ok, message = verify_report(str(tmp_path / "inventory.report.pdf"))
+    ok, message = verify_report(str(tmp_path / "inventory.report.pdf"), run_batch=run_batch)
     assert ok, message

@@ -10,51 +10,52 @@ sentence from :func:`action_line`.
 from __future__ import annotations
 
 from screening.outputs.text import fmt_pressure, fmt_temperature, visible
+from screening.result import Result
 from screening.units import format_quantity
 
 
-def _scenario_hint(result: dict) -> str | None:
+def _scenario_hint(result: Result) -> str | None:
     """'move it out of the sun …' where a scenario without sun is within and the governing one is in
     the sun; otherwise '… as in scenario X' where some scenario is within."""
-    scenarios = result.get("scenarios") or []
+    scenarios = result.scenarios
     if len(scenarios) < 2:
         return None
-    governing = next((sc for sc in scenarios if sc.get("governing")), None)
-    passing = [sc for sc in scenarios if sc.get("verdict") == "within"]
+    governing = next((sc for sc in scenarios if sc.governing), None)
+    passing = [sc for sc in scenarios if sc.verdict == "within"]
     if not passing:
         return None
-    shaded = [sc for sc in passing if not sc.get("exposure")]
-    if governing is not None and governing.get("exposure") and shaded:
-        return f"move it out of the sun (scenario \u2018{visible(shaded[0]['name'])}\u2019 is within)"
-    return f"keep it as in scenario \u2018{visible(passing[0]['name'])}\u2019, which is within"
+    shaded = [sc for sc in passing if not sc.exposure]
+    if governing is not None and governing.exposure and shaded:
+        return f"move it out of the sun (scenario \u2018{visible(shaded[0].name)}\u2019 is within)"
+    return f"keep it as in scenario \u2018{visible(passing[0].name)}\u2019, which is within"
 
 
-def action_line(result: dict) -> str | None:
+def action_line(result: Result) -> str | None:
     """What would make the vessel pass, as one sentence in the user's units; None for `within`."""
-    verdict = result.get("verdict")
+    verdict = result.verdict
     if verdict == "within":
         return None
     if verdict not in ("low-margin", "over"):
         return ("No limit can be given: this method does not cover the vessel as described; have it assessed "
                 "by other means (the reasons say why).")
-    fill = result.get("fill") or {}
-    limits = result.get("limits") or {}
+    fill = result.fill
+    limits = result.limits
     parts = []
     hint = _scenario_hint(result)
     if hint:
         parts.append(hint)
-    p_max, m_max = limits.get("max_fill_pressure_pa"), limits.get("max_fill_mass_kg")
-    p_fill, m_fill = fill.get("pressure_pa"), fill.get("mass_kg")
-    mass_unit = (result.get("display_units") or {}).get("mass", "kg")
-    if fill.get("given") == "pressure" and p_max is not None and p_fill is not None and p_max < p_fill:
-        text = f"fill to at most {fmt_pressure(result, p_max)} at {fmt_temperature(result, fill.get('temperature_k'))}"
+    p_max, m_max = limits.max_fill_pressure_pa, limits.max_fill_mass_kg
+    p_fill, m_fill = fill.pressure_pa, fill.mass_kg
+    mass_unit = result.display_units.get("mass", "kg")
+    if fill.given == "pressure" and p_max is not None and p_fill is not None and p_max < p_fill:
+        text = f"fill to at most {fmt_pressure(result, p_max)} at {fmt_temperature(result, fill.temperature_k)}"
         if m_max is not None:
             text += f" (at most {format_quantity(m_max, mass_unit, 2)})"
         parts.append(text)
     elif m_max is not None and m_fill is not None and m_max < m_fill:
         parts.append(f"fill at most {format_quantity(m_max, mass_unit, 2)}")
-    t_max = limits.get("max_gas_temperature_k")
-    t_worst = result.get("worst_case_temperature_k")
+    t_max = limits.max_gas_temperature_k
+    t_worst = result.worst_case_temperature_k
     keep_below = (f"keep the gas below {fmt_temperature(result, t_max)}, where it reaches the rated pressure"
                   if t_max is not None else None)
     if not parts:
@@ -65,6 +66,6 @@ def action_line(result: dict) -> str | None:
     line = "To pass: " + "; or ".join(parts) + "."
     if keep_below:
         line += " In any case " + keep_below + "."
-    if (result.get("tolerance") or {}).get("bounding_peak_pressure_pa") is not None:
+    if result.tolerance is not None and result.tolerance.bounding_peak_pressure_pa is not None:
         line += " (Limits at the nominal readings; the reading tolerances come on top.)"
     return line

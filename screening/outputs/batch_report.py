@@ -22,6 +22,7 @@ import hashlib
 import io
 import json
 import os
+from dataclasses import replace
 from pathlib import PurePath
 
 import numpy as np
@@ -40,7 +41,9 @@ from screening.outputs.report import (
     templates_dir,
 )
 from screening.outputs.text import fmt_pressure, reasons_shown, visible
+from screening.result import Curves, Result
 from screening.units import format_percent, format_pressure, format_temperature
+from screening.verdicts import Verdict
 
 TEMPLATE = "batch.html.j2"
 #: The vessel listing: lines of body per page, and its width in characters (7.2 pt DejaVu Sans Mono,
@@ -111,51 +114,54 @@ def _margin_chart(results: list[dict]) -> str:
     return buf.getvalue()
 
 
-def _curves(r: dict) -> dict | None:
+def _curves(r: Result) -> Curves:
     from screening.vector import curves  # the equations of state: loaded only where a curve is missing
 
     return curves(r)
 
 
-def _detail(r: dict) -> dict:
-    pu = (r.get("display_units") or {}).get("pressure", "bar(g)")
-    tu = (r.get("display_units") or {}).get("temperature", "degC")
-    atm = (r.get("site") or {}).get("atmospheric_pressure_pa") or 101325.0
-    code = r["verdict"]
+def _detail(r: Result | dict, location: str = "") -> dict:
+    """One row's detail section: a full result, or an input-error record (a plain dict)."""
+    if not isinstance(r, Result):
+        code = r["verdict"]
+        v = VERDICTS.get(code, dict(mark="?", label="Input error: the row could not be read", line=""))
+        return dict(row=str(r["row"]), id=visible(r["id"] or "—"), code=code, label=v["label"], mark=v["mark"],
+                    css="v-" + (code if code in VERDICTS else "unknown"),
+                    reasons=[visible(x) for x in r["reasons"]],
+                    description=visible(r.get("description") or ""), location=visible(location),
+                    action=None, warnings=[visible(w["message"]) for w in r["warnings"]], figures=[], models=[],
+                    plot=None)
+    code = r.verdict
     v = VERDICTS.get(code, dict(mark="?", label="Input error: the row could not be read", line=""))
-    d = dict(row=str(r["row"]), id=visible(r.get("id") or "—"), code=code, label=v["label"], mark=v["mark"],
-             css="v-" + (code if code in VERDICTS else "unknown"),
-             reasons=reasons_shown(r) if r.get("margin_fraction") is not None or code != "input-error"
-             else [visible(x) for x in r.get("reasons") or []],
-             description=visible(r.get("description") or ""), location=visible(r.get("location") or ""),
-             action=None, warnings=[visible(w["message"]) for w in r.get("warnings") or []], figures=[], models=[],
+    d = dict(row=str(r.row), id=visible(r.id or "—"), code=str(code), label=v["label"], mark=v["mark"],
+             css="v-" + (code if code in VERDICTS else "unknown"), reasons=reasons_shown(r),
+             description=visible(r.description or ""), location=visible(location),
+             action=action_line(r), warnings=[visible(w.message) for w in r.warnings], figures=[], models=[],
              plot=None)
-    if code == "input-error":
-        return d
-    d["action"] = action_line(r)
-    P = lambda p: fmt_pressure(r, p) if r.get("inputs") else format_pressure(p, pu, atm)  # noqa: E731
-    lim = r.get("limits") or {}
+    pu = r.display_units.get("pressure", "bar(g)")
+    tu = r.display_units.get("temperature", "degC")
+    atm = r.site.atmospheric_pressure_pa
+    P = lambda p: fmt_pressure(r, p) if r.inputs else format_pressure(p, pu, atm)  # noqa: E731
+    lim, fill = r.limits, r.fill
     d["figures"] = [
-        ("Gas", visible(r["gas"]["name"])),
-        ("Fill", f"{P(r['fill']['pressure_pa'])} at {format_temperature(r['fill']['temperature_k'], tu)}"
-         if r["fill"].get("pressure_pa") is not None else f"{r['fill'].get('mass_kg') or 0:.3f} kg"),
-        ("Worst-case gas temperature", f"{format_temperature(r['worst_case_temperature_k'], tu)} "
-                                       f"({r['worst_case_basis']})"),
-        ("Peak pressure", P(r["peak_pressure_pa"])),
-        ("Rated pressure", P(r["rated_pressure_pa"])),
-        ("Margin to rated", format_percent(r["margin_fraction"])),
-        ("Required margin", format_percent(r["required_margin_fraction"])),
-        ("Governing model", MODEL_TITLES.get(r.get("governing_model"), "none")),
-        ("Highest gas temperature", format_temperature(lim.get("max_gas_temperature_k"), tu)),
-        ("Highest fill pressure", P(lim.get("max_fill_pressure_pa"))),
+        ("Gas", visible(r.gas.name)),
+        ("Fill", f"{P(fill.pressure_pa)} at {format_temperature(fill.temperature_k, tu)}"
+         if fill.pressure_pa is not None else f"{fill.mass_kg or 0:.3f} kg"),
+        ("Worst-case gas temperature", f"{format_temperature(r.worst_case_temperature_k, tu)} "
+                                       f"({r.worst_case_basis})"),
+        ("Peak pressure", P(r.peak_pressure_pa)),
+        ("Rated pressure", P(r.rated_pressure_pa)),
+        ("Margin to rated", format_percent(r.margin_fraction)),
+        ("Required margin", format_percent(r.required_margin_fraction)),
+        ("Governing model", MODEL_TITLES.get(r.governing_model, "none")),
+        ("Highest gas temperature", format_temperature(lim.max_gas_temperature_k, tu)),
+        ("Highest fill pressure", P(lim.max_fill_pressure_pa)),
     ]
-    d["models"] = [(MODEL_TITLES[n], P(m["peak_pressure_pa"]) if m["applicable"] else "not applicable: " + m["note"])
-                   for n, m in r["models"].items()]
+    d["models"] = [(MODEL_TITLES[n], P(m.peak_pressure_pa) if m.applicable else "not applicable: " + m.note)
+                   for n, m in r.models.items()]
     try:
-        view = dict(r)
-        if not view.get("curves"):
-            view["curves"] = _curves(r)
-        if view["curves"] and drawable_models(view):
+        view = r if r.curves else replace(r, curves=_curves(r))
+        if view.curves and drawable_models(view):
             d["plot"] = png_data_uri(plot_png(view))
     except Exception:  # a missing curve leaves the section without its plot, never without its numbers
         d["plot"] = None
@@ -311,9 +317,7 @@ def _part_view(units: list[tuple], common: dict, results: list[dict], full, *, f
         elif u[0] == "detail":
             row = results[u[1]]
             r = full(u[1]) if full is not None else row
-            if row.get("location") and not r.get("location"):
-                r = dict(r, location=row["location"])
-            item.update(d=_detail(r), heading=u[2])
+            item.update(d=_detail(r, row.get("location") or ""), heading=u[2])
         items.append(item)
     return dict(common, units=items, first_page=first_page, total_pages=total_pages)
 
@@ -322,6 +326,7 @@ def build_view(results: list[dict], *, source: str, all_details: bool, report_da
                full=None, site: str | None = None) -> dict:
     """The template's view of the whole document as one part. ``full(i)``, where given, gives row i's
     full result for its detail section (the batch keeps only what the table needs for most rows)."""
+    results, full = _as_rows(results, full)
     common = _common(results, source=source, all_details=all_details, report_date=report_date, site=site)
     return _part_view(_units(results, common, all_details), common, results, full)
 
@@ -380,8 +385,21 @@ def _join(pdfs: list[bytes]) -> bytes:
     return out.getvalue()
 
 
+def _as_rows(results: list, full):
+    """(rows, full): the listing's rows and the accessor of the rows' full results. Where the results are
+    full ones (a `Result`, or an input-error record), each row is the result's summary record with its
+    row, description and site name, and `full` (unless given) gives the results themselves."""
+    if not any(isinstance(r, Result) for r in results):
+        return results, full
+    rows = [dict(r.summary_record(), row=r.row, description=r.description,
+                 site={"name": r.site.name, "atmospheric_pressure_pa": r.site.atmospheric_pressure_pa})
+            if isinstance(r, Result) else r for r in results]
+    return rows, full if full is not None else list(results).__getitem__
+
+
 def render_batch_pdf_bytes(results: list[dict], *, source: str, all_details: bool = False,
                            report_date: _dt.date | None = None, full=None, site: str | None = None) -> bytes:
+    results, full = _as_rows(results, full)
     report_date = report_date or _dt.date.today()
     common = _common(results, source=source, all_details=all_details, report_date=report_date, site=site)
     units = _units(results, common, all_details)
@@ -405,17 +423,17 @@ def render_batch_pdf_bytes(results: list[dict], *, source: str, all_details: boo
     return _pdf(_part_view(units, common, results, full), report_date, "whole")[0]
 
 
-def _detail_results(results: list[dict], all_details: bool, full) -> dict[int, dict]:
+def _detail_results(results: list[dict], all_details: bool, full) -> dict[int, Result | dict]:
     """Full results, with their plot curves, of the rows that get a detail section, by position in
     `results`: computed here, where the equations of state are loaded, for a renderer without them."""
     out = {}
     for j in _detail_positions(results, all_details):
-        r = dict(full(j) if full is not None else results[j])
-        if not r.get("curves") and r["verdict"] != "input-error":
+        r = full(j) if full is not None else results[j]
+        if isinstance(r, Result) and r.curves is None and r.verdict != Verdict.INPUT_ERROR:
             try:
-                r["curves"] = _curves(r)
+                r = replace(r, curves=_curves(r))
             except Exception:  # as in _detail: a missing curve leaves the section without its plot
-                r["curves"] = None
+                pass
         out[j] = r
     return out
 
@@ -501,6 +519,7 @@ def render_batch_report(results: list[dict], out_path, *, source: str, all_detai
     from screening.outputs.files import atomic_writer, check_target
 
     check_target(out_path, "PDF report")
+    results, full = _as_rows(results, full)
     results = _with_texts(results, texts)
     report_date = report_date or _dt.date.today()
     pdf = render_batch_pdf_bytes(results, source=source, all_details=all_details, report_date=report_date,

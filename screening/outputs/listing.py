@@ -36,22 +36,23 @@ def summary(results: list[dict]) -> dict:
 
 
 def _units(r: dict) -> tuple[str, str, float]:
-    du = r.get("display_units") or {}
-    atm = (r.get("site") or {}).get("atmospheric_pressure_pa") or 101325.0
-    return du.get("pressure", "bar(g)"), du.get("temperature", "degC"), atm
+    """(pressure unit, temperature unit, the site's atmospheric pressure [Pa]) of a screened row's record."""
+    du = r["display_units"]
+    return du.get("pressure", "bar(g)"), du.get("temperature", "degC"), r["site"]["atmospheric_pressure_pa"]
 
 
 def cells(r: dict) -> dict:
-    """The row's figures as text in the user's units."""
+    """The row's figures as text in the user's units. `r` is a row's summary record
+    (`Result.summary_record` with its "row") or its input-error record."""
     if r["verdict"] == "input-error":
         return {"peak": "", "rated": "", "margin": "", "t_max": "", "p_max": "", "gas": ""}
     pu, tu, atm = _units(r)
-    lim = r.get("limits") or {}
+    lim = r["limits"]
     return {
         "peak": format_pressure(r["peak_pressure_pa"], pu, atm),
         "rated": format_pressure(r["rated_pressure_pa"], pu, atm),
         "margin": format_percent(r["margin_fraction"]),
-        "t_max": format_temperature(lim.get("max_gas_temperature_k"), tu),
-        "p_max": format_pressure(lim.get("max_fill_pressure_pa"), pu, atm),
-        "gas": (r.get("gas") or {}).get("name", ""),
+        "t_max": format_temperature(lim["max_gas_temperature_k"], tu),
+        "p_max": format_pressure(lim["max_fill_pressure_pa"], pu, atm),
+        "gas": r["gas"]["name"],
     }

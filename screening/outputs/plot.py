@@ -1,8 +1,8 @@
 """The isochore plot of a finished result: pressure against gas temperature, one line per model.
 
-A view only: it draws the curves the screening already computed (``result["curves"]``) and the
+A view only: it draws the curves the screening already computed (``result.curves``) and the
 pressures already in the result; it calls no equation of state. Axis values are in the units the
-user wrote (``result["display_units"]``), converted with :mod:`screening.units`.
+user wrote (``result.display_units``), converted with :mod:`screening.units`.
 
 The drawing is meant to survive black-and-white printing: models differ by line style and marker,
 the margin band is hatched, the reference lines are labelled in words beside the lines.
@@ -24,6 +24,7 @@ matplotlib.use("Agg")
 from matplotlib.backends.backend_svg import FigureCanvasSVG  # noqa: E402
 from matplotlib.figure import Figure  # noqa: E402
 
+from screening.result import Result  # noqa: E402
 from screening.units import pressure_in, temperature_in  # noqa: E402
 
 #: Line style, marker and legend name of each model (black on white).
@@ -52,21 +53,21 @@ def _temp_label(label: str) -> str:
     return {"degC": "°C", "degF": "°F"}.get(label, label)
 
 
-def margin_line_pa(result: dict) -> float | None:
+def margin_line_pa(result: Result) -> float | None:
     """Absolute pressure [Pa] of rated × (1 − required margin), the margin taken on gauge pressure.
 
     The result's own ``limits.target_peak_pressure_pa`` when it gives one; otherwise display
     arithmetic on two numbers of the result, with the definition ``margin_fraction`` uses
     (1 − peak_gauge / rated_gauge).
     """
-    target = (result.get("limits") or {}).get("target_peak_pressure_pa")
+    target = result.limits.target_peak_pressure_pa
     if target is not None:
         return target
-    rated = result["rated_pressure_pa"]
-    m = result["required_margin_fraction"]
+    rated = result.rated_pressure_pa
+    m = result.required_margin_fraction
     if rated is None or m is None:
         return None
-    atm = result["site"]["atmospheric_pressure_pa"]
+    atm = result.site.atmospheric_pressure_pa
     return atm + (rated - atm) * (1.0 - m)
 
 
@@ -87,58 +88,58 @@ SATURATION_STYLE = (0, (4, 2))
 CONDENSED_PHASES = ("liquid", "two-phase")
 
 
-def tolerance_band(result: dict) -> dict | None:
+def tolerance_band(result: Result) -> dict | None:
     """The worst-case temperature band of the input tolerances [K], when the result carries one."""
-    tol = result.get("tolerance")
-    if not tol or tol.get("bounding_peak_pressure_pa") is None:
+    tol = result.tolerance
+    if not tol or tol.bounding_peak_pressure_pa is None:
         return None
-    t_wc = result["worst_case_temperature_k"]
-    band = tol.get("gas_temperature_band_k") or 0.0
+    t_wc = result.worst_case_temperature_k
+    band = tol.gas_temperature_band_k or 0.0
     if not _finite(t_wc) or not _finite(band):
         return None
     return {"low_k": t_wc - band, "high_k": t_wc + band, "band_text": f"{band:g} K"}
 
 
-def worst_case_point_temperature(result: dict) -> float | None:
+def worst_case_point_temperature(result: Result) -> float | None:
     """Temperature [K] at which the result's peak pressure is reached: the bounding corner's under
     tolerances (the peak is then the bounding peak), otherwise the worst-case temperature."""
-    tol = result.get("tolerance")
-    if tol and tol.get("bounding_peak_pressure_pa") is not None:
-        corner = tol.get("bounding_corner") or {}
-        if _finite(corner.get("worst_case_temperature_k")):
-            return corner["worst_case_temperature_k"]
-    return result["worst_case_temperature_k"]
+    tol = result.tolerance
+    if tol and tol.bounding_peak_pressure_pa is not None:
+        corner = tol.bounding_corner
+        if _finite(corner.worst_case_temperature_k):
+            return corner.worst_case_temperature_k
+    return result.worst_case_temperature_k
 
 
-def phase_diagram_wanted(result: dict) -> bool:
+def phase_diagram_wanted(result: Result) -> bool:
     """Whether the report should show the phase diagram: a liquid or two-phase state at fill or at the
     worst case, or a liquid-full temperature on the heating path (at or above the fill
     temperature). A gas far above its critical temperature, whose liquid-full point lies far below the
     fill (hydrogen's at about -240 degC), gets none."""
-    ref = (result.get("models") or {}).get("reference") or {}
-    phases = (result["fill"].get("phase"), ref.get("phase_fill"), ref.get("phase_peak"))
-    t_full = (result.get("limits") or {}).get("liquid_full_temperature_k")
-    t_fill = result["fill"].get("temperature_k")
+    ref = result.models["reference"]
+    phases = (result.fill.phase, ref.phase_fill, ref.phase_peak)
+    t_full = result.limits.liquid_full_temperature_k
+    t_fill = result.fill.temperature_k
     return (any(p in CONDENSED_PHASES for p in phases)
             or (_finite(t_full) and _finite(t_fill) and t_full >= t_fill))
 
 
-def phase_diagram_drawable(result: dict) -> bool:
+def phase_diagram_drawable(result: Result) -> bool:
     """Wanted, and the result carries a vapour-pressure curve with at least two points."""
-    pd = result.get("phase_diagram")
+    pd = result.phase_diagram
     if not pd or not phase_diagram_wanted(result):
         return False
-    sat = pd.get("saturation") or {}
-    pts = [1 for t, p in zip(sat.get("temperature_k") or [], sat.get("pressure_pa") or []) if _finite(t) and _finite(p)]
+    sat = pd.saturation
+    pts = [1 for t, p in zip(sat.temperature_k, sat.pressure_pa) if _finite(t) and _finite(p)]
     return len(pts) >= 2
 
 
-def liquid_full_marked(result: dict) -> bool:
+def liquid_full_marked(result: Result) -> bool:
     """Whether the phase diagram marks a liquid-full point: one is reported and it is not the critical
     point itself (which the diagram marks anyway)."""
-    t_full = (result.get("limits") or {}).get("liquid_full_temperature_k")
-    pd = result.get("phase_diagram") or {}
-    tc = pd.get("critical_temperature_k")
+    t_full = result.limits.liquid_full_temperature_k
+    pd = result.phase_diagram
+    tc = pd.critical_temperature_k if pd is not None else None
     return _finite(t_full) and _finite(tc) and abs(t_full - tc) > 0.05 and _finite(saturation_reading(result, t_full))
 
 
@@ -150,37 +151,39 @@ def _read_on(points: list[tuple[float, float]], x: float) -> float | None:
     return None
 
 
-def saturation_reading(result: dict, t_k: float) -> float | None:
+def saturation_reading(result: Result, t_k: float) -> float | None:
     """Pressure [Pa] read off the result's vapour-pressure curve at t_k (straight line between its points)."""
-    pd = result.get("phase_diagram") or {}
-    sat = pd.get("saturation") or {}
-    pts = [(t, p) for t, p in zip(sat.get("temperature_k") or [], sat.get("pressure_pa") or [])
+    pd = result.phase_diagram
+    if pd is None:
+        return None
+    sat = pd.saturation
+    pts = [(t, p) for t, p in zip(sat.temperature_k, sat.pressure_pa)
            if _finite(t) and _finite(p)]
     return _read_on(pts, t_k) if _finite(t_k) else None
 
 
-def fill_point_pressure(result: dict, model: str | None = None) -> float | None:
+def fill_point_pressure(result: Result, model: str | None = None) -> float | None:
     """The fill pressure [Pa] to mark: the stated one, or (fill by mass) a reading of the model's plotted
     isochore at the fill temperature."""
-    fill = result["fill"]
-    if fill.get("pressure_pa") is not None:
-        return fill["pressure_pa"]
-    model = model or result.get("governing_model")
-    curves = result["curves"]
-    if not model or not curves.get(model) or not _finite(fill.get("temperature_k")):
+    fill = result.fill
+    if fill.pressure_pa is not None:
+        return fill.pressure_pa
+    model = model or result.governing_model
+    curves = result.curves
+    if not model or not curves.series(model) or not _finite(fill.temperature_k):
         return None
-    pts = [(t, p) for t, p in zip(curves.get("temperature_k") or [], curves[model]) if _finite(t) and _finite(p)]
-    return _read_on(pts, fill["temperature_k"])
+    pts = [(t, p) for t, p in zip(curves.temperature_k, curves.series(model)) if _finite(t) and _finite(p)]
+    return _read_on(pts, fill.temperature_k)
 
 
-def drawable_models(result: dict) -> list[str]:
+def drawable_models(result: Result) -> list[str]:
     """Models with an applicable result and at least two finite points on their curve."""
-    curves = result["curves"]
-    temps = list(curves.get("temperature_k") or [])
+    curves = result.curves
+    temps = list(curves.temperature_k)
     out = []
     for name in MODEL_ORDER:
-        series = curves.get(name)
-        if not series or not (result["models"].get(name) or {}).get("applicable"):
+        series = curves.series(name)
+        if not series or not result.models[name].applicable:
             continue
         if sum(1 for t, p in zip(temps, series) if _finite(t) and _finite(p)) >= 2:
             out.append(name)
@@ -192,16 +195,16 @@ def drawable_models(result: dict) -> list[str]:
 COINCIDE_FRACTION = 0.004
 
 
-def coinciding_groups(result: dict) -> list[list[str]]:
+def coinciding_groups(result: Result) -> list[list[str]]:
     """The drawable models grouped where their curves coincide (every common point within
     COINCIDE_FRACTION of each other): each group is drawn as one line, named by all its models."""
-    curves = result["curves"]
-    temps = list(curves.get("temperature_k") or [])
+    curves = result.curves
+    temps = list(curves.temperature_k)
     groups: list[list[str]] = []
     for name in drawable_models(result):
-        series = curves[name]
+        series = curves.series(name)
         for group in groups:
-            other = curves[group[0]]
+            other = curves.series(group[0])
             pairs = [(a, b) for t, a, b in zip(temps, series, other) if _finite(t) and _finite(a) and _finite(b)]
             n_own = sum(1 for t, a in zip(temps, series) if _finite(t) and _finite(a))
             n_other = sum(1 for t, b in zip(temps, other) if _finite(t) and _finite(b))
@@ -242,15 +245,15 @@ def text_boxes(fig) -> list[tuple[str, tuple[float, float, float, float]]]:
     return out
 
 
-def _converters(result: dict):
+def _converters(result: Result):
     """Functions from absolute Pa and from K into the result's display units."""
-    units = result["display_units"]
+    units = result.display_units
     p_unit, t_unit = units["pressure"], units["temperature"]
-    atm = result["site"]["atmospheric_pressure_pa"]
+    atm = result.site.atmospheric_pressure_pa
     return (lambda pa: pressure_in(pa, p_unit, atm)), (lambda k: temperature_in(k, t_unit))
 
 
-def plot_png(result: dict, dpi: int = 130) -> bytes:
+def plot_png(result: Result, dpi: int = 130) -> bytes:
     """PNG bytes of the isochore plot of `result` (the batch report's many detail plots: a raster image
     lays out and draws far faster than an SVG of the same plot)."""
     return plot_svg(result, png_dpi=dpi)
@@ -281,13 +284,13 @@ def png_data_uri(png: bytes) -> str:
     return "data:image/png;base64," + base64.b64encode(png).decode("ascii")
 
 
-def plot_svg(result: dict, png_dpi: int | None = None, return_figure: bool = False):
+def plot_svg(result: Result, png_dpi: int | None = None, return_figure: bool = False):
     """SVG text of the isochore plot of `result` (PNG bytes instead where `png_dpi` is given; the drawn
     matplotlib figure itself where `return_figure` is set, for measuring it)."""
-    units = result["display_units"]
+    units = result.display_units
     p_unit, t_unit = units["pressure"], units["temperature"]
-    curves = result["curves"]
-    models = result["models"]
+    curves = result.curves
+    models = result.models
 
     P, T = _converters(result)
 
@@ -296,12 +299,12 @@ def plot_svg(result: dict, png_dpi: int | None = None, return_figure: bool = Fal
         FigureCanvasSVG(fig)
         ax = fig.add_subplot(1, 1, 1)
 
-        temps_k = list(curves.get("temperature_k") or [])
+        temps_k = list(curves.temperature_k)
         drawn = []
         groups = coinciding_groups(result)
         for group in groups:
             name = group[0]
-            series = curves.get(name)
+            series = curves.series(name)
             xs, ys = [], []
             for t, p in zip(temps_k, series):
                 if _finite(t) and _finite(p):
@@ -310,41 +313,41 @@ def plot_svg(result: dict, png_dpi: int | None = None, return_figure: bool = Fal
             style = MODEL_STYLE[name]
             names = [MODEL_STYLE[n]["label"] for n in group]
             label = "\n= ".join(names) + ("\n(coincide)" if len(group) > 1 else "")
-            if result["governing_model"] in group:
+            if result.governing_model in group:
                 label += "  \u2190 governs"
             ax.plot(xs, ys, color="black", linestyle=style["linestyle"], linewidth=style["linewidth"],
                     label=label, zorder=3)
             drawn.extend(group)
         for name in drawn:
             style = MODEL_STYLE[name]
-            model = models.get(name) or {}
-            peak = model.get("peak_pressure_pa")
-            if _finite(peak) and _finite(result["worst_case_temperature_k"]):
-                ax.plot([T(result["worst_case_temperature_k"])], [P(peak)], linestyle="none",
+            model = models[name]
+            peak = model.peak_pressure_pa
+            if _finite(peak) and _finite(result.worst_case_temperature_k):
+                ax.plot([T(result.worst_case_temperature_k)], [P(peak)], linestyle="none",
                         marker=style["marker"], markersize=6, markerfacecolor="white",
                         markeredgecolor="black", markeredgewidth=1.1, zorder=5)
 
         # Fill point: the stated fill pressure, or (fill by mass) the governing curve at the fill temperature.
-        fill = result["fill"]
-        t_fill = fill["temperature_k"]
-        p_fill = fill.get("pressure_pa")
-        if p_fill is None and result["governing_model"] in drawn:
+        fill = result.fill
+        t_fill = fill.temperature_k
+        p_fill = fill.pressure_pa
+        if p_fill is None and result.governing_model in drawn:
             # Fill by mass: place the marker on the governing curve (straight-line reading between its points).
             p_fill = fill_point_pressure(result)
         if _finite(p_fill) and _finite(t_fill):
             ax.plot([T(t_fill)], [P(p_fill)], linestyle="none", marker="D", markersize=6.5,
                     markerfacecolor="black", markeredgecolor="black", zorder=6, label="Fill state")
 
-        peak = result["peak_pressure_pa"]
-        t_wc = result["worst_case_temperature_k"]
+        peak = result.peak_pressure_pa
+        t_wc = result.worst_case_temperature_k
         tol = tolerance_band(result)
         if tol is not None:
             # The bounding corner's isochore and the worst-case temperature band of the tolerances.
-            series = curves.get("bounding") or []
+            series = curves.bounding or ()
             xs = [T(t) for t, p in zip(temps_k, series) if _finite(t) and _finite(p)]
             ys = [P(p) for t, p in zip(temps_k, series) if _finite(t) and _finite(p)]
             if len(xs) >= 2:
-                name = MODEL_STYLE.get(str(curves.get("bounding_model")), {}).get("label", "governing model")
+                name = MODEL_STYLE.get(str(curves.bounding_model), {}).get("label", "governing model")
                 ax.plot(xs, ys, color="black", linestyle=BOUNDING_STYLE, linewidth=1.1, zorder=3,
                         label=f"{name},\nfill at the bounding corner")
             lo, hi = tol["low_k"], tol["high_k"]
@@ -370,15 +373,15 @@ def plot_svg(result: dict, png_dpi: int | None = None, return_figure: bool = Fal
         # Horizontal and vertical reference lines, named in the legend below the plot (no text inside the
         # axes, so no label can cover another or a line); lines that fall together are drawn once and named
         # together.
-        rated = result["rated_pressure_pa"]
-        relief = result["relief_set_pressure_pa"]
+        rated = result.rated_pressure_pa
+        relief = result.relief_set_pressure_pa
         m_line = margin_line_pa(result)
         same = lambda a, b: _finite(a) and _finite(b) and abs(P(a) - P(b)) <= COINCIDE_FRACTION * abs(P(b) or 1.0)  # noqa: E731
         if _finite(rated):
             label = "Vessel's rated pressure" + ("\n= relief set pressure" if same(relief, rated) else "")
             ax.axhline(P(rated), color=RATED_GREY, linewidth=2.8, linestyle="-", zorder=2, label=label)
         if _finite(m_line) and _finite(rated):
-            pct = 100.0 * result["required_margin_fraction"]
+            pct = 100.0 * result.required_margin_fraction
             ax.axhline(P(m_line), color="black", linewidth=0.9, linestyle=(0, (2, 1.2)), zorder=2,
                        label=f"Rated \u00d7 (1 \u2212 {pct:g} %)")
             ax.axhspan(P(m_line), P(rated), facecolor="none", edgecolor="#777777", hatch="////",
@@ -386,7 +389,7 @@ def plot_svg(result: dict, png_dpi: int | None = None, return_figure: bool = Fal
         if _finite(relief) and not same(relief, rated):
             ax.axhline(P(relief), color="black", linewidth=1.2, linestyle=(0, (8, 2, 1.5, 2)), zorder=2,
                        label="Relief set pressure")
-        t_full = (result.get("limits") or {}).get("liquid_full_temperature_k")
+        t_full = result.limits.liquid_full_temperature_k
         full_shown = _finite(t_full) and x0 <= T(t_full) <= x1
         full_at_worst = full_shown and _finite(t_wc) and abs(T(t_full) - T(t_wc)) <= COINCIDE_FRACTION * (x1 - x0)
         if _finite(t_wc):
@@ -421,26 +424,26 @@ def plot_svg(result: dict, png_dpi: int | None = None, return_figure: bool = Fal
     return buf.getvalue()
 
 
-def phase_diagram_svg(result: dict, return_figure: bool = False):
+def phase_diagram_svg(result: Result, return_figure: bool = False):
     """SVG text of the pressure–temperature phase diagram of a pure fluid with a saturation dome.
 
     Draws, from the result only: the vapour-pressure curve up to the critical point (marked), the
     fill isochore of the reference model (``curves.reference``), the fill and worst-case points, the
     liquid-full point on the vapour-pressure curve, and the rated and relief pressures.
     """
-    units = result["display_units"]
+    units = result.display_units
     p_unit, t_unit = units["pressure"], units["temperature"]
-    pd = result["phase_diagram"]
-    curves = result["curves"]
+    pd = result.phase_diagram
+    curves = result.curves
 
     P, T = _converters(result)
 
-    temps_k = [t for t in (curves.get("temperature_k") or []) if _finite(t)]
-    t_fill = result["fill"]["temperature_k"]
+    temps_k = [t for t in (curves.temperature_k if curves else ()) if _finite(t)]
+    t_fill = result.fill.temperature_k
     t_wc = worst_case_point_temperature(result)
-    tc, pc = pd["critical_temperature_k"], pd["critical_pressure_pa"]
+    tc, pc = pd.critical_temperature_k, pd.critical_pressure_pa
     lows = [t for t in [min(temps_k) if temps_k else None, t_fill] if _finite(t)]
-    t_left = max(pd["triple_temperature_k"], min(lows + [tc]) - 15.0)
+    t_left = max(pd.triple_temperature_k, min(lows + [tc]) - 15.0)
     highs = [t for t in [max(temps_k) if temps_k else None, t_wc, tc + 5.0] if _finite(t)]
     t_right = max(highs)
 
@@ -449,8 +452,8 @@ def phase_diagram_svg(result: dict, return_figure: bool = False):
         FigureCanvasSVG(fig)
         ax = fig.add_subplot(1, 1, 1)
 
-        sat = pd["saturation"]
-        pts = [(t, p) for t, p in zip(sat["temperature_k"], sat["pressure_pa"]) if _finite(t) and _finite(p)]
+        sat = pd.saturation
+        pts = [(t, p) for t, p in zip(sat.temperature_k, sat.pressure_pa) if _finite(t) and _finite(p)]
         shown = [(t, p) for t, p in pts if t >= t_left]
         if len(shown) < 2:
             shown = pts
@@ -467,10 +470,10 @@ def phase_diagram_svg(result: dict, return_figure: bool = False):
             ax.annotate("vapour", xy=(T(t_mid), P(p_mid)), xytext=(10, -12), textcoords="offset points",
                         ha="left", va="top", fontsize=8, fontstyle="italic", zorder=8)
 
-        ref = curves.get("reference")
-        ref_ok = bool(ref) and bool((result["models"].get("reference") or {}).get("applicable"))
+        ref = curves.reference if curves else None
+        ref_ok = bool(ref) and result.models["reference"].applicable
         if ref_ok:
-            iso = [(T(t), P(p)) for t, p in zip(curves.get("temperature_k") or [], ref) if _finite(t) and _finite(p)]
+            iso = [(T(t), P(p)) for t, p in zip(curves.temperature_k, ref) if _finite(t) and _finite(p)]
             if len(iso) >= 2:
                 ax.plot([x for x, _ in iso], [y for _, y in iso], color="black", linestyle="-", linewidth=1.6,
                         zorder=4, label="Fill isochore (reference EOS)")
@@ -483,7 +486,7 @@ def phase_diagram_svg(result: dict, return_figure: bool = False):
                     xy=(T(tc), P(pc)), xytext=(7, -4), textcoords="offset points", ha="left", va="top",
                     fontsize=7.5, bbox=_LABEL_BOX, zorder=8)
 
-        t_full = (result.get("limits") or {}).get("liquid_full_temperature_k")
+        t_full = result.limits.liquid_full_temperature_k
         p_full = saturation_reading(result, t_full) if liquid_full_marked(result) else None
         if _finite(p_full):
             ax.plot([T(t_full)], [P(p_full)], linestyle="none", marker="s", markersize=7, markerfacecolor="white",
@@ -495,14 +498,14 @@ def phase_diagram_svg(result: dict, return_figure: bool = False):
         if _finite(p_fill) and _finite(t_fill):
             ax.plot([T(t_fill)], [P(p_fill)], linestyle="none", marker="D", markersize=6.5,
                     markerfacecolor="black", markeredgecolor="black", zorder=7, label="Fill state")
-        peak = result["peak_pressure_pa"]
+        peak = result.peak_pressure_pa
         if _finite(peak) and _finite(t_wc):
             ax.plot([T(t_wc)], [P(peak)], linestyle="none", marker="*", markersize=13, markerfacecolor="black",
                     markeredgecolor="white", markeredgewidth=0.6, zorder=7,
                     label="Bounding peak (verdict)" if tolerance_band(result) else "Worst case (governing model)")
 
         ax.set_xlim(T(t_left), T(t_right))
-        rated, relief = result["rated_pressure_pa"], result["relief_set_pressure_pa"]
+        rated, relief = result.rated_pressure_pa, result.relief_set_pressure_pa
         if _finite(rated):
             ax.axhline(P(rated), color=RATED_GREY, linewidth=2.8, linestyle="-", zorder=2, label="Vessel's rated pressure")
         if _finite(relief):

@@ -1,12 +1,13 @@
 """The PDF report: a view of a finished screening result.
 
-``render_report(result, case_text, out_path, report_date=...)`` formats the result dict into HTML
-(Jinja2, autoescaped, strict about undefined names), lays it out with WeasyPrint and writes a PDF
-that carries the case file as entered and the JSON result as attachments.
+``render_report(result, case_text, out_path, report_date=...)`` formats the typed result
+(:class:`screening.result.Result`) into HTML (Jinja2, autoescaped, strict about undefined names), lays
+it out with WeasyPrint and writes a PDF that carries the case file as entered and the JSON result as
+attachments.
 
 Rules this module keeps:
 
-* It computes no physics. Every number shown comes from the result dict; the only arithmetic is
+* It computes no physics. Every number shown comes from the result; the only arithmetic is
   unit conversion for display (screening.units) and the gauge-basis margin line.
 * Text from the case (id, description, site, file name) is only ever element content, escaped.
   Numbers are formatted here, in Python, never in the template.
@@ -32,7 +33,7 @@ from urllib.request import url2pathname
 import jinja2
 from markupsafe import Markup
 
-from screening.constants import R
+from screening.constants import P_STANDARD_ATMOSPHERE, R
 from screening.outputs.actions import action_line
 from screening.outputs.files import check_target, write_bytes
 from screening.outputs.plot import (
@@ -56,6 +57,7 @@ from screening.outputs.text import (
     reasons_shown,
     visible,
 )
+from screening.result import ModelResult, Result
 from screening.units import format_percent, format_pressure, format_quantity, format_temperature, pressure_in
 
 TEMPLATE_NAME = "report.html.j2"
@@ -246,7 +248,7 @@ def _absolute_label(label: str) -> str:
     else:
         candidate = label
     try:
-        format_pressure(101325.0, candidate, 101325.0)
+        format_pressure(P_STANDARD_ATMOSPHERE, candidate, P_STANDARD_ATMOSPHERE)   # a unit the table knows?
     except KeyError:
         return "kPa(a)"
     return candidate
@@ -292,11 +294,11 @@ class _Fmt:
     """The display formatting of one result: pressures, temperatures and differences in its units."""
 
     def __init__(self, result: dict) -> None:
-        units = result["display_units"]
+        units = result.display_units
         self.result = result
         self.p_unit, self.t_unit = pressure_unit(result), units["temperature"]
         self.m_unit = units.get("mass", "kg")
-        self.atm = result["site"]["atmospheric_pressure_pa"]
+        self.atm = result.site.atmospheric_pressure_pa
         self.p_abs_unit = _absolute_label(self.p_unit)
         self.dp_unit = _difference_label(self.p_unit)
         try:
@@ -349,118 +351,118 @@ def _sci(x: float) -> Markup:
     return Markup("{} &times; 10<sup>{}</sup>").format(f"{mantissa:.1f}", _group(str(exponent)))
 
 
-def _exposure_view(result: dict, f: _Fmt) -> dict | None:
+def _exposure_view(result: Result, f: _Fmt) -> dict | None:
     """A sun energy balance, as rows a reviewer can add up: the governing scenario's, or where it has none,
     that of the first scenario in the sun (so every balance the screening used can be checked)."""
-    b, name = result.get("exposure"), result.get("governing_scenario")
+    b, name = result.exposure, result.governing_scenario
     if not b:
-        sunny = [sc for sc in result.get("scenarios") or [] if sc.get("exposure")]
+        sunny = [sc for sc in result.scenarios if sc.exposure]
         if not sunny:
             return None
-        b, name = sunny[0]["exposure"], sunny[0]["name"]
+        b, name = sunny[0].exposure, sunny[0].name
 
     def W(x):
         return _unit(num(x, 2), "W/m\u00b2")
 
     balance = [
-        ("Absorbed sunlight (direct and ground-reflected)", W(b.get("absorbed_w_m2"))),
-        ("Carried away by convection", W(b.get("convected_w_m2"))),
-        ("Carried away by long-wave radiation", W(b.get("radiated_w_m2"))),
+        ("Absorbed sunlight (direct and ground-reflected)", W(b.absorbed_w_m2)),
+        ("Carried away by convection", W(b.convected_w_m2)),
+        ("Carried away by long-wave radiation", W(b.radiated_w_m2)),
     ]
     closure = None
-    if b.get("residual_fraction") is not None:
+    if b.residual_fraction is not None:
         closure = Markup("absorbed = convected + radiated: {} = {} + {}; |absorbed &minus; convected &minus; "
                          "radiated| is {} of the largest term").format(
-            W(b.get('absorbed_w_m2')), W(b.get('convected_w_m2')), W(b.get('radiated_w_m2')),
-            _sci(b["residual_fraction"]))
-    estimated = b.get("dimensions_estimated")
-    dims = (f"{num(b.get('outside_diameter_m'), 3)} m \u00d7 {num(b.get('length_m'), 3)} m"
+            W(b.absorbed_w_m2), W(b.convected_w_m2), W(b.radiated_w_m2),
+            _sci(b.residual_fraction))
+    estimated = b.dimensions_estimated
+    dims = (f"{num(b.outside_diameter_m, 3)} m \u00d7 {num(b.length_m, 3)} m"
             + (" (estimated from the water capacity)" if estimated else " (as entered)"))
     inputs = [
-        ("Solar irradiance", _unit(num(b.get("irradiance_w_m2"), 0), "W/m\u00b2")),
-        ("Solar absorptivity of the surface", num(b.get("absorptivity"), 2)),
-        ("Long-wave emissivity of the surface", num(b.get("emissivity"), 2)),
-        ("Wind speed", _unit(num(b.get("wind_speed_m_s"), 1), "m/s")),
+        ("Solar irradiance", _unit(num(b.irradiance_w_m2, 0), "W/m\u00b2")),
+        ("Solar absorptivity of the surface", num(b.absorptivity, 2)),
+        ("Long-wave emissivity of the surface", num(b.emissivity, 2)),
+        ("Wind speed", _unit(num(b.wind_speed_m_s, 1), "m/s")),
         ("Outside diameter \u00d7 length", dims),
-        ("Orientation", _text(b.get("orientation")) or "\u2014"),
-        ("Ground albedo (solar reflectance)", num(b.get("ground_albedo"), 2)),
-        ("Ambient air temperature", f.TT(b.get("ambient_k"))),
-        ("Sky temperature", f.TT(b.get("sky_temperature_k"))),
+        ("Orientation", _text(b.orientation) or "\u2014"),
+        ("Ground albedo (solar reflectance)", num(b.ground_albedo, 2)),
+        ("Ambient air temperature", f.TT(b.ambient_k)),
+        ("Sky temperature", f.TT(b.sky_temperature_k)),
     ]
-    balance.append(("Convection coefficient h", _unit(num(b.get("h_convection_w_m2k"), 3), "W/(m\u00b2\u00b7K)")
-                    + (f" ({b['regime']} convection)" if b.get("regime") else "")))
-    outcome = [("Wall temperature, taken as the gas temperature", f.TT(b.get("wall_temperature_k")))]
+    balance.append(("Convection coefficient h", _unit(num(b.h_convection_w_m2k, 3), "W/(m\u00b2\u00b7K)")
+                    + (f" ({b.regime} convection)" if b.regime else "")))
+    outcome = [("Wall temperature, taken as the gas temperature", f.TT(b.wall_temperature_k))]
     check = None
-    tw, ta, h, q = (b.get(k) for k in ("wall_temperature_k", "ambient_k", "h_convection_w_m2k", "convected_w_m2"))
+    tw, ta, h, q = b.wall_temperature_k, b.ambient_k, b.h_convection_w_m2k, b.convected_w_m2
     if None not in (tw, ta, h, q) and tw > ta:
         check = Markup("q<sub>conv</sub> = h (T<sub>w</sub> &minus; T<sub>a</sub>) = {} W/(m&sup2;&middot;K) &times; "
                        "({} K &minus; {} K) = {} W/m&sup2;").format(num(h, 4), num(tw, 2), num(ta, 2), num(q, 2))
     return dict(balance=balance, closure=closure, inputs=inputs, outcome=outcome, check=check,
-                notes=[str(n) for n in b.get("notes") or []],
-                scenario=visible(name or ""), governing=(b is result.get("exposure")))
+                notes=[str(n) for n in b.notes],
+                scenario=visible(name or ""), governing=(b is result.exposure))
 
 
-def _scenario_rows(result: dict, f: _Fmt) -> list[dict] | None:
+def _scenario_rows(result: Result, f: _Fmt) -> list[dict] | None:
     """One row per scenario, the governing one marked in words; None for a single scenario."""
-    scenarios = result.get("scenarios") or []
+    scenarios = result.scenarios
     if len(scenarios) < 2:
         return None
     rows = []
     for sc in scenarios_worst_first(result):
-        code = str(sc.get("verdict"))
+        code = str(sc.verdict)
         word = VERDICTS.get(code, dict(mark="?", label=code))
         rows.append(dict(
-            name=visible(sc.get("name")), temperature=f.T(sc.get("worst_case_temperature_k")),
-            basis=str(sc.get("worst_case_basis") or ""), peak=f.P(sc.get("peak_pressure_pa")),
-            margin=format_percent(sc.get("margin_fraction")),
-            verdict=f"{word['mark']} {word['label']}", governs=bool(sc.get("governing")),
+            name=visible(sc.name), temperature=f.T(sc.worst_case_temperature_k),
+            basis=str(sc.worst_case_basis or ""), peak=f.P(sc.peak_pressure_pa),
+            margin=format_percent(sc.margin_fraction),
+            verdict=f"{word['mark']} {word['label']}", governs=bool(sc.governing),
         ))
     return rows
 
 
-def _tolerance_view(result: dict, f: _Fmt) -> dict | None:
+def _tolerance_view(result: Result, f: _Fmt) -> dict | None:
     """Nominal against bounding peak, the bands as entered, the bounding corner and the sensitivities."""
-    tol = result.get("tolerance")
+    tol = result.tolerance
     if not tol:
         return None
-    fill = result["fill"]
-    corner = tol.get("bounding_corner") or {}
-    by_mass = fill.get("pressure_pa") is None
+    fill = result.fill
+    corner = tol.bounding_corner
+    by_mass = fill.pressure_pa is None
     no_reading = "no reading (fill by mass)"
     side = [
-        ("Fill pressure", no_reading if by_mass else f.P(fill["pressure_pa"]),
-         no_reading if corner.get("fill_pressure_pa") is None else f.P(corner["fill_pressure_pa"])),
-        ("Fill temperature", f.T(fill.get("temperature_k")), f.T(corner.get("fill_temperature_k"))),
-        ("Worst-case gas temperature", f.T(result["worst_case_temperature_k"]),
-         f.T(corner.get("worst_case_temperature_k"))),
-        ("Peak pressure, governing model", f.PP(tol.get("nominal_peak_pressure_pa")),
-         f.PP(tol.get("bounding_peak_pressure_pa"))),
+        ("Fill pressure", no_reading if by_mass else f.P(fill.pressure_pa),
+         no_reading if corner.fill_pressure_pa is None else f.P(corner.fill_pressure_pa)),
+        ("Fill temperature", f.T(fill.temperature_k), f.T(corner.fill_temperature_k)),
+        ("Worst-case gas temperature", f.T(result.worst_case_temperature_k),
+         f.T(corner.worst_case_temperature_k)),
+        ("Peak pressure, governing model", f.PP(tol.nominal_peak_pressure_pa),
+         f.PP(tol.bounding_peak_pressure_pa)),
     ]
-    entered = tol.get("entered") or {}
+    entered = tol.entered
     bands = [
         ("tolerance.fill_pressure", _text(entered.get("fill_pressure")) or "not given",
-         "\u00b1 " + f.dP(tol.get("fill_pressure_band_pa"))),
+         "\u00b1 " + f.dP(tol.fill_pressure_band_pa)),
         ("tolerance.fill_temperature", _text(entered.get("fill_temperature")) or "not given",
-         "\u00b1 " + _unit(num(tol.get("fill_temperature_band_k"), 2), "K")),
+         "\u00b1 " + _unit(num(tol.fill_temperature_band_k, 2), "K")),
         ("tolerance.gas_temperature", _text(entered.get("gas_temperature")) or "not given",
-         "\u00b1 " + _unit(num(tol.get("gas_temperature_band_k"), 2), "K")),
+         "\u00b1 " + _unit(num(tol.gas_temperature_band_k, 2), "K")),
     ]
-    sens = tol.get("sensitivities") or {}
+    sens = tol.sensitivities
 
     def per_k(x):
         return "\u2014" if x is None else f"{num(f.dP_value(x), 4)} {f.dp_unit}/K"
 
     fill_na = " (fill by mass: no fill-pressure reading)" if by_mass else ""
     sensitivities = [
-        (Markup("&part;P<sub>peak</sub> / &part;T, worst-case gas temperature"), per_k(sens.get("dp_peak_dt_gas"))),
+        (Markup("&part;P<sub>peak</sub> / &part;T, worst-case gas temperature"), per_k(sens.dp_peak_dt_gas)),
         (Markup("&part;P<sub>peak</sub> / &part;T<sub>1</sub>, fill temperature at a fixed fill pressure"),
-         per_k(sens.get("dp_peak_dt_fill")) + ("" if sens.get("dp_peak_dt_fill") is not None else fill_na)),
+         per_k(sens.dp_peak_dt_fill) + ("" if sens.dp_peak_dt_fill is not None else fill_na)),
         (Markup("&part;P<sub>peak</sub> / &part;P<sub>1</sub>, fill pressure"),
-         ("\u2014" if sens.get("dp_peak_dp_fill") is None else f"{num(sens['dp_peak_dp_fill'], 4)} (dimensionless)")
-         + ("" if sens.get("dp_peak_dp_fill") is not None else fill_na)),
+         ("\u2014" if sens.dp_peak_dp_fill is None else f"{num(sens.dp_peak_dp_fill, 4)} (dimensionless)")
+         + ("" if sens.dp_peak_dp_fill is not None else fill_na)),
     ]
-    n = tol.get("corners_evaluated")
-    if tol.get("expected_corner_confirmed"):
+    n = tol.corners_evaluated
+    if tol.expected_corner_confirmed:
         corners = ("The sensitivities of every applicable model have the expected signs (the peak rises with the "
                    "fill pressure and the gas temperature and falls with the fill temperature), so the expected "
                    f"corner \u2014 fill pressure high, fill temperature low, gas temperature high \u2014 is the "
@@ -469,70 +471,70 @@ def _tolerance_view(result: dict, f: _Fmt) -> dict | None:
         corners = ("Not every sensitivity has the expected sign, so the expected corner is not taken on trust: "
                    f"all {n} corners of the bands were evaluated and the highest governing peak is the bounding one.")
     check = None
-    g, tf, pf = sens.get("dp_peak_dt_gas"), sens.get("dp_peak_dt_fill"), sens.get("dp_peak_dp_fill")
-    nominal = tol.get("nominal_peak_pressure_pa")
+    g, tf, pf = sens.dp_peak_dt_gas, sens.dp_peak_dt_fill, sens.dp_peak_dp_fill
+    nominal = tol.nominal_peak_pressure_pa
     if nominal is not None and g is not None:
         terms = [Markup("{}").format(f.Pabs(nominal))]
-        if pf is not None and tol.get("fill_pressure_band_pa"):
-            terms.append(Markup("{} &times; {}").format(num(pf, 4), f.dP(tol["fill_pressure_band_pa"], 2)))
-        if tf is not None and tol.get("fill_temperature_band_k"):
+        if pf is not None and tol.fill_pressure_band_pa:
+            terms.append(Markup("{} &times; {}").format(num(pf, 4), f.dP(tol.fill_pressure_band_pa, 2)))
+        if tf is not None and tol.fill_temperature_band_k:
             terms.append(Markup("{} {}/K &times; {} K").format(num(abs(f.dP_value(tf)), 4), f.dp_unit,
-                                                                  num(tol["fill_temperature_band_k"], 2)))
-        if tol.get("gas_temperature_band_k"):
+                                                                  num(tol.fill_temperature_band_k, 2)))
+        if tol.gas_temperature_band_k:
             terms.append(Markup("{} {}/K &times; {} K").format(num(f.dP_value(g), 4), f.dp_unit,
-                                                                  num(tol["gas_temperature_band_k"], 2)))
+                                                                  num(tol.gas_temperature_band_k, 2)))
         check = Markup("First order: P<sub>bound</sub> &asymp; ") + Markup(" + ").join(terms) + Markup(
             "; this should come close to the bounding peak, {} (not equal it: the isochores are not straight)."
-        ).format(f.Pabs(tol.get("bounding_peak_pressure_pa")))
+        ).format(f.Pabs(tol.bounding_peak_pressure_pa))
     return dict(side=side, bands=bands, sensitivities=sensitivities, corners=corners, check=check,
-                bounding_model=MODEL_TITLES.get(str((result.get("curves") or {}).get("bounding_model")), ""))
+                bounding_model=MODEL_TITLES.get(str(result.curves.bounding_model if result.curves else None), ""))
 
 
-def _phase_view(result: dict, f: _Fmt) -> dict | None:
+def _phase_view(result: Result, f: _Fmt) -> dict | None:
     """Phase diagram and filling-ratio paragraph of a liquefiable or condensed fill."""
     if not phase_diagram_wanted(result):
         return None
-    fill, vessel, limits = result["fill"], result["vessel"], result.get("limits") or {}
-    ref = (result.get("models") or {}).get("reference") or {}
-    pd = result.get("phase_diagram")
-    t_fill, t_wc = fill["temperature_k"], result["worst_case_temperature_k"]
+    fill, vessel, limits = result.fill, result.vessel, result.limits
+    ref = result.models["reference"]
+    pd = result.phase_diagram
+    t_fill, t_wc = fill.temperature_k, result.worst_case_temperature_k
     rows = [
-        ("Fill density", _unit(sig(fill.get("density_kg_m3"), 6), "kg/m\u00b3")),
-        ("Filling ratio (fill mass per litre of water capacity)", _unit(num(fill.get("filling_ratio_kg_per_l"), 4), "kg/L")),
+        ("Fill density", _unit(sig(fill.density_kg_m3, 6), "kg/m\u00b3")),
+        ("Filling ratio (fill mass per litre of water capacity)", _unit(num(fill.filling_ratio_kg_per_l, 4), "kg/L")),
         ("Largest filling ratio allowed for the vessel",
-         "not stated in the case" if vessel.get("max_filling_ratio_kg_per_l") is None
-         else _unit(num(vessel["max_filling_ratio_kg_per_l"], 4), "kg/L")),
+         "not stated in the case" if vessel.max_filling_ratio_kg_per_l is None
+         else _unit(num(vessel.max_filling_ratio_kg_per_l, 4), "kg/L")),
         ("Phase at fill / at the worst case",
-         f"{phase_words(result, ref.get('phase_fill') or fill.get('phase'))} / {phase_words(result, ref.get('phase_peak'))}"),
+         f"{phase_words(result, ref.phase_fill or fill.phase)} / {phase_words(result, ref.phase_peak)}"),
     ]
-    if fill.get("vapour_pressure_pa") is not None:
-        rows.append(("Vapour pressure at the fill temperature", f.P(fill["vapour_pressure_pa"])))
+    if fill.vapour_pressure_pa is not None:
+        rows.append(("Vapour pressure at the fill temperature", f.P(fill.vapour_pressure_pa)))
     if pd:
         rows += [
-            ("Critical point", f"{f.TT(pd.get('critical_temperature_k'))}, {f.PP(pd.get('critical_pressure_pa'))}"),
-            ("Critical density", _unit(sig(pd.get("critical_density_kg_m3"), 5), "kg/m\u00b3")
-             + f" = {num((pd.get('critical_density_kg_m3') or 0.0) / 1000.0, 4)} kg/L"
-             if pd.get("critical_density_kg_m3") is not None else "\u2014"),
+            ("Critical point", f"{f.TT(pd.critical_temperature_k)}, {f.PP(pd.critical_pressure_pa)}"),
+            ("Critical density", _unit(sig(pd.critical_density_kg_m3, 5), "kg/m\u00b3")
+             + f" = {num((pd.critical_density_kg_m3 or 0.0) / 1000.0, 4)} kg/L"
+             if pd.critical_density_kg_m3 is not None else "\u2014"),
         ]
-    t_lf, t_do = limits.get("liquid_full_temperature_k"), limits.get("dry_out_temperature_k")
+    t_lf, t_do = limits.liquid_full_temperature_k, limits.dry_out_temperature_k
     rows.append(("Liquid-full temperature", "none reported" if t_lf is None else f.TT(t_lf)
                  + (" (at or below the fill temperature)" if t_lf <= t_fill else "")))
     if t_do is not None and t_do >= t_fill:
         rows.append(("Temperature at which the last liquid evaporates", f.TT(t_do)))
-    if limits.get("max_fill_mass_kg") is not None:
+    if limits.max_fill_mass_kg is not None:
         rows.append(("Highest fill mass (filling ratio)",
-                     f"{format_quantity(limits['max_fill_mass_kg'], f.m_unit, 3)} "
-                     f"({num(limits.get('max_filling_ratio_kg_per_l'), 4)} kg/L)"))
+                     f"{format_quantity(limits.max_fill_mass_kg, f.m_unit, 3)} "
+                     f"({num(limits.max_filling_ratio_kg_per_l, 4)} kg/L)"))
 
     paras = []
-    ratio = fill.get("filling_ratio_kg_per_l")
+    ratio = fill.filling_ratio_kg_per_l
     if ratio is not None:
-        paras.append(f"The fill is {format_quantity(fill.get('mass_kg'), f.m_unit, 3)} in "
-                     f"{format_quantity(vessel['water_capacity_m3'], 'L')} of water capacity: a fill density of "
-                     f"{sig(fill.get('density_kg_m3'), 5)} kg/m\u00b3, that is a filling ratio of {num(ratio, 4)} kg/L"
-                     + ("." if vessel.get("max_filling_ratio_kg_per_l") is None else
+        paras.append(f"The fill is {format_quantity(fill.mass_kg, f.m_unit, 3)} in "
+                     f"{format_quantity(vessel.water_capacity_m3, 'L')} of water capacity: a fill density of "
+                     f"{sig(fill.density_kg_m3, 5)} kg/m\u00b3, that is a filling ratio of {num(ratio, 4)} kg/L"
+                     + ("." if vessel.max_filling_ratio_kg_per_l is None else
                         f", against the vessel's largest allowed filling ratio of "
-                        f"{num(vessel['max_filling_ratio_kg_per_l'], 4)} kg/L."))
+                        f"{num(vessel.max_filling_ratio_kg_per_l, 4)} kg/L."))
     if t_lf is not None:
         if t_lf > t_fill:
             text = (f"As the contents warm, the liquid expands into the vapour space; at {f.TT(t_lf)}, the "
@@ -552,11 +554,11 @@ def _phase_view(result: dict, f: _Fmt) -> dict | None:
     elif t_do is not None and t_do >= t_fill:
         paras.append(f"The fill is less dense than at the critical point: on heating the liquid evaporates, the "
                      f"last of it at {f.TT(t_do)}; above that the contents are gas and the pressure rises gently.")
-    if limits.get("max_fill_mass_kg") is not None:
+    if limits.max_fill_mass_kg is not None:
         paras.append(f"The highest fill mass for this vessel and worst case is "
-                     f"{format_quantity(limits['max_fill_mass_kg'], f.m_unit, 3)} (filling ratio "
-                     f"{num(limits.get('max_filling_ratio_kg_per_l'), 4)} kg/L), set by "
-                     f"{_text(limits.get('max_fill_mass_basis')) or 'the limits of the screening'}.")
+                     f"{format_quantity(limits.max_fill_mass_kg, f.m_unit, 3)} (filling ratio "
+                     f"{num(limits.max_filling_ratio_kg_per_l, 4)} kg/L), set by "
+                     f"{_text(limits.max_fill_mass_basis) or 'the limits of the screening'}.")
     drawable = phase_diagram_drawable(result)
     no_plot = None
     if not drawable:
@@ -566,11 +568,11 @@ def _phase_view(result: dict, f: _Fmt) -> dict | None:
                 no_plot=no_plot, liquid_full=liquid_full_marked(result))
 
 
-def _condensed_note(result: dict) -> str | None:
+def _condensed_note(result: Result) -> str | None:
     """The method section's statement for liquid and two-phase states."""
-    ref = (result.get("models") or {}).get("reference") or {}
-    fill_phase = ref.get("phase_fill") or result["fill"].get("phase")
-    peak_phase = ref.get("phase_peak")
+    ref = result.models["reference"]
+    fill_phase = ref.phase_fill or result.fill.phase
+    peak_phase = ref.phase_peak
     where = []
     if fill_phase in CONDENSED_PHASES:
         where.append(f"{fill_phase} at fill")
@@ -581,7 +583,7 @@ def _condensed_note(result: dict) -> str | None:
     text = ("The contents are " + " and ".join(where) + ". The ideal-gas law and the generalized (Lee\u2013Kesler) "
             "correlation describe a single gas phase only, so they do not apply to a liquid or a liquid\u2013vapour "
             "mixture; ")
-    if ref.get("applicable"):
+    if ref.applicable:
         text += ("the reference equation of state, which covers the liquid, the vapour and the two-phase region, "
                  "governs.")
     else:
@@ -589,261 +591,283 @@ def _condensed_note(result: dict) -> str | None:
     return text
 
 
-def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
-    """Everything the template shows, as strings (and lists of strings), from the result dict."""
-    units = result["display_units"]
-    p_unit, t_unit = pressure_unit(result), units["temperature"]
-    v_unit = units.get("volume", "L")
-    m_unit = units.get("mass", "kg")
-    atm = result["site"]["atmospheric_pressure_pa"]
-    p_abs_unit = _absolute_label(p_unit)
+def _verdict_view(result: Result) -> dict:
+    """The verdict's mark, label, line, code and style class."""
+    code = result.verdict
+    verdict = dict(VERDICTS.get(code, dict(mark="?", label=str(code), line="")))
+    verdict["code"] = str(code)
+    verdict["css"] = "v-" + (code if code in VERDICTS else "unknown")
+    return verdict
 
-    def P(pa):
-        return fmt_pressure(result, pa)
 
-    def Pabs(pa):
-        return format_pressure(pa, p_abs_unit, atm)
+def _site_line(result: Result) -> str:
+    """Site name, elevation and atmospheric pressure, as one line."""
+    site, atm = result.site, result.site.atmospheric_pressure_pa
+    parts = []
+    if site.name:
+        parts.append(visible(site.name))
+    if site.elevation_m is not None:
+        parts.append(f"elevation {num(site.elevation_m, 0)} m")
+    parts.append(f"atmospheric pressure {format_pressure(atm, 'kPa(a)', atm, 2)}")
+    return " \u00b7 ".join(parts)
 
-    def PP(pa):
-        """Gauge and absolute side by side (as the display unit's basis allows)."""
-        if pa is None:
-            return "\u2014"
-        return P(pa) if p_abs_unit == p_unit else f"{P(pa)} = {Pabs(pa)}"
 
-    def T(k):
-        return format_temperature(k, t_unit)
-
-    def TK(k):
-        return "\u2014" if k is None else f"{num(k, 2)} K"
-
-    verdict_code = result["verdict"]
-    verdict = dict(VERDICTS.get(verdict_code, dict(mark="?", label=str(verdict_code), line="")))
-    verdict["code"] = str(verdict_code)
-    verdict["css"] = "v-" + (verdict_code if verdict_code in VERDICTS else "unknown")
-
-    site = result["site"]
-    site_parts = []
-    if site.get("name"):
-        site_parts.append(visible(site["name"]))
-    if site.get("elevation_m") is not None:
-        site_parts.append(f"elevation {num(site['elevation_m'], 0)} m")
-    site_parts.append(f"atmospheric pressure {format_pressure(atm, 'kPa(a)', atm, 2)}")
-
-    doc_id = str(result["input_sha256"])[:12]
-    models = result["models"]
-    governing = result["governing_model"]
-    t_fill = result["fill"]["temperature_k"]
-    t_peak = result["worst_case_temperature_k"]
-    fill = result["fill"]
-
-    # Key figures under the verdict.
-    m_line = margin_line_pa(result)
-    tol = result.get("tolerance")
-    bounding = bool(tol) and tol.get("bounding_peak_pressure_pa") is not None
-    scenarios = result.get("scenarios") or []
-    key_figures = []
+def _key_figures(result: Result, f: _Fmt) -> list[tuple[str, str]]:
+    """The key figures under the verdict."""
+    P, T = f.P, f.T
+    t_peak = result.worst_case_temperature_k
+    tol = result.tolerance
+    scenarios = result.scenarios
+    figures = []
     if len(scenarios) > 1:
-        key_figures.append(("Governing scenario", f"{visible(result.get('governing_scenario'))} (worst of {len(scenarios)})"))
-    if bounding:
-        key_figures += [
-            ("Peak pressure, bounding the input tolerances", P(result["peak_pressure_pa"])),
+        figures.append(("Governing scenario", f"{visible(result.governing_scenario)} (worst of {len(scenarios)})"))
+    if _bounding(result):
+        figures += [
+            ("Peak pressure, bounding the input tolerances", P(result.peak_pressure_pa)),
             ("at gas temperature", f"{T(worst_case_point_temperature(result))} (worst case "
-             f"{T(t_peak)} + {num(tol.get('gas_temperature_band_k'), 1)} K; {result['worst_case_basis']})"),
-            ("Nominal peak pressure", P(tol.get("nominal_peak_pressure_pa"))),
+             f"{T(t_peak)} + {num(tol.gas_temperature_band_k, 1)} K; {result.worst_case_basis})"),
+            ("Nominal peak pressure", P(tol.nominal_peak_pressure_pa)),
         ]
     else:
-        key_figures += [
-            ("Peak pressure", P(result["peak_pressure_pa"])),
-            ("at gas temperature", f"{T(t_peak)} ({result['worst_case_basis']})"),
+        figures += [
+            ("Peak pressure", P(result.peak_pressure_pa)),
+            ("at gas temperature", f"{T(t_peak)} ({result.worst_case_basis})"),
         ]
-    key_figures += [
-        ("Rated pressure", P(result["rated_pressure_pa"])),
-        ("Margin to rated", percent_pair(result["margin_fraction"], result["required_margin_fraction"])[0]),
-        ("Required margin", percent_pair(result["margin_fraction"], result["required_margin_fraction"])[1]
-         + (" (default)" if result["required_margin_is_default"] else " (stated in the case)")),
+    margin, required = percent_pair(result.margin_fraction, result.required_margin_fraction)
+    figures += [
+        ("Rated pressure", P(result.rated_pressure_pa)),
+        ("Margin to rated", margin),
+        ("Required margin", required + (" (default)" if result.required_margin_is_default else " (stated in the case)")),
     ]
-    if result["relief_set_pressure_pa"] is not None:
-        key_figures += [
-            ("Relief set pressure", P(result["relief_set_pressure_pa"])),
-            ("Margin to relief set", format_percent(result["relief_margin_fraction"])),
+    if result.relief_set_pressure_pa is not None:
+        figures += [
+            ("Relief set pressure", P(result.relief_set_pressure_pa)),
+            ("Margin to relief set", format_percent(result.relief_margin_fraction)),
         ]
-    key_figures.append(("Governing model", MODEL_SHORT.get(governing, "none") if governing else "none"))
+    governing = result.governing_model
+    figures.append(("Governing model", MODEL_SHORT.get(governing, "none") if governing else "none"))
+    return figures
 
-    inputs = [
-        dict(key=visible(row["key"]), entered=visible(row["entered"] or ""),
-             si="\u2014" if row["si_value"] is None else sig(row["si_value"], 7),
-             si_unit=_text(row["si_unit"]) or "")
-        for row in result["inputs"]
+
+def _bounding(result: Result) -> bool:
+    """Whether the verdict rests on the peak bounding the input tolerances."""
+    return result.tolerance is not None and result.tolerance.bounding_peak_pressure_pa is not None
+
+
+def _input_rows(result: Result) -> list[dict]:
+    """The inputs as entered and in SI."""
+    return [
+        dict(key=visible(row.key), entered=visible(row.entered or ""),
+             si="\u2014" if row.si_value is None else sig(row.si_value, 7),
+             si_unit=_text(row.si_unit) or "")
+        for row in result.inputs
     ]
 
-    gas = result["gas"]
-    components = [
-        dict(name=str(c["name"]), formula=_text(c.get("formula")) or "",
-             fraction=num(c["fraction"], 4),
-             molar_mass=num(c["molar_mass_kg_mol"] * 1000.0, 4) if c.get("molar_mass_kg_mol") is not None else "\u2014",
-             coolprop=_text(c.get("coolprop_name")) or "\u2014")
-        for c in gas["components"]
+
+def _component_rows(result: Result) -> list[dict]:
+    """The gas's components."""
+    return [
+        dict(name=str(c.name), formula=_text(c.formula) or "",
+             fraction=num(c.fraction, 4),
+             molar_mass=num(c.molar_mass_kg_mol * 1000.0, 4) if c.molar_mass_kg_mol is not None else "\u2014",
+             coolprop=_text(c.coolprop_name) or "\u2014")
+        for c in result.gas.components
     ]
 
-    vessel = result["vessel"]
-    fill_rows = [
-        ("Water capacity", format_quantity(vessel["water_capacity_m3"], v_unit)),
-        ("Fill given by", str(fill["given"])),
-        ("Fill pressure", f"not given (fill by {fill['given']})" if fill["pressure_pa"] is None
-         else f"{P(fill['pressure_pa'])} = {mpa_abs(fill['pressure_pa'])} absolute"),
+
+def _fill_rows(result: Result, f: _Fmt) -> list[tuple[str, str]]:
+    """The vessel and its fill."""
+    P, T, TK = f.P, f.T, f.TK
+    vessel, fill = result.vessel, result.fill
+    t_fill = fill.temperature_k
+    rows = [
+        ("Water capacity", format_quantity(vessel.water_capacity_m3, result.display_units.get("volume", "L"))),
+        ("Fill given by", str(fill.given)),
+        ("Fill pressure", f"not given (fill by {fill.given})" if fill.pressure_pa is None
+         else f"{P(fill.pressure_pa)} = {mpa_abs(fill.pressure_pa)} absolute"),
         ("Fill temperature", f"{T(t_fill)} = {TK(t_fill)}"
-         + (" (assumed: none given)" if fill.get("temperature_given") is False else "")),
-        ("Fill mass", format_quantity(fill["mass_kg"], m_unit, 3)),
-        ("Mass density at fill", _unit(sig(fill["density_kg_m3"], 6), "kg/m\u00b3")),
-        (Markup("Molar density at fill, &rho;<sub>m</sub>"), _unit(sig(fill["molar_density_mol_m3"], 6), "mol/m\u00b3")),
-        ("Filling ratio", _unit(num(fill["filling_ratio_kg_per_l"], 4), "kg/L")
-         + ("" if vessel.get("max_filling_ratio_kg_per_l") is None
-            else f" (largest allowed {num(vessel['max_filling_ratio_kg_per_l'], 3)} kg/L)")),
-        ("Phase at fill", phase_words(result, fill["phase"])),
+         + (" (assumed: none given)" if fill.temperature_given is False else "")),
+        ("Fill mass", format_quantity(fill.mass_kg, f.m_unit, 3)),
+        ("Mass density at fill", _unit(sig(fill.density_kg_m3, 6), "kg/m\u00b3")),
+        (Markup("Molar density at fill, &rho;<sub>m</sub>"), _unit(sig(fill.molar_density_mol_m3, 6), "mol/m\u00b3")),
+        ("Filling ratio", _unit(num(fill.filling_ratio_kg_per_l, 4), "kg/L")
+         + ("" if vessel.max_filling_ratio_kg_per_l is None
+            else f" (largest allowed {num(vessel.max_filling_ratio_kg_per_l, 3)} kg/L)")),
+        ("Phase at fill", phase_words(result, fill.phase)),
     ]
-    if fill.get("vapour_pressure_pa") is not None:
-        fill_rows.append(("Vapour pressure at the fill temperature", P(fill["vapour_pressure_pa"])))
-    if vessel.get("rated_pressure_kind"):
-        fill_rows.insert(1, ("Rated pressure stands for", vessel["rated_pressure_kind"]))
+    if fill.vapour_pressure_pa is not None:
+        rows.append(("Vapour pressure at the fill temperature", P(fill.vapour_pressure_pa)))
+    if vessel.rated_pressure_kind:
+        rows.insert(1, ("Rated pressure stands for", vessel.rated_pressure_kind))
+    return rows
 
-    fill_all = [("Gas", f"{visible(gas['name'])} ({gas['kind']}); hazards: "
-                        f"{', '.join(str(h) for h in gas['hazards']) or 'none listed'}")] + fill_rows + [
-        ("Worst-case gas temperature", f"{T(t_peak)} = {TK(t_peak)} ({result['worst_case_basis']})")]
 
-    # Models: every intermediate a reviewer needs.
-    model_views = []
-    for name in ("ideal", "generalized", "reference"):
-        m = models.get(name)
-        if m is None:
-            continue
-        rows: list[tuple[str, str]] = []
-        check = None
-        rho = m.get("fill_molar_density_mol_m3")
-        peak = m.get("peak_pressure_pa")
-        if name == "ideal":
-            if rho is not None:
-                rows.append((Markup("&rho;<sub>m</sub> = P<sub>1</sub> / (R T<sub>1</sub>)"), _unit(sig(rho, 6), "mol/m\u00b3")))
-            if m.get("equation"):
-                rows.append(("Equation used", str(m["equation"])))
-            if m["applicable"] and peak is not None and fill["pressure_pa"] is not None:
-                check = Markup("P<sub>2</sub> = P<sub>1</sub> &middot; T<sub>2</sub> / T<sub>1</sub> = "
-                               "{} &times; {} K / {} K = {}").format(
-                    mpa_abs(fill["pressure_pa"]), num(t_peak, 2), num(t_fill, 2), mpa_abs(peak))
-            elif m["applicable"] and peak is not None and rho is not None:
-                check = Markup("P<sub>2</sub> = &rho;<sub>m</sub> R T<sub>2</sub> = {} mol/m&sup3; &times; {} "
-                               "J/(mol&middot;K) &times; {} K = {}").format(sig(rho, 6), R, num(t_peak, 2), mpa_abs(peak))
-        elif name == "generalized":
-            rows += [
-                (Markup("Pseudocritical temperature T<sub>pc</sub>"), TK(m.get("pseudocritical_temperature_k"))),
-                (Markup("Pseudocritical pressure P<sub>pc</sub>"), mpa_abs(m.get("pseudocritical_pressure_pa"))),
-                (Markup("Acentric factor &omega;"), num(m.get("acentric_factor"), 4)),
-                (Markup("Molar density used, &rho;<sub>m</sub>"), _unit(sig(rho, 6), "mol/m\u00b3")),
-                (Markup("At fill: T<sub>r</sub> = T<sub>1</sub>/T<sub>pc</sub>, P<sub>r</sub> = P<sub>1</sub>/P<sub>pc</sub>"),
-                 Markup("T<sub>r</sub> = {}, P<sub>r</sub> = {}").format(
-                     num(m.get('reduced_temperature_fill'), 4), num(m.get('reduced_pressure_fill'), 4))),
-                (Markup("At fill: Z<sub>1</sub>"), num(m.get("z_fill"), 5)),
-                (Markup("At peak: T<sub>r</sub> = T<sub>2</sub>/T<sub>pc</sub>, P<sub>r</sub> = P<sub>2</sub>/P<sub>pc</sub>"),
-                 Markup("T<sub>r</sub> = {}, P<sub>r</sub> = {}").format(
-                     num(m.get('reduced_temperature_peak'), 4), num(m.get('reduced_pressure_peak'), 4))),
-                (Markup("At peak: Z<sub>2</sub>"), num(m.get("z_peak"), 5)),
-                ("Equation used", _text(m.get("method")) or "\u2014"),
-                ("Mixing rule", _text(m.get("mixing_rule")) or "\u2014"),
-            ]
-            if m["applicable"] and peak is not None and rho is not None and m.get("z_peak") is not None:
-                check = _z_check(m["z_peak"], rho, t_peak, peak)
-        else:
-            rows += [
-                ("Fluid (CoolProp)", _text(m.get("fluid")) or "\u2014"),
-                (Markup("Molar density used, &rho;<sub>m</sub>"), _unit(sig(rho, 6), "mol/m\u00b3")),
-                ("Phase at fill / at peak", "\u2014" if m.get("phase_fill") is None and m.get("phase_peak") is None
-                 else f"{phase_words(result, m.get('phase_fill'))} / {phase_words(result, m.get('phase_peak'))}"),
-                (Markup("At fill: Z<sub>1</sub>"), num(m.get("z_fill"), 5)),
-                (Markup("At peak: Z<sub>2</sub>"), num(m.get("z_peak"), 5)),
-                ("Mixing rule", _text(m.get("mixing_rule")) or "\u2014"),
-            ]
-            if m["applicable"] and peak is not None and rho is not None and m.get("z_peak") is not None:
-                check = _z_check(m["z_peak"], rho, t_peak, peak)
-        rows = [(label, value) for label, value in rows if _has_value(value)]
-        model_views.append(dict(
-            key=name, title=(f"Generalized compressibility ({m['method']})" if m.get("method") else MODEL_TITLES[name]),
-            applicable=bool(m["applicable"]),
-            governs=(name == governing), peak=P(peak), peak_abs=mpa_abs(peak),
-            note=_text(m.get("note")) or "", rows=rows, check=check, validity=VALIDITY[name],
-        ))
+def _model_view(result: Result, name: str, m: ModelResult, f: _Fmt) -> dict:
+    """One model's section: every intermediate a reviewer needs, and the substituted equation."""
+    t_fill, t_peak = result.fill.temperature_k, result.worst_case_temperature_k
+    fill_p = result.fill.pressure_pa
+    rows: list[tuple[str, str]] = []
+    check = None
+    rho = m.fill_molar_density_mol_m3
+    peak = m.peak_pressure_pa
+    if name == "ideal":
+        if rho is not None:
+            rows.append((Markup("&rho;<sub>m</sub> = P<sub>1</sub> / (R T<sub>1</sub>)"), _unit(sig(rho, 6), "mol/m\u00b3")))
+        if m.equation:
+            rows.append(("Equation used", str(m.equation)))
+        if m.applicable and peak is not None and fill_p is not None:
+            check = Markup("P<sub>2</sub> = P<sub>1</sub> &middot; T<sub>2</sub> / T<sub>1</sub> = "
+                           "{} &times; {} K / {} K = {}").format(
+                mpa_abs(fill_p), num(t_peak, 2), num(t_fill, 2), mpa_abs(peak))
+        elif m.applicable and peak is not None and rho is not None:
+            check = Markup("P<sub>2</sub> = &rho;<sub>m</sub> R T<sub>2</sub> = {} mol/m&sup3; &times; {} "
+                           "J/(mol&middot;K) &times; {} K = {}").format(sig(rho, 6), R, num(t_peak, 2), mpa_abs(peak))
+    elif name == "generalized":
+        rows += [
+            (Markup("Pseudocritical temperature T<sub>pc</sub>"), f.TK(m.pseudocritical_temperature_k)),
+            (Markup("Pseudocritical pressure P<sub>pc</sub>"), mpa_abs(m.pseudocritical_pressure_pa)),
+            (Markup("Acentric factor &omega;"), num(m.acentric_factor, 4)),
+            (Markup("Molar density used, &rho;<sub>m</sub>"), _unit(sig(rho, 6), "mol/m\u00b3")),
+            (Markup("At fill: T<sub>r</sub> = T<sub>1</sub>/T<sub>pc</sub>, P<sub>r</sub> = P<sub>1</sub>/P<sub>pc</sub>"),
+             Markup("T<sub>r</sub> = {}, P<sub>r</sub> = {}").format(
+                 num(m.reduced_temperature_fill, 4), num(m.reduced_pressure_fill, 4))),
+            (Markup("At fill: Z<sub>1</sub>"), num(m.z_fill, 5)),
+            (Markup("At peak: T<sub>r</sub> = T<sub>2</sub>/T<sub>pc</sub>, P<sub>r</sub> = P<sub>2</sub>/P<sub>pc</sub>"),
+             Markup("T<sub>r</sub> = {}, P<sub>r</sub> = {}").format(
+                 num(m.reduced_temperature_peak, 4), num(m.reduced_pressure_peak, 4))),
+            (Markup("At peak: Z<sub>2</sub>"), num(m.z_peak, 5)),
+            ("Equation used", _text(m.method) or "\u2014"),
+            ("Mixing rule", _text(m.mixing_rule) or "\u2014"),
+        ]
+        if m.applicable and peak is not None and rho is not None and m.z_peak is not None:
+            check = _z_check(m.z_peak, rho, t_peak, peak)
+    else:
+        rows += [
+            ("Fluid (CoolProp)", _text(m.fluid) or "\u2014"),
+            (Markup("Molar density used, &rho;<sub>m</sub>"), _unit(sig(rho, 6), "mol/m\u00b3")),
+            ("Phase at fill / at peak", "\u2014" if m.phase_fill is None and m.phase_peak is None
+             else f"{phase_words(result, m.phase_fill)} / {phase_words(result, m.phase_peak)}"),
+            (Markup("At fill: Z<sub>1</sub>"), num(m.z_fill, 5)),
+            (Markup("At peak: Z<sub>2</sub>"), num(m.z_peak, 5)),
+            ("Mixing rule", _text(m.mixing_rule) or "\u2014"),
+        ]
+        if m.applicable and peak is not None and rho is not None and m.z_peak is not None:
+            check = _z_check(m.z_peak, rho, t_peak, peak)
+    rows = [(label, value) for label, value in rows if _has_value(value)]
+    return dict(
+        key=name, title=(f"Generalized compressibility ({m.method})" if m.method else MODEL_TITLES[name]),
+        applicable=bool(m.applicable),
+        governs=(name == result.governing_model), peak=f.P(peak), peak_abs=mpa_abs(peak),
+        note=_text(m.note) or "", rows=rows, check=check, validity=VALIDITY[name],
+    )
 
+
+def _margin_view(result: Result, f: _Fmt) -> tuple[list[tuple[str, str]], str | None]:
+    """The margin section's rows and its worked check."""
+    atm = result.site.atmospheric_pressure_pa
+    margin, required = percent_pair(result.margin_fraction, result.required_margin_fraction)
+    rows = [
+        ("Peak pressure" + (", bounding the input tolerances" if _bounding(result) else ""),
+         f.PP(result.peak_pressure_pa)),
+        ("Rated pressure", f.PP(result.rated_pressure_pa)),
+        ("Rated \u00d7 (1 \u2212 required margin)", f.P(margin_line_pa(result))),
+        ("Margin to rated", margin),
+        ("Required margin", required
+         + (" (tool default)" if result.required_margin_is_default else " (stated in the case)")),
+    ]
+    check = None
+    if result.peak_pressure_pa is not None and result.margin_fraction is not None:
+        check = (f"1 \u2212 {format_pressure(result.peak_pressure_pa, 'MPa(g)', atm, 4)} / "
+                 f"{format_pressure(result.rated_pressure_pa, 'MPa(g)', atm, 4)} = "
+                 f"{format_percent(result.margin_fraction, 2)}")
+    if result.relief_set_pressure_pa is not None:
+        rows += [
+            ("Relief set pressure", f.PP(result.relief_set_pressure_pa)),
+            ("Margin to relief set pressure", format_percent(result.relief_margin_fraction, 2)),
+        ]
+    else:
+        rows.append(("Relief set pressure", "not stated"))
+    return rows, check
+
+
+def _limit_rows(result: Result, f: _Fmt) -> list[tuple[str, str]]:
+    """What the vessel allows."""
+    P, T = f.P, f.T
+    limits, t_fill = result.limits, result.fill.temperature_k
+    max_fill_p = limits.max_fill_pressure_pa
+    rows = [
+        ("Highest gas temperature (rated pressure reached)", T(limits.max_gas_temperature_k)),
+        (f"Highest fill pressure at {T(t_fill)}",
+         "not given (fill by mass)" if max_fill_p is None and result.fill.given == "mass" else P(max_fill_p)),
+    ]
+    if limits.max_fill_mass_kg is not None:
+        rows.append(("Largest fill mass", format_quantity(limits.max_fill_mass_kg, f.m_unit, 3)))
+    if limits.target_peak_pressure_pa is not None:
+        rows.append(("Peak these limits aim at", P(limits.target_peak_pressure_pa)))
+    # Phase-change temperatures matter only on the heating path, from the fill temperature upwards.
+    if limits.dry_out_temperature_k is not None and limits.dry_out_temperature_k >= t_fill:
+        rows.append(("Temperature at which the last liquid evaporates", T(limits.dry_out_temperature_k)))
+    if limits.liquid_full_temperature_k is not None and limits.liquid_full_temperature_k >= t_fill:
+        rows.append(("Temperature at which the liquid fills the vessel", T(limits.liquid_full_temperature_k)))
+    return rows
+
+
+def _worst_case_line(result: Result, f: _Fmt, exposure: dict | None, scenario_rows: list | None) -> str:
+    """Where the worst-case gas temperature comes from, in one sentence."""
+    t_peak = result.worst_case_temperature_k
+    if exposure is None or not exposure["governing"]:
+        basis = str(result.worst_case_basis)
+        return (f"The worst-case gas temperature, {f.T(t_peak)}, is the {basis}"
+                + (f" of the governing scenario, \u2018{visible(result.governing_scenario)}\u2019" if scenario_rows else "")
+                + (". No sun exposure is modelled for it, so no energy balance is shown."
+                   if exposure is None else
+                   f". The energy balance below is that of the scenario \u2018{exposure['scenario']}\u2019 "
+                   "in the sun, which does not govern."))
+    return (f"The worst-case gas temperature, {f.T(t_peak)}, is the {result.worst_case_basis}"
+            + (f" of the governing scenario, \u2018{exposure['scenario']}\u2019" if scenario_rows else "")
+            + ": the steady wall temperature at which the sunlight absorbed balances the heat "
+              "carried away by convection and radiation. The gas is taken at the wall temperature.")
+
+
+def build_view(result: Result, case_text: str, report_date: _dt.date) -> dict:
+    """Everything the template shows, as strings (and lists of strings), from the result; each section
+    is built by its own function above."""
+    f = _Fmt(result)
+    verdict = _verdict_view(result)
+    verdict_code = result.verdict
+    doc_id = str(result.input_sha256)[:12]
+    governing = result.governing_model
+    t_peak = result.worst_case_temperature_k
+    gas = result.gas
+
+    key_figures = _key_figures(result, f)
+    inputs = _input_rows(result)
+    fill_rows = _fill_rows(result, f)
+    fill_all = [("Gas", f"{visible(gas.name)} ({gas.kind}); hazards: "
+                        f"{', '.join(str(h) for h in gas.hazards) or 'none listed'}")] + fill_rows + [
+        ("Worst-case gas temperature", f"{f.T(t_peak)} = {f.TK(t_peak)} ({result.worst_case_basis})")]
+    model_views = [_model_view(result, name, result.models[name], f)
+                   for name in ("ideal", "generalized", "reference") if name in result.models]
     comparison = [
         dict(title=mv["title"], applicable="yes" if mv["applicable"] else "no", peak=mv["peak"],
              peak_abs=mv["peak_abs"], governs="governs" if mv["governs"] else "")
         for mv in model_views
     ]
+    margin_rows, margin_check = _margin_view(result, f)
+    eos_refs = [str(x) for x in result.models["reference"].eos_references or ()]
 
-    # Margin section.
-    margin_rows = [
-        ("Peak pressure" + (", bounding the input tolerances" if bounding else ""), PP(result['peak_pressure_pa'])),
-        ("Rated pressure", PP(result['rated_pressure_pa'])),
-        ("Rated \u00d7 (1 \u2212 required margin)", P(m_line)),
-        ("Margin to rated", percent_pair(result["margin_fraction"], result["required_margin_fraction"])[0]),
-        ("Required margin", percent_pair(result["margin_fraction"], result["required_margin_fraction"])[1]
-         + (" (tool default)" if result["required_margin_is_default"] else " (stated in the case)")),
-    ]
-    margin_check = None
-    if result["peak_pressure_pa"] is not None and result["margin_fraction"] is not None:
-        margin_check = (f"1 \u2212 {format_pressure(result['peak_pressure_pa'], 'MPa(g)', atm, 4)} / "
-                        f"{format_pressure(result['rated_pressure_pa'], 'MPa(g)', atm, 4)} = "
-                        f"{format_percent(result['margin_fraction'], 2)}")
-    if result["relief_set_pressure_pa"] is not None:
-        margin_rows += [
-            ("Relief set pressure", PP(result['relief_set_pressure_pa'])),
-            ("Margin to relief set pressure", format_percent(result["relief_margin_fraction"], 2)),
-        ]
-    else:
-        margin_rows.append(("Relief set pressure", "not stated"))
-
-    limits = result["limits"]
-    max_fill_p = limits.get("max_fill_pressure_pa")
-    limit_rows = [
-        ("Highest gas temperature (rated pressure reached)", T(limits.get("max_gas_temperature_k"))),
-        (f"Highest fill pressure at {T(t_fill)}",
-         "not given (fill by mass)" if max_fill_p is None and fill["given"] == "mass" else P(max_fill_p)),
-    ]
-    if limits.get("max_fill_mass_kg") is not None:
-        limit_rows.append(("Largest fill mass", format_quantity(limits["max_fill_mass_kg"], m_unit, 3)))
-    if limits.get("target_peak_pressure_pa") is not None:
-        limit_rows.append(("Peak these limits aim at", P(limits["target_peak_pressure_pa"])))
-    # Phase-change temperatures matter only on the heating path, from the fill temperature upwards.
-    if limits.get("dry_out_temperature_k") is not None and limits["dry_out_temperature_k"] >= t_fill:
-        limit_rows.append(("Temperature at which the last liquid evaporates", T(limits["dry_out_temperature_k"])))
-    if limits.get("liquid_full_temperature_k") is not None and limits["liquid_full_temperature_k"] >= t_fill:
-        limit_rows.append(("Temperature at which the liquid fills the vessel", T(limits["liquid_full_temperature_k"])))
-
-    eos_refs = [str(x) for x in (models.get("reference") or {}).get("eos_references") or []]
-
-    fmt = _Fmt(result)
-    exposure = _exposure_view(result, fmt)
-    scenario_rows = _scenario_rows(result, fmt)
-    tolerance = _tolerance_view(result, fmt)
-    phase = _phase_view(result, fmt)
+    exposure = _exposure_view(result, f)
+    scenario_rows = _scenario_rows(result, f)
+    tolerance = _tolerance_view(result, f)
+    phase = _phase_view(result, f)
     order = ["results", "inputs", "exposure"] \
         + (["phase"] if phase else []) + (["tolerance"] if tolerance else [])
     sections = {key: str(i) for i, key in enumerate(order, start=1)}
-    if exposure is None or not exposure["governing"]:
-        basis = str(result["worst_case_basis"])
-        worst_case_line = (f"The worst-case gas temperature, {T(t_peak)}, is the {basis}"
-                           + (f" of the governing scenario, \u2018{visible(result.get('governing_scenario'))}\u2019" if scenario_rows else "")
-                           + (". No sun exposure is modelled for it, so no energy balance is shown."
-                              if exposure is None else
-                              f". The energy balance below is that of the scenario \u2018{exposure['scenario']}\u2019 "
-                              "in the sun, which does not govern."))
-    else:
-        worst_case_line = (f"The worst-case gas temperature, {T(t_peak)}, is the {result['worst_case_basis']}"
-                           + (f" of the governing scenario, \u2018{exposure['scenario']}\u2019" if scenario_rows else "")
-                           + ": the steady wall temperature at which the sunlight absorbed balances the heat "
-                             "carried away by convection and radiation. The gas is taken at the wall temperature.")
 
     created = f"{report_date.isoformat()}T00:00:00Z"
-    cautions = result["cautions"]
-    description = None if result.get("description") is None else visible(result["description"])
-    title = f"Heat-exposure pressure screening \u2014 {result['id']}"
+    cautions = result.cautions
+    description = None if result.description is None else visible(result.description)
+    title = f"Heat-exposure pressure screening \u2014 {result.id}"
     return dict(
         title=title,
         # The <meta> tags carry only text this tool writes; case text is added to the PDF
@@ -852,39 +876,40 @@ def build_view(result: dict, case_text: str, report_date: _dt.date) -> dict:
             description=f"Pressure screening: {verdict['label']} ({verdict_code})",
             keywords=", ".join(("pressure screening", f"verdict {verdict_code}", f"document {doc_id}")),
             created=created,
-            generator=f"screening {result['tool_version']}",
+            generator=f"screening {result.tool_version}",
         ),
         pdf_metadata=dict(
             description=f"Pressure screening: {verdict['label']} ({verdict_code}). " + (description or ""),
             keywords=["pressure screening", f"verdict {verdict_code}", f"document {doc_id}",
-                      f"case {result['id']}", f"gas {gas['name']}"],
+                      f"case {result.id}", f"gas {gas.name}"],
         ),
-        case_id=visible(result["id"]), description=description, site_line=" \u00b7 ".join(site_parts),
+        case_id=visible(result.id), description=description, site_line=_site_line(result),
         source=visible(_case_name(result)), report_date=report_date.isoformat(),
-        tool_version=str(result["tool_version"]), doc_id=doc_id, input_sha256=str(result["input_sha256"]),
+        tool_version=str(result.tool_version), doc_id=doc_id, input_sha256=str(result.input_sha256),
         verdict=verdict, reasons=reasons_shown(result), action=action_line(result),
-        warnings=[dict(code=str(w["code"]), message=visible(w["message"])) for w in result["warnings"]],
+        warnings=[dict(code=str(w.code), message=visible(w.message)) for w in result.warnings],
         key_figures=key_figures,
         key_figure_rows=[key_figures[i:i + 2] for i in range(0, len(key_figures), 2)],
         inputs=inputs,
         input_rows=[inputs[i:i + 3] for i in range(0, len(inputs), 3)],
         fill_pairs=[fill_all[i:i + 2] for i in range(0, len(fill_all), 2)],
-        gas=dict(name=str(gas["name"]), kind=str(gas["kind"]), hazards=", ".join(str(h) for h in gas["hazards"]) or "none listed"),
-        components=components, fill_rows=fill_rows,
-        worst_case=dict(temperature=f"{T(t_peak)} = {TK(t_peak)}", basis=str(result["worst_case_basis"])),
+        gas=dict(name=str(gas.name), kind=str(gas.kind), hazards=", ".join(str(h) for h in gas.hazards) or "none listed"),
+        components=_component_rows(result), fill_rows=fill_rows,
+        worst_case=dict(temperature=f"{f.T(t_peak)} = {f.TK(t_peak)}", basis=str(result.worst_case_basis)),
         models=model_views, comparison=comparison,
         governing=dict(title=MODEL_TITLES.get(governing, "none") if governing else "none",
-                       reason=str(result["governing_reason"])),
+                       reason=str(result.governing_reason)),
         margin_rows=margin_rows, margin_check=margin_check,
-        limit_rows=limit_rows, limits_note=_text(limits.get("note")) or "",
+        limit_rows=_limit_rows(result, f), limits_note=_text(result.limits.note) or "",
         plot_uri=svg_data_uri(plot_svg(result)) if drawable_models(result) else None,
-        sections=sections, exposure=exposure, worst_case_line=worst_case_line, scenarios=scenario_rows,
-        scenario_tolerance=bounding, tolerance=tolerance, phase=phase, condensed_note=_condensed_note(result),
-        governing_scenario=visible(result.get("governing_scenario") or ""),
-        p_unit=p_unit, t_unit=format_temperature(0.0, t_unit).split(" ", 1)[1],
+        sections=sections, exposure=exposure, worst_case_line=_worst_case_line(result, f, exposure, scenario_rows),
+        scenarios=scenario_rows,
+        scenario_tolerance=_bounding(result), tolerance=tolerance, phase=phase, condensed_note=_condensed_note(result),
+        governing_scenario=visible(result.governing_scenario or ""),
+        p_unit=f.p_unit, t_unit=format_temperature(0.0, f.t_unit).split(" ", 1)[1],
         R=str(R),
-        caution=str(cautions["caution"]), short_caution=str(cautions["short_caution"]),
-        assumptions=[str(a) for a in cautions["assumptions"]],
+        caution=str(cautions.caution), short_caution=str(cautions.short_caution),
+        assumptions=[str(a) for a in cautions.assumptions],
         references=list(GENERAL_REFERENCES) + eos_refs,
         eos_refs_given=bool(eos_refs),
         case_text=visible(case_text, keep_newlines=True),
@@ -924,22 +949,21 @@ def _case_columns(text: str) -> str:
     return "\n".join((a.ljust(width) + "   " + b).rstrip() for a, b in zip(left, right)) + "\n"
 
 
-def _case_name(result: dict) -> str:
-    name = PurePath(str(result["source"]).replace("\\", "/")).name
+def _case_name(result: Result) -> str:
+    name = PurePath(str(result.source).replace("\\", "/")).name
     return name or "case.toml"
 
 
-def _result_name(result: dict) -> str:
+def _result_name(result: Result) -> str:
     return PurePath(_case_name(result)).stem + ".result.json"
 
 
-def result_json(result: dict) -> str:
+def result_json(result: Result) -> str:
     """The result as the JSON text that travels inside the PDF (stable key order). Its ``source`` is the
     case file's name only: a document sent out carries no folder of the machine it was made on, and its
     bytes do not depend on how the path was typed."""
-    shown = dict(result)
-    if "source" in shown:
-        shown["source"] = _case_name(result)
+    shown = result.to_json()
+    shown["source"] = _case_name(result)
     return json.dumps(shown, sort_keys=True, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
 
 
@@ -962,12 +986,12 @@ def _render_html(view: dict, folder: Path) -> str:
     return _environment(folder).get_template(TEMPLATE_NAME).render(v=view)
 
 
-def render_html(result: dict, case_text: str, report_date: _dt.date) -> str:
+def render_html(result: Result, case_text: str, report_date: _dt.date) -> str:
     """The report's HTML (useful for looking at the layout in a browser)."""
     return _render_html(build_view(result, case_text, report_date), templates_dir())
 
 
-def render_pdf_bytes(result: dict, case_text: str, *, report_date: _dt.date) -> bytes:
+def render_pdf_bytes(result: Result, case_text: str, *, report_date: _dt.date) -> bytes:
     """The PDF bytes of the report (no file written)."""
     import weasyprint
 
@@ -985,7 +1009,7 @@ def render_pdf_bytes(result: dict, case_text: str, *, report_date: _dt.date) -> 
                               created=stamp, modified=stamp, relationship="Data", url_fetcher=fetcher),
     ]
     identifier = hashlib.sha256(
-        f"{result['input_sha256']}|{result['tool_version']}|{report_date.isoformat()}".encode()
+        f"{result.input_sha256}|{result.tool_version}|{report_date.isoformat()}".encode()
     ).hexdigest()[:32].encode("ascii")
     from weasyprint.urls import FatalURLFetchingError
 
@@ -1005,7 +1029,7 @@ def render_pdf_bytes(result: dict, case_text: str, *, report_date: _dt.date) -> 
         raise ReportRenderError(f"{exc}: {cause}" if cause else str(exc)) from cause
 
 
-def render_report(result: dict, case_text: str, out_path: str | os.PathLike, *, report_date: _dt.date) -> Path:
+def render_report(result: Result, case_text: str, out_path: str | os.PathLike, *, report_date: _dt.date) -> Path:
     """Write the PDF report of `result` (with `case_text` attached) to `out_path`; return the path.
 
     Raises InputError if the target is a directory, its folder is missing or it cannot be written.

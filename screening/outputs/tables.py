@@ -20,6 +20,7 @@ import math
 import re
 
 from screening.cautions import ASSUMPTIONS, CAUTION
+from screening.constants import P_STANDARD_ATMOSPHERE
 from screening.units import format_pressure, format_temperature, pressure_in, temperature_in
 from screening.verdicts import LISTING_ORDER
 
@@ -39,7 +40,7 @@ def file_units(result: dict | None) -> tuple[str, str]:
 
 
 def result_headers(pu: str, tu: str) -> list[str]:
-    p = format_pressure(101325.0, pu, 101325.0).split(" ", 1)[1]
+    p = format_pressure(P_STANDARD_ATMOSPHERE, pu, P_STANDARD_ATMOSPHERE).split(" ", 1)[1]   # the unit's label
     t = format_temperature(300.0, tu).split(" ", 1)[1]
     return [f"peak_pressure [{p}]", "governing_model", "margin [%]", "verdict", "reasons",
             f"max_gas_temperature [{t}]", f"max_fill_pressure [{p}]", "warnings"]
@@ -57,8 +58,8 @@ def result_values(r: dict, pu: str, tu: str) -> list:
     reasons = " ".join(str(x) for x in r.get("reasons") or [])
     if r["verdict"] == "input-error":
         return [None, "", None, "input-error", reasons, None, None, warnings]
-    atm = (r.get("site") or {}).get("atmospheric_pressure_pa") or 101325.0
-    lim = r.get("limits") or {}
+    atm = r["site"]["atmospheric_pressure_pa"]
+    lim = r["limits"]
 
     def P(p):
         return None if p is None else _num(pressure_in(p, pu, atm))
@@ -66,9 +67,9 @@ def result_values(r: dict, pu: str, tu: str) -> list:
     def T(t):
         return None if t is None else _num(temperature_in(t, tu))
 
-    m = r.get("margin_fraction")
-    return [P(r.get("peak_pressure_pa")), r.get("governing_model") or "", None if m is None else _num(100.0 * m),
-            r["verdict"], reasons, T(lim.get("max_gas_temperature_k")), P(lim.get("max_fill_pressure_pa")), warnings]
+    m = r["margin_fraction"]
+    return [P(r["peak_pressure_pa"]), r["governing_model"] or "", None if m is None else _num(100.0 * m),
+            r["verdict"], reasons, T(lim["max_gas_temperature_k"]), P(lim["max_fill_pressure_pa"]), warnings]
 
 
 class CsvTable:

@@ -10,6 +10,8 @@ from __future__ import annotations
 import re
 import unicodedata
 
+from screening.constants import P_STANDARD_ATMOSPHERE
+from screening.result import Result
 from screening.units import (
     format_temperature,
     percent_pair,  # noqa: F401  (views import it from here)
@@ -63,46 +65,45 @@ def _entered_unit(entered: str) -> str:
     return m.group(1) if m else ""
 
 
-def pressure_unit(result: dict) -> str:
+def pressure_unit(result: Result) -> str:
     """The pressure unit as the user wrote it in the case ('psig' stays 'psig', 'bar(g)' stays 'bar(g)'):
     the unit of the first pressure among the inputs, where the unit table knows it; the result's display
     unit otherwise."""
-    fallback = (result.get("display_units") or {}).get("pressure", "bar(g)")
-    for item in result.get("inputs") or []:
-        if str(item.get("si_unit", "")).startswith("Pa"):
-            unit = _entered_unit(item.get("entered") or "")
+    for item in result.inputs:
+        if str(item.si_unit).startswith("Pa"):
+            unit = _entered_unit(item.entered)
             try:
-                pressure_in(101325.0, unit, 101325.0)
+                pressure_in(P_STANDARD_ATMOSPHERE, unit, P_STANDARD_ATMOSPHERE)   # a unit the table knows?
             except (KeyError, ValueError, TypeError):
                 continue
             return unit
-    return fallback
+    return result.display_units.get("pressure", "bar(g)")
 
 
-def fmt_pressure(result: dict, p_abs_pa: float | None, digits: int | None = None) -> str:
+def fmt_pressure(result: Result, p_abs_pa: float | None, digits: int | None = None) -> str:
     """A pressure of the result in the unit the user wrote ('2764.6 psig'); '—' for None."""
     if p_abs_pa is None:
         return "\u2014"
     unit = pressure_unit(result)
-    atm = result["site"]["atmospheric_pressure_pa"]
+    atm = result.site.atmospheric_pressure_pa
     v = pressure_in(p_abs_pa, unit, atm)
     if digits is None:
         digits = 1 if abs(v) >= 10 else 2 if abs(v) >= 1 else 3
     return f"{v:.{digits}f} {unit}"
 
 
-def fmt_temperature(result: dict, t_k: float | None) -> str:
+def fmt_temperature(result: Result, t_k: float | None) -> str:
     """A temperature of the result in the user's scale ('65.0 °C'); '—' for None."""
-    return format_temperature(t_k, (result.get("display_units") or {}).get("temperature", "degC"))
+    return format_temperature(t_k, result.display_units.get("temperature", "degC"))
 
 
-def reasons_shown(result: dict) -> list[str]:
+def reasons_shown(result: Result) -> list[str]:
     """The result's reasons as a reader sees them: made visible (see :func:`visible`). Their percentages come
     from the engine already rounded so that they never contradict each other (units.percent_pair)."""
-    return [visible(reason) for reason in result.get("reasons") or []]
+    return [visible(reason) for reason in result.reasons]
 
 
-def phase_words(result: dict, phase: object) -> str:
+def phase_words(result: Result, phase: object) -> str:
     """A phase name as a reader understands it. CoolProp calls every state above the critical temperature
     'supercritical'; below the critical pressure that is plainly a gas (10 bar(g) air), above it a dense
     gas above its critical point. The critical pressure is the generalized model's (pseudo)critical one."""
@@ -111,8 +112,8 @@ def phase_words(result: dict, phase: object) -> str:
     text = str(phase)
     if text not in ("supercritical", "supercritical_gas", "supercritical gas"):
         return visible(text.replace("_", " "))
-    pc = ((result.get("models") or {}).get("generalized") or {}).get("pseudocritical_pressure_pa")
-    p_fill = (result.get("fill") or {}).get("pressure_pa")
+    pc = result.models["generalized"].pseudocritical_pressure_pa
+    p_fill = result.fill.pressure_pa
     if text != "supercritical" or (pc is not None and p_fill is not None and p_fill < pc):
         return "gas (above its critical temperature)"
     return "supercritical (dense gas above its critical point)"

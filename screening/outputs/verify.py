@@ -38,8 +38,10 @@ import math
 import re
 import unicodedata
 from pathlib import Path
+from typing import Callable
 
 from screening.errors import InputError
+from screening.result import Result
 
 RELATIVE_TOLERANCE = 1e-9
 RESULT_SUFFIX = ".result.json"
@@ -186,21 +188,31 @@ def _same_pressure(a, b) -> bool:
     return abs(a - b) <= RELATIVE_TOLERANCE * max(abs(a), abs(b))
 
 
-def _shown(p, result: dict) -> str:
-    """A pressure [Pa, absolute] in the case's own unit, with the exact SI value that was compared."""
+def _shown(p, unit: object, atm: object) -> str:
+    """A pressure [Pa, absolute] in the case's own unit (gauge against the site's atmosphere `atm` [Pa]),
+    with the exact SI value that was compared; in bar(a) where the unit or the atmosphere is not usable
+    (an attached result is read as it is, whatever it holds)."""
     if p is None:
         return "none"
     if not isinstance(p, (int, float)) or not math.isfinite(p):
         return repr(p)
     from screening.units import format_pressure
 
-    unit = (result.get("display_units") or {}).get("pressure") or "bar(g)"
-    atm = (result.get("site") or {}).get("atmospheric_pressure_pa") or 101325.0
     try:
-        text = format_pressure(p, unit, atm, digits=3)
+        if not isinstance(atm, (int, float)) or not math.isfinite(atm):
+            raise ValueError("no atmospheric pressure")
+        text = format_pressure(p, unit if isinstance(unit, str) and unit else "bar(g)", atm, digits=3)
     except (KeyError, TypeError, ValueError):
-        text = format_pressure(p, "bar(a)", atm, digits=3)
+        text = format_pressure(p, "bar(a)", 0.0, digits=3)   # absolute: the atmosphere plays no part
     return f"{text} [{p!r} Pa absolute]"
+
+
+def _attached_units(attached: dict) -> tuple[object, object]:
+    """(pressure unit, atmospheric pressure) as an attached result dict states them (None where it does not)."""
+    units = attached.get("display_units")
+    site = attached.get("site")
+    return (units.get("pressure") if isinstance(units, dict) else None,
+            site.get("atmospheric_pressure_pa") if isinstance(site, dict) else None)
 
 
 def report_date(created: str) -> _dt.date | None:
@@ -214,7 +226,7 @@ def report_date(created: str) -> _dt.date | None:
         return None
 
 
-def _pages_check(pdf: _Pdf, case_text: str, fresh: dict, attached: dict) -> tuple[bool | None, str]:
+def _pages_check(pdf: _Pdf, case_text: str, fresh: Result, attached: dict) -> tuple[bool | None, str]:
     """(True/False, detail) comparing the pages with a new render; (None, why) when it cannot be done."""
     from screening import __version__
 
@@ -273,11 +285,16 @@ def _single_in_batch_message(pdf: _Pdf, pdf_path) -> str:
     ])
 
 
-def verify_report(pdf_path: str | Path) -> tuple[bool, str]:
-    """Re-run the case attached to `pdf_path` and render its pages again; (True, message) if both agree."""
+def verify_report(pdf_path: str | Path, *, run_batch: Callable[[object], int] | None = None) -> tuple[bool, str]:
+    """Re-run the case attached to `pdf_path` and render its pages again; (True, message) if both agree.
+
+    `run_batch` is the batch command (`screening.batch.run`, given by the command layer: outputs import
+    nothing above them); a batch report needs it to screen its inventory again."""
     pdf = _open(pdf_path)
     if any(n.endswith(RUN_SUFFIX) for n in pdf.copies):
-        return _verify_batch(pdf, pdf_path)
+        if run_batch is None:
+            raise TypeError("verifying a batch report needs the batch command (run_batch)")
+        return _verify_batch(pdf, pdf_path, run_batch)
     has_result = any(n.endswith(RESULT_SUFFIX) for n in pdf.copies)
     if has_result and pdf.title.startswith(BATCH_TITLE):
         return False, "\n".join(map(_visible, _single_in_batch_message(pdf, pdf_path).split("\n")))
@@ -293,12 +310,13 @@ def verify_report(pdf_path: str | Path) -> tuple[bool, str]:
     fresh = screen_text(case_text, source)
 
     sha = hashlib.sha256(case_text.encode("utf-8")).hexdigest()
+    fresh_unit = fresh.display_units.get("pressure", "bar(g)")
     checks = [
         ("case text SHA-256", attached.get("input_sha256"), sha, attached.get("input_sha256") == sha),
-        ("verdict", attached.get("verdict"), fresh["verdict"], attached.get("verdict") == fresh["verdict"]),
-        ("peak pressure", _shown(attached.get("peak_pressure_pa"), attached),
-         _shown(fresh["peak_pressure_pa"], fresh),
-         _same_pressure(attached.get("peak_pressure_pa"), fresh["peak_pressure_pa"])),
+        ("verdict", attached.get("verdict"), fresh.verdict.value, attached.get("verdict") == fresh.verdict),
+        ("peak pressure", _shown(attached.get("peak_pressure_pa"), *_attached_units(attached)),
+         _shown(fresh.peak_pressure_pa, fresh_unit, fresh.site.atmospheric_pressure_pa),
+         _same_pressure(attached.get("peak_pressure_pa"), fresh.peak_pressure_pa)),
     ]
     rerun_ok = all(ok for *_, ok in checks)
     pages_ok, pages_detail = _pages_check(pdf, case_text, fresh, attached)
@@ -411,15 +429,13 @@ def _safe_name(name: str, fallback: str) -> str:
     return base[:200] or fallback
 
 
-def _rerun_batch(record: dict, inv_bytes: bytes, defaults_bytes: bytes | None, date, render: bool):
+def _rerun_batch(record: dict, inv_bytes: bytes, defaults_bytes: bytes | None, date, render: bool, run_batch):
     """Screen the attached inventory again through `screening batch` in a temporary folder:
     (results, fresh PDF bytes or None)."""
     import contextlib
     import io
     import tempfile
     import types
-
-    from screening.batch import run as run_batch
 
     options = record.get("options") if isinstance(record.get("options"), dict) else {}
     with tempfile.TemporaryDirectory(prefix="screening-verify-") as tmp:
@@ -450,7 +466,7 @@ def _rerun_batch(record: dict, inv_bytes: bytes, defaults_bytes: bytes | None, d
     return results, fresh
 
 
-def _verify_batch(pdf: _Pdf, pdf_path) -> tuple[bool, str]:
+def _verify_batch(pdf: _Pdf, pdf_path, run_batch) -> tuple[bool, str]:
     """Verify a batch report: its attachments, a re-run of its inventory, and its pages."""
     import io
 
@@ -502,7 +518,7 @@ def _verify_batch(pdf: _Pdf, pdf_path) -> tuple[bool, str]:
             checks.append(("report date", record_date, f"{date.isoformat()} (the PDF's date)"))
         render = version == __version__ and date is not None
         try:
-            results, fresh = _rerun_batch(record, inv_bytes, d_bytes, date, render)
+            results, fresh = _rerun_batch(record, inv_bytes, d_bytes, date, render, run_batch)
         except InputError as exc:
             results, fresh = None, None
             rerun_lines.append(f"    the attached inventory cannot be screened again: {exc}")

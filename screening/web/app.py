@@ -177,7 +177,7 @@ class App:
         if name == "case.toml":
             return _download(a.case_text.encode("utf-8"), "application/toml; charset=utf-8", a.source)
         if name == "result.json":
-            body = json.dumps(a.result, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+            body = json.dumps(a.result.to_json(), indent=2, ensure_ascii=False, allow_nan=False) + "\n"
             return _download(body.encode("utf-8"), "application/json", f"{stem}.result.json")
         if name == "report.pdf":
             return _download(await run_in_threadpool(self.runner.pdf, a), "application/pdf", f"{stem}.pdf")

@@ -15,6 +15,7 @@ import os
 import time
 
 from screening.errors import InputError
+from screening.result import Result
 
 #: A small case screened once by every worker as it starts, so that the first answer finds the
 #: equations of state, the plot and the report's view loaded. (A warm-up only; nothing is shown.)
@@ -79,7 +80,7 @@ def answer(text: str, source: str) -> dict:
             "seconds": time.perf_counter() - t0}
 
 
-def report_pdf(result: dict, text: str, date_iso: str) -> bytes:
+def report_pdf(result: Result, text: str, date_iso: str) -> bytes:
     """The PDF report of a screened vessel (the same bytes `screening check --pdf` writes that day)."""
     from screening.outputs.report import render_pdf_bytes
 

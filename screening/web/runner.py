@@ -23,6 +23,7 @@ from collections import OrderedDict
 from dataclasses import dataclass, field
 
 from screening.errors import InputError
+from screening.result import Result
 from screening.web import engine
 
 #: Answers kept for downloads (the oldest are dropped first).
@@ -44,7 +45,7 @@ class Answer:
     token: str
     case_text: str
     source: str
-    result: dict
+    result: Result
     view: dict
     plot_svg: str | None
     phase_svg: str | None

@@ -302,9 +302,9 @@ def generated_inventory(path: Path, n: int = 200, seed: int = SEED + 1) -> None:
 # running the code under test
 # --------------------------------------------------------------------------------------------------
 
-def _as_cli_json(result: dict) -> object:
+def _as_cli_json(result) -> object:
     """What `screening check --json` prints, read back (the same serialisation as the command)."""
-    return json.loads(json.dumps(result, ensure_ascii=False, allow_nan=False))
+    return json.loads(json.dumps(result.to_json(), ensure_ascii=False, allow_nan=False))
 
 
 def screen_text_entry(name: str, text: str) -> dict:

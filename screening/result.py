@@ -1,0 +1,445 @@
+"""The result of a screening, typed: what the engine returns and every output reads.
+
+`screen.screen_case` and the batch's full result per row return a :class:`Result`. Views read its
+attributes; a JSON output calls :meth:`Result.to_json` once (the documented JSON layout, SI, pressures
+absolute); a reader of such JSON (`verify`, the web page) calls :meth:`Result.from_json`.
+
+Every part is a frozen dataclass; lists are tuples. A field typed ``X | None`` is None where the engine has
+no value for it (the docstring or comment beside it says when). Nothing falls back to a number: the site's
+atmospheric pressure is always in :attr:`Site.atmospheric_pressure_pa`.
+
+The JSON layout is fixed by the field order: ``to_json`` writes the fields of each part in the order they
+are declared (see DEVELOPERS.md, "The result type"), so a new field goes where its key belongs.
+
+>>> r = ScreeningWarning("fill-state-governs", "the fill state is screened")
+>>> r.to_json()
+{'code': 'fill-state-governs', 'message': 'the fill state is screened'}
+>>> ScreeningWarning.from_json(r.to_json()) == r
+True
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from dataclasses import dataclass
+from typing import Any, ClassVar
+
+from screening.verdicts import Verdict
+
+_frozen = dataclass(frozen=True, slots=True)
+
+
+def _dump(value: Any) -> Any:
+    """A part of a result as JSON-ready data (dataclasses → dicts, tuples → lists, enums → their word)."""
+    if isinstance(value, _Part):
+        return value.to_json()
+    if isinstance(value, Verdict):
+        return value.value
+    if isinstance(value, (tuple, list)):
+        return [_dump(v) for v in value]
+    if isinstance(value, dict):
+        return {k: _dump(v) for k, v in value.items()}
+    return value
+
+
+def _tuple(value: Any) -> Any:
+    """Lists (nested) as tuples; None stays None."""
+    if isinstance(value, list):
+        return tuple(_tuple(v) for v in value)
+    return value
+
+
+class _Part:
+    """What every part shares: `to_json` in field order, `from_json` through each field's reader.
+
+    `_READ` maps a field name to how its JSON value is read: a part class (a nested object), ``(cls,)``
+    (a list of them), ``{cls}`` (a mapping of name → part), or ``tuple`` (a list of plain values)."""
+
+    __slots__ = ()
+    _READ: ClassVar[dict] = {}
+
+    def to_json(self) -> dict:
+        return {f.name: _dump(getattr(self, f.name)) for f in dataclasses.fields(self)}  # type: ignore[arg-type]
+
+    @classmethod
+    def _read(cls, name: str, value: Any) -> Any:
+        how = cls._READ.get(name)
+        if value is None or how is None:
+            return value
+        if how is tuple:
+            return _tuple(value)
+        if isinstance(how, tuple):
+            return tuple(how[0].from_json(v) for v in value)
+        if isinstance(how, set):
+            (part,) = how
+            return {k: part.from_json(v) for k, v in value.items()}
+        if how is Verdict:
+            return Verdict(value)
+        return how.from_json(value)
+
+    @classmethod
+    def from_json(cls, data: dict):
+        """The part from its JSON object (a key it does not know is an error: the layout is fixed)."""
+        fields = dataclasses.fields(cls)  # type: ignore[arg-type]
+        names = [f.name for f in fields]
+        unknown = set(data) - set(names)
+        if unknown:
+            raise KeyError(f"{cls.__name__}: unknown keys {sorted(unknown)}")
+        missing = [f.name for f in fields if f.name not in data and f.default is dataclasses.MISSING]
+        if missing:
+            raise KeyError(f"{cls.__name__}: missing keys {missing}")
+        return cls(**{n: cls._read(n, data[n]) for n in names if n in data})
+
+
+@_frozen
+class ScreeningWarning(_Part):
+    """A warning of the screening: a short code and its sentence."""
+
+    code: str
+    message: str
+
+
+@_frozen
+class Site(_Part):
+    """Where the vessel stands."""
+
+    name: str | None                 #: None where the case names no site
+    atmospheric_pressure_pa: float   #: [Pa] the site's atmosphere (gauge readings are relative to it)
+    elevation_m: float | None        #: [m] None where not given
+
+
+@_frozen
+class Component(_Part):
+    """One component of the gas (a pure gas has one, fraction 1)."""
+
+    name: str
+    formula: str
+    fraction: float                  #: [-] mole fraction
+    molar_mass_kg_mol: float         #: [kg/mol]
+    coolprop_name: str | None        #: None where the reference equation of state has no such fluid
+
+
+@_frozen
+class Gas(_Part):
+    name: str
+    kind: str                        #: permanent | liquefiable | dissolved
+    hazards: tuple[str, ...]
+    components: tuple[Component, ...]
+    _READ: ClassVar[dict] = {"hazards": tuple, "components": (Component,)}
+
+
+@_frozen
+class Vessel(_Part):
+    water_capacity_m3: float
+    rated_pressure_pa: float                   #: [Pa] absolute
+    rated_pressure_kind: str | None            #: what the rating is (test / working), None where not said
+    relief_set_pressure_pa: float | None       #: [Pa] absolute; None: no relief device given
+    max_filling_ratio_kg_per_l: float | None   #: None: no filling ratio given
+
+
+@_frozen
+class Fill(_Part):
+    pressure_pa: float | None          #: [Pa] absolute; None for a fill given by mass
+    temperature_k: float               #: [K] given, or the assumed one (see `temperature_given`)
+    temperature_given: bool
+    density_kg_m3: float | None        #: None where no model establishes the fill density
+    molar_density_mol_m3: float | None
+    mass_kg: float | None
+    phase: str | None                  #: None where the phase is not established
+    filling_ratio_kg_per_l: float | None
+    vapour_pressure_pa: float | None   #: [Pa] at the fill temperature; None above the critical point
+    given: str                         #: "pressure" or "mass"
+
+
+@_frozen
+class ModelResult(_Part):
+    """One model's outcome. The common fields first; then the model's own quantities, present (in
+    `detail_keys`, in that order) only where the model gives them: the ideal gas its `equation`, the
+    generalized model its reduced and pseudocritical states, the reference equation its `fluid` and phases.
+    A detail absent from `detail_keys` is None here and left out of the JSON."""
+
+    applicable: bool
+    peak_pressure_pa: float | None          #: [Pa] absolute; None where the model does not apply
+    note: str
+    fill_molar_density_mol_m3: float | None
+    detail_keys: tuple[str, ...] = ()
+    # the ideal gas
+    equation: str | None = None
+    off_governing_fraction: float | None = None   #: ideal peak / governing peak - 1
+    # the generalized model
+    z_fill: float | None = None
+    z_peak: float | None = None
+    reduced_temperature_fill: float | None = None
+    reduced_pressure_fill: float | None = None
+    reduced_temperature_peak: float | None = None
+    reduced_pressure_peak: float | None = None
+    pseudocritical_temperature_k: float | None = None
+    pseudocritical_pressure_pa: float | None = None
+    pseudocritical_temperature_fill_k: float | None = None
+    pseudocritical_pressure_fill_pa: float | None = None
+    acentric_factor: float | None = None
+    mixing_rule: str | None = None
+    quantum_correction: bool | None = None
+    method: str | None = None          #: the equation used where it is not Lee–Kesler
+    # the reference equation of state
+    fluid: str | None = None
+    phase_fill: str | None = None
+    phase_peak: str | None = None
+    eos_references: tuple[str, ...] | None = None
+
+    _COMMON: ClassVar[tuple[str, ...]] = ("applicable", "peak_pressure_pa", "note", "fill_molar_density_mol_m3")
+
+    def to_json(self) -> dict:
+        out = {n: getattr(self, n) for n in self._COMMON}
+        for k in self.detail_keys:
+            out[k] = _dump(getattr(self, k))
+        return out
+
+    @classmethod
+    def from_json(cls, data: dict) -> ModelResult:
+        details = tuple(k for k in data if k not in cls._COMMON)
+        if "detail_keys" in details:
+            raise KeyError("ModelResult: unknown keys ['detail_keys']")
+        values = {k: _tuple(data[k]) for k in data}
+        return cls(**values, detail_keys=details)
+
+
+@_frozen
+class ModelPeak(_Part):
+    """A model's peak in a scenario's summary."""
+
+    applicable: bool
+    peak_pressure_pa: float | None
+
+
+@_frozen
+class Limits(_Part):
+    """What the vessel allows; each None where no model gives it (see `note`)."""
+
+    max_fill_mass_kg: float | None
+    max_filling_ratio_kg_per_l: float | None
+    max_fill_mass_basis: str | None
+    max_gas_temperature_k: float | None       #: the gas temperature at which the rating is reached
+    max_fill_pressure_pa: float | None        #: [Pa] absolute; None for a mass fill or where not found
+    target_peak_pressure_pa: float | None     #: the rating less the required margin; None: no model applies
+    note: str
+    liquid_full_temperature_k: float | None   #: where the liquid fills the vessel; None: never
+    dry_out_temperature_k: float | None       #: where the liquid has evaporated; None: no liquid
+    phase_boundary_pressure_pa: float | None
+    dp_dt_after_liquid_full_pa_k: float | None
+
+
+@_frozen
+class Corner(_Part):
+    fill_pressure_pa: float | None   #: None for a mass fill
+    fill_temperature_k: float
+    worst_case_temperature_k: float
+
+
+@_frozen
+class Sensitivities(_Part):
+    """d(peak) per input at the nominal state [Pa/K, Pa/Pa]; None where not evaluated (mass fills)."""
+
+    dp_peak_dt_gas: float | None
+    dp_peak_dt_fill: float | None
+    dp_peak_dp_fill: float | None
+
+
+@_frozen
+class Tolerance(_Part):
+    """The input tolerances and the bounding peak they give."""
+
+    fill_pressure_band_pa: float
+    fill_temperature_band_k: float
+    gas_temperature_band_k: float
+    entered: dict                          #: the tolerances as entered (key → text)
+    nominal_peak_pressure_pa: float | None
+    bounding_peak_pressure_pa: float | None   #: None where no real-gas model applies at a corner
+    bounding_corner: Corner
+    corners_evaluated: int
+    expected_corner_confirmed: bool
+    sensitivities: Sensitivities
+    #: per input, per model name (and "governing"): d(peak); an input's entry None where not evaluated
+    sensitivities_by_model: dict
+    _READ: ClassVar[dict] = {"bounding_corner": Corner, "sensitivities": Sensitivities}
+
+
+@_frozen
+class SunBalance(_Part):
+    """The energy balance of the vessel wall in the sun."""
+
+    wall_temperature_k: float
+    ambient_k: float
+    sky_temperature_k: float
+    irradiance_w_m2: float
+    absorptivity: float
+    emissivity: float
+    wind_speed_m_s: float
+    absorbed_w_m2: float
+    convected_w_m2: float
+    radiated_w_m2: float
+    h_convection_w_m2k: float
+    regime: str
+    orientation: str
+    outside_diameter_m: float
+    length_m: float
+    dimensions_estimated: bool
+    ground_albedo: float
+    residual_fraction: float
+    notes: tuple[str, ...]
+    _READ: ClassVar[dict] = {"notes": tuple}
+
+
+@_frozen
+class Curves(_Part):
+    """Isochores for the plot: pressures [Pa] per model at `temperature_k`, None where a model does not
+    apply (the whole curve) or at a point where it does not; `bounding` (and its model) only with tolerances."""
+
+    temperature_k: tuple[float, ...]
+    ideal: tuple[float | None, ...] | None
+    generalized: tuple[float | None, ...] | None
+    reference: tuple[float | None, ...] | None
+    bounding: tuple[float | None, ...] | None = None
+    bounding_model: str | None = None
+    _READ: ClassVar[dict] = {"temperature_k": tuple, "ideal": tuple, "generalized": tuple, "reference": tuple,
+                             "bounding": tuple}
+
+    def series(self, model: str) -> tuple[float | None, ...] | None:
+        """The curve of one model ("ideal", "generalized", "reference"); None where it does not apply."""
+        if model not in ("ideal", "generalized", "reference"):
+            raise KeyError(f"no curve for a model named {model!r}")
+        return getattr(self, model)
+
+    def to_json(self) -> dict:
+        out = _Part.to_json(self)
+        if self.bounding_model is None:
+            del out["bounding"], out["bounding_model"]
+        return out
+
+
+@_frozen
+class Saturation(_Part):
+    temperature_k: tuple[float, ...]
+    pressure_pa: tuple[float, ...]
+    _READ: ClassVar[dict] = {"temperature_k": tuple, "pressure_pa": tuple}
+
+
+@_frozen
+class PhaseDiagram(_Part):
+    """The vapour-pressure curve of a pure fluid, triple to critical point."""
+
+    saturation: Saturation
+    critical_temperature_k: float
+    critical_pressure_pa: float
+    critical_density_kg_m3: float
+    triple_temperature_k: float
+    _READ: ClassVar[dict] = {"saturation": Saturation}
+
+
+@_frozen
+class InputRecord(_Part):
+    """One value as entered, and in SI."""
+
+    key: str
+    entered: str
+    si_value: Any
+    si_unit: str
+
+
+@_frozen
+class Cautions(_Part):
+    caution: str
+    short_caution: str
+    assumptions: tuple[str, ...]
+    _READ: ClassVar[dict] = {"assumptions": tuple}
+
+
+@_frozen
+class ScenarioSummary(_Part):
+    """One exposure scenario's outcome, beside the others."""
+
+    name: str
+    verdict: Verdict
+    reasons: tuple[str, ...]
+    worst_case_temperature_k: float
+    worst_case_basis: str
+    peak_pressure_pa: float | None
+    nominal_peak_pressure_pa: float | None
+    governing_model: str | None
+    margin_fraction: float | None
+    relief_margin_fraction: float | None
+    limits: Limits
+    tolerance: Tolerance | None
+    exposure: SunBalance | None
+    models: dict[str, ModelPeak]
+    governing: bool
+    _READ: ClassVar[dict] = {"verdict": Verdict, "reasons": tuple, "limits": Limits, "tolerance": Tolerance,
+                             "exposure": SunBalance, "models": {ModelPeak}}
+
+
+@_frozen
+class Result(_Part):
+    """One vessel's screening: the governing scenario in full, every scenario side by side."""
+
+    id: str | None
+    description: str | None
+    source: str | None
+    tool_version: str
+    input_sha256: str | None
+    site: Site
+    verdict: Verdict
+    reasons: tuple[str, ...]
+    warnings: tuple[ScreeningWarning, ...]
+    gas: Gas
+    vessel: Vessel
+    fill: Fill
+    worst_case_temperature_k: float
+    worst_case_basis: str
+    models: dict[str, ModelResult]          #: "ideal", "generalized", "reference", in that order
+    peak_pressure_pa: float | None          #: [Pa] absolute, the governing peak (the bounding one with tolerances)
+    nominal_peak_pressure_pa: float | None
+    tolerance: Tolerance | None             #: None: no tolerances given
+    governing_model: str | None             #: None where no real-gas model applies
+    governing_reason: str
+    rated_pressure_pa: float
+    relief_set_pressure_pa: float | None
+    required_margin_fraction: float
+    required_margin_is_default: bool
+    margin_fraction: float | None
+    relief_margin_fraction: float | None
+    nominal_margin_fraction: float | None
+    limits: Limits
+    curves: Curves | None                   #: None where not computed (batch rows, `curves=False`)
+    phase_diagram: PhaseDiagram | None      #: None for mixtures and where not computed
+    inputs: tuple[InputRecord, ...]
+    display_units: dict                     #: quantity → the unit the case was entered in
+    cautions: Cautions
+    scenarios: tuple[ScenarioSummary, ...]
+    governing_scenario: str
+    exposure: SunBalance | None             #: the governing scenario's sun balance; None: no sun
+    row: int | None = None                  #: the inventory row (batch results only; left out of the JSON if None)
+    _READ: ClassVar[dict] = {"site": Site, "verdict": Verdict, "reasons": tuple, "warnings": (ScreeningWarning,),
+                             "gas": Gas, "vessel": Vessel, "fill": Fill, "models": {ModelResult},
+                             "tolerance": Tolerance, "limits": Limits, "curves": Curves,
+                             "phase_diagram": PhaseDiagram, "inputs": (InputRecord,), "cautions": Cautions,
+                             "scenarios": (ScenarioSummary,), "exposure": SunBalance}
+
+    def to_json(self) -> dict:
+        """The result as the documented JSON object (the output of `check --json`)."""
+        out = _Part.to_json(self)
+        if self.row is None:
+            del out["row"]
+        return out
+
+    def summary_record(self) -> dict:
+        """The part of the result the batch table, CSV and counts use (JSON-ready; the batch builds the
+        same record directly for the rows it screens as columns)."""
+        return {"id": self.id, "verdict": self.verdict.value, "reasons": list(self.reasons),
+                "warnings": [w.to_json() for w in self.warnings], "peak_pressure_pa": self.peak_pressure_pa,
+                "rated_pressure_pa": self.rated_pressure_pa, "margin_fraction": self.margin_fraction,
+                "required_margin_fraction": self.required_margin_fraction,
+                "governing_model": self.governing_model,
+                "limits": {"max_gas_temperature_k": self.limits.max_gas_temperature_k,
+                           "max_fill_pressure_pa": self.limits.max_fill_pressure_pa},
+                "gas": {"name": self.gas.name}, "display_units": self.display_units,
+                "site": {"atmospheric_pressure_pa": self.site.atmospheric_pressure_pa}}
