@@ -88,7 +88,7 @@ def test_fresh_check_prints_the_in_process_screening(case):
 
     done = subprocess.run([sys.executable, "-m", "screening.cli", "check", str(case), "--json"], cwd=ROOT,
                           capture_output=True, text=True)
-    result = screen_file(case)   # this process: CoolProp loaded whole
+    result = screen_file(case).to_json()   # this process: CoolProp loaded whole
     assert done.returncode == (0 if result["verdict"] == "within" else 1), done.stderr
     assert done.stderr == ""
     assert done.stdout == json.dumps(result, indent=2, ensure_ascii=False, allow_nan=False) + "\n"

@@ -55,7 +55,7 @@ def _forget_every_fluid() -> None:
 
 
 def _answer(name: str, text: str) -> str:
-    return json.dumps(screen_text(text, source=name), sort_keys=True, allow_nan=False)
+    return json.dumps(screen_text(text, source=name).to_json(), sort_keys=True, allow_nan=False)
 
 
 @pytest.fixture(scope="module")
