@@ -141,7 +141,7 @@ def kinds() -> list[tuple]:
 
 def chosen(all_kinds: list[tuple], words: list[str]) -> list[tuple]:
     """The kinds named: a group ("pure", "liquefied", "by-mass", "by-pressure", "options", "mixtures", "all")
-    or any text found in a kind's label ("argon" chooses every kind whose label holds it)."""
+    or a kind's label ("argon": that kind alone), or else any text found in labels ("by mass")."""
     if not words:
         return all_kinds
     groups = {
@@ -153,11 +153,14 @@ def chosen(all_kinds: list[tuple], words: list[str]) -> list[tuple]:
         "options": lambda k: "," in k[0],
         "mixtures": lambda k: "%" in k[0] and "," not in k[0],
     }
-    out = []
-    for k in all_kinds:
-        if any(groups[w](k) if w in groups else w in k[0] for w in words) and k not in out:
-            out.append(k)
-    return out
+    labels = {k[0] for k in all_kinds}
+
+    def named(w: str, k: tuple) -> bool:
+        if w in groups:
+            return groups[w](k)
+        return k[0] == w if w in labels else w in k[0]
+
+    return [k for k in all_kinds if any(named(w, k) for w in words)]
 
 
 def write(path: Path, make, n: int, seed: int) -> list[tuple]:
