@@ -357,9 +357,9 @@ def si_many(texts: list, kind: str, pressure_basis: str | None = None) -> tuple[
     rng = KIND_RANGES[kind]
     for pint_name, members in groups.items():
         numbers = np.array([x for _, x in members], dtype=float)
-        si = np.asarray(ureg.Quantity(numbers, ureg.Unit(pint_name)).to(ureg.Unit(_SI_UNIT[kind])).magnitude,
-                        dtype=float)
-        with np.errstate(invalid="ignore"):
+        with np.errstate(over="ignore", invalid="ignore"):      # an overflow is inf, refused below
+            si = np.asarray(ureg.Quantity(numbers, ureg.Unit(pint_name)).to(ureg.Unit(_SI_UNIT[kind])).magnitude,
+                            dtype=float)
             inside = np.isfinite(si) & (si >= rng.low) & (si <= rng.high)
         for (i, _), v, ok in zip(members, si.tolist(), inside.tolist()):
             if ok:
