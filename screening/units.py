@@ -323,6 +323,51 @@ def parse(text: object, kind: str, *, pressure_basis: str | None = None, **where
     return reading
 
 
+def si_many(texts: list, kind: str, pressure_basis: str | None = None) -> tuple[list, list]:
+    """Many quantity texts of one kind read at once: (SI values as written, units), with None for both
+    where a text is not accepted here (not a string, not a number and an allowlisted unit of `kind`, a
+    pressure of no stated basis without `pressure_basis`, outside the kind's range in KIND_RANGES):
+    :func:`parse` of such a text says why, or reads it. A value given here is exactly ``parse(text, kind,
+    pressure_basis=...).si()`` and its unit that reading's: pint converts each unit's numbers as one
+    numpy array, with the same arithmetic as one number at a time (tests/test_units.py checks it)."""
+    import numpy as np
+
+    values: list = [None] * len(texts)
+    specs: list = [None] * len(texts)
+    groups: dict[str, list[tuple[int, float]]] = {}
+    found: dict[int, UnitSpec] = {}
+    for i, text in enumerate(texts):
+        if type(text) is not str or len(text) > _MAX_TEXT:
+            continue
+        m = _PATTERN.match(text)
+        if not m:
+            continue
+        spec = _UNITS.get(m.group(2))
+        if spec is None or spec.kind != kind:
+            continue
+        number = float(m.group(1))
+        if not math.isfinite(number):
+            continue
+        if kind == "pressure" and spec.basis is None:
+            if pressure_basis is None:
+                continue
+            spec = UnitSpec(f"{spec.label}({pressure_basis[0]})", "pressure", spec.pint_name, pressure_basis)
+        found[i] = spec
+        groups.setdefault(spec.pint_name, []).append((i, number))
+    rng = KIND_RANGES[kind]
+    for pint_name, members in groups.items():
+        numbers = np.array([x for _, x in members], dtype=float)
+        with np.errstate(over="ignore", invalid="ignore"):      # an overflow is inf, refused below
+            si = np.asarray(ureg.Quantity(numbers, ureg.Unit(pint_name)).to(ureg.Unit(_SI_UNIT[kind])).magnitude,
+                            dtype=float)
+            inside = np.isfinite(si) & (si >= rng.low) & (si <= rng.high)
+        for (i, _), v, ok in zip(members, si.tolist(), inside.tolist()):
+            if ok:
+                values[i] = v
+                specs[i] = found[i]
+    return values, specs
+
+
 def to_absolute_pressure(reading: Reading, atmospheric_pa: float) -> float:
     """Absolute pressure [Pa] of a pressure reading, adding the site's atmospheric pressure to gauge values."""
     p = reading.si()

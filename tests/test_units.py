@@ -11,6 +11,7 @@ from screening.units import (
     format_pressure,
     parse,
     pressure_in,
+    si_many,
     standard_atmosphere_pressure,
     temperature_in,
     to_absolute_pressure,
@@ -100,3 +101,27 @@ def test_pressure_display_round_trip(p_bar):
 
 def test_format_pressure_in_user_unit():
     assert format_pressure(250e5 + 101325.0, "bar(g)", 101325.0) == "250.0 bar(g)"
+
+
+_MANY_UNITS = st.sampled_from(["bar(g)", "barg", "bar(a)", "psig", "psia", "MPa(a)", "kPa(g)", "bar", "atm",
+                               "degC", "°C", "degF", "K", "L", "m3", "ft3", "mL", "kg/L", "lb/ft3", "%", "",
+                               "kg", "lb", "m", "mm", "W/m2", "bogus"])
+_MANY_NUMBERS = st.one_of(st.floats(min_value=-1e6, max_value=1e6, allow_nan=False),
+                          st.decimals(min_value=-5000, max_value=5000, places=2).map(str))
+
+
+@given(st.lists(st.tuples(_MANY_NUMBERS, _MANY_UNITS), min_size=1, max_size=40),
+       st.sampled_from(["pressure", "temperature", "volume", "density", "fraction", "mass"]),
+       st.sampled_from([None, "gauge", "absolute"]))
+def test_many_texts_read_at_once_give_exactly_what_parse_gives(pairs, kind, basis):
+    texts = [f"{x} {u}".strip() for x, u in pairs]
+    values, specs = si_many(texts, kind, pressure_basis=basis)
+    for text, v, spec in zip(texts, values, specs):
+        try:
+            reading = parse(text, kind, pressure_basis=basis)
+        except InputError:
+            assert v is None and spec is None, text
+            continue
+        if v is not None:           # a text si_many leaves out goes through parse, which decides
+            assert v == reading.si(), text
+            assert spec == reading.unit, text

@@ -28,7 +28,7 @@ from screening.inputs.case import ATMOSPHERIC_PRESSURE_RANGE_PA, DEFAULT_REQUIRE
 from screening.inputs.gas_spec import parse_gas
 from screening.inputs.inventory import Inventory, Unreadable, cell_value, default_text, row_case
 from screening.physics.gases import Mixture
-from screening.units import parse, standard_atmosphere_pressure
+from screening.units import parse, si_many, standard_atmosphere_pressure
 
 #: Case keys a plain row may hold (as columns or defaults).
 PLAIN_KEYS = frozenset({
@@ -153,12 +153,62 @@ def _parser(key: str):
     return quantity
 
 
+_KINDS = {"vessel.water_capacity": "volume", "vessel.max_filling_ratio": "density",
+          "fill.temperature": "temperature", "exposure.ambient_max": "temperature",
+          "exposure.gas_temperature": "temperature", "criteria.required_margin": "fraction",
+          **{k: "pressure" for k in _PRESSURES}}
+
+
+def _accepted(key: str, kind: str, v: float, spec):
+    """What `_parser(key)` gives for a text read by `si_many` as (v, spec); None where it must decide."""
+    if kind == "pressure":
+        return v, spec.basis == "gauge", spec.label
+    if kind == "fraction":
+        return (v, spec.label) if 0.0 <= v < 1.0 else None
+    return (v, spec.label) if v > 0.0 else None
+
+
 class _Cache:
     """Parses each distinct value of one key once; _NotPlain for a value that does not parse."""
 
     def __init__(self, key: str) -> None:
+        self.key = key
         self.parse = _parser(key)
         self.seen: dict = {}
+
+    def prime(self, values: list) -> None:
+        """Read the distinct texts among `values` of a quantity key at once (units.si_many: one pint
+        conversion per unit, the same numbers as one at a time); a text it does not accept is left to
+        the one-by-one parser, which decides."""
+        kind = _KINDS.get(self.key)
+        if kind is None:
+            return
+        todo = set()
+        for v in values:
+            if v is _MISSING:
+                continue
+            try:
+                if v not in self.seen:
+                    todo.add(v)
+            except TypeError:          # unhashable: __call__ refuses it
+                continue
+        if kind == "pressure":       # (text, basis) pairs, read per basis
+            by_basis: dict = {}
+            for text, basis in todo:
+                by_basis.setdefault(basis, []).append(text)
+            for basis, texts in by_basis.items():
+                if basis not in (None, "gauge", "absolute"):
+                    continue
+                for text, v, spec in zip(texts, *si_many(texts, kind, pressure_basis=basis)):
+                    got = None if v is None else _accepted(self.key, kind, v, spec)
+                    if got is not None:
+                        self.seen[(text, basis)] = got
+            return
+        texts = list(todo)
+        for text, v, spec in zip(texts, *si_many(texts, kind)):
+            got = None if v is None else _accepted(self.key, kind, v, spec)
+            if got is not None:
+                self.seen[text] = got
 
     def __call__(self, value):
         try:
@@ -222,6 +272,7 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
                 ok[:] = False
             return [None] * n_rows
         cache = _Cache(key)
+        cache.prime(values)
         out = []
         for i, v in enumerate(values):
             if v is _MISSING:

@@ -111,6 +111,12 @@ def _cell_text(v) -> str:
 
 
 def _checked(cells: list, width: int) -> list[str]:
+    if len(cells) <= MAX_COLUMNS:
+        try:        # the common row: short ASCII texts, kept as they are (checked at C speed)
+            if max(map(len, cells), default=0) <= MAX_CELL_CHARS and "".join(cells).isascii():
+                return list(cells)
+        except TypeError:           # a cell that is not text (a spreadsheet's number): one by one
+            pass
     out = []
     for c in cells[:MAX_COLUMNS]:
         if not isinstance(c, str):

@@ -92,7 +92,8 @@ class CsvTable:
         return str(v)
 
     def write(self, values: list) -> None:
-        self.w.writerow([self._text(v) for v in values])
+        text = self._text
+        self.w.writerow([v if type(v) is str else text(v) for v in values])   # the input's cells are texts
         if self.buf.tell() > 1 << 16:
             self.flush()
 

@@ -262,19 +262,20 @@ def lee_kesler_vapour_pressure(tr, omega) -> np.ndarray:
     return np.exp(f0 + omega * f1)
 
 
-def _range_reasons(tr: np.ndarray, pr: np.ndarray | None) -> np.ndarray:
+def _range_reasons(tr: np.ndarray, pr: np.ndarray | None, temperatures: bool = True) -> np.ndarray:
+    """Per element, why (T_r, P_r) is outside the Lee–Kesler range ('' inside); P_r only where given, T_r
+    unless `temperatures` is False. The texts are built from the masked values in one pass each."""
     reason = np.full(tr.shape, "", dtype=object)
     if pr is not None:
         hi_p = np.isfinite(pr) & (pr > _PR_HI)
-        for idx in zip(*np.nonzero(hi_p)) if hi_p.ndim else ([()] if hi_p else []):
-            reason[idx] = (f"reduced pressure {_fmt(pr[idx])} is above the Lee–Kesler range "
-                           f"({_RANGE_TEXT_PR})")
-    lo_t = tr < _TR_LO
-    hi_t = tr > _TR_HI
-    for mask, word in ((lo_t, "below"), (hi_t, "above")):
-        for idx in zip(*np.nonzero(mask)) if mask.ndim else ([()] if mask else []):
-            reason[idx] = (f"reduced temperature {_fmt(tr[idx])} is {word} the Lee–Kesler range "
-                           f"({_RANGE_TEXT_TR})")
+        if hi_p.any():
+            reason[hi_p] = [f"reduced pressure {_fmt(x)} is above the Lee–Kesler range ({_RANGE_TEXT_PR})"
+                            for x in np.asarray(pr)[hi_p].tolist()]
+    if temperatures:
+        for mask, word in ((tr < _TR_LO, "below"), (tr > _TR_HI, "above")):
+            if mask.any():
+                reason[mask] = [f"reduced temperature {_fmt(x)} is {word} the Lee–Kesler range ({_RANGE_TEXT_TR})"
+                                for x in np.asarray(tr)[mask].tolist()]
     return reason
 
 
@@ -562,7 +563,8 @@ def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> Generalize
     rho, t, tc, pc, omega = _state_arrays(molar_density, "molar density", "[mol/m3]", temperature, tc, pc, omega)
     tr = t / tc
     vf = pc / (rho * R * tc)          # reduced ideal volume of the gas [-]
-    active = _range_reasons(tr, None) == ""
+    outside = _range_reasons(tr, None)
+    active = outside == ""
 
     # The coupled Newton first; where it does not settle, or settles off the gas branch (its roots
     # differ from the cold-started gas roots of the check below), the bracketed solve decides.
@@ -571,11 +573,11 @@ def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> Generalize
     pr = np.where(fast, fast_pr, pr)
     converged = converged | fast
     while True:
-        reason = _range_reasons(tr, None)
+        reason = outside.copy()
         # Final, independent evaluation at the converged P_r: the cold-started gas root must
         # reproduce the density (guards against the solve having followed another branch).
         pr_final = np.where(active & converged & ~above_cap, pr, np.nan)
-        _range = _range_reasons(tr, pr_final)
+        _range = _range_reasons(tr, pr_final, temperatures=False)   # T_r outside: already in `reason`
         reason = np.where(reason == "", _range, reason)
         _set_reasons(reason, active & above_cap, lambda i: (
             f"reduced pressure is above {_fmt(_PR_SOLVE_MAX)}, beyond the Lee–Kesler range ({_RANGE_TEXT_PR})"))
