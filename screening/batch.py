@@ -35,7 +35,7 @@ from screening.outputs.tables import (
     result_values,
 )
 from screening.result import Result, ScreeningWarning
-from screening.verdicts import EXIT_INPUT, EXIT_NOT_WITHIN, EXIT_WITHIN
+from screening.verdicts import EXIT_INPUT, EXIT_NOT_WITHIN, EXIT_WITHIN, Verdict
 
 #: Keys of a result left out of the JSON outputs (shared or bulky parts).
 _DROP = ("curves", "cautions")
@@ -113,6 +113,10 @@ class BatchRun:
         r["row"] = n
         return r
 
+    def detail(self, i: int) -> Result | dict:
+        """Row i's full result with its plot curves (for a PDF's detail section)."""
+        return _with_curves(self.full(i))
+
     def full(self, i: int) -> Result | dict:
         """Row i's full result (with its "row" and the batch's warnings); its input-error record for a
         row that could not be screened."""
@@ -188,10 +192,23 @@ def screen_chunk(job: tuple) -> list[tuple]:
             rec["row"] = n
             rec["input"] = {h: str(cells[j]) if j < len(cells) else "" for j, h in enumerate(headers)}
             line = json_line(rec)
-        keep_full = f if want.get("full") == "all" or (want.get("full") == "not-within"
-                                                       and r["verdict"] != "within") else None
+        keep_full = _with_curves(f) if want.get("full") == "all" or (want.get("full") == "not-within"
+                                                                     and r["verdict"] != "within") else None
         out.append((r, line, keep_full))
     return out
+
+
+def _with_curves(f: Result | dict | None) -> Result | dict | None:
+    """A detail row's full result with its isochore curves, computed here by the engine (in the worker) so
+    that the PDF only draws them; a row whose curves cannot be computed keeps its numbers, without a plot."""
+    if not isinstance(f, Result) or f.curves is not None or f.verdict == Verdict.INPUT_ERROR:
+        return f
+    from screening.vector import curves
+
+    try:
+        return replace(f, curves=curves(f))
+    except (ValueError, RuntimeError):      # NotApplicable is a ValueError; CoolProp raises either
+        return f
 
 
 def _json(r: Result | dict) -> dict:

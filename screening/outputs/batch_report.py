@@ -22,7 +22,6 @@ import hashlib
 import io
 import json
 import os
-from dataclasses import replace
 from pathlib import PurePath
 
 import numpy as np
@@ -41,9 +40,8 @@ from screening.outputs.report import (
     templates_dir,
 )
 from screening.outputs.text import fmt_pressure, reasons_shown, visible
-from screening.result import Curves, Result
+from screening.result import Result
 from screening.units import format_percent, format_pressure, format_temperature
-from screening.verdicts import Verdict
 
 TEMPLATE = "batch.html.j2"
 #: The vessel listing: lines of body per page, and its width in characters (7.2 pt DejaVu Sans Mono,
@@ -114,12 +112,6 @@ def _margin_chart(results: list[dict]) -> str:
     return buf.getvalue()
 
 
-def _curves(r: Result) -> Curves:
-    from screening.vector import curves  # the equations of state: loaded only where a curve is missing
-
-    return curves(r)
-
-
 def _detail(r: Result | dict, location: str = "") -> dict:
     """One row's detail section: a full result, or an input-error record (a plain dict)."""
     if not isinstance(r, Result):
@@ -159,12 +151,10 @@ def _detail(r: Result | dict, location: str = "") -> dict:
     ]
     d["models"] = [(MODEL_TITLES[n], P(m.peak_pressure_pa) if m.applicable else "not applicable: " + m.note)
                    for n, m in r.models.items()]
-    try:
-        view = r if r.curves else replace(r, curves=_curves(r))
-        if view.curves and drawable_models(view):
-            d["plot"] = png_data_uri(plot_png(view))
-    except Exception:  # a missing curve leaves the section without its plot, never without its numbers
-        d["plot"] = None
+    # the curves come with the result (the batch computes them for the detail rows); without them the section
+    # keeps its numbers and has no plot
+    if r.curves and drawable_models(r):
+        d["plot"] = png_data_uri(plot_png(r))
     return d
 
 
@@ -424,18 +414,9 @@ def render_batch_pdf_bytes(results: list[dict], *, source: str, all_details: boo
 
 
 def _detail_results(results: list[dict], all_details: bool, full) -> dict[int, Result | dict]:
-    """Full results, with their plot curves, of the rows that get a detail section, by position in
-    `results`: computed here, where the equations of state are loaded, for a renderer without them."""
-    out = {}
-    for j in _detail_positions(results, all_details):
-        r = full(j) if full is not None else results[j]
-        if isinstance(r, Result) and r.curves is None and r.verdict != Verdict.INPUT_ERROR:
-            try:
-                r = replace(r, curves=_curves(r))
-            except Exception:  # as in _detail: a missing curve leaves the section without its plot
-                pass
-        out[j] = r
-    return out
+    """Full results (with the plot curves the batch computed) of the rows that get a detail section, by
+    position in `results`."""
+    return {j: full(j) if full is not None else results[j] for j in _detail_positions(results, all_details)}
 
 
 #: The run record a batch PDF carries beside its inventory ends so (a single report's result: ".result.json").

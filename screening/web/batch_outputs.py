@@ -41,7 +41,7 @@ def write(kind: str, inv, run, path: str, date_iso: str) -> None:
         # the inventory as uploaded (the page works in its folder) travels in the PDF, so that
         # `screening verify` can screen it again
         render_batch_report(run.results, path, source=inv.source, report_date=_dt.date.fromisoformat(date_iso),
-                            quiet=True, full=run.full, texts=row_texts(inv, None),
+                            quiet=True, full=run.detail, texts=row_texts(inv, None),
                             inputs={"inventory": inv.source, "sheet": inv.sheet})
     else:
         raise ValueError(f"unknown output kind {kind!r}")
