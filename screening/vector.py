@@ -871,6 +871,15 @@ def _assemble(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
     return Result.from_json(_row_dict(case, cols, k, v, sun))
 
 
+def _one_scenario(case: Case, result: dict, sun: SunRow | None) -> dict:
+    """A one-scenario row's result with its scenario listed beside it, folded as screen_case folds it
+    (screen.fold_scenarios)."""
+    if not hasattr(case, "scenarios"):
+        return result
+    name = case.scenarios[0].name if case.scenarios else "exposure"
+    return _screen.fold_scenarios([(name, result, sun.balance if sun is not None else None)])[1]
+
+
 def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:
     """One row's result as its JSON layout (:func:`_assemble`; the tolerance and scenario fold works on it)."""
     if cols.get("kind") == "liquefied":
@@ -953,18 +962,7 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
         "inputs": list(case.inputs), "display_units": dict(case.display_units),
         "cautions": _CAUTIONS,
     }
-    if hasattr(case, "scenarios"):
-        name = case.scenarios[0].name if case.scenarios else "exposure"
-        keys = ("verdict", "reasons", "worst_case_temperature_k", "worst_case_basis", "peak_pressure_pa",
-                "nominal_peak_pressure_pa", "governing_model", "margin_fraction", "relief_margin_fraction",
-                "limits", "tolerance")
-        balance = sun.balance if sun is not None else None
-        result["scenarios"] = [{"name": name, **{k2: result[k2] for k2 in keys}, "exposure": balance,
-                                "models": {nm: {"applicable": m["applicable"], "peak_pressure_pa": m["peak_pressure_pa"]}
-                                           for nm, m in models.items()}, "governing": True}]
-        result["governing_scenario"] = name
-        result["exposure"] = balance
-    return result
+    return _one_scenario(case, result, sun)
 
 
 # ----------------------------------------------------------------------------- tolerances and scenarios as rows
@@ -1858,15 +1856,4 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
         "inputs": list(case.inputs), "display_units": dict(case.display_units),
         "cautions": _CAUTIONS,
     }
-    if hasattr(case, "scenarios"):
-        name = case.scenarios[0].name if case.scenarios else "exposure"
-        keys = ("verdict", "reasons", "worst_case_temperature_k", "worst_case_basis", "peak_pressure_pa",
-                "nominal_peak_pressure_pa", "governing_model", "margin_fraction", "relief_margin_fraction",
-                "limits", "tolerance")
-        balance = sun.balance if sun is not None else None
-        result["scenarios"] = [{"name": name, **{k2: result[k2] for k2 in keys}, "exposure": balance,
-                                "models": {nm: {"applicable": m["applicable"], "peak_pressure_pa": m["peak_pressure_pa"]}
-                                           for nm, m in models.items()}, "governing": True}]
-        result["governing_scenario"] = name
-        result["exposure"] = balance
-    return result
+    return _one_scenario(case, result, sun)
