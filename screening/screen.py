@@ -1017,6 +1017,28 @@ def _governing(models: list[Model]) -> Model | None:
     return max(real, key=lambda m: m.peak_pa) if real else None
 
 
+def case_parts(case: Case) -> dict:
+    """The parts of a result that describe the case as entered: its identity, site, gas, vessel, inputs,
+    display units and the cautions (every path's result takes them from here)."""
+    return {
+        "id": case.id, "description": case.description, "source": case.source,
+        "tool_version": __version__, "input_sha256": case.input_sha256,
+        "site": {"name": case.site.name, "atmospheric_pressure_pa": case.site.atmospheric_pressure_pa,
+                 "elevation_m": case.site.elevation_m},
+        "gas": {"name": case.gas.name, "kind": case.gas.kind, "hazards": list(case.gas.hazards),
+                "components": [{"name": g.name, "formula": g.formula, "fraction": x,
+                                "molar_mass_kg_mol": g.molar_mass, "coolprop_name": g.coolprop_name}
+                               for g, x in zip(case.gas.components, case.gas.fractions)]},
+        "vessel": {"water_capacity_m3": case.water_capacity_m3, "rated_pressure_pa": case.rated_pressure_pa,
+                   "rated_pressure_kind": case.rated_pressure_kind,
+                   "relief_set_pressure_pa": case.relief_set_pressure_pa,
+                   "max_filling_ratio_kg_per_l": (case.max_filling_ratio_kg_m3 / 1000.0
+                                                  if case.max_filling_ratio_kg_m3 is not None else None)},
+        "inputs": list(case.inputs), "display_units": dict(case.display_units),
+        "cautions": {"caution": CAUTION, "short_caution": SHORT_CAUTION, "assumptions": list(ASSUMPTIONS)},
+    }
+
+
 def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
     """Screen one vessel at one worst-case gas temperature (one scenario); tolerances included."""
     t_fill = _fill_temperature(case)
@@ -1084,19 +1106,8 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
         mass = fill_rho_molar * case.gas.molar_mass * case.water_capacity_m3
     rho_mass = fill_rho_molar * case.gas.molar_mass if fill_rho_molar is not None else None
     return {
-        "id": case.id, "description": case.description, "source": case.source,
-        "tool_version": __version__, "input_sha256": case.input_sha256,
-        "site": {"name": case.site.name, "atmospheric_pressure_pa": atm, "elevation_m": case.site.elevation_m},
+        **case_parts(case),
         "verdict": verdict, "reasons": reasons, "warnings": warnings,
-        "gas": {"name": case.gas.name, "kind": case.gas.kind, "hazards": list(case.gas.hazards),
-                "components": [{"name": g.name, "formula": g.formula, "fraction": x,
-                                "molar_mass_kg_mol": g.molar_mass, "coolprop_name": g.coolprop_name}
-                               for g, x in zip(case.gas.components, case.gas.fractions)]},
-        "vessel": {"water_capacity_m3": case.water_capacity_m3, "rated_pressure_pa": case.rated_pressure_pa,
-                   "rated_pressure_kind": case.rated_pressure_kind,
-                   "relief_set_pressure_pa": case.relief_set_pressure_pa,
-                   "max_filling_ratio_kg_per_l": (case.max_filling_ratio_kg_m3 / 1000.0
-                                                  if case.max_filling_ratio_kg_m3 is not None else None)},
         "fill": {"pressure_pa": case.fill_pressure_pa, "temperature_k": t_fill,
                  "temperature_given": case.fill_temperature_k is not None,
                  "density_kg_m3": rho_mass, "molar_density_mol_m3": fill_rho_molar, "mass_kg": mass,
@@ -1120,8 +1131,6 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
         # plot data are computed only for the governing scenario and only where a view shows them
         "_plot": lambda: (_curves(models, t_fill, t_peak, limits, _bounding_model(case, tolerance)),
                           _phase_diagram(fs)),
-        "inputs": list(case.inputs), "display_units": dict(case.display_units),
-        "cautions": {"caution": CAUTION, "short_caution": SHORT_CAUTION, "assumptions": list(ASSUMPTIONS)},
     }
 
 

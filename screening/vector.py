@@ -52,9 +52,7 @@ from typing import Callable, Iterable
 
 import numpy as np
 
-from screening import __version__
 from screening import screen as _screen
-from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
 from screening.constants import R
 from screening.errors import InputError, NotApplicable
 from screening.inputs.case import Case
@@ -81,8 +79,6 @@ _SECANT_MAX = 30
 #: Rows closer than this to the edge of the Lee–Kesler range at a limit go the per-row way.
 _LK_PR_EDGE = 9.5
 _LK_TR_EDGE = 3.95
-
-_CAUTIONS = {"caution": CAUTION, "short_caution": SHORT_CAUTION, "assumptions": list(ASSUMPTIONS)}
 
 
 # ----------------------------------------------------------------------------- eligibility
@@ -929,19 +925,8 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
               "phase_boundary_pressure_pa": _opt(cols["crossing"][k]),
               "dp_dt_after_liquid_full_pa_k": _opt(cols["dpdt_liquid_full"][k])}
     result = {
-        "id": case.id, "description": case.description, "source": case.source,
-        "tool_version": __version__, "input_sha256": case.input_sha256,
-        "site": {"name": case.site.name, "atmospheric_pressure_pa": atm, "elevation_m": case.site.elevation_m},
+        **_screen.case_parts(case),
         "verdict": v["verdict"], "reasons": v["reasons"], "warnings": v["warnings"],
-        "gas": {"name": gas.name, "kind": gas.kind, "hazards": list(gas.hazards),
-                "components": [{"name": c.name, "formula": c.formula, "fraction": x,
-                                "molar_mass_kg_mol": c.molar_mass, "coolprop_name": c.coolprop_name}
-                               for c, x in zip(gas.components, gas.fractions)]},
-        "vessel": {"water_capacity_m3": case.water_capacity_m3, "rated_pressure_pa": case.rated_pressure_pa,
-                   "rated_pressure_kind": case.rated_pressure_kind,
-                   "relief_set_pressure_pa": case.relief_set_pressure_pa,
-                   "max_filling_ratio_kg_per_l": (case.max_filling_ratio_kg_m3 / 1000.0
-                                                  if case.max_filling_ratio_kg_m3 is not None else None)},
         "fill": {"pressure_pa": case.fill_pressure_pa, "temperature_k": t_fill, "temperature_given": True,
                  "density_kg_m3": rho_mass, "molar_density_mol_m3": rho_molar,
                  "mass_kg": rho_mass * case.water_capacity_m3,
@@ -959,8 +944,6 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
         "margin_fraction": v["margin_fraction"], "relief_margin_fraction": v["relief_margin_fraction"],
         "nominal_margin_fraction": 1.0 - (peak - atm) / (case.rated_pressure_pa - atm),
         "limits": limits, "curves": None, "phase_diagram": None,
-        "inputs": list(case.inputs), "display_units": dict(case.display_units),
-        "cautions": _CAUTIONS,
     }
     return _one_scenario(case, result, sun)
 
@@ -1824,19 +1807,8 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
         nominal_margin = 1.0 - (peak - atm) / (case.rated_pressure_pa - atm)
     vap = _opt(cols["vapour_pressure"][k]) if by_pressure else None
     result = {
-        "id": case.id, "description": case.description, "source": case.source,
-        "tool_version": __version__, "input_sha256": case.input_sha256,
-        "site": {"name": case.site.name, "atmospheric_pressure_pa": atm, "elevation_m": case.site.elevation_m},
+        **_screen.case_parts(case),
         "verdict": v["verdict"], "reasons": v["reasons"], "warnings": v["warnings"],
-        "gas": {"name": gas.name, "kind": gas.kind, "hazards": list(gas.hazards),
-                "components": [{"name": c.name, "formula": c.formula, "fraction": x,
-                                "molar_mass_kg_mol": c.molar_mass, "coolprop_name": c.coolprop_name}
-                               for c, x in zip(gas.components, gas.fractions)]},
-        "vessel": {"water_capacity_m3": case.water_capacity_m3, "rated_pressure_pa": case.rated_pressure_pa,
-                   "rated_pressure_kind": case.rated_pressure_kind,
-                   "relief_set_pressure_pa": case.relief_set_pressure_pa,
-                   "max_filling_ratio_kg_per_l": (case.max_filling_ratio_kg_m3 / 1000.0
-                                                  if case.max_filling_ratio_kg_m3 is not None else None)},
         "fill": {"pressure_pa": case.fill_pressure_pa, "temperature_k": t_fill, "temperature_given": True,
                  "density_kg_m3": rho_mass, "molar_density_mol_m3": fill_rho_molar, "mass_kg": mass,
                  "phase": phase, "filling_ratio_kg_per_l": rho_mass / 1000.0 if rho_mass else None,
@@ -1853,7 +1825,5 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
         "margin_fraction": v["margin_fraction"], "relief_margin_fraction": v["relief_margin_fraction"],
         "nominal_margin_fraction": nominal_margin,
         "limits": limits, "curves": None, "phase_diagram": None,
-        "inputs": list(case.inputs), "display_units": dict(case.display_units),
-        "cautions": _CAUTIONS,
     }
     return _one_scenario(case, result, sun)
