@@ -1281,6 +1281,13 @@ DEFAULT_EMISSIVITY = 0.90
 SKY_CORRELATION_MAX_AMBIENT_K = 323.15
 
 
+def gas_below_ambient_warning(name: str | None) -> dict:
+    """The warning that a stated gas temperature below the ambient maximum gives way to the ambient maximum
+    (`name`: the scenario's, prefixed where there is one)."""
+    msg = "the stated gas temperature is below the ambient maximum; the ambient maximum is used."
+    return {"code": "gas-below-ambient", "message": f"{name}: {msg}" if name else msg[0].upper() + msg[1:]}
+
+
 def _worst_case_temperature(case: Case, sc: Exposure, warnings: list) -> tuple[float, str, dict | None]:
     """Worst-case gas temperature [K] of one scenario, its basis in words, and the energy balance if any."""
     candidates: list[tuple[float, str]] = []
@@ -1289,9 +1296,7 @@ def _worst_case_temperature(case: Case, sc: Exposure, warnings: list) -> tuple[f
     if sc.ambient_max_k is not None:
         candidates.append((sc.ambient_max_k, "ambient maximum"))
     if sc.gas_temperature_k is not None and sc.ambient_max_k is not None and sc.gas_temperature_k < sc.ambient_max_k:
-        warnings.append({"code": "gas-below-ambient", "message":
-                         f"{sc.name}: the stated gas temperature is below the ambient maximum; the ambient "
-                         "maximum is used."})
+        warnings.append(gas_below_ambient_warning(sc.name))
     balance_dict = None
     if sc.solar == "sun":
         notes = []

@@ -805,17 +805,23 @@ def _opt(x) -> float | None:
     return None if math.isnan(x) else x
 
 
+def _exposure_warnings(cols: dict, k: int, name: str | None) -> list[dict]:
+    """Row k's warnings of the worst-case step (a stated gas temperature below the ambient maximum, the fill
+    state governing), in the single screening's order."""
+    warnings: list[dict] = []
+    if cols["gas_below_ambient"][k]:
+        warnings.append(_screen.gas_below_ambient_warning(name))
+    if cols["fill_governs"][k]:
+        warnings.append(_screen.fill_state_warning(name or "exposure", float(cols["t_exposure"][k]),
+                                                   float(cols["t_peak"][k])))
+    return warnings
+
+
 def _verdict(cols: dict, k: int, molar_mass: float, rated: float, relief: float | None, atm: float,
              required_margin: float, max_ratio: float | None, name: str | None, bounding: float | None = None) -> dict:
     """One row's verdict, reasons, margins, governing model and warnings (through screen.decide); `bounding`:
     the bounding peak under the input tolerances [Pa], decided on where it is higher (as screen._screen_at)."""
-    warnings: list[dict] = []
-    if cols["gas_below_ambient"][k]:
-        msg = "the stated gas temperature is below the ambient maximum; the ambient maximum is used."
-        warnings.append({"code": "gas-below-ambient", "message": f"{name}: {msg}" if name else msg[0].upper() + msg[1:]})
-    if cols["fill_governs"][k]:
-        warnings.append(_screen.fill_state_warning(name or "exposure", float(cols["t_exposure"][k]),
-                                                   float(cols["t_peak"][k])))
+    warnings = _exposure_warnings(cols, k, name)
     peak_ideal, peak_ref = float(cols["peak_ideal"][k]), float(cols["peak_ref"][k])
     lk_ok = bool(cols["lk_ok"][k])
     peak_gen = float(cols["lk_peak"][k]) if lk_ok else None
@@ -1670,13 +1676,7 @@ def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, a
                        max_ratio: float | None, name: str | None) -> dict:
     """One liquefied-gas row's verdict, reasons, margins, governing model and warnings (through screen.decide and
     the rules of screen.py), as :func:`_verdict` gives them for a permanent gas."""
-    warnings: list[dict] = []
-    if cols["gas_below_ambient"][k]:
-        msg = "the stated gas temperature is below the ambient maximum; the ambient maximum is used."
-        warnings.append({"code": "gas-below-ambient", "message": f"{name}: {msg}" if name else msg[0].upper() + msg[1:]})
-    if cols["fill_governs"][k]:
-        warnings.append(_screen.fill_state_warning(name or "exposure", float(cols["t_exposure"][k]),
-                                                   float(cols["t_peak"][k])))
+    warnings = _exposure_warnings(cols, k, name)
     band = cols["band"][k]
     if band is not None:
         code, reason, warning = band
