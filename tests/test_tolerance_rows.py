@@ -9,9 +9,9 @@ import pytest
 
 from screening import vector
 from screening.inputs.case import parse_case_data
+from screening.result import Result
 from screening.screen import P_TOL, screen_case
 from screening.verdicts import Verdict
-from screening.result import Result
 
 
 def _as_json(r):

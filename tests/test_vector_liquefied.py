@@ -9,8 +9,8 @@ import pytest
 from screening import vector
 from screening.cli import run
 from screening.inputs.case import parse_case_data
-from screening.screen import P_TOL, screen_case
 from screening.result import Result
+from screening.screen import P_TOL, screen_case
 
 
 def _as_json(r):
