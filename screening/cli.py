@@ -149,7 +149,7 @@ def _screened_here(path: str) -> tuple[Result, str]:
 
     case = load_case(path)
     _lean_coolprop()
-    from screening.screen import screen_case  # after the case reads cleanly: an input error comes sooner
+    from screening.engine import screen_case  # after the case reads cleanly: an input error comes sooner
 
     return screen_case(case), case.text
 
@@ -169,7 +169,7 @@ def _prepare_report_layer() -> None:
 def _screen_in_worker(case) -> Result:
     """Run in the worker: the result of the case (an InputError raised here comes back as itself)."""
     _lean_coolprop()
-    from screening.screen import screen_case
+    from screening.engine import screen_case
 
     return screen_case(case)
 
@@ -178,7 +178,7 @@ def _worker_helps() -> bool:
     """A worker pays off in a fresh command only: a long-lived caller that has the screening core
     loaded already would only pay for the process. Where the platform cannot fork, a worker would
     import everything again from scratch, so the case is screened here."""
-    return hasattr(os, "fork") and "screening.screen" not in sys.modules
+    return hasattr(os, "fork") and "screening.engine" not in sys.modules
 
 
 def _worker_pool():
@@ -222,7 +222,7 @@ def _screened_for_pdf(path: str, *, fork: bool | None = None) -> tuple[Result, s
             if pool is not None:
                 pool.shutdown(wait=True, cancel_futures=True)
     _lean_coolprop()
-    from screening.screen import screen_case
+    from screening.engine import screen_case
 
     return screen_case(case), case.text
 
