@@ -12,6 +12,7 @@ from pathlib import Path
 
 import CoolProp.CoolProp as CP
 import pytest
+from helpers import result_differences
 
 from screening import engine, screen
 from screening.inputs.case import load_case
@@ -22,19 +23,8 @@ DEMO = sorted((ROOT / "cases").glob("*.toml"))
 RTOL, RTOL_LIMITS = 1e-9, 2 * screen.P_TOL
 
 
-def _close(a, b, path: str = "", limits: bool = False) -> list[str]:
-    if isinstance(a, dict) and isinstance(b, dict):
-        if a.keys() != b.keys():
-            return [f"{path}: keys {sorted(a.keys() ^ b.keys())}"]
-        return [d for k in a for d in _close(a[k], b[k], f"{path}.{k}", limits or k == "limits")]
-    if isinstance(a, list) and isinstance(b, list):
-        if len(a) != len(b):
-            return [f"{path}: {len(a)} items against {len(b)}"]
-        return [d for k, (x, y) in enumerate(zip(a, b)) for d in _close(x, y, f"{path}[{k}]", limits)]
-    if isinstance(a, (int, float)) and isinstance(b, (int, float)) and not isinstance(a, bool):
-        tol = RTOL_LIMITS if limits else RTOL
-        return [] if a == b or abs(a - b) <= tol * max(abs(a), abs(b)) else [f"{path}: {a!r} against {b!r}"]
-    return [] if a == b else [f"{path}: {a!r} against {b!r}"]
+def _close(a, b) -> list[str]:
+    return result_differences(a, b, RTOL, RTOL_LIMITS)
 
 
 @pytest.mark.parametrize("path", DEMO, ids=lambda p: p.name)

@@ -1,11 +1,11 @@
 """Rows with input tolerances, several exposure scenarios or the sun's energy balance on the batch's array path:
 the same answers as the single-case screening, and the reference peaks against CoolProp."""
 
-import math
 import random
 
 import CoolProp.CoolProp as CP
 import pytest
+from helpers import result_differences
 
 from screening import engine
 from screening.inputs.case import parse_case_data
@@ -61,23 +61,8 @@ def _case(rnd: random.Random, i: int) -> dict:
     return d
 
 
-def _differences(a, b, path="", limits=False) -> list[str]:
-    """Where b differs from a: keys, texts, flags, list lengths, and numbers beyond the tolerances above."""
-    if isinstance(a, dict) and isinstance(b, dict):
-        if list(a) != list(b):
-            return [f"{path}: keys {sorted(set(a) ^ set(b))} or their order"]
-        return [d for k in a for d in _differences(a[k], b[k], f"{path}.{k}", limits or k == "limits")]
-    if isinstance(a, list) and isinstance(b, list):
-        if len(a) != len(b):
-            return [f"{path}: {len(a)} items against {len(b)}"]
-        return [d for k, (x, y) in enumerate(zip(a, b)) for d in _differences(x, y, f"{path}[{k}]", limits)]
-    numbers = (int, float)
-    if isinstance(a, numbers) and isinstance(b, numbers) and not isinstance(a, bool) and not isinstance(b, bool):
-        rtol = RTOL_LIMITS if limits else RTOL
-        if a == b or (math.isfinite(a) and abs(a - b) <= rtol * max(abs(a), abs(b))):
-            return []
-        return [f"{path}: {a!r} against {b!r}"]
-    return [] if a == b else [f"{path}: {a!r} against {b!r}"]
+def _differences(a, b) -> list[str]:
+    return result_differences(a, b, RTOL, RTOL_LIMITS)
 
 
 def test_rows_with_tolerances_scenarios_and_sun_equal_the_single_case_screening():
