@@ -143,15 +143,16 @@ def _lean_coolprop() -> None:
     load_lean()
 
 
-def _screened_here(path: str) -> tuple[Result, str]:
-    """(result, case text as read) of the case file at `path`, screened in this process."""
+def _screened_here(path: str, curves: bool = True) -> tuple[Result, str]:
+    """(result, case text as read) of the case file at `path`, screened in this process; with its plot data
+    where `curves` (the outputs that show them: JSON and the PDF)."""
     from screening.inputs.case import load_case
 
     case = load_case(path)
     _lean_coolprop()
     from screening.engine import screen_case  # after the case reads cleanly: an input error comes sooner
 
-    return screen_case(case), case.text
+    return screen_case(case, curves=curves), case.text
 
 
 def _prepare_report_layer() -> None:
@@ -319,7 +320,7 @@ def run(argv: list[str] | None = None) -> int:
     if args.command == "report" or args.pdf:
         result, case_text = _screened_for_pdf(args.case)
     else:
-        result, case_text = _screened_here(args.case)
+        result, case_text = _screened_here(args.case, curves=bool(args.json))
     if args.command == "report":
         written = _write_pdf(result, case_text, args.output, args.date)
         print(f"report written: {written}")
