@@ -7,10 +7,11 @@ CoolProp, which loads its whole fluid library at import) for `check`, `report` a
 layer (WeasyPrint, Matplotlib, Jinja2) only where a PDF is written or read.
 
 Commands that write a PDF (`report`, `check --pdf`) from a fresh process read the case, then screen it
-in a `concurrent.futures.ProcessPoolExecutor` worker: the worker imports the screening core and screens
-the case while this process imports the report layer, so the two slow import chains run on two cores
-at once. The result comes back pickled (every value unchanged; an input error comes back
-as itself). Where no worker can be started, or it dies, the case is screened here.
+in a `concurrent.futures.ProcessPoolExecutor` worker: the worker imports the screening core, screens
+the case and draws the report's plots (matplotlib) while this process imports the layout engine
+(WeasyPrint, Jinja2), so the slow import chains run on two cores at once. The result and the plots come
+back pickled (every value unchanged; an input error comes back as itself). Where no worker can be
+started, or it dies, the case is screened and the plots drawn here.
 """
 
 from __future__ import annotations
