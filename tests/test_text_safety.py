@@ -147,7 +147,8 @@ def test_every_text_of_a_case_as_one_long_word_stays_on_the_page():
                      ('"store, shaded"', '"' + "A" * 300 + '"'), ('"yard, full sun"', '"' + "B" * 300 + '"'),
                      ('"closed van"', '"' + "C" * 300 + '"'), ('"240 m"', '"' + "0" * 56 + '240 m"'),
                      ('"50 L"', '"' + "0" * 58 + '50 L"'), ('"229 mm"', '"' + "0" * 56 + '229 mm"'),
-                     ('"2 K"', '"' + "0" * 60 + '2 K"'), ('description = "', 'description = "' + "D" * 3000)):
+                     ('"2 K"', '"' + "0" * 60 + '2 K"'), ('"200 bar(g)"', '"' + "0" * 50 + '200 bar(g)"'),
+                     ('description = "', 'description = "' + "D" * 3000)):
         assert old in text
         text = text.replace(old, new, 1)
     result = screen_case(parse_case_text(text, "F" * 200 + ".toml"))
