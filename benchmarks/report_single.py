@@ -9,7 +9,7 @@ that before and after are measured in the same run under the same load.
 Times, best of N (default 5) fresh processes each, from process start to exit (wall seconds):
 * `screening check CASE` (terminal summary; target 1.0 s);
 * `screening report CASE -o OUT --date D` (target 2.5 s), the command as a user runs it: the case is
-  screened in a concurrent.futures worker while the process imports the report layer;
+  screened and its plots drawn in a concurrent.futures worker while the process imports the layout engine;
 * the same report with no worker (everything in one process, one after the other), to tell whether the
   overlap still pays;
 * `import CoolProp.CoolProp` alone (CPU seconds): the whole library, as any process but a one-case

@@ -7,10 +7,11 @@ CoolProp, which loads its whole fluid library at import) for `check`, `report` a
 layer (WeasyPrint, Matplotlib, Jinja2) only where a PDF is written or read.
 
 Commands that write a PDF (`report`, `check --pdf`) from a fresh process read the case, then screen it
-in a `concurrent.futures.ProcessPoolExecutor` worker: the worker imports the screening core and screens
-the case while this process imports the report layer, so the two slow import chains run on two cores
-at once. The result comes back pickled (every value unchanged; an input error comes back
-as itself). Where no worker can be started, or it dies, the case is screened here.
+in a `concurrent.futures.ProcessPoolExecutor` worker: the worker imports the screening core, screens
+the case and draws the report's plots (matplotlib) while this process imports the layout engine
+(WeasyPrint, Jinja2), so the slow import chains run on two cores at once. The result and the plots come
+back pickled (every value unchanged; an input error comes back as itself). Where no worker can be
+started, or it dies, the case is screened and the plots drawn here.
 """
 
 from __future__ import annotations
@@ -128,10 +129,10 @@ def _build() -> argparse.ArgumentParser:
     return p
 
 
-def _write_pdf(result: Result, case_text: str, out: str, date: _dt.date | None) -> str:
+def _write_pdf(result: Result, case_text: str, out: str, date: _dt.date | None, plots: dict | None = None) -> str:
     from screening.outputs.report import render_report
 
-    path = render_report(result, case_text, out, report_date=date or _dt.date.today())
+    path = render_report(result, case_text, out, report_date=date or _dt.date.today(), plots=plots)
     return str(path)
 
 
@@ -156,13 +157,14 @@ def _screened_here(path: str, curves: bool = True) -> tuple[Result, str]:
 
 
 def _prepare_report_layer() -> None:
-    """Import what writing the PDF needs; only a head start, so a failure here is left for the render
-    itself to raise, in its usual order after the screening."""
+    """Import what laying out the PDF needs (not matplotlib: the worker draws the plots); only a head
+    start, so a failure here is left for the render itself to raise, in its usual order after the
+    screening."""
     try:
-        import weasyprint  # noqa: F401
-
-        import screening.outputs.report  # noqa: F401
+        import screening.outputs.report
         import screening.outputs.summary  # noqa: F401
+
+        screening.outputs.report.prepare_layout()
     except Exception:
         pass
 
@@ -173,6 +175,16 @@ def _screen_in_worker(case) -> Result:
     from screening.engine import screen_case
 
     return screen_case(case)
+
+
+def _screen_and_plot_in_worker(case) -> tuple[Result, dict]:
+    """Run in the worker: the result of the case and the report's plots drawn from it
+    (outputs.report.report_plots), so that the parent, busy importing the layout engine meanwhile, need
+    not import matplotlib nor draw."""
+    result = _screen_in_worker(case)
+    from screening.outputs.report import report_plots
+
+    return result, report_plots(result)
 
 
 def _worker_helps() -> bool:
@@ -191,11 +203,19 @@ def _worker_pool():
 
 
 def _screened_for_pdf(path: str, *, fork: bool | None = None) -> tuple[Result, str]:
-    """(result, case text as read) for a command that goes on to write a PDF.
+    """(result, case text as read) for a command that goes on to write a PDF (see _screened_and_plotted)."""
+    result, text, _ = _screened_and_plotted(path, fork=fork)
+    return result, text
+
+
+def _screened_and_plotted(path: str, *, fork: bool | None = None) -> tuple[Result, str, dict | None]:
+    """(result, case text as read, the report's plots or None) for a command that goes on to write a PDF.
 
     The case is read here first, so an unreadable case is reported at once and starts no process.
     Then, with `fork` (default: `_worker_helps()`), one worker process (`_worker_pool`) imports the
-    screening core and screens the case while this process imports the report layer. The worker is
+    screening core, screens the case and draws the report's plots while this process imports the
+    report layer; the plots come back with the result (None where the case was screened here: the
+    report then draws them itself). The worker is
     handed the parsed Case (it never builds the unit registry); an InputError it finds is raised here as
     itself. Without a worker, or when it cannot be started, cannot be handed the case or dies, the case
     is screened here.
@@ -209,9 +229,10 @@ def _screened_for_pdf(path: str, *, fork: bool | None = None) -> tuple[Result, s
         pool = None
         try:
             pool = _worker_pool()
-            job = pool.submit(_screen_in_worker, case)
+            job = pool.submit(_screen_and_plot_in_worker, case)
             _prepare_report_layer()
-            return job.result(), case.text
+            result, plots = job.result()
+            return result, case.text, plots
         except InputError:
             raise
         except Exception:  # noqa: BLE001
@@ -225,7 +246,7 @@ def _screened_for_pdf(path: str, *, fork: bool | None = None) -> tuple[Result, s
     _lean_coolprop()
     from screening.engine import screen_case
 
-    return screen_case(case), case.text
+    return screen_case(case), case.text, None
 
 
 #: Largest inventory file [bytes] a batch reads: a 10 000 000-row register is about 1 GB (the reader
@@ -317,12 +338,13 @@ def run(argv: list[str] | None = None) -> int:
         print(message)
         return EXIT_WITHIN if ok else EXIT_NOT_WITHIN
 
+    plots = None
     if args.command == "report" or args.pdf:
-        result, case_text = _screened_for_pdf(args.case)
+        result, case_text, plots = _screened_and_plotted(args.case)
     else:
         result, case_text = _screened_here(args.case, curves=bool(args.json))
     if args.command == "report":
-        written = _write_pdf(result, case_text, args.output, args.date)
+        written = _write_pdf(result, case_text, args.output, args.date, plots)
         print(f"report written: {written}")
         return _exit_for(result.verdict)
     if args.json:
@@ -334,7 +356,7 @@ def run(argv: list[str] | None = None) -> int:
 
         print(format_summary(result))
     if args.pdf:
-        written = _write_pdf(result, case_text, args.pdf, args.date)
+        written = _write_pdf(result, case_text, args.pdf, args.date, plots)
         print(f"report written: {written}", file=sys.stderr if args.json else sys.stdout)
     return _exit_for(result.verdict)
 

@@ -92,6 +92,33 @@ def test_forked_and_in_process_reports_are_byte_identical(stem):
 
 
 @FORK
+@pytest.mark.parametrize("stem", ["kq-n2-014", "kq-co2-002"])
+def test_the_plots_drawn_by_the_worker_give_the_bytes_the_report_draws_itself(stem):
+    # kq-co2-002 has a phase diagram besides the isochore plot.
+    case = ROOT / "cases" / f"{stem}.toml"
+    result, text, plots = cli._screened_and_plotted(str(case), fork=True)
+    assert plots is not None and plots["isochore"].startswith("data:image/svg+xml;base64,")
+    assert (plots["phase"] is not None) == (stem == "kq-co2-002")
+    assert render_pdf_bytes(result, text, report_date=DATE, plots=plots) == render_pdf_bytes(result, text,
+                                                                                              report_date=DATE)
+    assert cli._screened_and_plotted(str(case), fork=False)[2] is None
+
+
+@FORK
+def test_a_fresh_report_command_leaves_matplotlib_to_its_worker(tmp_path):
+    case = ROOT / "cases" / "kq-n2-014.toml"
+    code = ("import contextlib, io, sys\n"
+            "from screening import cli\n"
+            "with contextlib.redirect_stdout(io.StringIO()):\n"
+            f"    cli.run(['report', {str(case)!r}, '-o', {str(tmp_path / 'n2.pdf')!r}])\n"
+            "print(sorted({m.split('.')[0] for m in sys.modules} & {'matplotlib', 'weasyprint', 'CoolProp'}))\n")
+    done = subprocess.run([sys.executable, "-c", code], cwd=ROOT, capture_output=True, text=True)
+    assert done.returncode in (0, 1), done.stderr
+    assert done.stdout.strip() == "['weasyprint']"
+    assert (tmp_path / "n2.pdf").read_bytes().startswith(b"%PDF-")
+
+
+@FORK
 def test_report_command_from_a_fresh_process_writes_the_in_process_bytes(tmp_path):
     # A fresh process has not loaded the screening core, so the command takes the forked path.
     case = ROOT / "cases" / "kq-n2-014.toml"

@@ -139,6 +139,23 @@ def test_long_unbroken_text_wraps_and_stays_on_the_page():
     assert _boxes_outside_the_page(html) == []
 
 
+def test_every_text_of_a_case_as_one_long_word_stays_on_the_page():
+    # Id, description, site, scenario names (one in the sun, so the energy balance is shown), the file
+    # name, and values as entered padded with zeros: each one word, none may push a box past the page.
+    text = (ROOT / "cases" / "kq-n2-031.toml").read_text(encoding="utf-8")
+    for old, new in (('"KQ-N2-031"', '"' + "I" * 300 + '"'), ('"Kestrel Quarry"', '"' + "S" * 300 + '"'),
+                     ('"store, shaded"', '"' + "A" * 300 + '"'), ('"yard, full sun"', '"' + "B" * 300 + '"'),
+                     ('"closed van"', '"' + "C" * 300 + '"'), ('"240 m"', '"' + "0" * 56 + '240 m"'),
+                     ('"50 L"', '"' + "0" * 58 + '50 L"'), ('"229 mm"', '"' + "0" * 56 + '229 mm"'),
+                     ('"2 K"', '"' + "0" * 60 + '2 K"'), ('"200 bar(g)"', '"' + "0" * 50 + '200 bar(g)"'),
+                     ('description = "', 'description = "' + "D" * 3000)):
+        assert old in text
+        text = text.replace(old, new, 1)
+    result = screen_case(parse_case_text(text, "F" * 200 + ".toml"))
+    html = report_mod.render_html(result, text, DATE)
+    assert _boxes_outside_the_page(html) == []
+
+
 def test_pdf_bytes_do_not_depend_on_the_working_directory_or_the_typed_path(tmp_path, monkeypatch):
     folder = tmp_path / "some user" / "cases"
     folder.mkdir(parents=True)

@@ -125,3 +125,25 @@ def test_many_texts_read_at_once_give_exactly_what_parse_gives(pairs, kind, basi
         if v is not None:           # a text si_many leaves out goes through parse, which decides
             assert v == reading.si(), text
             assert spec == reading.unit, text
+
+
+def test_the_registry_of_the_allowlisted_units_converts_exactly_as_pints_full_registry():
+    # Reference: pint's own full default registry (every definition of default_en.txt), built here. The
+    # package's registry holds only the definitions its allowlist uses, taken from the same files.
+    import numpy as np
+    import pint
+
+    from screening import units
+
+    assert units._pint_definitions() is not None, "pint's definition files no longer hold the units as read"
+    small = units._registry()
+    assert len(small._units) < 200
+    full = pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
+    values = [0.0, 1.0, -40.0, 15.0, 200.0, 3.3333333, 1e6, np.array([0.5, 20.0, 873.15])]
+    for label, spec in units._UNITS.items():
+        si_name = units._SI_UNIT[spec.kind]
+        for x in values:
+            for src, dst in ((spec.pint_name, si_name), (si_name, spec.pint_name)):
+                ours = small.Quantity(x, small.Unit(src)).to(small.Unit(dst)).magnitude
+                theirs = full.Quantity(x, full.Unit(src)).to(full.Unit(dst)).magnitude
+                assert np.array_equal(ours, theirs), (label, src, dst, x, ours, theirs)

@@ -22,6 +22,7 @@ from __future__ import annotations
 
 import contextlib
 import datetime as _dt
+import functools
 import hashlib
 import json
 import mimetypes
@@ -490,8 +491,9 @@ def _tolerance_view(result: Result, f: _Fmt) -> dict | None:
                 bounding_model=MODEL_TITLES.get(str(result.curves.bounding_model if result.curves else None), ""))
 
 
-def _phase_view(result: Result, f: _Fmt) -> dict | None:
-    """Phase diagram and filling-ratio paragraph of a liquefiable or condensed fill."""
+def _phase_view(result: Result, f: _Fmt, plot_uri: str | None) -> dict | None:
+    """Phase diagram (`plot_uri`, from plot.report_plots) and filling-ratio paragraph of a liquefiable or
+    condensed fill."""
     if not phase_diagram_wanted(result):
         return None
     fill, vessel, limits = result.fill, result.vessel, result.limits
@@ -564,7 +566,7 @@ def _phase_view(result: Result, f: _Fmt) -> dict | None:
     if not drawable:
         no_plot = ("The result carries no vapour-pressure curve for this gas (only a pure fluid has a single "
                    "saturation curve), so no phase diagram is drawn.")
-    return dict(rows=rows, row_pairs=[rows[i:i + 2] for i in range(0, len(rows), 2)], paras=paras, plot_uri=svg_data_uri(phase_diagram_svg(result)) if drawable else None,
+    return dict(rows=rows, row_pairs=[rows[i:i + 2] for i in range(0, len(rows), 2)], paras=paras, plot_uri=plot_uri if drawable else None,
                 no_plot=no_plot, liquid_full=liquid_full_marked(result))
 
 
@@ -829,9 +831,24 @@ def _worst_case_line(result: Result, f: _Fmt, exposure: dict | None, scenario_ro
               "carried away by convection and radiation. The gas is taken at the wall temperature.")
 
 
-def build_view(result: Result, case_text: str, report_date: _dt.date) -> dict:
+def report_plots(result: Result) -> dict[str, str | None]:
+    """The report's plots as data: URIs, drawn from the finished result: ``"isochore"`` (None where no
+    model is drawable) and ``"phase"`` (the phase diagram; None where the report shows no phase section
+    or the result carries no saturation curve). build_view draws them unless it is handed them;
+    screening.cli has them drawn in its screening worker while it imports the layout engine."""
+    return {
+        "isochore": svg_data_uri(plot_svg(result)) if drawable_models(result) else None,
+        "phase": (svg_data_uri(phase_diagram_svg(result))
+                  if phase_diagram_wanted(result) and phase_diagram_drawable(result) else None),
+    }
+
+
+def build_view(result: Result, case_text: str, report_date: _dt.date, plots: dict | None = None) -> dict:
     """Everything the template shows, as strings (and lists of strings), from the result; each section
-    is built by its own function above."""
+    is built by its own function above. `plots`: the result's plots as plot.report_plots gives them, where
+    they were drawn already (in the command's screening worker); drawn here otherwise."""
+    if plots is None:
+        plots = report_plots(result)
     f = _Fmt(result)
     verdict = _verdict_view(result)
     verdict_code = result.verdict
@@ -859,7 +876,7 @@ def build_view(result: Result, case_text: str, report_date: _dt.date) -> dict:
     exposure = _exposure_view(result, f)
     scenario_rows = _scenario_rows(result, f)
     tolerance = _tolerance_view(result, f)
-    phase = _phase_view(result, f)
+    phase = _phase_view(result, f, plots["phase"])
     order = ["results", "inputs", "exposure"] \
         + (["phase"] if phase else []) + (["tolerance"] if tolerance else [])
     sections = {key: str(i) for i, key in enumerate(order, start=1)}
@@ -901,7 +918,7 @@ def build_view(result: Result, case_text: str, report_date: _dt.date) -> dict:
                        reason=str(result.governing_reason)),
         margin_rows=margin_rows, margin_check=margin_check,
         limit_rows=_limit_rows(result, f), limits_note=_text(result.limits.note) or "",
-        plot_uri=svg_data_uri(plot_svg(result)) if drawable_models(result) else None,
+        plot_uri=plots["isochore"],
         sections=sections, exposure=exposure, worst_case_line=_worst_case_line(result, f, exposure, scenario_rows),
         scenarios=scenario_rows,
         scenario_tolerance=_bounding(result), tolerance=tolerance, phase=phase, condensed_note=_condensed_note(result),
@@ -982,8 +999,28 @@ def _source_date_epoch(epoch: int):
             os.environ["SOURCE_DATE_EPOCH"] = old
 
 
+@functools.lru_cache(maxsize=8)
+def _report_environment(folder: Path) -> jinja2.Environment:
+    """The one-case report's template environment of `folder`, kept: it keeps the compiled template (and
+    compiles it again when the file changes)."""
+    return _environment(folder)
+
+
 def _render_html(view: dict, folder: Path) -> str:
-    return _environment(folder).get_template(TEMPLATE_NAME).render(v=view)
+    return _report_environment(folder).get_template(TEMPLATE_NAME).render(v=view)
+
+
+def prepare_layout() -> None:
+    """A head start for a command about to write a report, while its result is computed elsewhere:
+    compiles the template and lays out a line in the report's fonts, so that the layout engine has read
+    its font configuration and the fonts before the report itself is laid out (about 0.08 s). Any
+    failure is left for the render itself to raise."""
+    import weasyprint
+
+    with contextlib.suppress(Exception):
+        _report_environment(templates_dir()).get_template(TEMPLATE_NAME)
+        weasyprint.HTML(string='<p style="font-family: \'DejaVu Sans\'">Ab <b>Cd</b> '
+                               '<span style="font-family: \'DejaVu Sans Mono\'">Ef</span></p>').render()
 
 
 def render_html(result: Result, case_text: str, report_date: _dt.date) -> str:
@@ -991,12 +1028,12 @@ def render_html(result: Result, case_text: str, report_date: _dt.date) -> str:
     return _render_html(build_view(result, case_text, report_date), templates_dir())
 
 
-def render_pdf_bytes(result: Result, case_text: str, *, report_date: _dt.date) -> bytes:
-    """The PDF bytes of the report (no file written)."""
+def render_pdf_bytes(result: Result, case_text: str, *, report_date: _dt.date, plots: dict | None = None) -> bytes:
+    """The PDF bytes of the report (no file written); `plots` as for build_view."""
     import weasyprint
 
     folder = templates_dir()
-    view = build_view(result, case_text, report_date)
+    view = build_view(result, case_text, report_date, plots)
     html_text = _render_html(view, folder)
     stamp = _dt.datetime(report_date.year, report_date.month, report_date.day, tzinfo=_dt.timezone.utc)
     fetcher = _make_fetcher(folder)
@@ -1029,8 +1066,10 @@ def render_pdf_bytes(result: Result, case_text: str, *, report_date: _dt.date) -
         raise ReportRenderError(f"{exc}: {cause}" if cause else str(exc)) from cause
 
 
-def render_report(result: Result, case_text: str, out_path: str | os.PathLike, *, report_date: _dt.date) -> Path:
+def render_report(result: Result, case_text: str, out_path: str | os.PathLike, *, report_date: _dt.date,
+                  plots: dict | None = None) -> Path:
     """Write the PDF report of `result` (with `case_text` attached) to `out_path`; return the path.
+    `plots`: the result's plots where they were drawn already (plot.report_plots); drawn here otherwise.
 
     Raises InputError if the target is a directory, its folder is missing or it cannot be written.
     The file appears complete or not at all; an earlier file at `out_path` survives a failed render.
@@ -1040,6 +1079,6 @@ def render_report(result: Result, case_text: str, out_path: str | os.PathLike, *
     if isinstance(report_date, _dt.datetime):
         report_date = report_date.date()
     target = check_target(out_path, "report")
-    pdf = render_pdf_bytes(result, case_text, report_date=report_date)
+    pdf = render_pdf_bytes(result, case_text, report_date=report_date, plots=plots)
     write_bytes(target, pdf, "report")
     return target
