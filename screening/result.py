@@ -21,6 +21,7 @@ True
 from __future__ import annotations
 
 import dataclasses
+import functools
 from dataclasses import dataclass
 from typing import Any, ClassVar
 
@@ -80,15 +81,21 @@ class _Part:
     @classmethod
     def from_json(cls, data: dict):
         """The part from its JSON object (a key it does not know is an error: the layout is fixed)."""
-        fields = dataclasses.fields(cls)  # type: ignore[arg-type]
-        names = [f.name for f in fields]
-        unknown = set(data) - set(names)
-        if unknown:
-            raise KeyError(f"{cls.__name__}: unknown keys {sorted(unknown)}")
-        missing = [f.name for f in fields if f.name not in data and f.default is dataclasses.MISSING]
-        if missing:
-            raise KeyError(f"{cls.__name__}: missing keys {missing}")
-        return cls(**{n: cls._read(n, data[n]) for n in names if n in data})
+        names, known, required = _layout(cls)
+        if not known.issuperset(data):
+            raise KeyError(f"{cls.__name__}: unknown keys {sorted(set(data) - known)}")
+        if not required.issubset(data):
+            raise KeyError(f"{cls.__name__}: missing keys {[n for n in names if n in required and n not in data]}")
+        read = cls._READ
+        return cls(**{n: (cls._read(n, data[n]) if n in read else data[n]) for n in names if n in data})
+
+
+@functools.cache
+def _layout(cls: type) -> tuple[tuple[str, ...], frozenset, frozenset]:
+    """A part's field names in order, as a set, and those without a default (the keys its JSON must hold)."""
+    fields = dataclasses.fields(cls)
+    names = tuple(f.name for f in fields)
+    return names, frozenset(names), frozenset(f.name for f in fields if f.default is dataclasses.MISSING)
 
 
 @_frozen
