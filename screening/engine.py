@@ -61,6 +61,7 @@ from screening.inputs.case import Case, load_case, parse_case_text
 from screening.inputs.columns import PlainRows
 from screening.physics.eos.generalized import (
     GENERALIZED_FIELDS,
+    LK_REDUCED_TEMPERATURE_RANGE,
     GeneralizedState,
     lee_kesler_density,
     lee_kesler_pressure,
@@ -81,6 +82,8 @@ _SECANT_MAX = 30
 #: Rows closer than this to the edge of the Lee–Kesler range at a limit go the per-row way.
 _LK_PR_EDGE = 9.5
 _LK_TR_EDGE = 3.95
+#: Highest reduced temperature of the Lee–Kesler range.
+_LK_TR_HI = LK_REDUCED_TEMPERATURE_RANGE[1]
 
 
 # ----------------------------------------------------------------------------- eligibility
@@ -345,6 +348,26 @@ def _scan_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray
     live = np.flatnonzero(has & ~at_b & ~at_a)
     out[live] = _illinois(f, grid[live, k[live]], grid[live, k[live] + 1], a_f[live, k[live]], b_f[live, k[live]],
                           live)
+    return out
+
+
+def _below_at_range_top(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray, hi: np.ndarray,
+                        tc: np.ndarray) -> np.ndarray:
+    """Rows where screen._root's scan of the Lee–Kesler isochore f(T, rows) = P(T) - P_rated on
+    np.linspace(lo, hi, _SCAN_N) certainly finds no root, known from one evaluation instead of the scan: f is
+    below zero at the highest scan point whose reduced temperature T/tc is inside the Lee–Kesler range (or no
+    scan point is). The isochore's pressure rises with the temperature, so f is below zero at every scan point
+    under it that can be evaluated, and the points above it cannot be (the model refuses them): no scan interval
+    brackets a sign change. Elsewhere (f zero or above there, or not evaluable) False: the caller scans."""
+    m = lo.size
+    grid = np.linspace(lo, hi, _SCAN_N, axis=1)                        # the scan's points, as _scan_root has them
+    inside = grid / tc[:, None] <= _LK_TR_HI                           # as the model tests T_r (a prefix: T rises)
+    k = inside.sum(axis=1) - 1
+    out = k < 0                                                        # no point inside: nothing to evaluate
+    rows = np.flatnonzero(~out)
+    if rows.size:
+        fx = f(grid[rows, k[rows]], rows)
+        out[rows] = np.isfinite(fx) & (fx < 0.0)
     return out
 
 
@@ -645,7 +668,10 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
         t_lk[i[has & ~unsure]] = root[has & ~unsure]
         u = i[unsure]
         if u.size:
-            t_lk[u] = _scan_root(isochore_over_rating(u), t_lo[u], t_hi[u])
+            none = _below_at_range_top(isochore_over_rating(u), t_lo[u], t_hi[u], tcp[u])
+            scan = u[~none]
+            if scan.size:
+                t_lk[scan] = _scan_root(isochore_over_rating(scan), t_lo[scan], t_hi[scan])
 
         # generalized: the fill pressure whose peak is the target: density at the target and the peak
         # temperature, then the pressure of that density at the fill temperature
