@@ -237,12 +237,16 @@ def _gas_root(consts: tuple, tr: np.ndarray, pr: np.ndarray, active: np.ndarray)
         conv |= finite_hi & ((hi - lo) <= _RTOL * hi)
         conv &= ~stuck
         finished = conv | stuck
-        rho[idx] = new
+        if not finished.any():          # nothing to record or drop this step
+            r = new
+            continue
+        rho[idx[finished]] = new[finished]
         converged[idx[conv]] = True
         no_root[idx[stuck]] = True
         keep = ~finished
         idx, t, p_t, r, lo, hi = idx[keep], t[keep], p_t[keep], new[keep], lo[keep], hi[keep]
         coef = tuple(c[keep] for c in coef)
+    rho[idx] = r                        # elements still iterating after _MAX_INNER steps: their last step
     coef = _coefficients(consts, trf)
     z, dz = _bwr(consts, coef, rho)
     dp = trf * (z + rho * dz)
