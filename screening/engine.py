@@ -64,6 +64,7 @@ from screening.physics.eos.generalized import (
     LK_REDUCED_TEMPERATURE_RANGE,
     GeneralizedState,
     lee_kesler_density,
+    lee_kesler_density_valid,
     lee_kesler_pressure,
     pseudocritical,
     srk_quantum_density,
@@ -641,8 +642,8 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
         i = rows_lk
 
         def f_t(t, ix):
-            s = lee_kesler_density(rated[ix], t, tcp[ix], pcp[ix], omp[ix])
-            return np.where(s.valid, s.molar_density / rho_lk[ix] - 1.0, np.nan)
+            rho, valid = lee_kesler_density_valid(rated[ix], t, tcp[ix], pcp[ix], omp[ix])
+            return np.where(valid, rho / rho_lk[ix] - 1.0, np.nan)
 
         # generalized: T on the isochore at the rated pressure (density at the rated pressure = fill density)
         reach = rated[i] / pcp[i] <= 10.0

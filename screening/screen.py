@@ -19,6 +19,7 @@ from screening.errors import InputError, NotApplicable
 from screening.inputs.case import Case, Exposure
 from screening.physics.eos.generalized import (
     lee_kesler_density,
+    lee_kesler_density_valid,
     lee_kesler_pressure,
     pseudocritical,
     quantum_effective_critical,
@@ -231,8 +232,8 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
         # secant on T for the density at (p, T) equal to the fill density, from the ideal-gas estimate
         def g(t: float) -> float:
             ts = np.array([t])
-            s = lee_kesler_density(np.array([p]), ts, *constants_at(ts))
-            return float(s.molar_density[0]) / rho - 1.0 if s.valid[0] else math.nan
+            rho_t, ok = lee_kesler_density_valid(np.array([p]), ts, *constants_at(ts))
+            return float(rho_t[0]) / rho - 1.0 if ok[0] else math.nan
 
         x0 = t_peak * p / float(peak.pressure[0])
         if not (math.isfinite(x0) and x0 > 0.0):
