@@ -372,6 +372,36 @@ def _below_at_range_top(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: n
     return out
 
 
+def _root_in_interval(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray, hi: np.ndarray,
+                      x: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Per row, the root :func:`_scan_root` finds for an increasing f(x, rows) on [lo, hi], settled from the scan
+    interval [a, b] of np.linspace(lo, hi, _SCAN_N) that holds x (the root found another way) instead of the whole
+    scan, where that interval decides: f(a) < 0 and f(b) > 0, the scan's root (Illinois on [a, b], as there); f(a)
+    < 0 and f(b) not evaluable (the model's range ends inside the interval), none. f increasing, every scan point
+    below a has f < 0 where it can be evaluated and every point above b has f > 0: no other interval brackets a
+    sign change. Returns (root, settled); settled False (x not finite, f(a) not below zero, f(b) zero): the
+    caller scans."""
+    m = lo.size
+    root = np.full(m, np.nan)
+    settled = np.zeros(m, dtype=bool)
+    live = np.flatnonzero(np.isfinite(x))
+    if live.size == 0:
+        return root, settled
+    grid = np.linspace(lo[live], hi[live], _SCAN_N, axis=1)           # the scan's points, as _scan_root has them
+    k = np.clip((grid <= x[live, None]).sum(axis=1) - 1, 0, _SCAN_N - 2)
+    rows = np.arange(live.size)
+    a, b = grid[rows, k], grid[rows, k + 1]
+    fa, fb = f(np.concatenate([a, b]), np.concatenate([live, live])).reshape(2, -1)
+    below = np.isfinite(fa) & (fa < 0.0)
+    none = below & ~np.isfinite(fb)
+    settled[live[none]] = True
+    solve = np.flatnonzero(below & np.isfinite(fb) & (fb > 0.0))
+    if solve.size:
+        root[live[solve]] = _illinois(f, a[solve], b[solve], fa[solve], fb[solve], live[solve])
+        settled[live[solve]] = True
+    return root, settled
+
+
 def _monotone_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray, hi: np.ndarray,
                    n: int = _SCAN_N) -> np.ndarray:
     """Per row, the root screen._root finds for a monotonic f(x, rows) on [lo, hi] (NaN: none), looking first
@@ -688,12 +718,21 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
         max_p_lk[i[ok]] = pstar[ok]
         u = i[unsure]
         if u.size:
-            def f_fill(p, ix):
-                r = u[ix]
-                s1 = lee_kesler_density(p, t_fill[r], tcf[r], pcf[r], omf[r])
-                s2 = lee_kesler_pressure(np.where(s1.valid, s1.molar_density, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
-                return np.where(s1.valid & s2.valid, s2.pressure - target[r], np.nan)
-            max_p_lk[u] = _scan_root(f_fill, p_lo[u], p_hi[u])
+            def fill_over_target(rows_: np.ndarray):
+                """p -> generalized peak of the fill pressure p minus the target, for the rows rows_ (NaN where
+                the model does not apply)."""
+                def f(p, ix):
+                    r = rows_[ix]
+                    rho1, ok1 = lee_kesler_density_valid(p, t_fill[r], tcf[r], pcf[r], omf[r])
+                    s2 = lee_kesler_pressure(np.where(ok1, rho1, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
+                    return np.where(ok1 & s2.valid, s2.pressure - target[r], np.nan)
+                return f
+
+            root, settled = _root_in_interval(fill_over_target(u), p_lo[u], p_hi[u], pstar[unsure])
+            max_p_lk[u[settled]] = root[settled]
+            scan = u[~settled]
+            if scan.size:
+                max_p_lk[scan] = _scan_root(fill_over_target(scan), p_lo[scan], p_hi[scan])
     return t_lk, max_p_lk
 
 
