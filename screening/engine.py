@@ -698,7 +698,11 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
         unsure |= reach & ~has & conv & (root > t_lo[i]) & (b / tcp[i] > _LK_TR_EDGE)
         t_lk[i[has & ~unsure]] = root[has & ~unsure]
         u = i[unsure]
-        if u.size:
+        if u.size:     # the scan interval that holds the secant's root decides where it can; else the scan
+            got, settled = _root_in_interval(isochore_over_rating(u), t_lo[u], t_hi[u],
+                                             np.where(conv[unsure], root[unsure], np.nan))
+            t_lk[u[settled]] = got[settled]
+            u = u[~settled]
             none = _below_at_range_top(isochore_over_rating(u), t_lo[u], t_hi[u], tcp[u])
             scan = u[~none]
             if scan.size:
