@@ -61,6 +61,7 @@ from screening.inputs.case import Case, load_case, parse_case_text
 from screening.inputs.columns import PlainRows
 from screening.physics.eos.generalized import (
     GENERALIZED_FIELDS,
+    LK_REDUCED_PRESSURE_RANGE,
     LK_REDUCED_TEMPERATURE_RANGE,
     GeneralizedState,
     lee_kesler_density,
@@ -85,6 +86,8 @@ _LK_PR_EDGE = 9.5
 _LK_TR_EDGE = 3.95
 #: Highest reduced temperature of the Lee–Kesler range.
 _LK_TR_HI = LK_REDUCED_TEMPERATURE_RANGE[1]
+#: Highest reduced pressure of the Lee–Kesler range.
+_LK_PR_HI = LK_REDUCED_PRESSURE_RANGE[1]
 
 
 # ----------------------------------------------------------------------------- eligibility
@@ -350,6 +353,13 @@ def _scan_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray
     out[live] = _illinois(f, grid[live, k[live]], grid[live, k[live] + 1], a_f[live, k[live]], b_f[live, k[live]],
                           live)
     return out
+
+
+def _above_lk_pressures(p: np.ndarray, pc: np.ndarray) -> np.ndarray:
+    """Where the pressure p [Pa] is above every pressure the Lee–Kesler model gives (reduced pressure above the
+    top of its range, with a margin for the rounding of P_r pc): a function "model pressure minus p" is below zero
+    wherever it can be evaluated, and a scan of it finds no root."""
+    return p / pc > _LK_PR_HI * (1.0 + 1e-9)
 
 
 def _below_at_range_top(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray, hi: np.ndarray,
@@ -697,6 +707,9 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
         unsure = (~reach & (rated[i] / pcp[i] < 10.5)) | edge | (reach & ~conv)
         unsure |= reach & ~has & conv & (root > t_lo[i]) & (b / tcp[i] > _LK_TR_EDGE)
         t_lk[i[has & ~unsure]] = root[has & ~unsure]
+        # the rating above the highest pressure of the Lee–Kesler range: no state the model gives reaches it, so
+        # the scan finds no root (NaN stays)
+        unsure &= ~_above_lk_pressures(rated[i], pcp[i])
         u = i[unsure]
         if u.size:     # the scan interval that holds the secant's root decides where it can; else the scan
             got, settled = _root_in_interval(isochore_over_rating(u), t_lo[u], t_hi[u],
@@ -720,6 +733,7 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
         unsure = edgep | (~np.isfinite(pstar) & (target[i] / pcp[i] < 10.5))
         ok = hasp & ~unsure
         max_p_lk[i[ok]] = pstar[ok]
+        unsure &= ~_above_lk_pressures(target[i], pcp[i])   # a target no peak of the model reaches: none
         u = i[unsure]
         if u.size:
             def fill_over_target(rows_: np.ndarray):
