@@ -1089,27 +1089,31 @@ def _corner_peaks(gas: Mixture, states: list[tuple[float, float, float]]) -> dic
     if not states:
         return {}
     cols = _columns(_state_rows(gas, states), limits=False)
-    fallback, lk_ok = cols["fallback"].tolist(), cols["lk_ok"].tolist()
-    ideal, gen, ref = (cols[k].tolist() for k in ("peak_ideal", "lk_peak", "peak_ref"))
-    out: dict = {}
-    for k, s in enumerate(states):
-        if fallback[k]:
-            out[s] = None
-            continue
-        peaks = {"ideal": ideal[k], "generalized": gen[k] if lk_ok[k] else None, "reference": ref[k]}
-        peaks["governing"] = _screen.governing_peak(peaks)
-        peaks["_out_of_scope"] = peaks["_liquid_full"] = None
-        out[s] = peaks
-    return out
+    fallback = cols["fallback"].tolist()
+    return {s: None if fallback[k] else _state_peaks(cols, k) for k, s in enumerate(states)}
 
 
-def _drive(gas: Mixture, steps: dict) -> dict:
+def _state_peaks(cols: dict, k: int) -> dict:
+    """Row k's peaks as screen._corner_peak gives them (the row did not fall back)."""
+    peaks = {"ideal": float(cols["peak_ideal"][k]),
+             "generalized": float(cols["lk_peak"][k]) if cols["lk_ok"][k] else None,
+             "reference": float(cols["peak_ref"][k])}
+    peaks["governing"] = _screen.governing_peak(peaks)
+    peaks["_out_of_scope"] = peaks["_liquid_full"] = None
+    return peaks
+
+
+def _drive(gas: Mixture, steps: dict, known: dict | None = None) -> dict:
     """Run the tolerance generators (screen.tolerance_steps) of many vessels in lockstep: each round's states
-    of every vessel are rows of one table. Returns {key: tolerance block or None (per row)}."""
+    of every vessel are rows of one table; `known` gives the peaks of states already evaluated (each vessel's
+    nominal state: a row of its nominal table, the same numbers). Returns {key: tolerance block or None (per
+    row)}."""
     done: dict = {}
+    known = known or {}
     asked = {key: next(gen) for key, gen in steps.items()}
     while asked:
-        peaks = _corner_peaks(gas, list(dict.fromkeys(s for states in asked.values() for s in states)))
+        todo = [s for s in dict.fromkeys(s for states in asked.values() for s in states) if s not in known]
+        peaks = {**known, **_corner_peaks(gas, todo)}
         nxt = {}
         for key, states in asked.items():
             got = [peaks[s] for s in states]
@@ -1149,14 +1153,16 @@ def _screen_expanded(cases: list[Case]) -> list[Result | None]:
     fallback = cols["fallback"].tolist()
     bad = {i for (i, _j), f in zip(keys, fallback) if f}
     row_of = {key: k for k, key in enumerate(keys)}
-    steps = {}
+    steps, known = {}, {}
     for k, (i, j) in enumerate(keys):
         c = cases[i]
         if i in bad or c.tolerance is None:
             continue
         names = ["ideal"] + (["generalized"] if cols["lk_ok"][k] else []) + ["reference"]
         steps[(i, j)] = _screen.tolerance_steps(c, float(c.fill_temperature_k), float(cols["t_peak"][k]), names)
-    tolerances = _drive(gas, steps)
+        # the nominal state (the steps' first): the peaks of this row of the nominal table
+        known[(c.fill_pressure_pa, float(c.fill_temperature_k), float(cols["t_peak"][k]))] = _state_peaks(cols, k)
+    tolerances = _drive(gas, steps, known)
     bad |= {i for (i, _j), t in tolerances.items() if t is None}
     for i, rows in exposures.items():
         if i in bad:
