@@ -586,8 +586,14 @@ def _generalized_columns(gas: Mixture, p_fill: np.ndarray, t_fill: np.ndarray, t
                               np.array([c.classical_critical_pressure or c.critical_pressure for c in comps]),
                               np.asarray(t, dtype=float))
 
-    tcf, pcf, omf = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_fill))
-    tcp, pcp, omp = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_peak))
+    if n and gas.is_pure and not comps[0].quantum:
+        # the component's own constants at every temperature (Kay's rule of one component, no quantum correction):
+        # worked out once
+        tcf, pcf, omf = (np.full(n, float(np.asarray(a, dtype=float).ravel()[0])) for a in consts(t_fill[:1]))
+        tcp, pcp, omp = tcf.copy(), pcf.copy(), omf.copy()
+    else:
+        tcf, pcf, omf = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_fill))
+        tcp, pcp, omp = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_peak))
     gf = lee_kesler_density(np.where(by_density, 1e5, p_fill), t_fill, tcf, pcf, omf)
     if by_density.any():
         gd = lee_kesler_pressure(np.where(by_density, rho_given, 1.0), t_fill, tcf, pcf, omf)
