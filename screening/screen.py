@@ -139,10 +139,15 @@ def _gas_arrays(gas: Mixture) -> dict:
         molar_mass=np.array([g.molar_mass for g in c]), quantum=np.array([g.quantum for g in c]),
         tc_classical=np.array([g.classical_critical_temperature or g.critical_temperature for g in c]),
         pc_classical=np.array([g.classical_critical_pressure or g.critical_pressure for g in c]),
+        # a pure gas without quantum correction: its own constants at every temperature
+        fixed=((float(c[0].critical_temperature), float(c[0].critical_pressure), float(c[0].acentric_factor))
+               if gas.is_pure and not c[0].quantum else None),
     )
 
 
 def _lk_constants(arrays: dict, t: float) -> tuple[float, float, float]:
+    if arrays["fixed"] is not None:
+        return arrays["fixed"]
     tc, pc, om = pseudocritical(arrays["fractions"], arrays["tc"], arrays["pc"], arrays["omega"],
                                 arrays["molar_mass"], arrays["quantum"], arrays["tc_classical"],
                                 arrays["pc_classical"], np.asarray(t, dtype=float))
@@ -197,6 +202,8 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
         return float(_lk_pressure(arrays, r, t_peak)[0].pressure[0])
 
     def constants_at(ts: np.ndarray):
+        if arrays["fixed"] is not None:
+            return tuple(np.full(np.shape(ts), c) for c in arrays["fixed"])
         return pseudocritical(arrays["fractions"], arrays["tc"], arrays["pc"], arrays["omega"],
                               arrays["molar_mass"], arrays["quantum"], arrays["tc_classical"],
                               arrays["pc_classical"], ts)
