@@ -216,10 +216,9 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
     def fill_to_peak_array(ps: np.ndarray) -> np.ndarray:
         ps = np.asarray(ps, dtype=float)
         t1, t2 = np.full_like(ps, t_fill), np.full_like(ps, t_peak)
-        fill_state = lee_kesler_density(ps, t1, *constants_at(t1))
-        rho_fill = np.where(fill_state.valid, fill_state.molar_density, 1.0)
-        peak_state = lee_kesler_pressure(rho_fill, t2, *constants_at(t2))
-        return np.where(fill_state.valid & peak_state.valid, peak_state.pressure, np.nan)
+        rho_fill, fill_ok = lee_kesler_density_valid(ps, t1, *constants_at(t1))
+        peak_state = lee_kesler_pressure(np.where(fill_ok, rho_fill, 1.0), t2, *constants_at(t2))
+        return np.where(fill_ok & peak_state.valid, peak_state.pressure, np.nan)
 
     def fill_for_peak(p_peak: float) -> float | None:
         # the density at the peak pressure and temperature, then the pressure of that density at the fill;
