@@ -63,6 +63,7 @@ from screening.physics.eos.generalized import (
     GENERALIZED_FIELDS,
     LK_REDUCED_PRESSURE_RANGE,
     LK_REDUCED_TEMPERATURE_RANGE,
+    SRK_QUANTUM_TEMPERATURE_RANGE,
     GeneralizedState,
     lee_kesler_density,
     lee_kesler_density_valid,
@@ -86,6 +87,8 @@ _LK_PR_EDGE = 9.5
 _LK_TR_EDGE = 3.95
 #: Highest reduced temperature of the Lee–Kesler range.
 _LK_TR_HI = LK_REDUCED_TEMPERATURE_RANGE[1]
+#: Highest temperature [K] of the quantum-gas SRK model's range.
+_SRK_T_HI = SRK_QUANTUM_TEMPERATURE_RANGE[1]
 #: Highest reduced pressure of the Lee–Kesler range.
 _LK_PR_HI = LK_REDUCED_PRESSURE_RANGE[1]
 
@@ -363,17 +366,16 @@ def _above_lk_pressures(p: np.ndarray, pc: np.ndarray) -> np.ndarray:
 
 
 def _below_at_range_top(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray, hi: np.ndarray,
-                        tc: np.ndarray) -> np.ndarray:
-    """Rows where screen._root's scan of the Lee–Kesler isochore f(T, rows) = P(T) - P_rated on
-    np.linspace(lo, hi, _SCAN_N) certainly finds no root, known from one evaluation instead of the scan: f is
-    below zero at the highest scan point whose reduced temperature T/tc is inside the Lee–Kesler range (or no
-    scan point is). The isochore's pressure rises with the temperature, so f is below zero at every scan point
-    under it that can be evaluated, and the points above it cannot be (the model refuses them): no scan interval
-    brackets a sign change. Elsewhere (f zero or above there, or not evaluable) False: the caller scans."""
-    m = lo.size
+                        inside: Callable[[np.ndarray], np.ndarray]) -> np.ndarray:
+    """Rows where screen._root's scan of an increasing f(x, rows) on np.linspace(lo, hi, _SCAN_N) certainly finds
+    no root, known from one evaluation instead of the scan. `inside(grid)` says which scan points (rows x points)
+    lie inside the model's range in x, a prefix of each row (the model refuses the points above, as its range test
+    does). Where f is below zero at the highest point inside (or no point is inside), f is below zero at every
+    point under it that can be evaluated and the points above cannot be: no scan interval brackets a sign change.
+    Elsewhere (f zero or above there, or not evaluable) False: the caller scans. Used for isochores, whose
+    pressure rises with the temperature."""
     grid = np.linspace(lo, hi, _SCAN_N, axis=1)                        # the scan's points, as _scan_root has them
-    inside = grid / tc[:, None] <= _LK_TR_HI                           # as the model tests T_r (a prefix: T rises)
-    k = inside.sum(axis=1) - 1
+    k = inside(grid).sum(axis=1) - 1
     out = k < 0                                                        # no point inside: nothing to evaluate
     rows = np.flatnonzero(~out)
     if rows.size:
@@ -682,8 +684,14 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
             s2 = srk_quantum_pressure(np.where(s1.valid, s1.molar_density, 1.0), t_peak[r], *kq)
             return np.where(s1.valid & s2.valid, s2.pressure - target[r], np.nan)
 
-        t_lk[rows_q] = _scan_root(iso_q, t_lo[rows_q], t_hi[rows_q])
-        max_p_lk[rows_q] = _scan_root(fill_q, p_lo[rows_q], p_hi[rows_q])
+        # above the model's temperature range the isochore cannot be evaluated: where it is below the rating at the
+        # last scan point inside, no root; elsewhere the whole bracket first, then the scan (screen._root's order)
+        none = _below_at_range_top(iso_q, t_lo[rows_q], t_hi[rows_q], lambda grid: grid <= _SRK_T_HI)
+        rest = np.flatnonzero(~none)
+        if rest.size:
+            t_lk[rows_q[rest]] = _monotone_root(lambda t, ix: iso_q(t, rest[ix]), t_lo[rows_q[rest]],
+                                                t_hi[rows_q[rest]])
+        max_p_lk[rows_q] = _monotone_root(fill_q, p_lo[rows_q], p_hi[rows_q])
     if rows_lk.size:
         i = rows_lk
 
@@ -722,7 +730,8 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
                                              np.where(conv[unsure], root[unsure], np.nan))
             t_lk[u[settled]] = got[settled]
             u = u[~settled]
-            none = _below_at_range_top(isochore_over_rating(u), t_lo[u], t_hi[u], tcp[u])
+            none = _below_at_range_top(isochore_over_rating(u), t_lo[u], t_hi[u],
+                                       lambda grid, tc=tcp[u]: grid / tc[:, None] <= _LK_TR_HI)
             scan = u[~none]
             if scan.size:
                 t_lk[scan] = _scan_root(isochore_over_rating(scan), t_lo[scan], t_hi[scan])
