@@ -1062,6 +1062,9 @@ def _density_once(fluid: ReferenceFluid, p: np.ndarray, t: np.ndarray) -> tuple[
     states of tolerance corners repeat across scenarios, and an inventory repeats its fills)."""
     if p.size == 0:
         return np.empty(0), np.zeros(0, dtype=bool)
+    if p.size == 1:             # nothing to share (np.unique's cost is then most of the row's)
+        values, valid, _ = _loop(fluid.density, p, t)
+        return values, valid
     uniq, back = np.unique(np.stack([p, t], axis=1), axis=0, return_inverse=True)
     values, valid, _ = _loop(fluid.density, uniq[:, 0], uniq[:, 1])
     back = back.ravel()
