@@ -61,8 +61,12 @@ from screening.inputs.case import Case, load_case, parse_case_text
 from screening.inputs.columns import PlainRows
 from screening.physics.eos.generalized import (
     GENERALIZED_FIELDS,
+    LK_REDUCED_PRESSURE_RANGE,
+    LK_REDUCED_TEMPERATURE_RANGE,
+    SRK_QUANTUM_TEMPERATURE_RANGE,
     GeneralizedState,
     lee_kesler_density,
+    lee_kesler_density_valid,
     lee_kesler_pressure,
     pseudocritical,
     srk_quantum_density,
@@ -81,6 +85,12 @@ _SECANT_MAX = 30
 #: Rows closer than this to the edge of the Lee–Kesler range at a limit go the per-row way.
 _LK_PR_EDGE = 9.5
 _LK_TR_EDGE = 3.95
+#: Highest reduced temperature of the Lee–Kesler range.
+_LK_TR_HI = LK_REDUCED_TEMPERATURE_RANGE[1]
+#: Highest temperature [K] of the quantum-gas SRK model's range.
+_SRK_T_HI = SRK_QUANTUM_TEMPERATURE_RANGE[1]
+#: Highest reduced pressure of the Lee–Kesler range.
+_LK_PR_HI = LK_REDUCED_PRESSURE_RANGE[1]
 
 
 # ----------------------------------------------------------------------------- eligibility
@@ -348,6 +358,62 @@ def _scan_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray
     return out
 
 
+def _above_lk_pressures(p: np.ndarray, pc: np.ndarray) -> np.ndarray:
+    """Where the pressure p [Pa] is above every pressure the Lee–Kesler model gives (reduced pressure above the
+    top of its range, with a margin for the rounding of P_r pc): a function "model pressure minus p" is below zero
+    wherever it can be evaluated, and a scan of it finds no root."""
+    return p / pc > _LK_PR_HI * (1.0 + 1e-9)
+
+
+def _below_at_range_top(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray, hi: np.ndarray,
+                        inside: Callable[[np.ndarray], np.ndarray]) -> np.ndarray:
+    """Rows where screen._root's scan of an increasing f(x, rows) on np.linspace(lo, hi, _SCAN_N) certainly finds
+    no root, known from one evaluation instead of the scan. `inside(grid)` says which scan points (rows x points)
+    lie inside the model's range in x, a prefix of each row (the model refuses the points above, as its range test
+    does). Where f is below zero at the highest point inside (or no point is inside), f is below zero at every
+    point under it that can be evaluated and the points above cannot be: no scan interval brackets a sign change.
+    Elsewhere (f zero or above there, or not evaluable) False: the caller scans. Used for isochores, whose
+    pressure rises with the temperature."""
+    grid = np.linspace(lo, hi, _SCAN_N, axis=1)                        # the scan's points, as _scan_root has them
+    k = inside(grid).sum(axis=1) - 1
+    out = k < 0                                                        # no point inside: nothing to evaluate
+    rows = np.flatnonzero(~out)
+    if rows.size:
+        fx = f(grid[rows, k[rows]], rows)
+        out[rows] = np.isfinite(fx) & (fx < 0.0)
+    return out
+
+
+def _root_in_interval(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray, hi: np.ndarray,
+                      x: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Per row, the root :func:`_scan_root` finds for an increasing f(x, rows) on [lo, hi], settled from the scan
+    interval [a, b] of np.linspace(lo, hi, _SCAN_N) that holds x (the root found another way) instead of the whole
+    scan, where that interval decides: f(a) < 0 and f(b) > 0, the scan's root (Illinois on [a, b], as there); f(a)
+    < 0 and f(b) not evaluable (the model's range ends inside the interval), none. f increasing, every scan point
+    below a has f < 0 where it can be evaluated and every point above b has f > 0: no other interval brackets a
+    sign change. Returns (root, settled); settled False (x not finite, f(a) not below zero, f(b) zero): the
+    caller scans."""
+    m = lo.size
+    root = np.full(m, np.nan)
+    settled = np.zeros(m, dtype=bool)
+    live = np.flatnonzero(np.isfinite(x))
+    if live.size == 0:
+        return root, settled
+    grid = np.linspace(lo[live], hi[live], _SCAN_N, axis=1)           # the scan's points, as _scan_root has them
+    k = np.clip((grid <= x[live, None]).sum(axis=1) - 1, 0, _SCAN_N - 2)
+    rows = np.arange(live.size)
+    a, b = grid[rows, k], grid[rows, k + 1]
+    fa, fb = f(np.concatenate([a, b]), np.concatenate([live, live])).reshape(2, -1)
+    below = np.isfinite(fa) & (fa < 0.0)
+    none = below & ~np.isfinite(fb)
+    settled[live[none]] = True
+    solve = np.flatnonzero(below & np.isfinite(fb) & (fb > 0.0))
+    if solve.size:
+        root[live[solve]] = _illinois(f, a[solve], b[solve], fa[solve], fb[solve], live[solve])
+        settled[live[solve]] = True
+    return root, settled
+
+
 def _monotone_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray, hi: np.ndarray,
                    n: int = _SCAN_N) -> np.ndarray:
     """Per row, the root screen._root finds for a monotonic f(x, rows) on [lo, hi] (NaN: none), looking first
@@ -522,8 +588,14 @@ def _generalized_columns(gas: Mixture, p_fill: np.ndarray, t_fill: np.ndarray, t
                               np.array([c.classical_critical_pressure or c.critical_pressure for c in comps]),
                               np.asarray(t, dtype=float))
 
-    tcf, pcf, omf = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_fill))
-    tcp, pcp, omp = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_peak))
+    if n and gas.is_pure and not comps[0].quantum:
+        # the component's own constants at every temperature (Kay's rule of one component, no quantum correction):
+        # worked out once
+        tcf, pcf, omf = (np.full(n, float(np.asarray(a, dtype=float).ravel()[0])) for a in consts(t_fill[:1]))
+        tcp, pcp, omp = tcf.copy(), pcf.copy(), omf.copy()
+    else:
+        tcf, pcf, omf = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_fill))
+        tcp, pcp, omp = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_peak))
     gf = lee_kesler_density(np.where(by_density, 1e5, p_fill), t_fill, tcf, pcf, omf)
     if by_density.any():
         gd = lee_kesler_pressure(np.where(by_density, rho_given, 1.0), t_fill, tcf, pcf, omf)
@@ -612,14 +684,20 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
             s2 = srk_quantum_pressure(np.where(s1.valid, s1.molar_density, 1.0), t_peak[r], *kq)
             return np.where(s1.valid & s2.valid, s2.pressure - target[r], np.nan)
 
-        t_lk[rows_q] = _scan_root(iso_q, t_lo[rows_q], t_hi[rows_q])
-        max_p_lk[rows_q] = _scan_root(fill_q, p_lo[rows_q], p_hi[rows_q])
+        # above the model's temperature range the isochore cannot be evaluated: where it is below the rating at the
+        # last scan point inside, no root; elsewhere the whole bracket first, then the scan (screen._root's order)
+        none = _below_at_range_top(iso_q, t_lo[rows_q], t_hi[rows_q], lambda grid: grid <= _SRK_T_HI)
+        rest = np.flatnonzero(~none)
+        if rest.size:
+            t_lk[rows_q[rest]] = _monotone_root(lambda t, ix: iso_q(t, rest[ix]), t_lo[rows_q[rest]],
+                                                t_hi[rows_q[rest]])
+        max_p_lk[rows_q] = _monotone_root(fill_q, p_lo[rows_q], p_hi[rows_q])
     if rows_lk.size:
         i = rows_lk
 
         def f_t(t, ix):
-            s = lee_kesler_density(rated[ix], t, tcp[ix], pcp[ix], omp[ix])
-            return np.where(s.valid, s.molar_density / rho_lk[ix] - 1.0, np.nan)
+            rho, valid = lee_kesler_density_valid(rated[ix], t, tcp[ix], pcp[ix], omp[ix])
+            return np.where(valid, rho / rho_lk[ix] - 1.0, np.nan)
 
         # generalized: T on the isochore at the rated pressure (density at the rated pressure = fill density)
         reach = rated[i] / pcp[i] <= 10.0
@@ -643,9 +721,20 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
         unsure = (~reach & (rated[i] / pcp[i] < 10.5)) | edge | (reach & ~conv)
         unsure |= reach & ~has & conv & (root > t_lo[i]) & (b / tcp[i] > _LK_TR_EDGE)
         t_lk[i[has & ~unsure]] = root[has & ~unsure]
+        # the rating above the highest pressure of the Lee–Kesler range: no state the model gives reaches it, so
+        # the scan finds no root (NaN stays)
+        unsure &= ~_above_lk_pressures(rated[i], pcp[i])
         u = i[unsure]
-        if u.size:
-            t_lk[u] = _scan_root(isochore_over_rating(u), t_lo[u], t_hi[u])
+        if u.size:     # the scan interval that holds the secant's root decides where it can; else the scan
+            got, settled = _root_in_interval(isochore_over_rating(u), t_lo[u], t_hi[u],
+                                             np.where(conv[unsure], root[unsure], np.nan))
+            t_lk[u[settled]] = got[settled]
+            u = u[~settled]
+            none = _below_at_range_top(isochore_over_rating(u), t_lo[u], t_hi[u],
+                                       lambda grid, tc=tcp[u]: grid / tc[:, None] <= _LK_TR_HI)
+            scan = u[~none]
+            if scan.size:
+                t_lk[scan] = _scan_root(isochore_over_rating(scan), t_lo[scan], t_hi[scan])
 
         # generalized: the fill pressure whose peak is the target: density at the target and the peak
         # temperature, then the pressure of that density at the fill temperature
@@ -659,14 +748,24 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
         unsure = edgep | (~np.isfinite(pstar) & (target[i] / pcp[i] < 10.5))
         ok = hasp & ~unsure
         max_p_lk[i[ok]] = pstar[ok]
+        unsure &= ~_above_lk_pressures(target[i], pcp[i])   # a target no peak of the model reaches: none
         u = i[unsure]
         if u.size:
-            def f_fill(p, ix):
-                r = u[ix]
-                s1 = lee_kesler_density(p, t_fill[r], tcf[r], pcf[r], omf[r])
-                s2 = lee_kesler_pressure(np.where(s1.valid, s1.molar_density, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
-                return np.where(s1.valid & s2.valid, s2.pressure - target[r], np.nan)
-            max_p_lk[u] = _scan_root(f_fill, p_lo[u], p_hi[u])
+            def fill_over_target(rows_: np.ndarray):
+                """p -> generalized peak of the fill pressure p minus the target, for the rows rows_ (NaN where
+                the model does not apply)."""
+                def f(p, ix):
+                    r = rows_[ix]
+                    rho1, ok1 = lee_kesler_density_valid(p, t_fill[r], tcf[r], pcf[r], omf[r])
+                    s2 = lee_kesler_pressure(np.where(ok1, rho1, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
+                    return np.where(ok1 & s2.valid, s2.pressure - target[r], np.nan)
+                return f
+
+            root, settled = _root_in_interval(fill_over_target(u), p_lo[u], p_hi[u], pstar[unsure])
+            max_p_lk[u[settled]] = root[settled]
+            scan = u[~settled]
+            if scan.size:
+                max_p_lk[scan] = _scan_root(fill_over_target(scan), p_lo[scan], p_hi[scan])
     return t_lk, max_p_lk
 
 
@@ -963,6 +1062,9 @@ def _density_once(fluid: ReferenceFluid, p: np.ndarray, t: np.ndarray) -> tuple[
     states of tolerance corners repeat across scenarios, and an inventory repeats its fills)."""
     if p.size == 0:
         return np.empty(0), np.zeros(0, dtype=bool)
+    if p.size == 1:             # nothing to share (np.unique's cost is then most of the row's)
+        values, valid, _ = _loop(fluid.density, p, t)
+        return values, valid
     uniq, back = np.unique(np.stack([p, t], axis=1), axis=0, return_inverse=True)
     values, valid, _ = _loop(fluid.density, uniq[:, 0], uniq[:, 1])
     back = back.ravel()
@@ -1005,27 +1107,31 @@ def _corner_peaks(gas: Mixture, states: list[tuple[float, float, float]]) -> dic
     if not states:
         return {}
     cols = _columns(_state_rows(gas, states), limits=False)
-    fallback, lk_ok = cols["fallback"].tolist(), cols["lk_ok"].tolist()
-    ideal, gen, ref = (cols[k].tolist() for k in ("peak_ideal", "lk_peak", "peak_ref"))
-    out: dict = {}
-    for k, s in enumerate(states):
-        if fallback[k]:
-            out[s] = None
-            continue
-        peaks = {"ideal": ideal[k], "generalized": gen[k] if lk_ok[k] else None, "reference": ref[k]}
-        peaks["governing"] = _screen.governing_peak(peaks)
-        peaks["_out_of_scope"] = peaks["_liquid_full"] = None
-        out[s] = peaks
-    return out
+    fallback = cols["fallback"].tolist()
+    return {s: None if fallback[k] else _state_peaks(cols, k) for k, s in enumerate(states)}
 
 
-def _drive(gas: Mixture, steps: dict) -> dict:
+def _state_peaks(cols: dict, k: int) -> dict:
+    """Row k's peaks as screen._corner_peak gives them (the row did not fall back)."""
+    peaks = {"ideal": float(cols["peak_ideal"][k]),
+             "generalized": float(cols["lk_peak"][k]) if cols["lk_ok"][k] else None,
+             "reference": float(cols["peak_ref"][k])}
+    peaks["governing"] = _screen.governing_peak(peaks)
+    peaks["_out_of_scope"] = peaks["_liquid_full"] = None
+    return peaks
+
+
+def _drive(gas: Mixture, steps: dict, known: dict | None = None) -> dict:
     """Run the tolerance generators (screen.tolerance_steps) of many vessels in lockstep: each round's states
-    of every vessel are rows of one table. Returns {key: tolerance block or None (per row)}."""
+    of every vessel are rows of one table; `known` gives the peaks of states already evaluated (each vessel's
+    nominal state: a row of its nominal table, the same numbers). Returns {key: tolerance block or None (per
+    row)}."""
     done: dict = {}
+    known = known or {}
     asked = {key: next(gen) for key, gen in steps.items()}
     while asked:
-        peaks = _corner_peaks(gas, list(dict.fromkeys(s for states in asked.values() for s in states)))
+        todo = [s for s in dict.fromkeys(s for states in asked.values() for s in states) if s not in known]
+        peaks = {**known, **_corner_peaks(gas, todo)}
         nxt = {}
         for key, states in asked.items():
             got = [peaks[s] for s in states]
@@ -1065,14 +1171,16 @@ def _screen_expanded(cases: list[Case]) -> list[Result | None]:
     fallback = cols["fallback"].tolist()
     bad = {i for (i, _j), f in zip(keys, fallback) if f}
     row_of = {key: k for k, key in enumerate(keys)}
-    steps = {}
+    steps, known = {}, {}
     for k, (i, j) in enumerate(keys):
         c = cases[i]
         if i in bad or c.tolerance is None:
             continue
         names = ["ideal"] + (["generalized"] if cols["lk_ok"][k] else []) + ["reference"]
         steps[(i, j)] = _screen.tolerance_steps(c, float(c.fill_temperature_k), float(cols["t_peak"][k]), names)
-    tolerances = _drive(gas, steps)
+        # the nominal state (the steps' first): the peaks of this row of the nominal table
+        known[(c.fill_pressure_pa, float(c.fill_temperature_k), float(cols["t_peak"][k]))] = _state_peaks(cols, k)
+    tolerances = _drive(gas, steps, known)
     bad |= {i for (i, _j), t in tolerances.items() if t is None}
     for i, rows in exposures.items():
         if i in bad:

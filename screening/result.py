@@ -21,6 +21,7 @@ True
 from __future__ import annotations
 
 import dataclasses
+import functools
 from dataclasses import dataclass
 from typing import Any, ClassVar
 
@@ -59,36 +60,49 @@ class _Part:
     _READ: ClassVar[dict] = {}
 
     def to_json(self) -> dict:
-        return {f.name: _dump(getattr(self, f.name)) for f in dataclasses.fields(self)}  # type: ignore[arg-type]
-
-    @classmethod
-    def _read(cls, name: str, value: Any) -> Any:
-        how = cls._READ.get(name)
-        if value is None or how is None:
-            return value
-        if how is tuple:
-            return _tuple(value)
-        if isinstance(how, tuple):
-            return tuple(how[0].from_json(v) for v in value)
-        if isinstance(how, set):
-            (part,) = how
-            return {k: part.from_json(v) for k, v in value.items()}
-        if how is Verdict:
-            return Verdict(value)
-        return how.from_json(value)
+        return {n: _dump(getattr(self, n)) for n in _layout(type(self))[0]}
 
     @classmethod
     def from_json(cls, data: dict):
         """The part from its JSON object (a key it does not know is an error: the layout is fixed)."""
-        fields = dataclasses.fields(cls)  # type: ignore[arg-type]
-        names = [f.name for f in fields]
-        unknown = set(data) - set(names)
-        if unknown:
-            raise KeyError(f"{cls.__name__}: unknown keys {sorted(unknown)}")
-        missing = [f.name for f in fields if f.name not in data and f.default is dataclasses.MISSING]
-        if missing:
-            raise KeyError(f"{cls.__name__}: missing keys {missing}")
-        return cls(**{n: cls._read(n, data[n]) for n in names if n in data})
+        names, known, required, readers = _layout(cls)
+        if not known.issuperset(data):
+            raise KeyError(f"{cls.__name__}: unknown keys {sorted(set(data) - known)}")
+        if not required.issubset(data):
+            raise KeyError(f"{cls.__name__}: missing keys {[n for n in names if n in required and n not in data]}")
+        values = {}
+        for n, read in readers:
+            if n in data:
+                v = data[n]
+                values[n] = v if read is None or v is None else read(v)
+        return cls(**values)
+
+
+def _reader(how: Any):
+    """How one field's JSON value is read (see _Part): a function of the value, or None (taken as it is)."""
+    if how is None:
+        return None
+    if how is tuple:
+        return _tuple
+    if isinstance(how, tuple):
+        part = how[0]
+        return lambda value: tuple(part.from_json(v) for v in value)
+    if isinstance(how, set):
+        (part,) = how
+        return lambda value: {k: part.from_json(v) for k, v in value.items()}
+    if how is Verdict:
+        return Verdict
+    return how.from_json
+
+
+@functools.cache
+def _layout(cls: type) -> tuple[tuple[str, ...], frozenset, frozenset, tuple]:
+    """A part's field names in order, as a set, those without a default (the keys its JSON must hold), and
+    (name, reader) per field in order (:func:`_reader` of its `_READ` entry), worked out once per class."""
+    fields = dataclasses.fields(cls)
+    names = tuple(f.name for f in fields)
+    readers = tuple((n, _reader(cls._READ.get(n))) for n in names)
+    return names, frozenset(names), frozenset(f.name for f in fields if f.default is dataclasses.MISSING), readers
 
 
 @_frozen

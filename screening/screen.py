@@ -19,6 +19,7 @@ from screening.errors import InputError, NotApplicable
 from screening.inputs.case import Case, Exposure
 from screening.physics.eos.generalized import (
     lee_kesler_density,
+    lee_kesler_density_valid,
     lee_kesler_pressure,
     pseudocritical,
     quantum_effective_critical,
@@ -138,10 +139,15 @@ def _gas_arrays(gas: Mixture) -> dict:
         molar_mass=np.array([g.molar_mass for g in c]), quantum=np.array([g.quantum for g in c]),
         tc_classical=np.array([g.classical_critical_temperature or g.critical_temperature for g in c]),
         pc_classical=np.array([g.classical_critical_pressure or g.critical_pressure for g in c]),
+        # a pure gas without quantum correction: its own constants at every temperature
+        fixed=((float(c[0].critical_temperature), float(c[0].critical_pressure), float(c[0].acentric_factor))
+               if gas.is_pure and not c[0].quantum else None),
     )
 
 
 def _lk_constants(arrays: dict, t: float) -> tuple[float, float, float]:
+    if arrays["fixed"] is not None:
+        return arrays["fixed"]
     tc, pc, om = pseudocritical(arrays["fractions"], arrays["tc"], arrays["pc"], arrays["omega"],
                                 arrays["molar_mass"], arrays["quantum"], arrays["tc_classical"],
                                 arrays["pc_classical"], np.asarray(t, dtype=float))
@@ -196,6 +202,8 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
         return float(_lk_pressure(arrays, r, t_peak)[0].pressure[0])
 
     def constants_at(ts: np.ndarray):
+        if arrays["fixed"] is not None:
+            return tuple(np.full(np.shape(ts), c) for c in arrays["fixed"])
         return pseudocritical(arrays["fractions"], arrays["tc"], arrays["pc"], arrays["omega"],
                               arrays["molar_mass"], arrays["quantum"], arrays["tc_classical"],
                               arrays["pc_classical"], ts)
@@ -208,10 +216,9 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
     def fill_to_peak_array(ps: np.ndarray) -> np.ndarray:
         ps = np.asarray(ps, dtype=float)
         t1, t2 = np.full_like(ps, t_fill), np.full_like(ps, t_peak)
-        fill_state = lee_kesler_density(ps, t1, *constants_at(t1))
-        rho_fill = np.where(fill_state.valid, fill_state.molar_density, 1.0)
-        peak_state = lee_kesler_pressure(rho_fill, t2, *constants_at(t2))
-        return np.where(fill_state.valid & peak_state.valid, peak_state.pressure, np.nan)
+        rho_fill, fill_ok = lee_kesler_density_valid(ps, t1, *constants_at(t1))
+        peak_state = lee_kesler_pressure(np.where(fill_ok, rho_fill, 1.0), t2, *constants_at(t2))
+        return np.where(fill_ok & peak_state.valid, peak_state.pressure, np.nan)
 
     def fill_for_peak(p_peak: float) -> float | None:
         # the density at the peak pressure and temperature, then the pressure of that density at the fill;
@@ -231,8 +238,8 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
         # secant on T for the density at (p, T) equal to the fill density, from the ideal-gas estimate
         def g(t: float) -> float:
             ts = np.array([t])
-            s = lee_kesler_density(np.array([p]), ts, *constants_at(ts))
-            return float(s.molar_density[0]) / rho - 1.0 if s.valid[0] else math.nan
+            rho_t, ok = lee_kesler_density_valid(np.array([p]), ts, *constants_at(ts))
+            return float(rho_t[0]) / rho - 1.0 if ok[0] else math.nan
 
         x0 = t_peak * p / float(peak.pressure[0])
         if not (math.isfinite(x0) and x0 > 0.0):

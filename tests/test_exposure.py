@@ -328,3 +328,13 @@ def test_stefan_boltzmann_constant_is_the_codata_2018_value():
 
     from screening.constants import STEFAN_BOLTZMANN
     assert STEFAN_BOLTZMANN == scipy.constants.sigma
+
+
+@pytest.mark.parametrize("t", [233.15, 288.15, 301.7, 350.0, 405.25])
+def test_air_properties_are_coolprops_propssi_values(t):
+    # CoolProp "Air" (Lemmon et al. 2000; Lemmon & Jacobsen 2004 transport) through PropsSI, evaluated here
+    a = air_properties(t)
+    p = 101325.0
+    assert a.conductivity_w_mk == CP.PropsSI("L", "T", t, "P", p, "Air")
+    assert a.kinematic_viscosity_m2_s == CP.PropsSI("V", "T", t, "P", p, "Air") / CP.PropsSI("D", "T", t, "P", p, "Air")
+    assert a.prandtl == CP.PropsSI("Prandtl", "T", t, "P", p, "Air")

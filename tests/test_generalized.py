@@ -381,3 +381,41 @@ def test_quantum_gas_cylinder_has_two_real_gas_models(gas, fluid, fill):
     diff = abs(gen["peak_pressure_pa"] - ref["peak_pressure_pa"]) / ref["peak_pressure_pa"]
     warned = any(w["code"] == "models-disagree" for w in r["warnings"])
     assert warned == (diff > MODEL_DISAGREEMENT_WARNING)
+
+
+def test_results_do_not_depend_on_how_many_states_share_a_call():
+    # A state's Lee–Kesler numbers are the same, bit for bit, whether it is solved alone (small arrays run
+    # element by element) or among 500 others (the array loop): a batch's output cannot depend on its chunks.
+    import screening.physics.eos.generalized as gen
+
+    rng = np.random.default_rng(20261203)
+    t = rng.uniform(100.0, 650.0, 500)
+    p = rng.uniform(1e4, 4.5e7, 500)
+    # nitrogen's critical constants and acentric factor as CoolProp gives them
+    tc, pc, om = CP.PropsSI("Tcrit", "Nitrogen"), CP.PropsSI("pcrit", "Nitrogen"), CP.PropsSI("acentric", "Nitrogen")
+    together = lee_kesler_density(p, t, tc, pc, om)
+    rho = np.where(together.valid, together.molar_density, 2000.0)
+    peak_together = lee_kesler_pressure(rho, 1.2 * t, tc, pc, om)
+    assert gen._SCALAR_MAX < 500
+    for i in range(0, 500, 7):
+        alone = lee_kesler_density(p[i:i + 3], t[i:i + 3], tc, pc, om)
+        peak_alone = lee_kesler_pressure(rho[i:i + 3], 1.2 * t[i:i + 3], tc, pc, om)
+        for a, b in ((alone, together), (peak_alone, peak_together)):
+            for f in ("pressure", "molar_density", "z", "valid"):
+                np.testing.assert_array_equal(getattr(a, f), getattr(b, f)[i:i + 3])
+            assert list(a.reason) == list(b.reason[i:i + 3])
+
+
+def test_density_without_reasons_is_the_density_with_them():
+    from screening.physics.eos.generalized import lee_kesler_density_valid
+
+    rng = np.random.default_rng(7)
+    t = rng.uniform(60.0, 700.0, 400)
+    p = rng.uniform(1e4, 6e7, 400)
+    # methane's critical constants and acentric factor as CoolProp gives them
+    tc, pc, om = CP.PropsSI("Tcrit", "Methane"), CP.PropsSI("pcrit", "Methane"), CP.PropsSI("acentric", "Methane")
+    full = lee_kesler_density(p, t, tc, pc, om)
+    rho, valid = lee_kesler_density_valid(p, t, tc, pc, om)
+    assert 0 < valid.sum() < valid.size            # both valid and refused states are compared
+    np.testing.assert_array_equal(valid, full.valid)
+    np.testing.assert_array_equal(rho, full.molar_density)

@@ -49,11 +49,13 @@ from __future__ import annotations
 
 import difflib
 import math
+import threading
 import tomllib
 from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
 
+import CoolProp
 import CoolProp.CoolProp as CP
 
 from screening.constants import G0, P_STANDARD_ATMOSPHERE, STEFAN_BOLTZMANN
@@ -295,12 +297,25 @@ def air_properties(temperature_k: float, pressure_pa: float = P_STANDARD_ATMOSPH
     0.707
     """
     t, p = float(temperature_k), float(pressure_pa)
-    coolprop_library.use(("Air",))   # whole before its first state (see coolprop_library)
-    k = CP.PropsSI("L", "T", t, "P", p, "Air")
-    mu = CP.PropsSI("V", "T", t, "P", p, "Air")
-    rho = CP.PropsSI("D", "T", t, "P", p, "Air")
-    pr = CP.PropsSI("Prandtl", "T", t, "P", p, "Air")
+    # one state updated once and read four times: the values of PropsSI("L" / "V" / "D" / "Prandtl", "T", t,
+    # "P", p, "Air"), bit for bit, at a fortieth of the cost (a sunlit row's balance needs about ten of them)
+    with _AIR_LOCK:
+        state = _air_state()
+        state.update(CoolProp.PT_INPUTS, p, t)
+        k, mu, rho, pr = state.conductivity(), state.viscosity(), state.rhomass(), state.Prandtl()
     return AirProperties(t, k, mu / rho, pr, 1.0 / t)
+
+
+_AIR_LOCK = threading.Lock()     # held around every use of the one air state
+_AIR: list = []                  # the one CoolProp state of air, made on first use
+
+
+def _air_state():
+    """The one CoolProp state of air of this process (call with _AIR_LOCK held)."""
+    if not _AIR:
+        coolprop_library.use(("Air",))   # whole before its first state (see coolprop_library)
+        _AIR.append(CP.AbstractState("HEOS", "Air"))
+    return _AIR[0]
 
 
 # --------------------------------------------------------------------------- correlations

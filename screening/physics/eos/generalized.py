@@ -55,6 +55,7 @@ Everything works on numpy arrays and broadcasts; a scalar is a length-1 (or 0-d)
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -70,6 +71,7 @@ __all__ = [
     "lee_kesler_z",
     "lee_kesler_pressure",
     "lee_kesler_density",
+    "lee_kesler_density_valid",
     "lee_kesler_vapour_pressure",
     "quantum_effective_critical",
     "kay_pseudocritical",
@@ -106,6 +108,8 @@ _MAX_INNER = 100
 _MAX_OUTER = 200
 _MAX_NEWTON = 30      # steps of the coupled Newton before the bracketed solve takes over
 _PR_SOLVE_MAX = 40.0   # [-] the pressure solve brackets P_r in (0, 40]; above 10 is reported invalid
+_SCALAR_MAX = 40       # gas roots of arrays of at most this many elements are solved element by element on floats
+_SCALAR_MAX_NEWTON = 8  # the same for the coupled pressure Newton (measured: beyond these, the array loop is cheaper)
 
 # Gunn, Chueh & Prausnitz (1966) constants of the quantum correction [g K/mol], as given in Reid,
 # Prausnitz & Poling (not independently checked here; tested through the compressibility they give
@@ -169,13 +173,20 @@ def _coefficients(consts: tuple, tr: np.ndarray):
     return (b1 - itr * (b2 + itr * (b3 + itr * b4)), c1 - c2 * itr + c3 * itr3, d1 + d2 * itr, c4 * itr3)
 
 
-def _bwr(consts: tuple, coef: tuple, rho: np.ndarray):
-    """Z of one LK fluid and dZ/d(rho) at reduced density rho = 1/V_r [-] (LK eq. 2)."""
+def _exp1(x: float) -> float:
+    """exp of one float by numpy's exp (bit for bit what the array functions give; math.exp may differ in the
+    last digit), as a Python float."""
+    return float(np.exp(x))
+
+
+def _bwr(consts: tuple, coef: tuple, rho, exp=np.exp):
+    """Z of one LK fluid and dZ/d(rho) at reduced density rho = 1/V_r [-] (LK eq. 2); rho and coef arrays, or
+    floats with exp=_exp1 (the same arithmetic, bit for bit)."""
     beta, gamma = consts[10], consts[11]
     B, C, D, E = coef
     r2 = rho * rho
     r4 = r2 * r2
-    ex = E * np.exp(-gamma * r2)
+    ex = E * exp(-gamma * r2)
     z = 1.0 + rho * (B + rho * C + D * r4) + ex * r2 * (beta + gamma * r2)
     dz = B + rho * (2.0 * C + 5.0 * D * r2 * rho) + ex * rho * (
         2.0 * beta + r2 * (4.0 * gamma - 2.0 * gamma * beta) - 2.0 * gamma * gamma * r4)
@@ -197,6 +208,8 @@ def _gas_root(consts: tuple, tr: np.ndarray, pr: np.ndarray, active: np.ndarray)
     shape = tr.shape
     trf = tr.reshape(-1)
     prf = pr.reshape(-1)
+    if trf.size <= _SCALAR_MAX:
+        return _gas_root_few(consts, trf, prf, active.reshape(-1), shape)
     rho = np.zeros(trf.shape)
     no_root = np.zeros(trf.shape, dtype=bool)
     converged = np.zeros(trf.shape, dtype=bool)
@@ -226,12 +239,16 @@ def _gas_root(consts: tuple, tr: np.ndarray, pr: np.ndarray, active: np.ndarray)
         conv |= finite_hi & ((hi - lo) <= _RTOL * hi)
         conv &= ~stuck
         finished = conv | stuck
-        rho[idx] = new
+        if not finished.any():          # nothing to record or drop this step
+            r = new
+            continue
+        rho[idx[finished]] = new[finished]
         converged[idx[conv]] = True
         no_root[idx[stuck]] = True
         keep = ~finished
         idx, t, p_t, r, lo, hi = idx[keep], t[keep], p_t[keep], new[keep], lo[keep], hi[keep]
         coef = tuple(c[keep] for c in coef)
+    rho[idx] = r                        # elements still iterating after _MAX_INNER steps: their last step
     coef = _coefficients(consts, trf)
     z, dz = _bwr(consts, coef, rho)
     dp = trf * (z + rho * dz)
@@ -239,6 +256,71 @@ def _gas_root(consts: tuple, tr: np.ndarray, pr: np.ndarray, active: np.ndarray)
     bad_branch = converged & (dp <= 0.0)
     no_root |= bad_branch
     converged &= ~bad_branch
+    return (rho.reshape(shape), z.reshape(shape), dp.reshape(shape), no_root.reshape(shape),
+            converged.reshape(shape))
+
+
+def _div(a: float, b: float) -> float:
+    """a / b of floats as numpy divides (inf or NaN for b = 0, where Python raises)."""
+    if b == 0.0:
+        if a == 0.0 or a != a:
+            return math.nan
+        return math.copysign(math.inf, a) * math.copysign(1.0, b)
+    return a / b
+
+
+def _max(a: float, b: float) -> float:
+    """np.maximum of two floats (NaN propagates)."""
+    return a if a != a else b if (b != b or b > a) else a
+
+
+def _min(a: float, b: float) -> float:
+    """np.minimum of two floats (NaN propagates)."""
+    return a if a != a else b if (b != b or b < a) else a
+
+
+def _gas_root_one(consts: tuple, coef: tuple, t: float, p: float) -> tuple[float, bool, bool]:
+    """One element of :func:`_gas_root`'s Newton, on floats: the same steps and tests, bit for bit.
+    Returns (rho, converged, no_root) before the branch check."""
+    r, lo, hi = 0.0, 0.0, math.inf
+    for _ in range(_MAX_INNER):
+        z, dz = _bwr(consts, coef, r, _exp1)
+        f = t * r * z - p
+        dp = t * (z + r * dz)
+        below = f < 0.0
+        if below:
+            lo = _max(lo, r)
+        else:
+            hi = _min(hi, r)
+        finite_hi = math.isfinite(hi)
+        stuck = below and dp <= 0.0 and not finite_hi
+        newton = r - _div(f, dp)
+        conv = dp > 0.0 and abs(newton - r) <= _RTOL * newton
+        bisect = finite_hi and (not math.isfinite(newton) or newton < lo or newton > hi or dp <= 0.0)
+        new = 0.5 * (lo + hi) if (bisect and not conv) else newton
+        conv = (conv or (finite_hi and (hi - lo) <= _RTOL * hi)) and not stuck
+        if conv or stuck:
+            return new, conv, stuck
+        r = new
+    return r, False, False
+
+
+def _gas_root_few(consts: tuple, trf: np.ndarray, prf: np.ndarray, active: np.ndarray, shape: tuple):
+    """:func:`_gas_root` of a few elements, one by one on floats (numpy's cost per call dominates small arrays);
+    the same arithmetic as the array loop, bit for bit."""
+    n = trf.size
+    rho, z, dp = np.zeros(n), np.empty(n), np.empty(n)
+    no_root = np.zeros(n, dtype=bool)
+    converged = np.zeros(n, dtype=bool)
+    for k, (t, p, on) in enumerate(zip(trf.tolist(), prf.tolist(), active.tolist())):
+        coef = _coefficients(consts, t)
+        r, conv, stuck = _gas_root_one(consts, coef, t, p) if on else (0.0, False, False)
+        zk, dzk = _bwr(consts, coef, r, _exp1)
+        dpk = t * (zk + r * dzk)
+        # a converged point on an unstable (dP/drho <= 0) branch is not a gas root
+        if conv and dpk <= 0.0:
+            conv, stuck = False, True
+        rho[k], z[k], dp[k], no_root[k], converged[k] = r, zk, dpk, stuck, conv
     return (rho.reshape(shape), z.reshape(shape), dp.reshape(shape), no_root.reshape(shape),
             converged.reshape(shape))
 
@@ -281,6 +363,8 @@ def _range_reasons(tr: np.ndarray, pr: np.ndarray | None, temperatures: bool = T
 
 def _set_reasons(reason: np.ndarray, mask: np.ndarray, make) -> None:
     """Write make(idx) into reason where mask holds and no reason is recorded yet."""
+    if not mask.any():
+        return
     mask = mask & (reason == "")
     if mask.ndim == 0:
         if bool(mask):
@@ -400,10 +484,11 @@ def _flag_gas_state(reason, tr, pr, omega, no_root, not_conv) -> None:
         f"no gas root at reduced temperature {_fmt(tr[i])} and reduced pressure {_fmt(pr[i])}: "
         "the state is liquid-like (above the vapour-like branch of the Lee–Kesler equation)"))
     sub = (tr < 1.0) & np.isfinite(pr)
-    psat = np.where(sub, lee_kesler_vapour_pressure(np.where(sub, tr, 0.5), omega), np.inf)
-    _set_reasons(reason, sub & (pr > psat), lambda i: (
-        f"reduced pressure {_fmt(pr[i])} is above the Lee–Kesler vapour pressure {_fmt(psat[i])} "
-        f"at reduced temperature {_fmt(tr[i])}: the stable state is liquid or two-phase, not gas"))
+    if sub.any():
+        psat = np.where(sub, lee_kesler_vapour_pressure(np.where(sub, tr, 0.5), omega), np.inf)
+        _set_reasons(reason, sub & (pr > psat), lambda i: (
+            f"reduced pressure {_fmt(pr[i])} is above the Lee–Kesler vapour pressure {_fmt(psat[i])} "
+            f"at reduced temperature {_fmt(tr[i])}: the stable state is liquid or two-phase, not gas"))
     _set_reasons(reason, not_conv, lambda i: (
         f"the Lee–Kesler volume solve did not converge at reduced temperature {_fmt(tr[i])} "
         f"and reduced pressure {_fmt(pr[i])}"))
@@ -429,6 +514,32 @@ def lee_kesler_density(pressure, temperature, tc, pc, omega) -> GeneralizedState
     return GeneralizedState(
         pressure=np.where(valid, p, np.nan), molar_density=rho, z=z,
         reduced_temperature=tr, reduced_pressure=pr, valid=valid, reason=reason)
+
+
+def lee_kesler_density_valid(pressure, temperature, tc, pc, omega) -> tuple[np.ndarray, np.ndarray]:
+    """(molar density [mol/m3], valid) as :func:`lee_kesler_density` gives them (the same numbers and validity,
+    bit for bit), without the reasons in words: for a solver that evaluates it many times and reads only these.
+
+    >>> rho, ok = lee_kesler_density_valid(101325.0, 300.0, 126.192, 3.3958e6, 0.0372)   # nitrogen, 1 atm
+    >>> bool(ok), bool(rho == lee_kesler_density(101325.0, 300.0, 126.192, 3.3958e6, 0.0372).molar_density)
+    (True, True)
+    """
+    p, t, tc, pc, omega = _state_arrays(pressure, "pressure", "[Pa] (absolute)", temperature, tc, pc, omega)
+    z, valid = _z_valid(t / tc, p / pc, omega)
+    return np.where(valid, p / (z * R * t), np.nan), valid
+
+
+@np.errstate(divide="ignore", invalid="ignore", over="ignore")
+def _z_valid(tr, pr, omega):
+    """Z and validity of :func:`_z_checked` without its reasons: the same tests (range, gas root, vapour
+    pressure below the critical temperature, convergence)."""
+    in_range = ~((np.isfinite(pr) & (pr > _PR_HI)) | (tr < _TR_LO) | (tr > _TR_HI))
+    z, *_rest, no_root, not_conv, _a = _z_core(tr, pr, omega, in_range)
+    valid = in_range & ~no_root & ~not_conv
+    sub = (tr < 1.0) & np.isfinite(pr)
+    if sub.any():
+        valid &= ~(sub & (pr > np.where(sub, lee_kesler_vapour_pressure(np.where(sub, tr, 0.5), omega), np.inf)))
+    return np.where(valid, z, np.nan), valid
 
 
 def _newton_reduced_pressure(tr, vf, omega, active):
@@ -466,6 +577,14 @@ def _newton_reduced_pressure(tr, vf, omega, active):
     p = t * r0
     p_max = np.where(t < 1.0, np.minimum(lee_kesler_vapour_pressure(np.minimum(t, 1.0), a * OMEGA_REFERENCE), _PR_HI),
                      _PR_HI)
+    if idx.size <= _SCALAR_MAX_NEWTON:
+        for k, tk, vk, ak, r0k, pk, pmk, c0k, crk in zip(idx.tolist(), t.tolist(), v.tolist(), a.tolist(), r0.tolist(),
+                                                       p.tolist(), p_max.tolist(), zip(*c0), zip(*cr)):
+            got = _newton_reduced_pressure_one(tk, vk, ak, r0k, pk, pmk, c0k, crk)
+            if got is not None:
+                pr_out[k], v0_out[k], vr_out[k] = got
+                converged[k] = True
+        return pr_out.reshape(shape), v0_out.reshape(shape), vr_out.reshape(shape), converged.reshape(shape)
     for _ in range(_MAX_NEWTON):
         if idx.size == 0:
             break
@@ -489,6 +608,30 @@ def _newton_reduced_pressure(tr, vf, omega, active):
         p_max = p_max[keep]
         c0, cr = tuple(c[keep] for c in c0), tuple(c[keep] for c in cr)
     return pr_out.reshape(shape), v0_out.reshape(shape), vr_out.reshape(shape), converged.reshape(shape)
+
+
+def _newton_reduced_pressure_one(t: float, v: float, a: float, r0: float, p: float, p_max: float, c0: tuple,
+                                 cr: tuple) -> tuple[float, float, float] | None:
+    """One element of :func:`_newton_reduced_pressure`'s loop, on floats: the same steps and tests, bit for bit.
+    Returns (P_r, V_0, V_ref), or None where it does not converge."""
+    rr = r0
+    for _ in range(_MAX_NEWTON):
+        z0, dz0 = _bwr(_SIMPLE, c0, r0, _exp1)
+        zr, dzr = _bwr(_REFERENCE, cr, rr, _exp1)
+        p0, pref = t * r0 * z0, t * rr * zr
+        d0, dref = t * (z0 + r0 * dz0), t * (zr + rr * dzr)
+        w0, wref = _div(1.0 - a, d0 * r0 * r0), _div(a, dref * rr * rr)
+        p_new = _div(_div(1.0 - a, r0) + _div(a, rr) - v + w0 * p0 + wref * pref, w0 + wref)
+        r0_new = r0 + _div(p_new - p0, d0)
+        rr_new = rr + _div(p_new - pref, dref)
+        if not (d0 > 0.0 and dref > 0.0 and r0_new > 0.0 and rr_new > 0.0 and p_new > 0.0 and p_new <= p_max
+                and math.isfinite(r0_new) and math.isfinite(rr_new)):
+            return None
+        if (abs(p_new - p) <= _PTOL * p_new and abs(r0_new - r0) <= _RTOL * r0_new
+                and abs(rr_new - rr) <= _RTOL * rr_new):
+            return p_new, _div(1.0, r0_new), _div(1.0, rr_new)
+        r0, rr, p = r0_new, rr_new, p_new
+    return None
 
 
 def _solve_reduced_pressure(tr, vf, omega, active):
