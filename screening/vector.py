@@ -1421,15 +1421,33 @@ def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.n
     out["rho_molar"] = rho = fill_mass / molar_mass
     live = np.flatnonzero(~refused & ~fallback)
     phases = {}
+    unreachable = np.zeros(n, dtype=bool)
+    out["unreachable_reason"] = np.full(n, None, dtype=object)
+    why = np.full(n, None, dtype=object)
     for key, t in (("fill", t_fill), ("peak", t_peak)):
         p, ph, ok = fluid.states(rho[live], t[live])
         phases[key] = np.full(n, None, dtype=object)
         phases[key][live] = ph
         out["p_fill_ref" if key == "fill" else "peak_ref"][live] = p
+        if key == "peak":
+            # the fill established, the worst case beyond the reference equation's range (a liquid heated until
+            # its pressure is above the equation's highest pressure): screen._fill_state's isochore analysis
+            # stops at that state, below the gas's critical temperature the gas models are then not confirmed,
+            # and screen._reference refuses the same state with the same reason: no model applies
+            off = live[~ok & (np.minimum(t_fill, t_peak)[live] <= gas.components[0].critical_temperature)]
+            if off.size:
+                _p, _v, reasons = _loop(fluid.pressure, rho[off], t_peak[off])
+                for k, r in zip(off.tolist(), reasons):
+                    out["unreachable_reason"][k] = r
+                    why[k] = f"the gas phase cannot be confirmed: {r}"
+                unreachable[off] = True
+                phases["fill"][off] = phases["peak"][off] = None
+                ok = ok | unreachable[live]
         fallback[live[~ok]] = True
+        live = live[ok]
     out["phase_fill"], out["phase_peak"] = phases["fill"], phases["peak"]
-    why = np.full(n, None, dtype=object)
-    for k in np.flatnonzero(~refused & ~fallback).tolist():
+    out["unreachable"] = unreachable
+    for k in np.flatnonzero(~refused & ~fallback & ~unreachable).tolist():
         why[k] = _screen.condensed_reason(phases["fill"][k], phases["peak"][k])
     out["why_not_gas"] = why
     # a gas at fill and at the worst case: the ideal and generalized models apply as well
@@ -1492,6 +1510,13 @@ def _liquefied_gas_models(rows: Rows, out: dict, fallback: np.ndarray) -> None:
         max_p_lk[pk] = root
 
 
+def _stopped(out: dict, fallback: np.ndarray) -> np.ndarray:
+    """Rows whose isochore analysis goes no further than the dome's boundary: those that fall back, and the
+    liquefied-gas rows whose worst case lies beyond the reference equation's range (``unreachable``)."""
+    unreachable = out.get("unreachable")
+    return fallback if unreachable is None else fallback | unreachable
+
+
 def _dome_columns(fluid: ReferenceFluid, rho_molar: np.ndarray, out: dict, fallback: np.ndarray) -> None:
     """Where each row's isochore meets the saturation dome (isochore.isochore_phases): the dry-out temperature
     below the critical density, the liquid-full temperature above it with the slope just past it, and the
@@ -1504,7 +1529,7 @@ def _dome_columns(fluid: ReferenceFluid, rho_molar: np.ndarray, out: dict, fallb
             t_b, ok_b = _dome(fluid, side).boundary(rho_molar[d_rows])
             out[key][d_rows] = t_b
             fallback[d_rows[~ok_b]] = True
-    lf = np.flatnonzero(~fallback & np.isfinite(out["liquid_full"]))
+    lf = np.flatnonzero(~_stopped(out, fallback) & np.isfinite(out["liquid_full"]))
     if lf.size:
         out["dpdt_liquid_full"][lf], ok, _ = _loop(fluid.dp_dt_at_constant_density, rho_molar[lf],
                                                    out["liquid_full"][lf] + LIQUID_FULL_STEP)
@@ -1516,7 +1541,7 @@ def _crossing_columns(fluid: ReferenceFluid, out: dict, fallback: np.ndarray) ->
     crossing_pressure); the critical pressure where it leaves at the critical point."""
     crossing = out["crossing"]
     boundary = np.fmin(out["dry"], out["liquid_full"])
-    for k in np.flatnonzero(~fallback & np.isfinite(boundary)):
+    for k in np.flatnonzero(~_stopped(out, fallback) & np.isfinite(boundary)):
         try:
             crossing[k] = (fluid.critical_pressure if boundary[k] >= fluid.critical_temperature
                            else fluid.vapour_pressure(float(boundary[k])))
@@ -1534,13 +1559,41 @@ def _liquid_full_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback:
     gas = rows.gas
     tf, tp, rho = rows.t_fill.tolist(), out["t_peak"].tolist(), out["rho_molar"].tolist()
     lfd = out["lf_density"]
-    for k in np.flatnonzero(~fallback & ~out["refused"]).tolist():
+    for k in np.flatnonzero(~fallback & ~out["refused"] & ~out["unreachable"]).tolist():
         applies[k] = _screen._liquid_full_applies(fs, rho[k], tf[k], tp[k], gas)
         try:
             lfd[k] = _screen.liquid_full_density(fluid, tf[k], tp[k], gas)
         except NotApplicable:
             lfd[k] = np.nan
     out["liquid_full_applies"] = applies
+
+
+#: The fill-to-peak function's jump at the vapour pressure counts as clear of the target beyond this fraction of it.
+_JUMP_CLEAR = 1e-5
+
+
+def _no_fill_reaches(fluid: ReferenceFluid, t_fill: np.ndarray, t_peak: np.ndarray, target: np.ndarray) -> np.ndarray:
+    """Whether screen._limits finds no fill pressure whose peak is the target (rows whose target density at t_peak
+    lies inside the dome at t_fill), shown so: the fills below the vapour pressure at t_fill are vapour, no denser
+    than the saturated vapour there, and those above it liquid, no lighter than the saturated liquid; the
+    reference isochore's pressure does not fall with density, so the peaks of the vapour fills stay below the
+    target and those of the liquid fills above it (or beyond the equation's range). The only sign change
+    screen._root can meet is that jump; the point it settles on there is rejected by the check |peak - target| <=
+    1e-6 target, unless the jump ends next to the target: True where both ends are clear of it by _JUMP_CLEAR
+    (a liquid end beyond the range counts as clear), False where that is not shown."""
+    out = np.zeros(t_fill.size, dtype=bool)
+    for j, (tf, tp, tg) in enumerate(zip(t_fill.tolist(), t_peak.tolist(), target.tolist())):
+        try:
+            vapour_end = fluid.pressure(fluid.saturated_vapour_density(tf), tp) - tg
+            rho_l = fluid.saturated_liquid_density(tf)
+        except NotApplicable:
+            continue
+        try:
+            liquid_end = fluid.pressure(rho_l, tp) - tg
+        except NotApplicable:
+            liquid_end = math.inf
+        out[j] = vapour_end < -_JUMP_CLEAR * tg and liquid_end > _JUMP_CLEAR * tg
+    return out
 
 
 def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:
@@ -1558,9 +1611,11 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         fill_over = np.where(by_pressure, rows.p_fill >= rated,
                              ~(out["p_fill_ref"] < rated) | (out["lk_ok"] & (out["lk_p_fill"] >= rated)))
     out["fill_over"] = fill_over
+    # no limits where no real-gas model applies: the fill refused, the worst case beyond the reference range
+    screened_out = out["refused"] | out["unreachable"]
     t_lo = np.minimum(t_fill, t_peak)
     t_hi = np.maximum(t_peak, t_fill) + 300.0
-    live = np.flatnonzero(~fallback & ~out["refused"])
+    live = np.flatnonzero(~fallback & ~screened_out)
     if live.size == 0:
         return
 
@@ -1577,7 +1632,7 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
     max_t[fill_over] = np.nan
 
     # the density at the target on the worst-case isochore (the PT flash), for the fill-pressure and mass limits
-    live = np.flatnonzero(~fallback & ~out["refused"])
+    live = np.flatnonzero(~fallback & ~screened_out)
     rho_star = np.full(n, np.nan)
     rho_star[live], _ok, _r = _loop(fluid.density, target[live], t_peak[live])
 
@@ -1589,9 +1644,11 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         p_hi = np.maximum(target[pr], rows.p_fill[pr]) * np.maximum(1.0, t_fill[pr] / t_peak[pr]) * 1.05
         have = np.isfinite(rho_star[pr])
         p_star = np.full(pr.size, np.nan)
+        in_dome = np.zeros(pr.size, dtype=bool)
         if have.any():
             p, ph, v = fluid.states(rho_star[pr][have], t_fill[pr][have])
             p_star[have] = np.where(v & (ph != "two-phase"), p, np.nan)
+            in_dome[have] = v & (ph == "two-phase")
 
         def f_p(p, ix):
             r = pr[ix]
@@ -1615,6 +1672,12 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         miss = ~np.isfinite(rho_star[pr])
         fallback[pr[miss]] = True
         if risky.size:
+            # the target's density inside the dome at the fill temperature: no limit (above), where the peak's
+            # jump at the vapour pressure is clear of the target (_no_fill_reaches); else per row
+            d = risky[in_dome[risky]]
+            fallback[pr[d[~_no_fill_reaches(fluid, t_fill[pr[d]], t_peak[pr[d]], target[pr[d]])]]] = True
+            risky = risky[~in_dome[risky]]
+        if risky.size:
             f_hi = f_p(p_hi[risky], risky)
             bad = ~np.isfinite(f_hi)
             if bad.any():
@@ -1625,7 +1688,7 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         out["max_p"][pr] = np.fmin(p_max, out["max_p_lk"][pr])
 
     # fill density whose peak is the target (screen._mass_limit), then the liquid-full cap
-    live = np.flatnonzero(~fallback & ~out["refused"])
+    live = np.flatnonzero(~fallback & ~screened_out)
     if live.size:
         top = _rho_top(fluid, True)
         lo, hi = np.full(live.size, 1e-6 * top), np.full(live.size, top * 0.999)
@@ -1672,6 +1735,12 @@ def _liquefied_columns(rows: Rows) -> dict:
     return out
 
 
+def _unreachable_reason(reason: str) -> str:
+    """The out-of-scope reason of a row whose worst case lies beyond the reference equation's range, as
+    screen._screen_at words it from its three models' notes (each that reason)."""
+    return f"No real-gas model applies to this vessel (ideal, generalized, reference: {reason}), so it cannot be screened."
+
+
 def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, atm: float, required_margin: float,
                        max_ratio: float | None, name: str | None) -> dict:
     """One liquefied-gas row's verdict, reasons, margins, governing model and warnings (through screen.decide and
@@ -1684,6 +1753,13 @@ def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, a
         verdict, reasons, margin, relief_margin = _screen.decide(
             peak=None, rated=rated, relief=relief, atm=atm, required_margin=required_margin, any_real_model=False,
             out_of_scope_reason=reason)
+        return {"verdict": verdict, "reasons": reasons, "warnings": warnings, "margin_fraction": margin,
+                "relief_margin_fraction": relief_margin, "governing_model": None, "peak_pressure_pa": None,
+                "applicable": []}
+    if cols["unreachable"][k]:
+        verdict, reasons, margin, relief_margin = _screen.decide(
+            peak=None, rated=rated, relief=relief, atm=atm, required_margin=required_margin, any_real_model=False,
+            out_of_scope_reason=_unreachable_reason(cols["unreachable_reason"][k]))
         return {"verdict": verdict, "reasons": reasons, "warnings": warnings, "margin_fraction": margin,
                 "relief_margin_fraction": relief_margin, "governing_model": None, "peak_pressure_pa": None,
                 "applicable": []}
@@ -1742,13 +1818,33 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
                  "dry_out_temperature_k": _opt(cols["dry"][k]),
                  "phase_boundary_pressure_pa": _opt(cols["crossing"][k]),
                  "dp_dt_after_liquid_full_pa_k": _opt(cols["dpdt_liquid_full"][k])}
+    no_limits = {"max_gas_temperature_k": None, "max_fill_pressure_pa": None, "target_peak_pressure_pa": None,
+                 "max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,
+                 "note": "no real-gas model applies, so no limit is given"}
     if refused:
         na = "the fill state cannot be established (see the verdict's reason)"
         models = {nm: _screen.not_applicable(nm, na).as_dict() for nm in ("ideal", "generalized", "reference")}
-        limits = {"max_gas_temperature_k": None, "max_fill_pressure_pa": None, "target_peak_pressure_pa": None,
-                  "max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,
-                  "note": "no real-gas model applies, so no limit is given", **lim_extra}
+        limits = {**no_limits, **lim_extra}
         fill_rho_molar = rho_mass = mass = None
+        phase = None
+        peak = None
+        governing_reason = _screen.governing_text(None, [])
+        nominal_margin = None
+    elif cols["unreachable"][k]:
+        # the worst case beyond the reference equation's range: screen._fill_state keeps the fill density and
+        # nothing of the isochore analysis; every model says why it does not apply
+        why = cols["why_not_gas"][k]
+        models = {"ideal": _screen.not_applicable("ideal", why, equation="P v = R T, so at fixed density P2 = P1 "
+                                                  "T2 / T1").as_dict(),
+                  "generalized": _screen.not_applicable("generalized", why).as_dict(),
+                  "reference": _screen.not_applicable(
+                      "reference", f"reference equation of state not applicable: {cols['unreachable_reason'][k]}",
+                      fluid=fluid.label).as_dict()}
+        limits = {**no_limits, **{key: None for key in lim_extra}}
+        rho_fill_mass = float(cols["rho_fill_mass"][k])
+        fill_rho_molar = rho_fill_mass / gas.molar_mass
+        rho_mass = fill_rho_molar * gas.molar_mass
+        mass = rho_fill_mass * case.water_capacity_m3
         phase = None
         peak = None
         governing_reason = _screen.governing_text(None, [])
