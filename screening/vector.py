@@ -458,14 +458,18 @@ class Rows:
 @dataclass
 class PlainPart(Rows):
     """Rows of one gas from an inventory's plain rows, with what their verdicts need besides: the relief
-    set pressure [Pa] absolute and the maximum filling ratio [kg/m3] (NaN: none)."""
+    set pressure [Pa] absolute and the maximum filling ratio [kg/m3] (NaN: none); for a liquefied gas, the
+    fill mass per water capacity [kg/m3] (NaN where the fill is given by pressure, whose ``p_fill`` is NaN
+    where it is given by mass; None: every row by pressure)."""
 
     relief: np.ndarray
     ratio: np.ndarray
+    rho_mass: np.ndarray | None = None
 
     def take(self, idx: np.ndarray) -> "PlainPart":
         return PlainPart(self.gas, *(getattr(self, k)[idx] for k in (
-            "p_fill", "t_fill", "ambient_max", "gas_temperature", "rated", "atm", "margin_req", "relief", "ratio")))
+            "p_fill", "t_fill", "ambient_max", "gas_temperature", "rated", "atm", "margin_req", "relief", "ratio")),
+            rho_mass=None if self.rho_mass is None else self.rho_mass[idx])
 
 
 def _plain_columns(part: PlainPart) -> dict:
@@ -1203,16 +1207,21 @@ class PlainScreening:
         self._where: dict[int, tuple[dict, int]] = {}
         groups: dict[str, list[int]] = {}
         rest: list[int] = []
+        by_mass = ~np.isnan(plain.fill_mass_kg)
         for j, gas in enumerate(plain.gases):
-            (groups.setdefault(gas.name, []) if _vector_gas(gas) or _liquefied_gas(gas) else rest).append(j)
+            # a fill by mass: on the liquefied-gas columns only (a permanent gas by mass goes per row)
+            arrays = _liquefied_gas(gas) or (not by_mass[j] and _vector_gas(gas))
+            (groups.setdefault(gas.name, []) if arrays else rest).append(j)
         names = list(groups)
         parts = []
         for nm in names:
             idx = np.array(groups[nm], dtype=np.int64)
+            # the fill mass per water capacity as LiquefiedRows.of_cases divides it
+            rho_mass = plain.fill_mass_kg[idx] / plain.water_capacity_m3[idx] if by_mass[idx].any() else None
             parts.append(PlainPart(plain.gases[idx[0]], plain.fill_pressure_pa[idx], plain.fill_temperature_k[idx],
                                    plain.ambient_max_k[idx], plain.gas_temperature_k[idx], plain.rated_pa[idx],
                                    plain.atmospheric_pa[idx], plain.required_margin[idx], plain.relief_pa[idx],
-                                   plain.max_filling_ratio_kg_m3[idx]))
+                                   plain.max_filling_ratio_kg_m3[idx], rho_mass))
         for nm, cols in zip(names, _run_columns(parts, _plain_columns)):
             done = 0
             gas = plain.gases[groups[nm][0]]

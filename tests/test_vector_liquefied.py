@@ -234,3 +234,36 @@ def test_no_fill_pressure_limit_where_the_target_density_is_two_phase_at_the_fil
     assert r["fill"]["phase"] == "gas" and r["limits"]["target_peak_pressure_pa"] == pytest.approx(target, rel=1e-12)
     assert r["limits"]["max_fill_pressure_pa"] is None
     assert differences(r, screen_case(case, curves=False).to_json()) == []
+
+
+def test_inventory_rows_by_mass_are_read_as_columns_with_the_single_case_answers(tmp_path):
+    from screening.inputs.columns import read_plain
+    from screening.inputs.inventory import read_inventory, row_case
+
+    rnd = random.Random(11)
+    lines = ["id,gas,water_capacity [L],rated_pressure [bar(g)],fill_mass [kg],fill_temperature [degC],"
+             "ambient_max [degC],max_filling_ratio [kg/L]"]
+    for i in range(60):
+        gas, _cp, lo, hi = FLUIDS[i % len(FLUIDS)]
+        cap = rnd.uniform(10, 60)
+        ratio = f"{rnd.uniform(0.3, 0.8):.3f}" if i % 4 == 0 else ""
+        lines.append(f"M{i},{gas},{cap:.2f},{rnd.uniform(lo, hi):.1f},{cap * rnd.uniform(0.03, 0.85):.3f},"
+                     f"{rnd.uniform(-20, 30):.1f},{rnd.uniform(-30, 85):.1f},{ratio}")
+    path = tmp_path / "inv.csv"
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    inv = read_inventory(path)
+    plain = read_plain(inv, None)
+    assert len(plain) == 60
+    screening = vector.PlainScreening(plain)
+    errors = 0
+    for j, pos in enumerate(plain.index):
+        try:
+            s = screen_case(row_case(inv, *inv.rows[int(pos)], None), curves=False)
+        except ValueError:            # a mass fill denser than the liquid at the triple point
+            assert screening.summaries[j]["verdict"] == "input-error"
+            errors += 1
+            continue
+        assert differences(_as_json(screening.full(j)), s.to_json()) == []
+        assert differences(screening.summaries[j], s.summary_record()) == []
+    # only the input errors go per row (where the single screening raises them)
+    assert screening.per_row == errors < 10
