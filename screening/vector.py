@@ -1266,6 +1266,11 @@ class PlainScreening:
         if j in self._full:
             return self._full[j]
         cols, k = self._where[j]
+        if cols.get("kind") == "liquefied" and not _mass_limit_settled(cols, k):
+            try:
+                return single(self.plain.case(j))
+            except InputError as exc:
+                return {"verdict": "input-error", "error": exc}
         return _assemble(self.plain.case(j), cols, k)
 
 
@@ -1605,10 +1610,13 @@ def _no_fill_reaches(fluid: ReferenceFluid, t_fill: np.ndarray, t_peak: np.ndarr
     return out
 
 
-def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:
+def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray,
+                      mass_limit: bool = True) -> None:
     """Limits of liquefied-gas rows on the reference model (screen._limits, screen._mass_limit): the highest
     gas temperature (none where the fill itself is at or above the rating), the highest fill pressure of a
-    pressure fill, the highest fill density (capped by the liquid-full rule); each as screen._root finds it."""
+    pressure fill, the highest fill density (capped by the liquid-full rule); each as screen._root finds it.
+    `mass_limit` False: the fill-density limit is left for :func:`_mass_limit_settled` to solve when a full
+    result is asked for (the batch's table and CSV do not show it); ``mass_pending`` holds its rows."""
     n = rows.t_fill.size
     t_fill, t_peak, rated, atm = rows.t_fill, out["t_peak"], rows.rated, rows.atm
     rho, peak = out["rho_molar"], out["peak_ref"]
@@ -1642,8 +1650,9 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
 
     # the density at the target on the worst-case isochore (the PT flash), for the fill-pressure and mass limits
     live = np.flatnonzero(~fallback & ~screened_out)
-    rho_star = np.full(n, np.nan)
-    rho_star[live], _ok, _r = _loop(fluid.density, target[live], t_peak[live])
+    rho_star = out["rho_star"] = np.full(n, np.nan)
+    first = live if mass_limit else live[by_pressure[live]]
+    rho_star[first], _ok, _r = _loop(fluid.density, target[first], t_peak[first])
 
     # fill pressure whose peak is the target: the pressure of that density at the fill temperature, where that
     # state is one phase there (inside the dome no fill pressure gives that density: no limit)
@@ -1698,29 +1707,58 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
 
     # fill density whose peak is the target (screen._mass_limit), then the liquid-full cap
     live = np.flatnonzero(~fallback & ~screened_out)
-    if live.size:
-        top = _rho_top(fluid, True)
-        lo, hi = np.full(live.size, 1e-6 * top), np.full(live.size, top * 0.999)
-
-        def f_r(r, ix):
-            p, _v, _r = fluid.pressures(r, t_peak[live[ix]])
-            return p - target[live[ix]]
-
-        r, ok = _known_scan_root(f_r, rho_star[live], lo, hi, 60)
-        fallback[live[~ok]] = True
-        out["mass_rho"][live] = r
-        # screen._mass_limit's solve stops within 1e-9 of the whole density range: a root far below the range's
-        # top (a vapour-side density) is known there only to a few 1e-8 of itself, so such rows take that same
-        # solve, row by row, for the same number
-        small = np.flatnonzero(ok & np.isfinite(r) & (r < _SMALL_ROOT * hi))
-        for j in small.tolist():
-            i = int(live[j])
-            tp, tg = float(t_peak[i]), float(target[i])
-            out["mass_rho"][i] = _screen._root(lambda x, tp=tp, tg=tg: fluid.pressure(x, tp) - tg, float(lo[j]),
-                                               float(hi[j]), n=60) or np.nan
+    out["mass_pending"] = None
+    if not mass_limit:
+        out["mass_pending"] = live
+        out["fluid_names"] = fluid.names
+    elif live.size:
+        fallback[live[~_liquefied_mass_limit(fluid, out, live, live[:0])]] = True
 
 
-def _liquefied_columns(rows: Rows) -> dict:
+def _liquefied_mass_limit(fluid: ReferenceFluid, out: dict, live: np.ndarray, star: np.ndarray) -> np.ndarray:
+    """The fill density whose peak is the target (screen._mass_limit's root, before the liquid-full cap) of rows
+    `live` into ``out["mass_rho"]``, the target's density first solved for rows `star`; returns whether each
+    row's root is settled (False: the row needs the single screening)."""
+    t_peak, target, rho_star = out["t_peak"], out["target"], out["rho_star"]
+    if star.size:
+        rho_star[star], _ok, _r = _loop(fluid.density, target[star], t_peak[star])
+    top = _rho_top(fluid, True)
+    lo, hi = np.full(live.size, 1e-6 * top), np.full(live.size, top * 0.999)
+
+    def f_r(r, ix):
+        p, _v, _r = fluid.pressures(r, t_peak[live[ix]])
+        return p - target[live[ix]]
+
+    r, ok = _known_scan_root(f_r, rho_star[live], lo, hi, 60)
+    out["mass_rho"][live] = r
+    # screen._mass_limit's solve stops within 1e-9 of the whole density range: a root far below the range's
+    # top (a vapour-side density) is known there only to a few 1e-8 of itself, so such rows take that same
+    # solve, row by row, for the same number
+    small = np.flatnonzero(ok & np.isfinite(r) & (r < _SMALL_ROOT * hi))
+    for j in small.tolist():
+        i = int(live[j])
+        tp, tg = float(t_peak[i]), float(target[i])
+        out["mass_rho"][i] = _screen._root(lambda x, tp=tp, tg=tg: fluid.pressure(x, tp) - tg, float(lo[j]),
+                                           float(hi[j]), n=60) or np.nan
+    return ok
+
+
+def _mass_limit_settled(cols: dict, k: int) -> bool:
+    """Whether row k of liquefied-gas columns has its fill-density limit (solved here, for every row of those
+    columns at once, on the first call where :func:`_liquefied_limits` left it pending); False where that
+    solve is not sure of it (the row's full result then comes from the single screening)."""
+    pending = cols.get("mass_pending")
+    if pending is not None:
+        fluid = reference_fluid(cols["fluid_names"], (1.0,))
+        unsettled = np.zeros(cols["t_peak"].size, dtype=bool)
+        ok = _liquefied_mass_limit(fluid, cols, pending, pending[~cols["by_pressure"][pending]])
+        unsettled[pending[~ok]] = True
+        cols["mass_unsettled"], cols["mass_pending"] = unsettled, None
+    unsettled = cols.get("mass_unsettled")
+    return unsettled is None or not unsettled[k]
+
+
+def _liquefied_columns(rows: Rows, mass_limit: bool = True) -> dict:
     """Fill state, phases, the reference model, the liquid-full rule and the limits of rows of one pure liquefied
     gas, as arrays (the liquefied-gas counterpart of :func:`_columns`). Rows where the contents are a gas at fill
     and at the worst case (the gas models apply), and rows a step is not sure of, are marked ``fallback``."""
@@ -1740,7 +1778,7 @@ def _liquefied_columns(rows: Rows) -> dict:
     _dome_columns(fluid, rho, out, fallback)
     _crossing_columns(fluid, out, fallback)
     _liquid_full_columns(rows, fluid, out, fallback)
-    _liquefied_limits(rows, fluid, out, fallback)
+    _liquefied_limits(rows, fluid, out, fallback, mass_limit)
     return out
 
 
@@ -1796,8 +1834,9 @@ def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, a
 
 
 def _liquefied_plain_columns(part: PlainPart) -> dict:
-    """_liquefied_columns of a part of plain rows (filled by pressure) plus each row's ``verdict``."""
-    cols = _liquefied_columns(part)
+    """_liquefied_columns of a part of plain rows plus each row's ``verdict``; the fill-density limit is solved
+    only where a full result is asked for (:func:`_mass_limit_settled`)."""
+    cols = _liquefied_columns(part, mass_limit=False)
     verdicts = np.full(part.p_fill.size, None, dtype=object)
     rated, atm, margin_req = part.rated.tolist(), part.atm.tolist(), part.margin_req.tolist()
     relief, ratio = part.relief.tolist(), part.ratio.tolist()
