@@ -1266,7 +1266,7 @@ class PlainScreening:
         if j in self._full:
             return self._full[j]
         cols, k = self._where[j]
-        if cols.get("kind") == "liquefied" and not _mass_limit_settled(cols, k):
+        if cols.get("kind") == "liquefied" and not _mass_limit_settled(cols, k, self.plain.gases[j]):
             try:
                 return single(self.plain.case(j))
             except InputError as exc:
@@ -1616,7 +1616,7 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
     gas temperature (none where the fill itself is at or above the rating), the highest fill pressure of a
     pressure fill, the highest fill density (capped by the liquid-full rule); each as screen._root finds it.
     `mass_limit` False: the fill-density limit is left for :func:`_mass_limit_settled` to solve when a full
-    result is asked for (the batch's table and CSV do not show it); ``mass_pending`` holds its rows."""
+    result is asked for (the batch's table and CSV do not show it); ``mass_pending`` marks its rows."""
     n = rows.t_fill.size
     t_fill, t_peak, rated, atm = rows.t_fill, out["t_peak"], rows.rated, rows.atm
     rho, peak = out["rho_molar"], out["peak_ref"]
@@ -1707,10 +1707,9 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
 
     # fill density whose peak is the target (screen._mass_limit), then the liquid-full cap
     live = np.flatnonzero(~fallback & ~screened_out)
-    out["mass_pending"] = None
+    out["mass_pending"] = np.zeros(n, dtype=bool)
     if not mass_limit:
-        out["mass_pending"] = live
-        out["fluid_names"] = fluid.names
+        out["mass_pending"][live] = True
     elif live.size:
         fallback[live[~_liquefied_mass_limit(fluid, out, live, live[:0])]] = True
 
@@ -1743,17 +1742,18 @@ def _liquefied_mass_limit(fluid: ReferenceFluid, out: dict, live: np.ndarray, st
     return ok
 
 
-def _mass_limit_settled(cols: dict, k: int) -> bool:
-    """Whether row k of liquefied-gas columns has its fill-density limit (solved here, for every row of those
-    columns at once, on the first call where :func:`_liquefied_limits` left it pending); False where that
+def _mass_limit_settled(cols: dict, k: int, gas: Mixture) -> bool:
+    """Whether row k of liquefied-gas columns of `gas` has its fill-density limit (solved here, for every row of
+    those columns at once, on the first call where :func:`_liquefied_limits` left it pending); False where that
     solve is not sure of it (the row's full result then comes from the single screening)."""
-    pending = cols.get("mass_pending")
-    if pending is not None:
-        fluid = reference_fluid(cols["fluid_names"], (1.0,))
+    pending = np.flatnonzero(cols["mass_pending"])
+    if pending.size:
+        fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
         unsettled = np.zeros(cols["t_peak"].size, dtype=bool)
         ok = _liquefied_mass_limit(fluid, cols, pending, pending[~cols["by_pressure"][pending]])
         unsettled[pending[~ok]] = True
-        cols["mass_unsettled"], cols["mass_pending"] = unsettled, None
+        cols["mass_unsettled"] = unsettled
+        cols["mass_pending"] = np.zeros(cols["t_peak"].size, dtype=bool)
     unsettled = cols.get("mass_unsettled")
     return unsettled is None or not unsettled[k]
 

@@ -4,6 +4,7 @@ import json
 import random
 
 import CoolProp.CoolProp as CP
+import numpy as np
 import pytest
 
 from screening import vector
@@ -267,3 +268,23 @@ def test_inventory_rows_by_mass_are_read_as_columns_with_the_single_case_answers
         assert differences(screening.summaries[j], s.summary_record()) == []
     # only the input errors go per row (where the single screening raises them)
     assert screening.per_row == errors < 10
+
+
+def test_liquefied_columns_split_over_forked_workers_equal_one_process(tmp_path, monkeypatch):
+    from screening import parallel
+
+    monkeypatch.setattr(parallel, "workers", lambda: 2)
+    from screening.inputs.columns import read_plain
+    from screening.inputs.inventory import read_inventory
+
+    inv = read_inventory(_edge_inventory(tmp_path / "inv.csv", "chlorine", "Chlorine", 40, seed=3))
+    plain = read_plain(inv, None)
+    idx = np.arange(len(plain))
+    part = vector.PlainPart(plain.gases[0], *(a[idx] for a in (
+        plain.fill_pressure_pa, plain.fill_temperature_k, plain.ambient_max_k, plain.gas_temperature_k, plain.rated_pa,
+        plain.atmospheric_pa, plain.required_margin, plain.relief_pa, plain.max_filling_ratio_kg_m3)))
+    one = vector._plain_columns(part)
+    (forked,) = parallel.map_rows(vector._plain_columns, [part], min_rows=0)
+    assert set(one) == set(forked) and forked["kind"] == "liquefied"
+    for k in one:
+        assert list(map(str, np.atleast_1d(one[k]))) == list(map(str, np.atleast_1d(forked[k]))), k
