@@ -372,8 +372,65 @@ def _monotone_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.nda
     return out
 
 
+def _scan_up(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np.ndarray, lo: np.ndarray, mid: np.ndarray,
+             f_mid: np.ndarray, hi: np.ndarray, n: int = _SCAN_N) -> np.ndarray:
+    """Per row, the root screen._root's scan of np.linspace(lo, hi, n) finds (NaN: none) for an increasing
+    f(x, rows) with f(mid) = f_mid < 0 (lo <= mid < hi) that can be evaluated from lo up to some point and nowhere
+    above it (a reference isochore: the equation's temperature range and highest pressure). The scan's intervals
+    below mid then hold no sign change, so only the scan points above mid are evaluated, in turn, until f >= 0
+    (the root lies between the last point below zero and that one: Illinois, to _SECANT_RTOL) or f cannot be
+    evaluated (the scan meets no sign change it can bracket: none)."""
+    m = rows.size
+    root = np.full(m, np.nan)
+    if m == 0:
+        return root
+    step = (hi - lo) / (n - 1)
+    _a, b = _linspace_bracket(lo, hi, mid, n)
+    k = np.rint((b - lo) / step)                  # the index of the first scan point above mid
+    x0, f0 = np.array(mid, dtype=float), np.array(f_mid, dtype=float)
+    x1, f1 = np.full(m, np.nan), np.full(m, np.nan)
+    live = np.flatnonzero(b > mid)
+    while live.size:
+        x = np.where(k[live] >= n - 1, hi[live], k[live] * step[live] + lo[live])
+        fx = f(x, rows[live])
+        below = np.isfinite(fx) & (fx < 0.0)
+        found = np.isfinite(fx) & (fx >= 0.0)
+        x1[live[found]], f1[live[found]] = x[found], fx[found]
+        x0[live[below]], f0[live[below]] = x[below], fx[below]
+        k[live] += 1
+        live = live[below & (k[live] <= n - 1)]
+    zero = f1 == 0.0
+    root[zero] = x1[zero]
+    go = np.flatnonzero(np.isfinite(f1) & ~zero)
+    if go.size:
+        root[go] = _illinois(f, x0[go], x1[go], f0[go], f1[go], rows[go])
+    return root
+
+
+def _upward_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray, mid: np.ndarray,
+                 hi: np.ndarray) -> np.ndarray:
+    """Per row, what :func:`_monotone_root` finds (the root screen._root finds, NaN: none) for an increasing
+    f(x, rows) on [lo, hi] that, where it can be evaluated at mid, can be evaluated from mid up to some point and
+    nowhere above it (a model that holds up to the end of its range): solved from mid (:func:`_increasing_root`,
+    an end past the range scanned upwards from mid, :func:`_scan_up`) instead of scanning the whole bracket; rows
+    where f cannot be evaluated at mid, or the solve is not sure, by :func:`_monotone_root`."""
+    ix = np.arange(lo.size)
+    f_mid = f(mid, ix)
+    known = np.isfinite(f_mid)
+    root = np.full(lo.size, np.nan)
+    if known.any():
+        k = ix[known]
+        root[k], ok = _increasing_root(f, k, lo[k], mid[k], f_mid[k], hi[k], math.inf, stepwise=True)
+        known[k[~ok]] = False
+    rest = ix[~known]
+    if rest.size:
+        root[rest] = _monotone_root(lambda x, i: f(x, rest[i]), lo[rest], hi[rest])
+    return root
+
+
 def _increasing_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np.ndarray, lo: np.ndarray,
-                     mid: np.ndarray, f_mid: np.ndarray, hi: np.ndarray, top: float) -> tuple[np.ndarray, np.ndarray]:
+                     mid: np.ndarray, f_mid: np.ndarray, hi: np.ndarray, top: float,
+                     stepwise: bool = False) -> tuple[np.ndarray, np.ndarray]:
     """Per row, the root screen._root finds for an increasing f(x, rows) on [lo, hi] (NaN: none), where f is
     known at an inside point mid (f_mid) and can be evaluated only up to `top` (a model's range).
 
@@ -381,7 +438,8 @@ def _increasing_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np
     hi > top, screen._root scans np.linspace(lo, hi, _SCAN_N) and finds the root only inside a scan interval
     whose ends it can evaluate, so a root in the interval that holds `top` is none as well. The solve is
     bracketed on [mid, min(hi, top)] or [lo, mid] (Illinois, to _SECANT_RTOL); where f cannot be evaluated at
-    that bracket's end, by screen._root's scan (:func:`_scan_root`). Returns (root, ok): ok False where the
+    that bracket's end, by screen._root's scan (:func:`_scan_root`; `stepwise`: upwards from mid, :func:`_scan_up`,
+    for an f that can be evaluated on one interval from lo). Returns (root, ok): ok False where the
     bracketed solve met a point it could not evaluate (those rows go per row).
     """
     m = rows.size
@@ -398,7 +456,10 @@ def _increasing_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np
         bad = ~np.isfinite(f_end)
         if bad.any():   # an end outside the model's range (e.g. above its highest pressure): screen._root scans
             kb = k[bad]
-            root[kb] = _scan_root(lambda x, ix, sub=rows[kb]: f(x, sub[ix]), lo[kb], hi[kb])
+            if stepwise and up:
+                root[kb] = _scan_up(f, rows[kb], lo[kb], mid[kb], f_mid[kb], hi[kb])
+            else:
+                root[kb] = _scan_root(lambda x, ix, sub=rows[kb]: f(x, sub[ix]), lo[kb], hi[kb])
         at_end = ~bad & (f_end == 0.0)
         root[k[at_end]] = x_end[at_end]
         go = ~bad & ((f_end > 0.0) if up else (f_end < 0.0))
@@ -1505,7 +1566,9 @@ def _liquefied_gas_models(rows: Rows, out: dict, fallback: np.ndarray) -> None:
         return np.where(st.valid, st.pressure - rated[r], np.nan)
 
     t_lo, t_hi = np.minimum(t_fill, t_peak)[lk], (np.maximum(t_peak, t_fill) + 300.0)[lk]
-    max_t_lk[lk] = _monotone_root(isochore, t_lo, t_hi)
+    # the isochore rises with temperature and the model holds from the worst case (a gas there) up to the top of
+    # its tables: the solve starts from the worst case (:func:`_upward_root`)
+    max_t_lk[lk] = _upward_root(isochore, t_lo, t_peak[lk], t_hi)
     pk = lk[by_pressure[lk]]
     if pk.size:
         def fill(p, ix):
@@ -1516,7 +1579,9 @@ def _liquefied_gas_models(rows: Rows, out: dict, fallback: np.ndarray) -> None:
 
         p_lo = atm[pk] * 1.01
         p_hi = np.maximum(target[pk], rows.p_fill[pk]) * np.maximum(1.0, t_fill[pk] / t_peak[pk]) * 1.05
-        root = _monotone_root(fill, p_lo, p_hi)
+        # the peak rises with the fill pressure, and the model holds from the row's own fill up to where the gas
+        # condenses at the fill temperature: the solve starts from that fill (:func:`_upward_root`)
+        root = _upward_root(fill, p_lo, np.clip(rows.p_fill[pk], p_lo, p_hi), p_hi)
         # screen._limits keeps a fill-pressure root only where its peak is the target (not a jump of the model)
         at = np.flatnonzero(np.isfinite(root))
         hit = np.abs(fill(root[at], at)) <= 1e-6 * target[pk[at]]
@@ -1640,8 +1705,10 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         p, _v, _r = fluid.pressures(rho[ix], t)
         return p / rated[ix] - 1.0
 
+    # the reference isochore can be evaluated from the lower temperature up to the equation's range (its
+    # temperature range, its highest pressure): an end past it is scanned upwards from the worst case
     root, ok = _increasing_root(f_t, live, t_lo[live], t_peak[live], peak[live] / rated[live] - 1.0, t_hi[live],
-                                fluid.t_max)
+                                fluid.t_max, stepwise=True)
     fallback[live[~ok]] = True
     max_t = out["max_t"]
     max_t[live[ok]] = root[ok]

@@ -288,3 +288,22 @@ def test_liquefied_columns_split_over_forked_workers_equal_one_process(tmp_path,
     assert set(one) == set(forked) and forked["kind"] == "liquefied"
     for k in one:
         assert list(map(str, np.atleast_1d(one[k]))) == list(map(str, np.atleast_1d(forked[k]))), k
+
+
+def test_liquid_fill_temperature_limit_found_below_the_reference_range_edge_on_the_array_path():
+    # liquid n-butane filled at 3 bar(g) and 15 degC, rated 80 bar(g), worst case 20 degC: heated 300 K further its
+    # isochore leaves the reference equation's range (above its highest pressure), so the temperature limit is
+    # sought upwards from the worst case; at that temperature the fill density's pressure is the rating
+    # (Buecker & Wagner 2006 through CoolProp's PropsSI)
+    d = {"id": "B", "vessel": {"water_capacity": "40 L", "rated_pressure": "80 bar(g)"},
+         "fill": {"gas": "n-butane", "pressure": "3 bar(g)", "temperature": "15 degC"},
+         "exposure": {"ambient_max": "20 degC"}}
+    case = parse_case_data(d, "t.csv", "x")
+    r = _as_json(vector.screen_cases([case])[0])
+    assert vector.STATS["vectorised"] == 1
+    rho = CP.PropsSI("Dmass", "P", 3e5 + ATM, "T", 288.15, "n-Butane")
+    assert CP.PropsSI("P", "Dmass", rho, "T", 400.0, "n-Butane") > CP.PropsSI("pmax", "n-Butane")
+    t_max = r["limits"]["max_gas_temperature_k"]
+    assert 293.15 < t_max < 310.0
+    assert CP.PropsSI("P", "Dmass", rho, "T", t_max, "n-Butane") == pytest.approx(80e5 + ATM, rel=1e-7)
+    assert differences(r, screen_case(case, curves=False).to_json()) == []
