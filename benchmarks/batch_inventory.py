@@ -65,7 +65,7 @@ import sys, time
 t0 = time.perf_counter()
 from screening.batch import BatchRun, write_csv
 from screening.inputs.inventory import read_inventory
-import screening.vector  # noqa: F401  (CoolProp)
+import screening.engine  # noqa: F401  (CoolProp)
 t1 = time.perf_counter()
 inv = read_inventory(sys.argv[1])
 t2 = time.perf_counter()

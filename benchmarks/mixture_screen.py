@@ -18,8 +18,8 @@ import time
 
 import CoolProp.CoolProp as CP
 
+from screening.engine import screen_case
 from screening.inputs.case import parse_case_text
-from screening.screen import screen_case
 
 MIXTURES = [
     ("argon + 8 % CO2", "Argon[0.92]&CarbonDioxide[0.08]"),

@@ -64,14 +64,15 @@ class BatchRun:
     """Every row of an inventory (or of one chunk of it) screened, in input order.
 
     ``results[i]`` is row i's slim record with its "row": the part the table, CSV and counts use (see
-    :func:`screening.vector.slim`), or the ``input-error`` record. ``full(i)`` gives row i's full
+    :func:`screening.engine.slim`), or the ``input-error`` record. ``full(i)`` gives row i's full
     :class:`~screening.result.Result` (built on demand; the input-error record for such a row)."""
 
     def __init__(self, inv: Inventory, defaults: dict | None = None, quiet: bool = True, plain=None) -> None:
+        from screening.engine import PlainScreening, screen_cases
         from screening.inputs.columns import read_plain
-        from screening.vector import PlainScreening, screen_cases
 
         self.inv = inv
+        self.defaults = defaults
         id_col = _id_column(inv)
         if plain is None:
             plain = read_plain(inv, defaults)
@@ -101,7 +102,7 @@ class BatchRun:
     def _placed(self, pos: int, r: Result | dict, case_id: str | None) -> dict:
         n = self.inv.rows[pos][0]
         if isinstance(r, Result):
-            from screening.vector import slim
+            from screening.engine import slim
 
             self._fulls[pos] = replace(r, row=n)
             r = slim(r)
@@ -115,7 +116,7 @@ class BatchRun:
 
     def detail(self, i: int) -> Result | dict:
         """Row i's full result with its plot curves (for a PDF's detail section)."""
-        return _with_curves(self.full(i))
+        return _with_curves(self.full(i), self.inv, i, self.defaults)
 
     def full(self, i: int) -> Result | dict:
         """Row i's full result (with its "row" and the batch's warnings); its input-error record for a
@@ -192,22 +193,24 @@ def screen_chunk(job: tuple) -> list[tuple]:
             rec["row"] = n
             rec["input"] = {h: str(cells[j]) if j < len(cells) else "" for j, h in enumerate(headers)}
             line = json_line(rec)
-        keep_full = _with_curves(f) if want.get("full") == "all" or (want.get("full") == "not-within"
+        keep_full = _with_curves(f, inv, i, defaults) if want.get("full") == "all" or (want.get("full") == "not-within"
                                                                      and r["verdict"] != "within") else None
         out.append((r, line, keep_full))
     return out
 
 
-def _with_curves(f: Result | dict | None) -> Result | dict | None:
-    """A detail row's full result with its isochore curves, computed here by the engine (in the worker) so
-    that the PDF only draws them; a row whose curves cannot be computed keeps its numbers, without a plot."""
+def _with_curves(f: Result | dict | None, inv: Inventory, i: int, defaults: dict | None) -> Result | dict | None:
+    """A detail row's full result with its isochore curves, computed here by the engine (in the worker, by the
+    one function that computes a single screening's curves, :func:`screening.engine.with_plot_data`) so that
+    the PDF only draws them; a row whose curves cannot be computed keeps its numbers, without a plot."""
     if not isinstance(f, Result) or f.curves is not None or f.verdict == Verdict.INPUT_ERROR:
         return f
-    from screening.vector import curves
+    from screening.engine import with_plot_data
 
+    n, cells = inv.rows[i]
     try:
-        return replace(f, curves=curves(f))
-    except (ValueError, RuntimeError):      # NotApplicable is a ValueError; CoolProp raises either
+        return replace(f, curves=with_plot_data(row_case(inv, n, cells, defaults), f).curves)
+    except (ValueError, RuntimeError):      # InputError and NotApplicable are ValueErrors; CoolProp raises either
         return f
 
 
@@ -482,7 +485,7 @@ def run(args) -> int:
     want = {"json": bool(args.json or getattr(args, "jsonl", None)),
             "full": ("all" if args.all_details else "not-within") if args.pdf else None}
     by_severity = getattr(args, "sort", "input") == "severity"
-    import screening.vector  # noqa: F401  (the equations of state, loaded once before any worker forks)
+    import screening.engine  # noqa: F401  (the equations of state, loaded once before any worker forks)
 
     tally = Tally()
     pdf_rows: list[dict] = []

@@ -143,15 +143,16 @@ def _lean_coolprop() -> None:
     load_lean()
 
 
-def _screened_here(path: str) -> tuple[Result, str]:
-    """(result, case text as read) of the case file at `path`, screened in this process."""
+def _screened_here(path: str, curves: bool = True) -> tuple[Result, str]:
+    """(result, case text as read) of the case file at `path`, screened in this process; with its plot data
+    where `curves` (the outputs that show them: JSON and the PDF)."""
     from screening.inputs.case import load_case
 
     case = load_case(path)
     _lean_coolprop()
-    from screening.screen import screen_case  # after the case reads cleanly: an input error comes sooner
+    from screening.engine import screen_case  # after the case reads cleanly: an input error comes sooner
 
-    return screen_case(case), case.text
+    return screen_case(case, curves=curves), case.text
 
 
 def _prepare_report_layer() -> None:
@@ -169,7 +170,7 @@ def _prepare_report_layer() -> None:
 def _screen_in_worker(case) -> Result:
     """Run in the worker: the result of the case (an InputError raised here comes back as itself)."""
     _lean_coolprop()
-    from screening.screen import screen_case
+    from screening.engine import screen_case
 
     return screen_case(case)
 
@@ -178,7 +179,7 @@ def _worker_helps() -> bool:
     """A worker pays off in a fresh command only: a long-lived caller that has the screening core
     loaded already would only pay for the process. Where the platform cannot fork, a worker would
     import everything again from scratch, so the case is screened here."""
-    return hasattr(os, "fork") and "screening.screen" not in sys.modules
+    return hasattr(os, "fork") and "screening.engine" not in sys.modules
 
 
 def _worker_pool():
@@ -222,7 +223,7 @@ def _screened_for_pdf(path: str, *, fork: bool | None = None) -> tuple[Result, s
             if pool is not None:
                 pool.shutdown(wait=True, cancel_futures=True)
     _lean_coolprop()
-    from screening.screen import screen_case
+    from screening.engine import screen_case
 
     return screen_case(case), case.text
 
@@ -319,7 +320,7 @@ def run(argv: list[str] | None = None) -> int:
     if args.command == "report" or args.pdf:
         result, case_text = _screened_for_pdf(args.case)
     else:
-        result, case_text = _screened_here(args.case)
+        result, case_text = _screened_here(args.case, curves=bool(args.json))
     if args.command == "report":
         written = _write_pdf(result, case_text, args.output, args.date)
         print(f"report written: {written}")

@@ -14,9 +14,9 @@ from screening.errors import InputError
 
 
 def main(argv: list[str] | None = None) -> int:
+    from screening.engine import screen_case
     from screening.inputs.case import load_case
     from screening.outputs.summary import format_summary
-    from screening.screen import screen_case
 
     root = Path(__file__).resolve().parent.parent
     cases = sorted((root / "cases").glob("*.toml"))

@@ -1,6 +1,6 @@
 """The result of a screening, typed: what the engine returns and every output reads.
 
-`screen.screen_case` and the batch's full result per row return a :class:`Result`. Views read its
+`engine.screen_case` and the batch's full result per row return a :class:`Result`. Views read its
 attributes; a JSON output calls :meth:`Result.to_json` once (the documented JSON layout, SI, pressures
 absolute); a reader of such JSON (`verify`, the web page) calls :meth:`Result.from_json`.
 

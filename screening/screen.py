@@ -16,7 +16,7 @@ import numpy as np
 from screening import __version__
 from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
 from screening.errors import InputError, NotApplicable
-from screening.inputs.case import Case, Exposure, load_case, parse_case_text
+from screening.inputs.case import Case, Exposure
 from screening.physics.eos.generalized import (
     lee_kesler_density,
     lee_kesler_pressure,
@@ -610,7 +610,7 @@ def _root(f: Callable[[float], float], lo: float, hi: float, n: int = 24,
         if f_lo == 0.0:
             return float(lo)
         if f_lo * f_hi < 0.0:
-            return float(brentq(f, lo, hi, rtol=P_TOL, xtol=1e-9 * max(1.0, abs(hi))))
+            return float(brentq(f, lo, hi, rtol=P_TOL, xtol=1e-12 * max(1.0, abs(hi))))
     except NotApplicable:
         pass
     xs = np.linspace(lo, hi, n)
@@ -631,7 +631,7 @@ def _root(f: Callable[[float], float], lo: float, hi: float, n: int = 24,
             if fx == 0.0:
                 return float(x)
             try:
-                return float(brentq(f, prev_x, float(x), rtol=P_TOL, xtol=1e-9 * max(1.0, abs(x))))
+                return float(brentq(f, prev_x, float(x), rtol=P_TOL, xtol=1e-12 * max(1.0, abs(x))))
             except NotApplicable:
                 return None
         prev_x, prev_f = float(x), fx
@@ -1395,10 +1395,12 @@ def _rank(r: dict) -> tuple:
     return (Verdict(r["verdict"]).severity, -(margin if margin is not None else -math.inf))
 
 
-def screen_case(case: Case, *, curves: bool = True) -> Result:
-    """Screen one vessel over its exposure scenarios; return the governing scenario's result (SI, pressures
-    absolute; `Result.to_json()` is the JSON layout) with every scenario side by side under "scenarios".
-    `curves`: compute the plot data ("curves", "phase_diagram"); None where False."""
+def screen_states(case: Case, *, curves: bool = True) -> Result:
+    """The engine's state-by-state route: one vessel screened scenario by scenario with the scalar models
+    (the governing scenario's result, SI, pressures absolute, every scenario side by side under "scenarios").
+    :func:`screening.engine.screen_cases` takes this route for the rows its columns do not take (mixtures,
+    dissolved gases, rows near a model's range edge…); use :func:`screening.engine.screen_case` to screen a
+    vessel. `curves`: compute the plot data ("curves", "phase_diagram"); None where False."""
     per: list[tuple[str, dict, dict | None]] = []
     with case_budget():   # a mixture's phase checks share one time bound per screening
         for sc in case.scenarios:
@@ -1414,6 +1416,19 @@ def screen_case(case: Case, *, curves: bool = True) -> Result:
     if curves:
         result["curves"], result["phase_diagram"] = plots[ranked]()
     return Result.from_json(result)
+
+
+def plot_data(case: Case, r: Result) -> tuple[dict | None, dict | None]:
+    """(curves, phase diagram) of a finished result of `case` as JSON data: the models' isochores at the
+    governing scenario's fill and worst-case temperatures on :func:`curve_temperatures`' grid, the governing
+    model at the bounding tolerance corner where there is one, and the fluid's vapour-pressure curve. The
+    one place plot data are computed, for a single screening and for a batch's detail rows alike."""
+    t_fill, t_peak = r.fill.temperature_k, r.worst_case_temperature_k
+    layout = r.to_json()
+    with case_budget():
+        fs, models, _ = _evaluate(case, t_fill, t_peak, [])
+        return (_curves(models, t_fill, t_peak, layout["limits"], _bounding_model(case, layout["tolerance"])),
+                _phase_diagram(fs))
 
 
 def fold_scenarios(per: list[tuple[str, dict, dict | None]]) -> tuple[int, dict]:
@@ -1436,13 +1451,3 @@ def fold_scenarios(per: list[tuple[str, dict, dict | None]]) -> tuple[int, dict]
                     result["warnings"].append(w)
                     seen.add(w["message"])
     return ranked, result
-
-
-def screen_text(text: str, source: str = "<case>") -> Result:
-    """Parse a TOML case text and screen it. Raises InputError on bad input."""
-    return screen_case(parse_case_text(text, source))
-
-
-def screen_file(path) -> Result:
-    """Read a case file and screen it. Raises InputError on bad input."""
-    return screen_case(load_case(path))

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import math
+
 import pytest
 
 from screening.cli import main
@@ -21,3 +23,26 @@ def cli(capsys, *args: str) -> tuple[int, str, str]:
         main(list(args))
     out = capsys.readouterr()
     return exc.value.code, out.out, out.err
+
+
+def result_differences(a, b, rtol: float, rtol_limits: float, path: str = "", limits: bool = False) -> list[str]:
+    """Where JSON result b differs from a: keys (and their order), texts, flags, list lengths, and numbers
+    beyond rtol (rtol_limits under a "limits" key)."""
+    if isinstance(a, dict) and isinstance(b, dict):
+        if list(a) != list(b):
+            return [f"{path}: keys {sorted(set(a) ^ set(b))} or their order"]
+        return [d for k in a for d in result_differences(a[k], b[k], rtol, rtol_limits, f"{path}.{k}",
+                                                         limits or k == "limits")]
+    if isinstance(a, list) and isinstance(b, list):
+        if len(a) != len(b):
+            return [f"{path}: {len(a)} items against {len(b)}"]
+        return [d for k, (x, y) in enumerate(zip(a, b))
+                for d in result_differences(x, y, rtol, rtol_limits, f"{path}[{k}]", limits)]
+    numbers = (int, float)
+    if isinstance(a, numbers) and isinstance(b, numbers) and not isinstance(a, bool) and not isinstance(b, bool):
+        tol = rtol_limits if limits else rtol
+        if a == b or (math.isfinite(a) and abs(a - b) <= tol * max(abs(a), abs(b))):
+            return []
+        return [f"{path}: {a!r} against {b!r}"]
+    return [] if a == b else [f"{path}: {a!r} against {b!r}"]
+

@@ -3,8 +3,8 @@
 from pathlib import Path
 
 from screening.cautions import ASSUMPTIONS, CAUTION
+from screening.engine import screen_file
 from screening.outputs.summary import format_summary
-from screening.screen import screen_file
 
 ROOT = Path(__file__).resolve().parent.parent
 

@@ -84,7 +84,7 @@ def test_a_fluid_not_added_back_would_differ_so_the_switch_matters():
 
 @pytest.mark.parametrize("case", CASES, ids=[c.stem for c in CASES])
 def test_fresh_check_prints_the_in_process_screening(case):
-    from screening.screen import screen_file
+    from screening.engine import screen_file
 
     done = subprocess.run([sys.executable, "-m", "screening.cli", "check", str(case), "--json"], cwd=ROOT,
                           capture_output=True, text=True)

@@ -364,7 +364,8 @@ def test_quantum_gas_srk_refuses_outside_its_checked_range():
 @pytest.mark.parametrize("gas, fluid, fill", [("hydrogen", "Hydrogen", 700.0), ("hydrogen", "Hydrogen", 200.0),
                                                ("helium", "Helium", 300.0), ("neon", "Neon", 200.0)])
 def test_quantum_gas_cylinder_has_two_real_gas_models(gas, fluid, fill):
-    from screening.screen import MODEL_DISAGREEMENT_WARNING, screen_text
+    from screening.engine import screen_text
+    from screening.screen import MODEL_DISAGREEMENT_WARNING
     text = (f'id = "Q"\n[vessel]\nwater_capacity = "50 L"\nrated_pressure = "1050 bar(g)"\n'
             f'[fill]\ngas = "{gas}"\npressure = "{fill} bar(g)"\ntemperature = "15 degC"\n'
             '[exposure]\ngas_temperature = "65 degC"\n')

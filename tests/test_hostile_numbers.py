@@ -110,8 +110,8 @@ def test_check_json_is_strict_and_finite_for_every_demo_case(capsys):
 
 
 def test_the_json_attached_to_a_report_is_strict(tmp_path):
+    from screening.engine import screen_text
     from screening.outputs.report import result_json
-    from screening.screen import screen_text
 
     result = screen_text(GOOD, "case.toml")
     json.loads(result_json(result), parse_constant=lambda name: pytest.fail(name))
@@ -137,9 +137,9 @@ def test_the_limits_of_each_range_are_accepted(tmp_path, capsys):
 
 
 def test_more_than_twenty_scenarios_is_an_input_error_before_any_screening(tmp_path, capsys, monkeypatch):
-    import screening.screen
+    import screening.engine
 
-    monkeypatch.setattr(screening.screen, "screen_case", lambda *a, **k: pytest.fail("screened"))
+    monkeypatch.setattr(screening.engine, "screen_case", lambda *a, **k: pytest.fail("screened"))
     text = GOOD + "".join(f'[[scenario]]\nname = "s{i}"\nambient_max = "{20 + i % 30} degC"\n' for i in range(1000))
     path = case_file(tmp_path, text)
     code, _, err = cli(capsys, "check", str(path))

@@ -13,10 +13,10 @@ from helpers import nitrogen_case
 from pypdf import PdfReader, PdfWriter
 
 from screening.cli import main
+from screening.engine import screen_text
 from screening.errors import InputError
 from screening.outputs.report import render_report
 from screening.outputs.verify import verify_report
-from screening.screen import screen_text
 
 DATE = dt.date(2026, 12, 1)
 NITROGEN = nitrogen_case("V-N2")

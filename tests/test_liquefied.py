@@ -14,8 +14,8 @@ from chemicals.volume import Rackett
 from scipy.optimize import brentq
 
 from screening.cli import main
+from screening.engine import screen_text
 from screening.physics.gases import lookup
-from screening.screen import screen_text
 
 
 def mass_case(gas, litres, kg, hot, rated="250 bar(g)", extra=""):

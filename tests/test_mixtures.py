@@ -9,10 +9,10 @@ import pytest
 from chemicals import Pc, Tc, omega
 from thermo import PRMIX
 
+from screening.engine import screen_text
 from screening.errors import NotApplicable
 from screening.physics import mixtures as mix
 from screening.physics.eos.reference import reference_fluid
-from screening.screen import screen_text
 
 CASE = '''id = "MIX"
 [vessel]

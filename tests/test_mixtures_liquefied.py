@@ -6,9 +6,9 @@ import CoolProp.CoolProp as CP
 import pytest
 from chemicals import MW
 
+from screening.engine import screen_text
 from screening.inputs.gas_spec import parse_gas
 from screening.physics.eos.reference import liquefied_blend
-from screening.screen import screen_text
 
 CASE = '''id = "LIQ"
 [vessel]

@@ -11,9 +11,9 @@ import threading
 import CoolProp.CoolProp as CP
 import pytest
 
+from screening.engine import screen_text
 from screening.physics import mixtures as mix
 from screening.physics.eos.reference import liquefied_blend, reference_fluid
-from screening.screen import screen_text
 
 CASE = '''id = "MIX"
 [vessel]

@@ -12,9 +12,9 @@ from pathlib import Path
 
 import pytest
 
+from screening.engine import screen_case
 from screening.inputs.case import load_case
 from screening.outputs import plot
-from screening.screen import screen_case
 
 CASES = sorted((Path(__file__).resolve().parent.parent / "cases").glob("*.toml"))
 

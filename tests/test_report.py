@@ -17,12 +17,12 @@ import pytest
 from pypdf import PdfReader, PdfWriter
 
 from screening.cautions import CAUTION, SHORT_CAUTION
+from screening.engine import screen_text
 from screening.errors import InputError
 from screening.outputs import report as report_mod
 from screening.outputs.report import VERDICTS, render_pdf_bytes, render_report, templates_dir
 from screening.outputs.verify import verify_report
 from screening.result import Result
-from screening.screen import screen_text
 from screening.units import format_percent, format_pressure
 from screening.verdicts import Verdict
 

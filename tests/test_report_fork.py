@@ -24,10 +24,10 @@ from pathlib import Path
 import pytest
 
 from screening import cli
+from screening.engine import screen_file
 from screening.errors import InputError
 from screening.outputs.report import render_pdf_bytes, result_json
 from screening.result import Result
-from screening.screen import screen_file
 
 ROOT = Path(__file__).resolve().parents[1]
 CASES = sorted((ROOT / "cases").glob("*.toml"))
@@ -274,9 +274,9 @@ def test_a_case_that_cannot_be_handed_to_the_child_is_screened_by_the_parent(mon
 
 def test_a_fresh_command_forks_and_a_long_lived_caller_does_not(monkeypatch):
     # This test process has loaded the screening core already: forking would only add work.
-    assert "screening.screen" in sys.modules and not cli._worker_helps()
+    assert "screening.engine" in sys.modules and not cli._worker_helps()
     if hasattr(os, "fork"):
-        monkeypatch.delitem(sys.modules, "screening.screen")
+        monkeypatch.delitem(sys.modules, "screening.engine")
         assert cli._worker_helps()
 
 
@@ -286,7 +286,7 @@ def test_the_child_screens_a_read_case_without_the_unit_registry():
     from screening.inputs.case import load_case
 
     code = ("import pickle, sys, json\n"
-            "import screening.screen as s\n"
+            "import screening.engine as s\n"
             "assert 'pint' not in sys.modules\n"
             "result = s.screen_case(pickle.loads(sys.stdin.buffer.read()))\n"
             "assert 'pint' not in sys.modules, 'the screening built the unit registry'\n"

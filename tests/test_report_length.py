@@ -10,10 +10,10 @@ from pathlib import Path
 import pytest
 from pypdf import PdfReader
 
+from screening.engine import screen_case
 from screening.inputs.case import load_case
 from screening.outputs.actions import action_line
 from screening.outputs.report import render_report
-from screening.screen import screen_case
 from screening.verdicts import Verdict
 
 ROOT = Path(__file__).resolve().parent.parent

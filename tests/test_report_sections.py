@@ -14,10 +14,10 @@ import pytest
 from pypdf import PdfReader
 
 from screening.cautions import SHORT_CAUTION
+from screening.engine import screen_text
 from screening.outputs import plot as plot_mod
 from screening.outputs import report as report_mod
 from screening.outputs.report import VERDICTS, build_view, num, render_pdf_bytes, render_report
-from screening.screen import screen_text
 from screening.units import format_percent, format_pressure, format_temperature
 
 DATE = dt.date(2026, 12, 1)

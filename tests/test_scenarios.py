@@ -8,7 +8,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from screening.cli import main
-from screening.screen import screen_text
+from screening.engine import screen_text
 
 ATM = 101325.0
 

@@ -8,7 +8,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from screening.screen import screen_text
+from screening.engine import screen_text
 
 ATM = 101325.0
 BAR = 1e5

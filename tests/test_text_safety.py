@@ -13,11 +13,11 @@ from types import SimpleNamespace
 import pytest
 from pypdf import PdfReader
 
+from screening.engine import screen_case
 from screening.inputs.case import load_case, parse_case_text
 from screening.outputs import report as report_mod
 from screening.outputs.summary import format_summary
 from screening.outputs.text import percent_pair, pressure_unit, reasons_shown, shorten, visible
-from screening.screen import screen_case
 
 ROOT = Path(__file__).resolve().parent.parent
 DATE = dt.date(2026, 12, 3)

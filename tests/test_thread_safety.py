@@ -10,7 +10,7 @@ import sys
 import threading
 from pathlib import Path
 
-from screening.screen import screen_text
+from screening.engine import screen_text
 
 sys.path.insert(0, str(Path(__file__).resolve().parent / "golden"))
 import make_golden as mg  # noqa: E402

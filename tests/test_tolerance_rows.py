@@ -1,16 +1,16 @@
 """Rows with input tolerances, several exposure scenarios or the sun's energy balance on the batch's array path:
 the same answers as the single-case screening, and the reference peaks against CoolProp."""
 
-import math
 import random
 
 import CoolProp.CoolProp as CP
 import pytest
+from helpers import result_differences
 
-from screening import vector
+from screening import engine
 from screening.inputs.case import parse_case_data
 from screening.result import Result
-from screening.screen import P_TOL, screen_case
+from screening.screen import P_TOL, screen_states
 from screening.verdicts import Verdict
 
 
@@ -21,14 +21,10 @@ def _as_json(r):
 GASES = ["nitrogen", "argon", "oxygen", "air", "methane", "hydrogen", "helium", "neon"]
 FINISHES = ["white_paint", "aluminium_paint", "red_paint", "black_paint"]
 
-#: Numbers are compared at 1e-9 relative and limits at 2e-9, as the golden corpus compares them. The fill-mass
-#: limit is the exception: screen._mass_limit stops its Brent solve at 1e-9 of the top of its density range,
-#: while the array path takes the density at the target pressure from the pressure-temperature flash; the two
-#: differ by a few 1e-9 on the plain array rows as well.
+#: Numbers are compared at 1e-9 relative and limits at 2e-9, as the golden corpus compares them (the fill-mass
+#: limit too: the state-by-state solve stops at P_TOL of the root, not of its density range).
 RTOL = 1e-9
 RTOL_LIMITS = 2 * P_TOL
-RTOL_MASS_LIMIT = 1e-8
-MASS_LIMIT_KEYS = {"max_fill_mass_kg", "max_filling_ratio_kg_per_l"}
 
 
 def _case(rnd: random.Random, i: int) -> dict:
@@ -65,23 +61,8 @@ def _case(rnd: random.Random, i: int) -> dict:
     return d
 
 
-def _differences(a, b, path="", limits=False) -> list[str]:
-    """Where b differs from a: keys, texts, flags, list lengths, and numbers beyond the tolerances above."""
-    if isinstance(a, dict) and isinstance(b, dict):
-        if list(a) != list(b):
-            return [f"{path}: keys {sorted(set(a) ^ set(b))} or their order"]
-        return [d for k in a for d in _differences(a[k], b[k], f"{path}.{k}", limits or k == "limits")]
-    if isinstance(a, list) and isinstance(b, list):
-        if len(a) != len(b):
-            return [f"{path}: {len(a)} items against {len(b)}"]
-        return [d for k, (x, y) in enumerate(zip(a, b)) for d in _differences(x, y, f"{path}[{k}]", limits)]
-    numbers = (int, float)
-    if isinstance(a, numbers) and isinstance(b, numbers) and not isinstance(a, bool) and not isinstance(b, bool):
-        rtol = (RTOL_MASS_LIMIT if path.rsplit(".", 1)[-1] in MASS_LIMIT_KEYS else RTOL_LIMITS) if limits else RTOL
-        if a == b or (math.isfinite(a) and abs(a - b) <= rtol * max(abs(a), abs(b))):
-            return []
-        return [f"{path}: {a!r} against {b!r}"]
-    return [] if a == b else [f"{path}: {a!r} against {b!r}"]
+def _differences(a, b) -> list[str]:
+    return result_differences(a, b, RTOL, RTOL_LIMITS)
 
 
 def test_rows_with_tolerances_scenarios_and_sun_equal_the_single_case_screening():
@@ -89,11 +70,11 @@ def test_rows_with_tolerances_scenarios_and_sun_equal_the_single_case_screening(
     # some with a stated gas temperature), with and without tolerances
     rnd = random.Random(20261203)
     cases = [parse_case_data(_case(rnd, i), "t.csv", "x") for i in range(90)]
-    got = [_as_json(r) for r in vector.screen_cases(cases)]
-    assert vector.STATS["vectorised"] >= 70           # the array path takes them (not the per-row fallback)
+    got = [_as_json(r) for r in engine.screen_cases(cases)]
+    assert engine.STATS["vectorised"] >= 70           # the array path takes them (not the per-row fallback)
     verdicts = set()
     for c, r in zip(cases, got):
-        s = screen_case(c, curves=False).to_json()
+        s = screen_states(c, curves=False).to_json()
         assert r["verdict"] == s["verdict"], c.id
         assert r["reasons"] == s["reasons"], c.id
         assert r["warnings"] == s["warnings"], c.id
@@ -113,8 +94,8 @@ def test_tolerance_block_on_the_array_path_matches_coolprop_at_its_states():
                                                                     "gas_temperature": "65 degC"}],
          "tolerance": {"fill_pressure": "5 bar", "fill_temperature": "2 K", "gas_temperature": "3 K"}}
     case = parse_case_data(d, "t.csv", "x")
-    r = _as_json(vector.screen_cases([case])[0])
-    assert vector.STATS["vectorised"] == 1
+    r = _as_json(engine.screen_cases([case])[0])
+    assert engine.STATS["vectorised"] == 1
     assert r["governing_scenario"] == "van"
     tol = r["tolerance"]
     p, tf, tg = 200e5 + 101325.0, 288.15, 338.15

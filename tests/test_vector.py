@@ -6,9 +6,9 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from screening import vector
+from screening import engine
 from screening.inputs.case import parse_case_data
-from screening.screen import P_TOL, screen_case
+from screening.screen import P_TOL, screen_states
 
 GASES = ["nitrogen", "argon", "methane", "oxygen", "air", "hydrogen", "helium"]
 NUMBERS = ("peak_pressure_pa", "margin_fraction", "relief_margin_fraction")
@@ -49,9 +49,9 @@ rows = st.lists(st.tuples(st.sampled_from(GASES), st.floats(1, 80), st.floats(15
 def test_batch_rows_equal_the_single_case_screening(items):
     # a few hundred random rows over the examples, on both the vectorised and the per-row path
     cases = [parse_case_data(data(*it), "t.csv", "x") for it in items]
-    got = [r.to_json() for r in vector.screen_cases(cases)]
+    got = [r.to_json() for r in engine.screen_cases(cases)]
     for c, r in zip(cases, got):
-        s = screen_case(c).to_json()
+        s = screen_states(c).to_json()
         assert set(r) == set(s)
         assert set(r["limits"]) == set(s["limits"])
         assert r["verdict"] == s["verdict"]
@@ -68,8 +68,8 @@ def test_vectorised_reference_peak_matches_coolprop_propssi():
     # Span et al. (2000) nitrogen and Tegeler et al. (1999) argon EOS through CoolProp's PropsSI
     items = [("nitrogen", 50, 300, 200, 15, 45, 65), ("argon", 50, 300, 200, 15, 45, 60)]
     cases = [parse_case_data(data(*it), "t.csv", "x") for it in items]
-    got = [r.to_json() for r in vector.screen_cases(cases)]
-    assert vector.STATS["vectorised"] == 2
+    got = [r.to_json() for r in engine.screen_cases(cases)]
+    assert engine.STATS["vectorised"] == 2
     for (gas, _c, _r, p, t, _a, hot), r in zip(items, got):
         fluid = {"nitrogen": "Nitrogen", "argon": "Argon"}[gas]
         d = CP.PropsSI("Dmolar", "P", p * 1e5 + 101325.0, "T", t + 273.15, fluid)
@@ -80,10 +80,10 @@ def test_vectorised_reference_peak_matches_coolprop_propssi():
 def test_rows_outside_the_vectorised_path_go_per_row():
     items = [("carbon dioxide", 50, 250, 50, 15, 45, 55), ("argon 82% + carbon dioxide 18%", 20, 300, 200, 15, 45, 70)]
     cases = [parse_case_data(data(*it), "t.csv", "x") for it in items]
-    assert not any(vector.vectorisable(c) for c in cases)
-    got = [r.to_json() for r in vector.screen_cases(cases)]
+    assert not any(engine.vectorisable(c) for c in cases)
+    got = [r.to_json() for r in engine.screen_cases(cases)]
     for c, r in zip(cases, got):
-        s = screen_case(c).to_json()
+        s = screen_states(c).to_json()
         assert r["verdict"] == s["verdict"] and close(r["peak_pressure_pa"], s["peak_pressure_pa"], 0.0)
 
 
@@ -92,10 +92,10 @@ def test_dense_supercritical_methane_fill_stays_on_the_vectorised_path_with_its_
     # curve below the critical temperature (the liquid-full point), which both paths report alike
     items = [("methane", 50, 300, 250, 5, 45, None), ("methane", 50, 300, 150, 25, 45, None)]
     cases = [parse_case_data(data(*it), "t.csv", "x") for it in items]
-    got = [r.to_json() for r in vector.screen_cases(cases)]
-    assert vector.STATS["vectorised"] == 2
+    got = [r.to_json() for r in engine.screen_cases(cases)]
+    assert engine.STATS["vectorised"] == 2
     for c, r in zip(cases, got):
-        s = screen_case(c).to_json()
+        s = screen_states(c).to_json()
         for k in LIMITS + ("liquid_full_temperature_k", "dp_dt_after_liquid_full_pa_k"):
             assert close(r["limits"].get(k), s["limits"].get(k), LIMIT_RTOL), (k, r["limits"].get(k), s["limits"].get(k))
     assert got[0]["limits"]["liquid_full_temperature_k"] is not None and got[0]["limits"]["dry_out_temperature_k"] is None
@@ -113,9 +113,9 @@ def test_forked_workers_give_the_same_columns_as_one_process():
     by_gas = {}
     for c in cases:
         by_gas.setdefault(c.gas.name, []).append(c)
-    parts = [vector.Rows.of_cases(cs) for cs in by_gas.values()]
-    one = [vector._columns(p) for p in parts]
-    forked = parallel.map_rows(vector._columns, parts, min_rows=0)
+    parts = [engine.Rows.of_cases(cs) for cs in by_gas.values()]
+    one = [engine._columns(p) for p in parts]
+    forked = parallel.map_rows(engine._columns, parts, min_rows=0)
     for a, b in zip(one, forked):
         assert set(a) == set(b)
         for k in a:
@@ -128,10 +128,10 @@ def test_a_limit_at_the_edge_of_the_lee_kesler_range_is_settled_as_the_single_sc
     items = [("nitrogen", 50, 300, 150, 25, 45, None), ("nitrogen", 50, 300, 140, 30, 45, None),
              ("nitrogen", 50, 250, 120, 20, 40, None)]
     cases = [parse_case_data(data(*it), "t.csv", "x") for it in items]
-    got = [r.to_json() for r in vector.screen_cases(cases)]
-    assert vector.STATS["vectorised"] == 3
+    got = [r.to_json() for r in engine.screen_cases(cases)]
+    assert engine.STATS["vectorised"] == 3
     for c, r in zip(cases, got):
-        s = screen_case(c).to_json()
+        s = screen_states(c).to_json()
         for k in LIMITS:
             assert close(r["limits"].get(k), s["limits"].get(k), LIMIT_RTOL), (k, r["limits"].get(k), s["limits"].get(k))
 
@@ -156,7 +156,7 @@ def test_inventory_rows_read_by_column_give_the_single_case_results(tmp_path_fac
     inv = read_inventory(path)
     run = BatchRun(inv)
     for i, (n, cells) in enumerate(inv.rows):
-        s = screen_case(row_case(inv, n, cells, None)).to_json()
+        s = screen_states(row_case(inv, n, cells, None)).to_json()
         slim, full = run.results[i], run.full(i).to_json()
         assert full["row"] == slim["row"] == n
         assert set(full) - {"row"} == set(s)

@@ -7,11 +7,11 @@ import CoolProp.CoolProp as CP
 import numpy as np
 import pytest
 
-from screening import vector
+from screening import engine
 from screening.cli import run
 from screening.inputs.case import parse_case_data
 from screening.result import Result
-from screening.screen import P_TOL, screen_case
+from screening.screen import P_TOL, screen_states
 
 
 def _as_json(r):
@@ -78,12 +78,12 @@ def random_row(rnd, i):
 def test_liquefied_rows_by_mass_and_by_pressure_equal_the_single_case_screening():
     rnd = random.Random(20261203)
     cases = [parse_case_data(random_row(rnd, i), "t.csv", "x") for i in range(300)]
-    got = [_as_json(r) for r in vector.screen_cases(cases)]
-    on_array_path = sum(vector.liquefied_vectorisable(c) for c in cases) - vector.STATS["per_row"]
+    got = [_as_json(r) for r in engine.screen_cases(cases)]
+    on_array_path = sum(engine.liquefied_vectorisable(c) for c in cases) - engine.STATS["per_row"]
     assert on_array_path > 150
     for c, r in zip(cases, got):
         try:
-            s = screen_case(c, curves=False).to_json()
+            s = screen_states(c, curves=False).to_json()
         except ValueError:            # a mass fill denser than the liquid at the triple point
             assert r["verdict"] == "input-error"
             continue
@@ -98,9 +98,9 @@ def test_two_phase_mass_fill_peaks_at_the_vapour_pressure_on_the_array_path():
          "fill": {"gas": "carbon dioxide", "mass": "20 kg", "temperature": "15 degC"},
          "exposure": {"ambient_max": "25 degC"}}
     case = parse_case_data(d, "t.csv", "x")
-    assert vector.liquefied_vectorisable(case)
-    r = _as_json(vector.screen_cases([case])[0])
-    assert vector.STATS["vectorised"] == 1
+    assert engine.liquefied_vectorisable(case)
+    r = _as_json(engine.screen_cases([case])[0])
+    assert engine.STATS["vectorised"] == 1
     psat = CP.PropsSI("P", "T", 298.15, "Q", 0, "CO2")
     assert r["peak_pressure_pa"] == pytest.approx(psat, rel=1e-7)
     assert r["models"]["reference"]["phase_peak"] == "two-phase" and r["governing_model"] == "reference"
@@ -116,10 +116,10 @@ def test_liquid_fill_by_pressure_near_saturation_is_refused_on_the_array_path_as
          "fill": {"gas": "propane", "pressure": f"{(psat - ATM) / 1e5:.3f} bar(g)", "temperature": "15 degC"},
          "exposure": {"ambient_max": "40 degC"}}
     case = parse_case_data(d, "t.csv", "x")
-    r = _as_json(vector.screen_cases([case])[0])
-    assert vector.STATS["vectorised"] == 1
+    r = _as_json(engine.screen_cases([case])[0])
+    assert engine.STATS["vectorised"] == 1
     assert r["verdict"] == "out-of-scope" and r["warnings"][-1]["code"] == "near-saturation"
-    assert differences(r, screen_case(case, curves=False).to_json()) == []
+    assert differences(r, screen_states(case, curves=False).to_json()) == []
 
 
 def test_liquefied_batch_outputs_are_the_same_whatever_the_number_of_workers(tmp_path, monkeypatch):

@@ -12,12 +12,12 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
+from screening.engine import screen_text
 from screening.screen import (
     CRITICAL_BAND_FRACTION,
     SATURATION_BAND_FRACTION,
     percent_pair,
-    screen_case,
-    screen_text,
+    screen_states,
 )
 
 ATM = 101325.0
@@ -255,7 +255,7 @@ def test_batch_rows_with_a_cold_worst_case_get_the_single_case_verdict_and_limit
     inv = read_inventory(path)
     run = BatchRun(inv)
     for i, (n, cells) in enumerate(inv.rows):
-        single = screen_case(row_case(inv, n, cells, None), curves=False).to_json()
+        single = screen_states(row_case(inv, n, cells, None), curves=False).to_json()
         full = run.full(i).to_json()
         assert full["verdict"] == single["verdict"] and full["reasons"] == single["reasons"]
         assert full["warnings"] == single["warnings"] and full["worst_case_basis"] == single["worst_case_basis"]

@@ -14,8 +14,8 @@ from pypdf import PdfReader, PdfWriter
 import screening
 from screening.batch import run as run_batch
 from screening.cli import main
+from screening.engine import screen_text
 from screening.outputs.verify import verify_report
-from screening.screen import screen_text
 
 DATE = "2026-12-01"
 # three vessels: nitrogen well inside its rating, nitrogen filled to its rating (heated: over), and a row

@@ -89,7 +89,7 @@ def test_a_nitrogen_cylinder_gets_its_verdict_in_words_and_the_reference_peak_of
 
 
 def test_downloads_carry_the_case_text_and_the_engine_result(client):
-    from screening.screen import screen_text
+    from screening.engine import screen_text
 
     page = client.post("/vessel", data=N2).text
     token = _token(page)
@@ -330,8 +330,8 @@ def test_a_case_with_a_pressure_basis_fills_the_form_with_explicit_units():
 
 @pytest.mark.parametrize("path", sorted((ROOT / "cases").glob("*.toml")), ids=lambda p: p.name)
 def test_every_demo_case_gets_its_engine_verdict_on_the_page(client, path):
+    from screening.engine import screen_text
     from screening.outputs.report import VERDICTS
-    from screening.screen import screen_text
 
     text = path.read_text(encoding="utf-8")
     page = client.post("/vessel/upload", files={"case_file": (path.name, text.encode(), "application/toml")})

@@ -304,7 +304,7 @@ def verify_report(pdf_path: str | Path, *, run_batch: Callable[[object], int] | 
     case_name, case_text, attached, notes = _case_and_result(pdf, pdf_path)
 
     from screening import __version__
-    from screening.screen import screen_text
+    from screening.engine import screen_text
 
     source = attached.get("source") if isinstance(attached.get("source"), str) else case_name
     fresh = screen_text(case_text, source)

@@ -37,7 +37,7 @@ def warm() -> float:
     `screening.web.warmed`); return the seconds taken."""
     t0 = time.perf_counter()
     import screening.batch  # noqa: F401
-    import screening.vector  # noqa: F401
+    import screening.engine  # noqa: F401
 
     answer(WARM_CASE, "warm-up.toml")
     return time.perf_counter() - t0
@@ -60,8 +60,8 @@ def _svg_of(uri: str | None) -> str | None:
 
 def answer(text: str, source: str) -> dict:
     """One vessel: {"result", "view", "plot_svg", "phase_svg", "seconds"} or {"error": InputError}."""
+    from screening.engine import screen_text
     from screening.outputs.report import build_view
-    from screening.screen import screen_text
 
     t0 = time.perf_counter()
     try:

@@ -309,8 +309,8 @@ def _as_cli_json(result) -> object:
 
 def screen_text_entry(name: str, text: str) -> dict:
     """{"result": ...} or {"error": "Type: message"} for one case text."""
+    from screening.engine import screen_text
     from screening.errors import InputError
-    from screening.screen import screen_text
 
     try:
         return {"result": _as_cli_json(screen_text(text, source=name))}
@@ -319,8 +319,8 @@ def screen_text_entry(name: str, text: str) -> dict:
 
 
 def screen_demo_entry(path: Path) -> dict:
+    from screening.engine import screen_file
     from screening.errors import InputError
-    from screening.screen import screen_file
 
     try:
         return {"result": _as_cli_json(screen_file(path.relative_to(ROOT)))}

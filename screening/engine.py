@@ -1,4 +1,7 @@
-"""Screen many vessels at once: the batch engine.
+"""The screening engine: a table of cases in, one typed Result per case out (:func:`screen_cases`). One vessel is
+a table of one row (:func:`screen_case`); the batch, the terminal summary, JSON, CSV, both PDFs, `verify` and the
+web page all consume its Result. Plot data are added by :func:`with_plot_data` (screen.plot_data) for the views
+that draw them.
 
 Rows are grouped by gas. For a pure permanent gas filled by pressure, with one exposure (in the sun or
 not) and no tolerances, both temperatures above the critical temperature (the "vectorised path"):
@@ -32,22 +35,21 @@ dome crossings, the liquid-full rule, the ideal and generalized models where the
 and the limits, each root as screen._root finds it; the verdict through the same rules of screen.py
 (:func:`_liquefied_verdict`).
 
-Everything else goes through :func:`screening.screen.screen_case` one row at a time, on purpose: dissolved gases
+Everything else takes the state-by-state route, :func:`screening.screen.screen_states`, one row at a time, on purpose: dissolved gases
 and mixtures (their phase is checked per row by two routes, see physics.mixtures), permanent-gas fills by mass,
 fills of a permanent gas near its critical temperature, liquefied gases with tolerances or several scenarios, a
 permanent-gas row any of whose scenario or tolerance states falls outside this path, and any row where a
 vectorised step is not sure of itself (a root next to the edge of a model's range, a solve that did not
-settle, a state the reference equation refuses). Those rows give exactly the single-case result.
-
-The result of a row has the keys of ``screen_case``; its numbers agree with it to the solve tolerance
-(about 1e-9 relative; ``screen_case`` stops its limit solves there). ``curves`` and ``phase_diagram`` are None
-(plot data): the batch report computes curves only for the rows it details.
+settle, a state the reference equation refuses). Both routes give the same result: the
+same keys, and numbers that agree to the solve tolerance (about 1e-9 relative; the state-by-state route stops its
+limit solves there). ``curves`` and ``phase_diagram`` are None until :func:`with_plot_data` adds them.
 """
 
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+import threading
+from dataclasses import dataclass, replace
 from typing import Callable, Iterable
 
 import numpy as np
@@ -55,7 +57,7 @@ import numpy as np
 from screening import screen as _screen
 from screening.constants import R
 from screening.errors import InputError, NotApplicable
-from screening.inputs.case import Case
+from screening.inputs.case import Case, load_case, parse_case_text
 from screening.inputs.columns import PlainRows
 from screening.physics.eos.generalized import (
     GENERALIZED_FIELDS,
@@ -69,7 +71,7 @@ from screening.physics.eos.generalized import (
 from screening.physics.eos.reference import ReferenceFluid, reference_fluid
 from screening.physics.gases import Mixture
 from screening.physics.isochore import LIQUID_FULL_STEP
-from screening.result import Curves, Result
+from screening.result import Curves, PhaseDiagram, Result
 
 #: Number of scan points screen._limits uses (kept equal so the bracket checks agree).
 _SCAN_N = 40
@@ -934,7 +936,7 @@ def _generalized_model(cols: dict, k: int, gas: Mixture) -> dict:
 
 
 def _assemble(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> Result:
-    """One row's result, laid out as screen.screen_case lays out a single-scenario result."""
+    """One row's result, laid out as screen.screen_states lays out a single-scenario result."""
     return Result.from_json(_row_dict(case, cols, k, v, sun))
 
 
@@ -1106,7 +1108,7 @@ def _drive(gas: Mixture, steps: dict) -> dict:
 def _screen_expanded(cases: list[Case]) -> list[Result | None]:
     """Rows of one pure permanent gas with input tolerances and/or several scenarios, on the arrays: every
     scenario a row of the table, every tolerance corner (and the states of its sensitivities) an extra row; the
-    rows folded back into one result per vessel as screen.screen_case gives it (tolerance block, scenarios, the
+    rows folded back into one result per vessel as screen.screen_states gives it (tolerance block, scenarios, the
     governing scenario by screen.fold_scenarios). None where a row must go per row (a row of its table fell
     back, or its worst case raises)."""
     out: list[Result | None] = [None] * len(cases)
@@ -1166,13 +1168,36 @@ def _screen_expanded(cases: list[Case]) -> list[Result | None]:
 
 # ----------------------------------------------------------------------------- the batch
 
-#: Rows of the last screen_cases call on each path (for the batch summary and the tests).
-STATS = {"vectorised": 0, "per_row": 0}
+class _RouteCounts:
+    """Rows of the calling thread's last :func:`screen_cases` call on each route ("vectorised": the columns,
+    "per_row": state by state), for the tests and benchmarks; per thread, so that concurrent requests of the
+    web page never see each other's counts."""
+
+    def __init__(self) -> None:
+        self._local = threading.local()
+
+    def set(self, vectorised: int, per_row: int) -> None:
+        self._local.counts = {"vectorised": vectorised, "per_row": per_row}
+
+    def _counts(self) -> dict:
+        return getattr(self._local, "counts", {"vectorised": 0, "per_row": 0})
+
+    def __getitem__(self, key: str) -> int:
+        return self._counts()[key]
+
+    def __eq__(self, other: object) -> bool:
+        return self._counts() == other
+
+    def __repr__(self) -> str:
+        return repr(self._counts())
+
+
+STATS = _RouteCounts()
 
 
 def single(case: Case) -> Result:
-    """One row through the per-row path (screen.screen_case) without plot data, as on the vectorised path."""
-    return _screen.screen_case(case, curves=False)
+    """One row through the state-by-state route (screen.screen_states), without plot data."""
+    return _screen.screen_states(case, curves=False)
 
 
 def _vector_gas(gas: Mixture) -> bool:
@@ -1235,8 +1260,7 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
                 done += 1
         if progress:
             progress(done)
-    STATS["vectorised"] = len(cases) - len(rest)
-    STATS["per_row"] = len(rest)
+    STATS.set(len(cases) - len(rest), len(rest))
     for i in sorted(rest):
         try:
             results[i] = single(cases[i])
@@ -1245,6 +1269,35 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
         if progress:
             progress(1)
     return results  # type: ignore[return-value]
+
+
+def screen_case(case: Case, *, curves: bool = True) -> Result:
+    """Screen one vessel: the engine on a table of one row (:func:`screen_cases`). The governing scenario's
+    result (SI, pressures absolute; `Result.to_json()` is the JSON layout) with every scenario side by side.
+    `curves`: add the plot data (:func:`with_plot_data`). Raises InputError where the case cannot be screened
+    (e.g. a fill denser than any liquid)."""
+    r = screen_cases([case])[0]
+    if not isinstance(r, Result):
+        raise r["error"]
+    return with_plot_data(case, r) if curves else r
+
+
+def with_plot_data(case: Case, r: Result) -> Result:
+    """`r` with its curves and phase diagram (:func:`screening.screen.plot_data`, the one place they are
+    computed), for the views that draw them."""
+    c, pd = _screen.plot_data(case, r)
+    return replace(r, curves=Curves.from_json(c) if c is not None else None,
+                   phase_diagram=PhaseDiagram.from_json(pd) if pd is not None else None)
+
+
+def screen_text(text: str, source: str = "<case>") -> Result:
+    """Parse a TOML case text and screen it. Raises InputError on bad input."""
+    return screen_case(parse_case_text(text, source))
+
+
+def screen_file(path) -> Result:
+    """Read a case file and screen it. Raises InputError on bad input."""
+    return screen_case(load_case(path))
 
 
 def slim(r: Result) -> dict:
@@ -1338,28 +1391,6 @@ class PlainScreening:
 def iter_chunks(items: list, size: int) -> Iterable[list]:
     for k in range(0, len(items), size):
         yield items[k:k + size]
-
-
-def curves(r: Result) -> Curves:
-    """Isochore curves of a row's full result, on the single screening's grid
-    (`screen.curve_temperatures`): what a view draws for a row the vectorised path screened, whose
-    result carries no curves."""
-    grid = _screen.curve_temperatures(r.fill.temperature_k, r.worst_case_temperature_k,
-                                      {"max_gas_temperature_k": r.limits.max_gas_temperature_k})
-    ide, gen, ref = r.models["ideal"], r.models["generalized"], r.models["reference"]
-    ideal = (tuple(float(ide.fill_molar_density_mol_m3 * R * t) for t in grid) if ide.applicable else None)
-    generalized = None
-    if gen.applicable and not gen.quantum_correction and not gen.mixing_rule:
-        s = lee_kesler_pressure(gen.fill_molar_density_mol_m3, grid, gen.pseudocritical_temperature_k,
-                                gen.pseudocritical_pressure_pa, gen.acentric_factor)
-        generalized = tuple(float(p) if v else None for p, v in zip(s.pressure, s.valid))
-    reference = None
-    comps = r.gas.components
-    if ref.applicable and len(comps) == 1 and comps[0].coolprop_name:
-        fluid = reference_fluid((comps[0].coolprop_name,), (1.0,))
-        p, v, _ = fluid.pressures(np.full(grid.shape, ref.fill_molar_density_mol_m3), grid)
-        reference = tuple(float(x) if ok else None for x, ok in zip(p, v))
-    return Curves(tuple(float(t) for t in grid), ideal, generalized, reference)
 
 
 # ----------------------------------------------------------------------------- liquefied gases
@@ -1915,7 +1946,7 @@ def _liquefied_plain_columns(part: PlainPart) -> dict:
 
 
 def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:
-    """One liquefied-gas row's result dict, laid out as screen.screen_case lays out a single-scenario result."""
+    """One liquefied-gas row's result dict, laid out as screen.screen_states lays out a single-scenario result."""
     gas = case.gas
     fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
     atm = case.site.atmospheric_pressure_pa
