@@ -183,12 +183,12 @@ def test_liquefied_rows_at_the_reference_range_edges_stay_on_the_arrays_with_the
 
     inv = read_inventory(_edge_inventory(tmp_path / "inv.csv", gas, cp, 60, seed=sum(gas.encode())))
     cases = [row_case(inv, n, cells, None) for n, cells in inv.rows]
-    singles = [screen_case(c, curves=False).to_json() for c in cases]
+    singles = [screen_states(c, curves=False).to_json() for c in cases]
     # both array layouts: cases (screen_cases) and the batch's plain rows (PlainScreening)
-    got = [_as_json(r) for r in vector.screen_cases(cases)]
-    assert vector.STATS["per_row"] == 0
+    got = [_as_json(r) for r in engine.screen_cases(cases)]
+    assert engine.STATS["per_row"] == 0
     plain = read_plain(inv, None)
-    screening = vector.PlainScreening(plain)
+    screening = engine.PlainScreening(plain)
     assert screening.per_row == 0 and len(plain) == len(cases)
     for j, pos in enumerate(plain.index):
         s = singles[int(pos)]
@@ -210,12 +210,12 @@ def test_liquid_heated_past_the_reference_range_is_out_of_scope_on_the_array_pat
     case = parse_case_data(d, "t.csv", "x")
     rho = CP.PropsSI("Dmass", "P", 2e5 + ATM, "T", 270.15, "n-Butane")
     assert CP.PropsSI("P", "Dmass", rho, "T", 318.15, "n-Butane") > CP.PropsSI("pmax", "n-Butane")
-    r = _as_json(vector.screen_cases([case])[0])
-    assert vector.STATS["vectorised"] == 1
+    r = _as_json(engine.screen_cases([case])[0])
+    assert engine.STATS["vectorised"] == 1
     assert r["verdict"] == "out-of-scope" and r["peak_pressure_pa"] is None
     assert r["fill"]["density_kg_m3"] == pytest.approx(rho, rel=1e-9)
     assert not any(m["applicable"] for m in r["models"].values())
-    assert differences(r, screen_case(case, curves=False).to_json()) == []
+    assert differences(r, screen_states(case, curves=False).to_json()) == []
 
 
 def test_no_fill_pressure_limit_where_the_target_density_is_two_phase_at_the_fill_temperature():
@@ -230,11 +230,11 @@ def test_no_fill_pressure_limit_where_the_target_density_is_two_phase_at_the_fil
     rho_target = CP.PropsSI("Dmass", "P", target, "T", 333.15, "Chlorine")
     assert (CP.PropsSI("Dmass", "T", 273.15, "Q", 1, "Chlorine") < rho_target
             < CP.PropsSI("Dmass", "T", 273.15, "Q", 0, "Chlorine"))
-    r = _as_json(vector.screen_cases([case])[0])
-    assert vector.STATS["vectorised"] == 1
+    r = _as_json(engine.screen_cases([case])[0])
+    assert engine.STATS["vectorised"] == 1
     assert r["fill"]["phase"] == "gas" and r["limits"]["target_peak_pressure_pa"] == pytest.approx(target, rel=1e-12)
     assert r["limits"]["max_fill_pressure_pa"] is None
-    assert differences(r, screen_case(case, curves=False).to_json()) == []
+    assert differences(r, screen_states(case, curves=False).to_json()) == []
 
 
 def test_inventory_rows_by_mass_are_read_as_columns_with_the_single_case_answers(tmp_path):
@@ -255,11 +255,11 @@ def test_inventory_rows_by_mass_are_read_as_columns_with_the_single_case_answers
     inv = read_inventory(path)
     plain = read_plain(inv, None)
     assert len(plain) == 60
-    screening = vector.PlainScreening(plain)
+    screening = engine.PlainScreening(plain)
     errors = 0
     for j, pos in enumerate(plain.index):
         try:
-            s = screen_case(row_case(inv, *inv.rows[int(pos)], None), curves=False)
+            s = screen_states(row_case(inv, *inv.rows[int(pos)], None), curves=False)
         except ValueError:            # a mass fill denser than the liquid at the triple point
             assert screening.summaries[j]["verdict"] == "input-error"
             errors += 1
@@ -280,11 +280,11 @@ def test_liquefied_columns_split_over_forked_workers_equal_one_process(tmp_path,
     inv = read_inventory(_edge_inventory(tmp_path / "inv.csv", "chlorine", "Chlorine", 40, seed=3))
     plain = read_plain(inv, None)
     idx = np.arange(len(plain))
-    part = vector.PlainPart(plain.gases[0], *(a[idx] for a in (
+    part = engine.PlainPart(plain.gases[0], *(a[idx] for a in (
         plain.fill_pressure_pa, plain.fill_temperature_k, plain.ambient_max_k, plain.gas_temperature_k, plain.rated_pa,
         plain.atmospheric_pa, plain.required_margin, plain.relief_pa, plain.max_filling_ratio_kg_m3)))
-    one = vector._plain_columns(part)
-    (forked,) = parallel.map_rows(vector._plain_columns, [part], min_rows=0)
+    one = engine._plain_columns(part)
+    (forked,) = parallel.map_rows(engine._plain_columns, [part], min_rows=0)
     assert set(one) == set(forked) and forked["kind"] == "liquefied"
     for k in one:
         assert list(map(str, np.atleast_1d(one[k]))) == list(map(str, np.atleast_1d(forked[k]))), k
@@ -299,11 +299,11 @@ def test_liquid_fill_temperature_limit_found_below_the_reference_range_edge_on_t
          "fill": {"gas": "n-butane", "pressure": "3 bar(g)", "temperature": "15 degC"},
          "exposure": {"ambient_max": "20 degC"}}
     case = parse_case_data(d, "t.csv", "x")
-    r = _as_json(vector.screen_cases([case])[0])
-    assert vector.STATS["vectorised"] == 1
+    r = _as_json(engine.screen_cases([case])[0])
+    assert engine.STATS["vectorised"] == 1
     rho = CP.PropsSI("Dmass", "P", 3e5 + ATM, "T", 288.15, "n-Butane")
     assert CP.PropsSI("P", "Dmass", rho, "T", 400.0, "n-Butane") > CP.PropsSI("pmax", "n-Butane")
     t_max = r["limits"]["max_gas_temperature_k"]
     assert 293.15 < t_max < 310.0
     assert CP.PropsSI("P", "Dmass", rho, "T", t_max, "n-Butane") == pytest.approx(80e5 + ATM, rel=1e-7)
-    assert differences(r, screen_case(case, curves=False).to_json()) == []
+    assert differences(r, screen_states(case, curves=False).to_json()) == []
