@@ -440,8 +440,65 @@ def _monotone_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.nda
     return out
 
 
+def _scan_up(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np.ndarray, lo: np.ndarray, mid: np.ndarray,
+             f_mid: np.ndarray, hi: np.ndarray, n: int = _SCAN_N) -> np.ndarray:
+    """Per row, the root screen._root's scan of np.linspace(lo, hi, n) finds (NaN: none) for an increasing
+    f(x, rows) with f(mid) = f_mid < 0 (lo <= mid < hi) that can be evaluated from lo up to some point and nowhere
+    above it (a reference isochore: the equation's temperature range and highest pressure). The scan's intervals
+    below mid then hold no sign change, so only the scan points above mid are evaluated, in turn, until f >= 0
+    (the root lies between the last point below zero and that one: Illinois, to _SECANT_RTOL) or f cannot be
+    evaluated (the scan meets no sign change it can bracket: none)."""
+    m = rows.size
+    root = np.full(m, np.nan)
+    if m == 0:
+        return root
+    step = (hi - lo) / (n - 1)
+    _a, b = _linspace_bracket(lo, hi, mid, n)
+    k = np.rint((b - lo) / step)                  # the index of the first scan point above mid
+    x0, f0 = np.array(mid, dtype=float), np.array(f_mid, dtype=float)
+    x1, f1 = np.full(m, np.nan), np.full(m, np.nan)
+    live = np.flatnonzero(b > mid)
+    while live.size:
+        x = np.where(k[live] >= n - 1, hi[live], k[live] * step[live] + lo[live])
+        fx = f(x, rows[live])
+        below = np.isfinite(fx) & (fx < 0.0)
+        found = np.isfinite(fx) & (fx >= 0.0)
+        x1[live[found]], f1[live[found]] = x[found], fx[found]
+        x0[live[below]], f0[live[below]] = x[below], fx[below]
+        k[live] += 1
+        live = live[below & (k[live] <= n - 1)]
+    zero = f1 == 0.0
+    root[zero] = x1[zero]
+    go = np.flatnonzero(np.isfinite(f1) & ~zero)
+    if go.size:
+        root[go] = _illinois(f, x0[go], x1[go], f0[go], f1[go], rows[go])
+    return root
+
+
+def _upward_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray, mid: np.ndarray,
+                 hi: np.ndarray) -> np.ndarray:
+    """Per row, what :func:`_monotone_root` finds (the root screen._root finds, NaN: none) for an increasing
+    f(x, rows) on [lo, hi] that, where it can be evaluated at mid, can be evaluated from mid up to some point and
+    nowhere above it (a model that holds up to the end of its range): solved from mid (:func:`_increasing_root`,
+    an end past the range scanned upwards from mid, :func:`_scan_up`) instead of scanning the whole bracket; rows
+    where f cannot be evaluated at mid, or the solve is not sure, by :func:`_monotone_root`."""
+    ix = np.arange(lo.size)
+    f_mid = f(mid, ix)
+    known = np.isfinite(f_mid)
+    root = np.full(lo.size, np.nan)
+    if known.any():
+        k = ix[known]
+        root[k], ok = _increasing_root(f, k, lo[k], mid[k], f_mid[k], hi[k], math.inf, stepwise=True)
+        known[k[~ok]] = False
+    rest = ix[~known]
+    if rest.size:
+        root[rest] = _monotone_root(lambda x, i: f(x, rest[i]), lo[rest], hi[rest])
+    return root
+
+
 def _increasing_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np.ndarray, lo: np.ndarray,
-                     mid: np.ndarray, f_mid: np.ndarray, hi: np.ndarray, top: float) -> tuple[np.ndarray, np.ndarray]:
+                     mid: np.ndarray, f_mid: np.ndarray, hi: np.ndarray, top: float,
+                     stepwise: bool = False) -> tuple[np.ndarray, np.ndarray]:
     """Per row, the root screen._root finds for an increasing f(x, rows) on [lo, hi] (NaN: none), where f is
     known at an inside point mid (f_mid) and can be evaluated only up to `top` (a model's range).
 
@@ -449,7 +506,8 @@ def _increasing_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np
     hi > top, screen._root scans np.linspace(lo, hi, _SCAN_N) and finds the root only inside a scan interval
     whose ends it can evaluate, so a root in the interval that holds `top` is none as well. The solve is
     bracketed on [mid, min(hi, top)] or [lo, mid] (Illinois, to _SECANT_RTOL); where f cannot be evaluated at
-    that bracket's end, by screen._root's scan (:func:`_scan_root`). Returns (root, ok): ok False where the
+    that bracket's end, by screen._root's scan (:func:`_scan_root`; `stepwise`: upwards from mid, :func:`_scan_up`,
+    for an f that can be evaluated on one interval from lo). Returns (root, ok): ok False where the
     bracketed solve met a point it could not evaluate (those rows go per row).
     """
     m = rows.size
@@ -466,7 +524,10 @@ def _increasing_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np
         bad = ~np.isfinite(f_end)
         if bad.any():   # an end outside the model's range (e.g. above its highest pressure): screen._root scans
             kb = k[bad]
-            root[kb] = _scan_root(lambda x, ix, sub=rows[kb]: f(x, sub[ix]), lo[kb], hi[kb])
+            if stepwise and up:
+                root[kb] = _scan_up(f, rows[kb], lo[kb], mid[kb], f_mid[kb], hi[kb])
+            else:
+                root[kb] = _scan_root(lambda x, ix, sub=rows[kb]: f(x, sub[ix]), lo[kb], hi[kb])
         at_end = ~bad & (f_end == 0.0)
         root[k[at_end]] = x_end[at_end]
         go = ~bad & ((f_end > 0.0) if up else (f_end < 0.0))
@@ -526,14 +587,18 @@ class Rows:
 @dataclass
 class PlainPart(Rows):
     """Rows of one gas from an inventory's plain rows, with what their verdicts need besides: the relief
-    set pressure [Pa] absolute and the maximum filling ratio [kg/m3] (NaN: none)."""
+    set pressure [Pa] absolute and the maximum filling ratio [kg/m3] (NaN: none); for a liquefied gas, the
+    fill mass per water capacity [kg/m3] (NaN where the fill is given by pressure, whose ``p_fill`` is NaN
+    where it is given by mass; None: every row by pressure)."""
 
     relief: np.ndarray
     ratio: np.ndarray
+    rho_mass: np.ndarray | None = None
 
     def take(self, idx: np.ndarray) -> "PlainPart":
         return PlainPart(self.gas, *(getattr(self, k)[idx] for k in (
-            "p_fill", "t_fill", "ambient_max", "gas_temperature", "rated", "atm", "margin_req", "relief", "ratio")))
+            "p_fill", "t_fill", "ambient_max", "gas_temperature", "rated", "atm", "margin_req", "relief", "ratio")),
+            rho_mass=None if self.rho_mass is None else self.rho_mass[idx])
 
 
 def _plain_columns(part: PlainPart) -> dict:
@@ -1364,16 +1429,21 @@ class PlainScreening:
         self._where: dict[int, tuple[dict, int]] = {}
         groups: dict[str, list[int]] = {}
         rest: list[int] = []
+        by_mass = ~np.isnan(plain.fill_mass_kg)
         for j, gas in enumerate(plain.gases):
-            (groups.setdefault(gas.name, []) if _vector_gas(gas) or _liquefied_gas(gas) else rest).append(j)
+            # a fill by mass: on the liquefied-gas columns only (a permanent gas by mass goes per row)
+            arrays = _liquefied_gas(gas) or (not by_mass[j] and _vector_gas(gas))
+            (groups.setdefault(gas.name, []) if arrays else rest).append(j)
         names = list(groups)
         parts = []
         for nm in names:
             idx = np.array(groups[nm], dtype=np.int64)
+            # the fill mass per water capacity as LiquefiedRows.of_cases divides it
+            rho_mass = plain.fill_mass_kg[idx] / plain.water_capacity_m3[idx] if by_mass[idx].any() else None
             parts.append(PlainPart(plain.gases[idx[0]], plain.fill_pressure_pa[idx], plain.fill_temperature_k[idx],
                                    plain.ambient_max_k[idx], plain.gas_temperature_k[idx], plain.rated_pa[idx],
                                    plain.atmospheric_pa[idx], plain.required_margin[idx], plain.relief_pa[idx],
-                                   plain.max_filling_ratio_kg_m3[idx]))
+                                   plain.max_filling_ratio_kg_m3[idx], rho_mass))
         for nm, cols in zip(names, _run_columns(parts, _plain_columns)):
             done = 0
             gas = plain.gases[groups[nm][0]]
@@ -1418,6 +1488,11 @@ class PlainScreening:
         if j in self._full:
             return self._full[j]
         cols, k = self._where[j]
+        if cols.get("kind") == "liquefied" and not _mass_limit_settled(cols, k, self.plain.gases[j]):
+            try:
+                return single(self.plain.case(j))
+            except InputError as exc:
+                return {"verdict": "input-error", "error": exc}
         return _assemble(self.plain.case(j), cols, k)
 
 
@@ -1560,15 +1635,33 @@ def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.n
     out["rho_molar"] = rho = fill_mass / molar_mass
     live = np.flatnonzero(~refused & ~fallback)
     phases = {}
+    unreachable = np.zeros(n, dtype=bool)
+    out["unreachable_reason"] = np.full(n, None, dtype=object)
+    why = np.full(n, None, dtype=object)
     for key, t in (("fill", t_fill), ("peak", t_peak)):
         p, ph, ok = fluid.states(rho[live], t[live])
         phases[key] = np.full(n, None, dtype=object)
         phases[key][live] = ph
         out["p_fill_ref" if key == "fill" else "peak_ref"][live] = p
+        if key == "peak":
+            # the fill established, the worst case beyond the reference equation's range (a liquid heated until
+            # its pressure is above the equation's highest pressure): screen._fill_state's isochore analysis
+            # stops at that state, below the gas's critical temperature the gas models are then not confirmed,
+            # and screen._reference refuses the same state with the same reason: no model applies
+            off = live[~ok & (np.minimum(t_fill, t_peak)[live] <= gas.components[0].critical_temperature)]
+            if off.size:
+                _p, _v, reasons = _loop(fluid.pressure, rho[off], t_peak[off])
+                for k, r in zip(off.tolist(), reasons):
+                    out["unreachable_reason"][k] = r
+                    why[k] = f"the gas phase cannot be confirmed: {r}"
+                unreachable[off] = True
+                phases["fill"][off] = phases["peak"][off] = None
+                ok = ok | unreachable[live]
         fallback[live[~ok]] = True
+        live = live[ok]
     out["phase_fill"], out["phase_peak"] = phases["fill"], phases["peak"]
-    why = np.full(n, None, dtype=object)
-    for k in np.flatnonzero(~refused & ~fallback).tolist():
+    out["unreachable"] = unreachable
+    for k in np.flatnonzero(~refused & ~fallback & ~unreachable).tolist():
         why[k] = _screen.condensed_reason(phases["fill"][k], phases["peak"][k])
     out["why_not_gas"] = why
     # a gas at fill and at the worst case: the ideal and generalized models apply as well
@@ -1612,7 +1705,9 @@ def _liquefied_gas_models(rows: Rows, out: dict, fallback: np.ndarray) -> None:
         return np.where(st.valid, st.pressure - rated[r], np.nan)
 
     t_lo, t_hi = np.minimum(t_fill, t_peak)[lk], (np.maximum(t_peak, t_fill) + 300.0)[lk]
-    max_t_lk[lk] = _monotone_root(isochore, t_lo, t_hi)
+    # the isochore rises with temperature and the model holds from the worst case (a gas there) up to the top of
+    # its tables: the solve starts from the worst case (:func:`_upward_root`)
+    max_t_lk[lk] = _upward_root(isochore, t_lo, t_peak[lk], t_hi)
     pk = lk[by_pressure[lk]]
     if pk.size:
         def fill(p, ix):
@@ -1623,12 +1718,21 @@ def _liquefied_gas_models(rows: Rows, out: dict, fallback: np.ndarray) -> None:
 
         p_lo = atm[pk] * 1.01
         p_hi = np.maximum(target[pk], rows.p_fill[pk]) * np.maximum(1.0, t_fill[pk] / t_peak[pk]) * 1.05
-        root = _monotone_root(fill, p_lo, p_hi)
+        # the peak rises with the fill pressure, and the model holds from the row's own fill up to where the gas
+        # condenses at the fill temperature: the solve starts from that fill (:func:`_upward_root`)
+        root = _upward_root(fill, p_lo, np.clip(rows.p_fill[pk], p_lo, p_hi), p_hi)
         # screen._limits keeps a fill-pressure root only where its peak is the target (not a jump of the model)
         at = np.flatnonzero(np.isfinite(root))
         hit = np.abs(fill(root[at], at)) <= 1e-6 * target[pk[at]]
         root[at[~hit]] = np.nan
         max_p_lk[pk] = root
+
+
+def _stopped(out: dict, fallback: np.ndarray) -> np.ndarray:
+    """Rows whose isochore analysis goes no further than the dome's boundary: those that fall back, and the
+    liquefied-gas rows whose worst case lies beyond the reference equation's range (``unreachable``)."""
+    unreachable = out.get("unreachable")
+    return fallback if unreachable is None else fallback | unreachable
 
 
 def _dome_columns(fluid: ReferenceFluid, rho_molar: np.ndarray, out: dict, fallback: np.ndarray) -> None:
@@ -1643,7 +1747,7 @@ def _dome_columns(fluid: ReferenceFluid, rho_molar: np.ndarray, out: dict, fallb
             t_b, ok_b = _dome(fluid, side).boundary(rho_molar[d_rows])
             out[key][d_rows] = t_b
             fallback[d_rows[~ok_b]] = True
-    lf = np.flatnonzero(~fallback & np.isfinite(out["liquid_full"]))
+    lf = np.flatnonzero(~_stopped(out, fallback) & np.isfinite(out["liquid_full"]))
     if lf.size:
         out["dpdt_liquid_full"][lf], ok, _ = _loop(fluid.dp_dt_at_constant_density, rho_molar[lf],
                                                    out["liquid_full"][lf] + LIQUID_FULL_STEP)
@@ -1655,7 +1759,7 @@ def _crossing_columns(fluid: ReferenceFluid, out: dict, fallback: np.ndarray) ->
     crossing_pressure); the critical pressure where it leaves at the critical point."""
     crossing = out["crossing"]
     boundary = np.fmin(out["dry"], out["liquid_full"])
-    for k in np.flatnonzero(~fallback & np.isfinite(boundary)):
+    for k in np.flatnonzero(~_stopped(out, fallback) & np.isfinite(boundary)):
         try:
             crossing[k] = (fluid.critical_pressure if boundary[k] >= fluid.critical_temperature
                            else fluid.vapour_pressure(float(boundary[k])))
@@ -1673,7 +1777,7 @@ def _liquid_full_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback:
     gas = rows.gas
     tf, tp, rho = rows.t_fill.tolist(), out["t_peak"].tolist(), out["rho_molar"].tolist()
     lfd = out["lf_density"]
-    for k in np.flatnonzero(~fallback & ~out["refused"]).tolist():
+    for k in np.flatnonzero(~fallback & ~out["refused"] & ~out["unreachable"]).tolist():
         applies[k] = _screen._liquid_full_applies(fs, rho[k], tf[k], tp[k], gas)
         try:
             lfd[k] = _screen.liquid_full_density(fluid, tf[k], tp[k], gas)
@@ -1682,10 +1786,41 @@ def _liquid_full_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback:
     out["liquid_full_applies"] = applies
 
 
-def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:
+#: The fill-to-peak function's jump at the vapour pressure counts as clear of the target beyond this fraction of it.
+_JUMP_CLEAR = 1e-5
+
+
+def _no_fill_reaches(fluid: ReferenceFluid, t_fill: np.ndarray, t_peak: np.ndarray, target: np.ndarray) -> np.ndarray:
+    """Whether screen._limits finds no fill pressure whose peak is the target (rows whose target density at t_peak
+    lies inside the dome at t_fill), shown so: the fills below the vapour pressure at t_fill are vapour, no denser
+    than the saturated vapour there, and those above it liquid, no lighter than the saturated liquid; the
+    reference isochore's pressure does not fall with density, so the peaks of the vapour fills stay below the
+    target and those of the liquid fills above it (or beyond the equation's range). The only sign change
+    screen._root can meet is that jump; the point it settles on there is rejected by the check |peak - target| <=
+    1e-6 target, unless the jump ends next to the target: True where both ends are clear of it by _JUMP_CLEAR
+    (a liquid end beyond the range counts as clear), False where that is not shown."""
+    out = np.zeros(t_fill.size, dtype=bool)
+    for j, (tf, tp, tg) in enumerate(zip(t_fill.tolist(), t_peak.tolist(), target.tolist())):
+        try:
+            vapour_end = fluid.pressure(fluid.saturated_vapour_density(tf), tp) - tg
+            rho_l = fluid.saturated_liquid_density(tf)
+        except NotApplicable:
+            continue
+        try:
+            liquid_end = fluid.pressure(rho_l, tp) - tg
+        except NotApplicable:
+            liquid_end = math.inf
+        out[j] = vapour_end < -_JUMP_CLEAR * tg and liquid_end > _JUMP_CLEAR * tg
+    return out
+
+
+def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray,
+                      mass_limit: bool = True) -> None:
     """Limits of liquefied-gas rows on the reference model (screen._limits, screen._mass_limit): the highest
     gas temperature (none where the fill itself is at or above the rating), the highest fill pressure of a
-    pressure fill, the highest fill density (capped by the liquid-full rule); each as screen._root finds it."""
+    pressure fill, the highest fill density (capped by the liquid-full rule); each as screen._root finds it.
+    `mass_limit` False: the fill-density limit is left for :func:`_mass_limit_settled` to solve when a full
+    result is asked for (the batch's table and CSV do not show it); ``mass_pending`` marks its rows."""
     n = rows.t_fill.size
     t_fill, t_peak, rated, atm = rows.t_fill, out["t_peak"], rows.rated, rows.atm
     rho, peak = out["rho_molar"], out["peak_ref"]
@@ -1697,9 +1832,11 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         fill_over = np.where(by_pressure, rows.p_fill >= rated,
                              ~(out["p_fill_ref"] < rated) | (out["lk_ok"] & (out["lk_p_fill"] >= rated)))
     out["fill_over"] = fill_over
+    # no limits where no real-gas model applies: the fill refused, the worst case beyond the reference range
+    screened_out = out["refused"] | out["unreachable"]
     t_lo = np.minimum(t_fill, t_peak)
     t_hi = np.maximum(t_peak, t_fill) + 300.0
-    live = np.flatnonzero(~fallback & ~out["refused"])
+    live = np.flatnonzero(~fallback & ~screened_out)
     if live.size == 0:
         return
 
@@ -1707,8 +1844,10 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         p, _v, _r = fluid.pressures(rho[ix], t)
         return p / rated[ix] - 1.0
 
+    # the reference isochore can be evaluated from the lower temperature up to the equation's range (its
+    # temperature range, its highest pressure): an end past it is scanned upwards from the worst case
     root, ok = _increasing_root(f_t, live, t_lo[live], t_peak[live], peak[live] / rated[live] - 1.0, t_hi[live],
-                                fluid.t_max)
+                                fluid.t_max, stepwise=True)
     fallback[live[~ok]] = True
     max_t = out["max_t"]
     max_t[live[ok]] = root[ok]
@@ -1716,9 +1855,10 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
     max_t[fill_over] = np.nan
 
     # the density at the target on the worst-case isochore (the PT flash), for the fill-pressure and mass limits
-    live = np.flatnonzero(~fallback & ~out["refused"])
-    rho_star = np.full(n, np.nan)
-    rho_star[live], _ok, _r = _loop(fluid.density, target[live], t_peak[live])
+    live = np.flatnonzero(~fallback & ~screened_out)
+    rho_star = out["rho_star"] = np.full(n, np.nan)
+    first = live if mass_limit else live[by_pressure[live]]
+    rho_star[first], _ok, _r = _loop(fluid.density, target[first], t_peak[first])
 
     # fill pressure whose peak is the target: the pressure of that density at the fill temperature, where that
     # state is one phase there (inside the dome no fill pressure gives that density: no limit)
@@ -1728,9 +1868,11 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         p_hi = np.maximum(target[pr], rows.p_fill[pr]) * np.maximum(1.0, t_fill[pr] / t_peak[pr]) * 1.05
         have = np.isfinite(rho_star[pr])
         p_star = np.full(pr.size, np.nan)
+        in_dome = np.zeros(pr.size, dtype=bool)
         if have.any():
             p, ph, v = fluid.states(rho_star[pr][have], t_fill[pr][have])
             p_star[have] = np.where(v & (ph != "two-phase"), p, np.nan)
+            in_dome[have] = v & (ph == "two-phase")
 
         def f_p(p, ix):
             r = pr[ix]
@@ -1754,6 +1896,12 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         miss = ~np.isfinite(rho_star[pr])
         fallback[pr[miss]] = True
         if risky.size:
+            # the target's density inside the dome at the fill temperature: no limit (above), where the peak's
+            # jump at the vapour pressure is clear of the target (_no_fill_reaches); else per row
+            d = risky[in_dome[risky]]
+            fallback[pr[d[~_no_fill_reaches(fluid, t_fill[pr[d]], t_peak[pr[d]], target[pr[d]])]]] = True
+            risky = risky[~in_dome[risky]]
+        if risky.size:
             f_hi = f_p(p_hi[risky], risky)
             bad = ~np.isfinite(f_hi)
             if bad.any():
@@ -1764,30 +1912,59 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         out["max_p"][pr] = np.fmin(p_max, out["max_p_lk"][pr])
 
     # fill density whose peak is the target (screen._mass_limit), then the liquid-full cap
-    live = np.flatnonzero(~fallback & ~out["refused"])
-    if live.size:
-        top = _rho_top(fluid, True)
-        lo, hi = np.full(live.size, 1e-6 * top), np.full(live.size, top * 0.999)
-
-        def f_r(r, ix):
-            p, _v, _r = fluid.pressures(r, t_peak[live[ix]])
-            return p - target[live[ix]]
-
-        r, ok = _known_scan_root(f_r, rho_star[live], lo, hi, 60)
-        fallback[live[~ok]] = True
-        out["mass_rho"][live] = r
-        # screen._mass_limit's solve stops within 1e-9 of the whole density range: a root far below the range's
-        # top (a vapour-side density) is known there only to a few 1e-8 of itself, so such rows take that same
-        # solve, row by row, for the same number
-        small = np.flatnonzero(ok & np.isfinite(r) & (r < _SMALL_ROOT * hi))
-        for j in small.tolist():
-            i = int(live[j])
-            tp, tg = float(t_peak[i]), float(target[i])
-            out["mass_rho"][i] = _screen._root(lambda x, tp=tp, tg=tg: fluid.pressure(x, tp) - tg, float(lo[j]),
-                                               float(hi[j]), n=60) or np.nan
+    live = np.flatnonzero(~fallback & ~screened_out)
+    out["mass_pending"] = np.zeros(n, dtype=bool)
+    if not mass_limit:
+        out["mass_pending"][live] = True
+    elif live.size:
+        fallback[live[~_liquefied_mass_limit(fluid, out, live, live[:0])]] = True
 
 
-def _liquefied_columns(rows: Rows) -> dict:
+def _liquefied_mass_limit(fluid: ReferenceFluid, out: dict, live: np.ndarray, star: np.ndarray) -> np.ndarray:
+    """The fill density whose peak is the target (screen._mass_limit's root, before the liquid-full cap) of rows
+    `live` into ``out["mass_rho"]``, the target's density first solved for rows `star`; returns whether each
+    row's root is settled (False: the row needs the single screening)."""
+    t_peak, target, rho_star = out["t_peak"], out["target"], out["rho_star"]
+    if star.size:
+        rho_star[star], _ok, _r = _loop(fluid.density, target[star], t_peak[star])
+    top = _rho_top(fluid, True)
+    lo, hi = np.full(live.size, 1e-6 * top), np.full(live.size, top * 0.999)
+
+    def f_r(r, ix):
+        p, _v, _r = fluid.pressures(r, t_peak[live[ix]])
+        return p - target[live[ix]]
+
+    r, ok = _known_scan_root(f_r, rho_star[live], lo, hi, 60)
+    out["mass_rho"][live] = r
+    # screen._mass_limit's solve stops within 1e-9 of the whole density range: a root far below the range's
+    # top (a vapour-side density) is known there only to a few 1e-8 of itself, so such rows take that same
+    # solve, row by row, for the same number
+    small = np.flatnonzero(ok & np.isfinite(r) & (r < _SMALL_ROOT * hi))
+    for j in small.tolist():
+        i = int(live[j])
+        tp, tg = float(t_peak[i]), float(target[i])
+        out["mass_rho"][i] = _screen._root(lambda x, tp=tp, tg=tg: fluid.pressure(x, tp) - tg, float(lo[j]),
+                                           float(hi[j]), n=60) or np.nan
+    return ok
+
+
+def _mass_limit_settled(cols: dict, k: int, gas: Mixture) -> bool:
+    """Whether row k of liquefied-gas columns of `gas` has its fill-density limit (solved here, for every row of
+    those columns at once, on the first call where :func:`_liquefied_limits` left it pending); False where that
+    solve is not sure of it (the row's full result then comes from the single screening)."""
+    pending = np.flatnonzero(cols["mass_pending"])
+    if pending.size:
+        fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
+        unsettled = np.zeros(cols["t_peak"].size, dtype=bool)
+        ok = _liquefied_mass_limit(fluid, cols, pending, pending[~cols["by_pressure"][pending]])
+        unsettled[pending[~ok]] = True
+        cols["mass_unsettled"] = unsettled
+        cols["mass_pending"] = np.zeros(cols["t_peak"].size, dtype=bool)
+    unsettled = cols.get("mass_unsettled")
+    return unsettled is None or not unsettled[k]
+
+
+def _liquefied_columns(rows: Rows, mass_limit: bool = True) -> dict:
     """Fill state, phases, the reference model, the liquid-full rule and the limits of rows of one pure liquefied
     gas, as arrays (the liquefied-gas counterpart of :func:`_columns`). Rows where the contents are a gas at fill
     and at the worst case (the gas models apply), and rows a step is not sure of, are marked ``fallback``."""
@@ -1807,8 +1984,14 @@ def _liquefied_columns(rows: Rows) -> dict:
     _dome_columns(fluid, rho, out, fallback)
     _crossing_columns(fluid, out, fallback)
     _liquid_full_columns(rows, fluid, out, fallback)
-    _liquefied_limits(rows, fluid, out, fallback)
+    _liquefied_limits(rows, fluid, out, fallback, mass_limit)
     return out
+
+
+def _unreachable_reason(reason: str) -> str:
+    """The out-of-scope reason of a row whose worst case lies beyond the reference equation's range, as
+    screen._screen_at words it from its three models' notes (each that reason)."""
+    return f"No real-gas model applies to this vessel (ideal, generalized, reference: {reason}), so it cannot be screened."
 
 
 def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, atm: float, required_margin: float,
@@ -1823,6 +2006,13 @@ def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, a
         verdict, reasons, margin, relief_margin = _screen.decide(
             peak=None, rated=rated, relief=relief, atm=atm, required_margin=required_margin, any_real_model=False,
             out_of_scope_reason=reason)
+        return {"verdict": verdict, "reasons": reasons, "warnings": warnings, "margin_fraction": margin,
+                "relief_margin_fraction": relief_margin, "governing_model": None, "peak_pressure_pa": None,
+                "applicable": []}
+    if cols["unreachable"][k]:
+        verdict, reasons, margin, relief_margin = _screen.decide(
+            peak=None, rated=rated, relief=relief, atm=atm, required_margin=required_margin, any_real_model=False,
+            out_of_scope_reason=_unreachable_reason(cols["unreachable_reason"][k]))
         return {"verdict": verdict, "reasons": reasons, "warnings": warnings, "margin_fraction": margin,
                 "relief_margin_fraction": relief_margin, "governing_model": None, "peak_pressure_pa": None,
                 "applicable": []}
@@ -1850,8 +2040,9 @@ def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, a
 
 
 def _liquefied_plain_columns(part: PlainPart) -> dict:
-    """_liquefied_columns of a part of plain rows (filled by pressure) plus each row's ``verdict``."""
-    cols = _liquefied_columns(part)
+    """_liquefied_columns of a part of plain rows plus each row's ``verdict``; the fill-density limit is solved
+    only where a full result is asked for (:func:`_mass_limit_settled`)."""
+    cols = _liquefied_columns(part, mass_limit=False)
     verdicts = np.full(part.p_fill.size, None, dtype=object)
     rated, atm, margin_req = part.rated.tolist(), part.atm.tolist(), part.margin_req.tolist()
     relief, ratio = part.relief.tolist(), part.ratio.tolist()
@@ -1881,13 +2072,33 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
                  "dry_out_temperature_k": _opt(cols["dry"][k]),
                  "phase_boundary_pressure_pa": _opt(cols["crossing"][k]),
                  "dp_dt_after_liquid_full_pa_k": _opt(cols["dpdt_liquid_full"][k])}
+    no_limits = {"max_gas_temperature_k": None, "max_fill_pressure_pa": None, "target_peak_pressure_pa": None,
+                 "max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,
+                 "note": "no real-gas model applies, so no limit is given"}
     if refused:
         na = "the fill state cannot be established (see the verdict's reason)"
         models = {nm: _screen.not_applicable(nm, na).as_dict() for nm in ("ideal", "generalized", "reference")}
-        limits = {"max_gas_temperature_k": None, "max_fill_pressure_pa": None, "target_peak_pressure_pa": None,
-                  "max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,
-                  "note": "no real-gas model applies, so no limit is given", **lim_extra}
+        limits = {**no_limits, **lim_extra}
         fill_rho_molar = rho_mass = mass = None
+        phase = None
+        peak = None
+        governing_reason = _screen.governing_text(None, [])
+        nominal_margin = None
+    elif cols["unreachable"][k]:
+        # the worst case beyond the reference equation's range: screen._fill_state keeps the fill density and
+        # nothing of the isochore analysis; every model says why it does not apply
+        why = cols["why_not_gas"][k]
+        models = {"ideal": _screen.not_applicable("ideal", why, equation="P v = R T, so at fixed density P2 = P1 "
+                                                  "T2 / T1").as_dict(),
+                  "generalized": _screen.not_applicable("generalized", why).as_dict(),
+                  "reference": _screen.not_applicable(
+                      "reference", f"reference equation of state not applicable: {cols['unreachable_reason'][k]}",
+                      fluid=fluid.label).as_dict()}
+        limits = {**no_limits, **{key: None for key in lim_extra}}
+        rho_fill_mass = float(cols["rho_fill_mass"][k])
+        fill_rho_molar = rho_fill_mass / gas.molar_mass
+        rho_mass = fill_rho_molar * gas.molar_mass
+        mass = rho_fill_mass * case.water_capacity_m3
         phase = None
         peak = None
         governing_reason = _screen.governing_text(None, [])

@@ -108,7 +108,7 @@ def map_rows(fn: Callable, parts: list, min_rows: int = MIN_ROWS) -> list[dict]:
     """[fn(part) for part in parts], where fn maps rows (with ``take(idx)`` and ``p_fill``) to a dict
     of per-row arrays; large inputs are split in contiguous chunks across worker processes and the
     chunks' arrays joined back in row order (every row is computed on its own, so the result is the
-    same as in one process)."""
+    same as in one process); a value that is not an array (the kind of columns) is the same in every chunk."""
     total = sum(p.p_fill.size for p in parts)
     n = workers()
     if n < 2 or total < min_rows:
@@ -132,5 +132,6 @@ def map_rows(fn: Callable, parts: list, min_rows: int = MIN_ROWS) -> list[dict]:
         if len(chunks) == 1:
             out.append(chunks[0])
         else:
-            out.append({k: np.concatenate([c[k] for c in chunks]) for k in chunks[0]})
+            out.append({k: np.concatenate([c[k] for c in chunks]) if isinstance(v, np.ndarray) else v
+                        for k, v in chunks[0].items()})
     return out

@@ -11,11 +11,11 @@ from screening.inputs.columns import read_plain
 from screening.inputs.inventory import read_inventory, row_case
 
 HEAD = ("id,gas,water_capacity,rated_pressure [bar(g)],relief_set_pressure,fill_pressure,fill_temperature,"
-        "ambient_max,gas_temperature,required_margin,site,elevation,atmospheric_pressure,max_filling_ratio")
+        "ambient_max,gas_temperature,required_margin,site,elevation,atmospheric_pressure,max_filling_ratio,fill_mass")
 
 # cell texts, good and bad, as people type them
 GAS = st.sampled_from(["nitrogen", "argon", "Argon", "N2", "methane", "carbon dioxide", "unobtainium", "",
-                       "argon 82% + carbon dioxide 18%", "helium"])
+                       "argon 82% + carbon dioxide 18%", "helium", "propane", "R-134a"])
 CAP = st.sampled_from(["50 L", "10", "0.05 m3", "-1 L", "50 bar(g)", "", "1.7 ft3"])
 RATED = st.sampled_from(["300", "200 bar(g)", "3000 psig", "0", "0.5 bar(a)", "20 MPa(a)", "lots", ""])
 RELIEF = st.sampled_from(["", "330 bar(g)", "0.2 bar(g)", "330"])
@@ -29,7 +29,8 @@ SITE = st.sampled_from(["", "North yard"])
 ELEV = st.sampled_from(["", "240 m", "20000 m"])
 ATM = st.sampled_from(["", "98.5 kPa(a)", "98.5 kPa(g)", "150 kPa(a)", "0.98 bar(a)"])
 RATIO = st.sampled_from(["", "0.75 kg/L", "-0.1 kg/L"])
-ROW = st.tuples(GAS, CAP, RATED, RELIEF, PRESSURE, TEMP, AMB, HOT, MARGIN, SITE, ELEV, ATM, RATIO)
+MASS = st.sampled_from(["", "", "", "20 kg", "20", "4500 g", "44 lb", "0 kg", "-3 kg", "20 L", "heavy"])
+ROW = st.tuples(GAS, CAP, RATED, RELIEF, PRESSURE, TEMP, AMB, HOT, MARGIN, SITE, ELEV, ATM, RATIO, MASS)
 
 
 def _same(a, b):
@@ -63,7 +64,8 @@ def test_plain_rows_match_the_case_reader(tmp_path_factory, rows):
         assert plain.rated_pa[j] == case.rated_pressure_pa
         assert _same(float(plain.relief_pa[j]), case.relief_set_pressure_pa)
         assert _same(float(plain.max_filling_ratio_kg_m3[j]), case.max_filling_ratio_kg_m3)
-        assert plain.fill_pressure_pa[j] == case.fill_pressure_pa
+        assert _same(float(plain.fill_pressure_pa[j]), case.fill_pressure_pa)
+        assert _same(float(plain.fill_mass_kg[j]), case.fill_mass_kg)
         assert plain.fill_temperature_k[j] == case.fill_temperature_k
         assert _same(float(plain.ambient_max_k[j]), case.ambient_max_k)
         assert _same(float(plain.gas_temperature_k[j]), case.gas_temperature_k)
@@ -91,3 +93,21 @@ def test_a_column_outside_the_plain_keys_sends_its_rows_to_the_case_reader(tmp_p
                     "B,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC,\n", encoding="utf-8")
     plain = read_plain(read_inventory(path), None)
     assert plain.ids == ["B"]
+
+
+def test_a_fill_by_mass_is_a_plain_row_and_a_fill_by_both_or_neither_is_not(tmp_path):
+    path = tmp_path / "inv.csv"
+    path.write_text("id,gas,water_capacity,rated_pressure,fill_pressure,fill_mass,fill_temperature,ambient_max\n"
+                    "M,propane,26 L,25 bar(g),,11 kg,15 degC,45 degC\n"
+                    "P,propane,26 L,25 bar(g),3 bar(g),,15 degC,45 degC\n"
+                    "B,propane,26 L,25 bar(g),3 bar(g),11 kg,15 degC,45 degC\n"
+                    "N,propane,26 L,25 bar(g),,,15 degC,45 degC\n"
+                    "G,propane,26 L,25 bar(g),,24.25 lb,15 degC,45 degC\n", encoding="utf-8")
+    inv = read_inventory(path)
+    plain = read_plain(inv, None)
+    assert plain.ids == ["M", "P", "G"]
+    assert plain.fill_mass_kg[0] == 11.0 and math.isnan(plain.fill_pressure_pa[0])
+    assert math.isnan(plain.fill_mass_kg[1])
+    # the display units follow the mass as entered, as the case reader's do
+    assert plain.display_units[2] == row_case(inv, *inv.rows[4], None).display_units
+    assert plain.display_units[2]["mass"] == "lb"

@@ -4,6 +4,7 @@ import json
 import random
 
 import CoolProp.CoolProp as CP
+import numpy as np
 import pytest
 
 from screening import engine
@@ -148,3 +149,161 @@ def test_liquefied_batch_outputs_are_the_same_whatever_the_number_of_workers(tmp
         outs[n] = [p.read_bytes() for p in names]
     assert outs["1"] == outs["2"]
     assert len(json.loads(outs["1"][1])["results"]) == 40
+
+
+#: Liquefied gases whose rows by pressure reach states at the edge of the reference equations: liquid fills heated
+#: beyond the equation's highest pressure, targets whose density lies inside the dome at the fill temperature.
+#: (gas, CoolProp name for the test's own vapour pressures)
+EDGE_FLUIDS = [("n-butane", "n-Butane"), ("chlorine", "Chlorine"), ("sulfur dioxide", "SulfurDioxide"),
+               ("R-1234ze(E)", "R1234ze(E)"), ("nitrous oxide", "NitrousOxide")]
+
+
+def _edge_inventory(path, gas, cp, rows, seed):
+    """An invented inventory of one gas by pressure: vapour (0.2-0.85 of the vapour pressure) or liquid (1.3-3
+    times it) at -20...25 degC, worst cases -40...85 degC, rated 2.5 times the vapour pressure at 25 degC."""
+    rnd = random.Random(seed)
+    # vapour pressures: the gas's reference equation through CoolProp's PropsSI
+    rated = 2.5 * (CP.PropsSI("P", "T", 298.15, "Q", 0, cp) - ATM) / 1e5
+    lines = ["id,gas,water_capacity [L],rated_pressure [bar(g)],fill_pressure [bar(g)],fill_temperature [degC],"
+             "ambient_max [degC]"]
+    for i in range(rows):
+        t = rnd.uniform(-20, 25)
+        psat = CP.PropsSI("P", "T", t + 273.15, "Q", 0, cp)
+        p = psat * (rnd.uniform(0.2, 0.85) if rnd.random() < 0.5 else rnd.uniform(1.3, 3.0))
+        lines.append(f"E{i},{gas},40,{rated:.2f},{(p - ATM) / 1e5:.3f},{t:.2f},{rnd.uniform(-40, 85):.2f}")
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    return path
+
+
+@pytest.mark.parametrize("gas,cp", EDGE_FLUIDS)
+def test_liquefied_rows_at_the_reference_range_edges_stay_on_the_arrays_with_the_single_case_answers(tmp_path, gas,
+                                                                                                     cp):
+    from screening.inputs.columns import read_plain
+    from screening.inputs.inventory import read_inventory, row_case
+
+    inv = read_inventory(_edge_inventory(tmp_path / "inv.csv", gas, cp, 60, seed=sum(gas.encode())))
+    cases = [row_case(inv, n, cells, None) for n, cells in inv.rows]
+    singles = [screen_states(c, curves=False).to_json() for c in cases]
+    # both array layouts: cases (screen_cases) and the batch's plain rows (PlainScreening)
+    got = [_as_json(r) for r in engine.screen_cases(cases)]
+    assert engine.STATS["per_row"] == 0
+    plain = read_plain(inv, None)
+    screening = engine.PlainScreening(plain)
+    assert screening.per_row == 0 and len(plain) == len(cases)
+    for j, pos in enumerate(plain.index):
+        s = singles[int(pos)]
+        for r in (got[int(pos)], _as_json(screening.full(j))):
+            assert r["verdict"] == s["verdict"] and r["reasons"] == s["reasons"] and r["warnings"] == s["warnings"]
+            assert differences(r, s) == [], (s["id"], differences(r, s)[:5])
+        assert screening.summaries[j]["verdict"] == s["verdict"]
+    # the inventory holds both edges
+    assert any(s["verdict"] == "out-of-scope" for s in singles)
+    assert any(s["fill"]["phase"] == "gas" and s["limits"]["max_fill_pressure_pa"] is None for s in singles)
+
+
+def test_liquid_heated_past_the_reference_range_is_out_of_scope_on_the_array_path():
+    # liquid n-butane filled at 2 bar(g) and -3 degC, heated to 45 degC at its fill density: the reference equation
+    # (Buecker & Wagner 2006, through CoolProp's PropsSI) gives a pressure above its own highest pressure there
+    d = {"id": "B", "vessel": {"water_capacity": "40 L", "rated_pressure": "6 bar(g)"},
+         "fill": {"gas": "n-butane", "pressure": "2 bar(g)", "temperature": "-3 degC"},
+         "exposure": {"ambient_max": "45 degC"}}
+    case = parse_case_data(d, "t.csv", "x")
+    rho = CP.PropsSI("Dmass", "P", 2e5 + ATM, "T", 270.15, "n-Butane")
+    assert CP.PropsSI("P", "Dmass", rho, "T", 318.15, "n-Butane") > CP.PropsSI("pmax", "n-Butane")
+    r = _as_json(engine.screen_cases([case])[0])
+    assert engine.STATS["vectorised"] == 1
+    assert r["verdict"] == "out-of-scope" and r["peak_pressure_pa"] is None
+    assert r["fill"]["density_kg_m3"] == pytest.approx(rho, rel=1e-9)
+    assert not any(m["applicable"] for m in r["models"].values())
+    assert differences(r, screen_states(case, curves=False).to_json()) == []
+
+
+def test_no_fill_pressure_limit_where_the_target_density_is_two_phase_at_the_fill_temperature():
+    # chlorine vapour at 1.5 bar(g) and 0 degC, worst case 60 degC, rated 8 bar(g): the density at the target
+    # (7.2 bar(g) at 60 degC) lies between the saturated vapour and liquid densities at 0 degC (CoolProp's
+    # PropsSI), so no fill pressure at 0 degC reaches the target: vapour fills stay below it, liquid fills above
+    d = {"id": "C", "vessel": {"water_capacity": "40 L", "rated_pressure": "8 bar(g)"},
+         "fill": {"gas": "chlorine", "pressure": "1.5 bar(g)", "temperature": "0 degC"},
+         "exposure": {"ambient_max": "60 degC"}}
+    case = parse_case_data(d, "t.csv", "x")
+    target = ATM + 8e5 * 0.9
+    rho_target = CP.PropsSI("Dmass", "P", target, "T", 333.15, "Chlorine")
+    assert (CP.PropsSI("Dmass", "T", 273.15, "Q", 1, "Chlorine") < rho_target
+            < CP.PropsSI("Dmass", "T", 273.15, "Q", 0, "Chlorine"))
+    r = _as_json(engine.screen_cases([case])[0])
+    assert engine.STATS["vectorised"] == 1
+    assert r["fill"]["phase"] == "gas" and r["limits"]["target_peak_pressure_pa"] == pytest.approx(target, rel=1e-12)
+    assert r["limits"]["max_fill_pressure_pa"] is None
+    assert differences(r, screen_states(case, curves=False).to_json()) == []
+
+
+def test_inventory_rows_by_mass_are_read_as_columns_with_the_single_case_answers(tmp_path):
+    from screening.inputs.columns import read_plain
+    from screening.inputs.inventory import read_inventory, row_case
+
+    rnd = random.Random(11)
+    lines = ["id,gas,water_capacity [L],rated_pressure [bar(g)],fill_mass [kg],fill_temperature [degC],"
+             "ambient_max [degC],max_filling_ratio [kg/L]"]
+    for i in range(60):
+        gas, _cp, lo, hi = FLUIDS[i % len(FLUIDS)]
+        cap = rnd.uniform(10, 60)
+        ratio = f"{rnd.uniform(0.3, 0.8):.3f}" if i % 4 == 0 else ""
+        lines.append(f"M{i},{gas},{cap:.2f},{rnd.uniform(lo, hi):.1f},{cap * rnd.uniform(0.03, 0.85):.3f},"
+                     f"{rnd.uniform(-20, 30):.1f},{rnd.uniform(-30, 85):.1f},{ratio}")
+    path = tmp_path / "inv.csv"
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    inv = read_inventory(path)
+    plain = read_plain(inv, None)
+    assert len(plain) == 60
+    screening = engine.PlainScreening(plain)
+    errors = 0
+    for j, pos in enumerate(plain.index):
+        try:
+            s = screen_states(row_case(inv, *inv.rows[int(pos)], None), curves=False)
+        except ValueError:            # a mass fill denser than the liquid at the triple point
+            assert screening.summaries[j]["verdict"] == "input-error"
+            errors += 1
+            continue
+        assert differences(_as_json(screening.full(j)), s.to_json()) == []
+        assert differences(screening.summaries[j], s.summary_record()) == []
+    # only the input errors go per row (where the single screening raises them)
+    assert screening.per_row == errors < 10
+
+
+def test_liquefied_columns_split_over_forked_workers_equal_one_process(tmp_path, monkeypatch):
+    from screening import parallel
+
+    monkeypatch.setattr(parallel, "workers", lambda: 2)
+    from screening.inputs.columns import read_plain
+    from screening.inputs.inventory import read_inventory
+
+    inv = read_inventory(_edge_inventory(tmp_path / "inv.csv", "chlorine", "Chlorine", 40, seed=3))
+    plain = read_plain(inv, None)
+    idx = np.arange(len(plain))
+    part = engine.PlainPart(plain.gases[0], *(a[idx] for a in (
+        plain.fill_pressure_pa, plain.fill_temperature_k, plain.ambient_max_k, plain.gas_temperature_k, plain.rated_pa,
+        plain.atmospheric_pa, plain.required_margin, plain.relief_pa, plain.max_filling_ratio_kg_m3)))
+    one = engine._plain_columns(part)
+    (forked,) = parallel.map_rows(engine._plain_columns, [part], min_rows=0)
+    assert set(one) == set(forked) and forked["kind"] == "liquefied"
+    for k in one:
+        assert list(map(str, np.atleast_1d(one[k]))) == list(map(str, np.atleast_1d(forked[k]))), k
+
+
+def test_liquid_fill_temperature_limit_found_below_the_reference_range_edge_on_the_array_path():
+    # liquid n-butane filled at 3 bar(g) and 15 degC, rated 80 bar(g), worst case 20 degC: heated 300 K further its
+    # isochore leaves the reference equation's range (above its highest pressure), so the temperature limit is
+    # sought upwards from the worst case; at that temperature the fill density's pressure is the rating
+    # (Buecker & Wagner 2006 through CoolProp's PropsSI)
+    d = {"id": "B", "vessel": {"water_capacity": "40 L", "rated_pressure": "80 bar(g)"},
+         "fill": {"gas": "n-butane", "pressure": "3 bar(g)", "temperature": "15 degC"},
+         "exposure": {"ambient_max": "20 degC"}}
+    case = parse_case_data(d, "t.csv", "x")
+    r = _as_json(engine.screen_cases([case])[0])
+    assert engine.STATS["vectorised"] == 1
+    rho = CP.PropsSI("Dmass", "P", 3e5 + ATM, "T", 288.15, "n-Butane")
+    assert CP.PropsSI("P", "Dmass", rho, "T", 400.0, "n-Butane") > CP.PropsSI("pmax", "n-Butane")
+    t_max = r["limits"]["max_gas_temperature_k"]
+    assert 293.15 < t_max < 310.0
+    assert CP.PropsSI("P", "Dmass", rho, "T", t_max, "n-Butane") == pytest.approx(80e5 + ATM, rel=1e-7)
+    assert differences(r, screen_states(case, curves=False).to_json()) == []

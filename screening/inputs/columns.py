@@ -7,7 +7,7 @@ each distinct cell text is parsed once, with the same unit parser (:func:`screen
 the same gas parser as a case file, and the row's values are gathered into arrays in SI.
 
 What a plain row is: every non-empty cell (or default) belongs to :data:`PLAIN_KEYS`; the fill is given
-by pressure and temperature; and every check of :func:`screening.inputs.case.parse_case_data` that
+by pressure and temperature, or by mass and temperature; and every check of :func:`screening.inputs.case.parse_case_data` that
 applies to these keys passes. Anything else, or any doubt, leaves the row to
 :func:`screening.inputs.inventory.row_case`, the authoritative reader, which also writes the located
 message of a bad row. This module never writes an error message of its own: a row it cannot accept is
@@ -34,7 +34,7 @@ from screening.units import parse, si_many, standard_atmosphere_pressure
 PLAIN_KEYS = frozenset({
     "id", "description", "pressure_basis", "site.name", "site.atmospheric_pressure", "site.elevation",
     "fill.gas", "vessel.water_capacity", "vessel.rated_pressure", "vessel.rated_pressure_kind",
-    "vessel.relief_set_pressure", "vessel.max_filling_ratio", "fill.pressure", "fill.temperature",
+    "vessel.relief_set_pressure", "vessel.max_filling_ratio", "fill.pressure", "fill.temperature", "fill.mass",
     "exposure.ambient_max", "exposure.gas_temperature", "criteria.required_margin",
 })
 _TEXT = {"id", "description", "site.name", "vessel.rated_pressure_kind"}
@@ -49,7 +49,8 @@ class _NotPlain(Exception):
 class PlainRows:
     """Plain rows of an inventory as arrays in SI (pressures absolute [Pa], temperatures [K], [m3], [-]).
 
-    ``index[j]`` is the position in ``inv.rows`` of the j-th plain row; NaN marks an absent optional value.
+    ``index[j]`` is the position in ``inv.rows`` of the j-th plain row; NaN marks an absent optional value
+    (each row has a fill pressure or a fill mass [kg], the other NaN).
     """
 
     inv: Inventory
@@ -69,6 +70,7 @@ class PlainRows:
     required_margin: np.ndarray
     required_margin_is_default: np.ndarray
     display_units: list[dict]
+    fill_mass_kg: np.ndarray
 
     def __len__(self) -> int:
         return len(self.ids)
@@ -135,7 +137,7 @@ def _parser(key: str):
         def elevation(value):
             return standard_atmosphere_pressure(parse(value, "length").si()), None
         return elevation
-    kind = {"vessel.water_capacity": "volume", "vessel.max_filling_ratio": "density",
+    kind = {"vessel.water_capacity": "volume", "vessel.max_filling_ratio": "density", "fill.mass": "mass",
             "fill.temperature": "temperature", "exposure.ambient_max": "temperature",
             "exposure.gas_temperature": "temperature", "criteria.required_margin": "fraction"}[key]
 
@@ -153,7 +155,7 @@ def _parser(key: str):
     return quantity
 
 
-_KINDS = {"vessel.water_capacity": "volume", "vessel.max_filling_ratio": "density",
+_KINDS = {"vessel.water_capacity": "volume", "vessel.max_filling_ratio": "density", "fill.mass": "mass",
           "fill.temperature": "temperature", "exposure.ambient_max": "temperature",
           "exposure.gas_temperature": "temperature", "criteria.required_margin": "fraction",
           **{k: "pressure" for k in _PRESSURES}}
@@ -228,7 +230,7 @@ class _Cache:
 def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     """The plain rows of ``inv.rows``, as arrays."""
     empty = {k: [] for k in ("index", "ids", "gases", "atm", "cap", "rated", "relief", "ratio", "p", "t", "amb",
-                             "gas_t", "margin", "margin_default", "units")}
+                             "gas_t", "margin", "margin_default", "units", "mass")}
     flat = _flatten_defaults(defaults)
     if flat is None:
         return _finish(inv, defaults, empty)
@@ -329,7 +331,8 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     relief, _ = pressures("vessel.relief_set_pressure")
     ratio, _ = quantities("vessel.max_filling_ratio")
     gases = parsed("fill.gas", column("fill.gas"), required=True)
-    p_fill, _ = pressures("fill.pressure", required=True)
+    p_fill, _ = pressures("fill.pressure")
+    mass, mass_label = quantities("fill.mass")
     t_fill, t_label = quantities("fill.temperature", required=True)
     amb, _ = quantities("exposure.ambient_max")
     hot, _ = quantities("exposure.gas_temperature")
@@ -340,17 +343,19 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
         ok &= rated > atm                                       # NaN (a refused rating) is not above
         ok &= np.isnan(relief) | (relief > atm)
         ok &= ~(np.isnan(amb) & np.isnan(hot))                 # the worst case needs one of them
+        ok &= np.isnan(p_fill) != np.isnan(mass)               # the fill by pressure or by mass, not both
 
     # the display units: the first reading of each kind in the case reader's order
     units_cache: dict[tuple, dict] = {}
     out = empty
     for i in np.flatnonzero(ok):
         pressure_label = atm_label[i] or rated_label[i]
-        ukey = (pressure_label, t_label[i], cap_label[i])
+        ukey = (pressure_label, t_label[i], cap_label[i], mass_label[i])
         units = units_cache.get(ukey)
         if units is None:
             units = units_cache[ukey] = {"pressure": "bar(a)" if pressure_label == "atm" else pressure_label,
-                                         "temperature": t_label[i], "volume": cap_label[i], "mass": "kg"}
+                                         "temperature": t_label[i], "volume": cap_label[i],
+                                         "mass": mass_label[i] or "kg"}
         out["ids"].append(ids[i])
         out["gases"].append(gases[i])
         out["units"].append(units)
@@ -358,7 +363,7 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     out["index"] = sel
     for name, arr in (("atm", atm), ("cap", cap), ("rated", rated), ("relief", relief), ("ratio", ratio),
                       ("p", p_fill), ("t", t_fill), ("amb", amb), ("gas_t", hot), ("margin", margin),
-                      ("margin_default", margin_default)):
+                      ("margin_default", margin_default), ("mass", mass)):
         out[name] = arr[sel]
     return _finish(inv, defaults, out)
 
@@ -367,4 +372,4 @@ def _finish(inv: Inventory, defaults: dict | None, out: dict) -> PlainRows:
     f = lambda k: np.array(out[k], dtype=float)  # noqa: E731
     return PlainRows(inv, defaults, np.array(out["index"], dtype=np.int64), out["ids"], out["gases"], f("atm"),
                      f("cap"), f("rated"), f("relief"), f("ratio"), f("p"), f("t"), f("amb"), f("gas_t"),
-                     f("margin"), np.array(out["margin_default"], dtype=bool), out["units"])
+                     f("margin"), np.array(out["margin_default"], dtype=bool), out["units"], f("mass"))
