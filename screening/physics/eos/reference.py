@@ -30,6 +30,7 @@ import math
 import os
 import re
 import threading
+import time
 from functools import lru_cache
 
 import CoolProp
@@ -377,6 +378,10 @@ class ReferenceFluid:
             f"fitted for every pair ({', '.join(pairs)}); phase checked by CoolProp's flash and by "
             f"{_mix.CUBIC_MIXING_RULE}")
         self._memo = _mix.IsochoreMemo()
+        #: The highest temperature [K] at which a node was not found one phase (establish_isochore), by region
+        #: of density (node_region): no node of the region is tried at or below it again. A choice of what to
+        #: try first only, never an answer.
+        self._node_failed: dict[int, float] = {}
         #: Settled phase answers (one phase or two) keyed by the exact state (rho, p, T): both routes are
         #: deterministic, so the same state asked again (a scenario, a tolerance corner, a repeated row, a
         #: warm screening) gets the same answer without a flash. Answers that could not be established (a
@@ -583,6 +588,41 @@ class ReferenceFluid:
         self._check_pressure(p)
         self._check_stable(rho, T)
         return p, "homogeneous"
+
+    @_holding_the_state
+    def establish_isochore(self, rho_molar: float, t_need: float) -> None:
+        """Establish a mixture's isochore rho_molar [mol/m3] one-phase from ESTABLISH_BELOW_K under t_need [K],
+        the lowest temperature a screening needs on it, for it and its neighbours within NEIGHBOUR_RTOL (see
+        ``_isochore_from_below`` in screen.py); raises NotApplicable where that state is not one phase.
+
+        Where a node (:func:`screening.physics.mixtures.node_density`) can stand for it, the node is flashed
+        instead, deeper down (NODE_DEPTHS_K): one phase there covers this isochore from ESTABLISH_BELOW_K under
+        t_need on, and the isochores of later rows near it (:meth:`IsochoreMemo.record_node`), so that a batch
+        of one composition flashes once per node rather than once per row. A node that is not found one phase
+        (two phases, no state there, no answer) only costs its flash: the isochore itself is then flashed as
+        without nodes, and no node of nearby densities is tried again at or below that temperature."""
+        rho, t_need = float(rho_molar), float(t_need)
+        if self._memo.covers(rho, t_need):    # established already (as the checks that follow will find)
+            return
+        region = _mix.node_region(rho)
+        failed = self._node_failed.get(region, -math.inf)
+        for depth in _mix.NODE_DEPTHS_K:
+            t_node = t_need - _mix.ESTABLISH_BELOW_K - depth
+            if t_node <= failed or t_node < self.t_min:
+                continue
+            rho_node = _mix.node_density(rho, depth)
+            started = time.thread_time()
+            try:
+                self._evaluate(rho_node, t_node)
+            except NotApplicable:
+                failed = self._node_failed[region] = max(failed, t_node)
+                continue
+            self._memo.record_node(rho_node, t_node)
+            if time.thread_time() - started > _mix.NODE_SLOW_S:
+                # a node near the two-phase boundary, whose flashes are slow: none deeper here again
+                self._node_failed[region] = max(failed, t_node)
+            return
+        self._evaluate(rho, t_need - _mix.ESTABLISH_BELOW_K)
 
     def phase_established(self, rho_molar: float, T: float) -> bool:
         """Whether the state (rho_molar [mol/m3], T [K]) of a mixture is one phase by what this fluid has
