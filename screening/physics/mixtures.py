@@ -28,7 +28,8 @@ trade (measured on this project's machine, 2026-12-03).
 **Along an isochore.** At fixed overall composition and fixed density the two-phase region lies below a
 boundary temperature (the envelope in the temperature–density plane): a state found one-phase at T on an
 isochore is one-phase at every higher temperature on the same isochore. This is the reading used to carry
-an established state up the isochore without new flashes (:class:`IsochoreMemo`).
+an established state up the isochore without new flashes (:class:`IsochoreMemo`), and, with a bound on the
+slope of that boundary, over to nearby isochores from a few shared nodes (:meth:`IsochoreMemo.record_node`).
 
 Units: SI — pressure [Pa], temperature [K], molar density [mol/m3].
 """
@@ -108,6 +109,12 @@ def take_check() -> str | None:
         return f"{CANNOT}: this screening needed more than its {CASE_CHECK_BOUND} phase checks"
     case[2] -= 1
     return None
+
+
+def checks_left() -> int | None:
+    """Phase checks the enclosing :func:`case_budget` has left (None outside one)."""
+    case = _CASE_DEADLINE.get()
+    return None if case is None else int(case[2])
 
 
 class Budget:
@@ -290,9 +297,11 @@ NODE_REGION = 0.25
 
 
 #: CPU time [s] of a node's flashes above which no node of its region is tried at or below its temperature
-#: again (the flashes near the two-phase boundary are the slow ones: up to 0.7 s for argon + 18 % CO2 at
-#: 215-245 K, against 15-40 ms away from it). A choice of what to flash, never an answer.
+#: again, and above which no node of any region is (the flashes near the two-phase boundary are the slow
+#: ones: 0.3-0.7 s for argon + 18 % CO2 at 215-245 K, against 15-40 ms away from it, and 40-100 ms for a
+#: natural gas). A choice of what to flash, never an answer.
 NODE_SLOW_S = 0.08
+NODE_VERY_SLOW_S = 0.25
 
 
 def node_region(rho: float) -> int:

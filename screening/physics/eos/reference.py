@@ -379,9 +379,10 @@ class ReferenceFluid:
             f"{_mix.CUBIC_MIXING_RULE}")
         self._memo = _mix.IsochoreMemo()
         #: The highest temperature [K] at which a node was not found one phase (establish_isochore), by region
-        #: of density (node_region): no node of the region is tried at or below it again. A choice of what to
-        #: try first only, never an answer.
-        self._node_failed: dict[int, float] = {}
+        #: of density (node_region), and under None the highest at which a node's flashes were very slow: no node
+        #: of the region (of any region) is tried at or below it again. A choice of what to flash, never an
+        #: answer.
+        self._node_failed: dict[int | None, float] = {}
         #: Settled phase answers (one phase or two) keyed by the exact state (rho, p, T): both routes are
         #: deterministic, so the same state asked again (a scenario, a tolerance corner, a repeated row, a
         #: warm screening) gets the same answer without a flash. Answers that could not be established (a
@@ -600,13 +601,17 @@ class ReferenceFluid:
         t_need on, and the isochores of later rows near it (:meth:`IsochoreMemo.record_node`), so that a batch
         of one composition flashes once per node rather than once per row. A node that is not found one phase
         (two phases, no state there, no answer) only costs its flash: the isochore itself is then flashed as
-        without nodes, and no node of nearby densities is tried again at or below that temperature."""
+        without nodes, and no node of nearby densities is tried again at or below that temperature (of any
+        density, after a node whose flashes were very slow)."""
         rho, t_need = float(rho_molar), float(t_need)
         if self._memo.covers(rho, t_need):    # established already (as the checks that follow will find)
             return
         region = _mix.node_region(rho)
-        failed = self._node_failed.get(region, -math.inf)
-        for depth in _mix.NODE_DEPTHS_K:
+        failed = max(self._node_failed.get(region, -math.inf), self._node_failed.get(None, -math.inf))
+        left = _mix.checks_left()
+        # a node may cost a flash more; not where the screening has used half of its phase checks
+        depths = _mix.NODE_DEPTHS_K if left is None or left > _mix.CASE_CHECK_BOUND // 2 else ()
+        for depth in depths:
             t_node = t_need - _mix.ESTABLISH_BELOW_K - depth
             if t_node <= failed or t_node < self.t_min:
                 continue
@@ -618,9 +623,13 @@ class ReferenceFluid:
                 failed = self._node_failed[region] = max(failed, t_node)
                 continue
             self._memo.record_node(rho_node, t_node)
-            if time.thread_time() - started > _mix.NODE_SLOW_S:
-                # a node near the two-phase boundary, whose flashes are slow: none deeper here again
-                self._node_failed[region] = max(failed, t_node)
+            took = time.thread_time() - started
+            if took > _mix.NODE_SLOW_S:
+                # a node near the two-phase boundary, whose flashes are slow: none as deep again here, or
+                # anywhere where they were very slow
+                self._node_failed[region] = max(self._node_failed.get(region, -math.inf), t_node)
+                if took > _mix.NODE_VERY_SLOW_S:
+                    self._node_failed[None] = max(self._node_failed.get(None, -math.inf), t_node)
             return
         self._evaluate(rho, t_need - _mix.ESTABLISH_BELOW_K)
 
