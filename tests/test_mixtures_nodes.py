@@ -157,3 +157,4 @@ def test_screenings_through_nodes_give_the_answers_without_them_in_any_order(mon
     assert with_nodes == without
     assert reversed_order == without
     assert flashes_with < flashes_without
+
