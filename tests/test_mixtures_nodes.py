@@ -158,3 +158,16 @@ def test_screenings_through_nodes_give_the_answers_without_them_in_any_order(mon
     assert reversed_order == without
     assert flashes_with < flashes_without
 
+
+
+def test_no_node_is_made_of_one_route_alone(monkeypatch):
+    # the reference route does not answer: the cubic route's one phase establishes the row's own isochore (as
+    # before nodes), but no node, which would stand for the states of many rows
+    _forget_every_fluid()
+    monkeypatch.setattr(ref.ReferenceFluid, "_reference_route",
+                        lambda self, rho, p, T, budget: mix.RouteAnswer("reference", None, "did not converge"))
+    fluid = reference_fluid(("Nitrogen", "Oxygen"), (0.79, 0.21))
+    fluid.establish_isochore(8000.0, 300.0)
+    assert fluid._memo._node_ln == []
+    assert fluid.phase_established(8000.0, 300.0 - mix.ESTABLISH_BELOW_K)
+    _forget_every_fluid()

@@ -379,6 +379,13 @@ class IsochoreMemo:
             j -= 1
         return False
 
+    def is_node(self, rho: float, T: float) -> bool:
+        """Whether rho [mol/m3] is a node established one-phase from T [K] or lower."""
+        ln = math.log(rho)
+        with self._lock:
+            i = bisect.bisect_left(self._node_ln, ln)
+            return i < len(self._node_ln) and self._node_ln[i] == ln and self._node_t[i] <= T
+
     def record_node(self, rho: float, T: float) -> None:
         """Record the isochore rho [mol/m3] established one-phase from T [K] as a node: it then covers every
         state (rho', T') with T' >= T + NODE_SLOPE_K |ln(rho'/rho)| + NEIGHBOUR_MARGIN_K, by the bound on the

@@ -597,9 +597,10 @@ class ReferenceFluid:
         ``_isochore_from_below`` in screen.py); raises NotApplicable where that state is not one phase.
 
         Where a node (:func:`screening.physics.mixtures.node_density`) can stand for it, the node is flashed
-        instead, deeper down (NODE_DEPTHS_K): one phase there covers this isochore from ESTABLISH_BELOW_K under
-        t_need on, and the isochores of later rows near it (:meth:`IsochoreMemo.record_node`), so that a batch
-        of one composition flashes once per node rather than once per row. A node that is not found one phase
+        instead, deeper down (NODE_DEPTHS_K): one phase there by both routes (each answering) covers this
+        isochore from ESTABLISH_BELOW_K under t_need on, and the isochores of later rows near it
+        (:meth:`IsochoreMemo.record_node`), so that a batch of one composition flashes once per node rather
+        than once per row. A node that is not found one phase
         (two phases, no state there, no answer) only costs its flash: the isochore itself is then flashed as
         without nodes, and no node of nearby densities is tried again at or below that temperature (of any
         density, after a node whose flashes were very slow)."""
@@ -618,8 +619,14 @@ class ReferenceFluid:
             rho_node = _mix.node_density(rho, depth)
             started = time.thread_time()
             try:
-                self._evaluate(rho_node, t_node)
+                p_node = self._evaluate(rho_node, t_node)[0]
             except NotApplicable:
+                failed = self._node_failed[region] = max(failed, t_node)
+                continue
+            settled = self._answers.get((rho_node, p_node, t_node))
+            if (settled is None or not settled.single) and not self._memo.is_node(rho_node, t_node):
+                # one phase by one route alone (the other did not answer), or carried over from another
+                # isochore: a node stands for many rows' states, so it is made only of both routes' answer
                 failed = self._node_failed[region] = max(failed, t_node)
                 continue
             self._memo.record_node(rho_node, t_node)
