@@ -37,7 +37,7 @@ from screening.physics.exposure import (
 )
 from screening.physics.gases import Mixture
 from screening.physics.isochore import isochore_phases, max_liquid_density
-from screening.physics.mixtures import ESTABLISH_BELOW_K, CubicComponent, case_budget, cubic_phase_on_isochore
+from screening.physics.mixtures import CubicComponent, case_budget, cubic_phase_on_isochore
 from screening.physics.roots import brentq
 from screening.result import Result
 from screening.units import percent_pair
@@ -544,9 +544,7 @@ def _isochore_from_below(fluid: ReferenceFluid, density: Callable[[], float], t_
     concluded here: the checks that follow, in their usual order, decide and give their own reason, as they
     would without this step, for one flash more."""
     try:
-        rho = density()
-        if not fluid.phase_established(rho, t_need):
-            fluid.phase(rho, t_need - ESTABLISH_BELOW_K)
+        fluid.establish_isochore(density(), t_need)
     except NotApplicable:
         pass
 

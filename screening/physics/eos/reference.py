@@ -30,6 +30,7 @@ import math
 import os
 import re
 import threading
+import time
 from functools import lru_cache
 
 import CoolProp
@@ -377,6 +378,11 @@ class ReferenceFluid:
             f"fitted for every pair ({', '.join(pairs)}); phase checked by CoolProp's flash and by "
             f"{_mix.CUBIC_MIXING_RULE}")
         self._memo = _mix.IsochoreMemo()
+        #: The highest temperature [K] at which a node was not found one phase (establish_isochore), by region
+        #: of density (node_region), and under None the highest at which a node's flashes were very slow: no node
+        #: of the region (of any region) is tried at or below it again. A choice of what to flash, never an
+        #: answer.
+        self._node_failed: dict[int | None, float] = {}
         #: Settled phase answers (one phase or two) keyed by the exact state (rho, p, T): both routes are
         #: deterministic, so the same state asked again (a scenario, a tolerance corner, a repeated row, a
         #: warm screening) gets the same answer without a flash. Answers that could not be established (a
@@ -583,6 +589,56 @@ class ReferenceFluid:
         self._check_pressure(p)
         self._check_stable(rho, T)
         return p, "homogeneous"
+
+    @_holding_the_state
+    def establish_isochore(self, rho_molar: float, t_need: float) -> None:
+        """Establish a mixture's isochore rho_molar [mol/m3] one-phase from ESTABLISH_BELOW_K under t_need [K],
+        the lowest temperature a screening needs on it, for it and its neighbours within NEIGHBOUR_RTOL (see
+        ``_isochore_from_below`` in screen.py); raises NotApplicable where that state is not one phase.
+
+        Where a node (:func:`screening.physics.mixtures.node_density`) can stand for it, the node is flashed
+        instead, deeper down (NODE_DEPTHS_K): one phase there by both routes (each answering) covers this
+        isochore from ESTABLISH_BELOW_K under t_need on, and the isochores of later rows near it
+        (:meth:`IsochoreMemo.record_node`), so that a batch of one composition flashes once per node rather
+        than once per row. A node that is not found one phase
+        (two phases, no state there, no answer) only costs its flash: the isochore itself is then flashed as
+        without nodes, and no node of nearby densities is tried again at or below that temperature (of any
+        density, after a node whose flashes were very slow)."""
+        rho, t_need = float(rho_molar), float(t_need)
+        if self._memo.covers(rho, t_need):    # established already (as the checks that follow will find)
+            return
+        region = _mix.node_region(rho)
+        failed = max(self._node_failed.get(region, -math.inf), self._node_failed.get(None, -math.inf))
+        left = _mix.checks_left()
+        # a node may cost a flash more; not where the screening has used half of its phase checks
+        depths = _mix.NODE_DEPTHS_K if left is None or left > _mix.CASE_CHECK_BOUND // 2 else ()
+        for depth in depths:
+            t_node = t_need - _mix.ESTABLISH_BELOW_K - depth
+            if t_node <= failed or t_node < self.t_min:
+                continue
+            rho_node = _mix.node_density(rho, depth)
+            started = time.thread_time()
+            try:
+                p_node = self._evaluate(rho_node, t_node)[0]
+            except NotApplicable:
+                failed = self._node_failed[region] = max(failed, t_node)
+                continue
+            settled = self._answers.get((rho_node, p_node, t_node))
+            if (settled is None or not settled.single) and not self._memo.is_node(rho_node, t_node):
+                # one phase by one route alone (the other did not answer), or carried over from another
+                # isochore: a node stands for many rows' states, so it is made only of both routes' answer
+                failed = self._node_failed[region] = max(failed, t_node)
+                continue
+            self._memo.record_node(rho_node, t_node)
+            took = time.thread_time() - started
+            if took > _mix.NODE_SLOW_S:
+                # a node near the two-phase boundary, whose flashes are slow: none as deep again here, or
+                # anywhere where they were very slow
+                self._node_failed[region] = max(self._node_failed.get(region, -math.inf), t_node)
+                if took > _mix.NODE_VERY_SLOW_S:
+                    self._node_failed[None] = max(self._node_failed.get(None, -math.inf), t_node)
+            return
+        self._evaluate(rho, t_need - _mix.ESTABLISH_BELOW_K)
 
     def phase_established(self, rho_molar: float, T: float) -> bool:
         """Whether the state (rho_molar [mol/m3], T [K]) of a mixture is one phase by what this fluid has
