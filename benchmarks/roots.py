@@ -33,9 +33,9 @@ def main() -> None:
     for n in (1, 1000, 20000):
         idx = np.arange(float(n))
         lo, hi = np.zeros(n), np.full(n, 40.0)
-        scipy_s = cpu_per_call(lambda: elementwise.find_root(f, (lo, hi), args=(idx,),
+        scipy_s = cpu_per_call(lambda lo=lo, hi=hi, idx=idx: elementwise.find_root(f, (lo, hi), args=(idx,),
                                                              tolerances=dict(xrtol=_SECANT_RTOL, xatol=1e-300)))
-        own_s = cpu_per_call(lambda: _illinois(f, lo, hi, f(lo, idx), f(hi, idx), idx))
+        own_s = cpu_per_call(lambda lo=lo, hi=hi, idx=idx: _illinois(f, lo, hi, f(lo, idx), f(hi, idx), idx))
         print(f"{n:6d} rows: find_root {scipy_s * 1e3:7.2f} ms   engine._illinois {own_s * 1e3:7.2f} ms   "
               f"ratio {scipy_s / own_s:.1f}")
 
