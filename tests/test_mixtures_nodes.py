@@ -12,10 +12,10 @@ import random
 import CoolProp.CoolProp as CP
 import pytest
 
+from screening.engine import screen_text
 from screening.physics import mixtures as mix
 from screening.physics.eos import reference as ref
 from screening.physics.eos.reference import liquefied_blend, reference_fluid
-from screening.screen import screen_text
 
 CASE = '''id = "{name}"
 [vessel]
