@@ -28,7 +28,8 @@ not) and no tolerances, both temperatures above the critical temperature (the "v
   :func:`screening.screen.fold_scenarios`, as the single screening does (:func:`_screen_expanded`).
 
 A pure liquefied gas (carbon dioxide, propane, ammonia, the refrigerants: a pure fluid with a saturation dome)
-filled by mass or by pressure at a stated fill temperature, with one exposure and no tolerances, runs on
+filled by mass or by pressure, or a pure permanent gas with a dome and fixed critical constants filled by mass
+(:func:`_mass_fill_gas`), at a stated fill temperature, with one exposure and no tolerances, runs on
 :func:`_liquefied_columns`: the saturation and critical bands (such rows are refused as the single screening
 refuses them), the fill density and the phases at fill and at the worst case on the reference equation, the
 dome crossings, the liquid-full rule, the ideal and generalized models where the contents are a gas at both,
@@ -36,7 +37,8 @@ and the limits, each root as screen._root finds it; the verdict through the same
 (:func:`_liquefied_verdict`).
 
 Everything else takes the state-by-state route, :func:`screening.screen.screen_states`, one row at a time, on purpose: dissolved gases
-and mixtures (their phase is checked per row by two routes, see physics.mixtures), permanent-gas fills by mass,
+and mixtures (their phase is checked per row by two routes, see physics.mixtures), fills by mass of hydrogen,
+helium, neon (their generalized model corrects its constants with the temperature) and air,
 fills of a permanent gas near its critical temperature, liquefied gases with tolerances or several scenarios, a
 permanent-gas row any of whose scenario or tolerance states falls outside this path, and any row where a
 vectorised step is not sure of itself (a root next to the edge of a model's range, a solve that did not
@@ -589,22 +591,25 @@ class PlainPart(Rows):
     """Rows of one gas from an inventory's plain rows, with what their verdicts need besides: the relief
     set pressure [Pa] absolute and the maximum filling ratio [kg/m3] (NaN: none); for a liquefied gas, the
     fill mass per water capacity [kg/m3] (NaN where the fill is given by pressure, whose ``p_fill`` is NaN
-    where it is given by mass; None: every row by pressure)."""
+    where it is given by mass; None: every row by pressure); ``liquefied``: the part runs on
+    :func:`_liquefied_columns` (a liquefied gas, or a permanent gas filled by mass)."""
 
     relief: np.ndarray
     ratio: np.ndarray
     rho_mass: np.ndarray | None = None
+    liquefied: bool = False
 
     def take(self, idx: np.ndarray) -> "PlainPart":
         return PlainPart(self.gas, *(getattr(self, k)[idx] for k in (
             "p_fill", "t_fill", "ambient_max", "gas_temperature", "rated", "atm", "margin_req", "relief", "ratio")),
-            rho_mass=None if self.rho_mass is None else self.rho_mass[idx])
+            rho_mass=None if self.rho_mass is None else self.rho_mass[idx], liquefied=self.liquefied)
 
 
 def _plain_columns(part: PlainPart) -> dict:
     """_columns of the part plus ``verdict``: each vectorised row's :func:`_verdict` (None on fallback rows),
-    so that forked workers decide the verdicts of their own rows (a liquefied gas: :func:`_liquefied_plain_columns`)."""
-    if _liquefied_gas(part.gas):
+    so that forked workers decide the verdicts of their own rows (a liquefied gas, or ``part.liquefied``:
+    :func:`_liquefied_plain_columns`)."""
+    if part.liquefied or _liquefied_gas(part.gas):
         return _liquefied_plain_columns(part)
     cols = _columns(part)
     verdicts = np.full(part.p_fill.size, None, dtype=object)
@@ -1327,7 +1332,9 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
     ``{"verdict": "input-error", "error": InputError}`` for the caller to place.
     """
     results: list[dict | None] = [None] * len(cases)
-    groups: dict[str, list[int]] = {}
+    # groups by gas and by the columns that take them (a permanent gas: by pressure on _columns, by mass on
+    # _liquefied_columns)
+    groups: dict[tuple[str, bool], list[int]] = {}
     rest: list[int] = []
     sun: dict[int, SunRow | None] = {}
     expanded: dict[str, list[int]] = {}
@@ -1335,17 +1342,18 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
         if expandable(c):
             expanded.setdefault(c.gas.name, []).append(i)
             continue
-        if vectorisable(c) or liquefied_vectorisable(c):
+        liquefied = liquefied_vectorisable(c)
+        if liquefied or vectorisable(c):
             try:
                 sun[i] = _sun_row(c)
             except InputError:
                 rest.append(i)      # the per-row path raises it again, in its place
                 continue
-            groups.setdefault(c.gas.name, []).append(i)
+            groups.setdefault((c.gas.name, liquefied), []).append(i)
         else:
             rest.append(i)
     names = list(groups)
-    all_cols = _run_columns([(LiquefiedRows if _liquefied_gas(cases[groups[nm][0]].gas) else Rows).of_cases(
+    all_cols = _run_columns([(LiquefiedRows if nm[1] else Rows).of_cases(
         [cases[i] for i in groups[nm]], [sun[i] for i in groups[nm]]) for nm in names], _group_columns)
     for nm, cols in zip(names, all_cols):
         idx = groups[nm]
@@ -1427,13 +1435,16 @@ class PlainScreening:
         self.summaries: list[dict | None] = [None] * n
         self._full: dict[int, dict] = {}
         self._where: dict[int, tuple[dict, int]] = {}
-        groups: dict[str, list[int]] = {}
+        groups: dict[tuple[str, bool], list[int]] = {}
         rest: list[int] = []
         by_mass = ~np.isnan(plain.fill_mass_kg)
         for j, gas in enumerate(plain.gases):
-            # a fill by mass: on the liquefied-gas columns only (a permanent gas by mass goes per row)
-            arrays = _liquefied_gas(gas) or (not by_mass[j] and _vector_gas(gas))
-            (groups.setdefault(gas.name, []) if arrays else rest).append(j)
+            # a fill by mass: on the liquefied-gas columns only (a quantum gas or air by mass goes per row)
+            liquefied = _on_liquefied_columns(gas, bool(by_mass[j]))
+            if liquefied or (not by_mass[j] and _vector_gas(gas)):
+                groups.setdefault((gas.name, liquefied), []).append(j)
+            else:
+                rest.append(j)
         names = list(groups)
         parts = []
         for nm in names:
@@ -1443,7 +1454,7 @@ class PlainScreening:
             parts.append(PlainPart(plain.gases[idx[0]], plain.fill_pressure_pa[idx], plain.fill_temperature_k[idx],
                                    plain.ambient_max_k[idx], plain.gas_temperature_k[idx], plain.rated_pa[idx],
                                    plain.atmospheric_pa[idx], plain.required_margin[idx], plain.relief_pa[idx],
-                                   plain.max_filling_ratio_kg_m3[idx], rho_mass))
+                                   plain.max_filling_ratio_kg_m3[idx], rho_mass, liquefied=nm[1]))
         for nm, cols in zip(names, _run_columns(parts, _plain_columns)):
             done = 0
             gas = plain.gases[groups[nm][0]]
@@ -1503,10 +1514,9 @@ def iter_chunks(items: list, size: int) -> Iterable[list]:
 
 # ----------------------------------------------------------------------------- liquefied gases
 
-def _liquefied_gas(gas: Mixture) -> bool:
-    """A pure liquefiable gas whose reference equation has a saturation dome (carbon dioxide, propane, ammonia,
-    the refrigerants…): its rows by mass and by pressure run on :func:`_liquefied_columns`."""
-    if not (gas.is_pure and gas.kind == "liquefiable" and gas.components[0].coolprop_name):
+def _dome_gas(gas: Mixture) -> bool:
+    """A pure gas whose reference equation has a saturation dome (not a mixture, not the pseudo-pure air)."""
+    if not (gas.is_pure and gas.components[0].coolprop_name):
         return False
     try:
         fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
@@ -1515,12 +1525,32 @@ def _liquefied_gas(gas: Mixture) -> bool:
     return _screen._is_pure(fluid)
 
 
+def _liquefied_gas(gas: Mixture) -> bool:
+    """A pure liquefiable gas whose reference equation has a saturation dome (carbon dioxide, propane, ammonia,
+    the refrigerants…): its rows by mass and by pressure run on :func:`_liquefied_columns`."""
+    return gas.kind == "liquefiable" and _dome_gas(gas)
+
+
+def _mass_fill_gas(gas: Mixture) -> bool:
+    """A pure permanent gas with a saturation dome and fixed critical constants (nitrogen, oxygen, argon, carbon
+    monoxide, methane, krypton; not the quantum gases, whose generalized model corrects its constants with the
+    temperature, nor air): its rows filled by mass run on :func:`_liquefied_columns` too. Those columns are the
+    closed-tank analysis of any pure fluid with a dome, which screen.screen_states applies alike to a permanent
+    and a liquefiable gas; tests/test_permanent_by_mass.py compares both routes row by row."""
+    return gas.kind == "permanent" and not gas.components[0].quantum and _dome_gas(gas)
+
+
+def _on_liquefied_columns(gas: Mixture, by_mass: bool) -> bool:
+    """Whether a row of this gas (filled by mass where `by_mass`) runs on :func:`_liquefied_columns`."""
+    return _liquefied_gas(gas) or (by_mass and _mass_fill_gas(gas))
+
+
 def liquefied_vectorisable(case: Case) -> bool:
-    """Whether the liquefied-gas columns cover this row: a pure liquefied gas filled by mass or by pressure at a
-    stated fill temperature, with one exposure (in the sun or not) and no tolerances. Rows those columns are not
-    sure of (a gas at fill and at the worst case, where the gas models apply; a state the reference equation
-    refuses) still go per row."""
-    if not _liquefied_gas(case.gas) or case.fill_temperature_k is None:
+    """Whether the liquefied-gas columns cover this row: a pure liquefied gas filled by mass or by pressure, or a
+    pure permanent gas filled by mass (:func:`_mass_fill_gas`), at a stated fill temperature, with one exposure (in
+    the sun or not) and no tolerances. Rows those columns are not sure of (a gas at fill and at the worst case,
+    where the gas models apply; a state the reference equation refuses) still go per row."""
+    if not _on_liquefied_columns(case.gas, case.fill_mass_kg is not None) or case.fill_temperature_k is None:
         return False
     if (case.fill_pressure_pa is None) == (case.fill_mass_kg is None):
         return False
@@ -1550,8 +1580,8 @@ class LiquefiedRows(Rows):
 
 
 def _group_columns(rows: Rows) -> dict:
-    """The columns of one gas group: :func:`_liquefied_columns` for a liquefied gas, else :func:`_columns`."""
-    return _liquefied_columns(rows) if _liquefied_gas(rows.gas) else _columns(rows)
+    """The columns of one group: :func:`_liquefied_columns` for LiquefiedRows, else :func:`_columns`."""
+    return _liquefied_columns(rows) if isinstance(rows, LiquefiedRows) else _columns(rows)
 
 
 def _known_scan_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], x: np.ndarray, lo: np.ndarray,
