@@ -3,8 +3,9 @@ a table of one row (:func:`screen_case`); the batch, the terminal summary, JSON,
 web page all consume its Result. Plot data are added by :func:`with_plot_data` (screen.plot_data) for the views
 that draw them.
 
-Rows are grouped by gas. For a pure permanent gas filled by pressure, with one exposure (in the sun or
-not) and no tolerances, both temperatures above the critical temperature (the "vectorised path"):
+Rows are grouped by gas. For a pure permanent gas filled by pressure (or hydrogen, helium, neon or air filled by
+mass: the fill density given, each model's fill pressure at it, no fill-pressure limit), with one exposure (in the
+sun or not) and no tolerances, both temperatures above the critical temperature (the "vectorised path"):
 
 * a row in the sun gets its worst case from :func:`screening.screen._worst_case_temperature` (the energy
   balance, per row and cheap), with its basis, balance and warnings; the rest of the row runs on the arrays;
@@ -37,8 +38,7 @@ and the limits, each root as screen._root finds it; the verdict through the same
 (:func:`_liquefied_verdict`).
 
 Everything else takes the state-by-state route, :func:`screening.screen.screen_states`, one row at a time, on purpose: dissolved gases
-and mixtures (their phase is checked per row by two routes, see physics.mixtures), fills by mass of hydrogen,
-helium, neon (their generalized model corrects its constants with the temperature) and air,
+and mixtures (their phase is checked per row by two routes, see physics.mixtures),
 fills of a permanent gas near its critical temperature, liquefied gases with tolerances or several scenarios, a
 permanent-gas row any of whose scenario or tolerance states falls outside this path, and any row where a
 vectorised step is not sure of itself (a root next to the edge of a model's range, a solve that did not
@@ -101,7 +101,7 @@ def vectorisable(case: Case) -> bool:
     """Whether the vectorised path covers this row (see the module doc); the rest go per row."""
     if not _vector_gas(case.gas):
         return False
-    if case.fill_pressure_pa is None or case.fill_temperature_k is None:
+    if (case.fill_pressure_pa is None) == (case.fill_mass_kg is None) or case.fill_temperature_k is None:
         return False
     if getattr(case, "tolerance", None) is not None:
         return False
@@ -680,7 +680,10 @@ def _generalized_columns(gas: Mixture, p_fill: np.ndarray, t_fill: np.ndarray, t
     kq = None
     if gas.is_pure and comps[0].quantum and not lk_ok.all():
         kq = (comps[0].classical_critical_temperature, comps[0].classical_critical_pressure, comps[0].molar_mass)
-        qf = srk_quantum_density(p_fill, t_fill, *kq)
+        qf = srk_quantum_density(np.where(by_density, 1e5, p_fill), t_fill, *kq)
+        if by_density.any():      # a mass fill: the model's pressure at the given density
+            qd = srk_quantum_pressure(np.where(by_density, rho_given, 1.0), t_fill, *kq)
+            qf = GeneralizedState(*(np.where(by_density, getattr(qd, f), getattr(qf, f)) for f in GENERALIZED_FIELDS))
         qp = srk_quantum_pressure(np.where(qf.valid, qf.molar_density, 1.0), t_peak, *kq)
         q_srk = ~lk_ok & qf.valid & qp.valid
         q_reason = np.where(qf.valid, qp.reason, qf.reason).astype(object)
@@ -701,20 +704,35 @@ def _generalized_columns(gas: Mixture, p_fill: np.ndarray, t_fill: np.ndarray, t
 _FLOAT_COLUMNS = ("t_peak", "rho_molar", "peak_ref", "rho_ideal", "peak_ideal", "lk_rho_fill", "lk_z_fill",
                   "lk_tr_fill", "lk_pr_fill", "lk_peak", "lk_z_peak", "lk_tr_peak", "lk_pr_peak", "tcf", "pcf",
                   "tcp", "pcp", "omp", "dry", "liquid_full", "dpdt_liquid_full", "max_t", "max_p", "target",
-                  "mass_rho", "crossing")
+                  "mass_rho", "crossing", "p_fill_ref")
 
 
-def _reference_fill_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> np.ndarray:
-    """The reference fill state of permanent-gas rows: the density at the fill (PT flash, checked) and the peak
-    on the same isochore (``rho_molar``, ``peak_ref``). Returns the fill's molar density as the flash gives it."""
+def _reference_fill_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray,
+                            given: np.ndarray | None = None) -> np.ndarray:
+    """The reference fill state of permanent-gas rows: the density at the fill (PT flash, checked; where `given`
+    [kg/m3] is finite, a fill by mass, that density and the pressure it has at the fill temperature,
+    ``p_fill_ref``) and the peak on the same isochore (``rho_molar``, ``peak_ref``). Returns the fill's molar
+    density as the flash gives it (a fill by mass: as given)."""
     n = rows.p_fill.size
     gas, p_fill, t_fill, t_peak = rows.gas, rows.p_fill, rows.t_fill, out["t_peak"]
+    by_mass = np.zeros(n, dtype=bool) if given is None else np.isfinite(given)
     rho_molar = np.full(n, np.nan)
-    live = np.flatnonzero(~fallback)
+    live = np.flatnonzero(~fallback & ~by_mass)
     rho_molar[live], ok_fill = _density_once(fluid, p_fill[live], t_fill[live])
     fallback[live[~ok_fill]] = True
     # the single screening takes the fill's mass density and divides by the molar mass again: so here
     rho_ref = (rho_molar * gas.molar_mass) / gas.molar_mass
+    mass = np.flatnonzero(by_mass)
+    if mass.size:
+        rho_molar[mass] = rho_ref[mass] = given[mass] / gas.molar_mass
+        if not fluid.is_pseudo_pure:
+            # a fill denser than the liquid at the triple point is an input error: per row, where it is raised
+            fallback[mass[rho_ref[mass] > _rho_top(fluid, True)]] = True
+        live = np.flatnonzero(~fallback & by_mass)
+        if live.size:
+            p, v, _rs = fluid.pressures(rho_ref[live], t_fill[live])
+            out["p_fill_ref"][live] = p
+            fallback[live[~v]] = True
     out["rho_molar"] = rho_ref
     peak_ref = out["peak_ref"]
     live = np.flatnonzero(~fallback)
@@ -734,6 +752,7 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
     the quantum-gas SRK rows by the scan. Returns (temperatures [K], fill pressures [Pa]), NaN for none."""
     n = rows.p_fill.size
     rated, t_fill, t_peak, target = rows.rated, rows.t_fill, out["t_peak"], out["target"]
+    by_mass = out["by_mass"]
     lk_ok, q_srk, rho_lk, kq = gen["lk_ok"], gen["q_srk"], gen["_rho_lk"], gen["_kq"]
     tcf, pcf, omf, tcp, pcp, omp = (gen[k] for k in ("tcf", "pcf", "_omf", "tcp", "pcp", "omp"))
     peak_lk = out["lk_peak"]
@@ -748,8 +767,10 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
             st = srk_quantum_pressure(rho_lk[r], t, *kq)
             return np.where(st.valid, st.pressure - rated[r], np.nan)
 
+        rows_qp = rows_q[~by_mass[rows_q]]      # a fill by mass has no fill-pressure limit
+
         def fill_q(p, ix):
-            r = rows_q[ix]
+            r = rows_qp[ix]
             s1 = srk_quantum_density(p, t_fill[r], *kq)
             s2 = srk_quantum_pressure(np.where(s1.valid, s1.molar_density, 1.0), t_peak[r], *kq)
             return np.where(s1.valid & s2.valid, s2.pressure - target[r], np.nan)
@@ -761,7 +782,8 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
         if rest.size:
             t_lk[rows_q[rest]] = _monotone_root(lambda t, ix: iso_q(t, rest[ix]), t_lo[rows_q[rest]],
                                                 t_hi[rows_q[rest]])
-        max_p_lk[rows_q] = _monotone_root(fill_q, p_lo[rows_q], p_hi[rows_q])
+        if rows_qp.size:
+            max_p_lk[rows_qp] = _monotone_root(fill_q, p_lo[rows_qp], p_hi[rows_qp])
     if rows_lk.size:
         i = rows_lk
 
@@ -815,7 +837,7 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
         hasp = np.isfinite(pstar) & (pstar >= p_lo[i]) & (pstar <= p_hi[i])
         a, b = _linspace_bracket(p_lo[i], p_hi[i], pstar)
         edgep = hasp & ((b / pcf[i] > _LK_PR_EDGE) | (target[i] * b / pstar / pcp[i] > _LK_PR_EDGE))
-        unsure = edgep | (~np.isfinite(pstar) & (target[i] / pcp[i] < 10.5))
+        unsure = (edgep | (~np.isfinite(pstar) & (target[i] / pcp[i] < 10.5))) & ~by_mass[i]
         ok = hasp & ~unsure
         max_p_lk[i[ok]] = pstar[ok]
         unsure &= ~_above_lk_pressures(target[i], pcp[i])   # a target no peak of the model reaches: none
@@ -906,19 +928,28 @@ def _columns(rows: Rows, limits: bool = True) -> dict:
     """Every model, the phase boundary and the limits for rows of one pure permanent gas, as arrays
     (`limits` False: the models alone, for the states of tolerance corners, see :func:`_corner_peaks`).
 
+    A row filled by mass (rows with ``rho_mass`` [kg/m3], finite for such a row; its ``p_fill`` is NaN) starts from
+    that density: its fill pressure on each model is that model's pressure at the fill temperature, and it has no
+    fill-pressure limit (screen._limits).
+
     Returns a dict of the arrays named in _FLOAT_COLUMNS plus ``stated`` (the stated gas temperature is the
-    worst-case basis), ``lk_ok``, ``lk_reason`` and ``fallback`` (rows that must go per row)."""
+    worst-case basis), ``lk_ok``, ``lk_reason``, ``by_mass``, ``fill_over`` (the fill itself at or above the rating
+    on a real-gas model) and ``fallback`` (rows that must go per row)."""
     n = rows.p_fill.size
     gas = rows.gas
     g = gas.components[0]
     p_fill, t_fill, rated, atm, margin_req = rows.p_fill, rows.t_fill, rows.rated, rows.atm, rows.margin_req
+    given = getattr(rows, "rho_mass", None)
+    by_mass = np.zeros(n, dtype=bool) if given is None else np.isfinite(given)
+    by_pressure = ~by_mass
     t_peak, stated, fill_governs, t_exposure = worst_case(rows.ambient_max, rows.gas_temperature, t_fill)
     fallback = np.zeros(n, dtype=bool)
     nan = np.full(n, np.nan)
     out = {k: nan.copy() for k in _FLOAT_COLUMNS}
     out.update(t_peak=t_peak, stated=stated, fill_governs=fill_governs, t_exposure=t_exposure, fallback=fallback, lk_ok=np.zeros(n, dtype=bool),
                lk_reason=np.full(n, "", dtype=object),
-               gas_below_ambient=~np.isnan(rows.gas_temperature) & (rows.gas_temperature < rows.ambient_max))
+               gas_below_ambient=~np.isnan(rows.gas_temperature) & (rows.gas_temperature < rows.ambient_max),
+               by_mass=by_mass, fill_over=np.zeros(n, dtype=bool))
     try:
         fluid = reference_fluid((g.coolprop_name,), (1.0,))
     except NotApplicable:
@@ -935,18 +966,19 @@ def _columns(rows: Rows, limits: bool = True) -> dict:
         fallback |= t_fill <= _screen.LIQUID_LIKE_TEMPERATURE_RATIO * tc_ref
 
     # --- reference fill state: density at the fill (PT flash, checked), peak on the same isochore
-    rho_molar = _reference_fill_columns(rows, fluid, out, fallback)
+    rho_molar = _reference_fill_columns(rows, fluid, out, fallback, given)
 
     # --- where the isochore meets the dome (pure fluids; the pseudo-pure air has no phase analysis)
     if pure and limits:
         _dome_columns(fluid, rho_molar, out, fallback)
 
     # --- ideal
-    out["rho_ideal"] = rho_ideal = p_fill / (R * t_fill)
+    out["rho_ideal"] = rho_ideal = np.where(by_mass, out["rho_molar"], p_fill / (R * t_fill))
     out["peak_ideal"] = rho_ideal * R * t_peak
 
     # --- generalized, as arrays
-    gen = _generalized_columns(gas, p_fill, t_fill, t_peak)
+    gen = _generalized_columns(gas, p_fill, t_fill, t_peak,
+                               None if not by_mass.any() else np.where(by_mass, out["rho_molar"], np.nan))
     out.update({k: v for k, v in gen.items() if not k.startswith("_")})
     lk_ok, q_srk = gen["lk_ok"], gen["q_srk"]
     # the vectorised limits assume constant critical constants (not the quantum correction)
@@ -954,6 +986,12 @@ def _columns(rows: Rows, limits: bool = True) -> dict:
         fallback |= lk_ok & ~q_srk
     if not limits:
         return out
+
+    # --- the fill itself at or above the rating (screen._fill_over_rating): the fill pressure, or for a mass fill
+    # each applicable real-gas model's pressure at the fill
+    with np.errstate(invalid="ignore"):
+        out["fill_over"] = np.where(by_pressure, p_fill >= rated,
+                                    ~(out["p_fill_ref"] < rated) | (lk_ok & (out["lk_p_fill"] >= rated)))
 
     # --- limits: targets and scan ranges as screen._limits has them
     out["target"] = target = atm + (rated - atm) * (1.0 - margin_req)
@@ -965,6 +1003,9 @@ def _columns(rows: Rows, limits: bool = True) -> dict:
     t_lk, max_p_lk = _generalized_limits(rows, out, gen, fallback, t_lo, t_hi, p_lo, p_hi)
 
     _reference_limits(rows, fluid, pure, out, fallback, t_lk, max_p_lk, t_lo, t_hi, p_lo, p_hi)
+    # a fill by mass: no fill-pressure limit, and no temperature limit where the fill itself is over the rating
+    out["max_p"][by_mass] = np.nan
+    out["max_t"][by_mass & out["fill_over"]] = np.nan
 
     # vapour pressure where the isochore leaves the dome (isochore.isochore_phases: crossing_pressure)
     _crossing_columns(fluid, out, fallback)
@@ -1069,6 +1110,9 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
     t_fill, t_peak = float(case.fill_temperature_k), float(cols["t_peak"][k])
     rho_molar = float(cols["rho_molar"][k])
     rho_mass = rho_molar * gas.molar_mass
+    by_pressure = case.fill_pressure_pa is not None
+    # the reference equation's fill pressure: as filled, or for a fill by mass, at its density
+    p_fill_ref = case.fill_pressure_pa if by_pressure else float(cols["p_fill_ref"][k])
     peak_ref, peak_ideal, rho_ideal = float(cols["peak_ref"][k]), float(cols["peak_ideal"][k]), float(cols["rho_ideal"][k])
     phase = "supercritical"   # both temperatures above the critical temperature, single phase
     ideal = {"applicable": True, "peak_pressure_pa": peak_ideal,
@@ -1078,7 +1122,7 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
     ref = {"applicable": True, "peak_pressure_pa": peak_ref,
            "note": "multiparameter Helmholtz-energy equation of state (CoolProp)",
            "fill_molar_density_mol_m3": rho_molar, "fluid": fluid.label, "phase_fill": phase, "phase_peak": phase,
-           "z_fill": case.fill_pressure_pa / (rho_molar * 8.314462618 * t_fill),
+           "z_fill": p_fill_ref / (rho_molar * 8.314462618 * t_fill),
            "z_peak": peak_ref / (rho_molar * R * t_peak), "eos_references": fluid.eos_references()}
     models = {"ideal": ideal, "generalized": gen, "reference": ref}
     gov_name, peak = v["governing_model"], v["peak_pressure_pa"]
@@ -1094,7 +1138,7 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
             rm, basis = case.max_filling_ratio_kg_m3, "the vessel's maximum filling ratio"
         mass_limit = {"max_fill_mass_kg": rm * case.water_capacity_m3, "max_filling_ratio_kg_per_l": rm / 1000.0,
                       "max_fill_mass_basis": basis}
-    fill_over = case.fill_pressure_pa >= case.rated_pressure_pa
+    fill_over = case.fill_pressure_pa >= case.rated_pressure_pa if by_pressure else bool(cols["fill_over"][k])
     limits = {**mass_limit, "max_gas_temperature_k": None if fill_over else _opt(cols["max_t"][k]),
               "max_fill_pressure_pa": _opt(cols["max_p"][k]),
               "target_peak_pressure_pa": float(cols["target"][k]), "note": _screen.limits_note(True, fill_over),
@@ -1106,9 +1150,10 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
         "verdict": v["verdict"], "reasons": v["reasons"], "warnings": v["warnings"],
         "fill": {"pressure_pa": case.fill_pressure_pa, "temperature_k": t_fill, "temperature_given": True,
                  "density_kg_m3": rho_mass, "molar_density_mol_m3": rho_molar,
-                 "mass_kg": rho_mass * case.water_capacity_m3,
+                 "mass_kg": (rho_mass if by_pressure else case.fill_mass_kg / case.water_capacity_m3)
+                 * case.water_capacity_m3,
                  "phase": phase, "filling_ratio_kg_per_l": rho_mass / 1000.0 if rho_mass else None,
-                 "vapour_pressure_pa": None, "given": "pressure"},
+                 "vapour_pressure_pa": None, "given": "pressure" if by_pressure else "mass"},
         "worst_case_temperature_k": t_peak,
         "worst_case_basis": (sun.basis if sun is not None else _screen.FILL_STATE_BASIS if cols["fill_governs"][k] else
                              "gas temperature stated in the case" if cols["stated"][k] else "ambient maximum"),
@@ -1353,8 +1398,9 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
         else:
             rest.append(i)
     names = list(groups)
-    all_cols = _run_columns([(LiquefiedRows if nm[1] else Rows).of_cases(
-        [cases[i] for i in groups[nm]], [sun[i] for i in groups[nm]]) for nm in names], _group_columns)
+    all_cols = _run_columns([(LiquefiedRows if nm[1] or any(cases[i].fill_mass_kg is not None for i in groups[nm])
+                              else Rows).of_cases([cases[i] for i in groups[nm]], [sun[i] for i in groups[nm]])
+                             for nm in names], _group_columns)
     for nm, cols in zip(names, all_cols):
         idx = groups[nm]
         done = 0
@@ -1439,9 +1485,10 @@ class PlainScreening:
         rest: list[int] = []
         by_mass = ~np.isnan(plain.fill_mass_kg)
         for j, gas in enumerate(plain.gases):
-            # a fill by mass: on the liquefied-gas columns only (a quantum gas or air by mass goes per row)
+            # a permanent gas with a dome filled by mass on the liquefied-gas columns; hydrogen, helium, neon and
+            # air filled by mass on the permanent-gas columns with their fills by pressure
             liquefied = _on_liquefied_columns(gas, bool(by_mass[j]))
-            if liquefied or (not by_mass[j] and _vector_gas(gas)):
+            if liquefied or _vector_gas(gas):
                 groups.setdefault((gas.name, liquefied), []).append(j)
             else:
                 rest.append(j)
@@ -1534,7 +1581,8 @@ def _liquefied_gas(gas: Mixture) -> bool:
 def _mass_fill_gas(gas: Mixture) -> bool:
     """A pure permanent gas with a saturation dome and fixed critical constants (nitrogen, oxygen, argon, carbon
     monoxide, methane, krypton; not the quantum gases, whose generalized model corrects its constants with the
-    temperature, nor air): its rows filled by mass run on :func:`_liquefied_columns` too. Those columns are the
+    temperature, nor air, which has no dome: those run on :func:`_columns`): its rows filled by mass run on
+    :func:`_liquefied_columns` too. Those columns are the
     closed-tank analysis of any pure fluid with a dome, which screen.screen_states applies alike to a permanent
     and a liquefiable gas; tests/test_permanent_by_mass.py compares both routes row by row."""
     return gas.kind == "permanent" and not gas.components[0].quantum and _dome_gas(gas)
@@ -1578,10 +1626,20 @@ class LiquefiedRows(Rows):
                                                               "gas_temperature", "rated", "atm", "margin_req")},
                              rho_mass=rho_mass)
 
+    def take(self, idx: np.ndarray) -> "LiquefiedRows":
+        base = Rows.take(self, idx)
+        return LiquefiedRows(**{k: getattr(base, k) for k in ("gas", "p_fill", "t_fill", "ambient_max",
+                                                              "gas_temperature", "rated", "atm", "margin_req")},
+                             rho_mass=self.rho_mass[idx])
+
 
 def _group_columns(rows: Rows) -> dict:
-    """The columns of one group: :func:`_liquefied_columns` for LiquefiedRows, else :func:`_columns`."""
-    return _liquefied_columns(rows) if isinstance(rows, LiquefiedRows) else _columns(rows)
+    """The columns of one group: :func:`_liquefied_columns` for a liquefied gas and for a permanent gas with a dome
+    filled by mass (:func:`_mass_fill_gas`, in LiquefiedRows), else :func:`_columns` (which takes the fill masses of
+    LiquefiedRows too)."""
+    if _liquefied_gas(rows.gas) or (isinstance(rows, LiquefiedRows) and _mass_fill_gas(rows.gas)):
+        return _liquefied_columns(rows)
+    return _columns(rows)
 
 
 def _known_scan_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], x: np.ndarray, lo: np.ndarray,
