@@ -124,10 +124,20 @@ def _library_kinds() -> list[tuple]:
     return pure + by_mass + by_pressure
 
 
+#: A defaults file giving every row two exposure scenarios (the worst governs).
+TWO_SCENARIOS = TOLERANCES_AND_SCENARIOS[TOLERANCES_AND_SCENARIOS.index("[[scenario]]"):]
+
 # (label, gas name for the tool, CoolProp fluid string, row maker, share of the rows[, defaults file text])
 OPTIONS = [
     ("nitrogen, 10 % in the sun", "nitrogen", "Nitrogen", _pressure_rows("nitrogen", sun_share=0.1), 1.0),
     ("nitrogen, tolerances and two scenarios", "nitrogen", "Nitrogen", _pressure_rows("nitrogen"), 0.1,
+     TOLERANCES_AND_SCENARIOS),
+    # propane by mass over its filling ratios (to 0.9 of its saturated liquid density at 50 degC), rated 1.1 to 2.5
+    # times its vapour pressure at 65 degC, as the library's "propane by mass" kind
+    ("propane by mass, two scenarios", "propane", "Propane", _mass_rows("propane", 0.05, 0.42, 24.0, 55.0), 0.1,
+     TWO_SCENARIOS),
+    ("propane by mass, tolerances and two scenarios", "propane", "Propane", _mass_rows("propane", 0.05, 0.42, 24.0,
+                                                                                       55.0), 0.1,
      TOLERANCES_AND_SCENARIOS),
 ]
 MIXTURES = [

@@ -1383,9 +1383,13 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
     rest: list[int] = []
     sun: dict[int, SunRow | None] = {}
     expanded: dict[str, list[int]] = {}
+    liquefied_scenarios: dict[str, list[int]] = {}
     for i, c in enumerate(cases):
         if expandable(c):
             expanded.setdefault(c.gas.name, []).append(i)
+            continue
+        if liquefied_expandable(c):
+            liquefied_scenarios.setdefault(c.gas.name, []).append(i)
             continue
         liquefied = liquefied_vectorisable(c)
         if liquefied or vectorisable(c):
@@ -1412,9 +1416,10 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
                 done += 1
         if progress:
             progress(done)
-    for idx in expanded.values():
+    for idx, screen_them in [(idx, _screen_expanded) for idx in expanded.values()] + [
+            (idx, _screen_liquefied_scenarios) for idx in liquefied_scenarios.values()]:
         done = 0
-        for i, r in zip(idx, _screen_expanded([cases[i] for i in idx])):
+        for i, r in zip(idx, screen_them([cases[i] for i in idx])):
             if r is None:
                 rest.append(i)
             else:
@@ -1606,6 +1611,58 @@ def liquefied_vectorisable(case: Case) -> bool:
         return False
     scenarios = getattr(case, "scenarios", ())
     return not (len(scenarios) > 1 or any(getattr(s, "solar", "none") not in ("none", "sun") for s in scenarios))
+
+
+def liquefied_expandable(case: Case) -> bool:
+    """Whether a row the liquefied-gas columns take (:func:`liquefied_vectorisable`, but with several exposure
+    scenarios, each in the sun or not, and no tolerances) runs on them with each scenario a row of the table
+    (:func:`_screen_liquefied_scenarios`)."""
+    scenarios = getattr(case, "scenarios", ())
+    if len(scenarios) <= 1 or getattr(case, "tolerance", None) is not None or case.fill_temperature_k is None:
+        return False
+    if (case.fill_pressure_pa is None) == (case.fill_mass_kg is None):
+        return False
+    return (_on_liquefied_columns(case.gas, case.fill_mass_kg is not None)
+            and all(getattr(s, "solar", "none") in ("none", "sun") for s in scenarios))
+
+
+def _screen_liquefied_scenarios(cases: list[Case]) -> list[Result | None]:
+    """Rows of one gas on the liquefied-gas columns with several scenarios: every scenario a row of one table
+    (its worst case as screen._worst_case_temperature finds it, :func:`_exposure_row`), each scenario's result
+    laid out as for a row of one scenario, then folded into one result per vessel by screen.fold_scenarios, as
+    screen.screen_states folds them. None where a row must go per row (one of its scenarios fell back, or its
+    worst case raises)."""
+    out: list[Result | None] = [None] * len(cases)
+    exposures: dict[int, list[SunRow]] = {}
+    for i, c in enumerate(cases):
+        try:
+            exposures[i] = [_exposure_row(c, sc) for sc in c.scenarios]
+        except (InputError, ValueError):
+            continue                    # the per-row path raises it again, in its place
+    keys = [(i, j) for i, rows in exposures.items() for j in range(len(rows))]
+    if not keys:
+        return out
+    cols = _liquefied_columns(LiquefiedRows.of_cases([cases[i] for i, _j in keys],
+                                                     [exposures[i][j] for i, j in keys]))
+    fallback = cols["fallback"].tolist()
+    bad = {i for (i, _j), f in zip(keys, fallback) if f}
+    row_of = {key: k for k, key in enumerate(keys)}
+    for i, rows in exposures.items():
+        if i in bad:
+            continue
+        c = cases[i]
+        per = []
+        for j, (sc, ex) in enumerate(zip(c.scenarios, rows)):
+            k = row_of[(i, j)]
+            v = _liquefied_verdict(cols, k, c.rated_pressure_pa, c.relief_set_pressure_pa,
+                                   c.site.atmospheric_pressure_pa, c.required_margin, c.max_filling_ratio_kg_m3,
+                                   sc.name)
+            r = _assemble_liquefied(c, cols, k, v, sun=ex)
+            for key in ("scenarios", "governing_scenario", "exposure"):
+                r.pop(key, None)
+            per.append((sc.name, r, ex.balance))
+        out[i] = Result.from_json(_screen.fold_scenarios(per)[1])
+    return out
 
 
 @dataclass
