@@ -469,6 +469,31 @@ def _jobs(reg, defaults, want, ids: _Ids, kept: list):
         yield (part, defaults, dups, want)
 
 
+def _load_fluids(inv: Inventory, defaults: dict | None) -> None:
+    """Add the reference fluids of the gases a chunk names (and air, for rows in the sun) to CoolProp's library
+    before any worker forks, so that the workers share them (screening.physics.eos.coolprop_library: the
+    command loads the library lean; a fluid first named in a later chunk is added by the process that meets
+    it). A gas that cannot be read is left for its row to report."""
+    from screening.inputs.gas_spec import parse_gas
+    from screening.physics.eos.coolprop_library import is_lean, use
+
+    if not is_lean():
+        return
+    col = next((i for i, c in enumerate(inv.columns) if c.key == "fill.gas"), None)
+    texts = {cells[col].strip() for _n, cells in inv.rows if col is not None and col < len(cells)}
+    given = ((defaults or {}).get("fill") or {}).get("gas") if isinstance((defaults or {}).get("fill"), dict) else None
+    if isinstance(given, str):
+        texts.add(given.strip())
+    names = {"Air"}
+    for text in texts:
+        try:
+            gas = parse_gas(text)
+        except (InputError, ValueError):
+            continue
+        names.update(c.coolprop_name for c in gas.components if c.coolprop_name)
+    use(sorted(names))
+
+
 def run(args) -> int:
     import contextlib
 
@@ -497,6 +522,8 @@ def run(args) -> int:
     ids = _Ids()
     jobs = _jobs(reg, defaults, want, ids, kept)
     first_job = next(jobs, None)
+    if first_job is not None:
+        _load_fluids(first_job[0], defaults)
     n_workers = parallel.workers()
     pool = None
     try:

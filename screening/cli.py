@@ -310,6 +310,7 @@ def run(argv: list[str] | None = None) -> int:
     _check_outputs(args)
     if args.command == "batch":
         _check_batch_inputs(args)
+        _lean_coolprop()        # the fluids the register names are added back before the work (batch.run)
         from screening.batch import run as run_batch
 
         return run_batch(args)

@@ -113,3 +113,19 @@ def test_golden_corpus_of_single_cases_is_unchanged_with_the_lean_library():
     done = subprocess.run([sys.executable, "-c", script], cwd=ROOT, capture_output=True, text=True)
     assert done.returncode == 0, done.stdout[-3000:] + done.stderr[-3000:]
     assert "no differences" in done.stdout
+
+
+def test_fresh_batch_writes_what_the_batch_writes_with_the_library_whole(tmp_path):
+    # reference: the same command in this process, where CoolProp is loaded whole; the fresh command loads it
+    # lean and adds back the fluids of the register's first chunk before any work
+    from screening.cli import run
+
+    inv = ROOT / "cases" / "inventory.csv"
+    fresh, here = tmp_path / "fresh", tmp_path / "here"
+    fresh.mkdir(), here.mkdir()
+    done = subprocess.run([sys.executable, "-m", "screening.cli", "batch", str(inv), "--csv", str(fresh / "o.csv"),
+                           "--jsonl", str(fresh / "o.jsonl"), "--quiet"], cwd=ROOT, capture_output=True, text=True)
+    code = run(["batch", str(inv), "--csv", str(here / "o.csv"), "--jsonl", str(here / "o.jsonl"), "--quiet"])
+    assert done.returncode == code, done.stderr
+    for name in ("o.csv", "o.jsonl"):
+        assert (fresh / name).read_bytes() == (here / name).read_bytes(), name

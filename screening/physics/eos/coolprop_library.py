@@ -21,9 +21,10 @@ library with a fully loaded CoolProp in another process; the golden corpus is un
 Without the superancillaries the numbers would move (phase-diagram critical densities up to 0.2 %),
 so a fluid is never used before `use` has added it back.
 
-Only the commands that screen one case in a fresh process (`check`, `report`, `verify`) call
-`load_lean()`; everything else (batch, the web page, the tests, a library user) imports CoolProp as usual,
-which loads the library whole, and then `use` does nothing. `load_lean()` does nothing either when
+Only the commands that screen in a fresh process (`check`, `report`, `verify`, and `batch`, which adds back
+the fluids of the register's first chunk before any worker forks, so that the workers share them) call
+`load_lean()`; everything else (the web page, the tests, a library user) imports CoolProp as usual, which
+loads the library whole, and then `use` does nothing. `load_lean()` does nothing either when
 CoolProp is already imported or the user has set the switch.
 
 CoolProp prints one line on its standard output when it loads with the switch; that line goes to the
