@@ -3,6 +3,8 @@ numbers agree with CoolProp's mixture model evaluated here with PropsSI."""
 
 from __future__ import annotations
 
+import math
+
 import CoolProp.CoolProp as CP
 import numpy as np
 import pytest
@@ -73,3 +75,91 @@ def test_generalized_peak_with_the_fixed_constants_is_the_full_computation_and_n
     d = CP.PropsSI("Dmolar", "P", case.fill_pressure_pa, "T", t_fill, heos)
     ref_peak = CP.PropsSI("P", "Dmolar", d, "T", t_peak, heos)
     assert model.peak_pa == pytest.approx(ref_peak, rel=0.03)
+
+
+# --- deep nodes where they lie above every component's critical temperature -----------------------------------
+
+def _forget_every_fluid() -> None:
+    from screening.physics.eos.reference import liquefied_blend, reference_fluid
+    reference_fluid.cache_clear()
+    liquefied_blend.cache_clear()
+
+
+AIR_ROWS = [(300.0, 200.0, 15.0, 65.0), (60.0, 30.0, -10.0, 40.0), (310.0, 290.0, 40.0, -40.0),
+            (250.0, 180.0, 20.0, 30.0), (120.0, 100.0, 5.0, 60.0), (450.0, 300.0, 35.0, 85.0),
+            (90.0, 12.0, 25.0, 50.0)]
+
+
+def test_a_deep_node_is_tried_only_above_every_components_critical_temperature():
+    from screening.physics import mixtures as mix
+    from screening.physics.eos.reference import reference_fluid
+
+    air = reference_fluid(("Nitrogen", "Oxygen"), (0.79, 0.21))
+    # source: CoolProp's oxygen equation (Schmidt & Wagner), its critical temperature read here with PropsSI
+    assert air.critical_temperature_max == pytest.approx(CP.PropsSI("Tcrit", "Oxygen"), abs=1e-9)
+    assert mix.deep_node_depth(300.0, air.critical_temperature_max) == 120.0
+    assert mix.deep_node_depth(250.0, air.critical_temperature_max) == 80.0
+    assert mix.deep_node_depth(230.0, air.critical_temperature_max) is None
+    ar_co2 = reference_fluid(("Argon", "CarbonDioxide"), (0.82, 0.18))
+    # above CO2's critical temperature (CoolProp, read here) only at temperatures no cylinder reaches
+    assert ar_co2.critical_temperature_max == pytest.approx(CP.PropsSI("Tcrit", "CarbonDioxide"), abs=1e-9)
+    assert mix.deep_node_depth(273.15 + 85.0, ar_co2.critical_temperature_max) is None
+
+
+def test_screenings_through_deep_nodes_give_the_answers_without_nodes_and_their_states_are_one_phase(monkeypatch):
+    import json
+
+    from screening.engine import screen_text
+    from screening.physics import mixtures as mix
+    from screening.physics.eos import reference as ref
+
+    texts = [(f"A{i}", CASE.format(name=f"A{i}", gas=AIR[0], rated=r, fill=p, t_fill=tf, t_gas=tg))
+             for i, (r, p, tf, tg) in enumerate(AIR_ROWS)]
+    flashes = {"n": 0}
+    route = ref.ReferenceFluid._reference_route
+
+    def counted(self, *args):
+        flashes["n"] += 1
+        return route(self, *args)
+
+    def screen_all():
+        return {n: json.dumps(screen_text(t, source=n).to_json(), sort_keys=True, allow_nan=False) for n, t in texts}
+
+    monkeypatch.setattr(ref.ReferenceFluid, "_reference_route", counted)
+    # the full computation: no node at all, every isochore flashed itself
+    monkeypatch.setattr(mix, "NODE_DEPTHS_K", ())
+    _forget_every_fluid()
+    without = screen_all()
+    n_without = flashes["n"]
+    # nodes at 40 and 20 K only
+    monkeypatch.setattr(mix, "NODE_DEPTHS_K", (40.0, 20.0))
+    monkeypatch.setattr(mix, "DEEP_NODE_DEPTHS_K", ())
+    _forget_every_fluid()
+    flashes["n"] = 0
+    shallow = screen_all()
+    n_shallow = flashes["n"]
+    # and deep nodes first where they lie above oxygen's and nitrogen's critical temperatures
+    monkeypatch.setattr(mix, "DEEP_NODE_DEPTHS_K", (120.0, 80.0))
+    _forget_every_fluid()
+    flashes["n"] = 0
+    deep = screen_all()
+    n_deep = flashes["n"]
+    fluid = ref.reference_fluid(("Nitrogen", "Oxygen"), (0.79, 0.21))
+    nodes = [(math.exp(ln), t) for ln, t in zip(fluid._memo._node_ln, fluid._memo._node_t)]
+    _forget_every_fluid()
+    assert deep == without
+    assert shallow == without
+    assert n_deep < n_shallow < n_without
+    assert any(t < 160.0 for _, t in nodes), "some node more than 80 K below the rows' temperatures"
+    heos = AIR[1]
+    for rho_node, t_node in nodes:
+        for d_ln in (-0.09, -0.03, 0.0, 0.03, 0.09):
+            r = rho_node * math.exp(d_ln)
+            T = t_node + mix.NODE_SLOPE_K * abs(d_ln) + mix.NEIGHBOUR_MARGIN_K + 1e-6
+            # source: CoolProp's mixture model evaluated here (its density-temperature flash runs a stability
+            # analysis): each state the node covers, down to the edge of what it covers, is not two-phase
+            assert CP.PhaseSI("Dmolar", r, "T", T, heos) != "twophase"
+            # and the pressure-temperature flash there (PropsSI, with CoolProp's stability test) comes back to
+            # the same density: the state is the stable one
+            p = CP.PropsSI("P", "Dmolar", r, "T", T, heos)
+            assert CP.PropsSI("Dmolar", "P", p, "T", T, heos) == pytest.approx(r, rel=1e-6)
