@@ -133,7 +133,7 @@ def _ideal(case: Case, rho_mass: float | None, t_fill: float, t_peak: float, gas
 
 def _gas_arrays(gas: Mixture) -> dict:
     c = gas.components
-    return dict(
+    arrays = dict(
         fractions=np.array(gas.fractions), tc=np.array([g.critical_temperature for g in c]),
         pc=np.array([g.critical_pressure for g in c]), omega=np.array([g.acentric_factor for g in c]),
         molar_mass=np.array([g.molar_mass for g in c]), quantum=np.array([g.quantum for g in c]),
@@ -143,6 +143,11 @@ def _gas_arrays(gas: Mixture) -> dict:
         fixed=((float(c[0].critical_temperature), float(c[0].critical_pressure), float(c[0].acentric_factor))
                if gas.is_pure and not c[0].quantum else None),
     )
+    if arrays["fixed"] is None and not any(g.quantum for g in c):
+        # a mixture without quantum components: Kay's rule over constants that do not depend on the temperature,
+        # so the same three numbers at every temperature (pseudocritical evaluated once, here)
+        arrays["fixed"] = _lk_constants(arrays, 300.0)
+    return arrays
 
 
 def _lk_constants(arrays: dict, t: float) -> tuple[float, float, float]:

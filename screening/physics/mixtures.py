@@ -282,6 +282,21 @@ NODE_SLOPE_K = 1200.0
 #: established instead of the isochore itself, deepest first (:func:`node_density`): a deeper node covers a
 #: wider band of densities, so that the isochores of later rows of the same composition need no flash.
 NODE_DEPTHS_K = (40.0, 20.0)
+#: Deeper nodes [K], one of which is tried first, before NODE_DEPTHS_K: the deepest that lies above the critical
+#: temperature of every component of the mixture (:func:`deep_node_depth`). There the flashes are fast (far from
+#: any two-phase region of the trade's permanent-gas mixtures: 3-7 ms for air) and a node covers a band of
+#: densities two to three times as wide as at 40 K, so that the sparse rows of one composition in a mixed
+#: inventory share more nodes. Below it (argon + CO2, natural gas) a deep node lands near the two-phase
+#: boundary, where a CoolProp flash takes 0.1-0.7 s: not tried there. A choice of what to flash, never an
+#: answer (the node is established by both routes and covers only what :meth:`IsochoreMemo.record_node` allows).
+DEEP_NODE_DEPTHS_K = (120.0, 80.0)
+
+
+def deep_node_depth(t_need: float, t_critical_max: float) -> float | None:
+    """The deepest of DEEP_NODE_DEPTHS_K whose node for a need at t_need [K] (ESTABLISH_BELOW_K and the depth
+    further down) lies above t_critical_max [K], the highest critical temperature of the mixture's components;
+    None where none does."""
+    return next((d for d in DEEP_NODE_DEPTHS_K if t_need - ESTABLISH_BELOW_K - d > t_critical_max), None)
 
 
 def node_spacing(depth: float) -> float:

@@ -360,6 +360,8 @@ class ReferenceFluid:
             comps.append(_mix.CubicComponent(cas, tc, pc, CP.PropsSI("acentric", n), CP.PropsSI("molar_mass", n)))
             tcs.append(tc)
             vcs.append(1.0 / rc)
+        #: The highest critical temperature [K] of the components (where nodes may lie deeper, establish_isochore).
+        self.critical_temperature_max = max(tcs)
         self.pseudo_critical_temperature = math.fsum(x * t for x, t in zip(self.fractions, tcs))
         self.pseudo_critical_molar_density = 1.0 / math.fsum(x * v for x, v in zip(self.fractions, vcs))
         self.cubic_components = tuple(comps)
@@ -597,7 +599,8 @@ class ReferenceFluid:
         ``_isochore_from_below`` in screen.py); raises NotApplicable where that state is not one phase.
 
         Where a node (:func:`screening.physics.mixtures.node_density`) can stand for it, the node is flashed
-        instead, deeper down (NODE_DEPTHS_K): one phase there by both routes (each answering) covers this
+        instead, deeper down (NODE_DEPTHS_K; first one of DEEP_NODE_DEPTHS_K where that lies above every component's
+        critical temperature, deep_node_depth): one phase there by both routes (each answering) covers this
         isochore from ESTABLISH_BELOW_K under t_need on, and the isochores of later rows near it
         (:meth:`IsochoreMemo.record_node`), so that a batch of one composition flashes once per node rather
         than once per row. A node that is not found one phase
@@ -612,6 +615,9 @@ class ReferenceFluid:
         left = _mix.checks_left()
         # a node may cost a flash more; not where the screening has used half of its phase checks
         depths = _mix.NODE_DEPTHS_K if left is None or left > _mix.CASE_CHECK_BOUND // 2 else ()
+        deep = _mix.deep_node_depth(t_need, self.critical_temperature_max) if depths else None
+        if deep is not None:    # above every component's critical temperature: a wider node first
+            depths = (deep, *depths)
         for depth in depths:
             t_node = t_need - _mix.ESTABLISH_BELOW_K - depth
             if t_node <= failed or t_node < self.t_min:
