@@ -633,12 +633,30 @@ def worst_case(ambient_max: np.ndarray, gas_temperature: np.ndarray,
     return t, stated, t > t_exposure, t_exposure
 
 
+def _lk_density_shared(p: np.ndarray, t: np.ndarray, tc: np.ndarray, pc: np.ndarray, omega: np.ndarray,
+                       shared: bool) -> GeneralizedState:
+    """lee_kesler_density of rows; `shared`: each distinct (p, t, tc, pc, omega) solved once and handed to every
+    row that has it (the fill of a vessel's scenarios and of most of its tolerance states). Each element is
+    solved on its own, whatever the size of its call (physics.eos.generalized), so the rows get the very numbers
+    of the full call."""
+    if shared and p.size > 1:
+        key = np.stack([p, t, tc, pc, omega], axis=1)
+        _u, first, back = np.unique(key, axis=0, return_index=True, return_inverse=True)
+        if first.size < p.size:
+            s = lee_kesler_density(p[first], t[first], tc[first], pc[first], omega[first])
+            back = back.ravel()
+            return GeneralizedState(*(getattr(s, f)[back] for f in GENERALIZED_FIELDS))
+    return lee_kesler_density(p, t, tc, pc, omega)
+
+
 def _generalized_columns(gas: Mixture, p_fill: np.ndarray, t_fill: np.ndarray, t_peak: np.ndarray,
-                         rho_given: np.ndarray | None = None) -> dict:
+                         rho_given: np.ndarray | None = None, shared_fills: bool = False) -> dict:
     """The generalized model of rows of one gas as arrays (screen._generalized, screen._quantum_generalized): the
     Lee–Kesler fill and peak states, the pseudocritical constants at both, and for pure hydrogen, helium or neon
     where the Lee–Kesler tables end, the quantum-gas SRK model. A row's fill is its pressure, or where
-    ``rho_given`` [mol/m3] is finite (a mass fill), that density. Keys starting with "_" are for the limits."""
+    ``rho_given`` [mol/m3] is finite (a mass fill), that density; `shared_fills`: rows that repeat a fill (the
+    scenarios and tolerance states of one vessel) solve it once (:func:`_lk_density_shared`). Keys starting
+    with "_" are for the limits."""
     n = t_fill.size
     fr = np.array(gas.fractions)
     comps = gas.components
@@ -661,7 +679,7 @@ def _generalized_columns(gas: Mixture, p_fill: np.ndarray, t_fill: np.ndarray, t
     else:
         tcf, pcf, omf = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_fill))
         tcp, pcp, omp = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_peak))
-    gf = lee_kesler_density(np.where(by_density, 1e5, p_fill), t_fill, tcf, pcf, omf)
+    gf = _lk_density_shared(np.where(by_density, 1e5, p_fill), t_fill, tcf, pcf, omf, shared_fills)
     if by_density.any():
         gd = lee_kesler_pressure(np.where(by_density, rho_given, 1.0), t_fill, tcf, pcf, omf)
         gf = GeneralizedState(*(np.where(by_density, getattr(gd, f), getattr(gf, f)) for f in GENERALIZED_FIELDS))
@@ -897,9 +915,10 @@ def _reference_limits(rows: Rows, fluid: ReferenceFluid, pure: bool, out: dict, 
         out["mass_rho"][live[inside]] = r[inside]
 
 
-def _columns(rows: Rows, limits: bool = True) -> dict:
+def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False) -> dict:
     """Every model, the phase boundary and the limits for rows of one pure permanent gas, as arrays
-    (`limits` False: the models alone, for the states of tolerance corners, see :func:`_corner_peaks`).
+    (`limits` False: the models alone, for the states of tolerance corners, see :func:`_corner_peaks`;
+    `shared_fills`: rows repeat fills, each solved once, see :func:`_generalized_columns`).
 
     Returns a dict of the arrays named in _FLOAT_COLUMNS plus ``stated`` (the stated gas temperature is the
     worst-case basis), ``lk_ok``, ``lk_reason`` and ``fallback`` (rows that must go per row)."""
@@ -941,7 +960,7 @@ def _columns(rows: Rows, limits: bool = True) -> dict:
     out["peak_ideal"] = rho_ideal * R * t_peak
 
     # --- generalized, as arrays
-    gen = _generalized_columns(gas, p_fill, t_fill, t_peak)
+    gen = _generalized_columns(gas, p_fill, t_fill, t_peak, shared_fills=shared_fills)
     out.update({k: v for k, v in gen.items() if not k.startswith("_")})
     lk_ok, q_srk = gen["lk_ok"], gen["q_srk"]
     # the vectorised limits assume constant critical constants (not the quantum correction)
@@ -1171,7 +1190,7 @@ def _corner_peaks(gas: Mixture, states: list[tuple[float, float, float]]) -> dic
     state is out of scope or liquid-full: a state where that cannot be shown falls back."""
     if not states:
         return {}
-    cols = _columns(_state_rows(gas, states), limits=False)
+    cols = _columns(_state_rows(gas, states), limits=False, shared_fills=True)
     fallback = cols["fallback"].tolist()
     return {s: None if fallback[k] else _state_peaks(cols, k) for k, s in enumerate(states)}
 
@@ -1186,17 +1205,24 @@ def _state_peaks(cols: dict, k: int) -> dict:
     return peaks
 
 
-def _drive(gas: Mixture, steps: dict, known: dict | None = None) -> dict:
+def _drive(gas: Mixture, steps: dict, known: dict | None = None, ahead: list | None = None) -> dict:
     """Run the tolerance generators (screen.tolerance_steps) of many vessels in lockstep: each round's states
     of every vessel are rows of one table; `known` gives the peaks of states already evaluated (each vessel's
-    nominal state: a row of its nominal table, the same numbers). Returns {key: tolerance block or None (per
-    row)}."""
+    nominal state: a row of its nominal table, the same numbers); `ahead`: states evaluated in the first round
+    beside the sensitivities' states (each vessel's expected corner, screen.expected_corner, which the second
+    round asks for whichever corners it needs: the second round then costs no table of its own where every
+    vessel's expected corner is confirmed). Returns {key: tolerance block or None (per row)}."""
     done: dict = {}
-    known = known or {}
+    peaks = dict(known or {})
     asked = {key: next(gen) for key, gen in steps.items()}
+    first = True
     while asked:
-        todo = [s for s in dict.fromkeys(s for states in asked.values() for s in states) if s not in known]
-        peaks = {**known, **_corner_peaks(gas, todo)}
+        todo = [s for s in dict.fromkeys(s for states in asked.values() for s in states) if s not in peaks]
+        if first and ahead:
+            asked_now = set(todo)
+            todo += [s for s in dict.fromkeys(ahead) if s not in peaks and s not in asked_now]
+        first = False
+        peaks.update(_corner_peaks(gas, todo))
         nxt = {}
         for key, states in asked.items():
             got = [peaks[s] for s in states]
@@ -1232,11 +1258,11 @@ def _screen_expanded(cases: list[Case]) -> list[Result | None]:
         (cases[i].fill_pressure_pa, cases[i].fill_temperature_k, math.nan, exposures[i][j].t_exposure,
          cases[i].rated_pressure_pa, cases[i].site.atmospheric_pressure_pa, cases[i].required_margin)
         for i, j in keys))))
-    cols = _columns(nominal)
+    cols = _columns(nominal, shared_fills=True)
     fallback = cols["fallback"].tolist()
     bad = {i for (i, _j), f in zip(keys, fallback) if f}
     row_of = {key: k for k, key in enumerate(keys)}
-    steps, known = {}, {}
+    steps, known, ahead = {}, {}, []
     for k, (i, j) in enumerate(keys):
         c = cases[i]
         if i in bad or c.tolerance is None:
@@ -1245,7 +1271,8 @@ def _screen_expanded(cases: list[Case]) -> list[Result | None]:
         steps[(i, j)] = _screen.tolerance_steps(c, float(c.fill_temperature_k), float(cols["t_peak"][k]), names)
         # the nominal state (the steps' first): the peaks of this row of the nominal table
         known[(c.fill_pressure_pa, float(c.fill_temperature_k), float(cols["t_peak"][k]))] = _state_peaks(cols, k)
-    tolerances = _drive(gas, steps, known)
+        ahead.append(_screen.expected_corner(c, float(c.fill_temperature_k), float(cols["t_peak"][k])))
+    tolerances = _drive(gas, steps, known, ahead)
     bad |= {i for (i, _j), t in tolerances.items() if t is None}
     for i, rows in exposures.items():
         if i in bad:

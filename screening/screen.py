@@ -92,11 +92,15 @@ class Model:
     temperature_at: Callable[[float], float | None] | None = None
     #: the model's pressure [Pa] at the fill density and temperature (the isochore at the fill), where computed
     fill_pa: float | None = None
+    #: T array [K] -> p array [Pa] of `isochore` at every point, NaN where it raises: for drawing a curve, where
+    #: no isochore_array is given (the limits' scans stop at their first sign change instead)
+    isochore_points: Callable[[np.ndarray], np.ndarray] | None = None
 
     def isochore_values(self, temperatures: np.ndarray) -> list[float | None]:
         """The isochore at many temperatures; None where the model does not apply."""
-        if self.isochore_array is not None:
-            return [float(v) if math.isfinite(v) else None for v in self.isochore_array(temperatures)]
+        whole = self.isochore_array if self.isochore_array is not None else self.isochore_points
+        if whole is not None:
+            return [float(v) if math.isfinite(v) else None for v in whole(temperatures)]
         values: list[float | None] = []
         for t in temperatures:
             try:
@@ -128,7 +132,9 @@ def _ideal(case: Case, rho_mass: float | None, t_fill: float, t_peak: float, gas
     peak = float(ideal_gas_pressure(rho, t_peak))
     return Model("ideal", True, "ideal-gas law; shown for comparison, it ignores real-gas behaviour",
                  peak, rho, isochore=lambda t: float(ideal_gas_pressure(rho, t)),
-                 fill_to_peak=lambda p: p * t_peak / t_fill, extra={"equation": note_eq})
+                 fill_to_peak=lambda p: p * t_peak / t_fill, extra={"equation": note_eq},
+                 # the same product per element as the scalar isochore (rho R T), on the whole grid at once
+                 isochore_array=lambda ts: ideal_gas_pressure(rho, ts))
 
 
 def _gas_arrays(gas: Mixture) -> dict:
@@ -599,8 +605,17 @@ def _reference(case: Case, fs: FillState, t_fill: float, t_peak: float) -> Model
             return fluid.homogeneous_pressure(fluid.homogeneous_density(p, t_fill), t_peak)
         return fluid.pressure(fluid.density(p, t_fill), t_peak)
 
+    def isochore_array(ts: np.ndarray) -> np.ndarray:
+        # fluid.pressure at every temperature, the fluid's lock held once for the whole grid (NaN where the
+        # equation refuses a state, as the scalar isochore raises there)
+        p, valid, _reasons = fluid.pressures(np.full(np.shape(ts), rho), ts)
+        return np.where(valid, p, np.nan)
+
     return Model("reference", True, "multiparameter Helmholtz-energy equation of state (CoolProp)",
-                 peak, rho, lambda t: fluid.pressure(rho, t), fill_to_peak, extra)
+                 peak, rho, lambda t: fluid.pressure(rho, t), fill_to_peak, extra,
+                 # a mixture's state costs tens of milliseconds: its points one at a time, so that the lock is
+                 # not held for a whole curve
+                 isochore_points=None if fluid.is_mixture else isochore_array)
 
 
 # ----------------------------------------------------------------------------- limits
@@ -1177,8 +1192,14 @@ def _bounding_model(case: Case, tolerance: dict | None) -> Model | None:
     if not tolerance or tolerance.get("bounding_peak_pressure_pa") is None:
         return None
     corner = tolerance["bounding_corner"]
-    _, _, _, models, _ = _corner_state(case, corner["fill_pressure_pa"], corner["fill_temperature_k"],
-                                       corner["worst_case_temperature_k"])
+    return _corner_model(case, (corner["fill_pressure_pa"], corner["fill_temperature_k"],
+                                corner["worst_case_temperature_k"]))
+
+
+def _corner_model(case: Case, corner: tuple[float | None, float, float]) -> Model | None:
+    """The governing model at a tolerance corner (fill pressure [Pa] or None, fill temperature [K], worst-case
+    temperature [K]), evaluated as _corner_state evaluates it."""
+    _, _, _, models, _ = _corner_state(case, *corner)
     return _governing(models)
 
 
@@ -1192,6 +1213,31 @@ def _tolerance(case: Case, t_fill: float, t_peak: float, models: list[Model]) ->
             states = steps.send(map(lambda s: _corner_peak(case, *s), states))
     except StopIteration as done:
         return done.value
+
+
+def _corner_signs(case: Case) -> tuple[tuple[int, ...], tuple[int, ...], tuple[int, ...]]:
+    """The signs each input takes at the corners of its tolerance band (0 alone where it has none)."""
+    tol, p0 = case.tolerance, case.fill_pressure_pa
+    # a mass fill has no fill-pressure reading; its fill temperature does not change the contents
+    return ((1, -1) if (p0 is not None and tol.fill_pressure_pa > 0) else (0,),
+            (1, -1) if (p0 is not None and tol.fill_temperature_k > 0) else (0,),
+            (1, -1) if tol.gas_temperature_k > 0 else (0,))
+
+
+def _corner_at(case: Case, t_fill: float, t_peak: float, a: int, b: int, c: int) -> tuple:
+    """The state (fill pressure [Pa] or None, fill temperature [K], worst-case temperature [K]) of the corner with
+    signs a, b, c of the fill pressure, fill temperature and worst-case temperature bands."""
+    tol, p0 = case.tolerance, case.fill_pressure_pa
+    return (p0 + a * tol.fill_pressure_pa if p0 is not None else None, t_fill + b * tol.fill_temperature_k,
+            t_peak + c * tol.gas_temperature_k)
+
+
+def expected_corner(case: Case, t_fill: float, t_peak: float) -> tuple:
+    """The state of the expected bounding corner (fill pressure high, fill temperature low, worst case high),
+    the one corner :func:`tolerance_steps` asks for where every sensitivity has its expected sign: a caller that
+    evaluates many states at once may evaluate it beside the sensitivities' states."""
+    p_signs, tf_signs, tg_signs = _corner_signs(case)
+    return _corner_at(case, t_fill, t_peak, max(p_signs), min(tf_signs), max(tg_signs))
 
 
 def tolerance_steps(case: Case, t_fill: float, t_peak: float, names: list[str]):
@@ -1235,16 +1281,12 @@ def tolerance_steps(case: Case, t_fill: float, t_peak: float, names: list[str]):
         sens["dp_peak_dt_fill"] = deriv(5, h_t)
         expected = expected and all((v or 0.0) > 0.0 for v in sens["dp_peak_dp_fill"].values()) \
             and all((v or 0.0) < 0.0 for v in sens["dp_peak_dt_fill"].values())
-    # a mass fill has no fill-pressure reading; its fill temperature does not change the contents
-    p_signs = (1, -1) if (p0 is not None and dp > 0) else (0,)
-    tf_signs = (1, -1) if (p0 is not None and dtf > 0) else (0,)
-    tg_signs = (1, -1) if dtg > 0 else (0,)
+    p_signs, tf_signs, tg_signs = _corner_signs(case)
     if expected:
         corners = [(max(p_signs), min(tf_signs), max(tg_signs))]
     else:
         corners = [(a, b, c) for a in p_signs for b in tf_signs for c in tg_signs]
-    peaks = yield [(p0 + a * dp if p0 is not None else None, t_fill + b * dtf, t_peak + c * dtg)
-                   for a, b, c in corners]
+    peaks = yield [_corner_at(case, t_fill, t_peak, a, b, c) for a, b, c in corners]
     best, best_corner = None, None
     findings: dict = {"out_of_scope": None, "liquid_full": []}
     for (a, b, c), peak in zip(corners, peaks):
@@ -1429,10 +1471,14 @@ def plot_data(case: Case, r: Result) -> tuple[dict | None, dict | None]:
     model at the bounding tolerance corner where there is one, and the fluid's vapour-pressure curve. The
     one place plot data are computed, for a single screening and for a batch's detail rows alike."""
     t_fill, t_peak = r.fill.temperature_k, r.worst_case_temperature_k
-    layout = r.to_json()
+    tol = r.tolerance
     with case_budget():
         fs, models, _ = _evaluate(case, t_fill, t_peak, [])
-        return (_curves(models, t_fill, t_peak, layout["limits"], _bounding_model(case, layout["tolerance"])),
+        bounding = None
+        if tol is not None and tol.bounding_peak_pressure_pa is not None:
+            c = tol.bounding_corner
+            bounding = _corner_model(case, (c.fill_pressure_pa, c.fill_temperature_k, c.worst_case_temperature_k))
+        return (_curves(models, t_fill, t_peak, {"max_gas_temperature_k": r.limits.max_gas_temperature_k}, bounding),
                 _phase_diagram(fs))
 
 
