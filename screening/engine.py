@@ -740,11 +740,18 @@ def _reference_fill_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallba
 
 
 def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, t_lo: np.ndarray, t_hi: np.ndarray,
-                        p_lo: np.ndarray, p_hi: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+                        p_lo: np.ndarray, p_hi: np.ndarray,
+                        vessels: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
     """The generalized model's limits of permanent-gas rows (screen._limits): the gas temperature at which the
     isochore reaches the rating and the fill pressure whose peak is the target, by the model's inverse where it
     is sure of itself and by screen._root's scan (:func:`_scan_root`) where a root lies at the edge of the range;
-    the quantum-gas SRK rows by the scan. Returns (temperatures [K], fill pressures [Pa]), NaN for none."""
+    the quantum-gas SRK rows by the scan. Returns (temperatures [K], fill pressures [Pa]), NaN for none.
+
+    `vessels` (each row's vessel, or None): the rows of one vessel (its scenarios) with the same isochore and
+    rating share the model's inverse for the gas temperature at the rating (the one root of the same function,
+    solved from the first such row's start; each row then decides on it within its own scan range, as before).
+    The root is the same to the solve's tolerance (_SECANT_RTOL), far inside the solve tolerance of the limits
+    (screen.P_TOL)."""
     n = rows.p_fill.size
     rated, t_fill, t_peak, target = rows.rated, rows.t_fill, out["t_peak"], out["target"]
     lk_ok, q_srk, rho_lk, kq = gen["lk_ok"], gen["q_srk"], gen["_rho_lk"], gen["_kq"]
@@ -785,8 +792,17 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
         # generalized: T on the isochore at the rated pressure (density at the rated pressure = fill density)
         reach = rated[i] / pcp[i] <= 10.0
         x0 = np.minimum(t_peak[i] * np.clip(rated[i] / peak_lk[i], 0.2, 5.0), 3.9 * tcp[i])
-        f0 = f_t(x0, i)
-        root, conv = _secant(f_t, x0, f0, x0 * (1.0 + 1e-4), i)
+        one = None
+        if vessels is not None and i.size > 1:
+            key = np.stack([vessels[i], rated[i], rho_lk[i], tcp[i], pcp[i], omp[i]], axis=1)
+            _u, one, back = np.unique(key, axis=0, return_index=True, return_inverse=True)
+            if one.size == i.size:
+                one = None
+        if one is None:
+            root, conv = _secant(f_t, x0, f_t(x0, i), x0 * (1.0 + 1e-4), i)
+        else:       # one solve per vessel and isochore (its first row's start), handed to its other rows
+            root, conv = _secant(f_t, x0[one], f_t(x0[one], i[one]), x0[one] * (1.0 + 1e-4), i[one])
+            root, conv = root[back.ravel()], conv[back.ravel()]
 
         def isochore_over_rating(rows_: np.ndarray):
             """T -> generalized isochore pressure minus the rating, for the rows rows_ (NaN out of range)."""
@@ -915,10 +931,13 @@ def _reference_limits(rows: Rows, fluid: ReferenceFluid, pure: bool, out: dict, 
         out["mass_rho"][live[inside]] = r[inside]
 
 
-def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False) -> dict:
+def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessels: np.ndarray | None = None) -> dict:
     """Every model, the phase boundary and the limits for rows of one pure permanent gas, as arrays
     (`limits` False: the models alone, for the states of tolerance corners, see :func:`_corner_peaks`;
-    `shared_fills`: rows repeat fills, each solved once, see :func:`_generalized_columns`).
+    `shared_fills`: rows repeat fills, each solved once, see :func:`_generalized_columns`, and each distinct
+    fill density meets the dome once; `vessels`: each row's vessel, where a vessel has several rows (its
+    scenarios), which then share the solve of the one limit that does not depend on the scenario, see
+    :func:`_generalized_limits`).
 
     Returns a dict of the arrays named in _FLOAT_COLUMNS plus ``stated`` (the stated gas temperature is the
     worst-case basis), ``lk_ok``, ``lk_reason`` and ``fallback`` (rows that must go per row)."""
@@ -953,7 +972,7 @@ def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False) -> dic
 
     # --- where the isochore meets the dome (pure fluids; the pseudo-pure air has no phase analysis)
     if pure and limits:
-        _dome_columns(fluid, rho_molar, out, fallback)
+        _dome_columns(fluid, rho_molar, out, fallback, shared=shared_fills)
 
     # --- ideal
     out["rho_ideal"] = rho_ideal = p_fill / (R * t_fill)
@@ -976,7 +995,7 @@ def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False) -> dic
     p_lo = atm * 1.01
     p_hi = np.maximum(target, p_fill) * np.maximum(1.0, t_fill / t_peak) * 1.05
 
-    t_lk, max_p_lk = _generalized_limits(rows, out, gen, fallback, t_lo, t_hi, p_lo, p_hi)
+    t_lk, max_p_lk = _generalized_limits(rows, out, gen, fallback, t_lo, t_hi, p_lo, p_hi, vessels)
 
     _reference_limits(rows, fluid, pure, out, fallback, t_lk, max_p_lk, t_lo, t_hi, p_lo, p_hi)
 
@@ -1258,7 +1277,7 @@ def _screen_expanded(cases: list[Case]) -> list[Result | None]:
         (cases[i].fill_pressure_pa, cases[i].fill_temperature_k, math.nan, exposures[i][j].t_exposure,
          cases[i].rated_pressure_pa, cases[i].site.atmospheric_pressure_pa, cases[i].required_margin)
         for i, j in keys))))
-    cols = _columns(nominal, shared_fills=True)
+    cols = _columns(nominal, shared_fills=True, vessels=np.array([i for i, _j in keys], dtype=float))
     fallback = cols["fallback"].tolist()
     bad = {i for (i, _j), f in zip(keys, fallback) if f}
     row_of = {key: k for k, key in enumerate(keys)}
@@ -1762,16 +1781,24 @@ def _stopped(out: dict, fallback: np.ndarray) -> np.ndarray:
     return fallback if unreachable is None else fallback | unreachable
 
 
-def _dome_columns(fluid: ReferenceFluid, rho_molar: np.ndarray, out: dict, fallback: np.ndarray) -> None:
+def _dome_columns(fluid: ReferenceFluid, rho_molar: np.ndarray, out: dict, fallback: np.ndarray,
+                  shared: bool = False) -> None:
     """Where each row's isochore meets the saturation dome (isochore.isochore_phases): the dry-out temperature
     below the critical density, the liquid-full temperature above it with the slope just past it, and the
-    vapour pressure where the isochore leaves the dome. Rows the table solve is not sure of fall back."""
+    vapour pressure where the isochore leaves the dome. Rows the table solve is not sure of fall back.
+    `shared`: rows repeat densities (a vessel's scenarios): each distinct density solved once (each row's solve
+    is its own, so the numbers are those of the full call)."""
     rc = fluid.critical_molar_density
     for side, key in (("vapour", "dry"), ("liquid", "liquid_full")):
         d_rows = np.flatnonzero(~fallback & np.isfinite(rho_molar) & ((rho_molar <= rc) if side == "vapour"
                                                                       else (rho_molar > rc)))
-        if d_rows.size:
+        if d_rows.size > 1 and shared:
+            u, back = np.unique(rho_molar[d_rows], return_inverse=True)
+            t_u, ok_u = _dome(fluid, side).boundary(u)
+            t_b, ok_b = t_u[back.ravel()], ok_u[back.ravel()]
+        elif d_rows.size:
             t_b, ok_b = _dome(fluid, side).boundary(rho_molar[d_rows])
+        if d_rows.size:
             out[key][d_rows] = t_b
             fallback[d_rows[~ok_b]] = True
     lf = np.flatnonzero(~_stopped(out, fallback) & np.isfinite(out["liquid_full"]))

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import functools
 import math
+import threading
 from dataclasses import dataclass, field, replace
 from typing import Callable
 
@@ -898,11 +899,30 @@ def decide(*, peak: float | None, rated: float, relief: float | None, atm: float
 
 # ----------------------------------------------------------------------------- the screening
 
+#: The phase diagram of each pure fluid, computed once per process (it depends on the fluid alone); the lock
+#: guards the dictionary (threads of the web page), not the computation, which any thread may repeat.
+_PHASE_DIAGRAMS: dict[str, dict] = {}
+_PHASE_DIAGRAMS_LOCK = threading.Lock()
+
+
 def _phase_diagram(fs: FillState) -> dict | None:
-    """Vapour-pressure curve from the triple point to the critical point (pure fluids with a dome)."""
+    """Vapour-pressure curve from the triple point to the critical point (pure fluids with a dome): a fresh copy
+    of the fluid's one diagram (:func:`_fluid_phase_diagram`)."""
     fluid = fs.fluid
     if fluid is None or not _is_pure(fluid):
         return None
+    with _PHASE_DIAGRAMS_LOCK:
+        pd = _PHASE_DIAGRAMS.get(fluid.label)
+    if pd is None:
+        pd = _fluid_phase_diagram(fluid)
+        with _PHASE_DIAGRAMS_LOCK:
+            _PHASE_DIAGRAMS.setdefault(fluid.label, pd)
+    sat = pd["saturation"]
+    return {**pd, "saturation": {"temperature_k": list(sat["temperature_k"]), "pressure_pa": list(sat["pressure_pa"])}}
+
+
+def _fluid_phase_diagram(fluid: ReferenceFluid) -> dict:
+    """The vapour-pressure curve of a pure fluid on 50 temperatures from its triple to its critical point."""
     tt, tc = fluid.triple_temperature, fluid.critical_temperature
     temps, pressures = [], []
     for t in np.linspace(tt, tc, 50)[:-1]:
