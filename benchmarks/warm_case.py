@@ -45,10 +45,10 @@ def main() -> None:
     for path in paths:
         case = load_case(path)
         r = screen_case(case)                 # warm: imports, the fluid, its first states
-        whole = _times(lambda: screen_case(case), a.repeat)
-        bare = _times(lambda: screen_case(case, curves=False), a.repeat)
+        whole = _times(lambda c=case: screen_case(c), a.repeat)
+        bare = _times(lambda c=case: screen_case(c, curves=False), a.repeat)
         plain = screen_case(case, curves=False)
-        plots = _times(lambda: with_plot_data(case, plain), a.repeat)
+        plots = _times(lambda c=case, p=plain: with_plot_data(c, p), a.repeat)
         assert r.verdict is not None
 
         def cell(t: list[float]) -> str:
