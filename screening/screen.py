@@ -134,8 +134,13 @@ def _ideal(case: Case, rho_mass: float | None, t_fill: float, t_peak: float, gas
     return Model("ideal", True, "ideal-gas law; shown for comparison, it ignores real-gas behaviour",
                  peak, rho, isochore=lambda t: float(ideal_gas_pressure(rho, t)),
                  fill_to_peak=lambda p: p * t_peak / t_fill, extra={"equation": note_eq},
-                 # the same product per element as the scalar isochore (rho R T), on the whole grid at once
-                 isochore_array=lambda ts: ideal_gas_pressure(rho, ts))
+                 isochore_array=_ideal_isochore_array(rho))
+
+
+def _ideal_isochore_array(rho: float) -> Callable[[np.ndarray], np.ndarray]:
+    """T array [K] -> the ideal gas's pressure [Pa] at molar density rho [mol/m3]: the same product per element
+    as the scalar isochore (rho R T), on a whole grid at once."""
+    return lambda ts: ideal_gas_pressure(rho, ts)
 
 
 def _gas_arrays(gas: Mixture) -> dict:
@@ -209,16 +214,9 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
         return float(_lk_pressure(arrays, r, t_peak)[0].pressure[0])
 
     def constants_at(ts: np.ndarray):
-        if arrays["fixed"] is not None:
-            return tuple(np.full(np.shape(ts), c) for c in arrays["fixed"])
-        return pseudocritical(arrays["fractions"], arrays["tc"], arrays["pc"], arrays["omega"],
-                              arrays["molar_mass"], arrays["quantum"], arrays["tc_classical"],
-                              arrays["pc_classical"], ts)
+        return _constants_at(arrays, ts)
 
-    def isochore_array(ts: np.ndarray) -> np.ndarray:
-        ts = np.asarray(ts, dtype=float)
-        state = lee_kesler_pressure(np.full_like(ts, rho), ts, *constants_at(ts))
-        return np.where(state.valid, state.pressure, np.nan)
+    isochore_array = _lk_isochore_array(arrays, rho)
 
     def fill_to_peak_array(ps: np.ndarray) -> np.ndarray:
         ps = np.asarray(ps, dtype=float)
@@ -275,6 +273,35 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
                  fill_for_peak, temperature_at, float(fill.pressure[0]))
 
 
+def _constants_at(arrays: dict, ts: np.ndarray):
+    """The Lee–Kesler constants (pseudocritical temperature [K], pressure [Pa], acentric factor [-]) of a gas
+    (_gas_arrays) at each temperature of ts [K]."""
+    if arrays["fixed"] is not None:
+        return tuple(np.full(np.shape(ts), c) for c in arrays["fixed"])
+    return pseudocritical(arrays["fractions"], arrays["tc"], arrays["pc"], arrays["omega"],
+                          arrays["molar_mass"], arrays["quantum"], arrays["tc_classical"],
+                          arrays["pc_classical"], ts)
+
+
+def _lk_isochore_array(arrays: dict, rho: float) -> Callable[[np.ndarray], np.ndarray]:
+    """T array [K] -> the Lee–Kesler pressure [Pa] at molar density rho [mol/m3] (NaN where the model does not
+    apply), for a gas given by _gas_arrays."""
+    def isochore_array(ts: np.ndarray) -> np.ndarray:
+        ts = np.asarray(ts, dtype=float)
+        state = lee_kesler_pressure(np.full_like(ts, rho), ts, *_constants_at(arrays, ts))
+        return np.where(state.valid, state.pressure, np.nan)
+    return isochore_array
+
+
+def _srk_isochore_array(k: tuple, rho: float) -> Callable[[np.ndarray], np.ndarray]:
+    """T array [K] -> the quantum-gas SRK pressure [Pa] at molar density rho [mol/m3] (NaN where the model does
+    not apply); k = (classical critical temperature [K], pressure [Pa], molar mass [kg/mol])."""
+    def isochore_array(ts: np.ndarray) -> np.ndarray:
+        st = srk_quantum_pressure(rho, np.asarray(ts, dtype=float), *k)
+        return np.where(st.valid, st.pressure, np.nan)
+    return isochore_array
+
+
 #: The generalized model's note and method for pure H2, He, Ne above the Lee–Kesler tables.
 QUANTUM_SRK_NOTE = ("Soave–Redlich–Kwong with the Gunn–Chueh–Prausnitz quantum-gas constants (the Lee–Kesler "
                     "tables end at reduced temperature 4)")
@@ -311,9 +338,7 @@ def _quantum_generalized(case: Case, rho_mass: float | None, t_fill: float, t_pe
         "method": QUANTUM_SRK_METHOD,
     }
 
-    def isochore_array(ts: np.ndarray) -> np.ndarray:
-        st = srk_quantum_pressure(rho, np.asarray(ts, dtype=float), *k)
-        return np.where(st.valid, st.pressure, np.nan)
+    isochore_array = _srk_isochore_array(k, rho)
 
     def isochore(t: float) -> float:
         return float(srk_quantum_pressure(rho, t, *k).require().pressure[()])
@@ -606,17 +631,23 @@ def _reference(case: Case, fs: FillState, t_fill: float, t_peak: float) -> Model
             return fluid.homogeneous_pressure(fluid.homogeneous_density(p, t_fill), t_peak)
         return fluid.pressure(fluid.density(p, t_fill), t_peak)
 
-    def isochore_array(ts: np.ndarray) -> np.ndarray:
-        # fluid.pressure at every temperature, the fluid's lock held once for the whole grid (NaN where the
-        # equation refuses a state, as the scalar isochore raises there)
-        p, valid, _reasons = fluid.pressures(np.full(np.shape(ts), rho), ts)
-        return np.where(valid, p, np.nan)
-
     return Model("reference", True, "multiparameter Helmholtz-energy equation of state (CoolProp)",
                  peak, rho, lambda t: fluid.pressure(rho, t), fill_to_peak, extra,
-                 # a mixture's state costs tens of milliseconds: its points one at a time, so that the lock is
-                 # not held for a whole curve
-                 isochore_points=None if fluid.is_mixture else isochore_array)
+                 isochore_points=_reference_isochore_points(fluid, rho))
+
+
+def _reference_isochore_points(fluid: ReferenceFluid, rho: float) -> Callable[[np.ndarray], np.ndarray] | None:
+    """T array [K] -> fluid.pressure at molar density rho [mol/m3] at every temperature (NaN where the equation
+    refuses a state, as the scalar isochore raises there), the fluid's lock held once for the whole grid; None
+    for a mixture, whose state costs tens of milliseconds: its points one at a time, so that the lock is not
+    held for a whole curve."""
+    if fluid.is_mixture:
+        return None
+
+    def isochore_points(ts: np.ndarray) -> np.ndarray:
+        p, valid, _reasons = fluid.pressures(np.full(np.shape(ts), rho), ts)
+        return np.where(valid, p, np.nan)
+    return isochore_points
 
 
 # ----------------------------------------------------------------------------- limits
@@ -1493,13 +1524,50 @@ def plot_data(case: Case, r: Result) -> tuple[dict | None, dict | None]:
     t_fill, t_peak = r.fill.temperature_k, r.worst_case_temperature_k
     tol = r.tolerance
     with case_budget():
-        fs, models, _ = _evaluate(case, t_fill, t_peak, [])
+        fs, models = _result_isochores(case, r)
+        if models is None:
+            fs, models, _ = _evaluate(case, t_fill, t_peak, [])
         bounding = None
         if tol is not None and tol.bounding_peak_pressure_pa is not None:
             c = tol.bounding_corner
             bounding = _corner_model(case, (c.fill_pressure_pa, c.fill_temperature_k, c.worst_case_temperature_k))
         return (_curves(models, t_fill, t_peak, {"max_gas_temperature_k": r.limits.max_gas_temperature_k}, bounding),
                 _phase_diagram(fs))
+
+
+def _result_isochores(case: Case, r: Result) -> tuple[FillState, list[Model] | None]:
+    """The models' isochores of a finished result of a pure fluid (not a mixture, a blend or a dissolved gas),
+    from the fill densities the result holds (each model's `fill_molar_density_mol_m3`, the density its
+    isochore runs at), built by the same functions as the models' own (_ideal_isochore_array,
+    _lk_isochore_array, _srk_isochore_array, _reference_isochore_points): the fill state and the models are not
+    evaluated a second time for the plot. (FillState with the fluid, None) where plot_data must evaluate them."""
+    fluid, _err = _reference_fluid(case.gas)
+    fs = FillState(fluid=fluid)
+    if not case.gas.is_pure or case.gas.kind == "dissolved" or fluid is None or fluid.is_mixture:
+        return fs, None
+    models: list[Model] = []
+    for name, m in r.models.items():
+        rho = m.fill_molar_density_mol_m3
+        if not m.applicable or rho is None:
+            models.append(not_applicable(name, m.note))
+            continue
+        if name == "ideal":
+            whole = _ideal_isochore_array(rho)
+        elif name == "generalized":
+            if m.method == QUANTUM_SRK_METHOD:
+                g = case.gas.components[0]
+                whole = _srk_isochore_array((g.classical_critical_temperature, g.classical_critical_pressure,
+                                             g.molar_mass), rho)
+            else:
+                whole = _lk_isochore_array(_gas_arrays(case.gas), rho)
+        else:
+            whole = _reference_isochore_points(fluid, rho)
+
+        def isochore(t: float, whole=whole) -> float:
+            return float(whole(np.array([t]))[0])
+        models.append(Model(name, True, m.note, m.peak_pressure_pa, rho, isochore=isochore, isochore_array=whole,
+                            extra={"fluid": m.fluid} if m.fluid else {}))
+    return fs, models
 
 
 def fold_scenarios(per: list[tuple[str, dict, dict | None]]) -> tuple[int, dict]:
