@@ -1302,18 +1302,20 @@ def _screen_expanded(cases: list[Case]) -> list[Result | None]:
             k = row_of[(i, j)]
             args = (cols, k, gas.molar_mass, c.rated_pressure_pa, c.relief_set_pressure_pa,
                     c.site.atmospheric_pressure_pa, c.required_margin, c.max_filling_ratio_kg_m3, sc.name)
-            r = _row_dict(c, cols, k, _verdict(*args), sun=ex)
-            for key in ("scenarios", "governing_scenario", "exposure"):
-                r.pop(key, None)
             tol = tolerances.get((i, j))
-            if tol is not None:
+            if tol is None:
+                r = _row_dict(c, cols, k, _verdict(*args), sun=ex)
+            else:
                 findings = tol.pop("_findings")
                 if tol["bounding_peak_pressure_pa"] is None or findings["out_of_scope"] or findings["liquid_full"]:
                     break               # not on this path (see _corner_peaks): per row
+                # decided once, on the bounding peak; the row's nominal figures from the nominal peak (the
+                # tolerance block's, the governing peak of this very row: the same number)
                 v = _verdict(*args, bounding=tol["bounding_peak_pressure_pa"])
-                r.update(verdict=v["verdict"], reasons=v["reasons"], peak_pressure_pa=v["peak_pressure_pa"],
-                         margin_fraction=v["margin_fraction"], relief_margin_fraction=v["relief_margin_fraction"],
-                         tolerance=tol)
+                r = _row_dict(c, cols, k, {**v, "peak_pressure_pa": tol["nominal_peak_pressure_pa"]}, sun=ex)
+                r.update(peak_pressure_pa=v["peak_pressure_pa"], tolerance=tol)
+            for key in ("scenarios", "governing_scenario", "exposure"):
+                r.pop(key, None)
             per.append((sc.name, r, ex.balance))
         else:
             out[i] = Result.from_json(_screen.fold_scenarios(per)[1])
