@@ -89,7 +89,7 @@ gas_temperature = "65 degC"
 """
 
 def _library_kinds() -> list[tuple]:
-    """One kind per gas of the library: every permanent and quantum gas by pressure; every liquefied gas
+    """One kind per gas of the library: every permanent and quantum gas by pressure and by mass; every liquefied gas
     by mass (filling ratios up to 0.9 of its saturated liquid density at 50 degC or 5 K below its critical
     point, rated 1.1 to 2.5 times its vapour pressure at 65 degC or 1 K below its critical point) and by pressure (vapour or liquid away from
     the saturation band). The dissolved gas (acetylene) is not screened by this method."""
@@ -107,6 +107,11 @@ def _library_kinds() -> list[tuple]:
             top = 875.0 if gas.name == "hydrogen" else 300.0
             label = gas.name if top == 300.0 else f"{gas.name} to 875 bar(g)"
             pure.append((label, gas.name, cp, _pressure_rows(gas.name, top), 1.0))
+            # by mass: filling ratios from a few bar to the fill pressure's top at 15 degC, rated 1.1 to 2 times
+            # that top (its peaks at the worst case over or under the rating)
+            ratio_top = CP.PropsSI("Dmass", "P", top * 1e5 + ATM, "T", 288.15, cp) / 1000.0
+            by_mass.append((f"{gas.name} by mass", gas.name, cp,
+                            _mass_rows(gas.name, 0.01 * ratio_top, ratio_top, 1.1 * top, 2.0 * top), 1.0))
             continue
         rho_l = CP.PropsSI("Dmass", "T", min(323.15, gas.critical_temperature - 5.0), "Q", 0, cp)
         psat = (CP.PropsSI("P", "T", min(338.15, gas.critical_temperature - 1.0), "Q", 0, cp) - ATM) / 1e5
@@ -119,10 +124,20 @@ def _library_kinds() -> list[tuple]:
     return pure + by_mass + by_pressure
 
 
+#: A defaults file giving every row two exposure scenarios (the worst governs).
+TWO_SCENARIOS = TOLERANCES_AND_SCENARIOS[TOLERANCES_AND_SCENARIOS.index("[[scenario]]"):]
+
 # (label, gas name for the tool, CoolProp fluid string, row maker, share of the rows[, defaults file text])
 OPTIONS = [
     ("nitrogen, 10 % in the sun", "nitrogen", "Nitrogen", _pressure_rows("nitrogen", sun_share=0.1), 1.0),
     ("nitrogen, tolerances and two scenarios", "nitrogen", "Nitrogen", _pressure_rows("nitrogen"), 0.1,
+     TOLERANCES_AND_SCENARIOS),
+    # propane by mass over its filling ratios (to 0.9 of its saturated liquid density at 50 degC), rated 1.1 to 2.5
+    # times its vapour pressure at 65 degC, as the library's "propane by mass" kind
+    ("propane by mass, two scenarios", "propane", "Propane", _mass_rows("propane", 0.05, 0.42, 24.0, 55.0), 0.1,
+     TWO_SCENARIOS),
+    ("propane by mass, tolerances and two scenarios", "propane", "Propane", _mass_rows("propane", 0.05, 0.42, 24.0,
+                                                                                       55.0), 0.1,
      TOLERANCES_AND_SCENARIOS),
 ]
 MIXTURES = [

@@ -3,8 +3,9 @@ a table of one row (:func:`screen_case`); the batch, the terminal summary, JSON,
 web page all consume its Result. Plot data are added by :func:`with_plot_data` (screen.plot_data) for the views
 that draw them.
 
-Rows are grouped by gas. For a pure permanent gas filled by pressure, with one exposure (in the sun or
-not) and no tolerances, both temperatures above the critical temperature (the "vectorised path"):
+Rows are grouped by gas. For a pure permanent gas filled by pressure (or hydrogen, helium, neon or air filled by
+mass: the fill density given, each model's fill pressure at it, no fill-pressure limit), with one exposure (in the
+sun or not) and no tolerances, both temperatures above the critical temperature (the "vectorised path"):
 
 * a row in the sun gets its worst case from :func:`screening.screen._worst_case_temperature` (the energy
   balance, per row and cheap), with its basis, balance and warnings; the rest of the row runs on the arrays;
@@ -28,7 +29,8 @@ not) and no tolerances, both temperatures above the critical temperature (the "v
   :func:`screening.screen.fold_scenarios`, as the single screening does (:func:`_screen_expanded`).
 
 A pure liquefied gas (carbon dioxide, propane, ammonia, the refrigerants: a pure fluid with a saturation dome)
-filled by mass or by pressure at a stated fill temperature, with one exposure and no tolerances, runs on
+filled by mass or by pressure, or a pure permanent gas with a dome and fixed critical constants filled by mass
+(:func:`_mass_fill_gas`), at a stated fill temperature, with one exposure and no tolerances, runs on
 :func:`_liquefied_columns`: the saturation and critical bands (such rows are refused as the single screening
 refuses them), the fill density and the phases at fill and at the worst case on the reference equation, the
 dome crossings, the liquid-full rule, the ideal and generalized models where the contents are a gas at both,
@@ -36,7 +38,7 @@ and the limits, each root as screen._root finds it; the verdict through the same
 (:func:`_liquefied_verdict`).
 
 Everything else takes the state-by-state route, :func:`screening.screen.screen_states`, one row at a time, on purpose: dissolved gases
-and mixtures (their phase is checked per row by two routes, see physics.mixtures), permanent-gas fills by mass,
+and mixtures (their phase is checked per row by two routes, see physics.mixtures),
 fills of a permanent gas near its critical temperature, liquefied gases with tolerances or several scenarios, a
 permanent-gas row any of whose scenario or tolerance states falls outside this path, and any row where a
 vectorised step is not sure of itself (a root next to the edge of a model's range, a solve that did not
@@ -99,7 +101,7 @@ def vectorisable(case: Case) -> bool:
     """Whether the vectorised path covers this row (see the module doc); the rest go per row."""
     if not _vector_gas(case.gas):
         return False
-    if case.fill_pressure_pa is None or case.fill_temperature_k is None:
+    if (case.fill_pressure_pa is None) == (case.fill_mass_kg is None) or case.fill_temperature_k is None:
         return False
     if getattr(case, "tolerance", None) is not None:
         return False
@@ -589,22 +591,25 @@ class PlainPart(Rows):
     """Rows of one gas from an inventory's plain rows, with what their verdicts need besides: the relief
     set pressure [Pa] absolute and the maximum filling ratio [kg/m3] (NaN: none); for a liquefied gas, the
     fill mass per water capacity [kg/m3] (NaN where the fill is given by pressure, whose ``p_fill`` is NaN
-    where it is given by mass; None: every row by pressure)."""
+    where it is given by mass; None: every row by pressure); ``liquefied``: the part runs on
+    :func:`_liquefied_columns` (a liquefied gas, or a permanent gas filled by mass)."""
 
     relief: np.ndarray
     ratio: np.ndarray
     rho_mass: np.ndarray | None = None
+    liquefied: bool = False
 
     def take(self, idx: np.ndarray) -> "PlainPart":
         return PlainPart(self.gas, *(getattr(self, k)[idx] for k in (
             "p_fill", "t_fill", "ambient_max", "gas_temperature", "rated", "atm", "margin_req", "relief", "ratio")),
-            rho_mass=None if self.rho_mass is None else self.rho_mass[idx])
+            rho_mass=None if self.rho_mass is None else self.rho_mass[idx], liquefied=self.liquefied)
 
 
 def _plain_columns(part: PlainPart) -> dict:
     """_columns of the part plus ``verdict``: each vectorised row's :func:`_verdict` (None on fallback rows),
-    so that forked workers decide the verdicts of their own rows (a liquefied gas: :func:`_liquefied_plain_columns`)."""
-    if _liquefied_gas(part.gas):
+    so that forked workers decide the verdicts of their own rows (a liquefied gas, or ``part.liquefied``:
+    :func:`_liquefied_plain_columns`)."""
+    if part.liquefied or _liquefied_gas(part.gas):
         return _liquefied_plain_columns(part)
     cols = _columns(part)
     verdicts = np.full(part.p_fill.size, None, dtype=object)
@@ -693,7 +698,10 @@ def _generalized_columns(gas: Mixture, p_fill: np.ndarray, t_fill: np.ndarray, t
     kq = None
     if gas.is_pure and comps[0].quantum and not lk_ok.all():
         kq = (comps[0].classical_critical_temperature, comps[0].classical_critical_pressure, comps[0].molar_mass)
-        qf = srk_quantum_density(p_fill, t_fill, *kq)
+        qf = srk_quantum_density(np.where(by_density, 1e5, p_fill), t_fill, *kq)
+        if by_density.any():      # a mass fill: the model's pressure at the given density
+            qd = srk_quantum_pressure(np.where(by_density, rho_given, 1.0), t_fill, *kq)
+            qf = GeneralizedState(*(np.where(by_density, getattr(qd, f), getattr(qf, f)) for f in GENERALIZED_FIELDS))
         qp = srk_quantum_pressure(np.where(qf.valid, qf.molar_density, 1.0), t_peak, *kq)
         q_srk = ~lk_ok & qf.valid & qp.valid
         q_reason = np.where(qf.valid, qp.reason, qf.reason).astype(object)
@@ -714,20 +722,35 @@ def _generalized_columns(gas: Mixture, p_fill: np.ndarray, t_fill: np.ndarray, t
 _FLOAT_COLUMNS = ("t_peak", "rho_molar", "peak_ref", "rho_ideal", "peak_ideal", "lk_rho_fill", "lk_z_fill",
                   "lk_tr_fill", "lk_pr_fill", "lk_peak", "lk_z_peak", "lk_tr_peak", "lk_pr_peak", "tcf", "pcf",
                   "tcp", "pcp", "omp", "dry", "liquid_full", "dpdt_liquid_full", "max_t", "max_p", "target",
-                  "mass_rho", "crossing")
+                  "mass_rho", "crossing", "p_fill_ref")
 
 
-def _reference_fill_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> np.ndarray:
-    """The reference fill state of permanent-gas rows: the density at the fill (PT flash, checked) and the peak
-    on the same isochore (``rho_molar``, ``peak_ref``). Returns the fill's molar density as the flash gives it."""
+def _reference_fill_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray,
+                            given: np.ndarray | None = None) -> np.ndarray:
+    """The reference fill state of permanent-gas rows: the density at the fill (PT flash, checked; where `given`
+    [kg/m3] is finite, a fill by mass, that density and the pressure it has at the fill temperature,
+    ``p_fill_ref``) and the peak on the same isochore (``rho_molar``, ``peak_ref``). Returns the fill's molar
+    density as the flash gives it (a fill by mass: as given)."""
     n = rows.p_fill.size
     gas, p_fill, t_fill, t_peak = rows.gas, rows.p_fill, rows.t_fill, out["t_peak"]
+    by_mass = np.zeros(n, dtype=bool) if given is None else np.isfinite(given)
     rho_molar = np.full(n, np.nan)
-    live = np.flatnonzero(~fallback)
+    live = np.flatnonzero(~fallback & ~by_mass)
     rho_molar[live], ok_fill = _density_once(fluid, p_fill[live], t_fill[live])
     fallback[live[~ok_fill]] = True
     # the single screening takes the fill's mass density and divides by the molar mass again: so here
     rho_ref = (rho_molar * gas.molar_mass) / gas.molar_mass
+    mass = np.flatnonzero(by_mass)
+    if mass.size:
+        rho_molar[mass] = rho_ref[mass] = given[mass] / gas.molar_mass
+        if not fluid.is_pseudo_pure:
+            # a fill denser than the liquid at the triple point is an input error: per row, where it is raised
+            fallback[mass[rho_ref[mass] > _rho_top(fluid, True)]] = True
+        live = np.flatnonzero(~fallback & by_mass)
+        if live.size:
+            p, v, _rs = fluid.pressures(rho_ref[live], t_fill[live])
+            out["p_fill_ref"][live] = p
+            fallback[live[~v]] = True
     out["rho_molar"] = rho_ref
     peak_ref = out["peak_ref"]
     live = np.flatnonzero(~fallback)
@@ -754,6 +777,7 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
     (screen.P_TOL)."""
     n = rows.p_fill.size
     rated, t_fill, t_peak, target = rows.rated, rows.t_fill, out["t_peak"], out["target"]
+    by_mass = out["by_mass"]
     lk_ok, q_srk, rho_lk, kq = gen["lk_ok"], gen["q_srk"], gen["_rho_lk"], gen["_kq"]
     tcf, pcf, omf, tcp, pcp, omp = (gen[k] for k in ("tcf", "pcf", "_omf", "tcp", "pcp", "omp"))
     peak_lk = out["lk_peak"]
@@ -768,8 +792,10 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
             st = srk_quantum_pressure(rho_lk[r], t, *kq)
             return np.where(st.valid, st.pressure - rated[r], np.nan)
 
+        rows_qp = rows_q[~by_mass[rows_q]]      # a fill by mass has no fill-pressure limit
+
         def fill_q(p, ix):
-            r = rows_q[ix]
+            r = rows_qp[ix]
             s1 = srk_quantum_density(p, t_fill[r], *kq)
             s2 = srk_quantum_pressure(np.where(s1.valid, s1.molar_density, 1.0), t_peak[r], *kq)
             return np.where(s1.valid & s2.valid, s2.pressure - target[r], np.nan)
@@ -781,7 +807,8 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
         if rest.size:
             t_lk[rows_q[rest]] = _monotone_root(lambda t, ix: iso_q(t, rest[ix]), t_lo[rows_q[rest]],
                                                 t_hi[rows_q[rest]])
-        max_p_lk[rows_q] = _monotone_root(fill_q, p_lo[rows_q], p_hi[rows_q])
+        if rows_qp.size:
+            max_p_lk[rows_qp] = _monotone_root(fill_q, p_lo[rows_qp], p_hi[rows_qp])
     if rows_lk.size:
         i = rows_lk
 
@@ -844,7 +871,7 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
         hasp = np.isfinite(pstar) & (pstar >= p_lo[i]) & (pstar <= p_hi[i])
         a, b = _linspace_bracket(p_lo[i], p_hi[i], pstar)
         edgep = hasp & ((b / pcf[i] > _LK_PR_EDGE) | (target[i] * b / pstar / pcp[i] > _LK_PR_EDGE))
-        unsure = edgep | (~np.isfinite(pstar) & (target[i] / pcp[i] < 10.5))
+        unsure = (edgep | (~np.isfinite(pstar) & (target[i] / pcp[i] < 10.5))) & ~by_mass[i]
         ok = hasp & ~unsure
         max_p_lk[i[ok]] = pstar[ok]
         unsure &= ~_above_lk_pressures(target[i], pcp[i])   # a target no peak of the model reaches: none
@@ -939,19 +966,28 @@ def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessel
     scenarios), which then share the solve of the one limit that does not depend on the scenario, see
     :func:`_generalized_limits`).
 
+    A row filled by mass (rows with ``rho_mass`` [kg/m3], finite for such a row; its ``p_fill`` is NaN) starts from
+    that density: its fill pressure on each model is that model's pressure at the fill temperature, and it has no
+    fill-pressure limit (screen._limits).
+
     Returns a dict of the arrays named in _FLOAT_COLUMNS plus ``stated`` (the stated gas temperature is the
-    worst-case basis), ``lk_ok``, ``lk_reason`` and ``fallback`` (rows that must go per row)."""
+    worst-case basis), ``lk_ok``, ``lk_reason``, ``by_mass``, ``fill_over`` (the fill itself at or above the rating
+    on a real-gas model) and ``fallback`` (rows that must go per row)."""
     n = rows.p_fill.size
     gas = rows.gas
     g = gas.components[0]
     p_fill, t_fill, rated, atm, margin_req = rows.p_fill, rows.t_fill, rows.rated, rows.atm, rows.margin_req
+    given = getattr(rows, "rho_mass", None)
+    by_mass = np.zeros(n, dtype=bool) if given is None else np.isfinite(given)
+    by_pressure = ~by_mass
     t_peak, stated, fill_governs, t_exposure = worst_case(rows.ambient_max, rows.gas_temperature, t_fill)
     fallback = np.zeros(n, dtype=bool)
     nan = np.full(n, np.nan)
     out = {k: nan.copy() for k in _FLOAT_COLUMNS}
     out.update(t_peak=t_peak, stated=stated, fill_governs=fill_governs, t_exposure=t_exposure, fallback=fallback, lk_ok=np.zeros(n, dtype=bool),
                lk_reason=np.full(n, "", dtype=object),
-               gas_below_ambient=~np.isnan(rows.gas_temperature) & (rows.gas_temperature < rows.ambient_max))
+               gas_below_ambient=~np.isnan(rows.gas_temperature) & (rows.gas_temperature < rows.ambient_max),
+               by_mass=by_mass, fill_over=np.zeros(n, dtype=bool))
     try:
         fluid = reference_fluid((g.coolprop_name,), (1.0,))
     except NotApplicable:
@@ -968,18 +1004,20 @@ def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessel
         fallback |= t_fill <= _screen.LIQUID_LIKE_TEMPERATURE_RATIO * tc_ref
 
     # --- reference fill state: density at the fill (PT flash, checked), peak on the same isochore
-    rho_molar = _reference_fill_columns(rows, fluid, out, fallback)
+    rho_molar = _reference_fill_columns(rows, fluid, out, fallback, given)
 
     # --- where the isochore meets the dome (pure fluids; the pseudo-pure air has no phase analysis)
     if pure and limits:
         _dome_columns(fluid, rho_molar, out, fallback, shared=shared_fills)
 
     # --- ideal
-    out["rho_ideal"] = rho_ideal = p_fill / (R * t_fill)
+    out["rho_ideal"] = rho_ideal = np.where(by_mass, out["rho_molar"], p_fill / (R * t_fill))
     out["peak_ideal"] = rho_ideal * R * t_peak
 
     # --- generalized, as arrays
-    gen = _generalized_columns(gas, p_fill, t_fill, t_peak, shared_fills=shared_fills)
+    gen = _generalized_columns(gas, p_fill, t_fill, t_peak,
+                               None if not by_mass.any() else np.where(by_mass, out["rho_molar"], np.nan),
+                               shared_fills=shared_fills)
     out.update({k: v for k, v in gen.items() if not k.startswith("_")})
     lk_ok, q_srk = gen["lk_ok"], gen["q_srk"]
     # the vectorised limits assume constant critical constants (not the quantum correction)
@@ -987,6 +1025,12 @@ def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessel
         fallback |= lk_ok & ~q_srk
     if not limits:
         return out
+
+    # --- the fill itself at or above the rating (screen._fill_over_rating): the fill pressure, or for a mass fill
+    # each applicable real-gas model's pressure at the fill
+    with np.errstate(invalid="ignore"):
+        out["fill_over"] = np.where(by_pressure, p_fill >= rated,
+                                    ~(out["p_fill_ref"] < rated) | (lk_ok & (out["lk_p_fill"] >= rated)))
 
     # --- limits: targets and scan ranges as screen._limits has them
     out["target"] = target = atm + (rated - atm) * (1.0 - margin_req)
@@ -998,6 +1042,9 @@ def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessel
     t_lk, max_p_lk = _generalized_limits(rows, out, gen, fallback, t_lo, t_hi, p_lo, p_hi, vessels)
 
     _reference_limits(rows, fluid, pure, out, fallback, t_lk, max_p_lk, t_lo, t_hi, p_lo, p_hi)
+    # a fill by mass: no fill-pressure limit, and no temperature limit where the fill itself is over the rating
+    out["max_p"][by_mass] = np.nan
+    out["max_t"][by_mass & out["fill_over"]] = np.nan
 
     # vapour pressure where the isochore leaves the dome (isochore.isochore_phases: crossing_pressure)
     _crossing_columns(fluid, out, fallback)
@@ -1102,6 +1149,9 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
     t_fill, t_peak = float(case.fill_temperature_k), float(cols["t_peak"][k])
     rho_molar = float(cols["rho_molar"][k])
     rho_mass = rho_molar * gas.molar_mass
+    by_pressure = case.fill_pressure_pa is not None
+    # the reference equation's fill pressure: as filled, or for a fill by mass, at its density
+    p_fill_ref = case.fill_pressure_pa if by_pressure else float(cols["p_fill_ref"][k])
     peak_ref, peak_ideal, rho_ideal = float(cols["peak_ref"][k]), float(cols["peak_ideal"][k]), float(cols["rho_ideal"][k])
     phase = "supercritical"   # both temperatures above the critical temperature, single phase
     ideal = {"applicable": True, "peak_pressure_pa": peak_ideal,
@@ -1111,7 +1161,7 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
     ref = {"applicable": True, "peak_pressure_pa": peak_ref,
            "note": "multiparameter Helmholtz-energy equation of state (CoolProp)",
            "fill_molar_density_mol_m3": rho_molar, "fluid": fluid.label, "phase_fill": phase, "phase_peak": phase,
-           "z_fill": case.fill_pressure_pa / (rho_molar * 8.314462618 * t_fill),
+           "z_fill": p_fill_ref / (rho_molar * 8.314462618 * t_fill),
            "z_peak": peak_ref / (rho_molar * R * t_peak), "eos_references": fluid.eos_references()}
     models = {"ideal": ideal, "generalized": gen, "reference": ref}
     gov_name, peak = v["governing_model"], v["peak_pressure_pa"]
@@ -1127,7 +1177,7 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
             rm, basis = case.max_filling_ratio_kg_m3, "the vessel's maximum filling ratio"
         mass_limit = {"max_fill_mass_kg": rm * case.water_capacity_m3, "max_filling_ratio_kg_per_l": rm / 1000.0,
                       "max_fill_mass_basis": basis}
-    fill_over = case.fill_pressure_pa >= case.rated_pressure_pa
+    fill_over = case.fill_pressure_pa >= case.rated_pressure_pa if by_pressure else bool(cols["fill_over"][k])
     limits = {**mass_limit, "max_gas_temperature_k": None if fill_over else _opt(cols["max_t"][k]),
               "max_fill_pressure_pa": _opt(cols["max_p"][k]),
               "target_peak_pressure_pa": float(cols["target"][k]), "note": _screen.limits_note(True, fill_over),
@@ -1139,9 +1189,10 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
         "verdict": v["verdict"], "reasons": v["reasons"], "warnings": v["warnings"],
         "fill": {"pressure_pa": case.fill_pressure_pa, "temperature_k": t_fill, "temperature_given": True,
                  "density_kg_m3": rho_mass, "molar_density_mol_m3": rho_molar,
-                 "mass_kg": rho_mass * case.water_capacity_m3,
+                 "mass_kg": (rho_mass if by_pressure else case.fill_mass_kg / case.water_capacity_m3)
+                 * case.water_capacity_m3,
                  "phase": phase, "filling_ratio_kg_per_l": rho_mass / 1000.0 if rho_mass else None,
-                 "vapour_pressure_pa": None, "given": "pressure"},
+                 "vapour_pressure_pa": None, "given": "pressure" if by_pressure else "mass"},
         "worst_case_temperature_k": t_peak,
         "worst_case_basis": (sun.basis if sun is not None else _screen.FILL_STATE_BASIS if cols["fill_governs"][k] else
                              "gas temperature stated in the case" if cols["stated"][k] else "ambient maximum"),
@@ -1375,26 +1426,34 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
     ``{"verdict": "input-error", "error": InputError}`` for the caller to place.
     """
     results: list[dict | None] = [None] * len(cases)
-    groups: dict[str, list[int]] = {}
+    # groups by gas and by the columns that take them (a permanent gas: by pressure on _columns, by mass on
+    # _liquefied_columns)
+    groups: dict[tuple[str, bool], list[int]] = {}
     rest: list[int] = []
     sun: dict[int, SunRow | None] = {}
     expanded: dict[str, list[int]] = {}
+    liquefied_scenarios: dict[str, list[int]] = {}
     for i, c in enumerate(cases):
         if expandable(c):
             expanded.setdefault(c.gas.name, []).append(i)
             continue
-        if vectorisable(c) or liquefied_vectorisable(c):
+        if liquefied_expandable(c):
+            liquefied_scenarios.setdefault(c.gas.name, []).append(i)
+            continue
+        liquefied = liquefied_vectorisable(c)
+        if liquefied or vectorisable(c):
             try:
                 sun[i] = _sun_row(c)
             except InputError:
                 rest.append(i)      # the per-row path raises it again, in its place
                 continue
-            groups.setdefault(c.gas.name, []).append(i)
+            groups.setdefault((c.gas.name, liquefied), []).append(i)
         else:
             rest.append(i)
     names = list(groups)
-    all_cols = _run_columns([(LiquefiedRows if _liquefied_gas(cases[groups[nm][0]].gas) else Rows).of_cases(
-        [cases[i] for i in groups[nm]], [sun[i] for i in groups[nm]]) for nm in names], _group_columns)
+    all_cols = _run_columns([(LiquefiedRows if nm[1] or any(cases[i].fill_mass_kg is not None for i in groups[nm])
+                              else Rows).of_cases([cases[i] for i in groups[nm]], [sun[i] for i in groups[nm]])
+                             for nm in names], _group_columns)
     for nm, cols in zip(names, all_cols):
         idx = groups[nm]
         done = 0
@@ -1406,9 +1465,10 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
                 done += 1
         if progress:
             progress(done)
-    for idx in expanded.values():
+    for idx, screen_them in [(idx, _screen_expanded) for idx in expanded.values()] + [
+            (idx, _screen_liquefied_scenarios) for idx in liquefied_scenarios.values()]:
         done = 0
-        for i, r in zip(idx, _screen_expanded([cases[i] for i in idx])):
+        for i, r in zip(idx, screen_them([cases[i] for i in idx])):
             if r is None:
                 rest.append(i)
             else:
@@ -1475,13 +1535,17 @@ class PlainScreening:
         self.summaries: list[dict | None] = [None] * n
         self._full: dict[int, dict] = {}
         self._where: dict[int, tuple[dict, int]] = {}
-        groups: dict[str, list[int]] = {}
+        groups: dict[tuple[str, bool], list[int]] = {}
         rest: list[int] = []
         by_mass = ~np.isnan(plain.fill_mass_kg)
         for j, gas in enumerate(plain.gases):
-            # a fill by mass: on the liquefied-gas columns only (a permanent gas by mass goes per row)
-            arrays = _liquefied_gas(gas) or (not by_mass[j] and _vector_gas(gas))
-            (groups.setdefault(gas.name, []) if arrays else rest).append(j)
+            # a permanent gas with a dome filled by mass on the liquefied-gas columns; hydrogen, helium, neon and
+            # air filled by mass on the permanent-gas columns with their fills by pressure
+            liquefied = _on_liquefied_columns(gas, bool(by_mass[j]))
+            if liquefied or _vector_gas(gas):
+                groups.setdefault((gas.name, liquefied), []).append(j)
+            else:
+                rest.append(j)
         names = list(groups)
         parts = []
         for nm in names:
@@ -1491,7 +1555,7 @@ class PlainScreening:
             parts.append(PlainPart(plain.gases[idx[0]], plain.fill_pressure_pa[idx], plain.fill_temperature_k[idx],
                                    plain.ambient_max_k[idx], plain.gas_temperature_k[idx], plain.rated_pa[idx],
                                    plain.atmospheric_pa[idx], plain.required_margin[idx], plain.relief_pa[idx],
-                                   plain.max_filling_ratio_kg_m3[idx], rho_mass))
+                                   plain.max_filling_ratio_kg_m3[idx], rho_mass, liquefied=nm[1]))
         for nm, cols in zip(names, _run_columns(parts, _plain_columns)):
             done = 0
             gas = plain.gases[groups[nm][0]]
@@ -1551,10 +1615,9 @@ def iter_chunks(items: list, size: int) -> Iterable[list]:
 
 # ----------------------------------------------------------------------------- liquefied gases
 
-def _liquefied_gas(gas: Mixture) -> bool:
-    """A pure liquefiable gas whose reference equation has a saturation dome (carbon dioxide, propane, ammonia,
-    the refrigerants…): its rows by mass and by pressure run on :func:`_liquefied_columns`."""
-    if not (gas.is_pure and gas.kind == "liquefiable" and gas.components[0].coolprop_name):
+def _dome_gas(gas: Mixture) -> bool:
+    """A pure gas whose reference equation has a saturation dome (not a mixture, not the pseudo-pure air)."""
+    if not (gas.is_pure and gas.components[0].coolprop_name):
         return False
     try:
         fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
@@ -1563,12 +1626,33 @@ def _liquefied_gas(gas: Mixture) -> bool:
     return _screen._is_pure(fluid)
 
 
+def _liquefied_gas(gas: Mixture) -> bool:
+    """A pure liquefiable gas whose reference equation has a saturation dome (carbon dioxide, propane, ammonia,
+    the refrigerants…): its rows by mass and by pressure run on :func:`_liquefied_columns`."""
+    return gas.kind == "liquefiable" and _dome_gas(gas)
+
+
+def _mass_fill_gas(gas: Mixture) -> bool:
+    """A pure permanent gas with a saturation dome and fixed critical constants (nitrogen, oxygen, argon, carbon
+    monoxide, methane, krypton; not the quantum gases, whose generalized model corrects its constants with the
+    temperature, nor air, which has no dome: those run on :func:`_columns`): its rows filled by mass run on
+    :func:`_liquefied_columns` too. Those columns are the
+    closed-tank analysis of any pure fluid with a dome, which screen.screen_states applies alike to a permanent
+    and a liquefiable gas; tests/test_permanent_by_mass.py compares both routes row by row."""
+    return gas.kind == "permanent" and not gas.components[0].quantum and _dome_gas(gas)
+
+
+def _on_liquefied_columns(gas: Mixture, by_mass: bool) -> bool:
+    """Whether a row of this gas (filled by mass where `by_mass`) runs on :func:`_liquefied_columns`."""
+    return _liquefied_gas(gas) or (by_mass and _mass_fill_gas(gas))
+
+
 def liquefied_vectorisable(case: Case) -> bool:
-    """Whether the liquefied-gas columns cover this row: a pure liquefied gas filled by mass or by pressure at a
-    stated fill temperature, with one exposure (in the sun or not) and no tolerances. Rows those columns are not
-    sure of (a gas at fill and at the worst case, where the gas models apply; a state the reference equation
-    refuses) still go per row."""
-    if not _liquefied_gas(case.gas) or case.fill_temperature_k is None:
+    """Whether the liquefied-gas columns cover this row: a pure liquefied gas filled by mass or by pressure, or a
+    pure permanent gas filled by mass (:func:`_mass_fill_gas`), at a stated fill temperature, with one exposure (in
+    the sun or not) and no tolerances. Rows those columns are not sure of (a gas at fill and at the worst case,
+    where the gas models apply; a state the reference equation refuses) still go per row."""
+    if not _on_liquefied_columns(case.gas, case.fill_mass_kg is not None) or case.fill_temperature_k is None:
         return False
     if (case.fill_pressure_pa is None) == (case.fill_mass_kg is None):
         return False
@@ -1576,6 +1660,58 @@ def liquefied_vectorisable(case: Case) -> bool:
         return False
     scenarios = getattr(case, "scenarios", ())
     return not (len(scenarios) > 1 or any(getattr(s, "solar", "none") not in ("none", "sun") for s in scenarios))
+
+
+def liquefied_expandable(case: Case) -> bool:
+    """Whether a row the liquefied-gas columns take (:func:`liquefied_vectorisable`, but with several exposure
+    scenarios, each in the sun or not, and no tolerances) runs on them with each scenario a row of the table
+    (:func:`_screen_liquefied_scenarios`)."""
+    scenarios = getattr(case, "scenarios", ())
+    if len(scenarios) <= 1 or getattr(case, "tolerance", None) is not None or case.fill_temperature_k is None:
+        return False
+    if (case.fill_pressure_pa is None) == (case.fill_mass_kg is None):
+        return False
+    return (_on_liquefied_columns(case.gas, case.fill_mass_kg is not None)
+            and all(getattr(s, "solar", "none") in ("none", "sun") for s in scenarios))
+
+
+def _screen_liquefied_scenarios(cases: list[Case]) -> list[Result | None]:
+    """Rows of one gas on the liquefied-gas columns with several scenarios: every scenario a row of one table
+    (its worst case as screen._worst_case_temperature finds it, :func:`_exposure_row`), each scenario's result
+    laid out as for a row of one scenario, then folded into one result per vessel by screen.fold_scenarios, as
+    screen.screen_states folds them. None where a row must go per row (one of its scenarios fell back, or its
+    worst case raises)."""
+    out: list[Result | None] = [None] * len(cases)
+    exposures: dict[int, list[SunRow]] = {}
+    for i, c in enumerate(cases):
+        try:
+            exposures[i] = [_exposure_row(c, sc) for sc in c.scenarios]
+        except (InputError, ValueError):
+            continue                    # the per-row path raises it again, in its place
+    keys = [(i, j) for i, rows in exposures.items() for j in range(len(rows))]
+    if not keys:
+        return out
+    cols = _liquefied_columns(LiquefiedRows.of_cases([cases[i] for i, _j in keys],
+                                                     [exposures[i][j] for i, j in keys]))
+    fallback = cols["fallback"].tolist()
+    bad = {i for (i, _j), f in zip(keys, fallback) if f}
+    row_of = {key: k for k, key in enumerate(keys)}
+    for i, rows in exposures.items():
+        if i in bad:
+            continue
+        c = cases[i]
+        per = []
+        for j, (sc, ex) in enumerate(zip(c.scenarios, rows)):
+            k = row_of[(i, j)]
+            v = _liquefied_verdict(cols, k, c.rated_pressure_pa, c.relief_set_pressure_pa,
+                                   c.site.atmospheric_pressure_pa, c.required_margin, c.max_filling_ratio_kg_m3,
+                                   sc.name)
+            r = _assemble_liquefied(c, cols, k, v, sun=ex)
+            for key in ("scenarios", "governing_scenario", "exposure"):
+                r.pop(key, None)
+            per.append((sc.name, r, ex.balance))
+        out[i] = Result.from_json(_screen.fold_scenarios(per)[1])
+    return out
 
 
 @dataclass
@@ -1596,10 +1732,20 @@ class LiquefiedRows(Rows):
                                                               "gas_temperature", "rated", "atm", "margin_req")},
                              rho_mass=rho_mass)
 
+    def take(self, idx: np.ndarray) -> "LiquefiedRows":
+        base = Rows.take(self, idx)
+        return LiquefiedRows(**{k: getattr(base, k) for k in ("gas", "p_fill", "t_fill", "ambient_max",
+                                                              "gas_temperature", "rated", "atm", "margin_req")},
+                             rho_mass=self.rho_mass[idx])
+
 
 def _group_columns(rows: Rows) -> dict:
-    """The columns of one gas group: :func:`_liquefied_columns` for a liquefied gas, else :func:`_columns`."""
-    return _liquefied_columns(rows) if _liquefied_gas(rows.gas) else _columns(rows)
+    """The columns of one group: :func:`_liquefied_columns` for a liquefied gas and for a permanent gas with a dome
+    filled by mass (:func:`_mass_fill_gas`, in LiquefiedRows), else :func:`_columns` (which takes the fill masses of
+    LiquefiedRows too)."""
+    if _liquefied_gas(rows.gas) or (isinstance(rows, LiquefiedRows) and _mass_fill_gas(rows.gas)):
+        return _liquefied_columns(rows)
+    return _columns(rows)
 
 
 def _known_scan_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], x: np.ndarray, lo: np.ndarray,

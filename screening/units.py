@@ -314,11 +314,49 @@ class Reading:
         return self.si()
 
 
-@lru_cache(maxsize=65536)
 def _to_si(number: float, pint_name: str, kind: str) -> float:
+    """pint's conversion of an allowlisted unit to SI, to the last bit: by the unit's own factor (and offset) where
+    that is pint's arithmetic (:func:`_to_si_factor`), else by pint itself."""
+    affine = _to_si_factor(pint_name, kind)
+    if affine is None:
+        return _pint_to_si(number, pint_name, kind)
+    scale, offset = affine
+    return number * scale if offset is None else number * scale + offset
+
+
+@lru_cache(maxsize=65536)
+def _pint_to_si(number: float, pint_name: str, kind: str) -> float:
     """pint conversion of an allowlisted unit to SI; cached, since an inventory repeats its values."""
     q = ureg.Quantity(number, ureg.Unit(pint_name))
     return float(q.to(ureg.Unit(_SI_UNIT[kind])).magnitude)
+
+
+#: Numbers on which :func:`_to_si_factor` checks a unit's factor against pint before using it.
+_PROBES = (0.0, 1.0, -1.0, 0.5, 2.0, 3.0, 7.0, 9.0, 15.0, 20.5, 45.0, 65.0, 100.0, 200.0, 273.15, 300.0, -40.0,
+           -17.7777, 1e-3, 0.1, 0.3, 1.6, 12.34, 98.6, 123.456789, 1013.25, 4500.0, 123456.789, 1e6, 3.3e-7)
+
+
+@lru_cache(maxsize=None)
+def _to_si_factor(pint_name: str, kind: str) -> tuple[float, float | None] | None:
+    """(scale, offset) with which ``x * scale (+ offset)`` is pint's conversion of `pint_name` to SI bit for bit:
+    a multiplicative unit's factor (pint multiplies by it once), or an offset unit's scale and offset as pint's
+    own converter holds them (it computes x * scale + offset); checked against pint on _PROBES here and on
+    many more numbers in tests/test_units.py; None (pint then converts) where any differs or the converter
+    cannot be read."""
+    unit, si = ureg.Unit(pint_name), ureg.Unit(_SI_UNIT[kind])
+    if float(ureg.Quantity(0.0, unit).to(si).magnitude) == 0.0:
+        scale, offset = float(ureg.Quantity(1.0, unit).to(si).magnitude), None
+    else:
+        try:
+            converter = ureg._units[pint_name].converter       # pint's own scale and offset of the unit
+            scale, offset = float(converter.scale), float(converter.offset)
+        except (AttributeError, KeyError, TypeError, ValueError):
+            return None
+    for x in _PROBES:
+        fast = x * scale if offset is None else x * scale + offset
+        if fast != _pint_to_si(x, pint_name, kind):
+            return None
+    return scale, offset
 
 
 def _split(text: object, *, where: dict) -> tuple[float, str]:

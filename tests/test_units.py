@@ -147,3 +147,21 @@ def test_the_registry_of_the_allowlisted_units_converts_exactly_as_pints_full_re
                 ours = small.Quantity(x, small.Unit(src)).to(small.Unit(dst)).magnitude
                 theirs = full.Quantity(x, full.Unit(src)).to(full.Unit(dst)).magnitude
                 assert np.array_equal(ours, theirs), (label, src, dst, x, ours, theirs)
+
+
+def test_every_allowlisted_unit_converts_by_its_factor_exactly_as_pint_does():
+    # Reference: pint's conversion of each number (the package's registry, which the test above holds to pint's
+    # full registry). The reader multiplies by the unit's factor (and adds its offset) instead: the same
+    # arithmetic, so the same number to the last bit, on numbers written as a register writes them.
+    import random
+
+    from screening import units
+
+    rnd = random.Random(5)
+    numbers = ([rnd.uniform(-1e4, 1e4) for _ in range(1500)] + [round(rnd.uniform(-100, 1000), 2) for _ in range(1500)]
+               + [float(rnd.randint(-500, 5000)) for _ in range(500)] + [rnd.uniform(0, 1) * 10 ** rnd.randint(-9, 9)
+                                                                       for _ in range(500)])
+    for spec in {(s.pint_name, s.kind) for s in units._UNITS.values() if s.kind}:
+        assert units._to_si_factor(*spec) is not None, spec
+        for x in numbers:
+            assert units._to_si(x, *spec) == units._pint_to_si(x, *spec), (spec, x)

@@ -454,7 +454,20 @@ def row_data(inv: Inventory, cells: list[str], defaults: dict | None) -> tuple[d
     if any((c or "").strip() for c in extra):
         raise InputError("more cells than header columns", given=[c for c in extra if c.strip()][0],
                          expected=f"{len(inv.columns)} columns as in the header")
+    _pressure_tolerance_for_pressure_fills(data)
     return data, "\n".join(lines) + "\n"
+
+
+def _pressure_tolerance_for_pressure_fills(data: dict) -> None:
+    """A fill-pressure tolerance of the defaults file (the one place a register's tolerances come from) is for
+    the rows filled by pressure: a row filled by mass takes the defaults' other tolerances without it (its
+    result's tolerance section lists the tolerances that applied)."""
+    tol = data.get("tolerance")
+    fill = data.get("fill")
+    if not (isinstance(tol, dict) and "fill_pressure" in tol and isinstance(fill, dict)):
+        return
+    if "mass" in fill and "pressure" not in fill:
+        data["tolerance"] = {k: v for k, v in tol.items() if k != "fill_pressure"}
 
 
 _EXAMPLE_UNIT = {"pressure": "bar(g)", "temperature": "degC", "volume": "L", "length": "m", "mass": "kg",
