@@ -638,12 +638,30 @@ def worst_case(ambient_max: np.ndarray, gas_temperature: np.ndarray,
     return t, stated, t > t_exposure, t_exposure
 
 
+def _lk_density_shared(p: np.ndarray, t: np.ndarray, tc: np.ndarray, pc: np.ndarray, omega: np.ndarray,
+                       shared: bool) -> GeneralizedState:
+    """lee_kesler_density of rows; `shared`: each distinct (p, t, tc, pc, omega) solved once and handed to every
+    row that has it (the fill of a vessel's scenarios and of most of its tolerance states). Each element is
+    solved on its own, whatever the size of its call (physics.eos.generalized), so the rows get the very numbers
+    of the full call."""
+    if shared and p.size > 1:
+        key = np.stack([p, t, tc, pc, omega], axis=1)
+        _u, first, back = np.unique(key, axis=0, return_index=True, return_inverse=True)
+        if first.size < p.size:
+            s = lee_kesler_density(p[first], t[first], tc[first], pc[first], omega[first])
+            back = back.ravel()
+            return GeneralizedState(*(getattr(s, f)[back] for f in GENERALIZED_FIELDS))
+    return lee_kesler_density(p, t, tc, pc, omega)
+
+
 def _generalized_columns(gas: Mixture, p_fill: np.ndarray, t_fill: np.ndarray, t_peak: np.ndarray,
-                         rho_given: np.ndarray | None = None) -> dict:
+                         rho_given: np.ndarray | None = None, shared_fills: bool = False) -> dict:
     """The generalized model of rows of one gas as arrays (screen._generalized, screen._quantum_generalized): the
     Lee–Kesler fill and peak states, the pseudocritical constants at both, and for pure hydrogen, helium or neon
     where the Lee–Kesler tables end, the quantum-gas SRK model. A row's fill is its pressure, or where
-    ``rho_given`` [mol/m3] is finite (a mass fill), that density. Keys starting with "_" are for the limits."""
+    ``rho_given`` [mol/m3] is finite (a mass fill), that density; `shared_fills`: rows that repeat a fill (the
+    scenarios and tolerance states of one vessel) solve it once (:func:`_lk_density_shared`). Keys starting
+    with "_" are for the limits."""
     n = t_fill.size
     fr = np.array(gas.fractions)
     comps = gas.components
@@ -666,7 +684,7 @@ def _generalized_columns(gas: Mixture, p_fill: np.ndarray, t_fill: np.ndarray, t
     else:
         tcf, pcf, omf = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_fill))
         tcp, pcp, omp = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_peak))
-    gf = lee_kesler_density(np.where(by_density, 1e5, p_fill), t_fill, tcf, pcf, omf)
+    gf = _lk_density_shared(np.where(by_density, 1e5, p_fill), t_fill, tcf, pcf, omf, shared_fills)
     if by_density.any():
         gd = lee_kesler_pressure(np.where(by_density, rho_given, 1.0), t_fill, tcf, pcf, omf)
         gf = GeneralizedState(*(np.where(by_density, getattr(gd, f), getattr(gf, f)) for f in GENERALIZED_FIELDS))
@@ -745,11 +763,18 @@ def _reference_fill_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallba
 
 
 def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, t_lo: np.ndarray, t_hi: np.ndarray,
-                        p_lo: np.ndarray, p_hi: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+                        p_lo: np.ndarray, p_hi: np.ndarray,
+                        vessels: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
     """The generalized model's limits of permanent-gas rows (screen._limits): the gas temperature at which the
     isochore reaches the rating and the fill pressure whose peak is the target, by the model's inverse where it
     is sure of itself and by screen._root's scan (:func:`_scan_root`) where a root lies at the edge of the range;
-    the quantum-gas SRK rows by the scan. Returns (temperatures [K], fill pressures [Pa]), NaN for none."""
+    the quantum-gas SRK rows by the scan. Returns (temperatures [K], fill pressures [Pa]), NaN for none.
+
+    `vessels` (each row's vessel, or None): the rows of one vessel (its scenarios) with the same isochore and
+    rating share the model's inverse for the gas temperature at the rating (the one root of the same function,
+    solved from the first such row's start; each row then decides on it within its own scan range, as before).
+    The root is the same to the solve's tolerance (_SECANT_RTOL), far inside the solve tolerance of the limits
+    (screen.P_TOL)."""
     n = rows.p_fill.size
     rated, t_fill, t_peak, target = rows.rated, rows.t_fill, out["t_peak"], out["target"]
     by_mass = out["by_mass"]
@@ -794,8 +819,17 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
         # generalized: T on the isochore at the rated pressure (density at the rated pressure = fill density)
         reach = rated[i] / pcp[i] <= 10.0
         x0 = np.minimum(t_peak[i] * np.clip(rated[i] / peak_lk[i], 0.2, 5.0), 3.9 * tcp[i])
-        f0 = f_t(x0, i)
-        root, conv = _secant(f_t, x0, f0, x0 * (1.0 + 1e-4), i)
+        one = None
+        if vessels is not None and i.size > 1:
+            key = np.stack([vessels[i], rated[i], rho_lk[i], tcp[i], pcp[i], omp[i]], axis=1)
+            _u, one, back = np.unique(key, axis=0, return_index=True, return_inverse=True)
+            if one.size == i.size:
+                one = None
+        if one is None:
+            root, conv = _secant(f_t, x0, f_t(x0, i), x0 * (1.0 + 1e-4), i)
+        else:       # one solve per vessel and isochore (its first row's start), handed to its other rows
+            root, conv = _secant(f_t, x0[one], f_t(x0[one], i[one]), x0[one] * (1.0 + 1e-4), i[one])
+            root, conv = root[back.ravel()], conv[back.ravel()]
 
         def isochore_over_rating(rows_: np.ndarray):
             """T -> generalized isochore pressure minus the rating, for the rows rows_ (NaN out of range)."""
@@ -924,9 +958,13 @@ def _reference_limits(rows: Rows, fluid: ReferenceFluid, pure: bool, out: dict, 
         out["mass_rho"][live[inside]] = r[inside]
 
 
-def _columns(rows: Rows, limits: bool = True) -> dict:
+def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessels: np.ndarray | None = None) -> dict:
     """Every model, the phase boundary and the limits for rows of one pure permanent gas, as arrays
-    (`limits` False: the models alone, for the states of tolerance corners, see :func:`_corner_peaks`).
+    (`limits` False: the models alone, for the states of tolerance corners, see :func:`_corner_peaks`;
+    `shared_fills`: rows repeat fills, each solved once, see :func:`_generalized_columns`, and each distinct
+    fill density meets the dome once; `vessels`: each row's vessel, where a vessel has several rows (its
+    scenarios), which then share the solve of the one limit that does not depend on the scenario, see
+    :func:`_generalized_limits`).
 
     A row filled by mass (rows with ``rho_mass`` [kg/m3], finite for such a row; its ``p_fill`` is NaN) starts from
     that density: its fill pressure on each model is that model's pressure at the fill temperature, and it has no
@@ -970,7 +1008,7 @@ def _columns(rows: Rows, limits: bool = True) -> dict:
 
     # --- where the isochore meets the dome (pure fluids; the pseudo-pure air has no phase analysis)
     if pure and limits:
-        _dome_columns(fluid, rho_molar, out, fallback)
+        _dome_columns(fluid, rho_molar, out, fallback, shared=shared_fills)
 
     # --- ideal
     out["rho_ideal"] = rho_ideal = np.where(by_mass, out["rho_molar"], p_fill / (R * t_fill))
@@ -978,7 +1016,8 @@ def _columns(rows: Rows, limits: bool = True) -> dict:
 
     # --- generalized, as arrays
     gen = _generalized_columns(gas, p_fill, t_fill, t_peak,
-                               None if not by_mass.any() else np.where(by_mass, out["rho_molar"], np.nan))
+                               None if not by_mass.any() else np.where(by_mass, out["rho_molar"], np.nan),
+                               shared_fills=shared_fills)
     out.update({k: v for k, v in gen.items() if not k.startswith("_")})
     lk_ok, q_srk = gen["lk_ok"], gen["q_srk"]
     # the vectorised limits assume constant critical constants (not the quantum correction)
@@ -1000,7 +1039,7 @@ def _columns(rows: Rows, limits: bool = True) -> dict:
     p_lo = atm * 1.01
     p_hi = np.maximum(target, p_fill) * np.maximum(1.0, t_fill / t_peak) * 1.05
 
-    t_lk, max_p_lk = _generalized_limits(rows, out, gen, fallback, t_lo, t_hi, p_lo, p_hi)
+    t_lk, max_p_lk = _generalized_limits(rows, out, gen, fallback, t_lo, t_hi, p_lo, p_hi, vessels)
 
     _reference_limits(rows, fluid, pure, out, fallback, t_lk, max_p_lk, t_lo, t_hi, p_lo, p_hi)
     # a fill by mass: no fill-pressure limit, and no temperature limit where the fill itself is over the rating
@@ -1221,7 +1260,7 @@ def _corner_peaks(gas: Mixture, states: list[tuple[float, float, float]]) -> dic
     state is out of scope or liquid-full: a state where that cannot be shown falls back."""
     if not states:
         return {}
-    cols = _columns(_state_rows(gas, states), limits=False)
+    cols = _columns(_state_rows(gas, states), limits=False, shared_fills=True)
     fallback = cols["fallback"].tolist()
     return {s: None if fallback[k] else _state_peaks(cols, k) for k, s in enumerate(states)}
 
@@ -1236,17 +1275,24 @@ def _state_peaks(cols: dict, k: int) -> dict:
     return peaks
 
 
-def _drive(gas: Mixture, steps: dict, known: dict | None = None) -> dict:
+def _drive(gas: Mixture, steps: dict, known: dict | None = None, ahead: list | None = None) -> dict:
     """Run the tolerance generators (screen.tolerance_steps) of many vessels in lockstep: each round's states
     of every vessel are rows of one table; `known` gives the peaks of states already evaluated (each vessel's
-    nominal state: a row of its nominal table, the same numbers). Returns {key: tolerance block or None (per
-    row)}."""
+    nominal state: a row of its nominal table, the same numbers); `ahead`: states evaluated in the first round
+    beside the sensitivities' states (each vessel's expected corner, screen.expected_corner, which the second
+    round asks for whichever corners it needs: the second round then costs no table of its own where every
+    vessel's expected corner is confirmed). Returns {key: tolerance block or None (per row)}."""
     done: dict = {}
-    known = known or {}
+    peaks = dict(known or {})
     asked = {key: next(gen) for key, gen in steps.items()}
+    first = True
     while asked:
-        todo = [s for s in dict.fromkeys(s for states in asked.values() for s in states) if s not in known]
-        peaks = {**known, **_corner_peaks(gas, todo)}
+        todo = [s for s in dict.fromkeys(s for states in asked.values() for s in states) if s not in peaks]
+        if first and ahead:
+            asked_now = set(todo)
+            todo += [s for s in dict.fromkeys(ahead) if s not in peaks and s not in asked_now]
+        first = False
+        peaks.update(_corner_peaks(gas, todo))
         nxt = {}
         for key, states in asked.items():
             got = [peaks[s] for s in states]
@@ -1282,11 +1328,11 @@ def _screen_expanded(cases: list[Case]) -> list[Result | None]:
         (cases[i].fill_pressure_pa, cases[i].fill_temperature_k, math.nan, exposures[i][j].t_exposure,
          cases[i].rated_pressure_pa, cases[i].site.atmospheric_pressure_pa, cases[i].required_margin)
         for i, j in keys))))
-    cols = _columns(nominal)
+    cols = _columns(nominal, shared_fills=True, vessels=np.array([i for i, _j in keys], dtype=float))
     fallback = cols["fallback"].tolist()
     bad = {i for (i, _j), f in zip(keys, fallback) if f}
     row_of = {key: k for k, key in enumerate(keys)}
-    steps, known = {}, {}
+    steps, known, ahead = {}, {}, []
     for k, (i, j) in enumerate(keys):
         c = cases[i]
         if i in bad or c.tolerance is None:
@@ -1295,7 +1341,8 @@ def _screen_expanded(cases: list[Case]) -> list[Result | None]:
         steps[(i, j)] = _screen.tolerance_steps(c, float(c.fill_temperature_k), float(cols["t_peak"][k]), names)
         # the nominal state (the steps' first): the peaks of this row of the nominal table
         known[(c.fill_pressure_pa, float(c.fill_temperature_k), float(cols["t_peak"][k]))] = _state_peaks(cols, k)
-    tolerances = _drive(gas, steps, known)
+        ahead.append(_screen.expected_corner(c, float(c.fill_temperature_k), float(cols["t_peak"][k])))
+    tolerances = _drive(gas, steps, known, ahead)
     bad |= {i for (i, _j), t in tolerances.items() if t is None}
     for i, rows in exposures.items():
         if i in bad:
@@ -1306,18 +1353,20 @@ def _screen_expanded(cases: list[Case]) -> list[Result | None]:
             k = row_of[(i, j)]
             args = (cols, k, gas.molar_mass, c.rated_pressure_pa, c.relief_set_pressure_pa,
                     c.site.atmospheric_pressure_pa, c.required_margin, c.max_filling_ratio_kg_m3, sc.name)
-            r = _row_dict(c, cols, k, _verdict(*args), sun=ex)
-            for key in ("scenarios", "governing_scenario", "exposure"):
-                r.pop(key, None)
             tol = tolerances.get((i, j))
-            if tol is not None:
+            if tol is None:
+                r = _row_dict(c, cols, k, _verdict(*args), sun=ex)
+            else:
                 findings = tol.pop("_findings")
                 if tol["bounding_peak_pressure_pa"] is None or findings["out_of_scope"] or findings["liquid_full"]:
                     break               # not on this path (see _corner_peaks): per row
+                # decided once, on the bounding peak; the row's nominal figures from the nominal peak (the
+                # tolerance block's, the governing peak of this very row: the same number)
                 v = _verdict(*args, bounding=tol["bounding_peak_pressure_pa"])
-                r.update(verdict=v["verdict"], reasons=v["reasons"], peak_pressure_pa=v["peak_pressure_pa"],
-                         margin_fraction=v["margin_fraction"], relief_margin_fraction=v["relief_margin_fraction"],
-                         tolerance=tol)
+                r = _row_dict(c, cols, k, {**v, "peak_pressure_pa": tol["nominal_peak_pressure_pa"]}, sun=ex)
+                r.update(peak_pressure_pa=v["peak_pressure_pa"], tolerance=tol)
+            for key in ("scenarios", "governing_scenario", "exposure"):
+                r.pop(key, None)
             per.append((sc.name, r, ex.balance))
         else:
             out[i] = Result.from_json(_screen.fold_scenarios(per)[1])
@@ -1880,16 +1929,24 @@ def _stopped(out: dict, fallback: np.ndarray) -> np.ndarray:
     return fallback if unreachable is None else fallback | unreachable
 
 
-def _dome_columns(fluid: ReferenceFluid, rho_molar: np.ndarray, out: dict, fallback: np.ndarray) -> None:
+def _dome_columns(fluid: ReferenceFluid, rho_molar: np.ndarray, out: dict, fallback: np.ndarray,
+                  shared: bool = False) -> None:
     """Where each row's isochore meets the saturation dome (isochore.isochore_phases): the dry-out temperature
     below the critical density, the liquid-full temperature above it with the slope just past it, and the
-    vapour pressure where the isochore leaves the dome. Rows the table solve is not sure of fall back."""
+    vapour pressure where the isochore leaves the dome. Rows the table solve is not sure of fall back.
+    `shared`: rows repeat densities (a vessel's scenarios): each distinct density solved once (each row's solve
+    is its own, so the numbers are those of the full call)."""
     rc = fluid.critical_molar_density
     for side, key in (("vapour", "dry"), ("liquid", "liquid_full")):
         d_rows = np.flatnonzero(~fallback & np.isfinite(rho_molar) & ((rho_molar <= rc) if side == "vapour"
                                                                       else (rho_molar > rc)))
-        if d_rows.size:
+        if d_rows.size > 1 and shared:
+            u, back = np.unique(rho_molar[d_rows], return_inverse=True)
+            t_u, ok_u = _dome(fluid, side).boundary(u)
+            t_b, ok_b = t_u[back.ravel()], ok_u[back.ravel()]
+        elif d_rows.size:
             t_b, ok_b = _dome(fluid, side).boundary(rho_molar[d_rows])
+        if d_rows.size:
             out[key][d_rows] = t_b
             fallback[d_rows[~ok_b]] = True
     lf = np.flatnonzero(~_stopped(out, fallback) & np.isfinite(out["liquid_full"]))

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import functools
 import math
+import threading
 from dataclasses import dataclass, field, replace
 from typing import Callable
 
@@ -92,11 +93,15 @@ class Model:
     temperature_at: Callable[[float], float | None] | None = None
     #: the model's pressure [Pa] at the fill density and temperature (the isochore at the fill), where computed
     fill_pa: float | None = None
+    #: T array [K] -> p array [Pa] of `isochore` at every point, NaN where it raises: for drawing a curve, where
+    #: no isochore_array is given (the limits' scans stop at their first sign change instead)
+    isochore_points: Callable[[np.ndarray], np.ndarray] | None = None
 
     def isochore_values(self, temperatures: np.ndarray) -> list[float | None]:
         """The isochore at many temperatures; None where the model does not apply."""
-        if self.isochore_array is not None:
-            return [float(v) if math.isfinite(v) else None for v in self.isochore_array(temperatures)]
+        whole = self.isochore_array if self.isochore_array is not None else self.isochore_points
+        if whole is not None:
+            return [float(v) if math.isfinite(v) else None for v in whole(temperatures)]
         values: list[float | None] = []
         for t in temperatures:
             try:
@@ -128,7 +133,14 @@ def _ideal(case: Case, rho_mass: float | None, t_fill: float, t_peak: float, gas
     peak = float(ideal_gas_pressure(rho, t_peak))
     return Model("ideal", True, "ideal-gas law; shown for comparison, it ignores real-gas behaviour",
                  peak, rho, isochore=lambda t: float(ideal_gas_pressure(rho, t)),
-                 fill_to_peak=lambda p: p * t_peak / t_fill, extra={"equation": note_eq})
+                 fill_to_peak=lambda p: p * t_peak / t_fill, extra={"equation": note_eq},
+                 isochore_array=_ideal_isochore_array(rho))
+
+
+def _ideal_isochore_array(rho: float) -> Callable[[np.ndarray], np.ndarray]:
+    """T array [K] -> the ideal gas's pressure [Pa] at molar density rho [mol/m3]: the same product per element
+    as the scalar isochore (rho R T), on a whole grid at once."""
+    return lambda ts: ideal_gas_pressure(rho, ts)
 
 
 def _gas_arrays(gas: Mixture) -> dict:
@@ -207,16 +219,9 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
         return float(_lk_pressure(arrays, r, t_peak)[0].pressure[0])
 
     def constants_at(ts: np.ndarray):
-        if arrays["fixed"] is not None:
-            return tuple(np.full(np.shape(ts), c) for c in arrays["fixed"])
-        return pseudocritical(arrays["fractions"], arrays["tc"], arrays["pc"], arrays["omega"],
-                              arrays["molar_mass"], arrays["quantum"], arrays["tc_classical"],
-                              arrays["pc_classical"], ts)
+        return _constants_at(arrays, ts)
 
-    def isochore_array(ts: np.ndarray) -> np.ndarray:
-        ts = np.asarray(ts, dtype=float)
-        state = lee_kesler_pressure(np.full_like(ts, rho), ts, *constants_at(ts))
-        return np.where(state.valid, state.pressure, np.nan)
+    isochore_array = _lk_isochore_array(arrays, rho)
 
     def fill_to_peak_array(ps: np.ndarray) -> np.ndarray:
         ps = np.asarray(ps, dtype=float)
@@ -273,6 +278,35 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
                  fill_for_peak, temperature_at, float(fill.pressure[0]))
 
 
+def _constants_at(arrays: dict, ts: np.ndarray):
+    """The Lee–Kesler constants (pseudocritical temperature [K], pressure [Pa], acentric factor [-]) of a gas
+    (_gas_arrays) at each temperature of ts [K]."""
+    if arrays["fixed"] is not None:
+        return tuple(np.full(np.shape(ts), c) for c in arrays["fixed"])
+    return pseudocritical(arrays["fractions"], arrays["tc"], arrays["pc"], arrays["omega"],
+                          arrays["molar_mass"], arrays["quantum"], arrays["tc_classical"],
+                          arrays["pc_classical"], ts)
+
+
+def _lk_isochore_array(arrays: dict, rho: float) -> Callable[[np.ndarray], np.ndarray]:
+    """T array [K] -> the Lee–Kesler pressure [Pa] at molar density rho [mol/m3] (NaN where the model does not
+    apply), for a gas given by _gas_arrays."""
+    def isochore_array(ts: np.ndarray) -> np.ndarray:
+        ts = np.asarray(ts, dtype=float)
+        state = lee_kesler_pressure(np.full_like(ts, rho), ts, *_constants_at(arrays, ts))
+        return np.where(state.valid, state.pressure, np.nan)
+    return isochore_array
+
+
+def _srk_isochore_array(k: tuple, rho: float) -> Callable[[np.ndarray], np.ndarray]:
+    """T array [K] -> the quantum-gas SRK pressure [Pa] at molar density rho [mol/m3] (NaN where the model does
+    not apply); k = (classical critical temperature [K], pressure [Pa], molar mass [kg/mol])."""
+    def isochore_array(ts: np.ndarray) -> np.ndarray:
+        st = srk_quantum_pressure(rho, np.asarray(ts, dtype=float), *k)
+        return np.where(st.valid, st.pressure, np.nan)
+    return isochore_array
+
+
 #: The generalized model's note and method for pure H2, He, Ne above the Lee–Kesler tables.
 QUANTUM_SRK_NOTE = ("Soave–Redlich–Kwong with the Gunn–Chueh–Prausnitz quantum-gas constants (the Lee–Kesler "
                     "tables end at reduced temperature 4)")
@@ -309,9 +343,7 @@ def _quantum_generalized(case: Case, rho_mass: float | None, t_fill: float, t_pe
         "method": QUANTUM_SRK_METHOD,
     }
 
-    def isochore_array(ts: np.ndarray) -> np.ndarray:
-        st = srk_quantum_pressure(rho, np.asarray(ts, dtype=float), *k)
-        return np.where(st.valid, st.pressure, np.nan)
+    isochore_array = _srk_isochore_array(k, rho)
 
     def isochore(t: float) -> float:
         return float(srk_quantum_pressure(rho, t, *k).require().pressure[()])
@@ -605,7 +637,22 @@ def _reference(case: Case, fs: FillState, t_fill: float, t_peak: float) -> Model
         return fluid.pressure(fluid.density(p, t_fill), t_peak)
 
     return Model("reference", True, "multiparameter Helmholtz-energy equation of state (CoolProp)",
-                 peak, rho, lambda t: fluid.pressure(rho, t), fill_to_peak, extra)
+                 peak, rho, lambda t: fluid.pressure(rho, t), fill_to_peak, extra,
+                 isochore_points=_reference_isochore_points(fluid, rho))
+
+
+def _reference_isochore_points(fluid: ReferenceFluid, rho: float) -> Callable[[np.ndarray], np.ndarray] | None:
+    """T array [K] -> fluid.pressure at molar density rho [mol/m3] at every temperature (NaN where the equation
+    refuses a state, as the scalar isochore raises there), the fluid's lock held once for the whole grid; None
+    for a mixture, whose state costs tens of milliseconds: its points one at a time, so that the lock is not
+    held for a whole curve."""
+    if fluid.is_mixture:
+        return None
+
+    def isochore_points(ts: np.ndarray) -> np.ndarray:
+        p, valid, _reasons = fluid.pressures(np.full(np.shape(ts), rho), ts)
+        return np.where(valid, p, np.nan)
+    return isochore_points
 
 
 # ----------------------------------------------------------------------------- limits
@@ -888,11 +935,30 @@ def decide(*, peak: float | None, rated: float, relief: float | None, atm: float
 
 # ----------------------------------------------------------------------------- the screening
 
+#: The phase diagram of each pure fluid, computed once per process (it depends on the fluid alone); the lock
+#: guards the dictionary (threads of the web page), not the computation, which any thread may repeat.
+_PHASE_DIAGRAMS: dict[str, dict] = {}
+_PHASE_DIAGRAMS_LOCK = threading.Lock()
+
+
 def _phase_diagram(fs: FillState) -> dict | None:
-    """Vapour-pressure curve from the triple point to the critical point (pure fluids with a dome)."""
+    """Vapour-pressure curve from the triple point to the critical point (pure fluids with a dome): a fresh copy
+    of the fluid's one diagram (:func:`_fluid_phase_diagram`)."""
     fluid = fs.fluid
     if fluid is None or not _is_pure(fluid):
         return None
+    with _PHASE_DIAGRAMS_LOCK:
+        pd = _PHASE_DIAGRAMS.get(fluid.label)
+    if pd is None:
+        pd = _fluid_phase_diagram(fluid)
+        with _PHASE_DIAGRAMS_LOCK:
+            _PHASE_DIAGRAMS.setdefault(fluid.label, pd)
+    sat = pd["saturation"]
+    return {**pd, "saturation": {"temperature_k": list(sat["temperature_k"]), "pressure_pa": list(sat["pressure_pa"])}}
+
+
+def _fluid_phase_diagram(fluid: ReferenceFluid) -> dict:
+    """The vapour-pressure curve of a pure fluid on 50 temperatures from its triple to its critical point."""
     tt, tc = fluid.triple_temperature, fluid.critical_temperature
     temps, pressures = [], []
     for t in np.linspace(tt, tc, 50)[:-1]:
@@ -1182,8 +1248,14 @@ def _bounding_model(case: Case, tolerance: dict | None) -> Model | None:
     if not tolerance or tolerance.get("bounding_peak_pressure_pa") is None:
         return None
     corner = tolerance["bounding_corner"]
-    _, _, _, models, _ = _corner_state(case, corner["fill_pressure_pa"], corner["fill_temperature_k"],
-                                       corner["worst_case_temperature_k"])
+    return _corner_model(case, (corner["fill_pressure_pa"], corner["fill_temperature_k"],
+                                corner["worst_case_temperature_k"]))
+
+
+def _corner_model(case: Case, corner: tuple[float | None, float, float]) -> Model | None:
+    """The governing model at a tolerance corner (fill pressure [Pa] or None, fill temperature [K], worst-case
+    temperature [K]), evaluated as _corner_state evaluates it."""
+    _, _, _, models, _ = _corner_state(case, *corner)
     return _governing(models)
 
 
@@ -1197,6 +1269,31 @@ def _tolerance(case: Case, t_fill: float, t_peak: float, models: list[Model]) ->
             states = steps.send(map(lambda s: _corner_peak(case, *s), states))
     except StopIteration as done:
         return done.value
+
+
+def _corner_signs(case: Case) -> tuple[tuple[int, ...], tuple[int, ...], tuple[int, ...]]:
+    """The signs each input takes at the corners of its tolerance band (0 alone where it has none)."""
+    tol, p0 = case.tolerance, case.fill_pressure_pa
+    # a mass fill has no fill-pressure reading; its fill temperature does not change the contents
+    return ((1, -1) if (p0 is not None and tol.fill_pressure_pa > 0) else (0,),
+            (1, -1) if (p0 is not None and tol.fill_temperature_k > 0) else (0,),
+            (1, -1) if tol.gas_temperature_k > 0 else (0,))
+
+
+def _corner_at(case: Case, t_fill: float, t_peak: float, a: int, b: int, c: int) -> tuple:
+    """The state (fill pressure [Pa] or None, fill temperature [K], worst-case temperature [K]) of the corner with
+    signs a, b, c of the fill pressure, fill temperature and worst-case temperature bands."""
+    tol, p0 = case.tolerance, case.fill_pressure_pa
+    return (p0 + a * tol.fill_pressure_pa if p0 is not None else None, t_fill + b * tol.fill_temperature_k,
+            t_peak + c * tol.gas_temperature_k)
+
+
+def expected_corner(case: Case, t_fill: float, t_peak: float) -> tuple:
+    """The state of the expected bounding corner (fill pressure high, fill temperature low, worst case high),
+    the one corner :func:`tolerance_steps` asks for where every sensitivity has its expected sign: a caller that
+    evaluates many states at once may evaluate it beside the sensitivities' states."""
+    p_signs, tf_signs, tg_signs = _corner_signs(case)
+    return _corner_at(case, t_fill, t_peak, max(p_signs), min(tf_signs), max(tg_signs))
 
 
 def tolerance_steps(case: Case, t_fill: float, t_peak: float, names: list[str]):
@@ -1240,16 +1337,12 @@ def tolerance_steps(case: Case, t_fill: float, t_peak: float, names: list[str]):
         sens["dp_peak_dt_fill"] = deriv(5, h_t)
         expected = expected and all((v or 0.0) > 0.0 for v in sens["dp_peak_dp_fill"].values()) \
             and all((v or 0.0) < 0.0 for v in sens["dp_peak_dt_fill"].values())
-    # a mass fill has no fill-pressure reading; its fill temperature does not change the contents
-    p_signs = (1, -1) if (p0 is not None and dp > 0) else (0,)
-    tf_signs = (1, -1) if (p0 is not None and dtf > 0) else (0,)
-    tg_signs = (1, -1) if dtg > 0 else (0,)
+    p_signs, tf_signs, tg_signs = _corner_signs(case)
     if expected:
         corners = [(max(p_signs), min(tf_signs), max(tg_signs))]
     else:
         corners = [(a, b, c) for a in p_signs for b in tf_signs for c in tg_signs]
-    peaks = yield [(p0 + a * dp if p0 is not None else None, t_fill + b * dtf, t_peak + c * dtg)
-                   for a, b, c in corners]
+    peaks = yield [_corner_at(case, t_fill, t_peak, a, b, c) for a, b, c in corners]
     best, best_corner = None, None
     findings: dict = {"out_of_scope": None, "liquid_full": []}
     for (a, b, c), peak in zip(corners, peaks):
@@ -1434,11 +1527,52 @@ def plot_data(case: Case, r: Result) -> tuple[dict | None, dict | None]:
     model at the bounding tolerance corner where there is one, and the fluid's vapour-pressure curve. The
     one place plot data are computed, for a single screening and for a batch's detail rows alike."""
     t_fill, t_peak = r.fill.temperature_k, r.worst_case_temperature_k
-    layout = r.to_json()
+    tol = r.tolerance
     with case_budget():
-        fs, models, _ = _evaluate(case, t_fill, t_peak, [])
-        return (_curves(models, t_fill, t_peak, layout["limits"], _bounding_model(case, layout["tolerance"])),
+        fs, models = _result_isochores(case, r)
+        if models is None:
+            fs, models, _ = _evaluate(case, t_fill, t_peak, [])
+        bounding = None
+        if tol is not None and tol.bounding_peak_pressure_pa is not None:
+            c = tol.bounding_corner
+            bounding = _corner_model(case, (c.fill_pressure_pa, c.fill_temperature_k, c.worst_case_temperature_k))
+        return (_curves(models, t_fill, t_peak, {"max_gas_temperature_k": r.limits.max_gas_temperature_k}, bounding),
                 _phase_diagram(fs))
+
+
+def _result_isochores(case: Case, r: Result) -> tuple[FillState, list[Model] | None]:
+    """The models' isochores of a finished result of a pure fluid (not a mixture, a blend or a dissolved gas),
+    from the fill densities the result holds (each model's `fill_molar_density_mol_m3`, the density its
+    isochore runs at), built by the same functions as the models' own (_ideal_isochore_array,
+    _lk_isochore_array, _srk_isochore_array, _reference_isochore_points): the fill state and the models are not
+    evaluated a second time for the plot. (FillState with the fluid, None) where plot_data must evaluate them."""
+    fluid, _err = _reference_fluid(case.gas)
+    fs = FillState(fluid=fluid)
+    if not case.gas.is_pure or case.gas.kind == "dissolved" or fluid is None or fluid.is_mixture:
+        return fs, None
+    models: list[Model] = []
+    for name, m in r.models.items():
+        rho = m.fill_molar_density_mol_m3
+        if not m.applicable or rho is None:
+            models.append(not_applicable(name, m.note))
+            continue
+        if name == "ideal":
+            whole = _ideal_isochore_array(rho)
+        elif name == "generalized":
+            if m.method == QUANTUM_SRK_METHOD:
+                g = case.gas.components[0]
+                whole = _srk_isochore_array((g.classical_critical_temperature, g.classical_critical_pressure,
+                                             g.molar_mass), rho)
+            else:
+                whole = _lk_isochore_array(_gas_arrays(case.gas), rho)
+        else:
+            whole = _reference_isochore_points(fluid, rho)
+
+        def isochore(t: float, whole=whole) -> float:
+            return float(whole(np.array([t]))[0])
+        models.append(Model(name, True, m.note, m.peak_pressure_pa, rho, isochore=isochore, isochore_array=whole,
+                            extra={"fluid": m.fluid} if m.fluid else {}))
+    return fs, models
 
 
 def fold_scenarios(per: list[tuple[str, dict, dict | None]]) -> tuple[int, dict]:
