@@ -1814,6 +1814,145 @@ def _no_fill_reaches(fluid: ReferenceFluid, t_fill: np.ndarray, t_peak: np.ndarr
     return out
 
 
+#: Relative width of the bracket within which :func:`_newton_in_bracket` settles a root (the root solves of
+#: screen._root stop at about 1e-13; the golden corpus holds limits to 2e-9).
+_NEWTON_BRACKET_RTOL = 4e-12
+_NEWTON_MAX = 40
+
+
+def _newton_in_bracket(g: Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, np.ndarray]], a: np.ndarray,
+                       fa: np.ndarray, b: np.ndarray, fb: np.ndarray, x0: np.ndarray,
+                       idx: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Per row, the root of an increasing f inside [a, b] (f(a) < 0 < f(b)), where g(x, idx) gives f and its
+    derivative at once: Newton steps from x0 kept inside the bracket (a bisection where a step leaves it or
+    the derivative is not positive), each evaluation narrowing the bracket, until the bracket is narrower than
+    _NEWTON_BRACKET_RTOL of the root. The root is therefore shown, not estimated: a sign change of f within
+    that width; once a Newton step has converged the next point is set just past it, on the other side, to
+    close the bracket. Returns (root, settled); settled False where f could not be evaluated on the way or
+    the bracket did not close (those rows are solved another way)."""
+    m = a.size
+    root = np.full(m, np.nan)
+    settled = np.zeros(m, dtype=bool)
+    a, fa, b, fb = (np.array(v, dtype=float) for v in (a, fa, b, fb))
+    x = np.array(x0, dtype=float)
+    bad0 = ~((x > a) & (x < b))
+    x[bad0] = 0.5 * (a[bad0] + b[bad0])
+    cand = x.copy()                 # the point the row's root is taken to be once its bracket closes
+    live = np.arange(m)
+    for _ in range(_NEWTON_MAX):
+        if live.size == 0:
+            break
+        xl = x[live]
+        f, df = g(xl, idx[live])
+        bad = ~np.isfinite(f)
+        zero = ~bad & (f == 0.0)
+        root[live[zero]] = xl[zero]
+        settled[live[zero]] = True
+        neg, pos = ~bad & (f < 0.0), ~bad & (f > 0.0)
+        al, bl = np.where(neg, xl, a[live]), np.where(pos, xl, b[live])
+        a[live], b[live] = al, bl
+        closed = ~bad & ~zero & (bl - al <= _NEWTON_BRACKET_RTOL * np.abs(xl))
+        c = np.clip(cand[live], al, bl)
+        root[live[closed]] = c[closed]
+        settled[live[closed]] = True
+        go = ~bad & ~zero & ~closed
+        with np.errstate(divide="ignore", invalid="ignore"):
+            step = -f / df
+        xn = xl + step
+        usable = go & np.isfinite(xn) & (df > 0.0)
+        # a converged step (possibly below the resolution of x): the next point just past it, on the other side
+        # of the root, so that the bracket closes around it
+        tiny = usable & (np.abs(step) <= 0.25 * _NEWTON_BRACKET_RTOL * np.abs(xl))
+        push = xl + (np.abs(step) + 0.25 * _NEWTON_BRACKET_RTOL * np.abs(xl)) * np.where(f < 0.0, 1.0, -1.0)
+        newton = usable & ~tiny & (xn > al) & (xn < bl)
+        nxt = np.where(tiny, np.clip(push, al, bl), np.where(newton, xn, 0.5 * (al + bl)))
+        cand[live] = np.where(tiny | newton, np.clip(xn, al, bl), nxt)
+        x[live] = nxt
+        live = live[go]
+    return root, settled
+
+
+def _temperature_limit(fluid: ReferenceFluid, f_t: Callable[[np.ndarray, np.ndarray], np.ndarray],
+                       rho: np.ndarray, rated: np.ndarray, rows: np.ndarray, lo: np.ndarray, mid: np.ndarray,
+                       f_mid: np.ndarray, hi: np.ndarray, boundary: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """What :func:`_increasing_root` (stepwise) finds for the gas temperature at which the reference isochore
+    f_t(T, rows) = p(rho, T) / rated - 1 of rows `rows` reaches the rating, in fewer evaluations: where f_t can be
+    evaluated at both ends of the bracket that _increasing_root solves in ([mid, min(hi, t_max)] or [lo, mid]),
+    the root inside it is the one it finds (f_t increasing), and it is solved here by Newton steps on the
+    isochore's own slope (:func:`_newton_in_bracket`), starting from the saturation temperature at the rating where
+    that lies on the dome part of the isochore (below `boundary`, where the isochore leaves the dome: there the
+    isochore's pressure is the vapour pressure), else from the regula-falsi point of the bracket. An end past the
+    equation's range is scanned upwards from mid as there (:func:`_scan_up`); rows this does not settle go through
+    _increasing_root itself. Returns (root, ok) as it does."""
+    m = rows.size
+    top = fluid.t_max
+    root = np.full(m, np.nan)
+    ok = np.ones(m, dtype=bool)
+    done = np.zeros(m, dtype=bool)
+    end = np.minimum(hi, top)
+    at_mid = f_mid == 0.0
+    root[at_mid] = mid[at_mid]
+    done[at_mid] = True
+    up = np.flatnonzero(f_mid < 0.0)
+    down = np.flatnonzero(f_mid > 0.0)
+    a, fa, b, fb = (np.full(m, np.nan) for _ in range(4))
+    solve = np.zeros(m, dtype=bool)
+    if up.size:
+        f_end = f_t(end[up], rows[up])
+        nan = ~np.isfinite(f_end)
+        if nan.any():      # an end outside the equation's range: screen._root scans (as _increasing_root does)
+            s = up[nan]
+            root[s] = _scan_up(f_t, rows[s], lo[s], mid[s], f_mid[s], hi[s])
+            done[s] = True
+        below = ~nan & (f_end < 0.0)
+        done[up[below]] = True                      # no root
+        zero = ~nan & (f_end == 0.0)
+        root[up[zero]] = end[up[zero]]
+        done[up[zero]] = True
+        g = ~nan & (f_end > 0.0)
+        k = up[g]
+        a[k], fa[k], b[k], fb[k] = mid[k], f_mid[k], end[k], f_end[g]
+        solve[k] = True
+    if down.size:
+        f_lo = f_t(lo[down], rows[down])
+        fin = np.isfinite(f_lo)
+        none = fin & (f_lo > 0.0)
+        done[down[none]] = True
+        zero = fin & (f_lo == 0.0)
+        root[down[zero]] = lo[down[zero]]
+        done[down[zero]] = True
+        g = fin & (f_lo < 0.0)
+        k = down[g]
+        a[k], fa[k], b[k], fb[k] = lo[k], f_lo[g], mid[k], f_mid[k]
+        solve[k] = True
+    s = np.flatnonzero(solve)
+    if s.size:
+        with np.errstate(invalid="ignore", divide="ignore"):
+            x0 = (a[s] * fb[s] - b[s] * fa[s]) / (fb[s] - fa[s])
+        t_sat = fluid.saturation_temperatures(rated[rows[s]])
+        on_dome = np.isfinite(t_sat) & (t_sat > a[s]) & (t_sat < b[s]) & (t_sat < boundary[s])
+        x0[on_dome] = t_sat[on_dome]
+
+        def g(t, ix):
+            r = rows[s[ix]]
+            p, d = fluid.isochore_slopes(rho[r], t)
+            return p / rated[r] - 1.0, d / rated[r]
+
+        r, settled = _newton_in_bracket(g, a[s], fa[s], b[s], fb[s], x0, np.arange(s.size))
+        root[s[settled]] = r[settled]
+        done[s[settled]] = True
+    # beyond `top` screen._root scans: a root in a scan interval that reaches past `top` is not found
+    past = np.flatnonzero(done & np.isfinite(root) & (hi > top))
+    if past.size:
+        _a, bb = _linspace_bracket(lo[past], hi[past], root[past])
+        root[past[bb > top]] = np.nan
+    rest = np.flatnonzero(~done)
+    if rest.size:
+        root[rest], ok[rest] = _increasing_root(f_t, rows[rest], lo[rest], mid[rest], f_mid[rest], hi[rest], top,
+                                                stepwise=True)
+    return root, ok
+
+
 def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray,
                       mass_limit: bool = True) -> None:
     """Limits of liquefied-gas rows on the reference model (screen._limits, screen._mass_limit): the highest
@@ -1846,8 +1985,8 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
 
     # the reference isochore can be evaluated from the lower temperature up to the equation's range (its
     # temperature range, its highest pressure): an end past it is scanned upwards from the worst case
-    root, ok = _increasing_root(f_t, live, t_lo[live], t_peak[live], peak[live] / rated[live] - 1.0, t_hi[live],
-                                fluid.t_max, stepwise=True)
+    root, ok = _temperature_limit(fluid, f_t, rho, rated, live, t_lo[live], t_peak[live], peak[live] / rated[live] - 1.0,
+                                  t_hi[live], np.fmin(out["dry"], out["liquid_full"])[live])
     fallback[live[~ok]] = True
     max_t = out["max_t"]
     max_t[live[ok]] = root[ok]

@@ -711,6 +711,25 @@ class ReferenceFluid:
                                 value=(T, p, rho))
         return float(p), float(rho)
 
+    @_holding_the_state
+    def saturation_temperatures(self, p: np.ndarray) -> np.ndarray:
+        """Saturation temperatures [K] of a pure fluid at pressures p [Pa] (CoolProp's pressure-quality flash);
+        NaN where there is none (at or above the critical pressure, below the triple point, a failed flash).
+        Unchecked: a starting point for solves that check their answer, never an answer itself."""
+        self._require_pure("saturation")
+        p_f = np.asarray(p, dtype=float).tolist()
+        out = np.full(len(p_f), np.nan)
+        a, pc = self._state, self.critical_pressure
+        for i, pi in enumerate(p_f):
+            if not (0.0 < pi < pc):
+                continue
+            try:
+                a.update(CoolProp.PQ_INPUTS, pi, 0.0)
+                out[i] = a.T()
+            except ValueError:
+                pass
+        return out
+
     def vapour_pressure(self, T: float) -> float:
         """Vapour pressure [Pa] at T [K], triple point ≤ T < Tc."""
         return self._saturation(T, 0.0)[0]
@@ -747,6 +766,28 @@ class ReferenceFluid:
                 reasons[i] = exc.reason
         return out.reshape(shape), valid.reshape(shape), np.array(reasons, dtype=str).reshape(shape)
 
+
+    @_holding_the_state
+    def isochore_slopes(self, rho_molar: np.ndarray, T: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """:meth:`pressure` and :meth:`dp_dt_at_constant_density` of many rows of a pure fluid from one evaluation
+        each (1-D arrays of equal length): the pressure [Pa] and its slope along the isochore [Pa/K] (in the dome
+        dp_sat/dT). Rows that cannot be evaluated carry NaN in both."""
+        rho_f, t_f = np.asarray(rho_molar, dtype=float).tolist(), np.asarray(T, dtype=float).tolist()
+        n = len(rho_f)
+        p_out = np.full(n, np.nan)
+        d_out = np.full(n, np.nan)
+        evaluate, a = self._evaluate, self._state
+        for i in range(n):
+            try:
+                p, phase = evaluate(rho_f[i], t_f[i])
+                d = (a.first_saturation_deriv(CoolProp.iP, CoolProp.iT) if phase == "two-phase"
+                     else a.first_partial_deriv(CoolProp.iP, CoolProp.iT, CoolProp.iDmolar))
+            except NotApplicable:
+                continue
+            except ValueError:
+                continue
+            p_out[i], d_out[i] = p, d
+        return p_out, d_out
 
     @_holding_the_state
     def states(self, rho_molar: np.ndarray, T: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
