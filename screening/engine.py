@@ -68,6 +68,7 @@ from screening.physics.eos.generalized import (
     lee_kesler_density,
     lee_kesler_density_valid,
     lee_kesler_pressure,
+    lee_kesler_vapour_pressure,
     pseudocritical,
     srk_quantum_density,
     srk_quantum_pressure,
@@ -1614,14 +1615,21 @@ def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.n
     name = gas.name
     p_fill, atm = rows.p_fill.tolist(), rows.atm.tolist()
     tf = t_fill.tolist()
+    # the vapour pressure at the fill, worked out once for the bands and the fill density
+    vap = out["vapour_pressure"]
+    psat = [None if math.isnan(x) else x for x in vap.tolist()]
     for k in ip.tolist():
-        band[k] = _screen.band_reason(p_fill[k], tf[k], fluid, name, atm[k])
+        band[k] = _screen.band_reason(p_fill[k], tf[k], fluid, name, atm[k], psat=psat[k])
     refused = np.array([b is not None for b in band], dtype=bool)
     out["band"], out["refused"] = band, refused
     rho_molar = np.full(n, np.nan)
+    # the pressure and phase of the fill density's own check (its state at the fill temperature)
+    p_check = np.full(n, np.nan)
+    phase_check = np.full(n, None, dtype=object)
     live = np.flatnonzero(by_pressure & ~refused)
     if live.size:
-        rho_molar[live], ok, _ = _loop(fluid.density, rows.p_fill[live], t_fill[live])
+        rho_molar[live], p_check[live], phase_check[live], ok = fluid.densities(rows.p_fill[live], t_fill[live],
+                                                                                vap[live])
         fallback[live[~ok]] = True
     mass = np.flatnonzero(~by_pressure)
     fill_mass = np.full(n, np.nan)
@@ -1634,12 +1642,21 @@ def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.n
     # every model takes the fill's mass density divided by the molar mass again (screen._molar): so here
     out["rho_molar"] = rho = fill_mass / molar_mass
     live = np.flatnonzero(~refused & ~fallback)
+    # where that gives the fill density back bit for bit, the fill state is the one the density's check evaluated
+    checked = np.zeros(n, dtype=bool)
+    checked[live] = by_pressure[live] & (rho[live] == rho_molar[live])
     phases = {}
     unreachable = np.zeros(n, dtype=bool)
     out["unreachable_reason"] = np.full(n, None, dtype=object)
     why = np.full(n, None, dtype=object)
     for key, t in (("fill", t_fill), ("peak", t_peak)):
-        p, ph, ok = fluid.states(rho[live], t[live])
+        if key == "fill":
+            p, ph, ok = p_check[live], phase_check[live], np.ones(live.size, dtype=bool)
+            e = np.flatnonzero(~checked[live])
+            if e.size:
+                p[e], ph[e], ok[e] = fluid.states(rho[live[e]], t[live[e]])
+        else:
+            p, ph, ok = fluid.states(rho[live], t[live])
         phases[key] = np.full(n, None, dtype=object)
         phases[key][live] = ph
         out["p_fill_ref" if key == "fill" else "peak_ref"][live] = p
@@ -1670,62 +1687,90 @@ def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.n
 
 def _liquefied_gas_models(rows: Rows, out: dict, fallback: np.ndarray) -> None:
     """The ideal and generalized models of the liquefied-gas rows that are a gas at fill and at the worst case
-    (screen._ideal, screen._generalized), and the generalized model's limits as screen._limits finds them: the
-    gas temperature at which its isochore reaches the rating, the fill pressure whose peak is the target (each
-    as screen._root finds it, :func:`_monotone_root`)."""
+    (screen._ideal, screen._generalized). The generalized model's limits are solved by :func:`_lk_limits`, once
+    the reference model's are known, only where they can be the lower ones."""
     n = rows.t_fill.size
     gas_ok = out["gas_ok"]
     by_pressure = out["by_pressure"]
-    t_fill, t_peak, rated, atm = rows.t_fill, out["t_peak"], rows.rated, rows.atm
+    t_fill, t_peak = rows.t_fill, out["t_peak"]
     rho = out["rho_molar"]
     out["rho_ideal"] = rho_ideal = np.where(by_pressure, rows.p_fill / (R * t_fill), rho)
     out["peak_ideal"] = rho_ideal * R * t_peak
     g = np.flatnonzero(gas_ok)
     gen = {k: np.full(n, np.nan) for k in ("tcf", "pcf", "tcp", "pcp", "omp", "lk_rho_fill", "lk_z_fill",
                                            "lk_tr_fill", "lk_pr_fill", "lk_p_fill", "lk_peak", "lk_z_peak",
-                                           "lk_tr_peak", "lk_pr_peak", "_omf")}
+                                           "lk_tr_peak", "lk_pr_peak")}
     gen.update(lk_ok=np.zeros(n, dtype=bool), q_srk=np.zeros(n, dtype=bool), lk_reason=np.full(n, "", dtype=object))
     if g.size:
         part = _generalized_columns(rows.gas, rows.p_fill[g], t_fill[g], t_peak[g],
                                     np.where(by_pressure[g], np.nan, rho[g]))
         for k in gen:
             gen[k][g] = part[k]
-    out.update({k: v for k, v in gen.items() if not k.startswith("_")})
-    out["max_t_lk"] = max_t_lk = np.full(n, np.nan)
-    out["max_p_lk"] = max_p_lk = np.full(n, np.nan)
-    out["target"] = target = atm + (rated - atm) * (1.0 - rows.margin_req)
-    lk = np.flatnonzero(gen["lk_ok"] & ~fallback)
-    if lk.size == 0:
-        return
-    tcf, pcf, omf, tcp, pcp, omp, rho_lk = (gen[k] for k in ("tcf", "pcf", "_omf", "tcp", "pcp", "omp", "lk_rho_fill"))
+    out.update(gen)
+    out["max_t_lk"] = np.full(n, np.nan)
+    out["max_p_lk"] = np.full(n, np.nan)
 
-    def isochore(t, ix):
-        r = lk[ix]
+
+def _lk_limits(rows: Rows, out: dict, lk: np.ndarray, t_ref: np.ndarray, pk: np.ndarray,
+               p_ref: np.ndarray) -> None:
+    """The generalized model's limits of liquefied-gas rows, as screen._limits finds them (each as screen._root
+    finds it, :func:`_upward_root`): the gas temperature at which its isochore reaches the rating (rows `lk`), the
+    fill pressure whose peak is the target (rows `pk`, filled by pressure), into ``max_t_lk`` and ``max_p_lk``.
+
+    Only the lower of each limit and the reference model's (t_ref, p_ref of the same rows: NaN for none) is
+    given, so a row whose generalized function is below zero at the reference root needs no solve: both rise
+    (the isochore with the temperature, the peak with the fill pressure), so any root of the generalized model
+    lies above the reference's and the lower one is the reference's (its entry stays NaN)."""
+    t_fill, t_peak, rated, atm, target = rows.t_fill, out["t_peak"], rows.rated, rows.atm, out["target"]
+    # a pure liquefied gas: the component's own constants, at fill as at the worst case
+    tcf, pcf, omf, tcp, pcp, omp, rho_lk = (out[k] for k in ("tcf", "pcf", "omp", "tcp", "pcp", "omp", "lk_rho_fill"))
+
+    def isochore(t, r):
         st = lee_kesler_pressure(rho_lk[r], t, tcp[r], pcp[r], omp[r])
         return np.where(st.valid, st.pressure - rated[r], np.nan)
 
-    t_lo, t_hi = np.minimum(t_fill, t_peak)[lk], (np.maximum(t_peak, t_fill) + 300.0)[lk]
-    # the isochore rises with temperature and the model holds from the worst case (a gas there) up to the top of
-    # its tables: the solve starts from the worst case (:func:`_upward_root`)
-    max_t_lk[lk] = _upward_root(isochore, t_lo, t_peak[lk], t_hi)
-    pk = lk[by_pressure[lk]]
-    if pk.size:
-        def fill(p, ix):
-            r = pk[ix]
-            s1 = lee_kesler_density(p, t_fill[r], tcf[r], pcf[r], omf[r])
-            s2 = lee_kesler_pressure(np.where(s1.valid, s1.molar_density, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
-            return np.where(s1.valid & s2.valid, s2.pressure - target[r], np.nan)
+    def fill(p, r):
+        rho1, ok1 = lee_kesler_density_valid(p, t_fill[r], tcf[r], pcf[r], omf[r])
+        s2 = lee_kesler_pressure(np.where(ok1, rho1, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
+        return np.where(ok1 & s2.valid, s2.pressure - target[r], np.nan)
 
+    known = np.isfinite(t_ref)
+    if known.any():
+        below = isochore(t_ref[known], lk[known]) < 0.0
+        keep = np.ones(lk.size, dtype=bool)
+        keep[np.flatnonzero(known)[below]] = False
+        lk = lk[keep]
+    if lk.size:
+        t_lo, t_hi = np.minimum(t_fill, t_peak)[lk], (np.maximum(t_peak, t_fill) + 300.0)[lk]
+        # the isochore rises with temperature and the model holds from the worst case (a gas there) up to the top
+        # of its tables: the solve starts from the worst case (:func:`_upward_root`)
+        out["max_t_lk"][lk] = _upward_root(lambda t, ix: isochore(t, lk[ix]), t_lo, t_peak[lk], t_hi)
+    known = np.isfinite(p_ref)
+    if known.any():
+        below = fill(p_ref[known], pk[known]) < 0.0
+        keep = np.ones(pk.size, dtype=bool)
+        keep[np.flatnonzero(known)[below]] = False
+        pk = pk[keep]
+    if pk.size:
+        # below its critical temperature the model has no gas above its own vapour pressure at the fill
+        # temperature: where the lowest fill pressure of the bracket is already above it (with a margin for
+        # rounding), no fill pressure of the bracket can be evaluated and the solve finds none
+        tr = t_fill[pk] / tcf[pk]
+        sub = tr < 1.0
+        psat_r = np.full(pk.size, np.inf)
+        psat_r[sub] = lee_kesler_vapour_pressure(tr[sub], omf[pk][sub])
+        pk = pk[~((atm[pk] * 1.01) / pcf[pk] > psat_r * (1.0 + 1e-9))]
+    if pk.size:
         p_lo = atm[pk] * 1.01
         p_hi = np.maximum(target[pk], rows.p_fill[pk]) * np.maximum(1.0, t_fill[pk] / t_peak[pk]) * 1.05
         # the peak rises with the fill pressure, and the model holds from the row's own fill up to where the gas
         # condenses at the fill temperature: the solve starts from that fill (:func:`_upward_root`)
-        root = _upward_root(fill, p_lo, np.clip(rows.p_fill[pk], p_lo, p_hi), p_hi)
+        root = _upward_root(lambda p, ix: fill(p, pk[ix]), p_lo, np.clip(rows.p_fill[pk], p_lo, p_hi), p_hi)
         # screen._limits keeps a fill-pressure root only where its peak is the target (not a jump of the model)
         at = np.flatnonzero(np.isfinite(root))
-        hit = np.abs(fill(root[at], at)) <= 1e-6 * target[pk[at]]
+        hit = np.abs(fill(root[at], pk[at])) <= 1e-6 * target[pk[at]]
         root[at[~hit]] = np.nan
-        max_p_lk[pk] = root
+        out["max_p_lk"][pk] = root
 
 
 def _stopped(out: dict, fallback: np.ndarray) -> np.ndarray:
@@ -1990,6 +2035,12 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
     fallback[live[~ok]] = True
     max_t = out["max_t"]
     max_t[live[ok]] = root[ok]
+    # the generalized model's temperature limit where it can be the lower one (none is given where the fill is
+    # over the rating)
+    none = np.array([], dtype=np.int64)
+    lk = np.flatnonzero(out["lk_ok"] & ~fallback & ~fill_over)
+    if lk.size:
+        _lk_limits(rows, out, lk, max_t[lk], none, none.astype(float))
     max_t[:] = np.fmin(max_t, out["max_t_lk"])
     max_t[fill_over] = np.nan
 
@@ -2048,6 +2099,9 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
                 r, okb = _known_scan_root(lambda x, ix, b=b: f_p(x, b[ix]), p_star[b], p_lo[b], p_hi[b], 40)
                 p_max[b] = r
                 fallback[pr[b[~okb]]] = True
+        lkp = np.flatnonzero(out["lk_ok"][pr] & ~fallback[pr])
+        if lkp.size:
+            _lk_limits(rows, out, none, none.astype(float), pr[lkp], p_max[lkp])
         out["max_p"][pr] = np.fmin(p_max, out["max_p_lk"][pr])
 
     # fill density whose peak is the target (screen._mass_limit), then the liquid-full cap

@@ -1,8 +1,8 @@
 """The shortcuts of the liquefied-gas columns give what the full computations give, checked against CoolProp."""
 
+import CoolProp.CoolProp as CP
 import numpy as np
 import pytest
-import CoolProp.CoolProp as CP
 
 from screening import engine
 from screening.physics.eos.reference import reference_fluid
@@ -105,3 +105,41 @@ def test_newton_in_bracket_closes_a_bracket_around_the_root():
     root, settled = engine._newton_in_bracket(g, a, fa, b, fb, np.array([0.5, 3.9]), np.arange(2))
     assert settled.all()
     assert np.allclose(root, 3.0, rtol=engine._NEWTON_BRACKET_RTOL, atol=0.0)
+
+
+@pytest.mark.parametrize("cp", ["n-Butane", "Chlorine", "CO2"])
+def test_fill_densities_with_their_check_state_equal_density_and_the_state_evaluated_again(cp):
+    fluid = reference_fluid((cp,), (1.0,))
+    rnd = np.random.default_rng(7)
+    t = rnd.uniform(fluid.triple_temperature + 30.0, fluid.critical_temperature + 20.0, 200)
+    ps = np.array([fluid.vapour_pressure(x) if x < fluid.critical_temperature else np.nan for x in t])
+    scale = np.where(np.isfinite(ps), ps, fluid.critical_pressure)
+    p = scale * np.where(rnd.random(200) < 0.5, rnd.uniform(0.2, 0.9, 200), rnd.uniform(1.1, 3.0, 200))
+    t[:5] = fluid.critical_temperature - np.array([5.0, 10.0, 20.0, 30.0, 40.0])
+    ps[:5] = [fluid.vapour_pressure(x) for x in t[:5]]
+    p[:5] = ps[:5]                                                 # at the vapour pressure: refused
+    known = np.where(rnd.random(200) < 0.5, ps, np.nan)            # the vapour pressure given for half the rows
+    rho, p_back, phase, valid = fluid.densities(p, t, known)
+    assert valid.sum() > 150 and not valid[:5].any()
+    for k in range(200):
+        try:
+            expected = fluid.density(p[k], t[k])
+        except ValueError:
+            assert not valid[k]
+            continue
+        assert valid[k] and rho[k] == expected
+        assert (p_back[k], phase[k]) == (fluid.pressure(rho[k], t[k]), fluid.phase(rho[k], t[k]))
+        # CoolProp's reference equation through PropsSI: the density at the fill pressure and temperature
+        assert rho[k] == pytest.approx(CP.PropsSI("Dmolar", "P", p[k], "T", t[k], cp), rel=1e-9)
+
+
+def test_saturation_band_with_the_vapour_pressure_given_equals_the_band_worked_out():
+    from screening.screen import band_reason
+
+    fluid = reference_fluid(("Propane",), (1.0,))
+    for t in (250.0, 280.0, 300.0, 330.0):
+        # CoolProp's reference equation through PropsSI: the vapour pressure at the fill temperature
+        ps = CP.PropsSI("P", "T", t, "Q", 0, "Propane")
+        for f in (0.5, 0.97, 1.0, 1.02, 1.5):
+            given = band_reason(ps * f, t, fluid, "propane", 101325.0, psat=fluid.vapour_pressure(t))
+            assert given == band_reason(ps * f, t, fluid, "propane", 101325.0)

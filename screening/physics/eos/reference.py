@@ -512,37 +512,66 @@ class ReferenceFluid:
         vapour pressure itself (within a relative 1e-9).
         """
         p, T = float(p), float(T)
+        if not self.is_mixture:
+            return self._pure_density(p, T)[0]
+        self._check_temperature(T)
+        self._check_pressure(p)
+        return self._mixture_density(p, T, self._evaluate)
+
+    def _pure_density(self, p: float, T: float, ps: float | None = None) -> tuple[float, float, str]:
+        """:meth:`density` of a pure fluid, with the pressure and phase of its check at (rho, T) (what
+        :meth:`_evaluate` gives there); `ps`: the vapour pressure at T where the caller has it (what
+        :meth:`vapour_pressure` gives). The caller holds the lock."""
         self._check_temperature(T)
         self._check_pressure(p)
         a = self._state
-        if not self.is_mixture:
-            imposed = None
-            if T < self.critical_temperature:
+        imposed = None
+        if T < self.critical_temperature:
+            if ps is None:
                 ps = self.vapour_pressure(T) if not self.is_pseudo_pure else None
-                if ps is not None:
-                    if abs(p - ps) <= SATURATION_BAND * ps:
-                        raise NotApplicable(MODEL, f"{self.label} at {T:.6g} K: p = {p:.6g} Pa is the vapour "
-                                            "pressure; the density is not defined by (p, T) there",
-                                            value=(p, T))
-                    imposed = CoolProp.iphase_liquid if p > ps else CoolProp.iphase_gas
+            if ps is not None:
+                if abs(p - ps) <= SATURATION_BAND * ps:
+                    raise NotApplicable(MODEL, f"{self.label} at {T:.6g} K: p = {p:.6g} Pa is the vapour "
+                                        "pressure; the density is not defined by (p, T) there",
+                                        value=(p, T))
+                imposed = CoolProp.iphase_liquid if p > ps else CoolProp.iphase_gas
+        try:
+            if imposed is not None:
+                a.specify_phase(imposed)
+            a.update(CoolProp.PT_INPUTS, p, T)
+            rho = a.rhomolar()
+        except ValueError as exc:
+            raise NotApplicable(MODEL, f"CoolProp pressure-temperature flash failed for {self.label} at "
+                                f"p={p:.6g} Pa, T={T:.6g} K: {exc}", value=(p, T)) from None
+        finally:
+            a.unspecify_phase()
+        self._check_density(rho)
+        # independent check of the root through the checked density-temperature path
+        p_back, phase = self._evaluate(rho, T)
+        if abs(p_back - p) > 1e-6 * p:
+            raise NotApplicable(MODEL, f"{self.label}: PT flash at p={p:.6g} Pa, T={T:.6g} K gave "
+                                f"{rho:.6g} mol/m3 which maps back to {p_back:.6g} Pa", value=(p, T))
+        return float(rho), p_back, phase
+
+    @_holding_the_state
+    def densities(self, p: np.ndarray, T: np.ndarray, ps: np.ndarray) -> tuple[np.ndarray, ...]:
+        """:meth:`density` of many rows of a pure fluid (1-D arrays of equal length), with the pressure [Pa] and
+        phase that its check evaluates at (rho, T); `ps`: the vapour pressure [Pa] at T where the caller has it
+        (NaN: not known, evaluated here as :meth:`density` does). Returns (densities [mol/m3], pressures, phases
+        (an object array), valid); invalid rows carry NaN, NaN, None and False."""
+        p_f, t_f, s_f = (np.asarray(v, dtype=float).tolist() for v in (p, T, ps))
+        n = len(p_f)
+        rho, p_back = np.full(n, np.nan), np.full(n, np.nan)
+        phases = np.full(n, None, dtype=object)
+        valid = np.zeros(n, dtype=bool)
+        pure = self._pure_density
+        for i in range(n):
             try:
-                if imposed is not None:
-                    a.specify_phase(imposed)
-                a.update(CoolProp.PT_INPUTS, p, T)
-                rho = a.rhomolar()
-            except ValueError as exc:
-                raise NotApplicable(MODEL, f"CoolProp pressure-temperature flash failed for {self.label} at "
-                                    f"p={p:.6g} Pa, T={T:.6g} K: {exc}", value=(p, T)) from None
-            finally:
-                a.unspecify_phase()
-            self._check_density(rho)
-            # independent check of the root through the checked density-temperature path
-            p_back, _ = self._evaluate(rho, T)
-            if abs(p_back - p) > 1e-6 * p:
-                raise NotApplicable(MODEL, f"{self.label}: PT flash at p={p:.6g} Pa, T={T:.6g} K gave "
-                                    f"{rho:.6g} mol/m3 which maps back to {p_back:.6g} Pa", value=(p, T))
-            return float(rho)
-        return self._mixture_density(p, T, self._evaluate)
+                rho[i], p_back[i], phases[i] = pure(p_f[i], t_f[i], s_f[i] if math.isfinite(s_f[i]) else None)
+                valid[i] = True
+            except NotApplicable:
+                pass
+        return rho, p_back, phases, valid
 
     def _mixture_density(self, p: float, T: float, evaluate) -> float:
         """A mixture's density [mol/m3] at (p [Pa], T [K]); ``evaluate(rho, T) -> (p, phase)`` re-checks the
