@@ -143,3 +143,81 @@ def test_saturation_band_with_the_vapour_pressure_given_equals_the_band_worked_o
         for f in (0.5, 0.97, 1.0, 1.02, 1.5):
             given = band_reason(ps * f, t, fluid, "propane", 101325.0, psat=fluid.vapour_pressure(t))
             assert given == band_reason(ps * f, t, fluid, "propane", 101325.0)
+
+
+def _vapour_and_liquid_inventory(path, gas, cp, rows, seed):
+    """An invented register of `gas` filled by pressure: half the rows vapour (0.2 to 0.85 of the vapour pressure
+    at the fill temperature), half liquid (1.3 to 3 times it), rated 2.5 times the vapour pressure at 25 °C."""
+    rnd = np.random.default_rng(seed)
+    # CoolProp's reference equation through PropsSI: vapour pressures for the invented fills and rating
+    rated = 2.5 * (CP.PropsSI("P", "T", 298.15, "Q", 0, cp) - 101325.0) / 1e5
+    lines = ["id,gas,water_capacity [L],rated_pressure [bar(g)],fill_pressure [bar(a)],fill_temperature [degC],"
+             "ambient_max [degC]"]
+    for i in range(rows):
+        t = rnd.uniform(-20.0, 25.0)
+        ps = CP.PropsSI("P", "T", t + 273.15, "Q", 0, cp)
+        p = ps * (rnd.uniform(0.2, 0.85) if i % 2 else rnd.uniform(1.3, 3.0))
+        lines.append(f"R{i},{gas},40,{rated:.2f},{p / 1e5:.4f},{t:.2f},{rnd.uniform(-40.0, 85.0):.2f}")
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+
+
+@pytest.mark.parametrize("gas,cp", [("n-butane", "n-Butane"), ("propane", "Propane"), ("chlorine", "Chlorine")])
+def test_generalized_limits_solved_only_where_lower_give_the_limits_of_solving_them_all(tmp_path, monkeypatch, gas,
+                                                                                      cp):
+    from screening.inputs.columns import read_plain
+    from screening.inputs.inventory import read_inventory
+
+    monkeypatch.setenv("SCREENING_WORKERS", "1")
+    path = tmp_path / "register.csv"
+    _vapour_and_liquid_inventory(path, gas, cp, 300, seed=len(gas))
+    plain = read_plain(read_inventory(path), None)
+    solve_all = engine._lk_limits
+    shown = []
+
+    def counted(rows, out, lk, t_ref, pk, p_ref):
+        shown.append(int(np.isfinite(t_ref).sum() + np.isfinite(p_ref).sum()))
+        return solve_all(rows, out, lk, t_ref, pk, p_ref)
+
+    monkeypatch.setattr(engine, "_lk_limits", counted)
+    fast = engine.PlainScreening(plain).summaries
+    assert sum(shown) > 0           # some rows had a reference root to start from
+
+    def every_row(rows, out, lk, t_ref, pk, p_ref):
+        # the full computation: no reference root known, every generalized limit solved
+        return solve_all(rows, out, lk, np.full(lk.size, np.nan), pk, np.full(pk.size, np.nan))
+
+    monkeypatch.setattr(engine, "_lk_limits", every_row)
+    full = engine.PlainScreening(plain).summaries
+    for j, (a, b) in enumerate(zip(fast, full)):
+        assert a["verdict"] == b["verdict"] and a["reasons"] == b["reasons"]
+        for key in ("max_gas_temperature_k", "max_fill_pressure_pa"):
+            x, y = a["limits"][key], b["limits"][key]
+            assert (x is None) == (y is None)
+            if x is not None:
+                assert x == pytest.approx(y, rel=2e-9)
+        t_max = a["limits"]["max_gas_temperature_k"]
+        if t_max is not None and t_max < CP.PropsSI("Tmax", cp):
+            # CoolProp's reference equation through PropsSI: the fill's density, and the pressure on its isochore
+            # at the temperature limit (the lower of the two models' limits) is at most the rating
+            rho = CP.PropsSI("Dmolar", "P", plain.fill_pressure_pa[j], "T", plain.fill_temperature_k[j], cp)
+            assert CP.PropsSI("P", "Dmolar", rho, "T", t_max, cp) <= a["rated_pressure_pa"] * (1.0 + 1e-6)
+
+
+def test_no_generalized_gas_above_its_vapour_pressure_so_no_fill_pressure_limit_is_skipped_wrongly():
+    from screening.physics.eos.generalized import lee_kesler_density_valid, lee_kesler_vapour_pressure
+    from screening.physics.gases import library
+
+    g = next(x for x in library().values() if x.name == "n-butane")
+    tc, pc, om = g.critical_temperature, g.critical_pressure, g.acentric_factor
+    t = np.linspace(250.0, 275.0, 26)
+    psat = lee_kesler_vapour_pressure(t / tc, om) * pc
+    for tf, ps in zip(t, psat):
+        # every fill pressure from just above the model's own vapour pressure up: no gas state, as the skip assumes
+        p = np.linspace(ps * (1.0 + 1e-8), 40.0 * ps, 60)
+        _rho, ok = lee_kesler_density_valid(p, tf, tc, pc, om)
+        assert not ok.any()
+        # and below it a gas (the rule is not vacuous)
+        assert lee_kesler_density_valid(np.array([0.9 * ps]), tf, tc, pc, om)[1].all()
+    # the model's vapour pressure is near the reference equation's (CoolProp through PropsSI), so that rows of a
+    # register filled below 1 atm are the ones the skip concerns
+    assert psat[0] == pytest.approx(CP.PropsSI("P", "T", 250.0, "Q", 0, "n-Butane"), rel=0.05)
