@@ -194,6 +194,24 @@ class _Dome:
         self.rho_tt = self.rho[0]
         self.rho_hi = self.rho[-1]
 
+    def _cubic_inverse(self, k: np.ndarray, r: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """A starting point for the root in table interval k of density r: the temperature [K] of the cubic
+        through the four table points around the interval (T as a function of the density, Lagrange), and the
+        slope of this side's function (the saturated density less r, taken rising) there [mol/m3/K]."""
+        j0 = np.clip(k - 1, 0, self.t.size - 4)[:, None] + np.arange(4)
+        xs, ys = self.rho[j0], self.t[j0]
+        t = np.zeros(r.size)
+        dt = np.zeros(r.size)
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            for i in range(4):
+                others = [j for j in range(4) if j != i]
+                den = np.prod([xs[:, i] - xs[:, j] for j in others], axis=0)
+                d0, d1, d2 = (r - xs[:, j] for j in others)
+                t += ys[:, i] * d0 * d1 * d2 / den
+                dt += ys[:, i] * (d1 * d2 + d0 * d2 + d0 * d1) / den
+            slope = (1.0 if self.side == "vapour" else -1.0) / dt
+        return t, slope
+
     def boundary(self, rho: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """Temperature [K] where the isochore meets this side of the dome (NaN: never) and whether the
         solve settled (False also where the single-case analysis refuses the density)."""
@@ -232,6 +250,21 @@ class _Dome:
             exact0, exact1 = f0 == 0.0, f1 == 0.0
             root = np.where(exact0, t0, np.where(exact1, t1, np.nan))
             go = ~exact0 & ~exact1 & (f0 * f1 < 0.0)
+            g = np.flatnonzero(go)
+            if g.size:
+                # Newton steps inside the table interval (:func:`_newton_in_bracket`, which shows the root by a
+                # closed bracket) from the table's cubic through the four points around it, inverted, with that
+                # cubic's slope; where they do not settle, the bracketed solve of the whole interval
+                x0, slope = self._cubic_inverse(k[g], r[g])
+                sign = 1.0 if rising else -1.0
+
+                def fg(t, ix):
+                    return sign * f(t, solve[g[ix]]), slope[ix]
+
+                sg = sign * f0[g], sign * f1[g]
+                got, settled = _newton_in_bracket(fg, t0[g], sg[0], t1[g], sg[1], x0, np.arange(g.size))
+                root[g[settled]] = got[settled]
+                go[g[settled]] = False
             root[go] = _illinois(f, t0[go], t1[go], f0[go], f1[go], solve[go])
             out[solve] = root
             ok[solve] = np.isfinite(root)
@@ -1823,11 +1856,14 @@ def _liquid_full_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback:
     tf, tp, rho = rows.t_fill.tolist(), out["t_peak"].tolist(), out["rho_molar"].tolist()
     lfd = out["lf_density"]
     for k in np.flatnonzero(~fallback & ~out["refused"] & ~out["unreachable"]).tolist():
-        applies[k] = _screen._liquid_full_applies(fs, rho[k], tf[k], tp[k], gas)
         try:
             lfd[k] = _screen.liquid_full_density(fluid, tf[k], tp[k], gas)
         except NotApplicable:
             lfd[k] = np.nan
+            applies[k] = True       # screen._liquid_full_applies: the liquid side not shown to be away from it
+            continue
+        # screen._liquid_full_applies on the density just worked out
+        applies[k] = _screen._liquid_full_applies(fs, rho[k], tf[k], tp[k], gas, lfd[k])
     out["liquid_full_applies"] = applies
 
 

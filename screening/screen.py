@@ -979,13 +979,14 @@ def _has_liquid_full_analysis(fluid: ReferenceFluid | None) -> bool:
 
 
 def _liquid_full_applies(fs: FillState, rho: float | None, t_fill: float, t_peak: float,
-                         gas: Mixture | None = None) -> bool:
+                         gas: Mixture | None = None, rho_liquid_full: float | None = None) -> bool:
     """Whether the vessel with fill molar density rho [mol/m3] is liquid-full (or a dense, liquid-like fluid) at
-    the worst-case temperature."""
+    the worst-case temperature; `rho_liquid_full`: :func:`liquid_full_density` where the caller has it."""
     if rho is None or not _has_liquid_full_analysis(fs.fluid):
         return False
     try:
-        return rho >= liquid_full_density(fs.fluid, t_fill, t_peak, gas)
+        return rho >= (liquid_full_density(fs.fluid, t_fill, t_peak, gas) if rho_liquid_full is None
+                       else rho_liquid_full)
     except NotApplicable:
         return True  # the liquid side cannot be evaluated: not shown to be away from it
 

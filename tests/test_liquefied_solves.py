@@ -221,3 +221,30 @@ def test_no_generalized_gas_above_its_vapour_pressure_so_no_fill_pressure_limit_
     # the model's vapour pressure is near the reference equation's (CoolProp through PropsSI), so that rows of a
     # register filled below 1 atm are the ones the skip concerns
     assert psat[0] == pytest.approx(CP.PropsSI("P", "T", 250.0, "Q", 0, "n-Butane"), rel=0.05)
+
+
+@pytest.mark.parametrize("cp", ["CO2", "Propane", "Ammonia", "R134a"])
+def test_dome_boundary_by_newton_steps_from_the_table_equals_the_bracketed_solve(cp, monkeypatch):
+    fluid = reference_fluid((cp,), (1.0,))
+    rc = fluid.critical_molar_density
+    rnd = np.random.default_rng(3)
+    vapour = engine._dome(fluid, "vapour")
+    liquid = engine._dome(fluid, "liquid")
+    rho_v = rnd.uniform(vapour.rho_tt, rc, 200)
+    rho_l = rnd.uniform(rc, liquid.rho_tt, 200)
+    fast = [vapour.boundary(rho_v), liquid.boundary(rho_l)]
+
+    def unsettled(g, a, fa, b, fb, x0, idx):
+        return np.full(a.size, np.nan), np.zeros(a.size, dtype=bool)
+
+    # the full computation: the bracketed solve of the table interval (Illinois) for every row
+    monkeypatch.setattr(engine, "_newton_in_bracket", unsettled)
+    full = [vapour.boundary(rho_v), liquid.boundary(rho_l)]
+    for (t_fast, ok_fast), (t_full, ok_full) in zip(fast, full):
+        assert np.array_equal(ok_fast, ok_full) and ok_fast.all()
+        assert np.allclose(t_fast, t_full, rtol=1e-11, atol=0.0)
+    # CoolProp's reference equation through PropsSI: the saturated densities at the boundary temperatures
+    for (t, _ok), rho, q in ((fast[0], rho_v, 1), (fast[1], rho_l, 0)):
+        for k in range(0, 200, 10):
+            if t[k] < fluid.critical_temperature - 1e-3:
+                assert CP.PropsSI("Dmolar", "T", t[k], "Q", q, cp) == pytest.approx(rho[k], rel=1e-9)
