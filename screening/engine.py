@@ -70,6 +70,7 @@ from screening.physics.eos.generalized import (
     lee_kesler_density,
     lee_kesler_density_valid,
     lee_kesler_pressure,
+    lee_kesler_vapour_pressure,
     pseudocritical,
     srk_quantum_density,
     srk_quantum_pressure,
@@ -195,6 +196,24 @@ class _Dome:
         self.rho_tt = self.rho[0]
         self.rho_hi = self.rho[-1]
 
+    def _cubic_inverse(self, k: np.ndarray, r: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """A starting point for the root in table interval k of density r: the temperature [K] of the cubic
+        through the four table points around the interval (T as a function of the density, Lagrange), and the
+        slope of this side's function (the saturated density less r, taken rising) there [mol/m3/K]."""
+        j0 = np.clip(k - 1, 0, self.t.size - 4)[:, None] + np.arange(4)
+        xs, ys = self.rho[j0], self.t[j0]
+        t = np.zeros(r.size)
+        dt = np.zeros(r.size)
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            for i in range(4):
+                others = [j for j in range(4) if j != i]
+                den = np.prod([xs[:, i] - xs[:, j] for j in others], axis=0)
+                d0, d1, d2 = (r - xs[:, j] for j in others)
+                t += ys[:, i] * d0 * d1 * d2 / den
+                dt += ys[:, i] * (d1 * d2 + d0 * d2 + d0 * d1) / den
+            slope = (1.0 if self.side == "vapour" else -1.0) / dt
+        return t, slope
+
     def boundary(self, rho: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """Temperature [K] where the isochore meets this side of the dome (NaN: never) and whether the
         solve settled (False also where the single-case analysis refuses the density)."""
@@ -233,6 +252,21 @@ class _Dome:
             exact0, exact1 = f0 == 0.0, f1 == 0.0
             root = np.where(exact0, t0, np.where(exact1, t1, np.nan))
             go = ~exact0 & ~exact1 & (f0 * f1 < 0.0)
+            g = np.flatnonzero(go)
+            if g.size:
+                # Newton steps inside the table interval (:func:`_newton_in_bracket`, which shows the root by a
+                # closed bracket) from the table's cubic through the four points around it, inverted, with that
+                # cubic's slope; where they do not settle, the bracketed solve of the whole interval
+                x0, slope = self._cubic_inverse(k[g], r[g])
+                sign = 1.0 if rising else -1.0
+
+                def fg(t, ix):
+                    return sign * f(t, solve[g[ix]]), slope[ix]
+
+                sg = sign * f0[g], sign * f1[g]
+                got, settled = _newton_in_bracket(fg, t0[g], sg[0], t1[g], sg[1], x0, np.arange(g.size))
+                root[g[settled]] = got[settled]
+                go[g[settled]] = False
             root[go] = _illinois(f, t0[go], t1[go], f0[go], f1[go], solve[go])
             out[solve] = root
             ok[solve] = np.isfinite(root)
@@ -1808,14 +1842,21 @@ def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.n
     name = gas.name
     p_fill, atm = rows.p_fill.tolist(), rows.atm.tolist()
     tf = t_fill.tolist()
+    # the vapour pressure at the fill, worked out once for the bands and the fill density
+    vap = out["vapour_pressure"]
+    psat = [None if math.isnan(x) else x for x in vap.tolist()]
     for k in ip.tolist():
-        band[k] = _screen.band_reason(p_fill[k], tf[k], fluid, name, atm[k])
+        band[k] = _screen.band_reason(p_fill[k], tf[k], fluid, name, atm[k], psat=psat[k])
     refused = np.array([b is not None for b in band], dtype=bool)
     out["band"], out["refused"] = band, refused
     rho_molar = np.full(n, np.nan)
+    # the pressure and phase of the fill density's own check (its state at the fill temperature)
+    p_check = np.full(n, np.nan)
+    phase_check = np.full(n, None, dtype=object)
     live = np.flatnonzero(by_pressure & ~refused)
     if live.size:
-        rho_molar[live], ok, _ = _loop(fluid.density, rows.p_fill[live], t_fill[live])
+        rho_molar[live], p_check[live], phase_check[live], ok = fluid.densities(rows.p_fill[live], t_fill[live],
+                                                                                vap[live])
         fallback[live[~ok]] = True
     mass = np.flatnonzero(~by_pressure)
     fill_mass = np.full(n, np.nan)
@@ -1828,12 +1869,21 @@ def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.n
     # every model takes the fill's mass density divided by the molar mass again (screen._molar): so here
     out["rho_molar"] = rho = fill_mass / molar_mass
     live = np.flatnonzero(~refused & ~fallback)
+    # where that gives the fill density back bit for bit, the fill state is the one the density's check evaluated
+    checked = np.zeros(n, dtype=bool)
+    checked[live] = by_pressure[live] & (rho[live] == rho_molar[live])
     phases = {}
     unreachable = np.zeros(n, dtype=bool)
     out["unreachable_reason"] = np.full(n, None, dtype=object)
     why = np.full(n, None, dtype=object)
     for key, t in (("fill", t_fill), ("peak", t_peak)):
-        p, ph, ok = fluid.states(rho[live], t[live])
+        if key == "fill":
+            p, ph, ok = p_check[live], phase_check[live], np.ones(live.size, dtype=bool)
+            e = np.flatnonzero(~checked[live])
+            if e.size:
+                p[e], ph[e], ok[e] = fluid.states(rho[live[e]], t[live[e]])
+        else:
+            p, ph, ok = fluid.states(rho[live], t[live])
         phases[key] = np.full(n, None, dtype=object)
         phases[key][live] = ph
         out["p_fill_ref" if key == "fill" else "peak_ref"][live] = p
@@ -1864,62 +1914,90 @@ def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.n
 
 def _liquefied_gas_models(rows: Rows, out: dict, fallback: np.ndarray) -> None:
     """The ideal and generalized models of the liquefied-gas rows that are a gas at fill and at the worst case
-    (screen._ideal, screen._generalized), and the generalized model's limits as screen._limits finds them: the
-    gas temperature at which its isochore reaches the rating, the fill pressure whose peak is the target (each
-    as screen._root finds it, :func:`_monotone_root`)."""
+    (screen._ideal, screen._generalized). The generalized model's limits are solved by :func:`_lk_limits`, once
+    the reference model's are known, only where they can be the lower ones."""
     n = rows.t_fill.size
     gas_ok = out["gas_ok"]
     by_pressure = out["by_pressure"]
-    t_fill, t_peak, rated, atm = rows.t_fill, out["t_peak"], rows.rated, rows.atm
+    t_fill, t_peak = rows.t_fill, out["t_peak"]
     rho = out["rho_molar"]
     out["rho_ideal"] = rho_ideal = np.where(by_pressure, rows.p_fill / (R * t_fill), rho)
     out["peak_ideal"] = rho_ideal * R * t_peak
     g = np.flatnonzero(gas_ok)
     gen = {k: np.full(n, np.nan) for k in ("tcf", "pcf", "tcp", "pcp", "omp", "lk_rho_fill", "lk_z_fill",
                                            "lk_tr_fill", "lk_pr_fill", "lk_p_fill", "lk_peak", "lk_z_peak",
-                                           "lk_tr_peak", "lk_pr_peak", "_omf")}
+                                           "lk_tr_peak", "lk_pr_peak")}
     gen.update(lk_ok=np.zeros(n, dtype=bool), q_srk=np.zeros(n, dtype=bool), lk_reason=np.full(n, "", dtype=object))
     if g.size:
         part = _generalized_columns(rows.gas, rows.p_fill[g], t_fill[g], t_peak[g],
                                     np.where(by_pressure[g], np.nan, rho[g]))
         for k in gen:
             gen[k][g] = part[k]
-    out.update({k: v for k, v in gen.items() if not k.startswith("_")})
-    out["max_t_lk"] = max_t_lk = np.full(n, np.nan)
-    out["max_p_lk"] = max_p_lk = np.full(n, np.nan)
-    out["target"] = target = atm + (rated - atm) * (1.0 - rows.margin_req)
-    lk = np.flatnonzero(gen["lk_ok"] & ~fallback)
-    if lk.size == 0:
-        return
-    tcf, pcf, omf, tcp, pcp, omp, rho_lk = (gen[k] for k in ("tcf", "pcf", "_omf", "tcp", "pcp", "omp", "lk_rho_fill"))
+    out.update(gen)
+    out["max_t_lk"] = np.full(n, np.nan)
+    out["max_p_lk"] = np.full(n, np.nan)
 
-    def isochore(t, ix):
-        r = lk[ix]
+
+def _lk_limits(rows: Rows, out: dict, lk: np.ndarray, t_ref: np.ndarray, pk: np.ndarray,
+               p_ref: np.ndarray) -> None:
+    """The generalized model's limits of liquefied-gas rows, as screen._limits finds them (each as screen._root
+    finds it, :func:`_upward_root`): the gas temperature at which its isochore reaches the rating (rows `lk`), the
+    fill pressure whose peak is the target (rows `pk`, filled by pressure), into ``max_t_lk`` and ``max_p_lk``.
+
+    Only the lower of each limit and the reference model's (t_ref, p_ref of the same rows: NaN for none) is
+    given, so a row whose generalized function is below zero at the reference root needs no solve: both rise
+    (the isochore with the temperature, the peak with the fill pressure), so any root of the generalized model
+    lies above the reference's and the lower one is the reference's (its entry stays NaN)."""
+    t_fill, t_peak, rated, atm, target = rows.t_fill, out["t_peak"], rows.rated, rows.atm, out["target"]
+    # a pure liquefied gas: the component's own constants, at fill as at the worst case
+    tcf, pcf, omf, tcp, pcp, omp, rho_lk = (out[k] for k in ("tcf", "pcf", "omp", "tcp", "pcp", "omp", "lk_rho_fill"))
+
+    def isochore(t, r):
         st = lee_kesler_pressure(rho_lk[r], t, tcp[r], pcp[r], omp[r])
         return np.where(st.valid, st.pressure - rated[r], np.nan)
 
-    t_lo, t_hi = np.minimum(t_fill, t_peak)[lk], (np.maximum(t_peak, t_fill) + 300.0)[lk]
-    # the isochore rises with temperature and the model holds from the worst case (a gas there) up to the top of
-    # its tables: the solve starts from the worst case (:func:`_upward_root`)
-    max_t_lk[lk] = _upward_root(isochore, t_lo, t_peak[lk], t_hi)
-    pk = lk[by_pressure[lk]]
-    if pk.size:
-        def fill(p, ix):
-            r = pk[ix]
-            s1 = lee_kesler_density(p, t_fill[r], tcf[r], pcf[r], omf[r])
-            s2 = lee_kesler_pressure(np.where(s1.valid, s1.molar_density, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
-            return np.where(s1.valid & s2.valid, s2.pressure - target[r], np.nan)
+    def fill(p, r):
+        rho1, ok1 = lee_kesler_density_valid(p, t_fill[r], tcf[r], pcf[r], omf[r])
+        s2 = lee_kesler_pressure(np.where(ok1, rho1, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
+        return np.where(ok1 & s2.valid, s2.pressure - target[r], np.nan)
 
+    known = np.isfinite(t_ref)
+    if known.any():
+        below = isochore(t_ref[known], lk[known]) < 0.0
+        keep = np.ones(lk.size, dtype=bool)
+        keep[np.flatnonzero(known)[below]] = False
+        lk = lk[keep]
+    if lk.size:
+        t_lo, t_hi = np.minimum(t_fill, t_peak)[lk], (np.maximum(t_peak, t_fill) + 300.0)[lk]
+        # the isochore rises with temperature and the model holds from the worst case (a gas there) up to the top
+        # of its tables: the solve starts from the worst case (:func:`_upward_root`)
+        out["max_t_lk"][lk] = _upward_root(lambda t, ix: isochore(t, lk[ix]), t_lo, t_peak[lk], t_hi)
+    known = np.isfinite(p_ref)
+    if known.any():
+        below = fill(p_ref[known], pk[known]) < 0.0
+        keep = np.ones(pk.size, dtype=bool)
+        keep[np.flatnonzero(known)[below]] = False
+        pk = pk[keep]
+    if pk.size:
+        # below its critical temperature the model has no gas above its own vapour pressure at the fill
+        # temperature: where the lowest fill pressure of the bracket is already above it (with a margin for
+        # rounding), no fill pressure of the bracket can be evaluated and the solve finds none
+        tr = t_fill[pk] / tcf[pk]
+        sub = tr < 1.0
+        psat_r = np.full(pk.size, np.inf)
+        psat_r[sub] = lee_kesler_vapour_pressure(tr[sub], omf[pk][sub])
+        pk = pk[~((atm[pk] * 1.01) / pcf[pk] > psat_r * (1.0 + 1e-9))]
+    if pk.size:
         p_lo = atm[pk] * 1.01
         p_hi = np.maximum(target[pk], rows.p_fill[pk]) * np.maximum(1.0, t_fill[pk] / t_peak[pk]) * 1.05
         # the peak rises with the fill pressure, and the model holds from the row's own fill up to where the gas
         # condenses at the fill temperature: the solve starts from that fill (:func:`_upward_root`)
-        root = _upward_root(fill, p_lo, np.clip(rows.p_fill[pk], p_lo, p_hi), p_hi)
+        root = _upward_root(lambda p, ix: fill(p, pk[ix]), p_lo, np.clip(rows.p_fill[pk], p_lo, p_hi), p_hi)
         # screen._limits keeps a fill-pressure root only where its peak is the target (not a jump of the model)
         at = np.flatnonzero(np.isfinite(root))
-        hit = np.abs(fill(root[at], at)) <= 1e-6 * target[pk[at]]
+        hit = np.abs(fill(root[at], pk[at])) <= 1e-6 * target[pk[at]]
         root[at[~hit]] = np.nan
-        max_p_lk[pk] = root
+        out["max_p_lk"][pk] = root
 
 
 def _stopped(out: dict, fallback: np.ndarray) -> np.ndarray:
@@ -1980,11 +2058,14 @@ def _liquid_full_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback:
     tf, tp, rho = rows.t_fill.tolist(), out["t_peak"].tolist(), out["rho_molar"].tolist()
     lfd = out["lf_density"]
     for k in np.flatnonzero(~fallback & ~out["refused"] & ~out["unreachable"]).tolist():
-        applies[k] = _screen._liquid_full_applies(fs, rho[k], tf[k], tp[k], gas)
         try:
             lfd[k] = _screen.liquid_full_density(fluid, tf[k], tp[k], gas)
         except NotApplicable:
             lfd[k] = np.nan
+            applies[k] = True       # screen._liquid_full_applies: the liquid side not shown to be away from it
+            continue
+        # screen._liquid_full_applies on the density just worked out
+        applies[k] = _screen._liquid_full_applies(fs, rho[k], tf[k], tp[k], gas, lfd[k])
     out["liquid_full_applies"] = applies
 
 
@@ -2014,6 +2095,145 @@ def _no_fill_reaches(fluid: ReferenceFluid, t_fill: np.ndarray, t_peak: np.ndarr
             liquid_end = math.inf
         out[j] = vapour_end < -_JUMP_CLEAR * tg and liquid_end > _JUMP_CLEAR * tg
     return out
+
+
+#: Relative width of the bracket within which :func:`_newton_in_bracket` settles a root (the root solves of
+#: screen._root stop at about 1e-13; the golden corpus holds limits to 2e-9).
+_NEWTON_BRACKET_RTOL = 4e-12
+_NEWTON_MAX = 40
+
+
+def _newton_in_bracket(g: Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, np.ndarray]], a: np.ndarray,
+                       fa: np.ndarray, b: np.ndarray, fb: np.ndarray, x0: np.ndarray,
+                       idx: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Per row, the root of an increasing f inside [a, b] (f(a) < 0 < f(b)), where g(x, idx) gives f and its
+    derivative at once: Newton steps from x0 kept inside the bracket (a bisection where a step leaves it or
+    the derivative is not positive), each evaluation narrowing the bracket, until the bracket is narrower than
+    _NEWTON_BRACKET_RTOL of the root. The root is therefore shown, not estimated: a sign change of f within
+    that width; once a Newton step has converged the next point is set just past it, on the other side, to
+    close the bracket. Returns (root, settled); settled False where f could not be evaluated on the way or
+    the bracket did not close (those rows are solved another way)."""
+    m = a.size
+    root = np.full(m, np.nan)
+    settled = np.zeros(m, dtype=bool)
+    a, fa, b, fb = (np.array(v, dtype=float) for v in (a, fa, b, fb))
+    x = np.array(x0, dtype=float)
+    bad0 = ~((x > a) & (x < b))
+    x[bad0] = 0.5 * (a[bad0] + b[bad0])
+    cand = x.copy()                 # the point the row's root is taken to be once its bracket closes
+    live = np.arange(m)
+    for _ in range(_NEWTON_MAX):
+        if live.size == 0:
+            break
+        xl = x[live]
+        f, df = g(xl, idx[live])
+        bad = ~np.isfinite(f)
+        zero = ~bad & (f == 0.0)
+        root[live[zero]] = xl[zero]
+        settled[live[zero]] = True
+        neg, pos = ~bad & (f < 0.0), ~bad & (f > 0.0)
+        al, bl = np.where(neg, xl, a[live]), np.where(pos, xl, b[live])
+        a[live], b[live] = al, bl
+        closed = ~bad & ~zero & (bl - al <= _NEWTON_BRACKET_RTOL * np.abs(xl))
+        c = np.clip(cand[live], al, bl)
+        root[live[closed]] = c[closed]
+        settled[live[closed]] = True
+        go = ~bad & ~zero & ~closed
+        with np.errstate(divide="ignore", invalid="ignore"):
+            step = -f / df
+        xn = xl + step
+        usable = go & np.isfinite(xn) & (df > 0.0)
+        # a converged step (possibly below the resolution of x): the next point just past it, on the other side
+        # of the root, so that the bracket closes around it
+        tiny = usable & (np.abs(step) <= 0.25 * _NEWTON_BRACKET_RTOL * np.abs(xl))
+        push = xl + (np.abs(step) + 0.25 * _NEWTON_BRACKET_RTOL * np.abs(xl)) * np.where(f < 0.0, 1.0, -1.0)
+        newton = usable & ~tiny & (xn > al) & (xn < bl)
+        nxt = np.where(tiny, np.clip(push, al, bl), np.where(newton, xn, 0.5 * (al + bl)))
+        cand[live] = np.where(tiny | newton, np.clip(xn, al, bl), nxt)
+        x[live] = nxt
+        live = live[go]
+    return root, settled
+
+
+def _temperature_limit(fluid: ReferenceFluid, f_t: Callable[[np.ndarray, np.ndarray], np.ndarray],
+                       rho: np.ndarray, rated: np.ndarray, rows: np.ndarray, lo: np.ndarray, mid: np.ndarray,
+                       f_mid: np.ndarray, hi: np.ndarray, boundary: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """What :func:`_increasing_root` (stepwise) finds for the gas temperature at which the reference isochore
+    f_t(T, rows) = p(rho, T) / rated - 1 of rows `rows` reaches the rating, in fewer evaluations: where f_t can be
+    evaluated at both ends of the bracket that _increasing_root solves in ([mid, min(hi, t_max)] or [lo, mid]),
+    the root inside it is the one it finds (f_t increasing), and it is solved here by Newton steps on the
+    isochore's own slope (:func:`_newton_in_bracket`), starting from the saturation temperature at the rating where
+    that lies on the dome part of the isochore (below `boundary`, where the isochore leaves the dome: there the
+    isochore's pressure is the vapour pressure), else from the regula-falsi point of the bracket. An end past the
+    equation's range is scanned upwards from mid as there (:func:`_scan_up`); rows this does not settle go through
+    _increasing_root itself. Returns (root, ok) as it does."""
+    m = rows.size
+    top = fluid.t_max
+    root = np.full(m, np.nan)
+    ok = np.ones(m, dtype=bool)
+    done = np.zeros(m, dtype=bool)
+    end = np.minimum(hi, top)
+    at_mid = f_mid == 0.0
+    root[at_mid] = mid[at_mid]
+    done[at_mid] = True
+    up = np.flatnonzero(f_mid < 0.0)
+    down = np.flatnonzero(f_mid > 0.0)
+    a, fa, b, fb = (np.full(m, np.nan) for _ in range(4))
+    solve = np.zeros(m, dtype=bool)
+    if up.size:
+        f_end = f_t(end[up], rows[up])
+        nan = ~np.isfinite(f_end)
+        if nan.any():      # an end outside the equation's range: screen._root scans (as _increasing_root does)
+            s = up[nan]
+            root[s] = _scan_up(f_t, rows[s], lo[s], mid[s], f_mid[s], hi[s])
+            done[s] = True
+        below = ~nan & (f_end < 0.0)
+        done[up[below]] = True                      # no root
+        zero = ~nan & (f_end == 0.0)
+        root[up[zero]] = end[up[zero]]
+        done[up[zero]] = True
+        g = ~nan & (f_end > 0.0)
+        k = up[g]
+        a[k], fa[k], b[k], fb[k] = mid[k], f_mid[k], end[k], f_end[g]
+        solve[k] = True
+    if down.size:
+        f_lo = f_t(lo[down], rows[down])
+        fin = np.isfinite(f_lo)
+        none = fin & (f_lo > 0.0)
+        done[down[none]] = True
+        zero = fin & (f_lo == 0.0)
+        root[down[zero]] = lo[down[zero]]
+        done[down[zero]] = True
+        g = fin & (f_lo < 0.0)
+        k = down[g]
+        a[k], fa[k], b[k], fb[k] = lo[k], f_lo[g], mid[k], f_mid[k]
+        solve[k] = True
+    s = np.flatnonzero(solve)
+    if s.size:
+        with np.errstate(invalid="ignore", divide="ignore"):
+            x0 = (a[s] * fb[s] - b[s] * fa[s]) / (fb[s] - fa[s])
+        t_sat = fluid.saturation_temperatures(rated[rows[s]])
+        on_dome = np.isfinite(t_sat) & (t_sat > a[s]) & (t_sat < b[s]) & (t_sat < boundary[s])
+        x0[on_dome] = t_sat[on_dome]
+
+        def g(t, ix):
+            r = rows[s[ix]]
+            p, d = fluid.isochore_slopes(rho[r], t)
+            return p / rated[r] - 1.0, d / rated[r]
+
+        r, settled = _newton_in_bracket(g, a[s], fa[s], b[s], fb[s], x0, np.arange(s.size))
+        root[s[settled]] = r[settled]
+        done[s[settled]] = True
+    # beyond `top` screen._root scans: a root in a scan interval that reaches past `top` is not found
+    past = np.flatnonzero(done & np.isfinite(root) & (hi > top))
+    if past.size:
+        _a, bb = _linspace_bracket(lo[past], hi[past], root[past])
+        root[past[bb > top]] = np.nan
+    rest = np.flatnonzero(~done)
+    if rest.size:
+        root[rest], ok[rest] = _increasing_root(f_t, rows[rest], lo[rest], mid[rest], f_mid[rest], hi[rest], top,
+                                                stepwise=True)
+    return root, ok
 
 
 def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray,
@@ -2048,11 +2268,17 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
 
     # the reference isochore can be evaluated from the lower temperature up to the equation's range (its
     # temperature range, its highest pressure): an end past it is scanned upwards from the worst case
-    root, ok = _increasing_root(f_t, live, t_lo[live], t_peak[live], peak[live] / rated[live] - 1.0, t_hi[live],
-                                fluid.t_max, stepwise=True)
+    root, ok = _temperature_limit(fluid, f_t, rho, rated, live, t_lo[live], t_peak[live], peak[live] / rated[live] - 1.0,
+                                  t_hi[live], np.fmin(out["dry"], out["liquid_full"])[live])
     fallback[live[~ok]] = True
     max_t = out["max_t"]
     max_t[live[ok]] = root[ok]
+    # the generalized model's temperature limit where it can be the lower one (none is given where the fill is
+    # over the rating)
+    none = np.array([], dtype=np.int64)
+    lk = np.flatnonzero(out["lk_ok"] & ~fallback & ~fill_over)
+    if lk.size:
+        _lk_limits(rows, out, lk, max_t[lk], none, none.astype(float))
     max_t[:] = np.fmin(max_t, out["max_t_lk"])
     max_t[fill_over] = np.nan
 
@@ -2111,6 +2337,9 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
                 r, okb = _known_scan_root(lambda x, ix, b=b: f_p(x, b[ix]), p_star[b], p_lo[b], p_hi[b], 40)
                 p_max[b] = r
                 fallback[pr[b[~okb]]] = True
+        lkp = np.flatnonzero(out["lk_ok"][pr] & ~fallback[pr])
+        if lkp.size:
+            _lk_limits(rows, out, none, none.astype(float), pr[lkp], p_max[lkp])
         out["max_p"][pr] = np.fmin(p_max, out["max_p_lk"][pr])
 
     # fill density whose peak is the target (screen._mass_limit), then the liquid-full cap

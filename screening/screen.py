@@ -411,10 +411,10 @@ def _band_reason(case: Case, fluid: ReferenceFluid, t_fill: float) -> tuple[str,
 
 
 def band_reason(p: float, t_fill: float, fluid: ReferenceFluid, gas_name: str, atm: float, tol_p: float = 0.0,
-                tol_t: float = 0.0) -> tuple[str, str, str] | None:
+                tol_t: float = 0.0, psat: float | None = None) -> tuple[str, str, str] | None:
     """The rule of :func:`_band_reason` on plain values (one row of a batch as well as one case): fill pressure
     p [Pa] absolute at t_fill [K], atmospheric pressure atm [Pa], the input tolerances' half-bands tol_p [Pa] and
-    tol_t [K] (0: none)."""
+    tol_t [K] (0: none); psat [Pa]: the fluid's vapour pressure at t_fill where the caller has it."""
     tc, pc = fluid.critical_temperature, fluid.critical_pressure
     band_t, band_p = max(CRITICAL_BAND_K, tol_t), max(CRITICAL_BAND_FRACTION * pc, tol_p)
     ask = "the fill pressure cannot fix how much is in the vessel. Give the fill mass instead."
@@ -428,7 +428,8 @@ def band_reason(p: float, t_fill: float, fluid: ReferenceFluid, gas_name: str, a
         return None
     band_t = max(SATURATION_BAND_K, tol_t)
     try:
-        psat = fluid.vapour_pressure(t_fill)
+        if psat is None:
+            psat = fluid.vapour_pressure(t_fill)
         lo = fluid.vapour_pressure(max(t_fill - band_t, fluid.triple_temperature))
         hi = fluid.vapour_pressure(t_fill + band_t) if t_fill + band_t < tc else pc
     except NotApplicable:
@@ -1049,13 +1050,14 @@ def _has_liquid_full_analysis(fluid: ReferenceFluid | None) -> bool:
 
 
 def _liquid_full_applies(fs: FillState, rho: float | None, t_fill: float, t_peak: float,
-                         gas: Mixture | None = None) -> bool:
+                         gas: Mixture | None = None, rho_liquid_full: float | None = None) -> bool:
     """Whether the vessel with fill molar density rho [mol/m3] is liquid-full (or a dense, liquid-like fluid) at
-    the worst-case temperature."""
+    the worst-case temperature; `rho_liquid_full`: :func:`liquid_full_density` where the caller has it."""
     if rho is None or not _has_liquid_full_analysis(fs.fluid):
         return False
     try:
-        return rho >= liquid_full_density(fs.fluid, t_fill, t_peak, gas)
+        return rho >= (liquid_full_density(fs.fluid, t_fill, t_peak, gas) if rho_liquid_full is None
+                       else rho_liquid_full)
     except NotApplicable:
         return True  # the liquid side cannot be evaluated: not shown to be away from it
 

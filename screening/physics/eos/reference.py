@@ -514,37 +514,66 @@ class ReferenceFluid:
         vapour pressure itself (within a relative 1e-9).
         """
         p, T = float(p), float(T)
+        if not self.is_mixture:
+            return self._pure_density(p, T)[0]
+        self._check_temperature(T)
+        self._check_pressure(p)
+        return self._mixture_density(p, T, self._evaluate)
+
+    def _pure_density(self, p: float, T: float, ps: float | None = None) -> tuple[float, float, str]:
+        """:meth:`density` of a pure fluid, with the pressure and phase of its check at (rho, T) (what
+        :meth:`_evaluate` gives there); `ps`: the vapour pressure at T where the caller has it (what
+        :meth:`vapour_pressure` gives). The caller holds the lock."""
         self._check_temperature(T)
         self._check_pressure(p)
         a = self._state
-        if not self.is_mixture:
-            imposed = None
-            if T < self.critical_temperature:
+        imposed = None
+        if T < self.critical_temperature:
+            if ps is None:
                 ps = self.vapour_pressure(T) if not self.is_pseudo_pure else None
-                if ps is not None:
-                    if abs(p - ps) <= SATURATION_BAND * ps:
-                        raise NotApplicable(MODEL, f"{self.label} at {T:.6g} K: p = {p:.6g} Pa is the vapour "
-                                            "pressure; the density is not defined by (p, T) there",
-                                            value=(p, T))
-                    imposed = CoolProp.iphase_liquid if p > ps else CoolProp.iphase_gas
+            if ps is not None:
+                if abs(p - ps) <= SATURATION_BAND * ps:
+                    raise NotApplicable(MODEL, f"{self.label} at {T:.6g} K: p = {p:.6g} Pa is the vapour "
+                                        "pressure; the density is not defined by (p, T) there",
+                                        value=(p, T))
+                imposed = CoolProp.iphase_liquid if p > ps else CoolProp.iphase_gas
+        try:
+            if imposed is not None:
+                a.specify_phase(imposed)
+            a.update(CoolProp.PT_INPUTS, p, T)
+            rho = a.rhomolar()
+        except ValueError as exc:
+            raise NotApplicable(MODEL, f"CoolProp pressure-temperature flash failed for {self.label} at "
+                                f"p={p:.6g} Pa, T={T:.6g} K: {exc}", value=(p, T)) from None
+        finally:
+            a.unspecify_phase()
+        self._check_density(rho)
+        # independent check of the root through the checked density-temperature path
+        p_back, phase = self._evaluate(rho, T)
+        if abs(p_back - p) > 1e-6 * p:
+            raise NotApplicable(MODEL, f"{self.label}: PT flash at p={p:.6g} Pa, T={T:.6g} K gave "
+                                f"{rho:.6g} mol/m3 which maps back to {p_back:.6g} Pa", value=(p, T))
+        return float(rho), p_back, phase
+
+    @_holding_the_state
+    def densities(self, p: np.ndarray, T: np.ndarray, ps: np.ndarray) -> tuple[np.ndarray, ...]:
+        """:meth:`density` of many rows of a pure fluid (1-D arrays of equal length), with the pressure [Pa] and
+        phase that its check evaluates at (rho, T); `ps`: the vapour pressure [Pa] at T where the caller has it
+        (NaN: not known, evaluated here as :meth:`density` does). Returns (densities [mol/m3], pressures, phases
+        (an object array), valid); invalid rows carry NaN, NaN, None and False."""
+        p_f, t_f, s_f = (np.asarray(v, dtype=float).tolist() for v in (p, T, ps))
+        n = len(p_f)
+        rho, p_back = np.full(n, np.nan), np.full(n, np.nan)
+        phases = np.full(n, None, dtype=object)
+        valid = np.zeros(n, dtype=bool)
+        pure = self._pure_density
+        for i in range(n):
             try:
-                if imposed is not None:
-                    a.specify_phase(imposed)
-                a.update(CoolProp.PT_INPUTS, p, T)
-                rho = a.rhomolar()
-            except ValueError as exc:
-                raise NotApplicable(MODEL, f"CoolProp pressure-temperature flash failed for {self.label} at "
-                                    f"p={p:.6g} Pa, T={T:.6g} K: {exc}", value=(p, T)) from None
-            finally:
-                a.unspecify_phase()
-            self._check_density(rho)
-            # independent check of the root through the checked density-temperature path
-            p_back, _ = self._evaluate(rho, T)
-            if abs(p_back - p) > 1e-6 * p:
-                raise NotApplicable(MODEL, f"{self.label}: PT flash at p={p:.6g} Pa, T={T:.6g} K gave "
-                                    f"{rho:.6g} mol/m3 which maps back to {p_back:.6g} Pa", value=(p, T))
-            return float(rho)
-        return self._mixture_density(p, T, self._evaluate)
+                rho[i], p_back[i], phases[i] = pure(p_f[i], t_f[i], s_f[i] if math.isfinite(s_f[i]) else None)
+                valid[i] = True
+            except NotApplicable:
+                pass
+        return rho, p_back, phases, valid
 
     def _mixture_density(self, p: float, T: float, evaluate) -> float:
         """A mixture's density [mol/m3] at (p [Pa], T [K]); ``evaluate(rho, T) -> (p, phase)`` re-checks the
@@ -717,6 +746,25 @@ class ReferenceFluid:
                                 value=(T, p, rho))
         return float(p), float(rho)
 
+    @_holding_the_state
+    def saturation_temperatures(self, p: np.ndarray) -> np.ndarray:
+        """Saturation temperatures [K] of a pure fluid at pressures p [Pa] (CoolProp's pressure-quality flash);
+        NaN where there is none (at or above the critical pressure, below the triple point, a failed flash).
+        Unchecked: a starting point for solves that check their answer, never an answer itself."""
+        self._require_pure("saturation")
+        p_f = np.asarray(p, dtype=float).tolist()
+        out = np.full(len(p_f), np.nan)
+        a, pc = self._state, self.critical_pressure
+        for i, pi in enumerate(p_f):
+            if not (0.0 < pi < pc):
+                continue
+            try:
+                a.update(CoolProp.PQ_INPUTS, pi, 0.0)
+                out[i] = a.T()
+            except ValueError:
+                pass
+        return out
+
     def vapour_pressure(self, T: float) -> float:
         """Vapour pressure [Pa] at T [K], triple point ≤ T < Tc."""
         return self._saturation(T, 0.0)[0]
@@ -753,6 +801,28 @@ class ReferenceFluid:
                 reasons[i] = exc.reason
         return out.reshape(shape), valid.reshape(shape), np.array(reasons, dtype=str).reshape(shape)
 
+
+    @_holding_the_state
+    def isochore_slopes(self, rho_molar: np.ndarray, T: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """:meth:`pressure` and :meth:`dp_dt_at_constant_density` of many rows of a pure fluid from one evaluation
+        each (1-D arrays of equal length): the pressure [Pa] and its slope along the isochore [Pa/K] (in the dome
+        dp_sat/dT). Rows that cannot be evaluated carry NaN in both."""
+        rho_f, t_f = np.asarray(rho_molar, dtype=float).tolist(), np.asarray(T, dtype=float).tolist()
+        n = len(rho_f)
+        p_out = np.full(n, np.nan)
+        d_out = np.full(n, np.nan)
+        evaluate, a = self._evaluate, self._state
+        for i in range(n):
+            try:
+                p, phase = evaluate(rho_f[i], t_f[i])
+                d = (a.first_saturation_deriv(CoolProp.iP, CoolProp.iT) if phase == "two-phase"
+                     else a.first_partial_deriv(CoolProp.iP, CoolProp.iT, CoolProp.iDmolar))
+            except NotApplicable:
+                continue
+            except ValueError:
+                continue
+            p_out[i], d_out[i] = p, d
+        return p_out, d_out
 
     @_holding_the_state
     def states(self, rho_molar: np.ndarray, T: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
