@@ -1269,6 +1269,19 @@ def expandable(case: Case) -> bool:
             and bool(scenarios) and all(getattr(s, "solar", "none") in ("none", "sun") for s in scenarios))
 
 
+def _scenario_rows(cases: list[Case]) -> tuple[dict[int, list[SunRow]], list[tuple[int, int]]]:
+    """({case index: its scenarios' worst cases (:func:`_exposure_row`)}, [(case index, scenario index)], the rows
+    of a table with a row per scenario). A case whose worst case raises is left out: the per-row path raises it
+    again, in its place."""
+    exposures: dict[int, list[SunRow]] = {}
+    for i, c in enumerate(cases):
+        try:
+            exposures[i] = [_exposure_row(c, sc) for sc in c.scenarios]
+        except (InputError, ValueError):
+            continue
+    return exposures, [(i, j) for i, rows in exposures.items() for j in range(len(rows))]
+
+
 def _exposure_row(case: Case, sc) -> SunRow:
     """One scenario's worst case as screen._worst_case_temperature finds it (basis, energy balance, warnings),
     with its highest exposure temperature. Raises InputError as the single screening does."""
@@ -1349,13 +1362,7 @@ def _screen_expanded(cases: list[Case]) -> list[Result | None]:
     back, or its worst case raises)."""
     out: list[Result | None] = [None] * len(cases)
     gas = cases[0].gas
-    exposures: dict[int, list[SunRow]] = {}
-    for i, c in enumerate(cases):
-        try:
-            exposures[i] = [_exposure_row(c, sc) for sc in c.scenarios]
-        except (InputError, ValueError):
-            continue                    # the per-row path raises it again, in its place
-    keys = [(i, j) for i, rows in exposures.items() for j in range(len(rows))]
+    exposures, keys = _scenario_rows(cases)
     if not keys:
         return out
     nominal = Rows(gas, *(np.array(v, dtype=float) for v in zip(*(
@@ -1716,13 +1723,7 @@ def _screen_liquefied_scenarios(cases: list[Case]) -> list[Result | None]:
     screen.screen_states folds them. None where a row must go per row (one of its scenarios fell back, or its
     worst case raises)."""
     out: list[Result | None] = [None] * len(cases)
-    exposures: dict[int, list[SunRow]] = {}
-    for i, c in enumerate(cases):
-        try:
-            exposures[i] = [_exposure_row(c, sc) for sc in c.scenarios]
-        except (InputError, ValueError):
-            continue                    # the per-row path raises it again, in its place
-    keys = [(i, j) for i, rows in exposures.items() for j in range(len(rows))]
+    exposures, keys = _scenario_rows(cases)
     if not keys:
         return out
     cols = _liquefied_columns(LiquefiedRows.of_cases([cases[i] for i, _j in keys],
