@@ -132,17 +132,32 @@ class BatchRun:
             return r
         return replace(f, row=r["row"], warnings=_warnings(r["warnings"]))
 
+    def full_json(self, i: int, warnings: list[dict]) -> dict:
+        """``full(i)`` as JSON (:func:`_json`) with the given warnings, built without the Result where the
+        row ran on the columns (:meth:`screening.engine.PlainScreening.full_json`)."""
+        r = self.results[i]
+        j = self._plain_at.get(i)
+        if i in self._fulls or j is None or r["verdict"] == "input-error":
+            f = self.full(i)
+            return _json(replace(f, warnings=_warnings(warnings)) if isinstance(f, Result) else f)
+        f = self._plain.full_json(j)
+        if f is None:
+            return r
+        f["warnings"] = [ScreeningWarning.json_layout(w) for w in warnings]
+        f["row"] = r["row"]
+        return f
+
 
 def _warnings(records: list[dict]) -> tuple[ScreeningWarning, ...]:
     return tuple(ScreeningWarning.from_json(w) for w in records)
 
 
-def _screened(inv: Inventory, defaults: dict | None) -> tuple[list[dict], object]:
-    """(results, full) of a chunk; a row whose screening raises is screened alone, and if it still raises,
-    it becomes an input-error row: a bad row never takes its chunk with it."""
+def _screened(inv: Inventory, defaults: dict | None) -> tuple[list[dict], object, object]:
+    """(results, full, full_json) of a chunk (see BatchRun); a row whose screening raises is screened alone, and
+    if it still raises, it becomes an input-error row: a bad row never takes its chunk with it."""
     try:
         run = BatchRun(inv, defaults)
-        return run.results, run.full
+        return run.results, run.full, run.full_json
     except (InputError, ArithmeticError, ValueError):
         if len(inv.rows) == 1:
             raise
@@ -162,7 +177,11 @@ def _screened(inv: Inventory, defaults: dict | None) -> tuple[list[dict], object
                              or "values of a real vessel")
             results.append(error_row(n, err, cid))
             fulls.append(results[-1])
-    return results, fulls.__getitem__
+
+    def full_json(i: int, warnings: list[dict]) -> dict:
+        f = fulls[i]
+        return _json(replace(f, warnings=_warnings(warnings)) if isinstance(f, Result) else f)
+    return results, fulls.__getitem__, full_json
 
 
 def screen_chunk(job: tuple) -> list[tuple]:
@@ -171,7 +190,7 @@ def screen_chunk(job: tuple) -> list[tuple]:
     `job` = (inventory chunk, defaults, {row: first row of its id} for duplicate ids, want) where `want`
     holds "json" (a JSON line per row) and "full" (None, "not-within" or "all": full results for a PDF)."""
     inv, defaults, dups, want = job
-    results, full = _screened(inv, defaults)
+    results, full, full_json = _screened(inv, defaults)
     headers = [c.header for c in inv.columns]
     out = []
     for i, r in enumerate(results):
@@ -181,15 +200,16 @@ def screen_chunk(job: tuple) -> list[tuple]:
             r["warnings"] = list(r.get("warnings") or []) + [
                 {"code": "duplicate-id", "message": f"The id '{r.get('id')}' is also used on row {dups[n]}."}]
         f = None
-        if want.get("json") or (want.get("full") == "all"
-                                or (want.get("full") == "not-within" and r["verdict"] != "within")):
+        if want.get("full") == "all" or (want.get("full") == "not-within" and r["verdict"] != "within"):
             f = full(i)
             if isinstance(f, Result):
                 f = replace(f, warnings=_warnings(r["warnings"]))
         line = None
         if want.get("json"):
             cells = inv.rows[i][1]
-            rec = {k: v for k, v in _json(f).items() if k not in _DROP}
+            # the full result's JSON: from the Result where the PDF needs it anyway, else built directly
+            rec = {k: v for k, v in (_json(f) if f is not None else full_json(i, r["warnings"])).items()
+                   if k not in _DROP}
             rec["row"] = n
             rec["input"] = {h: str(cells[j]) if j < len(cells) else "" for j, h in enumerate(headers)}
             line = json_line(rec)
