@@ -88,34 +88,44 @@ class PlainRows:
         does not keep a Case per row."""
         if self.entered is None:
             return self.read_case(j)
+        si = self._si_values()
         texts = {k: v[j] for k, v in self.entered.items() if v[j] is not _MISSING}
-        si = {"site.atmospheric_pressure": self.atmospheric_pa, "site.elevation": self.elevation_m,
-              "vessel.water_capacity": self.water_capacity_m3, "vessel.rated_pressure": self.rated_pa,
-              "vessel.relief_set_pressure": self.relief_pa, "vessel.max_filling_ratio": self.max_filling_ratio_kg_m3,
-              "fill.pressure": self.fill_pressure_pa, "fill.temperature": self.fill_temperature_k,
-              "fill.mass": self.fill_mass_kg, "exposure.ambient_max": self.ambient_max_k,
-              "exposure.gas_temperature": self.gas_temperature_k, "criteria.required_margin": self.required_margin}
-        inputs = tuple({"key": key, "entered": default_text(None, texts[key]), "si_value": float(si[key][j]),
-                        "si_unit": unit} for key, unit in _RECORDS if key in texts)
+        inputs = tuple({"key": key, "entered": t if type(t := texts[key]) is str else default_text(None, t),
+                        "si_value": si[key][j], "si_unit": unit} for key, unit in _RECORDS if key in texts)
         lines = [f"{header} = {values[j]!r}" for header, values in self.cell_texts if values[j]]
 
-        def opt(a: np.ndarray) -> float | None:
-            v = float(a[j])
+        def opt(key: str) -> float | None:
+            v = si[key][j]
             return None if math.isnan(v) else v
-        ambient, hot = opt(self.ambient_max_k), opt(self.gas_temperature_k)
+        ambient, hot = opt("exposure.ambient_max"), opt("exposure.gas_temperature")
         return Case(
             id=self.ids[j], description=texts.get("description"), source=self.inv.source,
             text="\n".join(lines) + "\n",
-            site=Site(texts.get("site.name"), float(self.atmospheric_pa[j]), opt(self.elevation_m)),
-            gas=self.gases[j], water_capacity_m3=float(self.water_capacity_m3[j]),
-            rated_pressure_pa=float(self.rated_pa[j]), rated_pressure_kind=texts.get("vessel.rated_pressure_kind"),
-            relief_set_pressure_pa=opt(self.relief_pa), max_filling_ratio_kg_m3=opt(self.max_filling_ratio_kg_m3),
-            fill_pressure_pa=opt(self.fill_pressure_pa), fill_temperature_k=float(self.fill_temperature_k[j]),
-            fill_mass_kg=opt(self.fill_mass_kg), ambient_max_k=ambient, gas_temperature_k=hot,
-            required_margin=float(self.required_margin[j]),
+            site=Site(texts.get("site.name"), si["site.atmospheric_pressure"][j], opt("site.elevation")),
+            gas=self.gases[j], water_capacity_m3=si["vessel.water_capacity"][j],
+            rated_pressure_pa=si["vessel.rated_pressure"][j], rated_pressure_kind=texts.get("vessel.rated_pressure_kind"),
+            relief_set_pressure_pa=opt("vessel.relief_set_pressure"),
+            max_filling_ratio_kg_m3=opt("vessel.max_filling_ratio"), fill_pressure_pa=opt("fill.pressure"),
+            fill_temperature_k=si["fill.temperature"][j], fill_mass_kg=opt("fill.mass"),
+            ambient_max_k=ambient, gas_temperature_k=hot, required_margin=si["criteria.required_margin"][j],
             required_margin_is_default=bool(self.required_margin_is_default[j]),
             inputs=inputs, display_units=dict(self.display_units[j]),
             scenarios=(Exposure("exposure", ambient, hot, key="exposure"),))
+
+    def _si_values(self) -> dict[str, list[float]]:
+        """Each key's SI values per plain row as Python floats (NaN where absent), listed once."""
+        got = self.__dict__.get("_si")
+        if got is None:
+            got = self.__dict__["_si"] = {
+                "site.atmospheric_pressure": self.atmospheric_pa, "site.elevation": self.elevation_m,
+                "vessel.water_capacity": self.water_capacity_m3, "vessel.rated_pressure": self.rated_pa,
+                "vessel.relief_set_pressure": self.relief_pa, "vessel.max_filling_ratio": self.max_filling_ratio_kg_m3,
+                "fill.pressure": self.fill_pressure_pa, "fill.temperature": self.fill_temperature_k,
+                "fill.mass": self.fill_mass_kg, "exposure.ambient_max": self.ambient_max_k,
+                "exposure.gas_temperature": self.gas_temperature_k, "criteria.required_margin": self.required_margin}
+            for k, a in got.items():
+                got[k] = a.tolist()
+        return got
 
     def read_case(self, j: int) -> Case:
         """The j-th plain row read again by the case reader, the authoritative one."""
