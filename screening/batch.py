@@ -30,6 +30,7 @@ from screening.outputs.tables import (
     CsvTable,
     XlsxTable,
     file_units,
+    json_bytes,
     json_line,
     result_headers,
     result_values,
@@ -185,7 +186,8 @@ def _screened(inv: Inventory, defaults: dict | None) -> tuple[list[dict], object
 
 
 def screen_chunk(job: tuple) -> list[tuple]:
-    """Screen one chunk (run in a worker): per row (short result, JSON line or None, full result or None).
+    """Screen one chunk (run in a worker): per row (short result, JSON line as UTF-8 bytes or None, full result
+    or None).
 
     `job` = (inventory chunk, defaults, {row: first row of its id} for duplicate ids, want) where `want`
     holds "json" (a JSON line per row) and "full" (None, "not-within" or "all": full results for a PDF)."""
@@ -212,7 +214,7 @@ def screen_chunk(job: tuple) -> list[tuple]:
                    if k not in _DROP}
             rec["row"] = n
             rec["input"] = {h: str(cells[j]) if j < len(cells) else "" for j, h in enumerate(headers)}
-            line = json_line(rec)
+            line = json_bytes(rec)
         keep_full = _with_curves(f, inv, i, defaults) if want.get("full") == "all" or (want.get("full") == "not-within"
                                                                      and r["verdict"] != "within") else None
         out.append((r, line, keep_full))
@@ -401,25 +403,26 @@ class _Outputs:
         if a.xlsx:
             self._xlsx_fh = self.stack.enter_context(atomic_writer(a.xlsx, "XLSX output", binary=True))
             self.xlsx = XlsxTable(self.headers, self.width, self.reg.decimal)
+        # the JSON outputs take the lines as the workers made them, UTF-8 bytes
         if a.jsonl:
-            self.jsonl = self.stack.enter_context(atomic_writer(a.jsonl, "JSON Lines output"))
+            self.jsonl = self.stack.enter_context(atomic_writer(a.jsonl, "JSON Lines output", binary=True))
         if a.json:
-            self.json = self.stack.enter_context(atomic_writer(a.json, "JSON output"))
-            self.json.write('{"results": [\n')
+            self.json = self.stack.enter_context(atomic_writer(a.json, "JSON output", binary=True))
+            self.json.write(b'{"results": [\n')
 
     def values(self, r: dict, cells: list[str]) -> list:
         row = (list(cells) + [""] * self.width)[:self.width]
         return [r["row"]] + [str(c) for c in row] + result_values(r, self.pu, self.tu)
 
-    def write(self, values: list, line: str | None) -> None:
+    def write(self, values: list, line: bytes | None) -> None:
         if self.csv:
             self.csv.write(values)
         if self.xlsx:
             self.xlsx.write(values)
         if self.jsonl:
-            self.jsonl.write(line + "\n")
+            self.jsonl.write(line + b"\n")
         if self.json:
-            self.json.write(("  " if self.n_json == 0 else ",\n  ") + line)
+            self.json.write((b"  " if self.n_json == 0 else b",\n  ") + line)
             self.n_json += 1
 
     def finish(self, tally: Tally) -> None:
@@ -428,7 +431,7 @@ class _Outputs:
         if self.xlsx:
             self.xlsx.finish(self._xlsx_fh, tally.counts, tally.rows, tally.duplicates, self.reg.source)
         if self.json:
-            self.json.write('\n],\n "summary": ' + json.dumps(tally.summary()) + "}\n")
+            self.json.write(('\n],\n "summary": ' + json.dumps(tally.summary()) + "}\n").encode())
 
 
 class _Spill:

@@ -25,7 +25,7 @@ from screening.engine import screen_case, with_plot_data
 from screening.inputs.case import load_case
 from screening.inputs.columns import read_plain
 from screening.inputs.inventory import Inventory, read_inventory
-from screening.outputs.tables import json_line
+from screening.outputs.tables import json_bytes, json_line
 from screening.result import Result, _Part
 from screening.verdicts import Verdict
 
@@ -211,6 +211,7 @@ def test_json_line_parses_to_what_the_standard_library_writes():
     assert json.loads(json_line({"v": np.float64(0.1), 3: "three"})) == {"v": 0.1, "3": "three"}
     assert json.loads(json_line({"v": np.float64("nan")})) == {"v": None}
     assert json.loads(json_line({"big": 2**70})) == {"big": 2**70}
+    assert json_bytes(record) == line.encode()
 
 
 def test_a_chunk_run_row_by_row_after_a_failure_still_writes_each_rows_json(monkeypatch, tmp_path):
