@@ -30,6 +30,7 @@ from screening.outputs.tables import (
     CsvTable,
     XlsxTable,
     file_units,
+    json_bytes,
     json_line,
     result_headers,
     result_values,
@@ -132,17 +133,32 @@ class BatchRun:
             return r
         return replace(f, row=r["row"], warnings=_warnings(r["warnings"]))
 
+    def full_json(self, i: int, warnings: list[dict]) -> dict:
+        """``full(i)`` as JSON (:func:`_json`) with the given warnings, built without the Result where the
+        row ran on the columns (:meth:`screening.engine.PlainScreening.full_json`)."""
+        r = self.results[i]
+        j = self._plain_at.get(i)
+        if i in self._fulls or j is None or r["verdict"] == "input-error":
+            f = self.full(i)
+            return _json(replace(f, warnings=_warnings(warnings)) if isinstance(f, Result) else f)
+        f = self._plain.full_json(j)
+        if f is None:
+            return r
+        f["warnings"] = [ScreeningWarning.json_layout(w) for w in warnings]
+        f["row"] = r["row"]
+        return f
+
 
 def _warnings(records: list[dict]) -> tuple[ScreeningWarning, ...]:
     return tuple(ScreeningWarning.from_json(w) for w in records)
 
 
-def _screened(inv: Inventory, defaults: dict | None) -> tuple[list[dict], object]:
-    """(results, full) of a chunk; a row whose screening raises is screened alone, and if it still raises,
-    it becomes an input-error row: a bad row never takes its chunk with it."""
+def _screened(inv: Inventory, defaults: dict | None) -> tuple[list[dict], object, object]:
+    """(results, full, full_json) of a chunk (see BatchRun); a row whose screening raises is screened alone, and
+    if it still raises, it becomes an input-error row: a bad row never takes its chunk with it."""
     try:
         run = BatchRun(inv, defaults)
-        return run.results, run.full
+        return run.results, run.full, run.full_json
     except (InputError, ArithmeticError, ValueError):
         if len(inv.rows) == 1:
             raise
@@ -162,16 +178,21 @@ def _screened(inv: Inventory, defaults: dict | None) -> tuple[list[dict], object
                              or "values of a real vessel")
             results.append(error_row(n, err, cid))
             fulls.append(results[-1])
-    return results, fulls.__getitem__
+
+    def full_json(i: int, warnings: list[dict]) -> dict:
+        f = fulls[i]
+        return _json(replace(f, warnings=_warnings(warnings)) if isinstance(f, Result) else f)
+    return results, fulls.__getitem__, full_json
 
 
 def screen_chunk(job: tuple) -> list[tuple]:
-    """Screen one chunk (run in a worker): per row (short result, JSON line or None, full result or None).
+    """Screen one chunk (run in a worker): per row (short result, JSON line as UTF-8 bytes or None, full result
+    or None).
 
     `job` = (inventory chunk, defaults, {row: first row of its id} for duplicate ids, want) where `want`
     holds "json" (a JSON line per row) and "full" (None, "not-within" or "all": full results for a PDF)."""
     inv, defaults, dups, want = job
-    results, full = _screened(inv, defaults)
+    results, full, full_json = _screened(inv, defaults)
     headers = [c.header for c in inv.columns]
     out = []
     for i, r in enumerate(results):
@@ -181,18 +202,19 @@ def screen_chunk(job: tuple) -> list[tuple]:
             r["warnings"] = list(r.get("warnings") or []) + [
                 {"code": "duplicate-id", "message": f"The id '{r.get('id')}' is also used on row {dups[n]}."}]
         f = None
-        if want.get("json") or (want.get("full") == "all"
-                                or (want.get("full") == "not-within" and r["verdict"] != "within")):
+        if want.get("full") == "all" or (want.get("full") == "not-within" and r["verdict"] != "within"):
             f = full(i)
             if isinstance(f, Result):
                 f = replace(f, warnings=_warnings(r["warnings"]))
         line = None
         if want.get("json"):
             cells = inv.rows[i][1]
-            rec = {k: v for k, v in _json(f).items() if k not in _DROP}
+            # the full result's JSON: from the Result where the PDF needs it anyway, else built directly
+            rec = {k: v for k, v in (_json(f) if f is not None else full_json(i, r["warnings"])).items()
+                   if k not in _DROP}
             rec["row"] = n
             rec["input"] = {h: str(cells[j]) if j < len(cells) else "" for j, h in enumerate(headers)}
-            line = json_line(rec)
+            line = json_bytes(rec)
         keep_full = _with_curves(f, inv, i, defaults) if want.get("full") == "all" or (want.get("full") == "not-within"
                                                                      and r["verdict"] != "within") else None
         out.append((r, line, keep_full))
@@ -381,25 +403,26 @@ class _Outputs:
         if a.xlsx:
             self._xlsx_fh = self.stack.enter_context(atomic_writer(a.xlsx, "XLSX output", binary=True))
             self.xlsx = XlsxTable(self.headers, self.width, self.reg.decimal)
+        # the JSON outputs take the lines as the workers made them, UTF-8 bytes
         if a.jsonl:
-            self.jsonl = self.stack.enter_context(atomic_writer(a.jsonl, "JSON Lines output"))
+            self.jsonl = self.stack.enter_context(atomic_writer(a.jsonl, "JSON Lines output", binary=True))
         if a.json:
-            self.json = self.stack.enter_context(atomic_writer(a.json, "JSON output"))
-            self.json.write('{"results": [\n')
+            self.json = self.stack.enter_context(atomic_writer(a.json, "JSON output", binary=True))
+            self.json.write(b'{"results": [\n')
 
     def values(self, r: dict, cells: list[str]) -> list:
         row = (list(cells) + [""] * self.width)[:self.width]
         return [r["row"]] + [str(c) for c in row] + result_values(r, self.pu, self.tu)
 
-    def write(self, values: list, line: str | None) -> None:
+    def write(self, values: list, line: bytes | None) -> None:
         if self.csv:
             self.csv.write(values)
         if self.xlsx:
             self.xlsx.write(values)
         if self.jsonl:
-            self.jsonl.write(line + "\n")
+            self.jsonl.write(line + b"\n")
         if self.json:
-            self.json.write(("  " if self.n_json == 0 else ",\n  ") + line)
+            self.json.write((b"  " if self.n_json == 0 else b",\n  ") + line)
             self.n_json += 1
 
     def finish(self, tally: Tally) -> None:
@@ -408,7 +431,7 @@ class _Outputs:
         if self.xlsx:
             self.xlsx.finish(self._xlsx_fh, tally.counts, tally.rows, tally.duplicates, self.reg.source)
         if self.json:
-            self.json.write('\n],\n "summary": ' + json.dumps(tally.summary()) + "}\n")
+            self.json.write(('\n],\n "summary": ' + json.dumps(tally.summary()) + "}\n").encode())
 
 
 class _Spill:

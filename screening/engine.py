@@ -1648,6 +1648,19 @@ class PlainScreening:
                 return {"verdict": "input-error", "error": exc}
         return _assemble(self.plain.case(j), cols, k)
 
+    def full_json(self, j: int) -> dict | None:
+        """``full(j).to_json()``, built without the Result where the row ran on the columns
+        (:meth:`Result.json_layout`; tests/test_batch_json.py keeps the two equal); None where the row could not
+        be screened (:meth:`full` gives its input-error record)."""
+        if j in self._full or not (cols_k := self._where.get(j)):
+            r = self.full(j)
+            return r.to_json() if isinstance(r, Result) else None
+        cols, k = cols_k
+        if cols.get("kind") == "liquefied" and not _mass_limit_settled(cols, k, self.plain.gases[j]):
+            r = self.full(j)
+            return r.to_json() if isinstance(r, Result) else None
+        return Result.json_layout(_row_dict(self.plain.case(j), cols, k))
+
 
 def iter_chunks(items: list, size: int) -> Iterable[list]:
     for k in range(0, len(items), size):

@@ -30,8 +30,14 @@ from screening.verdicts import Verdict
 _frozen = dataclass(frozen=True, slots=True)
 
 
+#: Types a part's JSON holds as they are (the common case, checked first).
+_SCALARS = frozenset({str, float, int, bool, type(None)})
+
+
 def _dump(value: Any) -> Any:
     """A part of a result as JSON-ready data (dataclasses → dicts, tuples → lists, enums → their word)."""
+    if type(value) in _SCALARS:
+        return value
     if isinstance(value, _Part):
         return value.to_json()
     if isinstance(value, Verdict):
@@ -60,7 +66,13 @@ class _Part:
     _READ: ClassVar[dict] = {}
 
     def to_json(self) -> dict:
-        return {n: _dump(getattr(self, n)) for n in _layout(type(self))[0]}
+        return _codec(type(self))[0](self)
+
+    @classmethod
+    def json_layout(cls, data: dict) -> dict:
+        """``cls.from_json(data).to_json()`` without building the parts: the JSON of the part that `data`
+        describes, its keys in the layout's order (a key it does not know is the same error)."""
+        return _codec(cls)[1](data)
 
     @classmethod
     def from_json(cls, data: dict):
@@ -93,6 +105,60 @@ def _reader(how: Any):
     if how is Verdict:
         return Verdict
     return how.from_json
+
+
+def _expression(how: Any, value: str, names: dict, n: str, to_json: bool) -> str:
+    """Python source of one field's JSON from `value` (the source of its value): the field of a part
+    (`to_json`), or the field's value in the JSON object `from_json` reads (`json_layout`). `names` gathers
+    what the source refers to."""
+    if how is None or how is tuple:         # a plain value, or a list of them: as _dump gives it
+        return f"({value} if type({value}) in _SCALARS else _dump({value}))"
+    if how is Verdict:
+        return f"(None if {value} is None else {value}.value)" if to_json else \
+            f"(None if {value} is None else Verdict({value}).value)"
+    if to_json:                             # parts (or lists, mappings of parts): each its own to_json
+        if isinstance(how, (tuple, set)):
+            return f"_dump({value})"
+        return f"({value}.to_json() if isinstance({value}, _Part) else _dump({value}))"
+    part = how[0] if isinstance(how, tuple) else next(iter(how)) if isinstance(how, set) else how
+    # the part's compiled function itself, unless the part has its own json_layout
+    names[f"_layout_{n}"] = part.json_layout if "json_layout" in vars(part) else _codec(part)[1]
+    if isinstance(how, tuple):
+        return f"(None if {value} is None else [_layout_{n}(x) for x in {value}])"
+    if isinstance(how, set):
+        return f"(None if {value} is None else {{k: _layout_{n}(x) for k, x in {value}.items()}})"
+    return f"(None if {value} is None else _layout_{n}({value}))"
+
+
+@functools.cache
+def _codec(cls: type) -> tuple:
+    """(to_json, json_layout) of a part class, compiled once from its fields and `_READ`: one dict display
+    per class, each field written by the expression its type needs (the same values as `_dump` and
+    `from_json` give, without looking up each field's reader per value)."""
+    fields = dataclasses.fields(cls)
+    names, known, required, _readers = _layout(cls)
+    scope: dict = {"_SCALARS": _SCALARS, "_dump": _dump, "_Part": _Part, "Verdict": Verdict, "cls": cls,
+                   "known": known, "required": required}
+    dump, read = [], []
+    for f in fields:
+        how = cls._READ.get(f.name)
+        dump.append(f"{f.name!r}: {_expression(how, f'self.{f.name}', scope, f.name, True)}")
+        if f.default is dataclasses.MISSING:
+            got = f"data[{f.name!r}]"
+        else:
+            scope[f"_default_{f.name}"] = f.default
+            got = f"data.get({f.name!r}, _default_{f.name})"
+        read.append(f"{f.name!r}: {_expression(how, got, scope, f.name, False)}")
+    # the keys checked as from_json checks them (its error where they differ): all of them where every
+    # field is required, else none unknown and every required one there
+    check = "data.keys() == known" if known == required else "known.issuperset(data) and required.issubset(data)"
+    source = ("def to_json(self):\n    return {" + ", ".join(dump) + "}\n"
+              "def json_layout(data):\n"
+              f"    if not ({check}):\n"
+              "        cls.from_json(data)\n"
+              "    return {" + ", ".join(read) + "}\n")
+    exec(compile(source, f"<{cls.__name__} JSON codec>", "exec"), scope)   # noqa: S102  (source built above)
+    return scope["to_json"], scope["json_layout"]
 
 
 @functools.cache
@@ -217,6 +283,16 @@ class ModelResult(_Part):
         values = {k: _tuple(data[k]) for k in data}
         return cls(**values, detail_keys=details)
 
+    @classmethod
+    def json_layout(cls, data: dict) -> dict:
+        if "detail_keys" in data or not _layout(cls)[1].issuperset(data) or not all(n in data for n in cls._COMMON):
+            cls.from_json(data)             # its error
+        out = {n: _tuple(data[n]) for n in cls._COMMON}
+        for k, v in data.items():
+            if k not in out:
+                out[k] = _dump(v)
+        return out
+
 
 @_frozen
 class ModelPeak(_Part):
@@ -327,6 +403,13 @@ class Curves(_Part):
     def to_json(self) -> dict:
         out = _Part.to_json(self)
         if self.bounding_model is None:
+            del out["bounding"], out["bounding_model"]
+        return out
+
+    @classmethod
+    def json_layout(cls, data: dict) -> dict:
+        out = _Part.json_layout.__func__(cls, data)
+        if out["bounding_model"] is None:
             del out["bounding"], out["bounding_model"]
         return out
 
@@ -442,6 +525,15 @@ class Result(_Part):
         """The result as the documented JSON object (the output of `check --json`)."""
         out = _Part.to_json(self)
         if self.row is None:
+            del out["row"]
+        return out
+
+    @classmethod
+    def json_layout(cls, data: dict) -> dict:
+        """:meth:`to_json` of ``Result.from_json(data)``, without building the result (the batch's JSON
+        lines of the rows screened as columns)."""
+        out = _Part.json_layout.__func__(cls, data)
+        if out["row"] is None:
             del out["row"]
         return out
 

@@ -24,7 +24,7 @@ import numpy as np
 
 from screening.constants import P_STANDARD_ATMOSPHERE
 from screening.errors import InputError
-from screening.inputs.case import ATMOSPHERIC_PRESSURE_RANGE_PA, DEFAULT_REQUIRED_MARGIN, Case
+from screening.inputs.case import ATMOSPHERIC_PRESSURE_RANGE_PA, DEFAULT_REQUIRED_MARGIN, Case, Exposure, Site
 from screening.inputs.gas_spec import parse_gas
 from screening.inputs.inventory import Inventory, Unreadable, cell_value, default_text, row_case
 from screening.physics.gases import Mixture
@@ -71,15 +71,75 @@ class PlainRows:
     required_margin_is_default: np.ndarray
     display_units: list[dict]
     fill_mass_kg: np.ndarray
+    #: [m] the site's elevation where the row gives it (NaN otherwise)
+    elevation_m: np.ndarray | None = None
+    #: per key, the text the case reader reads for it per plain row (cell or default; _MISSING where neither)
+    entered: dict[str, list] | None = None
+    #: (header, cell text as the case reader reads it, per plain row) of every column of a case key
+    cell_texts: list[tuple[str, list[str]]] | None = None
 
     def __len__(self) -> int:
         return len(self.ids)
 
     def case(self, j: int) -> Case:
-        """The j-th plain row read by the case reader (the full Case, for a report or a JSON result);
-        read anew on each call, so that a large batch does not keep a Case per row."""
+        """The j-th plain row's full Case (for a report or a JSON result), built from the values the columns
+        read: the same Case, field for field and input record for input record, as the case reader gives
+        (:meth:`read_case`; tests/test_columns.py checks it). Built anew on each call, so that a large batch
+        does not keep a Case per row."""
+        if self.entered is None:
+            return self.read_case(j)
+        si = self._si_values()
+        texts = {k: v[j] for k, v in self.entered.items() if v[j] is not _MISSING}
+        inputs = tuple({"key": key, "entered": t if type(t := texts[key]) is str else default_text(None, t),
+                        "si_value": si[key][j], "si_unit": unit} for key, unit in _RECORDS if key in texts)
+        lines = [f"{header} = {values[j]!r}" for header, values in self.cell_texts if values[j]]
+
+        def opt(key: str) -> float | None:
+            v = si[key][j]
+            return None if math.isnan(v) else v
+        ambient, hot = opt("exposure.ambient_max"), opt("exposure.gas_temperature")
+        return Case(
+            id=self.ids[j], description=texts.get("description"), source=self.inv.source,
+            text="\n".join(lines) + "\n",
+            site=Site(texts.get("site.name"), si["site.atmospheric_pressure"][j], opt("site.elevation")),
+            gas=self.gases[j], water_capacity_m3=si["vessel.water_capacity"][j],
+            rated_pressure_pa=si["vessel.rated_pressure"][j], rated_pressure_kind=texts.get("vessel.rated_pressure_kind"),
+            relief_set_pressure_pa=opt("vessel.relief_set_pressure"),
+            max_filling_ratio_kg_m3=opt("vessel.max_filling_ratio"), fill_pressure_pa=opt("fill.pressure"),
+            fill_temperature_k=si["fill.temperature"][j], fill_mass_kg=opt("fill.mass"),
+            ambient_max_k=ambient, gas_temperature_k=hot, required_margin=si["criteria.required_margin"][j],
+            required_margin_is_default=bool(self.required_margin_is_default[j]),
+            inputs=inputs, display_units=dict(self.display_units[j]),
+            scenarios=(Exposure("exposure", ambient, hot, key="exposure"),))
+
+    def _si_values(self) -> dict[str, list[float]]:
+        """Each key's SI values per plain row as Python floats (NaN where absent), listed once."""
+        got = self.__dict__.get("_si")
+        if got is None:
+            got = self.__dict__["_si"] = {
+                "site.atmospheric_pressure": self.atmospheric_pa, "site.elevation": self.elevation_m,
+                "vessel.water_capacity": self.water_capacity_m3, "vessel.rated_pressure": self.rated_pa,
+                "vessel.relief_set_pressure": self.relief_pa, "vessel.max_filling_ratio": self.max_filling_ratio_kg_m3,
+                "fill.pressure": self.fill_pressure_pa, "fill.temperature": self.fill_temperature_k,
+                "fill.mass": self.fill_mass_kg, "exposure.ambient_max": self.ambient_max_k,
+                "exposure.gas_temperature": self.gas_temperature_k, "criteria.required_margin": self.required_margin}
+            for k, a in got.items():
+                got[k] = a.tolist()
+        return got
+
+    def read_case(self, j: int) -> Case:
+        """The j-th plain row read again by the case reader, the authoritative one."""
         n, cells = self.inv.rows[int(self.index[j])]
         return row_case(self.inv, n, cells, self.defaults)
+
+
+#: The input records of a plain row's Case, in the order the case reader makes them (key, SI unit).
+_RECORDS = (("site.atmospheric_pressure", "Pa (absolute)"), ("site.elevation", "m"),
+            ("vessel.water_capacity", "m3"), ("vessel.rated_pressure", "Pa (absolute)"),
+            ("vessel.relief_set_pressure", "Pa (absolute)"), ("vessel.max_filling_ratio", "kg/m3"),
+            ("fill.pressure", "Pa (absolute)"), ("fill.temperature", "K"), ("fill.mass", "kg"),
+            ("exposure.ambient_max", "K"), ("exposure.gas_temperature", "K"),
+            ("criteria.required_margin", "(fraction)"))
 
 
 def _flatten_defaults(defaults: dict | None) -> dict[str, object] | None:
@@ -135,7 +195,8 @@ def _parser(key: str):
         return atmospheric
     if key == "site.elevation":
         def elevation(value):
-            return standard_atmosphere_pressure(parse(value, "length").si()), None
+            h = parse(value, "length").si()
+            return standard_atmosphere_pressure(h), None, h
         return elevation
     kind = {"vessel.water_capacity": "volume", "vessel.max_filling_ratio": "density", "fill.mass": "mass",
             "fill.temperature": "temperature", "exposure.ambient_max": "temperature",
@@ -230,7 +291,7 @@ class _Cache:
 def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     """The plain rows of ``inv.rows``, as arrays."""
     empty = {k: [] for k in ("index", "ids", "gases", "atm", "cap", "rated", "relief", "ratio", "p", "t", "amb",
-                             "gas_t", "margin", "margin_default", "units", "mass")}
+                             "gas_t", "margin", "margin_default", "units", "mass", "elev")}
     flat = _flatten_defaults(defaults)
     if flat is None:
         return _finish(inv, defaults, empty)
@@ -238,6 +299,7 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     ok = np.ones(n_rows, dtype=bool)
     # the text of every key per row: the column's cell (with the header's unit), else the default, else missing
     texts: dict[str, list] = {}
+    cell_texts: list[tuple[str, list[str]]] = []     # every case key's column, as the row's case text shows it
     for j, col in enumerate(inv.columns):
         if col.key is None:              # a column of the user's own: carried through, not read
             continue
@@ -249,6 +311,7 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
             if v is None:
                 v = seen[c] = cell_value(col, c)
             values.append(v)
+        cell_texts.append((col.header, values))
         if col.key not in PLAIN_KEYS:
             ok &= np.array([not v for v in values], dtype=bool)
             continue
@@ -296,6 +359,7 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     atm_read = parsed("site.atmospheric_pressure", column("site.atmospheric_pressure"))
     elev_read = parsed("site.elevation", column("site.elevation"))
     atm = np.full(n_rows, P_STANDARD_ATMOSPHERE)
+    elev = np.full(n_rows, np.nan)
     atm_label: list = [None] * n_rows
     elev_given = column("site.elevation")
     for i, (a, e) in enumerate(zip(atm_read, elev_read)):
@@ -304,7 +368,7 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
                 ok[i] = False                       # both given
             atm[i], atm_label[i] = a
         elif e is not None:
-            atm[i] = e[0]
+            atm[i], elev[i] = e[0], e[2]
 
     def pressures(key: str, required: bool = False) -> tuple[np.ndarray, list]:
         raw = texts.get(key)
@@ -363,13 +427,17 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     out["index"] = sel
     for name, arr in (("atm", atm), ("cap", cap), ("rated", rated), ("relief", relief), ("ratio", ratio),
                       ("p", p_fill), ("t", t_fill), ("amb", amb), ("gas_t", hot), ("margin", margin),
-                      ("margin_default", margin_default), ("mass", mass)):
+                      ("margin_default", margin_default), ("mass", mass), ("elev", elev)):
         out[name] = arr[sel]
-    return _finish(inv, defaults, out)
+    rows = sel.tolist()
+    entered = {k: [v[i] for i in rows] for k, v in texts.items()}
+    return _finish(inv, defaults, out, entered, [(h, [v[i] for i in rows]) for h, v in cell_texts])
 
 
-def _finish(inv: Inventory, defaults: dict | None, out: dict) -> PlainRows:
+def _finish(inv: Inventory, defaults: dict | None, out: dict, entered: dict | None = None,
+            cell_texts: list | None = None) -> PlainRows:
     f = lambda k: np.array(out[k], dtype=float)  # noqa: E731
     return PlainRows(inv, defaults, np.array(out["index"], dtype=np.int64), out["ids"], out["gases"], f("atm"),
                      f("cap"), f("rated"), f("relief"), f("ratio"), f("p"), f("t"), f("amb"), f("gas_t"),
-                     f("margin"), np.array(out["margin_default"], dtype=bool), out["units"], f("mass"))
+                     f("margin"), np.array(out["margin_default"], dtype=bool), out["units"], f("mass"), f("elev"),
+                     entered, cell_texts)

@@ -19,6 +19,8 @@ import json
 import math
 import re
 
+import orjson
+
 from screening.cautions import ASSUMPTIONS, CAUTION
 from screening.constants import P_STANDARD_ATMOSPHERE
 from screening.units import format_pressure, format_temperature, pressure_in, temperature_in
@@ -169,11 +171,26 @@ class XlsxTable:
 
 
 def json_line(result: dict) -> str:
-    """One JSON Lines record: the full result (non-finite numbers as null)."""
+    """One JSON Lines record: the full result, on one line without spaces (non-finite numbers as null)."""
+    return json_bytes(result).decode()
+
+
+def json_bytes(result: dict) -> bytes:
+    """:func:`json_line` as UTF-8 bytes (the batch's workers send these, and its outputs write them as they are).
+
+    orjson writes it (a tenth of the time of the standard library's json, which matters at thousands of
+    rows of several kilobytes); it writes a non-finite number as null as well. A value orjson does not
+    take (a numpy number, a key that is not a text, an integer past 64 bits) goes to the standard
+    library's writer, which gives the same content."""
     try:
-        return json.dumps(result, ensure_ascii=False, allow_nan=False)
+        return orjson.dumps(result)
+    except TypeError:
+        pass
+    try:
+        text = json.dumps(result, ensure_ascii=False, allow_nan=False, separators=(",", ":"))
     except ValueError:          # a non-finite number somewhere: written as null
-        return json.dumps(_json_safe(result), ensure_ascii=False, allow_nan=False)
+        text = json.dumps(_json_safe(result), ensure_ascii=False, allow_nan=False, separators=(",", ":"))
+    return text.encode()
 
 
 def _json_safe(x):

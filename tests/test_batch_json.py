@@ -1,0 +1,235 @@
+"""The batch's JSON is built without the detour through the Result where a row ran on the columns, and it is
+the same JSON, key for key and in the same order, as the Result gives:
+
+* a plain row's Case is built from the values the column reader parsed: the same Case, field for field and
+  input record for input record, as the case reader gives;
+* ``Result.json_layout(d)`` is ``Result.from_json(d).to_json()`` (compiled per class, as ``to_json`` is);
+* every JSON line of ``screen_chunk`` is the line built from the row's full Result;
+* ``json_line`` (orjson) parses to what the standard library's json writes.
+
+Every kind of row of the demo inventory and of the benchmark kinds (benchmarks/kinds.py) is covered."""
+
+import dataclasses
+import json
+import math
+import random
+import sys
+from dataclasses import replace
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from screening import batch
+from screening.engine import screen_case, with_plot_data
+from screening.inputs.case import load_case
+from screening.inputs.columns import read_plain
+from screening.inputs.inventory import Inventory, read_inventory
+from screening.outputs.tables import json_bytes, json_line
+from screening.result import Result, _Part
+from screening.verdicts import Verdict
+
+ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT / "benchmarks"))
+
+import kinds as K  # noqa: E402  (the benchmark's row makers by kind)
+
+
+def strict(a, b, path="$"):
+    """a == b, and of the same types, dict keys in the same order, all the way down."""
+    assert type(a) is type(b), f"{path}: {type(a).__name__} != {type(b).__name__} ({a!r} / {b!r})"
+    if dataclasses.is_dataclass(a):
+        for f in dataclasses.fields(a):
+            strict(getattr(a, f.name), getattr(b, f.name), f"{path}.{f.name}")
+    elif isinstance(a, dict):
+        assert list(a) == list(b), f"{path}: keys {list(a)} != {list(b)}"
+        for k in a:
+            strict(a[k], b[k], f"{path}.{k}")
+    elif isinstance(a, (list, tuple)):
+        assert len(a) == len(b), f"{path}: {len(a)} != {len(b)} items"
+        for i, (x, y) in enumerate(zip(a, b)):
+            strict(x, y, f"{path}[{i}]")
+    elif isinstance(a, float) and math.isnan(a):
+        assert math.isnan(b), path
+    else:
+        assert a == b, f"{path}: {a!r} != {b!r}"
+
+
+@pytest.fixture(scope="module")
+def kinds_inventory(tmp_path_factory):
+    """Three rows of every benchmark kind (and of the kind with tolerances and scenarios, from its defaults file)."""
+    tmp = tmp_path_factory.mktemp("kinds")
+    rnd = random.Random(11)
+    plain, defaulted = [K.HEADER], [K.HEADER]
+    for kind in K.kinds():
+        for _ in range(3):
+            line, _fill = kind[3](rnd, len(plain) + len(defaulted))
+            (defaulted if len(kind) > 5 else plain).append(line)
+    (tmp / "kinds.csv").write_text("\n".join(plain) + "\n", encoding="utf-8")
+    (tmp / "options.csv").write_text("\n".join(defaulted) + "\n", encoding="utf-8")
+    (tmp / "options.toml").write_text(next(k[5] for k in K.kinds() if len(k) > 5), encoding="utf-8")
+    return tmp
+
+
+def _inventories(tmp: Path):
+    """(inventory, defaults) of the demo inventory, the benchmark kinds, and the kind with a defaults file."""
+    from screening.inputs.inventory import load_defaults
+
+    out = [(read_inventory(ROOT / "cases" / "inventory.csv"), None), (read_inventory(tmp / "kinds.csv"), None)]
+    inv = read_inventory(tmp / "options.csv")
+    out.append((inv, load_defaults(str(tmp / "options.toml"), inv.columns)))
+    return out
+
+
+def test_a_plain_rows_case_built_from_its_columns_is_the_case_readers(kinds_inventory):
+    seen = 0
+    for inv, defaults in _inventories(kinds_inventory):
+        plain = read_plain(inv, defaults)
+        for j in range(len(plain)):
+            strict(plain.case(j), plain.read_case(j))
+            seen += 1
+    assert seen > 150
+
+
+def test_defaults_sites_and_units_reach_the_case_as_the_case_reader_reads_them(tmp_path):
+    path = tmp_path / "inv.csv"
+    path.write_text(
+        "id,description,gas,water_capacity,rated_pressure,rated_pressure_kind,relief_set_pressure,"
+        "max_filling_ratio,fill_pressure,fill_mass,fill_temperature,gas_temperature,site,elevation,"
+        "atmospheric_pressure,required_margin\n"
+        "A,spare,nitrogen,50 L,300 bar(g),test,330 bar(g),,200 bar(g),,15 degC,65 degC,North yard,240 m,,5 %\n"
+        "B,,propane,26 L,25 bar(g),,,0.42 kg/L,,11 kg,59 degF,,,,98.5 kPa(a),\n"
+        "C,,argon,1.7 ft3,3000 psig,,,,2900 psig,,288.15 K,,,,,\n"
+        "D,,R-134a,10 L,2.5 MPa(g),,,,,4500 g,20 degC,,,,,\n", encoding="utf-8")
+    inv = read_inventory(path)
+    for defaults, rows in ((None, 1), ({"exposure": {"ambient_max": "45 degC"}}, 4),
+                           ({"exposure": {"ambient_max": "45 degC"}, "criteria": {"required_margin": 0.05},
+                             "pressure_basis": "gauge"}, 4)):
+        plain = read_plain(inv, defaults)
+        assert len(plain) == rows
+        for j in range(len(plain)):
+            strict(plain.case(j), plain.read_case(j))
+
+
+def _batch_run(inv, defaults):
+    return batch.BatchRun(inv, defaults)
+
+
+def test_a_rows_json_built_from_the_columns_is_its_results_json(kinds_inventory):
+    on_columns = 0
+    for inv, defaults in _inventories(kinds_inventory):
+        run = _batch_run(inv, defaults)
+        ps = run._plain
+        for j in range(len(ps.plain)):
+            full = ps.full(j)
+            got = ps.full_json(j)
+            if isinstance(full, Result):
+                strict(got, full.to_json())
+                on_columns += j in ps._where
+            else:
+                assert got is None
+    assert on_columns > 100
+
+
+def _expected_line(run, inv, i, r, headers):
+    """A row's JSON line as the Result gives it: its full result with the row's warnings, less the curves and the
+    cautions, with its row and its input cells."""
+    f = run.full(i)
+    if isinstance(f, Result):
+        f = replace(f, warnings=batch._warnings(r["warnings"]))
+    rec = {k: v for k, v in batch._json(f).items() if k not in ("curves", "cautions")}
+    rec["row"] = r["row"]
+    cells = inv.rows[i][1]
+    rec["input"] = {h: str(cells[j]) if j < len(cells) else "" for j, h in enumerate(headers)}
+    return rec
+
+
+def test_every_json_line_of_a_chunk_is_the_line_of_its_full_result(kinds_inventory):
+    for inv, defaults in _inventories(kinds_inventory):
+        first = inv.rows[0][0]
+        dups = {inv.rows[-1][0]: first}            # a duplicate id's warning reaches the line too
+        got = batch.screen_chunk((inv, defaults, dups, {"json": True, "full": None}))
+        run = _batch_run(inv, defaults)
+        headers = [c.header for c in inv.columns]
+        for i, (r, line, _) in enumerate(got):
+            strict(json.loads(line), json.loads(json.dumps(_expected_line(run, inv, i, r, headers))))
+        assert any(w["code"] == "duplicate-id" for w in json.loads(got[-1][1])["warnings"])
+        # with the PDF's full results asked for as well, the lines are the same
+        both = batch.screen_chunk((inv, defaults, dups, {"json": True, "full": "all"}))
+        assert [line for _, line, _ in both] == [line for _, line, _ in got]
+
+
+def _dump_field_by_field(value):
+    """The JSON of a part as the field-by-field walk writes it (the reference for the compiled codec)."""
+    if isinstance(value, _Part) and type(value).to_json is _Part.to_json:
+        return {f.name: _dump_field_by_field(getattr(value, f.name)) for f in dataclasses.fields(value)}
+    if isinstance(value, _Part):                # a part with its own to_json: its keys, each walked
+        own = value.to_json()
+        return {k: _dump_field_by_field(getattr(value, k)) for k in own}
+    if isinstance(value, Verdict):
+        return value.value
+    if isinstance(value, (tuple, list)):
+        return [_dump_field_by_field(v) for v in value]
+    if isinstance(value, dict):
+        return {k: _dump_field_by_field(v) for k, v in value.items()}
+    return value
+
+
+@pytest.mark.parametrize("name", sorted(p.name for p in (ROOT / "cases").glob("*.toml")))
+def test_the_compiled_codec_writes_and_reads_every_part_of_a_full_result(name):
+    case = load_case(ROOT / "cases" / name)
+    r = screen_case(case)
+    try:
+        r = with_plot_data(case, r)             # the curves and the phase diagram as well
+    except (ValueError, RuntimeError):
+        pass
+    out = r.to_json()
+    strict(out, _dump_field_by_field(r))
+    strict(Result.json_layout(out), out)
+    strict(Result.from_json(out).to_json(), out)
+    strict(replace(r, row=7).to_json(), {**out, "row": 7})
+
+
+def test_json_layout_refuses_what_from_json_refuses():
+    r = screen_case(load_case(ROOT / "cases" / "kq-n2-014.toml"))
+    data = r.to_json()
+    for broken in ({**data, "colour": "red"}, {k: v for k, v in data.items() if k != "verdict"},
+                   {**data, "fill": {**data["fill"], "colour": "red"}}):
+        with pytest.raises(KeyError):
+            Result.from_json(broken)
+        with pytest.raises(KeyError):
+            Result.json_layout(broken)
+
+
+def test_json_line_parses_to_what_the_standard_library_writes():
+    record = {"id": "é – ² \u2028", "x": 1e-05, "big": 1.7976931348623157e308, "tiny": 5e-324, "neg": -0.0,
+              "nan": math.nan, "inf": [math.inf, -math.inf], "n": 12, "t": (1, 2.5), "none": None, "ok": True}
+    line = json_line(record)
+    assert "\n" not in line and "NaN" not in line and "Infinity" not in line
+    assert json.loads(line) == {**record, "nan": None, "inf": [None, None], "t": [1, 2.5]}
+    # what orjson does not take goes to the standard library's writer: the same content
+    assert json.loads(json_line({"v": np.float64(0.1), 3: "three"})) == {"v": 0.1, "3": "three"}
+    assert json.loads(json_line({"v": np.float64("nan")})) == {"v": None}
+    assert json.loads(json_line({"big": 2**70})) == {"big": 2**70}
+    assert json_bytes(record) == line.encode()
+
+
+def test_a_chunk_run_row_by_row_after_a_failure_still_writes_each_rows_json(monkeypatch, tmp_path):
+    path = tmp_path / "inv.csv"
+    path.write_text("id,gas,water_capacity,rated_pressure,fill_pressure,fill_temperature,ambient_max\n"
+                    "A,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC\n"
+                    "B,argon,50 L,300 bar(g),200 bar(g),15 degC,45 degC\n", encoding="utf-8")
+    inv = read_inventory(path)
+    real = batch.BatchRun
+
+    def fails_on_two_rows(one: Inventory, defaults=None, *a, **kw):
+        if len(one.rows) > 1:
+            raise ArithmeticError("the chunk fails")
+        return real(one, defaults, *a, **kw)
+    monkeypatch.setattr(batch, "BatchRun", fails_on_two_rows)
+    got = batch.screen_chunk((inv, None, {}, {"json": True, "full": None}))
+    lines = [json.loads(line) for _, line, _ in got]
+    assert [x["id"] for x in lines] == ["A", "B"] and all(x["verdict"] == "within" for x in lines)
+    strict(lines[0], json.loads(json.dumps(_expected_line(real(Inventory(
+        inv.source, inv.columns, inv.rows[:1], inv.delimiter, inv.decimal, inv.sheet)), inv, 0, got[0][0],
+        [c.header for c in inv.columns]))))
