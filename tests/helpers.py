@@ -17,6 +17,21 @@ def nitrogen_case(case_id: str) -> str:
             '[exposure]\nambient_max = "45 degC"\n')
 
 
+#: A case filled by pressure with a stated gas temperature, 50 L (fields: name, gas, rated and fill [bar(g)], t_fill
+#: and t_gas [degC]).
+GAS_TEMPERATURE_CASE = '''id = "{name}"
+[vessel]
+water_capacity = "50 L"
+rated_pressure = "{rated} bar(g)"
+[fill]
+gas = "{gas}"
+pressure = "{fill} bar(g)"
+temperature = "{t_fill} degC"
+[exposure]
+gas_temperature = "{t_gas} degC"
+'''
+
+
 def cli(capsys, *args: str) -> tuple[int, str, str]:
     """Run `screening ARGS` in this process: (exit code, stdout, stderr)."""
     with pytest.raises(SystemExit) as exc:

@@ -8,22 +8,11 @@ import math
 import CoolProp.CoolProp as CP
 import numpy as np
 import pytest
+from helpers import GAS_TEMPERATURE_CASE as CASE
 
 from screening import screen as S
 from screening.inputs.case import parse_case_text
 from screening.physics.eos.generalized import lee_kesler_pressure, pseudocritical
-
-CASE = '''id = "{name}"
-[vessel]
-water_capacity = "50 L"
-rated_pressure = "{rated} bar(g)"
-[fill]
-gas = "{gas}"
-pressure = "{fill} bar(g)"
-temperature = "{t_fill} degC"
-[exposure]
-gas_temperature = "{t_gas} degC"
-'''
 
 AR_CO2 = ("argon 82% + carbon dioxide 18%", "HEOS::Argon[0.82]&CarbonDioxide[0.18]")
 AIR = ("nitrogen 79% + oxygen 21%", "HEOS::Nitrogen[0.79]&Oxygen[0.21]")

@@ -11,23 +11,12 @@ import random
 
 import CoolProp.CoolProp as CP
 import pytest
+from helpers import GAS_TEMPERATURE_CASE as CASE
 
 from screening.engine import screen_text
 from screening.physics import mixtures as mix
 from screening.physics.eos import reference as ref
 from screening.physics.eos.reference import liquefied_blend, reference_fluid
-
-CASE = '''id = "{name}"
-[vessel]
-water_capacity = "50 L"
-rated_pressure = "{rated} bar(g)"
-[fill]
-gas = "{gas}"
-pressure = "{fill} bar(g)"
-temperature = "{t_fill} degC"
-[exposure]
-gas_temperature = "{t_gas} degC"
-'''
 
 AR_CO2 = "argon 82% + carbon dioxide 18%"
 AIR = "nitrogen 79% + oxygen 21%"
