@@ -1218,26 +1218,38 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
               "liquid_full_temperature_k": _opt(cols["liquid_full"][k]), "dry_out_temperature_k": _opt(cols["dry"][k]),
               "phase_boundary_pressure_pa": _opt(cols["crossing"][k]),
               "dp_dt_after_liquid_full_pa_k": _opt(cols["dpdt_liquid_full"][k])}
+    mass = (rho_mass if by_pressure else case.fill_mass_kg / case.water_capacity_m3) * case.water_capacity_m3
+    return _layout(case, cols, k, v, sun, (rho_mass, rho_molar, mass, phase, None), models, peak, gov_name,
+                   governing_reason, 1.0 - (peak - atm) / (case.rated_pressure_pa - atm), limits)
+
+
+def _layout(case: Case, cols: dict, k: int, v: dict, sun: SunRow | None, fill: tuple, models: dict,
+            peak: float | None, governing_model: str | None, governing_reason: str, nominal_margin: float | None,
+            limits: dict) -> dict:
+    """Row k's one-scenario result laid out as screen.screen_states lays it out (both column kinds): `fill` is
+    (density [kg/m3], molar density [mol/m3], mass [kg], phase, vapour pressure at fill [Pa]), each None where
+    not established."""
+    rho_mass, rho_molar, mass, phase, vapour_pressure = fill
     result = {
         **_screen.case_parts(case),
         "verdict": v["verdict"], "reasons": v["reasons"], "warnings": v["warnings"],
-        "fill": {"pressure_pa": case.fill_pressure_pa, "temperature_k": t_fill, "temperature_given": True,
-                 "density_kg_m3": rho_mass, "molar_density_mol_m3": rho_molar,
-                 "mass_kg": (rho_mass if by_pressure else case.fill_mass_kg / case.water_capacity_m3)
-                 * case.water_capacity_m3,
-                 "phase": phase, "filling_ratio_kg_per_l": rho_mass / 1000.0 if rho_mass else None,
-                 "vapour_pressure_pa": None, "given": "pressure" if by_pressure else "mass"},
-        "worst_case_temperature_k": t_peak,
+        "fill": {"pressure_pa": case.fill_pressure_pa, "temperature_k": float(case.fill_temperature_k),
+                 "temperature_given": True, "density_kg_m3": rho_mass, "molar_density_mol_m3": rho_molar,
+                 "mass_kg": mass, "phase": phase,
+                 "filling_ratio_kg_per_l": rho_mass / 1000.0 if rho_mass else None,
+                 "vapour_pressure_pa": vapour_pressure,
+                 "given": "pressure" if case.fill_pressure_pa is not None else "mass"},
+        "worst_case_temperature_k": float(cols["t_peak"][k]),
         "worst_case_basis": (sun.basis if sun is not None else _screen.FILL_STATE_BASIS if cols["fill_governs"][k] else
                              "gas temperature stated in the case" if cols["stated"][k] else "ambient maximum"),
         "models": models,
         "peak_pressure_pa": peak, "nominal_peak_pressure_pa": peak, "tolerance": None,
-        "governing_model": gov_name, "governing_reason": governing_reason,
+        "governing_model": governing_model, "governing_reason": governing_reason,
         "rated_pressure_pa": case.rated_pressure_pa, "relief_set_pressure_pa": case.relief_set_pressure_pa,
         "required_margin_fraction": case.required_margin,
         "required_margin_is_default": case.required_margin_is_default,
         "margin_fraction": v["margin_fraction"], "relief_margin_fraction": v["relief_margin_fraction"],
-        "nominal_margin_fraction": 1.0 - (peak - atm) / (case.rated_pressure_pa - atm),
+        "nominal_margin_fraction": nominal_margin,
         "limits": limits, "curves": None, "phase_diagram": None,
     }
     return _one_scenario(case, result, sun)
@@ -2601,24 +2613,5 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
         mass = rho_fill_mass * case.water_capacity_m3
         nominal_margin = 1.0 - (peak - atm) / (case.rated_pressure_pa - atm)
     vap = _opt(cols["vapour_pressure"][k]) if by_pressure else None
-    result = {
-        **_screen.case_parts(case),
-        "verdict": v["verdict"], "reasons": v["reasons"], "warnings": v["warnings"],
-        "fill": {"pressure_pa": case.fill_pressure_pa, "temperature_k": t_fill, "temperature_given": True,
-                 "density_kg_m3": rho_mass, "molar_density_mol_m3": fill_rho_molar, "mass_kg": mass,
-                 "phase": phase, "filling_ratio_kg_per_l": rho_mass / 1000.0 if rho_mass else None,
-                 "vapour_pressure_pa": vap, "given": "pressure" if by_pressure else "mass"},
-        "worst_case_temperature_k": t_peak,
-        "worst_case_basis": (sun.basis if sun is not None else _screen.FILL_STATE_BASIS if cols["fill_governs"][k] else
-                             "gas temperature stated in the case" if cols["stated"][k] else "ambient maximum"),
-        "models": models,
-        "peak_pressure_pa": peak, "nominal_peak_pressure_pa": peak, "tolerance": None,
-        "governing_model": v["governing_model"], "governing_reason": governing_reason,
-        "rated_pressure_pa": case.rated_pressure_pa, "relief_set_pressure_pa": case.relief_set_pressure_pa,
-        "required_margin_fraction": case.required_margin,
-        "required_margin_is_default": case.required_margin_is_default,
-        "margin_fraction": v["margin_fraction"], "relief_margin_fraction": v["relief_margin_fraction"],
-        "nominal_margin_fraction": nominal_margin,
-        "limits": limits, "curves": None, "phase_diagram": None,
-    }
-    return _one_scenario(case, result, sun)
+    return _layout(case, cols, k, v, sun, (rho_mass, fill_rho_molar, mass, phase, vap), models, peak,
+                   v["governing_model"], governing_reason, nominal_margin, limits)
