@@ -93,8 +93,15 @@ def _fill_nitrogen(pg):
 
 
 def _plot_loaded(pg) -> bool:
-    img = pg.locator("figure.plot img").first
-    return bool(img.evaluate("i => i.complete && i.naturalWidth > 0"))
+    """Whether the answer's plot loaded; the image is a second request, so wait for it (up to 15 s)."""
+    from playwright.sync_api import TimeoutError as PlaywrightTimeout
+
+    try:
+        pg.wait_for_function("() => { const i = document.querySelector('figure.plot img'); return i && i.complete; }",
+                             timeout=15000)
+    except PlaywrightTimeout:
+        return False
+    return bool(pg.locator("figure.plot img").first.evaluate("i => i.complete && i.naturalWidth > 0"))
 
 
 def _focused_after_swap(pg, wanted: str) -> str:
