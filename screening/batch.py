@@ -1,10 +1,13 @@
 """`screening batch INVENTORY`: screen every row of an inventory, lose none, in bounded memory.
 
-The batch streams: it reads a chunk of rows (:data:`CHUNK_ROWS`), screens it (in worker processes of a
-``concurrent.futures`` pool where there are several cores and enough rows), writes its lines to every
-output and drops it. Only the counts, the worst rows (for the terminal) and, for a PDF, each row's
-short result are kept. Chunks are fixed by the input alone, and every row is screened on its own, so
-the outputs are the same whatever the number of workers.
+The batch streams: it reads a window of rows (:data:`WINDOW_CHUNKS` chunks), sorts it by gas (a site's
+register lists its gases interleaved, and the engine screens the rows of one gas in a chunk as one table, so
+rows of one gas side by side make a few large tables instead of many small ones), screens it in chunks of
+:data:`CHUNK_ROWS` (in worker processes of a ``concurrent.futures`` pool where there are several cores and
+enough rows), puts the rows back in input order, writes their lines to every output and drops them. Only the
+counts, the worst rows (for the terminal) and, for a PDF, each row's short result are kept. Windows and
+chunks are fixed by the input alone, and every row is screened on its own, so the outputs are the same
+whatever the number of workers.
 
 Every input row appears in every output, in input order (or, with ``--sort severity``, worst first),
 with its spreadsheet row number (header = row 1). A row that cannot be read is an ``input-error`` row
@@ -15,12 +18,15 @@ row is ``within``; 2 only if the file itself cannot be read; else 1.
 from __future__ import annotations
 
 import heapq
+import itertools
 import json
 import os
 import pickle
 import sys
 import tempfile
+from collections import deque
 from dataclasses import replace
+from typing import Iterator
 
 from screening.errors import InputError
 from screening.inputs.inventory import Inventory, load_defaults, open_inventory, read_inventory, row_case
@@ -40,8 +46,13 @@ from screening.verdicts import EXIT_INPUT, EXIT_NOT_WITHIN, EXIT_WITHIN, Verdict
 
 #: Keys of a result left out of the JSON outputs (shared or bulky parts).
 _DROP = ("curves", "cautions")
-#: Rows screened as one piece of work (the unit of streaming and of the worker pool).
+#: Rows screened as one piece of work (the unit of the worker pool).
 CHUNK_ROWS = 5000
+#: Chunks read and sorted by gas together (the unit of streaming): the rows held at once are a window's.
+WINDOW_CHUNKS = 4
+#: A mixture's row counted as this many rows of a pure gas when a window is cut into chunks (measured with
+#: benchmarks/kinds.py and benchmarks/mix.py: a mixture's row takes some 4-40 ms, a pure gas's 0.06-0.15 ms).
+MIXTURE_WORK = 100
 #: Worst rows kept for the terminal table (all rows where there are at most this many).
 TERMINAL_ROWS = 200
 #: Rows sorted in memory before they are spilled to a temporary file (--sort severity).
@@ -482,14 +493,71 @@ def _progress(quiet: bool):
     return tqdm(desc="screening", unit=" rows", file=sys.stderr, leave=False, unit_scale=True)
 
 
-def _jobs(reg, defaults, want, ids: _Ids, kept: list):
-    """The chunks of the register as jobs for screen_chunk; each chunk's rows also go to `kept` (the
-    parent writes the input cells beside the results)."""
+def _gas_order(inv: Inventory) -> list[int]:
+    """The positions of a window's rows sorted by what they hold (the gas as written, then filled by mass or not),
+    in input order within each: the engine's tables are per gas and kind of fill."""
+    cols = {c.key: i for i, c in enumerate(inv.columns)}
+    gas, mass = cols.get("fill.gas"), cols.get("fill.mass")
+
+    def cell(cells: list, j: int | None) -> str:
+        return cells[j].strip() if j is not None and j < len(cells) else ""
+
+    return sorted(range(len(inv.rows)), key=lambda i: (cell(inv.rows[i][1], gas).casefold(),
+                                                       cell(inv.rows[i][1], mass) != ""))
+
+
+def _windows(reg, defaults, want, ids: _Ids):
+    """The register's windows: per window, (the window as an Inventory in input order, the positions of its rows
+    in the order they are screened, the jobs for screen_chunk that screen them in that order)."""
     id_col = _id_column(reg)
-    for part in reg.chunks(CHUNK_ROWS):
-        dups = ids.first_rows([(n, c[id_col].strip() if id_col < len(c) else "") for n, c in part.rows])
-        kept.append(part.rows)
-        yield (part, defaults, dups, want)
+    for window in reg.chunks(CHUNK_ROWS * WINDOW_CHUNKS):
+        rows = window.rows
+        dups = ids.first_rows([(n, c[id_col].strip() if id_col < len(c) else "") for n, c in rows])
+        order = _gas_order(window)
+        jobs = []
+        for k in _chunk_cuts(window, order):
+            part = [rows[i] for i in k]
+            jobs.append((replace(window, rows=part), defaults, {n: dups[n] for n, _ in part if n in dups}, want))
+        yield window, order, jobs
+
+
+def _chunk_cuts(window: Inventory, order: list[int]) -> Iterator[list[int]]:
+    """A sorted window's rows cut into chunks of about the same work: CHUNK_ROWS rows of pure gases, a mixture's
+    row counting as MIXTURE_WORK of them (its phase checks go state by state through the mixture's reference
+    equation), so that the workers finish a window together."""
+    from screening.inputs.gas_spec import parse_gas
+
+    col = next((i for i, c in enumerate(window.columns) if c.key == "fill.gas"), None)
+    work: dict[str, int] = {}
+
+    def of(cells: list) -> int:
+        text = cells[col].strip() if col is not None and col < len(cells) else ""
+        w = work.get(text)
+        if w is None:
+            try:
+                w = MIXTURE_WORK if len(parse_gas(text).components) > 1 else 1
+            except (InputError, ValueError):
+                w = 1
+            work[text] = w
+        return w
+
+    part, total = [], 0
+    for i in order:
+        part.append(i)
+        total += of(window.rows[i][1])
+        if total >= CHUNK_ROWS:
+            yield part
+            part, total = [], 0
+    if part:
+        yield part
+
+
+def _in_input_order(parts: list[list], order: list[int]) -> list:
+    """The answers of a window's chunks (screened in `order`) back in input order."""
+    out: list = [None] * len(order)
+    for pos, item in zip(order, (x for got in parts for x in got)):
+        out[pos] = item
+    return out
 
 
 def _load_fluids(inv: Inventory, defaults: dict | None) -> None:
@@ -541,30 +609,39 @@ def run(args) -> int:
     pdf_cells: list[tuple[int, list[str]]] = []     # the rows' own texts for the PDF listing
     bar = _progress(args.quiet)
     spill = _Spill() if by_severity else None
-    kept: list = []
     ids = _Ids()
-    jobs = _jobs(reg, defaults, want, ids, kept)
-    first_job = next(jobs, None)
-    if first_job is not None:
-        _load_fluids(first_job[0], defaults)
+    windows = _windows(reg, defaults, want, ids)
+    first = next(windows, None)
+    if first is not None:
+        _load_fluids(first[0], defaults)
     n_workers = parallel.workers()
     pool = None
     try:
         with contextlib.ExitStack() as stack:
             outputs = _Outputs(args, reg, stack)
-            if first_job is not None and len(first_job[0].rows) >= CHUNK_ROWS and n_workers > 1:
+            if first is not None and len(first[0].rows) >= CHUNK_ROWS and n_workers > 1:
                 pool = stack.enter_context(parallel.executor(n_workers))
+            opened: deque = deque()         # (window, order, number of chunks) of the windows whose jobs went out
 
             def all_jobs():
-                if first_job is not None:
-                    yield first_job
-                yield from jobs
+                for window, order, jobs in itertools.chain([first] if first is not None else [], windows):
+                    opened.append((window, order, len(jobs)))
+                    yield from jobs
 
-            for got in parallel.ordered(pool, screen_chunk, all_jobs()):
-                rows = kept.pop(0)
+            parts: list[list] = []
+            for got in parallel.ordered(pool, screen_chunk, all_jobs(), ahead=max(1, WINDOW_CHUNKS // 2)):
+                parts.append(got)
+                if bar is not None:
+                    bar.update(len(got))
+                window, order, n_parts = opened[0]
+                if len(parts) < n_parts:
+                    continue
+                opened.popleft()
+                done = _in_input_order(parts, order)
+                parts = []
                 if outputs.headers is None:
-                    outputs.open(next((s for s, _, _ in got if s["verdict"] != "input-error"), None))
-                for (s, line, f), (_, cells_) in zip(got, rows):
+                    outputs.open(next((s for s, _, _ in done if s["verdict"] != "input-error"), None))
+                for (s, line, f), (_, cells_) in zip(done, window.rows):
                     tally.add(s)
                     values = outputs.values(s, cells_)
                     if spill is not None:
@@ -576,8 +653,6 @@ def run(args) -> int:
                             pdf_full[len(pdf_rows)] = f
                         pdf_rows.append(s)
                         pdf_cells.append((s["row"], cells_))
-                if bar is not None:
-                    bar.update(len(got))
             if tally.rows == 0:
                 raise InputError("the inventory has a header but no rows", file=reg.source,
                                  row=(reg.header_row or 1) + 1, expected="one row per vessel under the header")

@@ -129,6 +129,50 @@ def test_a_20000_row_file_completes(tmp_path):
     assert all(r["verdict"] != "input-error" for r in rs)
 
 
+def test_a_register_with_its_gases_interleaved_is_screened_by_gas_and_written_in_input_order(tmp_path, monkeypatch):
+    # rows of three gases interleaved, a bad row and an id used again in a later window: screened in windows of
+    # two chunks of two rows sorted by gas, and written exactly as when every chunk holds its rows in input order
+    from screening import batch, parallel
+
+    monkeypatch.setenv(parallel.WORKERS_ENV, "1")
+    monkeypatch.setattr(parallel, "workers", lambda: 1)
+    gases = [("nitrogen", "200 bar(g)"), ("argon", "180 bar(g)"), ("propane", "")]
+    body = []
+    for i in range(11):
+        gas, p = gases[i % 3]
+        fill = f"{p},,15 degC" if p else ",12 kg,15 degC"
+        body.append(f"R{i % 9},{gas},50 L,{'300 bar(g)' if p else '30 bar(g)'},{fill},45 degC\n")
+    body[4] = "BAD,argon,50 L,300 bar(g),lots,,15 degC,45 degC\n"
+    inv = write(tmp_path, "id,gas,water_capacity,rated_pressure,fill_pressure,fill_mass,fill_temperature,"
+                          "ambient_max\n" + "".join(body))
+    monkeypatch.setattr(batch, "CHUNK_ROWS", 2)
+    chunks = []
+    screen_chunk = batch.screen_chunk
+
+    def spy(job):
+        chunks.append([cells[1] for _n, cells in job[0].rows])
+        return screen_chunk(job)
+
+    monkeypatch.setattr(batch, "screen_chunk", spy)
+    outs = {}
+    for window in (1, 2):
+        monkeypatch.setattr(batch, "WINDOW_CHUNKS", window)
+        chunks.clear()
+        names = [tmp_path / f"o{window}.{ext}" for ext in ("csv", "jsonl")]
+        run(["batch", str(inv), "--csv", str(names[0]), "--jsonl", str(names[1]), "--quiet"])
+        outs[window] = [p.read_bytes() for p in names]
+        if window == 2:     # the first window's four rows go out sorted by gas, two by two
+            assert chunks[:2] == [["argon", "nitrogen"], ["nitrogen", "propane"]]
+    assert outs[1] == outs[2]
+    rows = list(csv.DictReader(outs[2][0].decode("utf-8-sig").splitlines()))
+    assert [r["row"] for r in rows] == [str(n) for n in range(2, 13)]
+    assert [r["id"] for r in rows][:3] == ["R0", "R1", "R2"]
+    lines = [json.loads(x) for x in outs[2][1].decode("utf-8").splitlines()]
+    assert lines[4]["verdict"] == "input-error" and "row 6" in lines[4]["reasons"][0]
+    # R0 is on rows 2 and 11, in different windows
+    assert any("also used on row 2" in w["message"] for w in lines[9]["warnings"])
+
+
 def test_outputs_are_the_same_whatever_the_number_of_workers(tmp_path, monkeypatch):
     # every verdict, an input error, a duplicate id across chunks, in chunks of two rows: one process
     # against a pool of workers (on one core both runs stay in this process and must still agree)
