@@ -495,7 +495,7 @@ def _first_at_or_above(x: np.ndarray, lo: np.ndarray, hi: np.ndarray, n: int = _
 
 def _scan_up(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np.ndarray, lo: np.ndarray, mid: np.ndarray,
              f_mid: np.ndarray, hi: np.ndarray, n: int = _SCAN_N, nan_from: np.ndarray | None = None,
-             guess: np.ndarray | None = None) -> np.ndarray:
+             guess: np.ndarray | None = None, top_first: bool = False) -> np.ndarray:
     """Per row, the root screen._root's scan of np.linspace(lo, hi, n) finds (NaN: none) for an increasing
     f(x, rows) with f(mid) = f_mid < 0 (lo <= mid < hi) that can be evaluated from lo up to some point and nowhere
     above it (a model's range: an equation's temperature range and highest pressure). The scan's intervals below
@@ -507,11 +507,13 @@ def _scan_up(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np.ndarray
     That point is searched for over the scan's index rather than stepped to: each round evaluates, in one call
     over the rows still open, the scan points on either side of a predicted root (regula falsi between the
     nearest points known on either side, else the secant through the two highest points below zero, else
-    `guess`), or, without a prediction, the highest point not known to be past the model's range first and
-    then the middle of the open index range (a bisection, also after a few rounds that did not settle a row).
-    The points it settles on, their values and the bracket are those of a scan stepping up from mid one point at
-    a time, so the root is the same, bit for bit. `nan_from`: per row, where f is known not to be evaluable
-    from (scan points at or above it are not evaluated; NaN: not known); `guess`: a predicted root (NaN: none).
+    `guess`), or, without a prediction, the first scan point above mid first (where the stepwise scan starts;
+    `top_first`: the highest point not known to be past the model's range, for rows that mostly have no root)
+    and then the middle of the open index range (a bisection, also after a few rounds that did not settle a
+    row). The points it settles on, their values and the bracket are those of a scan stepping up from mid one
+    point at a time, so the root is the same, bit for bit. `nan_from`: per row, where f is known not to be
+    evaluable from (scan points at or above it are not evaluated; NaN: not known); `guess`: a predicted root
+    (NaN: none).
     """
     m = rows.size
     root = np.full(m, np.nan)
@@ -551,8 +553,9 @@ def _scan_up(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np.ndarray
         predicted = np.isfinite(xp) & (rounds[live] < 3) & (hk - lk >= 3.0)
         j = _first_at_or_above(np.where(predicted, xp, lo[live]), lo[live], hi[live], n)
         j = np.clip(j, lk + 2.0, hk - 1.0)
-        top = first & ~predicted & (hk < nf)        # the highest point not known to be past the range
-        single = np.where(top, hk - 1.0, np.floor(0.5 * (lk + hk)))
+        single = np.where(first, lk + 1.0, np.floor(0.5 * (lk + hk)))
+        if top_first:                                # the highest point not known to be past the range
+            single = np.where(first & (hk < nf), hk - 1.0, single)
         upper = np.where(predicted, j, single)
         pair = np.flatnonzero(predicted)
         probe_r = np.concatenate([live[pair], live])
@@ -582,14 +585,14 @@ def _scan_up(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np.ndarray
 
 def _upward_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray, mid: np.ndarray,
                  hi: np.ndarray, f_mid: np.ndarray | None = None, nan_from: np.ndarray | None = None,
-                 guess: np.ndarray | None = None) -> np.ndarray:
+                 guess: np.ndarray | None = None, top_first: bool = False) -> np.ndarray:
     """Per row, what :func:`_monotone_root` finds (the root screen._root finds, NaN: none) for an increasing
     f(x, rows) on [lo, hi] that, where it can be evaluated at mid, can be evaluated from mid up to some point and
     nowhere above it (a model that holds up to the end of its range): solved from mid (:func:`_increasing_root`,
     an end past the range scanned upwards from mid, :func:`_scan_up`) instead of scanning the whole bracket; rows
     where f cannot be evaluated at mid, or the solve is not sure, by :func:`_monotone_root`. `f_mid`: f at mid
-    where the caller knows it (NaN: evaluated here); `nan_from`, `guess`: as :func:`_scan_up` takes them (where f
-    is known not to be evaluable from, NaN: not known; a predicted root)."""
+    where the caller knows it (NaN: evaluated here); `nan_from`, `guess`, `top_first`: as :func:`_scan_up` takes
+    them (where f is known not to be evaluable from, NaN: not known; a predicted root; the top point first)."""
     ix = np.arange(lo.size)
     if f_mid is None:
         f_mid = f(mid, ix)
@@ -604,7 +607,7 @@ def _upward_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarr
         k = ix[known]
         root[k], ok = _increasing_root(f, k, lo[k], mid[k], f_mid[k], hi[k], math.inf, stepwise=True,
                                        nan_from=None if nan_from is None else nan_from[k],
-                                       guess=None if guess is None else guess[k])
+                                       guess=None if guess is None else guess[k], top_first=top_first)
         known[k[~ok]] = False
     rest = ix[~known]
     if rest.size:
@@ -615,7 +618,7 @@ def _upward_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarr
 def _increasing_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np.ndarray, lo: np.ndarray,
                      mid: np.ndarray, f_mid: np.ndarray, hi: np.ndarray, top: float,
                      stepwise: bool = False, nan_from: np.ndarray | None = None,
-                     guess: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
+                     guess: np.ndarray | None = None, top_first: bool = False) -> tuple[np.ndarray, np.ndarray]:
     """Per row, the root screen._root finds for an increasing f(x, rows) on [lo, hi] (NaN: none), where f is
     known at an inside point mid (f_mid) and can be evaluated only up to `top` (a model's range).
 
@@ -624,7 +627,8 @@ def _increasing_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np
     whose ends it can evaluate, so a root in the interval that holds `top` is none as well. The solve is
     bracketed on [mid, min(hi, top)] or [lo, mid] (Illinois, to _SECANT_RTOL); where f cannot be evaluated at
     that bracket's end, by screen._root's scan (:func:`_scan_root`; `stepwise`: upwards from mid, :func:`_scan_up`,
-    for an f that can be evaluated on one interval from lo; `nan_from`, `guess`: as _scan_up takes them, an end
+    for an f that can be evaluated on one interval from lo; `nan_from`, `guess`, `top_first`: as _scan_up takes
+    them, an end
     at or above `nan_from` is not evaluated). Returns (root, ok): ok False where the bracketed solve met a point it
     could not evaluate (those rows go per row).
     """
@@ -649,7 +653,7 @@ def _increasing_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np
                 # the points from the end up cannot be evaluated either (f can be evaluated on one interval)
                 known_nan = x_end[bad] if nan_from is None else np.fmin(x_end[bad], nan_from[kb])
                 root[kb] = _scan_up(f, rows[kb], lo[kb], mid[kb], f_mid[kb], hi[kb], nan_from=known_nan,
-                                    guess=None if guess is None else guess[kb])
+                                    guess=None if guess is None else guess[kb], top_first=top_first)
             else:
                 root[kb] = _scan_root(lambda x, ix, sub=rows[kb]: f(x, sub[ix]), lo[kb], hi[kb])
         at_end = ~bad & (f_end == 0.0)
@@ -2127,8 +2131,10 @@ def _lk_limits(rows: Rows, out: dict, lk: np.ndarray, t_ref: np.ndarray, pk: np.
         # the peak rises with the fill pressure, and the model holds from the row's own fill up to where the gas
         # condenses at the fill temperature or its reduced pressure leaves the tables (no fill pressure from there
         # up can be evaluated): the solve starts from that fill (:func:`_upward_root`)
+        # (rows of gases filled as liquids by pressure, the model's gas fills of them mostly find no target: the
+        # highest fill pressure the model holds is looked at first)
         root = _upward_root(lambda p, ix: fill(p, pk[ix]), p_lo, mid, p_hi, f_mid=f_mid,
-                            nan_from=pcf[pk] * np.minimum(_LK_PR_HI, psat_r) * (1.0 + 1e-9))
+                            nan_from=pcf[pk] * np.minimum(_LK_PR_HI, psat_r) * (1.0 + 1e-9), top_first=True)
         # screen._limits keeps a fill-pressure root only where its peak is the target (not a jump of the model)
         at = np.flatnonzero(np.isfinite(root))
         hit = np.abs(fill(root[at], pk[at])) <= 1e-6 * target[pk[at]]

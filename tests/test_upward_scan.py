@@ -129,9 +129,12 @@ def test_temperature_limit_search_settles_where_the_stepwise_scan_does(fluid, mo
         m.setattr(engine, "_scan_up", stepwise_scan_up)
         slow = engine._upward_root(f, t_lo, t_peak, t_hi)
     assert np.array_equal(fast, slow, equal_nan=True)
-    # the search alone, without what the caller knows (its bisection and secant rounds)
-    bare = engine._scan_up(f, rows, t_lo, t_peak, f_mid, t_hi)
-    assert np.array_equal(bare, stepwise_scan_up(f, rows, t_lo, t_peak, f_mid, t_hi), equal_nan=True)
+    # the search alone, without what the caller knows (its bisection and secant rounds), from the first point
+    # above the worst case or from the top
+    step = stepwise_scan_up(f, rows, t_lo, t_peak, f_mid, t_hi)
+    for top_first in (False, True):
+        bare = engine._scan_up(f, rows, t_lo, t_peak, f_mid, t_hi, top_first=top_first)
+        assert np.array_equal(bare, step, equal_nan=True)
     # a rating above every pressure of the model: no root, as engine._lk_limits skips them
     assert np.isnan(slow[engine._above_lk_pressures(rated, np.full(rated.size, pc))]).all()
     found = np.isfinite(slow)
@@ -180,9 +183,9 @@ def test_fill_pressure_limit_search_settles_where_the_stepwise_scan_does(fluid, 
     p_lo = np.full(n, ATM * 1.01)
     p_hi = np.maximum(target, p_fill) * np.maximum(1.0, t_fill / t_peak) * 1.05
     # as engine._lk_limits calls it: the peak as f at the fill, the model's reduced-pressure range and vapour
-    # pressure at the fill temperature as where it stops
+    # pressure at the fill temperature as where it stops, the highest fill pressure it holds looked at first
     fast = engine._upward_root(fill, p_lo, p_fill, p_hi, f_mid=peak - target,
-                               nan_from=pc * np.minimum(PR_HI, psat_r) * (1.0 + 1e-9))
+                               nan_from=pc * np.minimum(PR_HI, psat_r) * (1.0 + 1e-9), top_first=True)
     with monkeypatch.context() as m:
         m.setattr(engine, "_scan_up", stepwise_scan_up)
         slow = engine._upward_root(fill, p_lo, p_fill, p_hi)
