@@ -480,7 +480,7 @@ def _first_at_or_above(x: np.ndarray, lo: np.ndarray, hi: np.ndarray, n: int = _
     """Per row, the index (as a float) of the first point of np.linspace(lo, hi, n) at or above x (n: none), as
     the scan's points are computed (k * step + lo, hi the last)."""
     step = (hi - lo) / (n - 1)
-    with np.errstate(invalid="ignore"):
+    with np.errstate(invalid="ignore", divide="ignore"):
         k = np.clip(np.ceil((x - lo) / step), 0.0, float(n))
     k = np.where(np.isnan(x), float(n), k)
 
