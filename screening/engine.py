@@ -476,55 +476,138 @@ def _monotone_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.nda
     return out
 
 
+def _first_at_or_above(x: np.ndarray, lo: np.ndarray, hi: np.ndarray, n: int = _SCAN_N) -> np.ndarray:
+    """Per row, the index (as a float) of the first point of np.linspace(lo, hi, n) at or above x (n: none), as
+    the scan's points are computed (k * step + lo, hi the last)."""
+    step = (hi - lo) / (n - 1)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        k = np.clip(np.ceil((x - lo) / step), 0.0, float(n))
+    k = np.where(np.isnan(x), float(n), k)
+
+    def at(j):
+        return np.where(j >= n - 1, hi, j * step + lo)
+
+    for _ in range(3):      # the rounding of the division: one step either way
+        k = np.where((k > 0) & (at(k - 1) >= x), k - 1, k)
+        k = np.where((k < n) & (at(np.minimum(k, n - 1)) < x), k + 1, k)
+    return k
+
+
 def _scan_up(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np.ndarray, lo: np.ndarray, mid: np.ndarray,
-             f_mid: np.ndarray, hi: np.ndarray, n: int = _SCAN_N) -> np.ndarray:
+             f_mid: np.ndarray, hi: np.ndarray, n: int = _SCAN_N, nan_from: np.ndarray | None = None,
+             guess: np.ndarray | None = None, top_first: bool = False) -> np.ndarray:
     """Per row, the root screen._root's scan of np.linspace(lo, hi, n) finds (NaN: none) for an increasing
     f(x, rows) with f(mid) = f_mid < 0 (lo <= mid < hi) that can be evaluated from lo up to some point and nowhere
-    above it (a reference isochore: the equation's temperature range and highest pressure). The scan's intervals
-    below mid then hold no sign change, so only the scan points above mid are evaluated, in turn, until f >= 0
-    (the root lies between the last point below zero and that one: Illinois, to _SECANT_RTOL) or f cannot be
-    evaluated (the scan meets no sign change it can bracket: none)."""
+    above it (a model's range: an equation's temperature range and highest pressure). The scan's intervals below
+    mid then hold no sign change, and its outcome is settled by the first scan point above mid where f >= 0 or f
+    cannot be evaluated (every point under it has f < 0, every point above it cannot change the outcome): the root
+    lies between the last point below zero (mid where there is none above it) and that point (Illinois, to
+    _SECANT_RTOL), or there is none (f not evaluable there, or below zero at every point).
+
+    That point is searched for over the scan's index rather than stepped to: each round evaluates, in one call
+    over the rows still open, the scan points on either side of a predicted root (regula falsi between the
+    nearest points known on either side, else the secant through the two highest points below zero, else
+    `guess`), or, without a prediction, the first scan point above mid first (where the stepwise scan starts;
+    `top_first`: the highest point not known to be past the model's range, for rows that mostly have no root)
+    and then the middle of the open index range (a bisection, also after a few rounds that did not settle a
+    row). The points it settles on, their values and the bracket are those of a scan stepping up from mid one
+    point at a time, so the root is the same, bit for bit. `nan_from`: per row, where f is known not to be
+    evaluable from (scan points at or above it are not evaluated; NaN: not known); `guess`: a predicted root
+    (NaN: none).
+    """
     m = rows.size
     root = np.full(m, np.nan)
     if m == 0:
         return root
     step = (hi - lo) / (n - 1)
     _a, b = _linspace_bracket(lo, hi, mid, n)
-    k = np.rint((b - lo) / step)                  # the index of the first scan point above mid
-    x0, f0 = np.array(mid, dtype=float), np.array(f_mid, dtype=float)
-    x1, f1 = np.full(m, np.nan), np.full(m, np.nan)
-    live = np.flatnonzero(b > mid)
+    nf = float(n)
+
+    def at(k, r):
+        return np.where(k >= n - 1, hi[r], k * step[r] + lo[r])
+
+    # L: the highest scan index known below zero (k1 - 1, mid itself, at first); H: the lowest index known to
+    # stop the scan (n: none known), with f there (NaN: not evaluable); L2: the second highest below zero
+    lo_k = np.rint((b - lo) / step) - 1.0
+    x_lo, f_lo = np.array(mid, dtype=float), np.array(f_mid, dtype=float)
+    x_lo2, f_lo2 = np.full(m, np.nan), np.full(m, np.nan)
+    hi_k = np.full(m, nf)
+    if nan_from is not None:
+        hi_k = np.maximum(_first_at_or_above(nan_from, lo, hi, n), lo_k + 1.0)
+    x_hi, f_hi = np.full(m, np.nan), np.full(m, np.nan)
+    rounds = np.zeros(m, dtype=int)
+    edge = np.zeros(m, dtype=bool)                  # a point that cannot be evaluated was met
+    has_guess = np.zeros(m, dtype=bool) if guess is None else np.isfinite(guess)
+    live = np.flatnonzero((b > mid) & (hi_k - lo_k > 1.0))
     while live.size:
-        x = np.where(k[live] >= n - 1, hi[live], k[live] * step[live] + lo[live])
-        fx = f(x, rows[live])
-        below = np.isfinite(fx) & (fx < 0.0)
-        found = np.isfinite(fx) & (fx >= 0.0)
-        x1[live[found]], f1[live[found]] = x[found], fx[found]
-        x0[live[below]], f0[live[below]] = x[below], fx[below]
-        k[live] += 1
-        live = live[below & (k[live] <= n - 1)]
-    zero = f1 == 0.0
-    root[zero] = x1[zero]
-    go = np.flatnonzero(np.isfinite(f1) & ~zero)
+        lk, hk, xl, fl = lo_k[live], hi_k[live], x_lo[live], f_lo[live]
+        with np.errstate(divide="ignore", invalid="ignore"):
+            bracket = np.isfinite(f_hi[live])
+            xp = np.where(bracket, xl - fl * (x_hi[live] - xl) / (f_hi[live] - fl), np.nan)
+            ext = ~bracket & ~edge[live] & np.isfinite(f_lo2[live]) & (fl > f_lo2[live])
+            xp = np.where(ext, xl - fl * (xl - x_lo2[live]) / (fl - f_lo2[live]), xp)
+        first = rounds[live] == 0
+        use_guess = first & ~bracket & ~ext & has_guess[live]
+        if use_guess.any():
+            xp[use_guess] = guess[live[use_guess]]
+        predicted = np.isfinite(xp) & (rounds[live] < 3) & (hk - lk >= 3.0)
+        j = _first_at_or_above(np.where(predicted, xp, lo[live]), lo[live], hi[live], n)
+        j = np.clip(j, lk + 2.0, hk - 1.0)
+        single = np.where(first, lk + 1.0, np.floor(0.5 * (lk + hk)))
+        if top_first:                                # the highest point not known to be past the range
+            single = np.where(first & (hk < nf), hk - 1.0, single)
+        upper = np.where(predicted, j, single)
+        pair = np.flatnonzero(predicted)
+        probe_r = np.concatenate([live[pair], live])
+        probe_k = np.concatenate([j[pair] - 1.0, upper])
+        fx = f(at(probe_k, probe_r), rows[probe_r])
+        xk = at(probe_k, probe_r)
+        for sel in (slice(0, pair.size), slice(pair.size, None)):     # the lower points of the pairs first
+            r, k, x, v = probe_r[sel], probe_k[sel], xk[sel], fx[sel]
+            below = np.isfinite(v) & (v < 0.0) & (k > lo_k[r]) & (k < hi_k[r])
+            rb = r[below]
+            x_lo2[rb], f_lo2[rb] = x_lo[rb], f_lo[rb]
+            lo_k[rb], x_lo[rb], f_lo[rb] = k[below], x[below], v[below]
+            stop = ~(np.isfinite(v) & (v < 0.0)) & (k < hi_k[r]) & (k > lo_k[r])
+            rs = r[stop]
+            hi_k[rs], x_hi[rs], f_hi[rs] = k[stop], x[stop], v[stop]
+            edge[r[~np.isfinite(v)]] = True
+        rounds[live] += 1
+        live = live[hi_k[live] - lo_k[live] > 1.0]
+    found = (hi_k < nf) & np.isfinite(f_hi)
+    zero = found & (f_hi == 0.0)
+    root[zero] = x_hi[zero]
+    go = np.flatnonzero(found & ~zero)
     if go.size:
-        root[go] = _illinois(f, x0[go], x1[go], f0[go], f1[go], rows[go])
+        root[go] = _illinois(f, x_lo[go], x_hi[go], f_lo[go], f_hi[go], rows[go])
     return root
 
 
 def _upward_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray, mid: np.ndarray,
-                 hi: np.ndarray) -> np.ndarray:
+                 hi: np.ndarray, f_mid: np.ndarray | None = None, nan_from: np.ndarray | None = None,
+                 guess: np.ndarray | None = None, top_first: bool = False) -> np.ndarray:
     """Per row, what :func:`_monotone_root` finds (the root screen._root finds, NaN: none) for an increasing
     f(x, rows) on [lo, hi] that, where it can be evaluated at mid, can be evaluated from mid up to some point and
     nowhere above it (a model that holds up to the end of its range): solved from mid (:func:`_increasing_root`,
     an end past the range scanned upwards from mid, :func:`_scan_up`) instead of scanning the whole bracket; rows
-    where f cannot be evaluated at mid, or the solve is not sure, by :func:`_monotone_root`."""
+    where f cannot be evaluated at mid, or the solve is not sure, by :func:`_monotone_root`. `f_mid`: f at mid
+    where the caller knows it (NaN: evaluated here); `nan_from`, `guess`, `top_first`: as :func:`_scan_up` takes
+    them (where f is known not to be evaluable from, NaN: not known; a predicted root; the top point first)."""
     ix = np.arange(lo.size)
-    f_mid = f(mid, ix)
+    if f_mid is None:
+        f_mid = f(mid, ix)
+    else:
+        f_mid = np.array(f_mid, dtype=float)
+        ask = np.flatnonzero(np.isnan(f_mid))
+        if ask.size:
+            f_mid[ask] = f(mid[ask], ask)
     known = np.isfinite(f_mid)
     root = np.full(lo.size, np.nan)
     if known.any():
         k = ix[known]
-        root[k], ok = _increasing_root(f, k, lo[k], mid[k], f_mid[k], hi[k], math.inf, stepwise=True)
+        root[k], ok = _increasing_root(f, k, lo[k], mid[k], f_mid[k], hi[k], math.inf, stepwise=True,
+                                       nan_from=None if nan_from is None else nan_from[k],
+                                       guess=None if guess is None else guess[k], top_first=top_first)
         known[k[~ok]] = False
     rest = ix[~known]
     if rest.size:
@@ -534,7 +617,8 @@ def _upward_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarr
 
 def _increasing_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np.ndarray, lo: np.ndarray,
                      mid: np.ndarray, f_mid: np.ndarray, hi: np.ndarray, top: float,
-                     stepwise: bool = False) -> tuple[np.ndarray, np.ndarray]:
+                     stepwise: bool = False, nan_from: np.ndarray | None = None,
+                     guess: np.ndarray | None = None, top_first: bool = False) -> tuple[np.ndarray, np.ndarray]:
     """Per row, the root screen._root finds for an increasing f(x, rows) on [lo, hi] (NaN: none), where f is
     known at an inside point mid (f_mid) and can be evaluated only up to `top` (a model's range).
 
@@ -543,8 +627,10 @@ def _increasing_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np
     whose ends it can evaluate, so a root in the interval that holds `top` is none as well. The solve is
     bracketed on [mid, min(hi, top)] or [lo, mid] (Illinois, to _SECANT_RTOL); where f cannot be evaluated at
     that bracket's end, by screen._root's scan (:func:`_scan_root`; `stepwise`: upwards from mid, :func:`_scan_up`,
-    for an f that can be evaluated on one interval from lo). Returns (root, ok): ok False where the
-    bracketed solve met a point it could not evaluate (those rows go per row).
+    for an f that can be evaluated on one interval from lo; `nan_from`, `guess`, `top_first`: as _scan_up takes
+    them, an end
+    at or above `nan_from` is not evaluated). Returns (root, ok): ok False where the bracketed solve met a point it
+    could not evaluate (those rows go per row).
     """
     m = rows.size
     root = np.full(m, np.nan)
@@ -556,12 +642,18 @@ def _increasing_root(f: Callable[[np.ndarray, np.ndarray], np.ndarray], rows: np
         if k.size == 0:
             continue
         x_end = end[k] if up else lo[k]
-        f_end = f(x_end, rows[k])
+        f_end = np.full(k.size, np.nan)
+        ask = np.ones(k.size, dtype=bool) if nan_from is None or not up else ~(x_end >= nan_from[k])
+        if ask.any():
+            f_end[ask] = f(x_end[ask], rows[k[ask]])
         bad = ~np.isfinite(f_end)
         if bad.any():   # an end outside the model's range (e.g. above its highest pressure): screen._root scans
             kb = k[bad]
             if stepwise and up:
-                root[kb] = _scan_up(f, rows[kb], lo[kb], mid[kb], f_mid[kb], hi[kb])
+                # the points from the end up cannot be evaluated either (f can be evaluated on one interval)
+                known_nan = x_end[bad] if nan_from is None else np.fmin(x_end[bad], nan_from[kb])
+                root[kb] = _scan_up(f, rows[kb], lo[kb], mid[kb], f_mid[kb], hi[kb], nan_from=known_nan,
+                                    guess=None if guess is None else guess[kb], top_first=top_first)
             else:
                 root[kb] = _scan_root(lambda x, ix, sub=rows[kb]: f(x, sub[ix]), lo[kb], hi[kb])
         at_end = ~bad & (f_end == 0.0)
@@ -1987,17 +2079,33 @@ def _lk_limits(rows: Rows, out: dict, lk: np.ndarray, t_ref: np.ndarray, pk: np.
         s2 = lee_kesler_pressure(np.where(ok1, rho1, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
         return np.where(ok1 & s2.valid, s2.pressure - target[r], np.nan)
 
-    known = np.isfinite(t_ref)
-    if known.any():
-        below = isochore(t_ref[known], lk[known]) < 0.0
+    # a rating above every pressure of the model: the isochore stays below it wherever it can be evaluated (none)
+    sel = ~_above_lk_pressures(rated[lk], pcp[lk])
+    lk, t_ref = lk[sel], t_ref[sel]
+    # the model's pressure at the worst case is its peak (the same call on the same state)
+    f_mid = out["lk_peak"][lk] - rated[lk]
+    guess = t_peak[lk] * rated[lk] / out["lk_peak"][lk]     # as if the pressure rose in proportion to T
+    known = np.flatnonzero(np.isfinite(t_ref))
+    if known.size:
+        f_ref = isochore(t_ref[known], lk[known])
+        # a root above the reference's: the lower limit is the reference's, no solve
         keep = np.ones(lk.size, dtype=bool)
-        keep[np.flatnonzero(known)[below]] = False
-        lk = lk[keep]
+        keep[known[f_ref < 0.0]] = False
+        # where the model is above zero at the reference root, the root lies between the worst case and it
+        tr, fr = t_ref[known], f_ref
+        inside = np.isfinite(fr) & (fr >= 0.0) & (tr > t_peak[lk[known]]) & (f_mid[known] < 0.0)
+        j = known[inside]
+        guess[j] = t_peak[lk[j]] - f_mid[j] * (tr[inside] - t_peak[lk[j]]) / (fr[inside] - f_mid[j])
+        lk, f_mid, guess = lk[keep], f_mid[keep], guess[keep]
     if lk.size:
         t_lo, t_hi = np.minimum(t_fill, t_peak)[lk], (np.maximum(t_peak, t_fill) + 300.0)[lk]
         # the isochore rises with temperature and the model holds from the worst case (a gas there) up to the top
-        # of its tables: the solve starts from the worst case (:func:`_upward_root`)
-        out["max_t_lk"][lk] = _upward_root(lambda t, ix: isochore(t, lk[ix]), t_lo, t_peak[lk], t_hi)
+        # of its tables (no temperature above _LK_TR_HI T_c can be evaluated): the solve starts from the worst case
+        # (:func:`_upward_root`)
+        out["max_t_lk"][lk] = _upward_root(lambda t, ix: isochore(t, lk[ix]), t_lo, t_peak[lk], t_hi, f_mid=f_mid,
+                                           nan_from=_LK_TR_HI * tcp[lk] * (1.0 + 1e-9), guess=guess)
+    sel = ~_above_lk_pressures(target[pk], pcp[pk])     # a target above every peak of the model: none
+    pk, p_ref = pk[sel], p_ref[sel]
     known = np.isfinite(p_ref)
     if known.any():
         below = fill(p_ref[known], pk[known]) < 0.0
@@ -2012,13 +2120,21 @@ def _lk_limits(rows: Rows, out: dict, lk: np.ndarray, t_ref: np.ndarray, pk: np.
         sub = tr < 1.0
         psat_r = np.full(pk.size, np.inf)
         psat_r[sub] = lee_kesler_vapour_pressure(tr[sub], omf[pk][sub])
-        pk = pk[~((atm[pk] * 1.01) / pcf[pk] > psat_r * (1.0 + 1e-9))]
+        keep = ~((atm[pk] * 1.01) / pcf[pk] > psat_r * (1.0 + 1e-9))
+        pk, psat_r = pk[keep], psat_r[keep]
     if pk.size:
         p_lo = atm[pk] * 1.01
         p_hi = np.maximum(target[pk], rows.p_fill[pk]) * np.maximum(1.0, t_fill[pk] / t_peak[pk]) * 1.05
+        mid = np.clip(rows.p_fill[pk], p_lo, p_hi)
+        # at the row's own fill the model's peak is known (the same calls on the same states)
+        f_mid = np.where(mid == rows.p_fill[pk], out["lk_peak"][pk] - target[pk], np.nan)
         # the peak rises with the fill pressure, and the model holds from the row's own fill up to where the gas
-        # condenses at the fill temperature: the solve starts from that fill (:func:`_upward_root`)
-        root = _upward_root(lambda p, ix: fill(p, pk[ix]), p_lo, np.clip(rows.p_fill[pk], p_lo, p_hi), p_hi)
+        # condenses at the fill temperature or its reduced pressure leaves the tables (no fill pressure from there
+        # up can be evaluated): the solve starts from that fill (:func:`_upward_root`)
+        # (rows of gases filled as liquids by pressure, the model's gas fills of them mostly find no target: the
+        # highest fill pressure the model holds is looked at first)
+        root = _upward_root(lambda p, ix: fill(p, pk[ix]), p_lo, mid, p_hi, f_mid=f_mid,
+                            nan_from=pcf[pk] * np.minimum(_LK_PR_HI, psat_r) * (1.0 + 1e-9), top_first=True)
         # screen._limits keeps a fill-pressure root only where its peak is the target (not a jump of the model)
         at = np.flatnonzero(np.isfinite(root))
         hit = np.abs(fill(root[at], pk[at])) <= 1e-6 * target[pk[at]]
