@@ -132,9 +132,55 @@ def _sun_row(case: Case) -> SunRow | None:
         return None
     warnings: list = []
     _t, basis, balance = _screen._worst_case_temperature(case, sc, warnings)
+    return _sun_row_of(sc, basis, balance, warnings)
+
+
+def _sun_row_of(sc, basis: str, balance: dict, warnings: list) -> SunRow:
+    """A SunRow from the worst-case step's answer for scenario `sc`."""
     t_exposure = max(t for t in (sc.gas_temperature_k, sc.ambient_max_k, balance["wall_temperature_k"])
                      if t is not None)
     return SunRow(basis, balance, warnings, t_exposure)
+
+
+def _plain_sun_rows(plain: PlainRows, rows: Iterable[int]) -> dict[int, SunRow]:
+    """{j: the worst case of the j-th plain row in the sun} for the rows given, as _sun_row finds it from the
+    row's Case (screen.worst_case_temperature). A plain row's balance depends on its ambient maximum and water
+    capacity alone (every other input is the tool's default, the dimensions estimated from the capacity), so
+    rows that share both share one balance (screen.sun_balance is a pure function; each row gets a copy). A
+    row whose balance raises is left out: the per-row path raises it again, in its place."""
+    from screening.inputs.case import Exposure
+
+    out: dict[int, SunRow] = {}
+    balances: dict[tuple[float, float], tuple | None] = {}
+    amb, hot, t_fill, cap = (a.tolist() for a in (plain.ambient_max_k, plain.gas_temperature_k,
+                                                  plain.fill_temperature_k, plain.water_capacity_m3))
+    for j in rows:
+        gas_t = None if math.isnan(hot[j]) else hot[j]
+        sc = Exposure("exposure", amb[j], gas_t, "sun", key="exposure")
+        key = (amb[j], cap[j])
+        if key not in balances:
+            try:
+                balances[key] = _screen.sun_balance(sc, None, None, cap[j], plain.inv.source)
+            except InputError:
+                balances[key] = None
+        sun = balances[key]
+        if sun is None:
+            continue
+        warnings: list = []
+        _t, basis, balance = _screen.worst_case_temperature(sc, t_fill[j], sun, warnings)
+        out[j] = _sun_row_of(sc, basis, balance, warnings)
+    return out
+
+
+#: The warnings of the columns' verdict a row in the sun keeps after its worst-case step's (whose own replace
+#: the columns' exposure warnings), as screen.screen_states orders them: permanent gases, liquefied gases.
+_SUN_KEEPS = ("models-disagree",)
+_SUN_KEEPS_LIQUEFIED = ("near-critical", "near-saturation", "models-disagree")
+
+
+def _sun_warnings(warnings: list, sun: SunRow, keep: tuple[str, ...]) -> list:
+    """A sun row's warnings: its worst-case step's, then those of `warnings` (the columns' verdict) in `keep`."""
+    return list(sun.warnings) + [w for w in warnings if w["code"] in keep]
 
 
 # ----------------------------------------------------------------------------- helpers
@@ -1179,7 +1225,7 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
         v = _verdict(cols, k, gas.molar_mass, case.rated_pressure_pa, case.relief_set_pressure_pa, atm, case.required_margin,
                      case.max_filling_ratio_kg_m3, getattr(sc, "name", None))
     if sun is not None:   # the worst-case step's warnings (screen._worst_case_temperature), then the models'
-        v = {**v, "warnings": list(sun.warnings) + [w for w in v["warnings"] if w["code"] == "models-disagree"]}
+        v = {**v, "warnings": _sun_warnings(v["warnings"], sun, _SUN_KEEPS)}
     t_fill, t_peak = float(case.fill_temperature_k), float(cols["t_peak"][k])
     rho_molar = float(cols["rho_molar"][k])
     rho_mass = rho_molar * gas.molar_mass
@@ -1591,14 +1637,33 @@ class PlainScreening:
         groups: dict[tuple[str, bool], list[int]] = {}
         rest: list[int] = []
         by_mass = ~np.isnan(plain.fill_mass_kg)
+        on_columns = []
         for j, gas in enumerate(plain.gases):
             # a permanent gas with a dome filled by mass on the liquefied-gas columns; hydrogen, helium, neon and
             # air filled by mass on the permanent-gas columns with their fills by pressure
             liquefied = _on_liquefied_columns(gas, bool(by_mass[j]))
-            if liquefied or _vector_gas(gas):
+            on_columns.append(liquefied or _vector_gas(gas))
+            if on_columns[-1]:
                 groups.setdefault((gas.name, liquefied), []).append(j)
             else:
                 rest.append(j)
+        # rows in the sun: their worst case from the energy balance (screen.worst_case_temperature), entering the
+        # columns as Rows.of_cases enters them (the highest exposure temperature as the gas temperature, no
+        # ambient); a row whose balance raises goes per row
+        self._sun: dict[int, SunRow] = {}
+        ambient, hot = plain.ambient_max_k, plain.gas_temperature_k
+        if plain.sun is not None and plain.sun.any():
+            in_sun = [j for j in np.flatnonzero(plain.sun).tolist() if on_columns[j]]
+            self._sun = _plain_sun_rows(plain, in_sun)
+            failed = set(in_sun) - set(self._sun)
+            if failed:
+                rest.extend(sorted(failed))
+                groups = {nm: kept for nm, idx in groups.items() if (kept := [j for j in idx if j not in failed])}
+            if self._sun:
+                at = np.array(list(self._sun), dtype=np.int64)
+                ambient, hot = ambient.copy(), hot.copy()
+                ambient[at] = np.nan
+                hot[at] = [u.t_exposure for u in self._sun.values()]
         names = list(groups)
         parts = []
         for nm in names:
@@ -1606,12 +1671,13 @@ class PlainScreening:
             # the fill mass per water capacity as LiquefiedRows.of_cases divides it
             rho_mass = plain.fill_mass_kg[idx] / plain.water_capacity_m3[idx] if by_mass[idx].any() else None
             parts.append(PlainPart(plain.gases[idx[0]], plain.fill_pressure_pa[idx], plain.fill_temperature_k[idx],
-                                   plain.ambient_max_k[idx], plain.gas_temperature_k[idx], plain.rated_pa[idx],
+                                   ambient[idx], hot[idx], plain.rated_pa[idx],
                                    plain.atmospheric_pa[idx], plain.required_margin[idx], plain.relief_pa[idx],
                                    plain.max_filling_ratio_kg_m3[idx], rho_mass, liquefied=nm[1]))
         for nm, cols in zip(names, _run_columns(parts, _plain_columns)):
             done = 0
             gas = plain.gases[groups[nm][0]]
+            keep = _SUN_KEEPS_LIQUEFIED if cols.get("kind") == "liquefied" else _SUN_KEEPS
             fallback, verdicts = cols["fallback"].tolist(), cols["verdict"].tolist()
             max_t, max_p = cols["max_t"].tolist(), cols["max_p"].tolist()
             rated, margin_req, atm, p_fill = (a[groups[nm]].tolist() for a in (
@@ -1622,8 +1688,10 @@ class PlainScreening:
                     continue
                 v = verdicts[k]
                 self._where[j] = (cols, k)
+                sun = self._sun.get(j)
                 self.summaries[j] = {
-                    "id": plain.ids[j], "verdict": v["verdict"], "reasons": v["reasons"], "warnings": v["warnings"],
+                    "id": plain.ids[j], "verdict": v["verdict"], "reasons": v["reasons"],
+                    "warnings": v["warnings"] if sun is None else _sun_warnings(v["warnings"], sun, keep),
                     "peak_pressure_pa": v["peak_pressure_pa"], "rated_pressure_pa": rated[k],
                     "margin_fraction": v["margin_fraction"],
                     "required_margin_fraction": margin_req[k],
@@ -1658,7 +1726,7 @@ class PlainScreening:
                 return single(self.plain.case(j))
             except InputError as exc:
                 return {"verdict": "input-error", "error": exc}
-        return _assemble(self.plain.case(j), cols, k)
+        return _assemble(self.plain.case(j), cols, k, sun=self._sun.get(j))
 
     def full_json(self, j: int) -> dict | None:
         """``full(j).to_json()``, built without the Result where the row ran on the columns
@@ -1671,7 +1739,7 @@ class PlainScreening:
         if cols.get("kind") == "liquefied" and not _mass_limit_settled(cols, k, self.plain.gases[j]):
             r = self.full(j)
             return r.to_json() if isinstance(r, Result) else None
-        return Result.json_layout(_row_dict(self.plain.case(j), cols, k))
+        return Result.json_layout(_row_dict(self.plain.case(j), cols, k, sun=self._sun.get(j)))
 
 
 def iter_chunks(items: list, size: int) -> Iterable[list]:
@@ -2520,8 +2588,7 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
         v = _liquefied_verdict(cols, k, case.rated_pressure_pa, case.relief_set_pressure_pa, atm,
                                case.required_margin, case.max_filling_ratio_kg_m3, getattr(sc, "name", None))
     if sun is not None:   # the worst-case step's warnings (screen._worst_case_temperature), then the fill state's
-        v = {**v, "warnings": list(sun.warnings) + [w for w in v["warnings"]
-                                                     if w["code"] in ("near-critical", "near-saturation", "models-disagree")]}
+        v = {**v, "warnings": _sun_warnings(v["warnings"], sun, _SUN_KEEPS_LIQUEFIED)}
     t_fill, t_peak = float(case.fill_temperature_k), float(cols["t_peak"][k])
     by_pressure = case.fill_pressure_pa is not None
     refused = bool(cols["refused"][k])

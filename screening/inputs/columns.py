@@ -7,7 +7,8 @@ each distinct cell text is parsed once, with the same unit parser (:func:`screen
 the same gas parser as a case file, and the row's values are gathered into arrays in SI.
 
 What a plain row is: every non-empty cell (or default) belongs to :data:`PLAIN_KEYS`; the fill is given
-by pressure and temperature, or by mass and temperature; and every check of :func:`screening.inputs.case.parse_case_data` that
+by pressure and temperature, or by mass and temperature; a row in the sun (``solar`` "sun", with its ambient
+maximum: the energy balance with the tool's defaults for everything else) is plain; and every check of :func:`screening.inputs.case.parse_case_data` that
 applies to these keys passes. Anything else, or any doubt, leaves the row to
 :func:`screening.inputs.inventory.row_case`, the authoritative reader, which also writes the located
 message of a bad row. This module never writes an error message of its own: a row it cannot accept is
@@ -35,7 +36,7 @@ PLAIN_KEYS = frozenset({
     "id", "description", "pressure_basis", "site.name", "site.atmospheric_pressure", "site.elevation",
     "fill.gas", "vessel.water_capacity", "vessel.rated_pressure", "vessel.rated_pressure_kind",
     "vessel.relief_set_pressure", "vessel.max_filling_ratio", "fill.pressure", "fill.temperature", "fill.mass",
-    "exposure.ambient_max", "exposure.gas_temperature", "criteria.required_margin",
+    "exposure.ambient_max", "exposure.gas_temperature", "exposure.solar", "criteria.required_margin",
 })
 _TEXT = {"id", "description", "site.name", "vessel.rated_pressure_kind"}
 _PRESSURES = ("vessel.rated_pressure", "vessel.relief_set_pressure", "fill.pressure")
@@ -50,7 +51,8 @@ class PlainRows:
     """Plain rows of an inventory as arrays in SI (pressures absolute [Pa], temperatures [K], [m3], [-]).
 
     ``index[j]`` is the position in ``inv.rows`` of the j-th plain row; NaN marks an absent optional value
-    (each row has a fill pressure or a fill mass [kg], the other NaN).
+    (each row has a fill pressure or a fill mass [kg], the other NaN); ``sun[j]``: the row's exposure is in
+    the sun (``solar = "sun"``; its ambient maximum is then given).
     """
 
     inv: Inventory
@@ -77,6 +79,8 @@ class PlainRows:
     entered: dict[str, list] | None = None
     #: (header, cell text as the case reader reads it, per plain row) of every column of a case key
     cell_texts: list[tuple[str, list[str]]] | None = None
+    #: whether each plain row is in the sun (None: no row is)
+    sun: np.ndarray | None = None
 
     def __len__(self) -> int:
         return len(self.ids)
@@ -110,7 +114,11 @@ class PlainRows:
             ambient_max_k=ambient, gas_temperature_k=hot, required_margin=si["criteria.required_margin"][j],
             required_margin_is_default=bool(self.required_margin_is_default[j]),
             inputs=inputs, display_units=dict(self.display_units[j]),
-            scenarios=(Exposure("exposure", ambient, hot, key="exposure"),))
+            scenarios=(Exposure("exposure", ambient, hot, "sun" if self.in_sun(j) else "none", key="exposure"),))
+
+    def in_sun(self, j: int) -> bool:
+        """Whether the j-th plain row is in the sun."""
+        return self.sun is not None and bool(self.sun[j])
 
     def _si_values(self) -> dict[str, list[float]]:
         """Each key's SI values per plain row as Python floats (NaN where absent), listed once."""
@@ -168,6 +176,12 @@ def _parser(key: str):
                 raise _NotPlain
             return value
         return text
+    if key == "exposure.solar":
+        def solar(value):           # as the case reader reads it: exactly "none" or "sun"
+            if value not in ("none", "sun"):
+                raise _NotPlain
+            return value == "sun"
+        return solar
     if key == "pressure_basis":
         def basis(value):
             if value not in ("gauge", "absolute"):
@@ -291,7 +305,7 @@ class _Cache:
 def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     """The plain rows of ``inv.rows``, as arrays."""
     empty = {k: [] for k in ("index", "ids", "gases", "atm", "cap", "rated", "relief", "ratio", "p", "t", "amb",
-                             "gas_t", "margin", "margin_default", "units", "mass", "elev")}
+                             "gas_t", "margin", "margin_default", "units", "mass", "elev", "sun")}
     flat = _flatten_defaults(defaults)
     if flat is None:
         return _finish(inv, defaults, empty)
@@ -401,6 +415,7 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     amb, _ = quantities("exposure.ambient_max")
     hot, _ = quantities("exposure.gas_temperature")
     margin, _ = quantities("criteria.required_margin")
+    sun = np.array([g is True for g in parsed("exposure.solar", column("exposure.solar"))], dtype=bool)
     margin_default = np.array([v is _MISSING for v in column("criteria.required_margin")], dtype=bool)
     margin = np.where(margin_default, DEFAULT_REQUIRED_MARGIN, margin)
     with np.errstate(invalid="ignore"):
@@ -408,6 +423,7 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
         ok &= np.isnan(relief) | (relief > atm)
         ok &= ~(np.isnan(amb) & np.isnan(hot))                 # the worst case needs one of them
         ok &= np.isnan(p_fill) != np.isnan(mass)               # the fill by pressure or by mass, not both
+        ok &= ~(sun & np.isnan(amb))                            # the sun's balance needs the ambient air
 
     # the display units: the first reading of each kind in the case reader's order
     units_cache: dict[tuple, dict] = {}
@@ -427,7 +443,7 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     out["index"] = sel
     for name, arr in (("atm", atm), ("cap", cap), ("rated", rated), ("relief", relief), ("ratio", ratio),
                       ("p", p_fill), ("t", t_fill), ("amb", amb), ("gas_t", hot), ("margin", margin),
-                      ("margin_default", margin_default), ("mass", mass), ("elev", elev)):
+                      ("margin_default", margin_default), ("mass", mass), ("elev", elev), ("sun", sun)):
         out[name] = arr[sel]
     rows = sel.tolist()
     entered = {k: [v[i] for i in rows] for k, v in texts.items()}
@@ -440,4 +456,4 @@ def _finish(inv: Inventory, defaults: dict | None, out: dict, entered: dict | No
     return PlainRows(inv, defaults, np.array(out["index"], dtype=np.int64), out["ids"], out["gases"], f("atm"),
                      f("cap"), f("rated"), f("relief"), f("ratio"), f("p"), f("t"), f("amb"), f("gas_t"),
                      f("margin"), np.array(out["margin_default"], dtype=bool), out["units"], f("mass"), f("elev"),
-                     entered, cell_texts)
+                     entered, cell_texts, np.array(out["sun"], dtype=bool))
