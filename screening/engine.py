@@ -124,15 +124,36 @@ class SunRow:
     t_exposure: float       # the highest exposure temperature [K] (before the fill state is considered)
 
 
-def _sun_row(case: Case) -> SunRow | None:
+def _sun_row(case: Case, balances: dict | None = None) -> SunRow | None:
     """The worst case of a row with one scenario in the sun; None for other rows. Raises InputError as the
-    single screening does (the row then goes per row, which raises it again in its place)."""
+    single screening does (the row then goes per row, which raises it again in its place). `balances`: the
+    energy balances already solved for the cases screened together (:func:`_worst_case`)."""
     sc = case.scenarios[0] if getattr(case, "scenarios", ()) else None
     if sc is None or getattr(sc, "solar", "none") != "sun":
         return None
-    warnings: list = []
-    _t, basis, balance = _screen._worst_case_temperature(case, sc, warnings)
+    basis, balance, warnings = _worst_case(case, sc, balances)
     return _sun_row_of(sc, basis, balance, warnings)
+
+
+def _worst_case(case: Case, sc, balances: dict | None) -> tuple[str, dict | None, list]:
+    """(basis, energy balance or None, warnings) of scenario `sc` of `case`, as screen._worst_case_temperature
+    finds them. A scenario in the sun takes its balance from `balances` where the cases screened together
+    already solved it for the same inputs (every input of screen.sun_balance is in the key, which is a pure
+    function of them: the same numbers and words, each row its own copy), else solves it and keeps it there."""
+    sun = None
+    if sc.solar == "sun":
+        key = (sc.ambient_max_k, sc.irradiance_w_m2, sc.absorptivity, sc.emissivity, sc.finish, sc.wind_speed_m_s,
+               sc.orientation, sc.name, sc.key, case.outside_diameter_m, case.length_m, case.water_capacity_m3,
+               case.source)
+        sun = balances.get(key) if balances is not None else None
+        if sun is None:
+            sun = _screen.sun_balance(sc, case.outside_diameter_m, case.length_m, case.water_capacity_m3,
+                                      case.source)
+            if balances is not None:
+                balances[key] = sun
+    warnings: list = []
+    _t, basis, balance = _screen.worst_case_temperature(sc, case.fill_temperature_k, sun, warnings)
+    return basis, balance, warnings
 
 
 def _sun_row_of(sc, basis: str, balance: dict, warnings: list) -> SunRow:
@@ -1327,24 +1348,26 @@ def expandable(case: Case) -> bool:
             and bool(scenarios) and all(getattr(s, "solar", "none") in ("none", "sun") for s in scenarios))
 
 
-def _scenario_rows(cases: list[Case]) -> tuple[dict[int, list[SunRow]], list[tuple[int, int]]]:
+def _scenario_rows(cases: list[Case], balances: dict | None = None) -> tuple[dict[int, list[SunRow]],
+                                                                            list[tuple[int, int]]]:
     """({case index: its scenarios' worst cases (:func:`_exposure_row`)}, [(case index, scenario index)], the rows
     of a table with a row per scenario). A case whose worst case raises is left out: the per-row path raises it
-    again, in its place."""
+    again, in its place. `balances`: see :func:`_worst_case`."""
     exposures: dict[int, list[SunRow]] = {}
+    balances = {} if balances is None else balances
     for i, c in enumerate(cases):
         try:
-            exposures[i] = [_exposure_row(c, sc) for sc in c.scenarios]
+            exposures[i] = [_exposure_row(c, sc, balances) for sc in c.scenarios]
         except (InputError, ValueError):
             continue
     return exposures, [(i, j) for i, rows in exposures.items() for j in range(len(rows))]
 
 
-def _exposure_row(case: Case, sc) -> SunRow:
+def _exposure_row(case: Case, sc, balances: dict | None = None) -> SunRow:
     """One scenario's worst case as screen._worst_case_temperature finds it (basis, energy balance, warnings),
-    with its highest exposure temperature. Raises InputError as the single screening does."""
-    warnings: list = []
-    _t, basis, balance = _screen._worst_case_temperature(case, sc, warnings)
+    with its highest exposure temperature. Raises InputError as the single screening does. `balances`: see
+    :func:`_worst_case`."""
+    basis, balance, warnings = _worst_case(case, sc, balances)
     t_exposure = max(t for t in (sc.gas_temperature_k, sc.ambient_max_k,
                                  balance["wall_temperature_k"] if balance is not None else None) if t is not None)
     return SunRow(basis, balance, warnings, t_exposure)
@@ -1412,7 +1435,7 @@ def _drive(gas: Mixture, steps: dict, known: dict | None = None, ahead: list | N
     return done
 
 
-def _screen_expanded(cases: list[Case]) -> list[Result | None]:
+def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Result | None]:
     """Rows of one pure permanent gas with input tolerances and/or several scenarios, on the arrays: every
     scenario a row of the table, every tolerance corner (and the states of its sensitivities) an extra row; the
     rows folded back into one result per vessel as screen.screen_states gives it (tolerance block, scenarios, the
@@ -1420,7 +1443,7 @@ def _screen_expanded(cases: list[Case]) -> list[Result | None]:
     back, or its worst case raises)."""
     out: list[Result | None] = [None] * len(cases)
     gas = cases[0].gas
-    exposures, keys = _scenario_rows(cases)
+    exposures, keys = _scenario_rows(cases, balances)
     if not keys:
         return out
     nominal = Rows(gas, *(np.array(v, dtype=float) for v in zip(*(
@@ -1530,6 +1553,7 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
     groups: dict[tuple[str, bool], list[int]] = {}
     rest: list[int] = []
     sun: dict[int, SunRow | None] = {}
+    balances: dict = {}             # the energy balances solved so far (_worst_case)
     expanded: dict[str, list[int]] = {}
     liquefied_scenarios: dict[str, list[int]] = {}
     for i, c in enumerate(cases):
@@ -1542,7 +1566,7 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
         liquefied = liquefied_vectorisable(c)
         if liquefied or vectorisable(c):
             try:
-                sun[i] = _sun_row(c)
+                sun[i] = _sun_row(c, balances)
             except InputError:
                 rest.append(i)      # the per-row path raises it again, in its place
                 continue
@@ -1567,7 +1591,7 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
     for idx, screen_them in [(idx, _screen_expanded) for idx in expanded.values()] + [
             (idx, _screen_liquefied_scenarios) for idx in liquefied_scenarios.values()]:
         done = 0
-        for i, r in zip(idx, screen_them([cases[i] for i in idx])):
+        for i, r in zip(idx, screen_them([cases[i] for i in idx], balances)):
             if r is None:
                 rest.append(i)
             else:
@@ -1809,14 +1833,14 @@ def liquefied_expandable(case: Case) -> bool:
             and all(getattr(s, "solar", "none") in ("none", "sun") for s in scenarios))
 
 
-def _screen_liquefied_scenarios(cases: list[Case]) -> list[Result | None]:
+def _screen_liquefied_scenarios(cases: list[Case], balances: dict | None = None) -> list[Result | None]:
     """Rows of one gas on the liquefied-gas columns with several scenarios: every scenario a row of one table
     (its worst case as screen._worst_case_temperature finds it, :func:`_exposure_row`), each scenario's result
     laid out as for a row of one scenario, then folded into one result per vessel by screen.fold_scenarios, as
     screen.screen_states folds them. None where a row must go per row (one of its scenarios fell back, or its
     worst case raises)."""
     out: list[Result | None] = [None] * len(cases)
-    exposures, keys = _scenario_rows(cases)
+    exposures, keys = _scenario_rows(cases, balances)
     if not keys:
         return out
     cols = _liquefied_columns(LiquefiedRows.of_cases([cases[i] for i, _j in keys],

@@ -147,3 +147,40 @@ def test_sun_rows_in_a_batch_equal_the_single_case_screening_and_coolprop_at_the
     assert min(checked.values()) >= 1, checked
     assert {("nitrogen", "pressure"), ("helium", "pressure"), ("nitrogen", "mass"), ("propane", "mass"),
             ("carbon dioxide", "mass"), ("propane", "pressure")} <= kinds
+
+
+def test_cases_sharing_a_sun_exposure_share_its_balance_and_each_gets_its_own_answer(monkeypatch):
+    # one exposure (ambient, finish, wind, vessel) for many vessels of different fills, with tolerances and two
+    # scenarios for some: every result as the state-by-state screening gives it, one case at a time
+    from screening.inputs.case import parse_case_data
+    from screening.screen import screen_states
+
+    rnd = random.Random(5)
+    cases = []
+    for i in range(24):
+        d = {"id": f"V{i}", "vessel": {"water_capacity": "50 L", "rated_pressure": "300 bar(g)"},
+             "fill": {"gas": rnd.choice(["nitrogen", "argon", "propane"]), "temperature": f"{rnd.uniform(0, 30):.1f} degC"},
+             "exposure": {"ambient_max": "38 degC", "solar": "sun", "finish": "red paint", "wind_speed": "1 m/s"}}
+        if d["fill"]["gas"] == "propane":
+            d["vessel"]["rated_pressure"] = "30 bar(g)"
+            d["fill"]["mass"] = f"{rnd.uniform(2, 20):.2f} kg"
+        else:
+            d["fill"]["pressure"] = f"{rnd.uniform(20, 250):.1f} bar(g)"
+            if i % 3 == 0:
+                d["scenario"] = [{"name": "yard"}, {"name": "shade", "solar": "none"}]
+                d["tolerance"] = {"fill_temperature": "2 K"}
+        cases.append(parse_case_data(d, "t.csv", "x"))
+    from screening import screen
+
+    solved = []
+    balance = screen.sun_balance
+    monkeypatch.setattr(screen, "sun_balance", lambda *a: solved.append(a) or balance(*a))
+    got = [r.to_json() for r in engine.screen_cases(cases)]
+    monkeypatch.undo()
+    # one balance per scenario name (its warning names it): "exposure" and "yard"
+    assert len(solved) == 2, [(a[0].name, a[0].key) for a in solved]
+    walls = {r["exposure"]["wall_temperature_k"] for r in got if r["exposure"] is not None}
+    assert len(walls) == 1
+    for c, r in zip(cases, got):
+        want = screen_states(c, curves=False).to_json()
+        assert result_differences(want, r, RTOL, RTOL_LIMITS) == [], c.id
