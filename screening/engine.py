@@ -7,8 +7,10 @@ Rows are grouped by gas. For a pure permanent gas filled by pressure (or hydroge
 mass: the fill density given, each model's fill pressure at it, no fill-pressure limit), with one exposure (in the
 sun or not) and no tolerances, both temperatures above the critical temperature (the "vectorised path"):
 
-* a row in the sun gets its worst case from :func:`screening.screen._worst_case_temperature` (the energy
-  balance, per row and cheap), with its basis, balance and warnings; the rest of the row runs on the arrays;
+* a row in the sun gets its worst case from :func:`screening.screen.worst_case_temperature` (the energy
+  balance, :func:`screening.screen.sun_balance`, solved once per distinct exposure among the rows screened
+  together), with its basis, balance and warnings; the rest of the row runs on the arrays (an inventory's
+  plain rows in the sun too, :func:`_plain_sun_rows`);
 
 * the ideal and generalized models run as numpy arrays over every row of the group (no Python loop
   per row; the Lee–Kesler functions of :mod:`screening.physics.eos.generalized` are array functions);
