@@ -167,20 +167,21 @@ def _sun_row_of(sc, basis: str, balance: dict, warnings: list) -> SunRow:
 
 def _plain_sun_rows(plain: PlainRows, rows: Iterable[int]) -> dict[int, SunRow]:
     """{j: the worst case of the j-th plain row in the sun} for the rows given, as _sun_row finds it from the
-    row's Case (screen.worst_case_temperature). A plain row's balance depends on its ambient maximum and water
-    capacity alone (every other input is the tool's default, the dimensions estimated from the capacity), so
-    rows that share both share one balance (screen.sun_balance is a pure function; each row gets a copy). A
-    row whose balance raises is left out: the per-row path raises it again, in its place."""
+    row's Case (screen.worst_case_temperature). A plain row's balance depends on its ambient maximum, finish
+    and water capacity alone (every other input is the tool's default, the dimensions estimated from the
+    capacity), so rows that share them share one balance (screen.sun_balance is a pure function; each row gets
+    a copy). A row whose balance raises is left out: the per-row path raises it again, in its place."""
     from screening.inputs.case import Exposure
 
     out: dict[int, SunRow] = {}
-    balances: dict[tuple[float, float], tuple | None] = {}
+    balances: dict[tuple, tuple | None] = {}
     amb, hot, t_fill, cap = (a.tolist() for a in (plain.ambient_max_k, plain.gas_temperature_k,
                                                   plain.fill_temperature_k, plain.water_capacity_m3))
     for j in rows:
         gas_t = None if math.isnan(hot[j]) else hot[j]
-        sc = Exposure("exposure", amb[j], gas_t, "sun", key="exposure")
-        key = (amb[j], cap[j])
+        fin = plain.finish(j)
+        sc = Exposure("exposure", amb[j], gas_t, "sun", finish=fin, key="exposure")
+        key = (amb[j], cap[j], fin)
         if key not in balances:
             try:
                 balances[key] = _screen.sun_balance(sc, None, None, cap[j], plain.inv.source)

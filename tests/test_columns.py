@@ -13,7 +13,7 @@ from screening.inputs.inventory import read_inventory, row_case
 
 HEAD = ("id,gas,water_capacity,rated_pressure [bar(g)],relief_set_pressure,fill_pressure,fill_temperature,"
         "ambient_max,gas_temperature,required_margin,site,elevation,atmospheric_pressure,max_filling_ratio,fill_mass,"
-        "solar")
+        "solar,finish")
 
 # cell texts, good and bad, as people type them
 GAS = st.sampled_from(["nitrogen", "argon", "Argon", "N2", "methane", "carbon dioxide", "unobtainium", "",
@@ -33,7 +33,8 @@ ATM = st.sampled_from(["", "98.5 kPa(a)", "98.5 kPa(g)", "150 kPa(a)", "0.98 bar
 RATIO = st.sampled_from(["", "0.75 kg/L", "-0.1 kg/L"])
 MASS = st.sampled_from(["", "", "", "20 kg", "20", "4500 g", "44 lb", "0 kg", "-3 kg", "20 L", "heavy"])
 SOLAR = st.sampled_from(["", "", "sun", "none", "Sun", "yes"])
-ROW = st.tuples(GAS, CAP, RATED, RELIEF, PRESSURE, TEMP, AMB, HOT, MARGIN, SITE, ELEV, ATM, RATIO, MASS, SOLAR)
+FINISH = st.sampled_from(["", "", "white paint", "red_paint", "chrome"])
+ROW = st.tuples(GAS, CAP, RATED, RELIEF, PRESSURE, TEMP, AMB, HOT, MARGIN, SITE, ELEV, ATM, RATIO, MASS, SOLAR, FINISH)
 
 
 def _same(a, b):
@@ -76,6 +77,7 @@ def test_plain_rows_match_the_case_reader(tmp_path_factory, rows):
         assert bool(plain.required_margin_is_default[j]) == case.required_margin_is_default
         assert plain.display_units[j] == case.display_units
         assert plain.in_sun(j) == (case.scenarios[0].solar == "sun")
+        assert plain.finish(j) == case.scenarios[0].finish
         assert plain.case(j) == case
 
 
@@ -86,14 +88,15 @@ def test_defaults_fill_plain_rows_and_unusual_defaults_send_every_row_to_the_cas
     inv = read_inventory(path)
     plain = read_plain(inv, {"exposure": {"ambient_max": "45 degC"}, "criteria": {"required_margin": "5 %"}})
     assert len(plain) == 1 and plain.ambient_max_k[0] == 318.15 and plain.required_margin[0] == 0.05
-    assert len(read_plain(inv, {"exposure": {"ambient_max": "45 degC", "solar": "sun", "finish": "white paint"}})) == 0
+    assert len(read_plain(inv, {"exposure": {"ambient_max": "45 degC", "solar": "sun", "absorptivity": "0.6"}})) == 0
     assert len(read_plain(inv, {"exposure": {"ambient_max": "45 degC"}, "tolerance": {"fill_temperature": "2 K"}})) == 0
 
 
 def test_a_column_outside_the_plain_keys_sends_its_rows_to_the_case_reader(tmp_path):
     path = tmp_path / "inv.csv"
-    path.write_text("id,gas,water_capacity,rated_pressure,fill_pressure,fill_temperature,ambient_max,solar,finish\n"
-                    "A,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC,sun,white paint\n"
+    path.write_text("id,gas,water_capacity,rated_pressure,fill_pressure,fill_temperature,ambient_max,solar,"
+                    "absorptivity\n"
+                    "A,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC,sun,0.6\n"
                     "B,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC,,\n", encoding="utf-8")
     plain = read_plain(read_inventory(path), None)
     assert plain.ids == ["B"]
@@ -120,9 +123,12 @@ def test_a_row_in_the_sun_is_plain_with_its_ambient_and_is_read_as_the_case_read
     for pos in (4, 5, 6):
         with pytest.raises(InputError):
             row_case(inv, *inv.rows[pos], None)
-    with_default = read_plain(inv, {"exposure": {"solar": "sun"}})
+    with_default = read_plain(inv, {"exposure": {"solar": "sun", "finish": "white paint"}})
     assert with_default.ids == ["S", "H", "N"] and with_default.sun.tolist() == [True, True, False]
     assert with_default.case(0).scenarios[0].solar == "sun"
+    for j, pos in enumerate(with_default.index):
+        case = row_case(inv, *inv.rows[int(pos)], {"exposure": {"solar": "sun", "finish": "white paint"}})
+        assert with_default.case(j) == case and case.scenarios[0].finish == "white paint"
 
 
 def test_a_fill_by_mass_is_a_plain_row_and_a_fill_by_both_or_neither_is_not(tmp_path):

@@ -16,7 +16,7 @@ from screening.inputs.inventory import read_inventory, row_case
 from screening.screen import P_TOL
 
 HEAD = ("id,gas,water_capacity,rated_pressure [bar(g)],fill_pressure [bar(g)],fill_mass [kg],fill_temperature [degC],"
-        "ambient_max [degC],gas_temperature [degC],solar\n")
+        "ambient_max [degC],gas_temperature [degC],solar,finish\n")
 #: Numbers at 1e-9 relative and limits at 2e-9, as the golden corpus compares them.
 RTOL, RTOL_LIMITS = 1e-9, 2 * P_TOL
 #: Keys the batch's JSON lines add or leave out.
@@ -58,15 +58,18 @@ def _row(rnd: random.Random, i: int) -> tuple[str, str, dict]:
         fluid = {"nitrogen": "Nitrogen", "propane": "Propane", "carbon dioxide": "CO2"}[gas]
         cells, fill = (gas, f"{rated:.2f}", "", f"{mass:.3f}"), {"dmass": mass / (cap / 1000.0)}
     gas, rated, p, mass = cells
-    line = f"S{i},{gas},{cap} L,{rated},{p},{mass},{t_fill:.2f},{amb},{hot},{sun}\n"
+    finish = rnd.choice(["", "", "white paint", "black_paint"])
+    line = f"S{i},{gas},{cap} L,{rated},{p},{mass},{t_fill:.2f},{amb},{hot},{sun},{finish}\n"
     return line, fluid, fill
 
 
 def _inventory(tmp_path, n: int = 160, seed: int = 20261204):
     rnd = random.Random(seed)
     rows = [_row(rnd, i) for i in range(n)]
-    # one row whose ambient is below the sky correlation's range: an input error on both routes
-    rows.append(("E,nitrogen,50 L,300,200,,15,-60,,sun\n", "Nitrogen", {"p": 200e5 + ATM}))
+    # a row whose ambient is below the sky correlation's range and one of an unknown finish: input errors on
+    # both routes
+    rows.append(("E,nitrogen,50 L,300,200,,15,-60,,sun,\n", "Nitrogen", {"p": 200e5 + ATM}))
+    rows.append(("F,nitrogen,50 L,300,200,,15,30,,sun,chrome\n", "Nitrogen", {"p": 200e5 + ATM}))
     path = tmp_path / "sun.csv"
     path.write_text(HEAD + "".join(line for line, _, _ in rows), encoding="utf-8")
     return path, rows
@@ -100,13 +103,15 @@ def test_sun_rows_in_a_batch_equal_the_single_case_screening_and_coolprop_at_the
     lines = [json.loads(x) for x in one.splitlines()]
     assert len(lines) == len(rows)
 
-    checked = {"sun": 0, "reference peaks": 0, "wall governs": 0, "fill state governs": 0, "sky at ambient": 0}
+    checked = {"sun": 0, "reference peaks": 0, "wall governs": 0, "fill state governs": 0, "sky at ambient": 0,
+               "finish given": 0, "input errors": 0}
     kinds = set()
     for (n, cells), got, (_line, fluid, fill) in zip(inv.rows, lines, rows):
         try:
             want = engine.screen_case(row_case(inv, n, cells, None), curves=False).to_json()
         except InputError as exc:
             assert got["verdict"] == "input-error" and got["error"]["message"] == exc.message, got
+            checked["input errors"] += 1
             continue
         got = {k: v for k, v in got.items() if k not in BATCH_ONLY}
         want = {k: v for k, v in want.items() if k not in BATCH_ONLY}
@@ -131,6 +136,7 @@ def test_sun_rows_in_a_batch_equal_the_single_case_screening_and_coolprop_at_the
         elif "fill-state-governs" in {w["code"] for w in got["warnings"]}:
             checked["fill state governs"] += 1
         checked["sky at ambient"] += bal["sky_temperature_k"] == bal["ambient_k"]
+        checked["finish given"] += any(note.startswith("Finish '") for note in bal["notes"])
         ref = got["models"]["reference"]
         if not ref["applicable"] or ref["peak_pressure_pa"] is None:
             continue
@@ -144,7 +150,7 @@ def test_sun_rows_in_a_batch_equal_the_single_case_screening_and_coolprop_at_the
         assert ref["peak_pressure_pa"] == pytest.approx(CP.PropsSI("P", "Dmolar", rho, "T", t_wc, fluid), rel=1e-6)
         checked["reference peaks"] += 1
     assert checked["sun"] >= 100 and checked["reference peaks"] >= 80, checked
-    assert min(checked.values()) >= 1, checked
+    assert min(checked.values()) >= 1 and checked["input errors"] == 2, checked
     assert {("nitrogen", "pressure"), ("helium", "pressure"), ("nitrogen", "mass"), ("propane", "mass"),
             ("carbon dioxide", "mass"), ("propane", "pressure")} <= kinds
 

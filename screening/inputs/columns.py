@@ -8,7 +8,7 @@ the same gas parser as a case file, and the row's values are gathered into array
 
 What a plain row is: every non-empty cell (or default) belongs to :data:`PLAIN_KEYS`; the fill is given
 by pressure and temperature, or by mass and temperature; a row in the sun (``solar`` "sun", with its ambient
-maximum: the energy balance with the tool's defaults for everything else) is plain; and every check of :func:`screening.inputs.case.parse_case_data` that
+maximum and perhaps a ``finish``: the energy balance with the tool's defaults for everything else) is plain; and every check of :func:`screening.inputs.case.parse_case_data` that
 applies to these keys passes. Anything else, or any doubt, leaves the row to
 :func:`screening.inputs.inventory.row_case`, the authoritative reader, which also writes the located
 message of a bad row. This module never writes an error message of its own: a row it cannot accept is
@@ -36,9 +36,10 @@ PLAIN_KEYS = frozenset({
     "id", "description", "pressure_basis", "site.name", "site.atmospheric_pressure", "site.elevation",
     "fill.gas", "vessel.water_capacity", "vessel.rated_pressure", "vessel.rated_pressure_kind",
     "vessel.relief_set_pressure", "vessel.max_filling_ratio", "fill.pressure", "fill.temperature", "fill.mass",
-    "exposure.ambient_max", "exposure.gas_temperature", "exposure.solar", "criteria.required_margin",
+    "exposure.ambient_max", "exposure.gas_temperature", "exposure.solar", "exposure.finish",
+    "criteria.required_margin",
 })
-_TEXT = {"id", "description", "site.name", "vessel.rated_pressure_kind"}
+_TEXT = {"id", "description", "site.name", "vessel.rated_pressure_kind", "exposure.finish"}
 _PRESSURES = ("vessel.rated_pressure", "vessel.relief_set_pressure", "fill.pressure")
 
 
@@ -81,6 +82,8 @@ class PlainRows:
     cell_texts: list[tuple[str, list[str]]] | None = None
     #: whether each plain row is in the sun (None: no row is)
     sun: np.ndarray | None = None
+    #: each plain row's surface finish as entered (None where not given; the list None: no row gives one)
+    finishes: list | None = None
 
     def __len__(self) -> int:
         return len(self.ids)
@@ -114,11 +117,16 @@ class PlainRows:
             ambient_max_k=ambient, gas_temperature_k=hot, required_margin=si["criteria.required_margin"][j],
             required_margin_is_default=bool(self.required_margin_is_default[j]),
             inputs=inputs, display_units=dict(self.display_units[j]),
-            scenarios=(Exposure("exposure", ambient, hot, "sun" if self.in_sun(j) else "none", key="exposure"),))
+            scenarios=(Exposure("exposure", ambient, hot, "sun" if self.in_sun(j) else "none", finish=self.finish(j),
+                                key="exposure"),))
 
     def in_sun(self, j: int) -> bool:
         """Whether the j-th plain row is in the sun."""
         return self.sun is not None and bool(self.sun[j])
+
+    def finish(self, j: int) -> str | None:
+        """The j-th plain row's surface finish as entered (None where not given)."""
+        return self.finishes[j] if self.finishes is not None else None
 
     def _si_values(self) -> dict[str, list[float]]:
         """Each key's SI values per plain row as Python floats (NaN where absent), listed once."""
@@ -305,7 +313,7 @@ class _Cache:
 def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     """The plain rows of ``inv.rows``, as arrays."""
     empty = {k: [] for k in ("index", "ids", "gases", "atm", "cap", "rated", "relief", "ratio", "p", "t", "amb",
-                             "gas_t", "margin", "margin_default", "units", "mass", "elev", "sun")}
+                             "gas_t", "margin", "margin_default", "units", "mass", "elev", "sun", "finish")}
     flat = _flatten_defaults(defaults)
     if flat is None:
         return _finish(inv, defaults, empty)
@@ -416,6 +424,7 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     hot, _ = quantities("exposure.gas_temperature")
     margin, _ = quantities("criteria.required_margin")
     sun = np.array([g is True for g in parsed("exposure.solar", column("exposure.solar"))], dtype=bool)
+    finishes = parsed("exposure.finish", column("exposure.finish"))
     margin_default = np.array([v is _MISSING for v in column("criteria.required_margin")], dtype=bool)
     margin = np.where(margin_default, DEFAULT_REQUIRED_MARGIN, margin)
     with np.errstate(invalid="ignore"):
@@ -437,6 +446,7 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
                                          "temperature": t_label[i], "volume": cap_label[i],
                                          "mass": mass_label[i] or "kg"}
         out["ids"].append(ids[i])
+        out["finish"].append(finishes[i])
         out["gases"].append(gases[i])
         out["units"].append(units)
     sel = np.flatnonzero(ok)
@@ -456,4 +466,5 @@ def _finish(inv: Inventory, defaults: dict | None, out: dict, entered: dict | No
     return PlainRows(inv, defaults, np.array(out["index"], dtype=np.int64), out["ids"], out["gases"], f("atm"),
                      f("cap"), f("rated"), f("relief"), f("ratio"), f("p"), f("t"), f("amb"), f("gas_t"),
                      f("margin"), np.array(out["margin_default"], dtype=bool), out["units"], f("mass"), f("elev"),
-                     entered, cell_texts, np.array(out["sun"], dtype=bool))
+                     entered, cell_texts, np.array(out["sun"], dtype=bool),
+                     out["finish"] if any(f is not None for f in out["finish"]) else None)
