@@ -167,24 +167,24 @@ def _sun_row_of(sc, basis: str, balance: dict, warnings: list) -> SunRow:
 
 def _plain_sun_rows(plain: PlainRows, rows: Iterable[int]) -> dict[int, SunRow]:
     """{j: the worst case of the j-th plain row in the sun} for the rows given, as _sun_row finds it from the
-    row's Case (screen.worst_case_temperature). A plain row's balance depends on its ambient maximum, finish
-    and water capacity alone (every other input is the tool's default, the dimensions estimated from the
-    capacity), so rows that share them share one balance (screen.sun_balance is a pure function; each row gets
-    a copy). A row whose balance raises is left out: the per-row path raises it again, in its place."""
-    from screening.inputs.case import Exposure
-
+    row's Case (screen.worst_case_temperature). A plain row's balance depends on its ambient maximum, water
+    capacity and the balance's inputs it gives (finish or absorptivity, emissivity, irradiance, wind speed,
+    orientation, outside diameter and length; the tool's defaults for the rest), so rows that share them share
+    one balance (screen.sun_balance is a pure function; each row gets a copy). A row whose balance raises is
+    left out: the per-row path raises it again, in its place."""
     out: dict[int, SunRow] = {}
     balances: dict[tuple, tuple | None] = {}
-    amb, hot, t_fill, cap = (a.tolist() for a in (plain.ambient_max_k, plain.gas_temperature_k,
-                                                  plain.fill_temperature_k, plain.water_capacity_m3))
+    t_fill, cap = plain.fill_temperature_k.tolist(), plain.water_capacity_m3.tolist()
     for j in rows:
-        gas_t = None if math.isnan(hot[j]) else hot[j]
-        fin = plain.finish(j)
-        sc = Exposure("exposure", amb[j], gas_t, "sun", finish=fin, key="exposure")
-        key = (amb[j], cap[j], fin)
+        sc = plain.exposure(j)
+        x = plain.sun_values(j)
+        d, length = x["vessel.outside_diameter"], x["vessel.length"]
+        # every input of screen.sun_balance that can differ between plain rows
+        key = (sc.ambient_max_k, cap[j], sc.finish, sc.irradiance_w_m2, sc.absorptivity, sc.emissivity,
+               sc.wind_speed_m_s, sc.orientation, d, length)
         if key not in balances:
             try:
-                balances[key] = _screen.sun_balance(sc, None, None, cap[j], plain.inv.source)
+                balances[key] = _screen.sun_balance(sc, d, length, cap[j], plain.inv.source)
             except InputError:
                 balances[key] = None
         sun = balances[key]

@@ -16,7 +16,8 @@ from screening.inputs.inventory import read_inventory, row_case
 from screening.screen import P_TOL
 
 HEAD = ("id,gas,water_capacity,rated_pressure [bar(g)],fill_pressure [bar(g)],fill_mass [kg],fill_temperature [degC],"
-        "ambient_max [degC],gas_temperature [degC],solar,finish\n")
+        "ambient_max [degC],gas_temperature [degC],solar,finish,absorptivity,emissivity,irradiance [W/m2],"
+        "wind_speed [m/s],orientation,outside_diameter [mm],length [m]\n")
 #: Numbers at 1e-9 relative and limits at 2e-9, as the golden corpus compares them.
 RTOL, RTOL_LIMITS = 1e-9, 2 * P_TOL
 #: Keys the batch's JSON lines add or leave out.
@@ -59,7 +60,14 @@ def _row(rnd: random.Random, i: int) -> tuple[str, str, dict]:
         cells, fill = (gas, f"{rated:.2f}", "", f"{mass:.3f}"), {"dmass": mass / (cap / 1000.0)}
     gas, rated, p, mass = cells
     finish = rnd.choice(["", "", "white paint", "black_paint"])
-    line = f"S{i},{gas},{cap} L,{rated},{p},{mass},{t_fill:.2f},{amb},{hot},{sun},{finish}\n"
+    # the balance's other inputs on some rows (an absorptivity only where no finish is given)
+    absorptivity = f"{rnd.uniform(0.2, 1.0):.2f}" if not finish and rnd.random() < 0.3 else ""
+    extra = [f"{rnd.uniform(0.1, 1.0):.2f}" if rnd.random() < 0.2 else "",
+             rnd.choice(["", "", "", "600", "1100"]), rnd.choice(["", "", "", "0", "1.5", "6"]),
+             rnd.choice(["", "", "", "vertical", "horizontal"])]
+    dims = [f"{rnd.uniform(100, 400):.0f}", f"{rnd.uniform(0.5, 2.0):.2f}"] if rnd.random() < 0.2 else ["", ""]
+    line = ",".join([f"S{i},{gas},{cap} L,{rated},{p},{mass},{t_fill:.2f},{amb},{hot},{sun},{finish}",
+                     absorptivity, *extra, *dims]) + "\n"
     return line, fluid, fill
 
 
@@ -68,8 +76,8 @@ def _inventory(tmp_path, n: int = 160, seed: int = 20261204):
     rows = [_row(rnd, i) for i in range(n)]
     # a row whose ambient is below the sky correlation's range and one of an unknown finish: input errors on
     # both routes
-    rows.append(("E,nitrogen,50 L,300,200,,15,-60,,sun,\n", "Nitrogen", {"p": 200e5 + ATM}))
-    rows.append(("F,nitrogen,50 L,300,200,,15,30,,sun,chrome\n", "Nitrogen", {"p": 200e5 + ATM}))
+    rows.append(("E,nitrogen,50 L,300,200,,15,-60,,sun,,,,,,,,\n", "Nitrogen", {"p": 200e5 + ATM}))
+    rows.append(("F,nitrogen,50 L,300,200,,15,30,,sun,chrome,,,,,,,\n", "Nitrogen", {"p": 200e5 + ATM}))
     path = tmp_path / "sun.csv"
     path.write_text(HEAD + "".join(line for line, _, _ in rows), encoding="utf-8")
     return path, rows
@@ -104,7 +112,7 @@ def test_sun_rows_in_a_batch_equal_the_single_case_screening_and_coolprop_at_the
     assert len(lines) == len(rows)
 
     checked = {"sun": 0, "reference peaks": 0, "wall governs": 0, "fill state governs": 0, "sky at ambient": 0,
-               "finish given": 0, "input errors": 0}
+               "finish given": 0, "wind": 0, "vertical": 0, "dimensions given": 0, "input errors": 0}
     kinds = set()
     for (n, cells), got, (_line, fluid, fill) in zip(inv.rows, lines, rows):
         try:
@@ -137,6 +145,9 @@ def test_sun_rows_in_a_batch_equal_the_single_case_screening_and_coolprop_at_the
             checked["fill state governs"] += 1
         checked["sky at ambient"] += bal["sky_temperature_k"] == bal["ambient_k"]
         checked["finish given"] += any(note.startswith("Finish '") for note in bal["notes"])
+        checked["wind"] += bal["wind_speed_m_s"] > 0.0
+        checked["vertical"] += bal["orientation"] == "vertical"
+        checked["dimensions given"] += not bal["dimensions_estimated"]
         ref = got["models"]["reference"]
         if not ref["applicable"] or ref["peak_pressure_pa"] is None:
             continue
