@@ -7,8 +7,10 @@ Rows are grouped by gas. For a pure permanent gas filled by pressure (or hydroge
 mass: the fill density given, each model's fill pressure at it, no fill-pressure limit), with one exposure (in the
 sun or not) and no tolerances, both temperatures above the critical temperature (the "vectorised path"):
 
-* a row in the sun gets its worst case from :func:`screening.screen._worst_case_temperature` (the energy
-  balance, per row and cheap), with its basis, balance and warnings; the rest of the row runs on the arrays;
+* a row in the sun gets its worst case from :func:`screening.screen.worst_case_temperature` (the energy
+  balance, :func:`screening.screen.sun_balance`, solved once per distinct exposure among the rows screened
+  together), with its basis, balance and warnings; the rest of the row runs on the arrays (an inventory's
+  plain rows in the sun too, :func:`_plain_sun_rows`);
 
 * the ideal and generalized models run as numpy arrays over every row of the group (no Python loop
   per row; the Lee–Kesler functions of :mod:`screening.physics.eos.generalized` are array functions);
@@ -124,17 +126,85 @@ class SunRow:
     t_exposure: float       # the highest exposure temperature [K] (before the fill state is considered)
 
 
-def _sun_row(case: Case) -> SunRow | None:
+def _sun_row(case: Case, balances: dict | None = None) -> SunRow | None:
     """The worst case of a row with one scenario in the sun; None for other rows. Raises InputError as the
-    single screening does (the row then goes per row, which raises it again in its place)."""
+    single screening does (the row then goes per row, which raises it again in its place). `balances`: the
+    energy balances already solved for the cases screened together (:func:`_worst_case`)."""
     sc = case.scenarios[0] if getattr(case, "scenarios", ()) else None
     if sc is None or getattr(sc, "solar", "none") != "sun":
         return None
+    basis, balance, warnings = _worst_case(case, sc, balances)
+    return _sun_row_of(sc, basis, balance, warnings)
+
+
+def _worst_case(case: Case, sc, balances: dict | None) -> tuple[str, dict | None, list]:
+    """(basis, energy balance or None, warnings) of scenario `sc` of `case`, as screen._worst_case_temperature
+    finds them. A scenario in the sun takes its balance from `balances` where the cases screened together
+    already solved it for the same inputs (every input of screen.sun_balance is in the key, which is a pure
+    function of them: the same numbers and words, each row its own copy), else solves it and keeps it there."""
+    sun = None
+    if sc.solar == "sun":
+        key = (sc.ambient_max_k, sc.irradiance_w_m2, sc.absorptivity, sc.emissivity, sc.finish, sc.wind_speed_m_s,
+               sc.orientation, sc.name, sc.key, case.outside_diameter_m, case.length_m, case.water_capacity_m3,
+               case.source)
+        sun = balances.get(key) if balances is not None else None
+        if sun is None:
+            sun = _screen.sun_balance(sc, case.outside_diameter_m, case.length_m, case.water_capacity_m3,
+                                      case.source)
+            if balances is not None:
+                balances[key] = sun
     warnings: list = []
-    _t, basis, balance = _screen._worst_case_temperature(case, sc, warnings)
+    _t, basis, balance = _screen.worst_case_temperature(sc, case.fill_temperature_k, sun, warnings)
+    return basis, balance, warnings
+
+
+def _sun_row_of(sc, basis: str, balance: dict, warnings: list) -> SunRow:
+    """A SunRow from the worst-case step's answer for scenario `sc`."""
     t_exposure = max(t for t in (sc.gas_temperature_k, sc.ambient_max_k, balance["wall_temperature_k"])
                      if t is not None)
     return SunRow(basis, balance, warnings, t_exposure)
+
+
+def _plain_sun_rows(plain: PlainRows, rows: Iterable[int]) -> dict[int, SunRow]:
+    """{j: the worst case of the j-th plain row in the sun} for the rows given, as _sun_row finds it from the
+    row's Case (screen.worst_case_temperature). A plain row's balance depends on its ambient maximum, water
+    capacity and the balance's inputs it gives (finish or absorptivity, emissivity, irradiance, wind speed,
+    orientation, outside diameter and length; the tool's defaults for the rest), so rows that share them share
+    one balance (screen.sun_balance is a pure function; each row gets a copy). A row whose balance raises is
+    left out: the per-row path raises it again, in its place."""
+    out: dict[int, SunRow] = {}
+    balances: dict[tuple, tuple | None] = {}
+    t_fill, cap = plain.fill_temperature_k.tolist(), plain.water_capacity_m3.tolist()
+    for j in rows:
+        sc = plain.exposure(j)
+        x = plain.sun_values(j)
+        d, length = x["vessel.outside_diameter"], x["vessel.length"]
+        # every input of screen.sun_balance that can differ between plain rows
+        key = (sc.ambient_max_k, cap[j], sc.finish, sc.irradiance_w_m2, sc.absorptivity, sc.emissivity,
+               sc.wind_speed_m_s, sc.orientation, d, length)
+        if key not in balances:
+            try:
+                balances[key] = _screen.sun_balance(sc, d, length, cap[j], plain.inv.source)
+            except InputError:
+                balances[key] = None
+        sun = balances[key]
+        if sun is None:
+            continue
+        warnings: list = []
+        _t, basis, balance = _screen.worst_case_temperature(sc, t_fill[j], sun, warnings)
+        out[j] = _sun_row_of(sc, basis, balance, warnings)
+    return out
+
+
+#: The warnings of the columns' verdict a row in the sun keeps after its worst-case step's (whose own replace
+#: the columns' exposure warnings), as screen.screen_states orders them: permanent gases, liquefied gases.
+_SUN_KEEPS = ("models-disagree",)
+_SUN_KEEPS_LIQUEFIED = ("near-critical", "near-saturation", "models-disagree")
+
+
+def _sun_warnings(warnings: list, sun: SunRow, keep: tuple[str, ...]) -> list:
+    """A sun row's warnings: its worst-case step's, then those of `warnings` (the columns' verdict) in `keep`."""
+    return list(sun.warnings) + [w for w in warnings if w["code"] in keep]
 
 
 # ----------------------------------------------------------------------------- helpers
@@ -1271,7 +1341,7 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
         v = _verdict(cols, k, gas.molar_mass, case.rated_pressure_pa, case.relief_set_pressure_pa, atm, case.required_margin,
                      case.max_filling_ratio_kg_m3, getattr(sc, "name", None))
     if sun is not None:   # the worst-case step's warnings (screen._worst_case_temperature), then the models'
-        v = {**v, "warnings": list(sun.warnings) + [w for w in v["warnings"] if w["code"] == "models-disagree"]}
+        v = {**v, "warnings": _sun_warnings(v["warnings"], sun, _SUN_KEEPS)}
     t_fill, t_peak = float(case.fill_temperature_k), float(cols["t_peak"][k])
     rho_molar = float(cols["rho_molar"][k])
     rho_mass = rho_molar * gas.molar_mass
@@ -1373,24 +1443,26 @@ def expandable(case: Case) -> bool:
             and bool(scenarios) and all(getattr(s, "solar", "none") in ("none", "sun") for s in scenarios))
 
 
-def _scenario_rows(cases: list[Case]) -> tuple[dict[int, list[SunRow]], list[tuple[int, int]]]:
+def _scenario_rows(cases: list[Case], balances: dict | None = None) -> tuple[dict[int, list[SunRow]],
+                                                                            list[tuple[int, int]]]:
     """({case index: its scenarios' worst cases (:func:`_exposure_row`)}, [(case index, scenario index)], the rows
     of a table with a row per scenario). A case whose worst case raises is left out: the per-row path raises it
-    again, in its place."""
+    again, in its place. `balances`: see :func:`_worst_case`."""
     exposures: dict[int, list[SunRow]] = {}
+    balances = {} if balances is None else balances
     for i, c in enumerate(cases):
         try:
-            exposures[i] = [_exposure_row(c, sc) for sc in c.scenarios]
+            exposures[i] = [_exposure_row(c, sc, balances) for sc in c.scenarios]
         except (InputError, ValueError):
             continue
     return exposures, [(i, j) for i, rows in exposures.items() for j in range(len(rows))]
 
 
-def _exposure_row(case: Case, sc) -> SunRow:
+def _exposure_row(case: Case, sc, balances: dict | None = None) -> SunRow:
     """One scenario's worst case as screen._worst_case_temperature finds it (basis, energy balance, warnings),
-    with its highest exposure temperature. Raises InputError as the single screening does."""
-    warnings: list = []
-    _t, basis, balance = _screen._worst_case_temperature(case, sc, warnings)
+    with its highest exposure temperature. Raises InputError as the single screening does. `balances`: see
+    :func:`_worst_case`."""
+    basis, balance, warnings = _worst_case(case, sc, balances)
     t_exposure = max(t for t in (sc.gas_temperature_k, sc.ambient_max_k,
                                  balance["wall_temperature_k"] if balance is not None else None) if t is not None)
     return SunRow(basis, balance, warnings, t_exposure)
@@ -1458,7 +1530,7 @@ def _drive(gas: Mixture, steps: dict, known: dict | None = None, ahead: list | N
     return done
 
 
-def _screen_expanded(cases: list[Case]) -> list[Result | None]:
+def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Result | None]:
     """Rows of one pure permanent gas with input tolerances and/or several scenarios, on the arrays: every
     scenario a row of the table, every tolerance corner (and the states of its sensitivities) an extra row; the
     rows folded back into one result per vessel as screen.screen_states gives it (tolerance block, scenarios, the
@@ -1466,7 +1538,7 @@ def _screen_expanded(cases: list[Case]) -> list[Result | None]:
     back, or its worst case raises)."""
     out: list[Result | None] = [None] * len(cases)
     gas = cases[0].gas
-    exposures, keys = _scenario_rows(cases)
+    exposures, keys = _scenario_rows(cases, balances)
     if not keys:
         return out
     nominal = Rows(gas, *(np.array(v, dtype=float) for v in zip(*(
@@ -1576,6 +1648,7 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
     groups: dict[tuple[str, bool], list[int]] = {}
     rest: list[int] = []
     sun: dict[int, SunRow | None] = {}
+    balances: dict = {}             # the energy balances solved so far (_worst_case)
     expanded: dict[str, list[int]] = {}
     liquefied_scenarios: dict[str, list[int]] = {}
     for i, c in enumerate(cases):
@@ -1588,7 +1661,7 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
         liquefied = liquefied_vectorisable(c)
         if liquefied or vectorisable(c):
             try:
-                sun[i] = _sun_row(c)
+                sun[i] = _sun_row(c, balances)
             except InputError:
                 rest.append(i)      # the per-row path raises it again, in its place
                 continue
@@ -1613,7 +1686,7 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
     for idx, screen_them in [(idx, _screen_expanded) for idx in expanded.values()] + [
             (idx, _screen_liquefied_scenarios) for idx in liquefied_scenarios.values()]:
         done = 0
-        for i, r in zip(idx, screen_them([cases[i] for i in idx])):
+        for i, r in zip(idx, screen_them([cases[i] for i in idx], balances)):
             if r is None:
                 rest.append(i)
             else:
@@ -1683,14 +1756,33 @@ class PlainScreening:
         groups: dict[tuple[str, bool], list[int]] = {}
         rest: list[int] = []
         by_mass = ~np.isnan(plain.fill_mass_kg)
+        on_columns = []
         for j, gas in enumerate(plain.gases):
             # a permanent gas with a dome filled by mass on the liquefied-gas columns; hydrogen, helium, neon and
             # air filled by mass on the permanent-gas columns with their fills by pressure
             liquefied = _on_liquefied_columns(gas, bool(by_mass[j]))
-            if liquefied or _vector_gas(gas):
+            on_columns.append(liquefied or _vector_gas(gas))
+            if on_columns[-1]:
                 groups.setdefault((gas.name, liquefied), []).append(j)
             else:
                 rest.append(j)
+        # rows in the sun: their worst case from the energy balance (screen.worst_case_temperature), entering the
+        # columns as Rows.of_cases enters them (the highest exposure temperature as the gas temperature, no
+        # ambient); a row whose balance raises goes per row
+        self._sun: dict[int, SunRow] = {}
+        ambient, hot = plain.ambient_max_k, plain.gas_temperature_k
+        if plain.sun is not None and plain.sun.any():
+            in_sun = [j for j in np.flatnonzero(plain.sun).tolist() if on_columns[j]]
+            self._sun = _plain_sun_rows(plain, in_sun)
+            failed = set(in_sun) - set(self._sun)
+            if failed:
+                rest.extend(sorted(failed))
+                groups = {nm: kept for nm, idx in groups.items() if (kept := [j for j in idx if j not in failed])}
+            if self._sun:
+                at = np.array(list(self._sun), dtype=np.int64)
+                ambient, hot = ambient.copy(), hot.copy()
+                ambient[at] = np.nan
+                hot[at] = [u.t_exposure for u in self._sun.values()]
         names = list(groups)
         parts = []
         for nm in names:
@@ -1698,12 +1790,13 @@ class PlainScreening:
             # the fill mass per water capacity as LiquefiedRows.of_cases divides it
             rho_mass = plain.fill_mass_kg[idx] / plain.water_capacity_m3[idx] if by_mass[idx].any() else None
             parts.append(PlainPart(plain.gases[idx[0]], plain.fill_pressure_pa[idx], plain.fill_temperature_k[idx],
-                                   plain.ambient_max_k[idx], plain.gas_temperature_k[idx], plain.rated_pa[idx],
+                                   ambient[idx], hot[idx], plain.rated_pa[idx],
                                    plain.atmospheric_pa[idx], plain.required_margin[idx], plain.relief_pa[idx],
                                    plain.max_filling_ratio_kg_m3[idx], rho_mass, liquefied=nm[1]))
         for nm, cols in zip(names, _run_columns(parts, _plain_columns)):
             done = 0
             gas = plain.gases[groups[nm][0]]
+            keep = _SUN_KEEPS_LIQUEFIED if cols.get("kind") == "liquefied" else _SUN_KEEPS
             fallback, verdicts = cols["fallback"].tolist(), cols["verdict"].tolist()
             max_t, max_p = cols["max_t"].tolist(), cols["max_p"].tolist()
             rated, margin_req, atm, p_fill = (a[groups[nm]].tolist() for a in (
@@ -1714,8 +1807,10 @@ class PlainScreening:
                     continue
                 v = verdicts[k]
                 self._where[j] = (cols, k)
+                sun = self._sun.get(j)
                 self.summaries[j] = {
-                    "id": plain.ids[j], "verdict": v["verdict"], "reasons": v["reasons"], "warnings": v["warnings"],
+                    "id": plain.ids[j], "verdict": v["verdict"], "reasons": v["reasons"],
+                    "warnings": v["warnings"] if sun is None else _sun_warnings(v["warnings"], sun, keep),
                     "peak_pressure_pa": v["peak_pressure_pa"], "rated_pressure_pa": rated[k],
                     "margin_fraction": v["margin_fraction"],
                     "required_margin_fraction": margin_req[k],
@@ -1750,7 +1845,7 @@ class PlainScreening:
                 return single(self.plain.case(j))
             except InputError as exc:
                 return {"verdict": "input-error", "error": exc}
-        return _assemble(self.plain.case(j), cols, k)
+        return _assemble(self.plain.case(j), cols, k, sun=self._sun.get(j))
 
     def full_json(self, j: int) -> dict | None:
         """``full(j).to_json()``, built without the Result where the row ran on the columns
@@ -1763,7 +1858,7 @@ class PlainScreening:
         if cols.get("kind") == "liquefied" and not _mass_limit_settled(cols, k, self.plain.gases[j]):
             r = self.full(j)
             return r.to_json() if isinstance(r, Result) else None
-        return Result.json_layout(_row_dict(self.plain.case(j), cols, k))
+        return Result.json_layout(_row_dict(self.plain.case(j), cols, k, sun=self._sun.get(j)))
 
 
 def iter_chunks(items: list, size: int) -> Iterable[list]:
@@ -1833,14 +1928,14 @@ def liquefied_expandable(case: Case) -> bool:
             and all(getattr(s, "solar", "none") in ("none", "sun") for s in scenarios))
 
 
-def _screen_liquefied_scenarios(cases: list[Case]) -> list[Result | None]:
+def _screen_liquefied_scenarios(cases: list[Case], balances: dict | None = None) -> list[Result | None]:
     """Rows of one gas on the liquefied-gas columns with several scenarios: every scenario a row of one table
     (its worst case as screen._worst_case_temperature finds it, :func:`_exposure_row`), each scenario's result
     laid out as for a row of one scenario, then folded into one result per vessel by screen.fold_scenarios, as
     screen.screen_states folds them. None where a row must go per row (one of its scenarios fell back, or its
     worst case raises)."""
     out: list[Result | None] = [None] * len(cases)
-    exposures, keys = _scenario_rows(cases)
+    exposures, keys = _scenario_rows(cases, balances)
     if not keys:
         return out
     cols = _liquefied_columns(LiquefiedRows.of_cases([cases[i] for i, _j in keys],
@@ -2636,8 +2731,7 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
         v = _liquefied_verdict(cols, k, case.rated_pressure_pa, case.relief_set_pressure_pa, atm,
                                case.required_margin, case.max_filling_ratio_kg_m3, getattr(sc, "name", None))
     if sun is not None:   # the worst-case step's warnings (screen._worst_case_temperature), then the fill state's
-        v = {**v, "warnings": list(sun.warnings) + [w for w in v["warnings"]
-                                                     if w["code"] in ("near-critical", "near-saturation", "models-disagree")]}
+        v = {**v, "warnings": _sun_warnings(v["warnings"], sun, _SUN_KEEPS_LIQUEFIED)}
     t_fill, t_peak = float(case.fill_temperature_k), float(cols["t_peak"][k])
     by_pressure = case.fill_pressure_pa is not None
     refused = bool(cols["refused"][k])

@@ -1395,6 +1395,19 @@ def gas_below_ambient_warning(name: str | None) -> dict:
 
 def _worst_case_temperature(case: Case, sc: Exposure, warnings: list) -> tuple[float, str, dict | None]:
     """Worst-case gas temperature [K] of one scenario, its basis in words, and the energy balance if any."""
+    sun = None
+    if sc.solar == "sun":
+        sun = sun_balance(sc, case.outside_diameter_m, case.length_m, case.water_capacity_m3, case.source)
+    return worst_case_temperature(sc, case.fill_temperature_k, sun, warnings)
+
+
+def worst_case_temperature(sc: Exposure, fill_temperature_k: float | None, sun: tuple[dict, list] | None,
+                           warnings: list) -> tuple[float, str, dict | None]:
+    """Worst-case gas temperature [K] of one scenario, its basis in words, and the energy balance if any, from
+    the scenario, the fill temperature [K] (None: not given) and, for a scenario in the sun, its
+    :func:`sun_balance` (the balance and that step's warnings, which are copied, never changed). The step's
+    warnings are appended to `warnings` in order: the stated gas temperature below the ambient, the sun's,
+    the fill state governing."""
     candidates: list[tuple[float, str]] = []
     if sc.gas_temperature_k is not None:
         candidates.append((sc.gas_temperature_k, "gas temperature stated in the case"))
@@ -1403,70 +1416,85 @@ def _worst_case_temperature(case: Case, sc: Exposure, warnings: list) -> tuple[f
     if sc.gas_temperature_k is not None and sc.ambient_max_k is not None and sc.gas_temperature_k < sc.ambient_max_k:
         warnings.append(gas_below_ambient_warning(sc.name))
     balance_dict = None
-    if sc.solar == "sun":
-        notes = []
-        if case.outside_diameter_m is not None and case.length_m is not None:
-            d, length, estimated = case.outside_diameter_m, case.length_m, False
-        else:
-            d, length = estimate_dimensions(case.water_capacity_m3)
-            estimated = True
-            notes.append(f"Outside diameter and length estimated from the water capacity (length/diameter "
-                         f"{DEFAULT_ASPECT_RATIO:g}).")
-        if sc.finish is not None:
-            try:
-                fin = finish(sc.finish.strip().lower().replace(" ", "_").replace("-", "_"))
-            except InputError as exc:
-                raise InputError(exc.message, file=case.source, key=f"{sc.key}.finish", given=sc.finish,
-                                 expected=exc.expected) from None
-            alpha, eps_default = fin.absorptivity, fin.emissivity
-            notes.append(f"Finish '{fin.label or fin.name}': absorptivity {fin.absorptivity:.2f}, emissivity "
-                         f"{fin.emissivity:.2f} ({fin.source}).")
-        elif sc.absorptivity is not None:
-            alpha, eps_default = sc.absorptivity, DEFAULT_EMISSIVITY
-        else:
-            alpha, eps_default = UNKNOWN_FINISH_ABSORPTIVITY, DEFAULT_EMISSIVITY
-            notes.append(f"No finish or absorptivity given: {UNKNOWN_FINISH_ABSORPTIVITY:.2f} assumed (a dark "
-                         "finish, the conservative side).")
-            warnings.append({"code": "finish-assumed", "message":
-                             f"{sc.name}: no surface finish given; a dark finish (absorptivity "
-                             f"{UNKNOWN_FINISH_ABSORPTIVITY:.2f}) is assumed."})
-        eps = sc.emissivity if sc.emissivity is not None else eps_default
-        irradiance = sc.irradiance_w_m2 if sc.irradiance_w_m2 is not None else DEFAULT_IRRADIANCE
-        if sc.irradiance_w_m2 is None:
-            notes.append(f"Irradiance {DEFAULT_IRRADIANCE:.0f} W/m2: the tool's default (rule of thumb: clear-sky "
-                         "peak sun at sea level).")
-        sky = None
-        if sc.ambient_max_k > SKY_CORRELATION_MAX_AMBIENT_K:
-            sky = sc.ambient_max_k
-            notes.append("Ambient above the sky-temperature correlation's range: sky taken at ambient.")
-        try:
-            b = solar_wall_temperature(sc.ambient_max_k, irradiance_w_m2=irradiance, absorptivity=alpha,
-                                       emissivity=eps, wind_speed_m_s=sc.wind_speed_m_s, outside_diameter_m=d,
-                                       length_m=length, orientation=sc.orientation, sky_temperature_k=sky,
-                                       ground_albedo=GROUND_ALBEDO)
-        except InputError as exc:
-            raise exc.located(file=case.source, key=sc.key) from None
-        except NotApplicable as exc:
-            raise InputError(f"the sun exposure is outside the energy balance's range: {exc.reason}",
-                             file=case.source, key=sc.key) from None
-        balance_dict = {
-            "wall_temperature_k": b.wall_temperature_k, "ambient_k": b.ambient_k,
-            "sky_temperature_k": b.sky_temperature_k, "irradiance_w_m2": b.irradiance_w_m2,
-            "absorptivity": b.absorptivity, "emissivity": b.emissivity, "wind_speed_m_s": b.wind_speed_m_s,
-            "absorbed_w_m2": b.absorbed_w_m2, "convected_w_m2": b.convected_w_m2, "radiated_w_m2": b.radiated_w_m2,
-            "h_convection_w_m2k": b.h_convection_w_m2k, "regime": b.regime, "orientation": b.orientation,
-            "outside_diameter_m": d, "length_m": length, "dimensions_estimated": estimated,
-            "ground_albedo": GROUND_ALBEDO, "residual_fraction": b.residual_fraction(),
-            "notes": notes + list(b.notes),
-        }
-        candidates.append((b.wall_temperature_k, "vessel wall temperature in the sun (energy balance)"))
+    if sun is not None:
+        balance, sun_warnings = sun
+        balance_dict = {**balance, "notes": list(balance["notes"])}
+        warnings.extend(dict(w) for w in sun_warnings)
+        candidates.append((balance_dict["wall_temperature_k"], "vessel wall temperature in the sun (energy balance)"))
     t_exposure = max(c[0] for c in candidates)
-    t = screened_temperature(t_exposure, case.fill_temperature_k)
+    t = screened_temperature(t_exposure, fill_temperature_k)
     if t > t_exposure:
         candidates.append((t, FILL_STATE_BASIS))
         warnings.append(fill_state_warning(sc.name, t_exposure, t))
     t, basis = max(candidates, key=lambda c: c[0])
     return t, basis, balance_dict
+
+
+def sun_balance(sc: Exposure, outside_diameter_m: float | None, length_m: float | None, water_capacity_m3: float,
+                source: str | None) -> tuple[dict, list]:
+    """The energy balance of a scenario in the sun (physics.exposure.solar_wall_temperature) as a result lays
+    it out, and the warnings of that step. A pure function of its arguments (the scenario's ambient maximum,
+    irradiance, finish or absorptivity, emissivity, wind, orientation and name; the vessel's dimensions, or
+    its water capacity where they are not given): rows that share them may share its answer, which
+    :func:`worst_case_temperature` copies. Raises InputError (located in `source`, the scenario's key) where
+    the exposure is outside the balance's range."""
+    notes = []
+    warnings: list = []
+    if outside_diameter_m is not None and length_m is not None:
+        d, length, estimated = outside_diameter_m, length_m, False
+    else:
+        d, length = estimate_dimensions(water_capacity_m3)
+        estimated = True
+        notes.append(f"Outside diameter and length estimated from the water capacity (length/diameter "
+                     f"{DEFAULT_ASPECT_RATIO:g}).")
+    if sc.finish is not None:
+        try:
+            fin = finish(sc.finish.strip().lower().replace(" ", "_").replace("-", "_"))
+        except InputError as exc:
+            raise InputError(exc.message, file=source, key=f"{sc.key}.finish", given=sc.finish,
+                             expected=exc.expected) from None
+        alpha, eps_default = fin.absorptivity, fin.emissivity
+        notes.append(f"Finish '{fin.label or fin.name}': absorptivity {fin.absorptivity:.2f}, emissivity "
+                     f"{fin.emissivity:.2f} ({fin.source}).")
+    elif sc.absorptivity is not None:
+        alpha, eps_default = sc.absorptivity, DEFAULT_EMISSIVITY
+    else:
+        alpha, eps_default = UNKNOWN_FINISH_ABSORPTIVITY, DEFAULT_EMISSIVITY
+        notes.append(f"No finish or absorptivity given: {UNKNOWN_FINISH_ABSORPTIVITY:.2f} assumed (a dark "
+                     "finish, the conservative side).")
+        warnings.append({"code": "finish-assumed", "message":
+                         f"{sc.name}: no surface finish given; a dark finish (absorptivity "
+                         f"{UNKNOWN_FINISH_ABSORPTIVITY:.2f}) is assumed."})
+    eps = sc.emissivity if sc.emissivity is not None else eps_default
+    irradiance = sc.irradiance_w_m2 if sc.irradiance_w_m2 is not None else DEFAULT_IRRADIANCE
+    if sc.irradiance_w_m2 is None:
+        notes.append(f"Irradiance {DEFAULT_IRRADIANCE:.0f} W/m2: the tool's default (rule of thumb: clear-sky "
+                     "peak sun at sea level).")
+    sky = None
+    if sc.ambient_max_k > SKY_CORRELATION_MAX_AMBIENT_K:
+        sky = sc.ambient_max_k
+        notes.append("Ambient above the sky-temperature correlation's range: sky taken at ambient.")
+    try:
+        b = solar_wall_temperature(sc.ambient_max_k, irradiance_w_m2=irradiance, absorptivity=alpha,
+                                   emissivity=eps, wind_speed_m_s=sc.wind_speed_m_s, outside_diameter_m=d,
+                                   length_m=length, orientation=sc.orientation, sky_temperature_k=sky,
+                                   ground_albedo=GROUND_ALBEDO)
+    except InputError as exc:
+        raise exc.located(file=source, key=sc.key) from None
+    except NotApplicable as exc:
+        raise InputError(f"the sun exposure is outside the energy balance's range: {exc.reason}",
+                         file=source, key=sc.key) from None
+    balance_dict = {
+        "wall_temperature_k": b.wall_temperature_k, "ambient_k": b.ambient_k,
+        "sky_temperature_k": b.sky_temperature_k, "irradiance_w_m2": b.irradiance_w_m2,
+        "absorptivity": b.absorptivity, "emissivity": b.emissivity, "wind_speed_m_s": b.wind_speed_m_s,
+        "absorbed_w_m2": b.absorbed_w_m2, "convected_w_m2": b.convected_w_m2, "radiated_w_m2": b.radiated_w_m2,
+        "h_convection_w_m2k": b.h_convection_w_m2k, "regime": b.regime, "orientation": b.orientation,
+        "outside_diameter_m": d, "length_m": length, "dimensions_estimated": estimated,
+        "ground_albedo": GROUND_ALBEDO, "residual_fraction": b.residual_fraction(),
+        "notes": notes + list(b.notes),
+    }
+    return balance_dict, warnings
 
 
 def fill_state_warning(scenario: str, t_exposure: float, t_fill: float) -> dict:

@@ -3,6 +3,7 @@ accepts a row the case reader refuses."""
 
 import math
 
+import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
@@ -11,7 +12,8 @@ from screening.inputs.columns import read_plain
 from screening.inputs.inventory import read_inventory, row_case
 
 HEAD = ("id,gas,water_capacity,rated_pressure [bar(g)],relief_set_pressure,fill_pressure,fill_temperature,"
-        "ambient_max,gas_temperature,required_margin,site,elevation,atmospheric_pressure,max_filling_ratio,fill_mass")
+        "ambient_max,gas_temperature,required_margin,site,elevation,atmospheric_pressure,max_filling_ratio,fill_mass,"
+        "solar,finish,absorptivity,emissivity,irradiance,wind_speed,orientation,outside_diameter,length")
 
 # cell texts, good and bad, as people type them
 GAS = st.sampled_from(["nitrogen", "argon", "Argon", "N2", "methane", "carbon dioxide", "unobtainium", "",
@@ -30,7 +32,15 @@ ELEV = st.sampled_from(["", "240 m", "20000 m"])
 ATM = st.sampled_from(["", "98.5 kPa(a)", "98.5 kPa(g)", "150 kPa(a)", "0.98 bar(a)"])
 RATIO = st.sampled_from(["", "0.75 kg/L", "-0.1 kg/L"])
 MASS = st.sampled_from(["", "", "", "20 kg", "20", "4500 g", "44 lb", "0 kg", "-3 kg", "20 L", "heavy"])
-ROW = st.tuples(GAS, CAP, RATED, RELIEF, PRESSURE, TEMP, AMB, HOT, MARGIN, SITE, ELEV, ATM, RATIO, MASS)
+SOLAR = st.sampled_from(["", "", "sun", "none", "Sun", "yes"])
+FINISH = st.sampled_from(["", "", "white paint", "red_paint", "chrome"])
+FRACTION = st.sampled_from(["", "", "", "0.6", "60 %", "0.97", "1", "0", "1.2", "-0.1", "dark"])
+IRRADIANCE = st.sampled_from(["", "", "800 W/m2", "0", "1000", "-5 W/m2", "2 m/s"])
+WIND = st.sampled_from(["", "", "2 m/s", "0", "10 km/h", "-1 m/s", "3"])
+ORIENTATION = st.sampled_from(["", "", "vertical", "horizontal", "Vertical", "upright"])
+LENGTH = st.sampled_from(["", "", "229 mm", "1.4 m", "0 m", "-1 m", "140", "6 m", "60 m"])
+SUN = st.tuples(SOLAR, FINISH, FRACTION, FRACTION, IRRADIANCE, WIND, ORIENTATION, LENGTH, LENGTH)
+ROW = st.tuples(GAS, CAP, RATED, RELIEF, PRESSURE, TEMP, AMB, HOT, MARGIN, SITE, ELEV, ATM, RATIO, MASS, SUN)
 
 
 def _same(a, b):
@@ -43,7 +53,7 @@ def _same(a, b):
 @given(st.lists(ROW, min_size=5, max_size=25))
 def test_plain_rows_match_the_case_reader(tmp_path_factory, rows):
     path = tmp_path_factory.mktemp("inv") / "inv.csv"
-    lines = [HEAD] + [f"R{i}," + ",".join(cells) for i, cells in enumerate(rows)]
+    lines = [HEAD] + [f"R{i}," + ",".join(cells[:-1] + cells[-1]) for i, cells in enumerate(rows)]
     path.write_text("\n".join(lines) + "\n", encoding="utf-8")
     inv = read_inventory(path)
     plain = read_plain(inv, None)
@@ -72,6 +82,9 @@ def test_plain_rows_match_the_case_reader(tmp_path_factory, rows):
         assert plain.required_margin[j] == case.required_margin
         assert bool(plain.required_margin_is_default[j]) == case.required_margin_is_default
         assert plain.display_units[j] == case.display_units
+        assert plain.in_sun(j) == (case.scenarios[0].solar == "sun")
+        assert plain.finish(j) == case.scenarios[0].finish
+        assert plain.exposure(j) == case.scenarios[0]
         assert plain.case(j) == case
 
 
@@ -82,17 +95,54 @@ def test_defaults_fill_plain_rows_and_unusual_defaults_send_every_row_to_the_cas
     inv = read_inventory(path)
     plain = read_plain(inv, {"exposure": {"ambient_max": "45 degC"}, "criteria": {"required_margin": "5 %"}})
     assert len(plain) == 1 and plain.ambient_max_k[0] == 318.15 and plain.required_margin[0] == 0.05
-    assert len(read_plain(inv, {"exposure": {"ambient_max": "45 degC", "solar": "sun"}})) == 0
+    # a finish and an absorptivity: the case reader refuses the pair
+    assert len(read_plain(inv, {"exposure": {"ambient_max": "45 degC", "solar": "sun", "absorptivity": "0.6",
+                                             "finish": "white paint"}})) == 0
     assert len(read_plain(inv, {"exposure": {"ambient_max": "45 degC"}, "tolerance": {"fill_temperature": "2 K"}})) == 0
 
 
-def test_a_column_outside_the_plain_keys_sends_its_rows_to_the_case_reader(tmp_path):
+def test_a_row_the_case_reader_refuses_for_its_sun_inputs_goes_to_the_case_reader(tmp_path):
+    # every column of a case key is a plain key now; a row giving both a finish and an absorptivity is refused
     path = tmp_path / "inv.csv"
-    path.write_text("id,gas,water_capacity,rated_pressure,fill_pressure,fill_temperature,ambient_max,solar\n"
-                    "A,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC,sun\n"
-                    "B,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC,\n", encoding="utf-8")
-    plain = read_plain(read_inventory(path), None)
-    assert plain.ids == ["B"]
+    path.write_text("id,gas,water_capacity,rated_pressure,fill_pressure,fill_temperature,ambient_max,solar,"
+                    "absorptivity,finish\n"
+                    "A,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC,sun,0.6,white paint\n"
+                    "B,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC,,,\n"
+                    "C,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC,sun,0.6,\n", encoding="utf-8")
+    inv = read_inventory(path)
+    plain = read_plain(inv, None)
+    assert plain.ids == ["B", "C"]
+    with pytest.raises(InputError, match="finish or an absorptivity"):
+        row_case(inv, *inv.rows[0], None)
+
+
+def test_a_row_in_the_sun_is_plain_with_its_ambient_and_is_read_as_the_case_reader_reads_it(tmp_path):
+    path = tmp_path / "inv.csv"
+    path.write_text("id,gas,water_capacity,rated_pressure,fill_pressure,fill_temperature,ambient_max,"
+                    "gas_temperature,solar\n"
+                    "S,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC,,sun\n"
+                    "H,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC,65 degC,sun\n"
+                    "N,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC,,none\n"
+                    "E,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,,,\n"
+                    "G,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,,65 degC,sun\n"
+                    "C,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC,,Sun\n"
+                    "Y,nitrogen,50 L,300 bar(g),200 bar(g),15 degC,45 degC,,yes\n", encoding="utf-8")
+    inv = read_inventory(path)
+    plain = read_plain(inv, None)
+    # a sun exposure needs its ambient (G), and only "none" or "sun" is read (C, Y): the case reader refuses them
+    assert plain.ids == ["S", "H", "N"]
+    assert plain.sun.tolist() == [True, True, False]
+    for j, pos in enumerate(plain.index):
+        assert plain.case(j) == row_case(inv, *inv.rows[int(pos)], None)
+    for pos in (4, 5, 6):
+        with pytest.raises(InputError):
+            row_case(inv, *inv.rows[pos], None)
+    with_default = read_plain(inv, {"exposure": {"solar": "sun", "finish": "white paint"}})
+    assert with_default.ids == ["S", "H", "N"] and with_default.sun.tolist() == [True, True, False]
+    assert with_default.case(0).scenarios[0].solar == "sun"
+    for j, pos in enumerate(with_default.index):
+        case = row_case(inv, *inv.rows[int(pos)], {"exposure": {"solar": "sun", "finish": "white paint"}})
+        assert with_default.case(j) == case and case.scenarios[0].finish == "white paint"
 
 
 def test_a_fill_by_mass_is_a_plain_row_and_a_fill_by_both_or_neither_is_not(tmp_path):

@@ -7,7 +7,9 @@ each distinct cell text is parsed once, with the same unit parser (:func:`screen
 the same gas parser as a case file, and the row's values are gathered into arrays in SI.
 
 What a plain row is: every non-empty cell (or default) belongs to :data:`PLAIN_KEYS`; the fill is given
-by pressure and temperature, or by mass and temperature; and every check of :func:`screening.inputs.case.parse_case_data` that
+by pressure and temperature, or by mass and temperature; a row in the sun (``solar`` "sun" with its ambient
+maximum, and any of the balance's inputs: finish or absorptivity, emissivity, irradiance, wind speed, orientation,
+the vessel's outside diameter and length) is plain; and every check of :func:`screening.inputs.case.parse_case_data` that
 applies to these keys passes. Anything else, or any doubt, leaves the row to
 :func:`screening.inputs.inventory.row_case`, the authoritative reader, which also writes the located
 message of a bad row. This module never writes an error message of its own: a row it cannot accept is
@@ -30,14 +32,25 @@ from screening.inputs.inventory import Inventory, Unreadable, cell_value, defaul
 from screening.physics.gases import Mixture
 from screening.units import parse, si_many, standard_atmosphere_pressure
 
+#: The energy balance's quantity inputs a plain row may give: (case key, quantity kind as units.parse names it).
+#: Each is read one text at a time by units.parse with its key (whose range is the key's, not the kind's), then
+#: held to the case reader's rule: above zero (the dimensions), zero or more (irradiance, wind speed), or 0 to 1
+#: (absorptivity and emissivity, read without a unit label or an input record, as the case reader reads them).
+SUN_QUANTITIES = (("vessel.outside_diameter", "length"), ("vessel.length", "length"),
+                  ("exposure.irradiance", "irradiance"), ("exposure.absorptivity", "fraction"),
+                  ("exposure.emissivity", "fraction"), ("exposure.wind_speed", "speed"))
+_NON_NEGATIVE = {"exposure.irradiance", "exposure.wind_speed"}
+_UNIT_FRACTIONS = {"exposure.absorptivity", "exposure.emissivity"}
+
 #: Case keys a plain row may hold (as columns or defaults).
 PLAIN_KEYS = frozenset({
     "id", "description", "pressure_basis", "site.name", "site.atmospheric_pressure", "site.elevation",
     "fill.gas", "vessel.water_capacity", "vessel.rated_pressure", "vessel.rated_pressure_kind",
     "vessel.relief_set_pressure", "vessel.max_filling_ratio", "fill.pressure", "fill.temperature", "fill.mass",
-    "exposure.ambient_max", "exposure.gas_temperature", "criteria.required_margin",
+    "exposure.ambient_max", "exposure.gas_temperature", "exposure.solar", "exposure.finish",
+    "criteria.required_margin", *(k for k, _ in (SUN_QUANTITIES + (("exposure.orientation", None),))),
 })
-_TEXT = {"id", "description", "site.name", "vessel.rated_pressure_kind"}
+_TEXT = {"id", "description", "site.name", "vessel.rated_pressure_kind", "exposure.finish"}
 _PRESSURES = ("vessel.rated_pressure", "vessel.relief_set_pressure", "fill.pressure")
 
 
@@ -50,7 +63,8 @@ class PlainRows:
     """Plain rows of an inventory as arrays in SI (pressures absolute [Pa], temperatures [K], [m3], [-]).
 
     ``index[j]`` is the position in ``inv.rows`` of the j-th plain row; NaN marks an absent optional value
-    (each row has a fill pressure or a fill mass [kg], the other NaN).
+    (each row has a fill pressure or a fill mass [kg], the other NaN); ``sun[j]``: the row's exposure is in
+    the sun (``solar = "sun"``; its ambient maximum is then given).
     """
 
     inv: Inventory
@@ -77,6 +91,13 @@ class PlainRows:
     entered: dict[str, list] | None = None
     #: (header, cell text as the case reader reads it, per plain row) of every column of a case key
     cell_texts: list[tuple[str, list[str]]] | None = None
+    #: whether each plain row is in the sun (None: no row is)
+    sun: np.ndarray | None = None
+    #: each plain row's surface finish as entered (None where not given; the list None: no row gives one)
+    finishes: list | None = None
+    #: the other inputs of the sun's balance given (SUN_QUANTITIES [SI, NaN where absent], and
+    #: "exposure.orientation" [text or None]): {key: per plain row}, only the keys some row gives
+    sun_inputs: dict | None = None
 
     def __len__(self) -> int:
         return len(self.ids)
@@ -98,6 +119,7 @@ class PlainRows:
             v = si[key][j]
             return None if math.isnan(v) else v
         ambient, hot = opt("exposure.ambient_max"), opt("exposure.gas_temperature")
+        extra = self.sun_values(j)
         return Case(
             id=self.ids[j], description=texts.get("description"), source=self.inv.source,
             text="\n".join(lines) + "\n",
@@ -110,7 +132,34 @@ class PlainRows:
             ambient_max_k=ambient, gas_temperature_k=hot, required_margin=si["criteria.required_margin"][j],
             required_margin_is_default=bool(self.required_margin_is_default[j]),
             inputs=inputs, display_units=dict(self.display_units[j]),
-            scenarios=(Exposure("exposure", ambient, hot, key="exposure"),))
+            scenarios=(self.exposure(j),),
+            outside_diameter_m=extra["vessel.outside_diameter"], length_m=extra["vessel.length"])
+
+    def exposure(self, j: int) -> Exposure:
+        """The j-th plain row's one exposure scenario, as the case reader makes it."""
+        ambient, hot = self.ambient_max_k[j].item(), self.gas_temperature_k[j].item()
+        x = self.sun_values(j)
+        return Exposure("exposure", None if math.isnan(ambient) else ambient, None if math.isnan(hot) else hot,
+                        "sun" if self.in_sun(j) else "none", x["exposure.irradiance"], x["exposure.absorptivity"],
+                        x["exposure.emissivity"], self.finish(j), x["exposure.wind_speed"] or 0.0,
+                        x["exposure.orientation"] or "horizontal", key="exposure")
+
+    def sun_values(self, j: int) -> dict:
+        """The j-th plain row's inputs of the sun's balance besides its ambient and finish: {key: SI value or
+        orientation text, None where not given} for every key of SUN_QUANTITIES and "exposure.orientation"."""
+        got = dict.fromkeys([k for k, _ in SUN_QUANTITIES] + ["exposure.orientation"])
+        for k, values in (self.sun_inputs or {}).items():
+            v = values[j]
+            got[k] = None if v is None or (isinstance(v, float) and math.isnan(v)) else v
+        return got
+
+    def in_sun(self, j: int) -> bool:
+        """Whether the j-th plain row is in the sun."""
+        return self.sun is not None and bool(self.sun[j])
+
+    def finish(self, j: int) -> str | None:
+        """The j-th plain row's surface finish as entered (None where not given)."""
+        return self.finishes[j] if self.finishes is not None else None
 
     def _si_values(self) -> dict[str, list[float]]:
         """Each key's SI values per plain row as Python floats (NaN where absent), listed once."""
@@ -125,6 +174,9 @@ class PlainRows:
                 "exposure.gas_temperature": self.gas_temperature_k, "criteria.required_margin": self.required_margin}
             for k, a in got.items():
                 got[k] = a.tolist()
+            for k, _kind in SUN_QUANTITIES:
+                values = (self.sun_inputs or {}).get(k)
+                got[k] = list(values) if values is not None else [math.nan] * len(self)
         return got
 
     def read_case(self, j: int) -> Case:
@@ -138,7 +190,9 @@ _RECORDS = (("site.atmospheric_pressure", "Pa (absolute)"), ("site.elevation", "
             ("vessel.water_capacity", "m3"), ("vessel.rated_pressure", "Pa (absolute)"),
             ("vessel.relief_set_pressure", "Pa (absolute)"), ("vessel.max_filling_ratio", "kg/m3"),
             ("fill.pressure", "Pa (absolute)"), ("fill.temperature", "K"), ("fill.mass", "kg"),
-            ("exposure.ambient_max", "K"), ("exposure.gas_temperature", "K"),
+            ("vessel.outside_diameter", "m"), ("vessel.length", "m"),
+            ("exposure.ambient_max", "K"), ("exposure.gas_temperature", "K"), ("exposure.irradiance", "W/m2"),
+            ("exposure.wind_speed", "m/s"),
             ("criteria.required_margin", "(fraction)"))
 
 
@@ -168,6 +222,34 @@ def _parser(key: str):
                 raise _NotPlain
             return value
         return text
+    if key == "exposure.orientation":
+        def orientation(value):     # as the case reader reads it: exactly "horizontal" or "vertical"
+            if value not in ("horizontal", "vertical"):
+                raise _NotPlain
+            return value
+        return orientation
+    if key in _SUN_KINDS:
+        sun_kind = _SUN_KINDS[key]
+
+        def sun_quantity(value):
+            reading = parse(value, sun_kind, key=key)
+            v = reading.si()
+            if key in _UNIT_FRACTIONS:
+                good = 0.0 <= v <= 1.0
+            elif key in _NON_NEGATIVE:
+                good = 0.0 <= v < math.inf
+            else:
+                good = 0.0 < v < math.inf
+            if not good:
+                raise _NotPlain
+            return v, reading.unit.label
+        return sun_quantity
+    if key == "exposure.solar":
+        def solar(value):           # as the case reader reads it: exactly "none" or "sun"
+            if value not in ("none", "sun"):
+                raise _NotPlain
+            return value == "sun"
+        return solar
     if key == "pressure_basis":
         def basis(value):
             if value not in ("gauge", "absolute"):
@@ -198,9 +280,7 @@ def _parser(key: str):
             h = parse(value, "length").si()
             return standard_atmosphere_pressure(h), None, h
         return elevation
-    kind = {"vessel.water_capacity": "volume", "vessel.max_filling_ratio": "density", "fill.mass": "mass",
-            "fill.temperature": "temperature", "exposure.ambient_max": "temperature",
-            "exposure.gas_temperature": "temperature", "criteria.required_margin": "fraction"}[key]
+    kind = _KINDS[key]
 
     def quantity(value):
         reading = parse(value, kind)
@@ -220,6 +300,7 @@ _KINDS = {"vessel.water_capacity": "volume", "vessel.max_filling_ratio": "densit
           "fill.temperature": "temperature", "exposure.ambient_max": "temperature",
           "exposure.gas_temperature": "temperature", "criteria.required_margin": "fraction",
           **{k: "pressure" for k in _PRESSURES}}
+_SUN_KINDS = dict(SUN_QUANTITIES)
 
 
 def _accepted(key: str, kind: str, v: float, spec):
@@ -291,7 +372,8 @@ class _Cache:
 def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     """The plain rows of ``inv.rows``, as arrays."""
     empty = {k: [] for k in ("index", "ids", "gases", "atm", "cap", "rated", "relief", "ratio", "p", "t", "amb",
-                             "gas_t", "margin", "margin_default", "units", "mass", "elev")}
+                             "gas_t", "margin", "margin_default", "units", "mass", "elev", "sun", "finish",
+                             "sun_inputs")}
     flat = _flatten_defaults(defaults)
     if flat is None:
         return _finish(inv, defaults, empty)
@@ -401,6 +483,17 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     amb, _ = quantities("exposure.ambient_max")
     hot, _ = quantities("exposure.gas_temperature")
     margin, _ = quantities("criteria.required_margin")
+    sun = np.array([g is True for g in parsed("exposure.solar", column("exposure.solar"))], dtype=bool)
+    finishes = parsed("exposure.finish", column("exposure.finish"))
+    sun_read: dict[str, list] = {}
+    for key, _kind in SUN_QUANTITIES:
+        if key in texts:
+            sun_read[key] = [None if g is None else g[0] for g in parsed(key, column(key))]
+    if "exposure.orientation" in texts:
+        sun_read["exposure.orientation"] = parsed("exposure.orientation", column("exposure.orientation"))
+    if "exposure.absorptivity" in sun_read:       # a finish and an absorptivity: the case reader refuses both
+        ok &= ~np.array([a is not None and f is not None
+                         for a, f in zip(sun_read["exposure.absorptivity"], finishes)], dtype=bool)
     margin_default = np.array([v is _MISSING for v in column("criteria.required_margin")], dtype=bool)
     margin = np.where(margin_default, DEFAULT_REQUIRED_MARGIN, margin)
     with np.errstate(invalid="ignore"):
@@ -408,6 +501,7 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
         ok &= np.isnan(relief) | (relief > atm)
         ok &= ~(np.isnan(amb) & np.isnan(hot))                 # the worst case needs one of them
         ok &= np.isnan(p_fill) != np.isnan(mass)               # the fill by pressure or by mass, not both
+        ok &= ~(sun & np.isnan(amb))                            # the sun's balance needs the ambient air
 
     # the display units: the first reading of each kind in the case reader's order
     units_cache: dict[tuple, dict] = {}
@@ -421,15 +515,18 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
                                          "temperature": t_label[i], "volume": cap_label[i],
                                          "mass": mass_label[i] or "kg"}
         out["ids"].append(ids[i])
+        out["finish"].append(finishes[i])
         out["gases"].append(gases[i])
         out["units"].append(units)
     sel = np.flatnonzero(ok)
     out["index"] = sel
     for name, arr in (("atm", atm), ("cap", cap), ("rated", rated), ("relief", relief), ("ratio", ratio),
                       ("p", p_fill), ("t", t_fill), ("amb", amb), ("gas_t", hot), ("margin", margin),
-                      ("margin_default", margin_default), ("mass", mass), ("elev", elev)):
+                      ("margin_default", margin_default), ("mass", mass), ("elev", elev), ("sun", sun)):
         out[name] = arr[sel]
     rows = sel.tolist()
+    out["sun_inputs"] = {k: [math.nan if v[i] is None and k != "exposure.orientation" else v[i] for i in rows]
+                         for k, v in sun_read.items()}
     entered = {k: [v[i] for i in rows] for k, v in texts.items()}
     return _finish(inv, defaults, out, entered, [(h, [v[i] for i in rows]) for h, v in cell_texts])
 
@@ -440,4 +537,5 @@ def _finish(inv: Inventory, defaults: dict | None, out: dict, entered: dict | No
     return PlainRows(inv, defaults, np.array(out["index"], dtype=np.int64), out["ids"], out["gases"], f("atm"),
                      f("cap"), f("rated"), f("relief"), f("ratio"), f("p"), f("t"), f("amb"), f("gas_t"),
                      f("margin"), np.array(out["margin_default"], dtype=bool), out["units"], f("mass"), f("elev"),
-                     entered, cell_texts)
+                     entered, cell_texts, np.array(out["sun"], dtype=bool),
+                     out["finish"] if any(f is not None for f in out["finish"]) else None, out["sun_inputs"] or None)

@@ -454,10 +454,9 @@ class _Convection:
 
 
 def _convection(t_wall: float, t_amb: float, wind: float, d: float, length: float,
-                orientation: str, *, check: bool) -> _Convection:
-    """h [W/(m2 K)] at the film temperature. With check=False the correlations are evaluated
-    without range checks (inside the root search); the final state is checked."""
-    from ht.conv_external import Nu_cylinder_Churchill_Bernstein
+                orientation: str) -> _Convection:
+    """h [W/(m2 K)] at the film temperature, the correlations evaluated with their range checks (the
+    final state of the balance; inside the root search :func:`_convection_h` evaluates h without them)."""
     from ht.conv_free_immersed import Nu_horizontal_cylinder_Churchill_Chu, Nu_vertical_plate_Churchill
 
     air = air_properties(0.5 * (t_wall + t_amb))
@@ -465,7 +464,7 @@ def _convection(t_wall: float, t_amb: float, wind: float, d: float, length: floa
     l_nat = d if orientation == "horizontal" else length
     gr = G0 * air.expansion_1_k * abs(t_wall - t_amb) * l_nat**3 / nu**2
     ra = gr * pr
-    if check and ra > 0.0:
+    if ra > 0.0:
         nu_n = natural_nusselt(ra, pr, orientation)
     else:
         fn = (Nu_horizontal_cylinder_Churchill_Chu if orientation == "horizontal"
@@ -474,8 +473,7 @@ def _convection(t_wall: float, t_amb: float, wind: float, d: float, length: floa
     h_n = nu_n * k / l_nat
     re = wind * d / nu
     if wind > 0.0:
-        nu_f = forced_nusselt(re, pr) if check else Nu_cylinder_Churchill_Bernstein(Re=re, Pr=pr)
-        h_f = nu_f * k / d
+        h_f = forced_nusselt(re, pr) * k / d
     else:
         h_f = 0.0
     n = MIXED_CONVECTION_EXPONENT
@@ -483,6 +481,28 @@ def _convection(t_wall: float, t_amb: float, wind: float, d: float, length: floa
     share = h_n**n / h**n if h > 0.0 else 1.0
     thin = orientation == "vertical" and gr > 0.0 and d / length < 35.0 / gr**0.25
     return _Convection(h, h * d / k, ra, re, share, thin)
+
+
+def _convection_h(t_amb: float, wind: float, d: float, length: float, orientation: str):
+    """t_wall [K] -> h [W/(m2 K)] at the film temperature, the correlations evaluated without their range
+    checks: the function the root search calls (about ten times a balance), the arithmetic of
+    :func:`_convection` step for step without building its record."""
+    from ht.conv_external import Nu_cylinder_Churchill_Bernstein
+    from ht.conv_free_immersed import Nu_horizontal_cylinder_Churchill_Chu, Nu_vertical_plate_Churchill
+
+    natural = Nu_horizontal_cylinder_Churchill_Chu if orientation == "horizontal" else Nu_vertical_plate_Churchill
+    l_nat = d if orientation == "horizontal" else length
+    l_nat3 = l_nat**3
+    n = MIXED_CONVECTION_EXPONENT
+    root_n = 1.0 / n
+
+    def h(t_wall: float) -> float:
+        air = air_properties(0.5 * (t_wall + t_amb))
+        k, nu, pr = air.conductivity_w_mk, air.kinematic_viscosity_m2_s, air.prandtl
+        h_n = natural(Pr=pr, Gr=G0 * air.expansion_1_k * abs(t_wall - t_amb) * l_nat3 / nu**2) * k / l_nat
+        h_f = Nu_cylinder_Churchill_Bernstein(Re=wind * d / nu, Pr=pr) * k / d if wind > 0.0 else 0.0
+        return (h_f**n + h_n**n) ** root_n
+    return h
 
 
 def solar_wall_temperature(
@@ -571,9 +591,10 @@ def solar_wall_temperature(
         return eps * STEFAN_BOLTZMANN * (VIEW_FACTOR_SKY * (t**4 - t_sky**4)
                                          + VIEW_FACTOR_GROUND * (t**4 - t_g**4))
 
+    h_of = _convection_h(t_a, wind, d, length, orientation)
+
     def residual(t: float) -> float:
-        h = _convection(t, t_a, wind, d, length, orientation, check=False).h
-        return absorbed - h * (t - t_a) - radiated(t)
+        return absorbed - h_of(t) * (t - t_a) - radiated(t)
 
     t_lo = min(t_a, t_sky, t_g)
     if residual(t_lo) == 0.0:
@@ -588,7 +609,7 @@ def solar_wall_temperature(
                                     "range", value=t_hi, valid_range=f"< {_T_WALL_MAX_K} K")
         t_w = brentq(residual, t_lo, t_hi, xtol=1e-10, rtol=1e-14, maxiter=200)
 
-    conv = _convection(t_w, t_a, wind, d, length, orientation, check=True)
+    conv = _convection(t_w, t_a, wind, d, length, orientation)
     convected = conv.h * (t_w - t_a)
     rad = radiated(t_w)
     if conv.thin_vertical:
