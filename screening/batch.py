@@ -194,6 +194,7 @@ def screen_chunk(job: tuple) -> list[tuple]:
     inv, defaults, dups, want = job
     results, full, full_json = _screened(inv, defaults)
     headers = [c.header for c in inv.columns]
+    width = len(headers)
     out = []
     for i, r in enumerate(results):
         n = r["row"]
@@ -209,11 +210,16 @@ def screen_chunk(job: tuple) -> list[tuple]:
         line = None
         if want.get("json"):
             cells = inv.rows[i][1]
-            # the full result's JSON: from the Result where the PDF needs it anyway, else built directly
-            rec = {k: v for k, v in (_json(f) if f is not None else full_json(i, r["warnings"])).items()
-                   if k not in _DROP}
+            # the full result's JSON: from the Result where the PDF needs it anyway, else built directly (a new
+            # dict either way, but for an input-error record: the row's short result itself)
+            rec = _json(f) if f is not None else full_json(i, r["warnings"])
+            if rec is r or rec.get("verdict") == "input-error":
+                rec = dict(rec)
+            for k in _DROP:
+                rec.pop(k, None)
             rec["row"] = n
-            rec["input"] = {h: str(cells[j]) if j < len(cells) else "" for j, h in enumerate(headers)}
+            rec["input"] = dict(zip(headers, cells if len(cells) == width and all(type(c) is str for c in cells)
+                                    else [str(cells[j]) if j < len(cells) else "" for j in range(width)]))
             line = json_bytes(rec)
         keep_full = _with_curves(f, inv, i, defaults) if want.get("full") == "all" or (want.get("full") == "not-within"
                                                                      and r["verdict"] != "within") else None

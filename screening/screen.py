@@ -1581,7 +1581,7 @@ def fold_scenarios(per: list[tuple[str, dict, dict | None]]) -> tuple[int, dict]
     """(index, result) of the governing scenario among per = [(name, result, energy balance or None)] (the worst
     by _rank), its result with every scenario side by side under "scenarios", the governing scenario's name
     and exposure, the reason naming it where there are several, and every scenario's warnings once."""
-    ranked = max(range(len(per)), key=lambda i: _rank(per[i][1]))
+    ranked = 0 if len(per) == 1 else max(range(len(per)), key=lambda i: _rank(per[i][1]))
     name, result, balance = per[ranked]
     result = dict(result)
     result["scenarios"] = [dict(_scenario_summary(n, r, b), governing=(i == ranked))
