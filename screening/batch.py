@@ -21,6 +21,7 @@ import pickle
 import sys
 import tempfile
 from dataclasses import replace
+from itertools import chain, repeat
 
 from screening.errors import InputError
 from screening.inputs.inventory import Inventory, load_defaults, open_inventory, read_inventory, row_case
@@ -194,7 +195,6 @@ def screen_chunk(job: tuple) -> list[tuple]:
     inv, defaults, dups, want = job
     results, full, full_json = _screened(inv, defaults)
     headers = [c.header for c in inv.columns]
-    width = len(headers)
     out = []
     for i, r in enumerate(results):
         n = r["row"]
@@ -218,8 +218,7 @@ def screen_chunk(job: tuple) -> list[tuple]:
             for k in _DROP:
                 rec.pop(k, None)
             rec["row"] = n
-            rec["input"] = dict(zip(headers, cells if len(cells) == width and all(type(c) is str for c in cells)
-                                    else [str(cells[j]) if j < len(cells) else "" for j in range(width)]))
+            rec["input"] = dict(zip(headers, chain(map(str, cells), repeat(""))))   # every header, "" past the cells
             line = json_bytes(rec)
         keep_full = _with_curves(f, inv, i, defaults) if want.get("full") == "all" or (want.get("full") == "not-within"
                                                                      and r["verdict"] != "within") else None

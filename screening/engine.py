@@ -2558,9 +2558,10 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
                  "dry_out_temperature_k": _opt(cols["dry"][k]),
                  "phase_boundary_pressure_pa": _opt(cols["crossing"][k]),
                  "dp_dt_after_liquid_full_pa_k": _opt(cols["dpdt_liquid_full"][k])}
-    no_limits = {"max_gas_temperature_k": None, "max_fill_pressure_pa": None, "target_peak_pressure_pa": None,
-                 "max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,
-                 "note": _screen.limits_note(False, False)}
+    if refused or cols["unreachable"][k]:
+        no_limits = {"max_gas_temperature_k": None, "max_fill_pressure_pa": None, "target_peak_pressure_pa": None,
+                     "max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,
+                     "note": _screen.limits_note(False, False)}
     if refused:
         na = "the fill state cannot be established (see the verdict's reason)"
         models = {nm: _screen.not_applicable(nm, na).as_dict() for nm in ("ideal", "generalized", "reference")}
