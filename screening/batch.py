@@ -45,6 +45,8 @@ _DROP = ("curves", "cautions")
 CHUNK_ROWS = 5000
 #: Worst rows kept for the terminal table (all rows where there are at most this many).
 TERMINAL_ROWS = 200
+#: Bytes of JSON lines gathered before they are written to their output.
+_WRITE_BYTES = 1 << 20
 #: Rows sorted in memory before they are spilled to a temporary file (--sort severity).
 SORT_RUN_ROWS = 100_000
 
@@ -392,6 +394,8 @@ class _Outputs:
         self.stack = stack
         self.csv = self.xlsx = None
         self.jsonl = self.json = None
+        # the JSON outputs' lines gathered, written a megabyte at a time (a write per line costs more than its copy)
+        self._jsonl_out, self._json_out = bytearray(), bytearray()
         self.headers = None
         self.n_json = 0
         self.width = len(reg.columns)
@@ -425,16 +429,29 @@ class _Outputs:
         if self.xlsx:
             self.xlsx.write(values)
         if self.jsonl:
-            self.jsonl.write(line + b"\n")
+            self._jsonl_out += line
+            self._jsonl_out += b"\n"
+            if len(self._jsonl_out) >= _WRITE_BYTES:
+                self._flush()
         if self.json:
-            self.json.write((b"  " if self.n_json == 0 else b",\n  ") + line)
+            self._json_out += b"  " if self.n_json == 0 else b",\n  "
+            self._json_out += line
             self.n_json += 1
+            if len(self._json_out) >= _WRITE_BYTES:
+                self._flush()
+
+    def _flush(self) -> None:
+        for fh, pending in ((self.jsonl, self._jsonl_out), (self.json, self._json_out)):
+            if fh and pending:
+                fh.write(pending)
+                pending.clear()
 
     def finish(self, tally: Tally) -> None:
         if self.csv:
             self.csv.close()
         if self.xlsx:
             self.xlsx.finish(self._xlsx_fh, tally.counts, tally.rows, tally.duplicates, self.reg.source)
+        self._flush()
         if self.json:
             self.json.write(('\n],\n "summary": ' + json.dumps(tally.summary()) + "}\n").encode())
 
