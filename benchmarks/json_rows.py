@@ -77,6 +77,7 @@ def main() -> None:
                     out.open(None)
                     for line in lines:
                         out.write(None, line)
+                    out.finish(batch.Tally())
             dt, _ = best(write, a.reps)
             writing += dt
     n = len(inv.rows)

@@ -1664,9 +1664,10 @@ class PlainScreening:
         return _assemble(self.plain.case(j), cols, k)
 
     def full_json(self, j: int) -> dict | None:
-        """``full(j).to_json()``, built without the Result where the row ran on the columns
-        (:meth:`Result.json_layout`; tests/test_batch_json.py keeps the two equal); None where the row could not
-        be screened (:meth:`full` gives its input-error record)."""
+        """``full(j).to_json()``, laid out directly without the Result where the row ran on the columns
+        (:func:`_row_dict`; tests/test_batch_json.py keeps the two equal, byte for byte); None where the row could
+        not be screened (:meth:`full` gives its input-error record). A new dict on each call, sharing none of
+        its parts with another row's (the governing scenario's summary shares the result's limits and reasons)."""
         if j in self._full or not (cols_k := self._where.get(j)):
             r = self.full(j)
             return r.to_json() if isinstance(r, Result) else None
