@@ -26,6 +26,7 @@ import sys
 import tempfile
 from collections import deque
 from dataclasses import replace
+from itertools import chain, repeat
 from typing import Iterator
 
 from screening.errors import InputError
@@ -55,6 +56,8 @@ WINDOW_CHUNKS = 4
 MIXTURE_WORK = 100
 #: Worst rows kept for the terminal table (all rows where there are at most this many).
 TERMINAL_ROWS = 200
+#: Bytes of JSON lines gathered before they are written to their output.
+_WRITE_BYTES = 1 << 20
 #: Rows sorted in memory before they are spilled to a temporary file (--sort severity).
 SORT_RUN_ROWS = 100_000
 
@@ -220,11 +223,15 @@ def screen_chunk(job: tuple) -> list[tuple]:
         line = None
         if want.get("json"):
             cells = inv.rows[i][1]
-            # the full result's JSON: from the Result where the PDF needs it anyway, else built directly
-            rec = {k: v for k, v in (_json(f) if f is not None else full_json(i, r["warnings"])).items()
-                   if k not in _DROP}
+            # the full result's JSON: from the Result where the PDF needs it anyway, else built directly (a new
+            # dict either way, but for an input-error record: the row's short result itself)
+            rec = _json(f) if f is not None else full_json(i, r["warnings"])
+            if rec is r or rec.get("verdict") == "input-error":
+                rec = dict(rec)
+            for k in _DROP:
+                rec.pop(k, None)
             rec["row"] = n
-            rec["input"] = {h: str(cells[j]) if j < len(cells) else "" for j, h in enumerate(headers)}
+            rec["input"] = dict(zip(headers, chain(map(str, cells), repeat(""))))   # every header, "" past the cells
             line = json_bytes(rec)
         keep_full = _with_curves(f, inv, i, defaults) if want.get("full") == "all" or (want.get("full") == "not-within"
                                                                      and r["verdict"] != "within") else None
@@ -398,6 +405,8 @@ class _Outputs:
         self.stack = stack
         self.csv = self.xlsx = None
         self.jsonl = self.json = None
+        # the JSON outputs' lines gathered, written a megabyte at a time (a write per line costs more than its copy)
+        self._jsonl_out, self._json_out = bytearray(), bytearray()
         self.headers = None
         self.n_json = 0
         self.width = len(reg.columns)
@@ -431,16 +440,29 @@ class _Outputs:
         if self.xlsx:
             self.xlsx.write(values)
         if self.jsonl:
-            self.jsonl.write(line + b"\n")
+            self._jsonl_out += line
+            self._jsonl_out += b"\n"
+            if len(self._jsonl_out) >= _WRITE_BYTES:
+                self._flush()
         if self.json:
-            self.json.write((b"  " if self.n_json == 0 else b",\n  ") + line)
+            self._json_out += b"  " if self.n_json == 0 else b",\n  "
+            self._json_out += line
             self.n_json += 1
+            if len(self._json_out) >= _WRITE_BYTES:
+                self._flush()
+
+    def _flush(self) -> None:
+        for fh, pending in ((self.jsonl, self._jsonl_out), (self.json, self._json_out)):
+            if fh and pending:
+                fh.write(pending)
+                pending.clear()
 
     def finish(self, tally: Tally) -> None:
         if self.csv:
             self.csv.close()
         if self.xlsx:
             self.xlsx.finish(self._xlsx_fh, tally.counts, tally.rows, tally.duplicates, self.reg.source)
+        self._flush()
         if self.json:
             self.json.write(('\n],\n "summary": ' + json.dumps(tally.summary()) + "}\n").encode())
 

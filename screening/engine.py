@@ -80,7 +80,7 @@ from screening.physics.eos.generalized import (
 from screening.physics.eos.reference import ReferenceFluid, reference_fluid
 from screening.physics.gases import Mixture
 from screening.physics.isochore import LIQUID_FULL_STEP
-from screening.result import Curves, PhaseDiagram, Result
+from screening.result import Curves, Fill, Limits, PhaseDiagram, Result, json_record
 
 #: Number of scan points screen._limits uses (kept equal so the bracket checks agree).
 _SCAN_N = 40
@@ -1374,46 +1374,48 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
         mass_limit = {"max_fill_mass_kg": rm * case.water_capacity_m3, "max_filling_ratio_kg_per_l": rm / 1000.0,
                       "max_fill_mass_basis": basis}
     fill_over = case.fill_pressure_pa >= case.rated_pressure_pa if by_pressure else bool(cols["fill_over"][k])
-    limits = {**mass_limit, "max_gas_temperature_k": None if fill_over else _opt(cols["max_t"][k]),
-              "max_fill_pressure_pa": _opt(cols["max_p"][k]),
-              "target_peak_pressure_pa": float(cols["target"][k]), "note": _screen.limits_note(True, fill_over),
-              "liquid_full_temperature_k": _opt(cols["liquid_full"][k]), "dry_out_temperature_k": _opt(cols["dry"][k]),
-              "phase_boundary_pressure_pa": _opt(cols["crossing"][k]),
-              "dp_dt_after_liquid_full_pa_k": _opt(cols["dpdt_liquid_full"][k])}
+    limits = _LIMITS(**mass_limit, max_gas_temperature_k=None if fill_over else _opt(cols["max_t"][k]),
+                     max_fill_pressure_pa=_opt(cols["max_p"][k]), target_peak_pressure_pa=float(cols["target"][k]),
+                     note=_screen.limits_note(True, fill_over), liquid_full_temperature_k=_opt(cols["liquid_full"][k]),
+                     dry_out_temperature_k=_opt(cols["dry"][k]), phase_boundary_pressure_pa=_opt(cols["crossing"][k]),
+                     dp_dt_after_liquid_full_pa_k=_opt(cols["dpdt_liquid_full"][k]))
     mass = (rho_mass if by_pressure else case.fill_mass_kg / case.water_capacity_m3) * case.water_capacity_m3
     return _layout(case, cols, k, v, sun, (rho_mass, rho_molar, mass, phase, None), models, peak, gov_name,
                    governing_reason, 1.0 - (peak - atm) / (case.rated_pressure_pa - atm), limits)
 
 
+#: The JSON objects of a result and of its parts laid out from their fields by name (result.json_record: the
+#: order is result.py's); a row's "row" is the batch's to add.
+_RESULT, _FILL, _LIMITS = json_record(Result, ("row",)), json_record(Fill), json_record(Limits)
+
+
 def _layout(case: Case, cols: dict, k: int, v: dict, sun: SunRow | None, fill: tuple, models: dict,
             peak: float | None, governing_model: str | None, governing_reason: str, nominal_margin: float | None,
             limits: dict) -> dict:
-    """Row k's one-scenario result laid out as screen.screen_states lays it out (both column kinds): `fill` is
-    (density [kg/m3], molar density [mol/m3], mass [kg], phase, vapour pressure at fill [Pa]), each None where
-    not established."""
+    """Row k's one-scenario result laid out as screen.screen_states lays it out (both column kinds), as the JSON
+    object ``Result.to_json`` writes (the same keys in the same order, JSON values; tests/test_batch_json.py):
+    `fill` is (density [kg/m3], molar density [mol/m3], mass [kg], phase, vapour pressure at fill [Pa]), each
+    None where not established."""
     rho_mass, rho_molar, mass, phase, vapour_pressure = fill
-    result = {
+    result = _RESULT(
         **_screen.case_parts(case),
-        "verdict": v["verdict"], "reasons": v["reasons"], "warnings": v["warnings"],
-        "fill": {"pressure_pa": case.fill_pressure_pa, "temperature_k": float(case.fill_temperature_k),
-                 "temperature_given": True, "density_kg_m3": rho_mass, "molar_density_mol_m3": rho_molar,
-                 "mass_kg": mass, "phase": phase,
-                 "filling_ratio_kg_per_l": rho_mass / 1000.0 if rho_mass else None,
-                 "vapour_pressure_pa": vapour_pressure,
-                 "given": "pressure" if case.fill_pressure_pa is not None else "mass"},
-        "worst_case_temperature_k": float(cols["t_peak"][k]),
-        "worst_case_basis": (sun.basis if sun is not None else _screen.FILL_STATE_BASIS if cols["fill_governs"][k] else
-                             "gas temperature stated in the case" if cols["stated"][k] else "ambient maximum"),
-        "models": models,
-        "peak_pressure_pa": peak, "nominal_peak_pressure_pa": peak, "tolerance": None,
-        "governing_model": governing_model, "governing_reason": governing_reason,
-        "rated_pressure_pa": case.rated_pressure_pa, "relief_set_pressure_pa": case.relief_set_pressure_pa,
-        "required_margin_fraction": case.required_margin,
-        "required_margin_is_default": case.required_margin_is_default,
-        "margin_fraction": v["margin_fraction"], "relief_margin_fraction": v["relief_margin_fraction"],
-        "nominal_margin_fraction": nominal_margin,
-        "limits": limits, "curves": None, "phase_diagram": None,
-    }
+        verdict=v["verdict"], reasons=list(v["reasons"]), warnings=list(v["warnings"]),
+        fill=_FILL(pressure_pa=case.fill_pressure_pa, temperature_k=float(case.fill_temperature_k),
+                   temperature_given=True, density_kg_m3=rho_mass, molar_density_mol_m3=rho_molar, mass_kg=mass,
+                   phase=phase, filling_ratio_kg_per_l=rho_mass / 1000.0 if rho_mass else None,
+                   vapour_pressure_pa=vapour_pressure,
+                   given="pressure" if case.fill_pressure_pa is not None else "mass"),
+        worst_case_temperature_k=float(cols["t_peak"][k]),
+        worst_case_basis=(sun.basis if sun is not None else _screen.FILL_STATE_BASIS if cols["fill_governs"][k] else
+                          "gas temperature stated in the case" if cols["stated"][k] else "ambient maximum"),
+        models=models, peak_pressure_pa=peak, nominal_peak_pressure_pa=peak, tolerance=None,
+        governing_model=governing_model, governing_reason=governing_reason,
+        rated_pressure_pa=case.rated_pressure_pa, relief_set_pressure_pa=case.relief_set_pressure_pa,
+        required_margin_fraction=case.required_margin, required_margin_is_default=case.required_margin_is_default,
+        margin_fraction=v["margin_fraction"], relief_margin_fraction=v["relief_margin_fraction"],
+        nominal_margin_fraction=nominal_margin, limits=limits, curves=None, phase_diagram=None,
+        # folded in by _one_scenario, in their places
+        scenarios=None, governing_scenario=None, exposure=None)
     return _one_scenario(case, result, sun)
 
 
@@ -1753,6 +1755,7 @@ class PlainScreening:
         self.summaries: list[dict | None] = [None] * n
         self._full: dict[int, dict] = {}
         self._where: dict[int, tuple[dict, int]] = {}
+        self._listed: dict[int, _Listed] = {}
         groups: dict[tuple[str, bool], list[int]] = {}
         rest: list[int] = []
         by_mass = ~np.isnan(plain.fill_mass_kg)
@@ -1848,17 +1851,44 @@ class PlainScreening:
         return _assemble(self.plain.case(j), cols, k, sun=self._sun.get(j))
 
     def full_json(self, j: int) -> dict | None:
-        """``full(j).to_json()``, built without the Result where the row ran on the columns
-        (:meth:`Result.json_layout`; tests/test_batch_json.py keeps the two equal); None where the row could not
-        be screened (:meth:`full` gives its input-error record)."""
+        """``full(j).to_json()``, laid out directly without the Result where the row ran on the columns
+        (:func:`_row_dict`; tests/test_batch_json.py keeps the two equal, byte for byte); None where the row could
+        not be screened (:meth:`full` gives its input-error record). A new dict on each call, sharing none of
+        its parts with another row's (the governing scenario's summary shares the result's limits and reasons)."""
         if j in self._full or not (cols_k := self._where.get(j)):
             r = self.full(j)
             return r.to_json() if isinstance(r, Result) else None
         cols, k = cols_k
-        if cols.get("kind") == "liquefied" and not _mass_limit_settled(cols, k, self.plain.gases[j]):
+        # the row's columns as lists, once per group and column (a liquefied gas's fill-mass limit settled first,
+        # for every row of the group at once), and the verdict its columns decided
+        listed = self._listed.get(id(cols))
+        if listed is None:
+            settled = cols.get("kind") != "liquefied" or _mass_limit_settled(cols, k, self.plain.gases[j])
+            listed = self._listed[id(cols)] = _Listed(cols)
+        else:   # as _mass_limit_settled tells, the group settled
+            settled = (unsettled := listed.get("mass_unsettled")) is None or not unsettled[k]
+        if not settled:
             r = self.full(j)
             return r.to_json() if isinstance(r, Result) else None
-        return Result.json_layout(_row_dict(self.plain.case(j), cols, k, sun=self._sun.get(j)))
+        return _row_dict(self.plain.case(j), listed, k, listed["verdict"][k], sun=self._sun.get(j))
+
+
+class _Listed(dict):
+    """Columns (:func:`_columns`, :func:`_liquefied_columns`) read as lists, each array listed on first use: a
+    row's values as Python numbers, without making a numpy scalar per value (for laying out many rows' results;
+    the columns must be final)."""
+
+    def __init__(self, cols: dict) -> None:
+        super().__init__()
+        self._cols = cols
+
+    def __missing__(self, key: str):
+        value = self._cols[key]
+        self[key] = value = value.tolist() if isinstance(value, np.ndarray) else value
+        return value
+
+    def get(self, key: str, default=None):
+        return self[key] if key in self._cols else default
 
 
 def iter_chunks(items: list, size: int) -> Iterable[list]:
@@ -2739,13 +2769,14 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
                  "dry_out_temperature_k": _opt(cols["dry"][k]),
                  "phase_boundary_pressure_pa": _opt(cols["crossing"][k]),
                  "dp_dt_after_liquid_full_pa_k": _opt(cols["dpdt_liquid_full"][k])}
-    no_limits = {"max_gas_temperature_k": None, "max_fill_pressure_pa": None, "target_peak_pressure_pa": None,
-                 "max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,
-                 "note": "no real-gas model applies, so no limit is given"}
+    if refused or cols["unreachable"][k]:
+        no_limits = {"max_gas_temperature_k": None, "max_fill_pressure_pa": None, "target_peak_pressure_pa": None,
+                     "max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,
+                     "note": _screen.limits_note(False, False)}
     if refused:
         na = "the fill state cannot be established (see the verdict's reason)"
         models = {nm: _screen.not_applicable(nm, na).as_dict() for nm in ("ideal", "generalized", "reference")}
-        limits = {**no_limits, **lim_extra}
+        limits = _LIMITS(**no_limits, **lim_extra)
         fill_rho_molar = rho_mass = mass = None
         phase = None
         peak = None
@@ -2761,7 +2792,7 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
                   "reference": _screen.not_applicable(
                       "reference", f"reference equation of state not applicable: {cols['unreachable_reason'][k]}",
                       fluid=fluid.label).as_dict()}
-        limits = {**no_limits, **{key: None for key in lim_extra}}
+        limits = _LIMITS(**no_limits, **{key: None for key in lim_extra})
         rho_fill_mass = float(cols["rho_fill_mass"][k])
         fill_rho_molar = rho_fill_mass / gas.molar_mass
         rho_mass = fill_rho_molar * gas.molar_mass
@@ -2814,10 +2845,10 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
             mass_limit = {"max_fill_mass_kg": rm * case.water_capacity_m3, "max_filling_ratio_kg_per_l": rm / 1000.0,
                           "max_fill_mass_basis": basis}
         fill_over = bool(cols["fill_over"][k])
-        limits = {**mass_limit, "max_gas_temperature_k": None if fill_over else _opt(cols["max_t"][k]),
-                  "max_fill_pressure_pa": _opt(cols["max_p"][k]) if by_pressure else None,
-                  "target_peak_pressure_pa": float(cols["target"][k]), "note": _screen.limits_note(True, fill_over),
-                  **lim_extra}
+        limits = _LIMITS(**mass_limit, max_gas_temperature_k=None if fill_over else _opt(cols["max_t"][k]),
+                         max_fill_pressure_pa=_opt(cols["max_p"][k]) if by_pressure else None,
+                         target_peak_pressure_pa=float(cols["target"][k]), note=_screen.limits_note(True, fill_over),
+                         **lim_extra)
         fill_rho_molar = rho
         rho_mass = rho * gas.molar_mass
         mass = rho_fill_mass * case.water_capacity_m3

@@ -23,7 +23,7 @@ from __future__ import annotations
 import dataclasses
 import functools
 from dataclasses import dataclass
-from typing import Any, ClassVar
+from typing import Any, Callable, ClassVar
 
 from screening.verdicts import Verdict
 
@@ -159,6 +159,32 @@ def _codec(cls: type) -> tuple:
               "    return {" + ", ".join(read) + "}\n")
     exec(compile(source, f"<{cls.__name__} JSON codec>", "exec"), scope)   # noqa: S102  (source built above)
     return scope["to_json"], scope["json_layout"]
+
+
+@functools.cache
+def json_record(cls: type, leave_out: tuple[str, ...] = ()) -> Callable[..., dict]:
+    """The function that lays out the JSON object of a part of class `cls` from its fields' JSON values, given
+    by name: ``json_record(Fill)(pressure_pa=..., ...)`` gives the keys in the layout's order (the fields'
+    declared order, as :meth:`_Part.to_json` writes them) and the values as they are given, already JSON-ready
+    (lists, dicts, words); a missing or unknown field is a TypeError. `leave_out`: fields left out (the caller
+    adds them where it has them, e.g. the batch's "row", the last key). For the writers that lay out a
+    result's JSON directly, without building the result (the rows screened on the columns,
+    :func:`screening.engine._row_dict`): the order stays defined here alone, and tests/test_batch_json.py
+    checks that what they write is ``to_json``."""
+    params, keys = [], []
+    scope: dict = {}
+    for f in dataclasses.fields(cls):
+        if f.name in leave_out:
+            continue
+        if f.default is dataclasses.MISSING:
+            params.append(f.name)
+        else:
+            scope[f"_default_{f.name}"] = f.default
+            params.append(f"{f.name}=_default_{f.name}")
+        keys.append(f"{f.name!r}: {f.name}")
+    source = f"def record(*, {', '.join(params)}):\n    return {{{', '.join(keys)}}}\n"
+    exec(compile(source, f"<{cls.__name__} JSON record>", "exec"), scope)   # noqa: S102  (source built above)
+    return scope["record"]
 
 
 @functools.cache

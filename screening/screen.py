@@ -40,7 +40,7 @@ from screening.physics.gases import Mixture
 from screening.physics.isochore import isochore_phases, max_liquid_density
 from screening.physics.mixtures import CubicComponent, case_budget, cubic_phase_on_isochore
 from screening.physics.roots import brentq
-from screening.result import Result
+from screening.result import Result, ScenarioSummary, json_record
 from screening.units import percent_pair
 from screening.verdicts import Verdict
 
@@ -1514,13 +1514,20 @@ def screened_temperature(t_exposure, t_fill_given):
     return np.fmax(t_exposure, t_fill_given) if isinstance(t_exposure, np.ndarray) else max(t_exposure, t_fill_given)
 
 
-def _scenario_summary(name: str, r: dict, exposure: dict | None) -> dict:
-    keys = ("verdict", "reasons", "worst_case_temperature_k", "worst_case_basis", "peak_pressure_pa",
-            "nominal_peak_pressure_pa", "governing_model", "margin_fraction", "relief_margin_fraction", "limits",
-            "tolerance")
-    return {"name": name, **{k: r[k] for k in keys}, "exposure": exposure,
-            "models": {n: {"applicable": m["applicable"], "peak_pressure_pa": m["peak_pressure_pa"]}
-                       for n, m in r["models"].items()}}
+#: A scenario's summary laid out from its fields (result.json_record: the order is result.py's).
+_SUMMARY = json_record(ScenarioSummary)
+
+
+def _scenario_summary(name: str, r: dict, exposure: dict | None, governing: bool) -> dict:
+    return _SUMMARY(
+        name=name, verdict=r["verdict"], reasons=r["reasons"], worst_case_temperature_k=r["worst_case_temperature_k"],
+        worst_case_basis=r["worst_case_basis"], peak_pressure_pa=r["peak_pressure_pa"],
+        nominal_peak_pressure_pa=r["nominal_peak_pressure_pa"], governing_model=r["governing_model"],
+        margin_fraction=r["margin_fraction"], relief_margin_fraction=r["relief_margin_fraction"], limits=r["limits"],
+        tolerance=r["tolerance"], exposure=exposure,
+        models={n: {"applicable": m["applicable"], "peak_pressure_pa": m["peak_pressure_pa"]}
+                for n, m in r["models"].items()},
+        governing=governing)
 
 
 def _rank(r: dict) -> tuple:
@@ -1609,11 +1616,10 @@ def fold_scenarios(per: list[tuple[str, dict, dict | None]]) -> tuple[int, dict]
     """(index, result) of the governing scenario among per = [(name, result, energy balance or None)] (the worst
     by _rank), its result with every scenario side by side under "scenarios", the governing scenario's name
     and exposure, the reason naming it where there are several, and every scenario's warnings once."""
-    ranked = max(range(len(per)), key=lambda i: _rank(per[i][1]))
+    ranked = 0 if len(per) == 1 else max(range(len(per)), key=lambda i: _rank(per[i][1]))
     name, result, balance = per[ranked]
     result = dict(result)
-    result["scenarios"] = [dict(_scenario_summary(n, r, b), governing=(i == ranked))
-                           for i, (n, r, b) in enumerate(per)]
+    result["scenarios"] = [_scenario_summary(n, r, b, i == ranked) for i, (n, r, b) in enumerate(per)]
     result["governing_scenario"] = name
     result["exposure"] = balance
     if len(per) > 1:

@@ -4,7 +4,11 @@ the same JSON, key for key and in the same order, as the Result gives:
 * a plain row's Case is built from the values the column reader parsed: the same Case, field for field and
   input record for input record, as the case reader gives;
 * ``Result.json_layout(d)`` is ``Result.from_json(d).to_json()`` (compiled per class, as ``to_json`` is);
-* every JSON line of ``screen_chunk`` is the line built from the row's full Result;
+* ``json_record(cls)``, with which the engine lays out a row's JSON directly, writes the fields in the order
+  ``to_json`` writes them (the order is defined once, by the fields of result.py);
+* every JSON line of ``screen_chunk`` is the line built from the row's full Result, byte for byte, on seeded
+  random rows of every kind (rows in the sun, rows refused in the saturation band, rows that cannot be read,
+  tolerances and scenarios from a defaults file);
 * ``json_line`` (orjson) parses to what the standard library's json writes.
 
 Every kind of row of the demo inventory and of the benchmark kinds (benchmarks/kinds.py) is covered."""
@@ -26,7 +30,20 @@ from screening.inputs.case import load_case
 from screening.inputs.columns import read_plain
 from screening.inputs.inventory import Inventory, read_inventory
 from screening.outputs.tables import json_bytes, json_line
-from screening.result import Result, _Part
+from screening.result import (
+    Curves,
+    Fill,
+    Gas,
+    Limits,
+    ModelResult,
+    Result,
+    ScenarioSummary,
+    ScreeningWarning,
+    Site,
+    Vessel,
+    _Part,
+    json_record,
+)
 from screening.verdicts import Verdict
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -233,3 +250,125 @@ def test_a_chunk_run_row_by_row_after_a_failure_still_writes_each_rows_json(monk
     strict(lines[0], json.loads(json.dumps(_expected_line(real(Inventory(
         inv.source, inv.columns, inv.rows[:1], inv.delimiter, inv.decimal, inv.sheet)), inv, 0, got[0][0],
         [c.header for c in inv.columns]))))
+
+
+# ----------------------------------------------------------------------------- the JSON laid out directly
+
+def _parts(value):
+    """Every part of a result, nested parts included (each once per place it appears)."""
+    if isinstance(value, _Part):
+        yield value
+        for f in dataclasses.fields(value):
+            yield from _parts(getattr(value, f.name))
+    elif isinstance(value, (tuple, list)):
+        for v in value:
+            yield from _parts(v)
+    elif isinstance(value, dict):
+        for v in value.values():
+            yield from _parts(v)
+
+
+@pytest.mark.parametrize("name", ["kq-n2-014.toml", "kq-co2-002.toml", "kq-c3h8-009.toml", "kq-n2-031.toml"])
+def test_a_parts_json_record_lays_out_its_fields_in_the_order_to_json_writes(name):
+    case = load_case(ROOT / "cases" / name)   # a pure gas, a liquefied gas, in the sun, with tolerances and scenarios
+    r = with_plot_data(case, screen_case(case, curves=False))
+    seen = set()
+    for part in _parts(replace(r, row=3)):
+        cls = type(part)
+        if cls is ModelResult:          # its keys are the model's own (detail_keys), not a fixed layout
+            continue
+        data = part.to_json()
+        if cls is Curves and "bounding" not in data:
+            continue                    # to_json leaves the unused bounding curve out
+        # given in reverse order, by name: laid out in the fields' order all the same
+        strict(json_record(cls)(**dict(reversed(data.items()))), data)
+        seen.add(cls)
+    strict(json_record(Result, ("row",))(**r.to_json()), r.to_json())
+    assert {Result, Site, Gas, Vessel, Fill, Limits, ScenarioSummary} <= seen
+
+
+def test_a_json_record_refuses_a_missing_or_unknown_field():
+    data = ScreeningWarning("a", "b").to_json()
+    with pytest.raises(TypeError):
+        json_record(ScreeningWarning)(code="a")
+    with pytest.raises(TypeError):
+        json_record(ScreeningWarning)(**data, colour="red")
+    with pytest.raises(TypeError):
+        json_record(Result, ("row",))(**screen_case(load_case(ROOT / "cases" / "kq-n2-014.toml"),
+                                                    curves=False).to_json(), row=2)
+
+
+#: Rows that cannot be screened, each for a different reason (the cells of benchmarks/kinds.py's header).
+_BAD_ROWS = ("B1,nitrogen,50,abc,200,,15,45,", "B2,unobtainium,50,300,200,,15,45,", "B3,nitrogen,-5,300,200,,15,45,",
+             "B4,nitrogen,50,300,,,15,45,", "B5,carbon dioxide,50,300,,99999,15,45,", "B6,propane,26,25,,11,15,45,moon")
+#: Rows filled within the saturation band (refused as the single screening refuses them): propane, carbon dioxide
+#: and ammonia at their vapour pressure at the fill temperature (CoolProp, PropsSI("P", "T", T, "Q", 0, fluid):
+#: 6.30, 56.28 and 7.56 bar(g) at 15, 20 and 20 degC; inputs, not check values).
+_BAND_ROWS = ("S1,propane,26,25,6.3,,15,45,", "S2,carbon dioxide,40,250,56.3,,20,45,", "S3,ammonia,40,30,7.6,,20,45,")
+
+
+@pytest.fixture(scope="module", params=[3, 29])
+def seeded_inventories(request, tmp_path_factory):
+    """(inventory, defaults) of seeded random rows: two of every kind of benchmarks/kinds.py, one row in four of
+    the plain ones in the sun, the rows that cannot be screened; and the kinds with a defaults file (input
+    tolerances and scenarios), one inventory per defaults file."""
+    from screening.inputs.inventory import load_defaults
+
+    seed = request.param
+    tmp = tmp_path_factory.mktemp(f"seeded{seed}")
+    rnd = random.Random(seed)
+    plain, by_defaults, n = [K.HEADER], {}, 0
+    for kind in K.kinds():
+        for _ in range(2):
+            line, _fill = kind[3](rnd, n)
+            n += 1
+            if len(kind) > 5:
+                by_defaults.setdefault(kind[5], [K.HEADER]).append(line)
+            else:
+                plain.append(line[:line.rindex(",") + 1] + ("sun" if rnd.random() < 0.25 else ""))
+    plain[1:1] = _BAD_ROWS[:3]
+    plain += _BAD_ROWS[3:] + _BAND_ROWS
+    (tmp / "plain.csv").write_text("\n".join(plain) + "\n", encoding="utf-8")
+    out = [(read_inventory(tmp / "plain.csv"), None)]
+    for i, (text, lines) in enumerate(by_defaults.items()):
+        (tmp / f"d{i}.csv").write_text("\n".join(lines) + "\n", encoding="utf-8")
+        (tmp / f"d{i}.toml").write_text(text, encoding="utf-8")
+        inv = read_inventory(tmp / f"d{i}.csv")
+        out.append((inv, load_defaults(str(tmp / f"d{i}.toml"), inv.columns)))
+    return out
+
+
+def test_every_json_line_is_byte_for_byte_the_line_of_its_results_to_json(seeded_inventories):
+    verdicts, on_columns, in_sun, scenarios, tolerances = set(), 0, 0, 0, 0
+    for inv, defaults in seeded_inventories:
+        dups = {inv.rows[-1][0]: inv.rows[0][0]}
+        got = batch.screen_chunk((inv, defaults, dups, {"json": True, "full": None}))
+        run = _batch_run(inv, defaults)
+        headers = [c.header for c in inv.columns]
+        for i, (r, line, _) in enumerate(got):
+            expected = _expected_line(run, inv, i, r, headers)
+            assert line == json_bytes(expected), f"row {r['row']}"
+            verdicts.add(expected["verdict"])
+            on_columns += run._plain_at.get(i) in run._plain._where
+            in_sun += expected.get("exposure") is not None
+            scenarios += len(expected.get("scenarios") or ()) > 1
+            tolerances += expected.get("tolerance") is not None
+    assert {"input-error", "within", "over"} <= verdicts
+    assert on_columns > 80 and in_sun > 10 and scenarios >= 6 and tolerances >= 4
+
+
+def test_a_column_rows_json_is_its_results_to_json_whichever_is_asked_first(seeded_inventories):
+    inv, defaults = seeded_inventories[0]
+    run = _batch_run(inv, defaults)
+    ps = run._plain
+    rows = list(ps._where)
+    assert len(rows) > 80
+    # the JSON first for every row (the columns listed once per group), then the Result: the same
+    first = [ps.full_json(j) for j in rows]
+    for j, data in zip(rows, first):
+        full = ps.full(j)
+        if isinstance(full, Result):
+            strict(data, full.to_json())
+            assert json_bytes(data) == json_bytes(full.to_json())
+        else:
+            assert data is None

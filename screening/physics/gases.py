@@ -10,7 +10,7 @@ import difflib
 import math
 import tomllib
 from dataclasses import dataclass
-from functools import lru_cache
+from functools import cached_property, lru_cache
 from pathlib import Path
 
 from screening.errors import InputError, UnknownGas
@@ -204,7 +204,9 @@ def _percent(x: float) -> str:
 class Mixture:
     """A fill gas: components with mole fractions that sum exactly to 1.
 
-    `given_fractions` keeps the fractions as given (before normalisation) for the name.
+    `given_fractions` keeps the fractions as given (before normalisation) for the name. Its derived
+    properties (name, molar mass, hazards, kind) are worked out once per mixture (it is immutable): a batch
+    reads them for every row of a gas.
     """
 
     components: tuple[Gas, ...]
@@ -216,7 +218,7 @@ class Mixture:
     def is_pure(self) -> bool:
         return len(self.components) == 1
 
-    @property
+    @cached_property
     def name(self) -> str:
         """Pure gas name, or e.g. 'argon 82% + carbon dioxide 18%' (fractions as given)."""
         if self.is_pure:
@@ -225,18 +227,18 @@ class Mixture:
         text = " + ".join(f"{g.name} {_percent(x)}" for g, x in zip(self.components, shown))
         return text + " by mass" if self.given_basis == "mass" and self.given_fractions else text
 
-    @property
+    @cached_property
     def molar_mass(self) -> float:
         """Mole-fraction-weighted molar mass [kg/mol]."""
         return math.fsum(x * g.molar_mass for g, x in zip(self.components, self.fractions))
 
-    @property
+    @cached_property
     def hazards(self) -> tuple[str, ...]:
         """Union of the components' hazards, in the library's hazard order."""
         present = {h for g in self.components for h in g.hazards}
         return tuple(h for h in HAZARD_WORDS if h in present)
 
-    @property
+    @cached_property
     def kind(self) -> str:
         """'dissolved' if any component is; else 'liquefiable' if any is; else 'permanent'."""
         kinds = {g.kind for g in self.components}
