@@ -2753,8 +2753,10 @@ def _liquefied_plain_columns(part: PlainPart) -> dict:
     verdicts = np.full(part.p_fill.size, None, dtype=object)
     rated, atm, margin_req = part.rated.tolist(), part.atm.tolist(), part.margin_req.tolist()
     relief, ratio = part.relief.tolist(), part.ratio.tolist()
+    # the columns _liquefied_verdict reads, each listed once (indexing a list is cheaper than making a numpy scalar)
+    listed = _Listed(cols)
     for k in np.flatnonzero(~cols["fallback"]).tolist():
-        verdicts[k] = _liquefied_verdict(cols, k, rated[k], None if math.isnan(relief[k]) else relief[k], atm[k],
+        verdicts[k] = _liquefied_verdict(listed, k, rated[k], None if math.isnan(relief[k]) else relief[k], atm[k],
                                          margin_req[k], None if math.isnan(ratio[k]) else ratio[k], "exposure")
     cols["verdict"] = verdicts
     return cols
