@@ -306,16 +306,10 @@ class _Dome:
                 k = np.clip(np.searchsorted(self.rho, r, side="right") - 1, 0, self.t.size - 2)
             else:
                 k = np.clip(self.t.size - 1 - np.searchsorted(self.rho[::-1], r, side="left"), 0, self.t.size - 2)
-            sat = self.sat
+            q = 1.0 if rising else 0.0
 
-            def f(t, ix):
-                vals = np.empty(t.size)
-                for j, (tj, i) in enumerate(zip(t, ix)):
-                    try:
-                        vals[j] = sat(float(tj)) - rho[i]
-                    except NotApplicable:
-                        vals[j] = np.nan
-                return vals
+            def f(t, ix):       # self.sat(t) - rho, NaN where it raises NotApplicable
+                return self.fluid.saturated_densities(t, q) - rho[ix]
 
             t0, t1 = self.t[k], self.t[k + 1]
             f0, f1 = self.rho[k] - r, self.rho[k + 1] - r

@@ -765,6 +765,27 @@ class ReferenceFluid:
                 pass
         return out
 
+    @_holding_the_state
+    def saturated_densities(self, T: np.ndarray, q: float) -> np.ndarray:
+        """The saturated-liquid (q = 0) or saturated-vapour (q = 1) molar densities [mol/m3] of many temperatures
+        [K], each what :meth:`saturated_liquid_density` or :meth:`saturated_vapour_density` gives (the same flash
+        and checks, the lock held once); NaN where that raises NotApplicable."""
+        self._require_pure("saturation")
+        t_f = np.asarray(T, dtype=float).tolist()
+        out = np.full(len(t_f), np.nan)
+        tt, tc, a = self.triple_temperature, self.critical_temperature, self._state
+        for i, t in enumerate(t_f):
+            if not math.isfinite(t) or t < tt or t >= tc:
+                continue
+            try:
+                a.update(CoolProp.QT_INPUTS, q, t)
+                p, rho = a.p(), a.rhomolar()
+            except ValueError:
+                continue
+            if math.isfinite(p) and math.isfinite(rho) and p > 0 and rho > 0:
+                out[i] = float(rho)
+        return out
+
     def vapour_pressure(self, T: float) -> float:
         """Vapour pressure [Pa] at T [K], triple point ≤ T < Tc."""
         return self._saturation(T, 0.0)[0]
