@@ -309,7 +309,7 @@ class _Dome:
             q = 1.0 if rising else 0.0
 
             def f(t, ix):       # self.sat(t) - rho, NaN where it raises NotApplicable
-                return self.fluid.saturated_densities(t, q) - rho[ix]
+                return self.fluid.saturation_states(t, q)[1] - rho[ix]
 
             t0, t1 = self.t[k], self.t[k + 1]
             f0, f1 = self.rho[k] - r, self.rho[k + 1] - r
@@ -2300,12 +2300,18 @@ def _crossing_columns(fluid: ReferenceFluid, out: dict, fallback: np.ndarray) ->
     crossing_pressure); the critical pressure where it leaves at the critical point."""
     crossing = out["crossing"]
     boundary = np.fmin(out["dry"], out["liquid_full"])
-    for k in np.flatnonzero(~_stopped(out, fallback) & np.isfinite(boundary)):
+    ks = np.flatnonzero(~_stopped(out, fallback) & np.isfinite(boundary))
+    critical = boundary[ks] >= fluid.critical_temperature
+    crossing[ks[critical]] = fluid.critical_pressure
+    below = ks[~critical]
+    if below.size:
         try:
-            crossing[k] = (fluid.critical_pressure if boundary[k] >= fluid.critical_temperature
-                           else fluid.vapour_pressure(float(boundary[k])))
-        except NotApplicable:
-            fallback[k] = True
+            p, _rho = fluid.saturation_states(boundary[below], 0.0)      # NaN where vapour_pressure raises
+        except NotApplicable:       # not a pure fluid: vapour_pressure raises for every row
+            p = np.full(below.size, np.nan)
+        ok = np.isfinite(p)
+        crossing[below[ok]] = p[ok]
+        fallback[below[~ok]] = True
 
 
 def _liquid_full_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:

@@ -766,13 +766,14 @@ class ReferenceFluid:
         return out
 
     @_holding_the_state
-    def saturated_densities(self, T: np.ndarray, q: float) -> np.ndarray:
-        """The saturated-liquid (q = 0) or saturated-vapour (q = 1) molar densities [mol/m3] of many temperatures
-        [K], each what :meth:`saturated_liquid_density` or :meth:`saturated_vapour_density` gives (the same flash
-        and checks, the lock held once); NaN where that raises NotApplicable."""
+    def saturation_states(self, T: np.ndarray, q: float) -> tuple[np.ndarray, np.ndarray]:
+        """The vapour pressures [Pa] and the saturated-liquid (q = 0) or saturated-vapour (q = 1) molar densities
+        [mol/m3] of many temperatures [K], each what :meth:`vapour_pressure` and :meth:`saturated_liquid_density`
+        or :meth:`saturated_vapour_density` give (the same flash and checks, the lock held once); NaN in both
+        where those raise NotApplicable."""
         self._require_pure("saturation")
         t_f = np.asarray(T, dtype=float).tolist()
-        out = np.full(len(t_f), np.nan)
+        p_out, rho_out = np.full(len(t_f), np.nan), np.full(len(t_f), np.nan)
         tt, tc, a = self.triple_temperature, self.critical_temperature, self._state
         for i, t in enumerate(t_f):
             if not math.isfinite(t) or t < tt or t >= tc:
@@ -783,8 +784,8 @@ class ReferenceFluid:
             except ValueError:
                 continue
             if math.isfinite(p) and math.isfinite(rho) and p > 0 and rho > 0:
-                out[i] = float(rho)
-        return out
+                p_out[i], rho_out[i] = p, rho
+        return p_out, rho_out
 
     def vapour_pressure(self, T: float) -> float:
         """Vapour pressure [Pa] at T [K], triple point ≤ T < Tc."""
