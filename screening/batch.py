@@ -17,7 +17,6 @@ row is ``within``; 2 only if the file itself cannot be read; else 1.
 
 from __future__ import annotations
 
-import gc
 import heapq
 import itertools
 import json
@@ -59,9 +58,6 @@ MIXTURE_WORK = 100
 TERMINAL_ROWS = 200
 #: Bytes of JSON lines gathered before they are written to their output.
 _WRITE_BYTES = 1 << 20
-#: Allocations between two collections of the garbage collector's youngest generation during a batch (Python's
-#: default is 700): README, Performance.
-GC_YOUNG = 50_000
 #: Rows sorted in memory before they are spilled to a temporary file (--sort severity).
 SORT_RUN_ROWS = 100_000
 
@@ -642,14 +638,6 @@ def run(args) -> int:
         _load_fluids(first[0], defaults)
     n_workers = parallel.workers()
     pool = None
-    # what the process holds before the screening (the imported modules, the units registry, the gas library, the
-    # fluids) lives as long as it: kept out of the garbage collector's full collections, which otherwise go over
-    # it again every few thousand rows; and the young generation collected every GC_YOUNG allocations instead of
-    # 700 (the rows' objects are freed by their reference counts; a collection finds few cycles). Forked workers
-    # inherit both; the collector's settings are given back at the end
-    thresholds = gc.get_threshold()
-    gc.freeze()
-    gc.set_threshold(GC_YOUNG, *thresholds[1:])
     try:
         with contextlib.ExitStack() as stack:
             outputs = _Outputs(args, reg, stack)
@@ -710,8 +698,6 @@ def run(args) -> int:
         return EXIT_INPUT
     finally:
         ids.close()
-        gc.set_threshold(*thresholds)
-        gc.unfreeze()
     if bar is not None:
         bar.close()
     s = tally.summary()
