@@ -311,11 +311,11 @@ def exit_code(results: list[dict]) -> int:
 class Tally:
     """What the batch keeps of the rows it has written: the counts and the worst rows."""
 
-    def __init__(self, keep: int = TERMINAL_ROWS) -> None:
+    def __init__(self, keep: int | None = None) -> None:
         self.counts = {v: 0 for v in ORDER}
         self.rows = 0
         self.duplicates = 0
-        self.keep = keep
+        self.keep = TERMINAL_ROWS if keep is None else keep
         self._worst: list = []          # heap of (negated key, row result): the worst `keep` rows
 
     def add(self, r: dict) -> None:
@@ -617,7 +617,8 @@ def _chunk_cuts(window: Inventory, order: list[int]) -> list[tuple[object, int, 
         if h is False:
             try:
                 gas = parse_gas(text)
-                h = (tuple(c.name for c in gas.components), gas.fractions) if len(gas.components) > 1 else None
+                h = (tuple(sorted(zip((c.name for c in gas.components), gas.fractions)))
+                     if len(gas.components) > 1 else None)
             except (InputError, ValueError):
                 h = None
             kind[text] = h
