@@ -3,11 +3,12 @@
 The batch streams: it reads a window of rows (:data:`WINDOW_CHUNKS` chunks), sorts it by gas (a site's
 register lists its gases interleaved, and the engine screens the rows of one gas in a chunk as one table, so
 rows of one gas side by side make a few large tables instead of many small ones), screens it in chunks of
-:data:`CHUNK_ROWS` (in worker processes of a ``concurrent.futures`` pool where there are several cores and
-enough rows), puts the rows back in input order, writes their lines to every output and drops them. Only the
-counts, the worst rows (for the terminal) and, for a PDF, each row's short result are kept. Windows and
-chunks are fixed by the input alone, and every row is screened on its own, so the outputs are the same
-whatever the number of workers.
+:data:`CHUNK_ROWS` (where there are several cores and enough rows, in worker processes of one-process
+``concurrent.futures`` pools, a mixture's chunks of one composition each in the process that screened its
+first one: :func:`_chunk_cuts`, :func:`screening.parallel.routed`), puts the rows back in input order, writes
+their lines to every output and drops them. Only the counts, the worst rows (for the terminal) and, for a PDF,
+each row's short result are kept. Windows and chunks are fixed by the input alone, and every row is screened on
+its own, so the outputs are the same whatever the number of workers and wherever a chunk runs.
 
 Every input row appears in every output, in input order (or, with ``--sort severity``, worst first),
 with its spreadsheet row number (header = row 1). A row that cannot be read is an ``input-error`` row
