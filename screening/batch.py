@@ -18,8 +18,6 @@ row is ``within``; 2 only if the file itself cannot be read; else 1.
 
 from __future__ import annotations
 
-import contextlib
-import gc
 import heapq
 import itertools
 import json
@@ -678,23 +676,11 @@ def _load_fluids(inv: Inventory, defaults: dict | None) -> None:
     use(sorted(names))
 
 
-@contextlib.contextmanager
-def _few_full_collections():
-    """The garbage collector's full passes made rare for the run: they walk every object held (the windows, the
-    answers in flight; measured, 0.85 s of the 5.7 s of CPU of this process on a 100 000-row register), and what
-    the batch holds is freed by reference counts, not in cycles. The modules loaded so far are left out of the
-    passes (gc.freeze); the young generations are collected as usual. The settings are restored after the run."""
-    saved = gc.get_threshold()
-    gc.freeze()
-    gc.set_threshold(saved[0], saved[1], max(saved[2], 1000))
-    try:
-        yield
-    finally:
-        gc.set_threshold(*saved)
-        gc.unfreeze()
-
-
 def run(args) -> int:
+    import contextlib
+
+    from screening import parallel
+
     reg = open_inventory(args.inventory, sheet=args.sheet, decimal=getattr(args, "decimal", None))
     defaults = load_defaults(args.defaults, reg.columns) if args.defaults else None
     targets = [(p, what) for p, what in ((args.json, "JSON output"), (args.csv, "CSV output"),
@@ -708,7 +694,6 @@ def run(args) -> int:
             "compact": not args.pdf}
     by_severity = getattr(args, "sort", "input") == "severity"
     import screening.engine  # noqa: F401  (the equations of state, loaded once before any worker forks)
-    from screening import parallel
 
     tally = Tally()
     pdf_rows: list[dict] = []
@@ -725,7 +710,6 @@ def run(args) -> int:
     pools = None
     try:
         with contextlib.ExitStack() as stack:
-            stack.enter_context(_few_full_collections())
             outputs = _Outputs(args, reg, stack)
             if first is not None and len(first[0].rows) >= CHUNK_ROWS and n_workers > 1:
                 pools = [stack.enter_context(p) for p in parallel.homes(n_workers)]

@@ -12,7 +12,6 @@ Where there is one core, or few items, everything runs in this process.
 
 from __future__ import annotations
 
-import gc
 import multiprocessing
 import os
 from collections import deque
@@ -55,11 +54,8 @@ def workers() -> int:
 
 
 def _one_process() -> None:
-    """In a worker: its own calls into this module stay in it (no pool inside a pool); what it inherited from the
-    process that forked it (modules, the fluids, that process's data) is left out of the garbage collector's
-    passes (gc.freeze: a full pass would walk all of it again and again; nothing of it is freed in the worker)."""
+    """In a worker: its own calls into this module stay in it (no pool inside a pool)."""
     os.environ[WORKERS_ENV] = "1"
-    gc.freeze()
 
 
 def executor(n: int | None = None) -> ProcessPoolExecutor:
