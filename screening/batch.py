@@ -3,11 +3,12 @@
 The batch streams: it reads a window of rows (:data:`WINDOW_CHUNKS` chunks), sorts it by gas (a site's
 register lists its gases interleaved, and the engine screens the rows of one gas in a chunk as one table, so
 rows of one gas side by side make a few large tables instead of many small ones), screens it in chunks of
-:data:`CHUNK_ROWS` (in worker processes of a ``concurrent.futures`` pool where there are several cores and
-enough rows), puts the rows back in input order, writes their lines to every output and drops them. Only the
-counts, the worst rows (for the terminal) and, for a PDF, each row's short result are kept. Windows and
-chunks are fixed by the input alone, and every row is screened on its own, so the outputs are the same
-whatever the number of workers.
+:data:`CHUNK_ROWS` (where there are several cores and enough rows, in worker processes of one-process
+``concurrent.futures`` pools, a mixture's chunks of one composition each in the process that screened its
+first one: :func:`_chunk_cuts`, :func:`screening.parallel.routed`), puts the rows back in input order, writes
+their lines to every output and drops them. Only the counts, the worst rows (for the terminal) and, for a PDF,
+each row's short result are kept. Windows and chunks are fixed by the input alone, and every row is screened on
+its own, so the outputs are the same whatever the number of workers and wherever a chunk runs.
 
 Every input row appears in every output, in input order (or, with ``--sort severity``, worst first),
 with its spreadsheet row number (header = row 1). A row that cannot be read is an ``input-error`` row
@@ -54,6 +55,8 @@ WINDOW_CHUNKS = 4
 #: A mixture's row counted as this many rows of a pure gas when a window is cut into chunks (measured with
 #: benchmarks/kinds.py and benchmarks/mix.py: a mixture's row takes some 4-40 ms, a pure gas's 0.06-0.15 ms).
 MIXTURE_WORK = 100
+#: Chunks in flight per worker process (screening.parallel.routed).
+CHUNKS_AHEAD = 3
 #: Worst rows kept for the terminal table (all rows where there are at most this many).
 TERMINAL_ROWS = 200
 #: Bytes of JSON lines gathered before they are written to their output.
@@ -201,14 +204,21 @@ def _screened(inv: Inventory, defaults: dict | None) -> tuple[list[dict], object
 
 def screen_chunk(job: tuple) -> list[tuple]:
     """Screen one chunk (run in a worker): per row (short result, JSON line as UTF-8 bytes or None, full result
-    or None).
+    or None); with ``want["compact"]``, per row only what the batch writes and counts (:func:`_compact`).
 
     `job` = (inventory chunk, defaults, {row: first row of its id} for duplicate ids, want) where `want`
-    holds "json" (a JSON line per row) and "full" (None, "not-within" or "all": full results for a PDF)."""
+    holds "json" (a JSON line per row), "full" (None, "not-within" or "all": full results for a PDF) and
+    "compact"."""
+    if job[3].get("compact"):
+        return _compact(_chunk_rows(job))
+    return list(_chunk_rows(job))
+
+
+def _chunk_rows(job: tuple) -> Iterator[tuple]:
+    """screen_chunk's rows, one by one: (short result, JSON line or None, full result or None)."""
     inv, defaults, dups, want = job
     results, full, full_json = _screened(inv, defaults)
     headers = [c.header for c in inv.columns]
-    out = []
     for i, r in enumerate(results):
         n = r["row"]
         if n in dups:
@@ -235,7 +245,41 @@ def screen_chunk(job: tuple) -> list[tuple]:
             line = json_bytes(rec)
         keep_full = _with_curves(f, inv, i, defaults) if want.get("full") == "all" or (want.get("full") == "not-within"
                                                                      and r["verdict"] != "within") else None
-        out.append((r, line, keep_full))
+        yield r, line, keep_full
+
+
+def _compact(rows: Iterator[tuple]) -> list[tuple]:
+    """A chunk's rows as the batch writes and counts them, without their short results (which cost more to send
+    back to the batch's process than everything else): per row (severity key, verdict, duplicate id or not, the
+    units of its result columns (None for an input error), its result columns in those units (result_values),
+    JSON line or None, short result or None). The short result comes only with the chunk's TERMINAL_ROWS worst
+    rows, the only ones that can be among the inventory's worst (the keys are distinct: they end with the row)."""
+    units: dict[tuple, tuple] = {}
+    out = []
+    short = []
+    for r, line, _f in rows:
+        if r["verdict"] == "input-error":
+            u = None
+        else:
+            u = file_units(r)
+            u = units.setdefault(u, u)
+        pu, tu = u or ("bar(g)", "degC")
+        dup = any(w.get("code") == "duplicate-id" for w in r.get("warnings") or [])
+        out.append([severity_key(r), r["verdict"], dup, u, result_values(r, pu, tu), line, None])
+        short.append(r)
+    for i in heapq.nsmallest(TERMINAL_ROWS, range(len(out)), key=lambda i: out[i][0]):
+        out[i][6] = short[i]
+    return [tuple(x) for x in out]
+
+
+def _expanded(got: list[tuple]) -> list[tuple]:
+    """screen_chunk's rows without ``compact`` as _compact's rows, in the units of each row's own result."""
+    out = []
+    for r, line, _f in got:
+        u = None if r["verdict"] == "input-error" else file_units(r)
+        pu, tu = u or ("bar(g)", "degC")
+        dup = any(w.get("code") == "duplicate-id" for w in r.get("warnings") or [])
+        out.append((severity_key(r), r["verdict"], dup, u, result_values(r, pu, tu), line, r))
     return out
 
 
@@ -268,20 +312,27 @@ def exit_code(results: list[dict]) -> int:
 class Tally:
     """What the batch keeps of the rows it has written: the counts and the worst rows."""
 
-    def __init__(self, keep: int = TERMINAL_ROWS) -> None:
+    def __init__(self, keep: int | None = None) -> None:
         self.counts = {v: 0 for v in ORDER}
         self.rows = 0
         self.duplicates = 0
-        self.keep = keep
+        self.keep = TERMINAL_ROWS if keep is None else keep
         self._worst: list = []          # heap of (negated key, row result): the worst `keep` rows
 
     def add(self, r: dict) -> None:
+        self.add_row(severity_key(r), r["verdict"], any(w.get("code") == "duplicate-id"
+                                                        for w in r.get("warnings") or []), r)
+
+    def add_row(self, key: tuple, verdict: str, duplicate: bool, r: dict | None) -> None:
+        """A row by its severity key, verdict and duplicate-id warning; its short result `r` may be left out
+        (None) only where it cannot be among the worst rows kept (see batch._compact)."""
         self.rows += 1
-        self.counts[r["verdict"]] = self.counts.get(r["verdict"], 0) + 1
-        if any(w.get("code") == "duplicate-id" for w in r.get("warnings") or []):
+        self.counts[verdict] = self.counts.get(verdict, 0) + 1
+        if duplicate:
             self.duplicates += 1
-        k = severity_key(r)
-        item = (tuple(-x if isinstance(x, (int, float)) else x for x in k), r)
+        if r is None:
+            return
+        item = (tuple(-x if isinstance(x, (int, float)) else x for x in key), r)
         if len(self._worst) < self.keep:
             heapq.heappush(self._worst, item)
         elif item[0] > self._worst[0][0]:
@@ -411,9 +462,9 @@ class _Outputs:
         self.n_json = 0
         self.width = len(reg.columns)
 
-    def open(self, first: dict | None) -> None:
-        """Open every output, its units taken from the first screened row."""
-        pu, tu = file_units(first)
+    def open(self, first: dict | None, units: tuple[str, str] | None = None) -> None:
+        """Open every output, its units taken from the first screened row (or given: that row's units)."""
+        pu, tu = units or file_units(first)
         self.pu, self.tu = pu, tu
         self.headers = ["row"] + [c.header for c in self.reg.columns] + result_headers(pu, tu)
         a = self.args
@@ -433,6 +484,11 @@ class _Outputs:
     def values(self, r: dict, cells: list[str]) -> list:
         row = (list(cells) + [""] * self.width)[:self.width]
         return [r["row"]] + [str(c) for c in row] + result_values(r, self.pu, self.tu)
+
+    def row_values(self, n: int, cells: list[str], result_columns: list) -> list:
+        """values() of row `n` whose result columns are already made (in this file's units)."""
+        row = (list(cells) + [""] * self.width)[:self.width]
+        return [n] + [str(c) for c in row] + result_columns
 
     def write(self, values: list, line: bytes | None) -> None:
         if self.csv:
@@ -530,48 +586,61 @@ def _gas_order(inv: Inventory) -> list[int]:
 
 def _windows(reg, defaults, want, ids: _Ids):
     """The register's windows: per window, (the window as an Inventory in input order, the positions of its rows
-    in the order they are screened, the jobs for screen_chunk that screen them in that order)."""
+    in the order they are screened, the jobs (home, weight, job for screen_chunk) that screen them in that order:
+    see :func:`_chunk_cuts` and :func:`screening.parallel.routed`)."""
     id_col = _id_column(reg)
     for window in reg.chunks(CHUNK_ROWS * WINDOW_CHUNKS):
         rows = window.rows
         dups = ids.first_rows([(n, c[id_col].strip() if id_col < len(c) else "") for n, c in rows])
-        order = _gas_order(window)
-        jobs = []
-        for k in _chunk_cuts(window, order):
+        jobs, order = [], []
+        for home, weight, k in _chunk_cuts(window, _gas_order(window)):
             part = [rows[i] for i in k]
-            jobs.append((replace(window, rows=part), defaults, {n: dups[n] for n, _ in part if n in dups}, want))
+            order += k
+            jobs.append((home, weight, (replace(window, rows=part), defaults,
+                                        {n: dups[n] for n, _ in part if n in dups}, want)))
         yield window, order, jobs
 
 
-def _chunk_cuts(window: Inventory, order: list[int]) -> Iterator[list[int]]:
-    """A sorted window's rows cut into chunks of about the same work: CHUNK_ROWS rows of pure gases, a mixture's
-    row counting as MIXTURE_WORK of them (its phase checks go state by state through the mixture's reference
-    equation), so that the workers finish a window together."""
+def _chunk_cuts(window: Inventory, order: list[int]) -> list[tuple[object, int, list[int]]]:
+    """A sorted window's rows cut into chunks, as (home, work, positions): first the rows of each mixture, one
+    composition to a chunk (its home: the composition, so that the process that holds its reference state and
+    caches gets all its chunks), then the rest in `order`; a chunk is at most about CHUNK_ROWS rows of pure gases,
+    a mixture's row counting as MIXTURE_WORK of them (its phase checks go state by state through the mixture's
+    reference equation). The cuts depend on the window alone."""
     from screening.inputs.gas_spec import parse_gas
 
     col = next((i for i, c in enumerate(window.columns) if c.key == "fill.gas"), None)
-    work: dict[str, int] = {}
+    kind: dict[str, object] = {}
 
-    def of(cells: list) -> int:
+    def home(cells: list) -> object:
         text = cells[col].strip() if col is not None and col < len(cells) else ""
-        w = work.get(text)
-        if w is None:
+        h = kind.get(text, False)
+        if h is False:
             try:
-                w = MIXTURE_WORK if len(parse_gas(text).components) > 1 else 1
+                gas = parse_gas(text)
+                h = (tuple(sorted(zip((c.name for c in gas.components), gas.fractions)))
+                     if len(gas.components) > 1 else None)
             except (InputError, ValueError):
-                w = 1
-            work[text] = w
-        return w
+                h = None
+            kind[text] = h
+        return h
 
-    part, total = [], 0
+    mixtures: dict[object, list[int]] = {}
+    pure: list[int] = []
     for i in order:
-        part.append(i)
-        total += of(window.rows[i][1])
-        if total >= CHUNK_ROWS:
-            yield part
-            part, total = [], 0
-    if part:
-        yield part
+        h = home(window.rows[i][1])
+        if h is None:
+            pure.append(i)
+        else:
+            mixtures.setdefault(h, []).append(i)
+    cuts = []
+    for h, rows in mixtures.items():
+        step = max(1, CHUNK_ROWS // MIXTURE_WORK)
+        for k in range(0, len(rows), step):
+            cuts.append((h, MIXTURE_WORK * len(rows[k:k + step]), rows[k:k + step]))
+    for k in range(0, len(pure), CHUNK_ROWS):
+        cuts.append((None, len(pure[k:k + CHUNK_ROWS]), pure[k:k + CHUNK_ROWS]))
+    return cuts
 
 
 def _in_input_order(parts: list[list], order: list[int]) -> list:
@@ -621,7 +690,8 @@ def run(args) -> int:
     for p, what in targets:      # refuse a bad target before the work, not after it
         check_target(p, what)
     want = {"json": bool(args.json or getattr(args, "jsonl", None)),
-            "full": ("all" if args.all_details else "not-within") if args.pdf else None}
+            "full": ("all" if args.all_details else "not-within") if args.pdf else None,
+            "compact": not args.pdf}
     by_severity = getattr(args, "sort", "input") == "severity"
     import screening.engine  # noqa: F401  (the equations of state, loaded once before any worker forks)
 
@@ -637,37 +707,48 @@ def run(args) -> int:
     if first is not None:
         _load_fluids(first[0], defaults)
     n_workers = parallel.workers()
-    pool = None
+    pools = None
     try:
         with contextlib.ExitStack() as stack:
             outputs = _Outputs(args, reg, stack)
             if first is not None and len(first[0].rows) >= CHUNK_ROWS and n_workers > 1:
-                pool = stack.enter_context(parallel.executor(n_workers))
-            opened: deque = deque()         # (window, order, number of chunks) of the windows whose jobs went out
+                pools = [stack.enter_context(p) for p in parallel.homes(n_workers)]
+            opened: deque = deque()         # (window, order, jobs) of the windows whose jobs went out
 
             def all_jobs():
                 for window, order, jobs in itertools.chain([first] if first is not None else [], windows):
-                    opened.append((window, order, len(jobs)))
+                    opened.append((window, order, jobs))
                     yield from jobs
 
             parts: list[list] = []
-            for got in parallel.ordered(pool, screen_chunk, all_jobs(), ahead=max(1, WINDOW_CHUNKS // 2)):
+            for got in parallel.routed(pools, screen_chunk, all_jobs(), ahead=CHUNKS_AHEAD):
                 parts.append(got)
                 if bar is not None:
                     bar.update(len(got))
-                window, order, n_parts = opened[0]
-                if len(parts) < n_parts:
+                window, order, jobs = opened[0]
+                if len(parts) < len(jobs):
                     continue
                 opened.popleft()
-                done = _in_input_order(parts, order)
+                if want["compact"]:
+                    done, fulls = _in_input_order(parts, order), repeat(None)
+                else:
+                    raw = _in_input_order(parts, order)
+                    done, fulls = _expanded(raw), [f for _, _, f in raw]
                 parts = []
                 if outputs.headers is None:
-                    outputs.open(next((s for s, _, _ in done if s["verdict"] != "input-error"), None))
-                for (s, line, f), (_, cells_) in zip(done, window.rows):
-                    tally.add(s)
-                    values = outputs.values(s, cells_)
+                    outputs.open(None, next((u for _k, v, _d, u, *_ in done if v != "input-error"), None))
+                units = (outputs.pu, outputs.tu)
+                if any(u is not None and u != units and s is None for _k, _v, _d, u, _r, _l, s in done):
+                    # a row entered in other units than the file's first row: the window's short results, here
+                    done = _expanded(_in_input_order([screen_chunk((*job[:3], dict(job[3], compact=False)))
+                                                      for _h, _w, job in jobs], order))
+                for (key, verdict, dup, u, res, line, s), f, (_, cells_) in zip(done, fulls, window.rows):
+                    if u is not None and u != units:
+                        res = result_values(s, *units)
+                    tally.add_row(key, verdict, dup, s)
+                    values = outputs.row_values(key[2], cells_, res)
                     if spill is not None:
-                        spill.add(severity_key(s), (values, line))
+                        spill.add(key, (values, line))
                     else:
                         outputs.write(values, line)
                     if args.pdf:

@@ -15,7 +15,7 @@ from __future__ import annotations
 import multiprocessing
 import os
 from collections import deque
-from concurrent.futures import ProcessPoolExecutor
+from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
 from concurrent.futures.process import BrokenProcessPool
 from typing import Callable, Iterable, Iterator
 
@@ -80,6 +80,65 @@ def ordered(pool: ProcessPoolExecutor | None, fn: Callable, items: Iterable, ahe
             pending.append(pool.submit(fn, x))
             while len(pending) >= limit:
                 yield pending.popleft().result()
+        while pending:
+            yield pending.popleft().result()
+    except BrokenProcessPool as exc:
+        raise WorkerLost(str(exc)) from None
+    finally:
+        for f in pending:
+            f.cancel()
+
+
+def homes(n: int | None = None) -> list[ProcessPoolExecutor]:
+    """`n` (default :func:`workers`) pools of one process each, for :func:`routed` (each a worker that work can be
+    sent back to)."""
+    return [executor(1) for _ in range(n or workers())]
+
+
+def routed(pools: list[ProcessPoolExecutor] | None, fn: Callable, items: Iterable, ahead: int = 3) -> Iterator:
+    """fn(x) for each (home, weight, x) of `items`, in order, over single-process pools (:func:`homes`).
+
+    An item with a `home` (any hashable key, None for none) goes to the pool that key was first sent to, every time:
+    what that process keeps between calls (a mixture's reference state, its caches) is built once. A key met for
+    the first time goes to the pool with the least weight of homes so far (then the least work in flight); an item
+    without a home goes to the pool with the least weight of unfinished work. At most `ahead` calls are in flight
+    per pool, and the answers not yet used are bounded (memory stays bounded). A dead worker raises WorkerLost.
+    Without pools, everything runs in this process."""
+    if not pools:
+        for _home, _weight, x in items:
+            yield fn(x)
+        return
+    n = len(pools)
+    home_of: dict = {}
+    homed = [0.0] * n                   # weight of the homes given to each pool
+    busy: list[dict] = [{} for _ in range(n)]   # per pool: unfinished future -> its weight
+    pending: deque = deque()            # every future whose answer is not yet used, in order
+    most = 2 * ahead * n
+    try:
+        for home, weight, x in items:
+            for b in busy:
+                for f in [f for f in b if f.done()]:
+                    del b[f]
+            if home is not None and home in home_of:
+                p = home_of[home]
+            elif home is not None:
+                p = min(range(n), key=lambda i: (homed[i], sum(busy[i].values()), i))
+                home_of[home] = p
+                homed[p] += weight
+            else:
+                p = min(range(n), key=lambda i: (len(busy[i]) >= ahead, sum(busy[i].values()), i))
+            while True:
+                if pending and pending[0].done():
+                    yield pending.popleft().result()
+                    continue
+                for f in [f for f in busy[p] if f.done()]:
+                    del busy[p][f]
+                if len(busy[p]) < ahead and len(pending) < most:
+                    break
+                wait(list(busy[p]) + [pending[0]], return_when=FIRST_COMPLETED)
+            f = pools[p].submit(fn, x)
+            busy[p][f] = weight
+            pending.append(f)
         while pending:
             yield pending.popleft().result()
     except BrokenProcessPool as exc:

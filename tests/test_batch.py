@@ -3,6 +3,7 @@
 import csv
 import json
 import os
+from dataclasses import replace
 
 import pytest
 
@@ -195,3 +196,143 @@ def test_outputs_are_the_same_whatever_the_number_of_workers(tmp_path, monkeypat
     assert outs["1"] == outs["2"]
     lines = outs["1"][0].decode("utf-8-sig").splitlines()
     assert len(lines) == 1 + 7 and "also used on row 2" in lines[3]
+
+
+# ----------------------------------------------------------------------------- mixtures routed to their home worker
+
+MIXED_HEAD = "id,gas,water_capacity,rated_pressure,fill_pressure,fill_temperature,ambient_max\n"
+
+
+def _mixed_register(tmp_path):
+    """Pure gases, two mixtures (each on rows of several windows, one spelt two ways), a row entered in psig,
+    a bad row and an id used twice."""
+    gases = ["nitrogen", "nitrogen 79% + oxygen 21%", "argon", "helium", "methane 90% + ethane 6% + nitrogen 4%",
+             "nitrogen", "oxygen 21% + nitrogen 79%", "argon"]
+    body = []
+    for i in range(40):
+        gas = gases[i % len(gases)]
+        body.append(f"R{i},{gas},50 L,300 bar(g),{120 + 7 * (i % 23)} bar(g),15 degC,{40 + i % 25} degC\n")
+    body[9] = "R9,nitrogen,50 L,4350 psig,2900 psig,59 degF,45 degC\n"
+    body[14] = "BAD,argon,50 L,300 bar(g),lots,15 degC,45 degC\n"
+    body[33] = body[3].replace("R3,", "R0,")
+    return write(tmp_path, MIXED_HEAD + "".join(body))
+
+
+def _outputs(tmp_path, inv, tag, capsys):
+    names = [tmp_path / f"{tag}.{ext}" for ext in ("csv", "jsonl", "json")]
+    run(["batch", str(inv), "--csv", str(names[0]), "--jsonl", str(names[1]), "--json", str(names[2])])
+    return [p.read_bytes() for p in names] + [capsys.readouterr().out]
+
+
+@pytest.mark.skipif(not hasattr(os, "fork"), reason="needs fork")
+def test_mixtures_and_pure_gases_give_the_same_outputs_with_one_or_two_workers_and_with_full_rows(
+        tmp_path, monkeypatch, capsys):
+    # windows of 16 rows cut into chunks of 4 pure-gas rows or up to 4 mixture rows of one composition; the
+    # terminal table keeps the worst row only (a worker sends the short result of its chunk's worst row only, so
+    # the psig row's window is laid out again in the file's units): one process, two home workers, and two
+    # workers sending every row's short result (the route a PDF takes) agree
+    from screening import batch, parallel
+
+    inv = _mixed_register(tmp_path)
+    monkeypatch.setattr(batch, "CHUNK_ROWS", 4)
+    monkeypatch.setattr(batch, "MIXTURE_WORK", 1)
+    monkeypatch.setattr(batch, "TERMINAL_ROWS", 1)
+    again = []
+    expanded = batch._expanded
+    monkeypatch.setattr(batch, "_expanded", lambda got: again.append(len(got)) or expanded(got))
+    outs = {}
+    for n in ("1", "2"):
+        monkeypatch.setenv(parallel.WORKERS_ENV, n)
+        monkeypatch.setattr(parallel, "workers", lambda n=n: int(n))
+        outs[n] = _outputs(tmp_path, inv, f"o{n}", capsys)
+    assert again == [16, 16]        # the psig row's window (rows 2-17), once in each run
+    monkeypatch.setattr(batch, "_compact", lambda rows: expanded(list(rows)))
+    outs["full"] = _outputs(tmp_path, inv, "full", capsys)
+    assert outs["1"] == outs["2"] == outs["full"]
+    table = outs["1"][3]
+    assert "the 1 worst rows of 40 shown" in table and "\n    16  BAD" in table     # the bad row, worst of all
+    rows = list(csv.DictReader(outs["1"][0].decode("utf-8-sig").splitlines()))
+    assert [r["row"] for r in rows] == [str(n) for n in range(2, 42)]
+    # the psig row's result columns in the file's units (those of its first row), as every other row's
+    assert "peak_pressure [bar(g)]" in rows[0] and float(rows[9]["peak_pressure [bar(g)]"]) < 400
+    verdicts = {r["gas"]: r["verdict"] for r in rows}
+    assert verdicts["nitrogen 79% + oxygen 21%"] != "input-error" and verdicts["methane 90% + ethane 6% + nitrogen 4%"]
+
+
+def _log_pid(job):
+    """batch.screen_chunk, noting the gases of the chunk and the process that screened it."""
+    with open(os.environ["SCREENING_TEST_PIDS"], "a", encoding="utf-8") as fh:
+        fh.write(f"{os.getpid()}\t{'|'.join(sorted({c[1] for _n, c in job[0].rows}))}\n")
+    return _screen_chunk(job)
+
+
+def _screen_chunk(job):
+    from screening import batch
+
+    return batch._real_screen_chunk(job)
+
+
+@pytest.mark.skipif(not hasattr(os, "fork"), reason="needs fork")
+def test_a_composition_s_chunks_go_to_its_home_worker_and_first_in_their_window(tmp_path, monkeypatch):
+    from screening import batch, parallel
+
+    inv = _mixed_register(tmp_path)
+    log = tmp_path / "pids.txt"
+    monkeypatch.setenv("SCREENING_TEST_PIDS", str(log))
+    monkeypatch.setattr(batch, "CHUNK_ROWS", 4)
+    monkeypatch.setattr(batch, "MIXTURE_WORK", 1)
+    monkeypatch.setattr(parallel, "workers", lambda: 2)
+    monkeypatch.setattr(batch, "_real_screen_chunk", batch.screen_chunk, raising=False)
+    monkeypatch.setattr(batch, "screen_chunk", _log_pid)
+    run(["batch", str(inv), "--csv", str(tmp_path / "o.csv"), "--quiet"])
+    chunks = [line.split("\t") for line in log.read_text(encoding="utf-8").splitlines()]
+    assert len({pid for pid, _ in chunks}) == 2 and os.getpid() not in {int(pid) for pid, _ in chunks}
+    homes: dict[str, set] = {}
+    for pid, gases in chunks:
+        if "%" in gases:     # one composition to a chunk (both spellings of nitrogen/oxygen together)
+            key = "air" if "oxygen" in gases else gases
+            assert key == "air" or "|" not in gases
+            homes.setdefault(key, set()).add(pid)
+    assert set(homes) == {"air", "methane 90% + ethane 6% + nitrogen 4%"}
+    assert all(len(pids) == 1 for pids in homes.values())
+    # in each window (16 rows: 2 rows of each mixture, 12 of pure gases) the mixture chunks go out first
+    reg = read_inventory(inv)
+    window = replace(reg, rows=reg.rows[:16])
+    cuts = batch._chunk_cuts(window, batch._gas_order(window))
+    assert [(h is not None, len(k)) for h, _w, k in cuts] == [(True, 2)] * 2 + [(False, 4)] * 3
+
+
+def _pid(x):
+    return x, os.getpid()
+
+
+def _die(x):
+    if x == "die":
+        os.kill(os.getpid(), 9)
+    return x
+
+
+@pytest.mark.skipif(not hasattr(os, "fork"), reason="needs fork")
+def test_routed_answers_in_order_each_home_in_one_process_and_a_dead_worker_never_hangs():
+    from screening import parallel
+
+    items = [(("a" if i % 3 == 0 else "b" if i % 3 == 1 else None), 1 + i % 4, i) for i in range(30)]
+    pools = parallel.homes(2)
+    try:
+        got = list(parallel.routed(pools, _pid, items, ahead=2))
+    finally:
+        for p in pools:
+            p.shutdown()
+    assert [x for x, _ in got] == list(range(30))
+    by_home = {h: {pid for (x, pid) in got if items[x][0] == h} for h in ("a", "b")}
+    assert all(len(p) == 1 for p in by_home.values()) and by_home["a"] != by_home["b"]
+    assert os.getpid() not in {pid for _, pid in got}
+    pools = parallel.homes(2)
+    try:
+        with pytest.raises(parallel.WorkerLost):
+            list(parallel.routed(pools, _die, [("a", 1, 1), (None, 1, "die"), ("a", 1, 2), (None, 1, 3)]))
+    finally:
+        for p in pools:
+            p.shutdown()
+    # without pools: in this process, in order
+    assert list(parallel.routed(None, _pid, items[:3])) == [(i, os.getpid()) for i in range(3)]
