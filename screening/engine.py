@@ -306,16 +306,10 @@ class _Dome:
                 k = np.clip(np.searchsorted(self.rho, r, side="right") - 1, 0, self.t.size - 2)
             else:
                 k = np.clip(self.t.size - 1 - np.searchsorted(self.rho[::-1], r, side="left"), 0, self.t.size - 2)
-            sat = self.sat
+            q = 1.0 if rising else 0.0
 
-            def f(t, ix):
-                vals = np.empty(t.size)
-                for j, (tj, i) in enumerate(zip(t, ix)):
-                    try:
-                        vals[j] = sat(float(tj)) - rho[i]
-                    except NotApplicable:
-                        vals[j] = np.nan
-                return vals
+            def f(t, ix):       # self.sat(t) - rho, NaN where it raises NotApplicable
+                return self.fluid.saturation_states(t, q)[1] - rho[ix]
 
             t0, t1 = self.t[k], self.t[k + 1]
             f0, f1 = self.rho[k] - r, self.rho[k + 1] - r
@@ -2306,12 +2300,18 @@ def _crossing_columns(fluid: ReferenceFluid, out: dict, fallback: np.ndarray) ->
     crossing_pressure); the critical pressure where it leaves at the critical point."""
     crossing = out["crossing"]
     boundary = np.fmin(out["dry"], out["liquid_full"])
-    for k in np.flatnonzero(~_stopped(out, fallback) & np.isfinite(boundary)):
+    ks = np.flatnonzero(~_stopped(out, fallback) & np.isfinite(boundary))
+    critical = boundary[ks] >= fluid.critical_temperature
+    crossing[ks[critical]] = fluid.critical_pressure
+    below = ks[~critical]
+    if below.size:
         try:
-            crossing[k] = (fluid.critical_pressure if boundary[k] >= fluid.critical_temperature
-                           else fluid.vapour_pressure(float(boundary[k])))
-        except NotApplicable:
-            fallback[k] = True
+            p, _rho = fluid.saturation_states(boundary[below], 0.0)      # NaN where vapour_pressure raises
+        except NotApplicable:       # not a pure fluid: vapour_pressure raises for every row
+            p = np.full(below.size, np.nan)
+        ok = np.isfinite(p)
+        crossing[below[ok]] = p[ok]
+        fallback[below[~ok]] = True
 
 
 def _liquid_full_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:
@@ -2424,7 +2424,8 @@ def _newton_in_bracket(g: Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, n
 
 def _temperature_limit(fluid: ReferenceFluid, f_t: Callable[[np.ndarray, np.ndarray], np.ndarray],
                        rho: np.ndarray, rated: np.ndarray, rows: np.ndarray, lo: np.ndarray, mid: np.ndarray,
-                       f_mid: np.ndarray, hi: np.ndarray, boundary: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+                       f_mid: np.ndarray, hi: np.ndarray, boundary: np.ndarray,
+                       guess: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
     """What :func:`_increasing_root` (stepwise) finds for the gas temperature at which the reference isochore
     f_t(T, rows) = p(rho, T) / rated - 1 of rows `rows` reaches the rating, in fewer evaluations: where f_t can be
     evaluated at both ends of the bracket that _increasing_root solves in ([mid, min(hi, t_max)] or [lo, mid]),
@@ -2452,7 +2453,9 @@ def _temperature_limit(fluid: ReferenceFluid, f_t: Callable[[np.ndarray, np.ndar
         nan = ~np.isfinite(f_end)
         if nan.any():      # an end outside the equation's range: screen._root scans (as _increasing_root does)
             s = up[nan]
-            root[s] = _scan_up(f_t, rows[s], lo[s], mid[s], f_mid[s], hi[s])
+            # f_t cannot be evaluated at `end`, so nowhere above it either (the range is one interval from lo)
+            root[s] = _scan_up(f_t, rows[s], lo[s], mid[s], f_mid[s], hi[s], nan_from=end[s],
+                               guess=None if guess is None else guess[s])
             done[s] = True
         below = ~nan & (f_end < 0.0)
         done[up[below]] = True                      # no root
@@ -2535,8 +2538,14 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
 
     # the reference isochore can be evaluated from the lower temperature up to the equation's range (its
     # temperature range, its highest pressure): an end past it is scanned upwards from the worst case
+    # a guess of the root for the upward scan (which settles on the same scan points whatever it is guessed): the
+    # liquid isochore past the liquid-full point, in proportion to its slope just past it
+    lf, slope = out["liquid_full"][live], out["dpdt_liquid_full"][live]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        guess = np.where(t_peak[live] > lf, t_peak[live] + (rated[live] - peak[live]) / slope,
+                         lf + (rated[live] - out["crossing"][live]) / slope)
     root, ok = _temperature_limit(fluid, f_t, rho, rated, live, t_lo[live], t_peak[live], peak[live] / rated[live] - 1.0,
-                                  t_hi[live], np.fmin(out["dry"], out["liquid_full"])[live])
+                                  t_hi[live], np.fmin(out["dry"], out["liquid_full"])[live], guess)
     fallback[live[~ok]] = True
     max_t = out["max_t"]
     max_t[live[ok]] = root[ok]
@@ -2744,8 +2753,10 @@ def _liquefied_plain_columns(part: PlainPart) -> dict:
     verdicts = np.full(part.p_fill.size, None, dtype=object)
     rated, atm, margin_req = part.rated.tolist(), part.atm.tolist(), part.margin_req.tolist()
     relief, ratio = part.relief.tolist(), part.ratio.tolist()
+    # the columns _liquefied_verdict reads, each listed once (indexing a list is cheaper than making a numpy scalar)
+    listed = _Listed(cols)
     for k in np.flatnonzero(~cols["fallback"]).tolist():
-        verdicts[k] = _liquefied_verdict(cols, k, rated[k], None if math.isnan(relief[k]) else relief[k], atm[k],
+        verdicts[k] = _liquefied_verdict(listed, k, rated[k], None if math.isnan(relief[k]) else relief[k], atm[k],
                                          margin_req[k], None if math.isnan(ratio[k]) else ratio[k], "exposure")
     cols["verdict"] = verdicts
     return cols

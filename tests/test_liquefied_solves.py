@@ -248,3 +248,68 @@ def test_dome_boundary_by_newton_steps_from_the_table_equals_the_bracketed_solve
         for k in range(0, 200, 10):
             if t[k] < fluid.critical_temperature - 1e-3:
                 assert CP.PropsSI("Dmolar", "T", t[k], "Q", q, cp) == pytest.approx(rho[k], rel=1e-9)
+
+
+@pytest.mark.parametrize("cp", ["CO2", "n-Butane", "Chlorine"])
+def test_saturation_states_are_the_single_saturation_calls(cp):
+    """ReferenceFluid.saturation_states gives, bit for bit, what vapour_pressure and the saturated densities give one
+    temperature at a time (NaN where those raise), and CoolProp's PropsSI gives the same states."""
+    from screening.errors import NotApplicable
+
+    fluid = reference_fluid((cp,), (1.0,))
+    tt, tc = fluid.triple_temperature, fluid.critical_temperature
+    t = np.concatenate([np.linspace(tt, tc - 1e-3, 57), [tt - 1.0, tc, tc + 5.0, np.nan]])
+    for q, single in ((0.0, fluid.saturated_liquid_density), (1.0, fluid.saturated_vapour_density)):
+        p, rho = fluid.saturation_states(t, q)
+        for i, ti in enumerate(t.tolist()):
+            try:
+                want_p, want_rho = fluid.vapour_pressure(ti), single(ti)
+            except NotApplicable:
+                assert np.isnan(p[i]) and np.isnan(rho[i])
+                continue
+            assert p[i] == want_p and rho[i] == want_rho
+        inside = np.flatnonzero(np.isfinite(rho))
+        assert inside.size == 57
+        for i in inside[::8]:
+            # CoolProp's saturation state through PropsSI (an independent call path)
+            assert rho[i] == pytest.approx(CP.PropsSI("Dmolar", "T", t[i], "Q", q, cp), rel=1e-9)
+            assert p[i] == pytest.approx(CP.PropsSI("P", "T", t[i], "Q", q, cp), rel=1e-9)
+
+
+@pytest.mark.parametrize("cp,tf_lo,tf_hi,tp_lo,tp_hi", [f for f in FLUIDS if f[0] in ("n-Butane", "Chlorine", "R134a")])
+def test_temperature_limit_does_not_depend_on_the_guess(cp, tf_lo, tf_hi, tp_lo, tp_hi):
+    """The upward scan settles on the same scan points whatever it is guessed: the limits with the guess the
+    columns give, with wild guesses and with none are the same numbers, bit for bit (fluids whose equation stops at a
+    pressure a heated liquid reaches: n-butane 120 bar, chlorine 200, R-134a 700)."""
+    fluid, rho, t_fill, t_peak, rated = _rows(cp, tf_lo, tf_hi, tp_lo, tp_hi, 300, seed=len(cp) + 1)
+    rho = rho * 0.5 + 0.49 * fluid.saturated_liquid_density(tf_lo)    # mostly liquid fills: liquid-full on the way
+    peak, _v, _r = fluid.pressures(rho, t_peak)
+    live = np.flatnonzero(np.isfinite(peak))
+    rc = fluid.critical_molar_density
+    boundary = np.full(rho.size, np.nan)
+    for side, sel in (("vapour", rho <= rc), ("liquid", rho > rc)):
+        k = np.flatnonzero(sel)
+        boundary[k], _ok = engine._dome(fluid, side).boundary(rho[k])
+
+    def f_t(t, ix):
+        p, _v, _r = fluid.pressures(rho[ix], t)
+        return p / rated[ix] - 1.0
+
+    t_lo, t_hi = np.minimum(t_fill, t_peak)[live], (np.maximum(t_fill, t_peak) + 300.0)[live]
+    f_mid = peak[live] / rated[live] - 1.0
+    args = (fluid, f_t, rho, rated, live, t_lo, t_peak[live], f_mid, t_hi, boundary[live])
+    none, ok_none = engine._temperature_limit(*args)
+    # rows the upward scan settles: below the rating at the worst case, past the equation's range at the end
+    scanned = (f_mid < 0.0) & np.isnan(f_t(np.minimum(t_hi, fluid.t_max), live))
+    assert scanned.sum() >= 20 and np.isfinite(none[scanned]).sum() >= 20
+    lf, slope = np.full(rho.size, np.nan), np.full(rho.size, np.nan)
+    full = np.flatnonzero(np.isfinite(boundary) & (rho > rc))
+    lf[full] = boundary[full]
+    slope[full] = [fluid.dp_dt_at_constant_density(r, t + 0.01) for r, t in zip(rho[full], lf[full])]
+    columns_guess = lf[live] + (rated[live] - np.array([fluid.vapour_pressure(t) if np.isfinite(t) else np.nan
+                                                        for t in lf[live]])) / slope[live]
+    rnd = np.random.default_rng(7)
+    for guess in (columns_guess, t_peak[live] + 40.0, t_hi, t_lo, rnd.uniform(200.0, 900.0, live.size), np.full(live.size, np.nan)):
+        got, ok = engine._temperature_limit(*args, guess)
+        assert np.array_equal(ok, ok_none)
+        assert np.array_equal(got, none, equal_nan=True)

@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from itertools import chain
 
 import numpy as np
 
@@ -403,11 +404,13 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
         texts[col.key] = [v if v else default for v in values]
     for k, v in flat.items():
         texts.setdefault(k, [v] * n_rows)
+    # a cell the reader could not read is an Unreadable (a str subclass): none where every cell is a plain str
+    plain_text = set(map(type, chain.from_iterable(row for _, row in inv.rows))) <= {str}
     for pos, (_, row) in enumerate(inv.rows):
         if len(row) > width and any((c or "").strip() for c in row[width:]):
             ok[pos] = False
-        elif any(isinstance(c, Unreadable) and (c.in_any_column or (j < width and inv.columns[j].key))
-                 for j, c in enumerate(row)):
+        elif not plain_text and any(isinstance(c, Unreadable) and (c.in_any_column or (j < width and inv.columns[j].key))
+                                    for j, c in enumerate(row)):
             ok[pos] = False
 
     def column(key: str) -> list:

@@ -765,6 +765,28 @@ class ReferenceFluid:
                 pass
         return out
 
+    @_holding_the_state
+    def saturation_states(self, T: np.ndarray, q: float) -> tuple[np.ndarray, np.ndarray]:
+        """The vapour pressures [Pa] and the saturated-liquid (q = 0) or saturated-vapour (q = 1) molar densities
+        [mol/m3] of many temperatures [K], each what :meth:`vapour_pressure` and :meth:`saturated_liquid_density`
+        or :meth:`saturated_vapour_density` give (the same flash and checks, the lock held once); NaN in both
+        where those raise NotApplicable."""
+        self._require_pure("saturation")
+        t_f = np.asarray(T, dtype=float).tolist()
+        p_out, rho_out = np.full(len(t_f), np.nan), np.full(len(t_f), np.nan)
+        tt, tc, a = self.triple_temperature, self.critical_temperature, self._state
+        for i, t in enumerate(t_f):
+            if not math.isfinite(t) or t < tt or t >= tc:
+                continue
+            try:
+                a.update(CoolProp.QT_INPUTS, q, t)
+                p, rho = a.p(), a.rhomolar()
+            except ValueError:
+                continue
+            if math.isfinite(p) and math.isfinite(rho) and p > 0 and rho > 0:
+                p_out[i], rho_out[i] = p, rho
+        return p_out, rho_out
+
     def vapour_pressure(self, T: float) -> float:
         """Vapour pressure [Pa] at T [K], triple point ≤ T < Tc."""
         return self._saturation(T, 0.0)[0]
