@@ -12,6 +12,7 @@ Where there is one core, or few items, everything runs in this process.
 
 from __future__ import annotations
 
+import contextlib
 import multiprocessing
 import os
 from collections import deque
@@ -75,13 +76,20 @@ def ordered(pool: ProcessPoolExecutor | None, fn: Callable, items: Iterable, ahe
         return
     limit = max(1, ahead * pool._max_workers)
     pending: deque = deque()
-    try:
+    with _in_flight(pending):
         for x in items:
             pending.append(pool.submit(fn, x))
             while len(pending) >= limit:
                 yield pending.popleft().result()
         while pending:
             yield pending.popleft().result()
+
+
+@contextlib.contextmanager
+def _in_flight(pending: deque):
+    """Around the answers of a pool: a broken pool raised as WorkerLost, the calls not yet answered cancelled."""
+    try:
+        yield
     except BrokenProcessPool as exc:
         raise WorkerLost(str(exc)) from None
     finally:
@@ -114,7 +122,7 @@ def routed(pools: list[ProcessPoolExecutor] | None, fn: Callable, items: Iterabl
     busy: list[dict] = [{} for _ in range(n)]   # per pool: unfinished future -> its weight
     pending: deque = deque()            # every future whose answer is not yet used, in order
     most = 2 * ahead * n
-    try:
+    with _in_flight(pending):
         for home, weight, x in items:
             for b in busy:
                 for f in [f for f in b if f.done()]:
@@ -141,11 +149,6 @@ def routed(pools: list[ProcessPoolExecutor] | None, fn: Callable, items: Iterabl
             pending.append(f)
         while pending:
             yield pending.popleft().result()
-    except BrokenProcessPool as exc:
-        raise WorkerLost(str(exc)) from None
-    finally:
-        for f in pending:
-            f.cancel()
 
 
 def map_items(fn: Callable, items: list, min_items: int = 8) -> list:

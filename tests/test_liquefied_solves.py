@@ -29,9 +29,9 @@ def _rows(cp, tf_lo, tf_hi, tp_lo, tp_hi, n, seed):
     return fluid, rho, t_fill, t_peak, rated
 
 
-@pytest.mark.parametrize("cp,tf_lo,tf_hi,tp_lo,tp_hi", FLUIDS)
-def test_temperature_limit_by_newton_steps_equals_the_bracketed_solve(cp, tf_lo, tf_hi, tp_lo, tp_hi):
-    fluid, rho, t_fill, t_peak, rated = _rows(cp, tf_lo, tf_hi, tp_lo, tp_hi, 300, seed=len(cp))
+def _limit_problem(fluid, rho, t_fill, t_peak, rated):
+    """The temperature-limit problem of the rows as the columns pose it: the rows the equation evaluates at the
+    worst case, each row's dome boundary, the function whose root is the limit, and its bracket."""
     peak, _v, _r = fluid.pressures(rho, t_peak)
     live = np.flatnonzero(np.isfinite(peak))
     rc = fluid.critical_molar_density
@@ -46,6 +46,13 @@ def test_temperature_limit_by_newton_steps_equals_the_bracketed_solve(cp, tf_lo,
 
     t_lo, t_hi = np.minimum(t_fill, t_peak)[live], (np.maximum(t_fill, t_peak) + 300.0)[live]
     f_mid = peak[live] / rated[live] - 1.0
+    return live, rc, boundary, f_t, t_lo, t_hi, f_mid
+
+
+@pytest.mark.parametrize("cp,tf_lo,tf_hi,tp_lo,tp_hi", FLUIDS)
+def test_temperature_limit_by_newton_steps_equals_the_bracketed_solve(cp, tf_lo, tf_hi, tp_lo, tp_hi):
+    fluid, rho, t_fill, t_peak, rated = _rows(cp, tf_lo, tf_hi, tp_lo, tp_hi, 300, seed=len(cp))
+    live, rc, boundary, f_t, t_lo, t_hi, f_mid = _limit_problem(fluid, rho, t_fill, t_peak, rated)
     fast, ok_fast = engine._temperature_limit(fluid, f_t, rho, rated, live, t_lo, t_peak[live], f_mid, t_hi,
                                               boundary[live])
     # the full computation: the bracketed solve of the whole bracket (Illinois), scanned where an end is past
@@ -283,20 +290,7 @@ def test_temperature_limit_does_not_depend_on_the_guess(cp, tf_lo, tf_hi, tp_lo,
     pressure a heated liquid reaches: n-butane 120 bar, chlorine 200, R-134a 700)."""
     fluid, rho, t_fill, t_peak, rated = _rows(cp, tf_lo, tf_hi, tp_lo, tp_hi, 300, seed=len(cp) + 1)
     rho = rho * 0.5 + 0.49 * fluid.saturated_liquid_density(tf_lo)    # mostly liquid fills: liquid-full on the way
-    peak, _v, _r = fluid.pressures(rho, t_peak)
-    live = np.flatnonzero(np.isfinite(peak))
-    rc = fluid.critical_molar_density
-    boundary = np.full(rho.size, np.nan)
-    for side, sel in (("vapour", rho <= rc), ("liquid", rho > rc)):
-        k = np.flatnonzero(sel)
-        boundary[k], _ok = engine._dome(fluid, side).boundary(rho[k])
-
-    def f_t(t, ix):
-        p, _v, _r = fluid.pressures(rho[ix], t)
-        return p / rated[ix] - 1.0
-
-    t_lo, t_hi = np.minimum(t_fill, t_peak)[live], (np.maximum(t_fill, t_peak) + 300.0)[live]
-    f_mid = peak[live] / rated[live] - 1.0
+    live, rc, boundary, f_t, t_lo, t_hi, f_mid = _limit_problem(fluid, rho, t_fill, t_peak, rated)
     args = (fluid, f_t, rho, rated, live, t_lo, t_peak[live], f_mid, t_hi, boundary[live])
     none, ok_none = engine._temperature_limit(*args)
     # rows the upward scan settles: below the rating at the worst case, past the equation's range at the end
