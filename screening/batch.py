@@ -250,22 +250,16 @@ def _chunk_rows(job: tuple) -> Iterator[tuple]:
 
 def _compact(rows: Iterator[tuple]) -> list[tuple]:
     """A chunk's rows as the batch writes and counts them, without their short results (which cost more to send
-    back to the batch's process than everything else): per row (severity key, verdict, duplicate id or not, the
-    units of its result columns (None for an input error), its result columns in those units (result_values),
-    JSON line or None, short result or None). The short result comes only with the chunk's TERMINAL_ROWS worst
-    rows, the only ones that can be among the inventory's worst (the keys are distinct: they end with the row)."""
+    back to the batch's process than everything else): per row :func:`_row_summary` with the short result only
+    for the chunk's TERMINAL_ROWS worst rows, the only ones that can be among the inventory's worst (the keys are
+    distinct: they end with the row)."""
     units: dict[tuple, tuple] = {}
-    out = []
-    short = []
+    out, short = [], []
     for r, line, _f in rows:
-        if r["verdict"] == "input-error":
-            u = None
-        else:
-            u = file_units(r)
-            u = units.setdefault(u, u)
-        pu, tu = u or ("bar(g)", "degC")
-        dup = any(w.get("code") == "duplicate-id" for w in r.get("warnings") or [])
-        out.append([severity_key(r), r["verdict"], dup, u, result_values(r, pu, tu), line, None])
+        x = _row_summary(r, line, None)
+        if x[3] is not None:
+            x[3] = units.setdefault(x[3], x[3])     # one tuple of units per chunk, pickled once
+        out.append(x)
         short.append(r)
     for i in heapq.nsmallest(TERMINAL_ROWS, range(len(out)), key=lambda i: out[i][0]):
         out[i][6] = short[i]
@@ -273,14 +267,18 @@ def _compact(rows: Iterator[tuple]) -> list[tuple]:
 
 
 def _expanded(got: list[tuple]) -> list[tuple]:
-    """screen_chunk's rows without ``compact`` as _compact's rows, in the units of each row's own result."""
-    out = []
-    for r, line, _f in got:
-        u = None if r["verdict"] == "input-error" else file_units(r)
-        pu, tu = u or ("bar(g)", "degC")
-        dup = any(w.get("code") == "duplicate-id" for w in r.get("warnings") or [])
-        out.append((severity_key(r), r["verdict"], dup, u, result_values(r, pu, tu), line, r))
-    return out
+    """screen_chunk's rows without ``compact`` as _compact's rows, each with its short result."""
+    return [tuple(_row_summary(r, line, r)) for r, line, _f in got]
+
+
+def _row_summary(r: dict, line: bytes | None, short: dict | None) -> list:
+    """A screened row as the batch writes and counts it: [severity key, verdict, duplicate id or not, the units of
+    its result columns (None for an input error), its result columns in those units (result_values), JSON line or
+    None, `short`]."""
+    u = None if r["verdict"] == "input-error" else file_units(r)
+    pu, tu = u or ("bar(g)", "degC")
+    dup = any(w.get("code") == "duplicate-id" for w in r.get("warnings") or [])
+    return [severity_key(r), r["verdict"], dup, u, result_values(r, pu, tu), line, short]
 
 
 def _with_curves(f: Result | dict | None, inv: Inventory, i: int, defaults: dict | None) -> Result | dict | None:
