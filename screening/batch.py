@@ -273,12 +273,12 @@ def _expanded(got: list[tuple]) -> list[tuple]:
 
 def _row_summary(r: dict, line: bytes | None, short: dict | None) -> list:
     """A screened row as the batch writes and counts it: [severity key, verdict, duplicate id or not, the units of
-    its result columns (None for an input error), its result columns in those units (result_values), JSON line or
-    None, `short`]."""
+    its result columns (None for an input error), its result columns in those units (result_values, as a tuple: a
+    tuple of numbers and texts is no work for the garbage collector once it has seen it), JSON line or None, `short`]."""
     u = None if r["verdict"] == "input-error" else file_units(r)
     pu, tu = u or ("bar(g)", "degC")
     dup = any(w.get("code") == "duplicate-id" for w in r.get("warnings") or [])
-    return [severity_key(r), r["verdict"], dup, u, result_values(r, pu, tu), line, short]
+    return [severity_key(r), r["verdict"], dup, u, tuple(result_values(r, pu, tu)), line, short]
 
 
 def _with_curves(f: Result | dict | None, inv: Inventory, i: int, defaults: dict | None) -> Result | dict | None:
@@ -483,10 +483,12 @@ class _Outputs:
         row = (list(cells) + [""] * self.width)[:self.width]
         return [r["row"]] + [str(c) for c in row] + result_values(r, self.pu, self.tu)
 
-    def row_values(self, n: int, cells: list[str], result_columns: list) -> list:
-        """values() of row `n` whose result columns are already made (in this file's units)."""
+    def row_values(self, n: int, cells: list[str], result_columns) -> list:
+        """values() of row `n` whose result columns (a list or tuple) are already made (in this file's units)."""
+        if len(cells) == self.width:        # the common row: no padding, no cut
+            return [n, *map(str, cells), *result_columns]
         row = (list(cells) + [""] * self.width)[:self.width]
-        return [n] + [str(c) for c in row] + result_columns
+        return [n, *map(str, row), *result_columns]
 
     def write(self, values: list, line: bytes | None) -> None:
         if self.csv:
@@ -575,11 +577,13 @@ def _gas_order(inv: Inventory) -> list[int]:
     cols = {c.key: i for i, c in enumerate(inv.columns)}
     gas, mass = cols.get("fill.gas"), cols.get("fill.mass")
 
-    def cell(cells: list, j: int | None) -> str:
-        return cells[j].strip() if j is not None and j < len(cells) else ""
-
-    return sorted(range(len(inv.rows)), key=lambda i: (cell(inv.rows[i][1], gas).casefold(),
-                                                       cell(inv.rows[i][1], mass) != ""))
+    rows = inv.rows
+    gases = ([c[gas].strip().casefold() if gas < len(c) else "" for _n, c in rows] if gas is not None
+             else [""] * len(rows))
+    masses = ([mass < len(c) and c[mass].strip() != "" for _n, c in rows] if mass is not None
+              else [False] * len(rows))
+    keys = list(zip(gases, masses))
+    return sorted(range(len(rows)), key=keys.__getitem__)
 
 
 def _windows(reg, defaults, want, ids: _Ids):
@@ -587,7 +591,7 @@ def _windows(reg, defaults, want, ids: _Ids):
     in the order they are screened, the jobs (home, weight, job for screen_chunk) that screen them in that order:
     see :func:`_chunk_cuts` and :func:`screening.parallel.routed`)."""
     id_col = _id_column(reg)
-    for window in reg.chunks(CHUNK_ROWS * WINDOW_CHUNKS):
+    for window in reg.chunks(CHUNK_ROWS * WINDOW_CHUNKS, tuples=True):
         rows = window.rows
         dups = ids.first_rows([(n, c[id_col].strip() if id_col < len(c) else "") for n, c in rows])
         jobs, order = [], []

@@ -110,11 +110,12 @@ def _cell_text(v) -> str:
     return str(v)
 
 
-def _checked(cells: list, width: int) -> list[str]:
+def _checked(cells: list, width: int, kind: type = list) -> list[str] | tuple[str, ...]:
+    """A row's cells as texts (each as read, or Unreadable), in a `kind` (list or tuple)."""
     if len(cells) <= MAX_COLUMNS:
         try:        # the common row: short ASCII texts, kept as they are (checked at C speed)
             if max(map(len, cells), default=0) <= MAX_CELL_CHARS and "".join(cells).isascii():
-                return list(cells)
+                return kind(cells)
         except TypeError:           # a cell that is not text (a spreadsheet's number): one by one
             pass
     out = []
@@ -127,7 +128,7 @@ def _checked(cells: list, width: int) -> list[str]:
         elif not c.isascii() and _SURROGATE.search(c):
             c = Unreadable(c.encode("utf-8", "surrogateescape").decode("utf-8", "replace"), "UTF-8 text")
         out.append(c)
-    return out
+    return kind(out)
 
 
 class Register:
@@ -267,8 +268,10 @@ class Register:
             wb.close()
             raise
 
-    def rows(self) -> Iterator[tuple[int, list[str]]]:
-        """The rows after the header that hold anything, with their spreadsheet row numbers."""
+    def rows(self, tuples: bool = False) -> Iterator[tuple[int, list[str]]]:
+        """The rows after the header that hold anything, with their spreadsheet row numbers (the cells in a list, or
+        with `tuples` in a tuple: a tuple of texts is no work for the garbage collector once it has seen it)."""
+        kind = tuple if tuples else list
         width = len(self.columns)
         if self.kind == "xlsx":
             rows, n = self._xlsx_rows
@@ -277,18 +280,18 @@ class Register:
                 for row in rows:
                     n += 1
                     if any(c is not None and str(c).strip() for c in row):
-                        yield n, _checked(row, width)
+                        yield n, _checked(row, width, kind)
             finally:
                 self._wb.close()
             return
         for n, row in self._csv:
-            if any(c.strip() for c in row):
-                yield n, _checked(row, width)
+            if "".join(row).strip():        # a cell that holds anything (at C speed: no generator per row)
+                yield n, _checked(row, width, kind)
 
-    def chunks(self, size: int) -> Iterator[Inventory]:
-        """The rows in Inventories of at most `size` rows each."""
+    def chunks(self, size: int, tuples: bool = False) -> Iterator[Inventory]:
+        """The rows in Inventories of at most `size` rows each (the cells in tuples with `tuples`: see rows)."""
         batch: list = []
-        for item in self.rows():
+        for item in self.rows(tuples):
             batch.append(item)
             if len(batch) >= size:
                 yield self.part(batch)
@@ -431,7 +434,7 @@ def row_data(inv: Inventory, cells: list[str], defaults: dict | None) -> tuple[d
         else:
             data[k] = default_text(by_key.get(k), v)
     lines = []
-    for col, cell in zip(inv.columns, cells + [""] * (len(inv.columns) - len(cells))):
+    for col, cell in zip(inv.columns, [*cells, *[""] * (len(inv.columns) - len(cells))]):
         if isinstance(cell, Unreadable) and (col.key is not None or cell.in_any_column):
             raise InputError("the cell cannot be read", column=col.header, given=str(cell), expected=cell.expected)
         if col.key is None:
