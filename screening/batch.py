@@ -150,15 +150,16 @@ class BatchRun:
             return r
         return replace(f, row=r["row"], warnings=_warnings(r["warnings"]))
 
-    def full_json(self, i: int, warnings: list[dict]) -> dict:
+    def full_json(self, i: int, warnings: list[dict], line: bool = False) -> dict:
         """``full(i)`` as JSON (:func:`_json`) with the given warnings, built without the Result where the
-        row ran on the columns (:meth:`screening.engine.PlainScreening.full_json`)."""
+        row ran on the columns (:meth:`screening.engine.PlainScreening.full_json`; with `line`, as a line of the
+        JSON output holds it, to be written at once: maybe without the curves and cautions, sharing parts)."""
         r = self.results[i]
         j = self._plain_at.get(i)
         if i in self._fulls or j is None or r["verdict"] == "input-error":
             f = self.full(i)
             return _json(replace(f, warnings=_warnings(warnings)) if isinstance(f, Result) else f)
-        f = self._plain.full_json(j)
+        f = self._plain.full_json(j, line)
         if f is None:
             return r
         f["warnings"] = [ScreeningWarning.json_layout(w) for w in warnings]
@@ -196,7 +197,7 @@ def _screened(inv: Inventory, defaults: dict | None) -> tuple[list[dict], object
             results.append(error_row(n, err, cid))
             fulls.append(results[-1])
 
-    def full_json(i: int, warnings: list[dict]) -> dict:
+    def full_json(i: int, warnings: list[dict], line: bool = False) -> dict:
         f = fulls[i]
         return _json(replace(f, warnings=_warnings(warnings)) if isinstance(f, Result) else f)
     return results, fulls.__getitem__, full_json
@@ -235,7 +236,7 @@ def _chunk_rows(job: tuple) -> Iterator[tuple]:
             cells = inv.rows[i][1]
             # the full result's JSON: from the Result where the PDF needs it anyway, else built directly (a new
             # dict either way, but for an input-error record: the row's short result itself)
-            rec = _json(f) if f is not None else full_json(i, r["warnings"])
+            rec = _json(f) if f is not None else full_json(i, r["warnings"], True)
             if rec is r or rec.get("verdict") == "input-error":
                 rec = dict(rec)
             for k in _DROP:

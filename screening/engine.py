@@ -62,7 +62,7 @@ from screening import screen as _screen
 from screening.constants import R
 from screening.errors import InputError, NotApplicable
 from screening.inputs.case import Case, load_case, parse_case_text
-from screening.inputs.columns import PlainRows
+from screening.inputs.columns import CaseRow, PlainRows
 from screening.physics.eos.generalized import (
     GENERALIZED_FIELDS,
     LK_REDUCED_PRESSURE_RANGE,
@@ -1381,6 +1381,8 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
 #: The JSON objects of a result and of its parts laid out from their fields by name (result.json_record: the
 #: order is result.py's); a row's "row" is the batch's to add.
 _RESULT, _FILL, _LIMITS = json_record(Result, ("row",)), json_record(Fill), json_record(Limits)
+#: A result's JSON object as a batch's JSON line holds it: without the curves and the cautions (a CaseRow's layout).
+_LINE = json_record(Result, ("row", "curves", "cautions"))
 
 
 def _layout(case: Case, cols: dict, k: int, v: dict, sun: SunRow | None, fill: tuple, models: dict,
@@ -1391,8 +1393,13 @@ def _layout(case: Case, cols: dict, k: int, v: dict, sun: SunRow | None, fill: t
     `fill` is (density [kg/m3], molar density [mol/m3], mass [kg], phase, vapour pressure at fill [Pa]), each
     None where not established."""
     rho_mass, rho_molar, mass, phase, vapour_pressure = fill
-    result = _RESULT(
-        **_screen.case_parts(case),
+    if type(case) is CaseRow:   # a line of the batch's JSON: its case's parts laid out by the column reader
+        record, parts = _LINE, case.parts
+    else:
+        record, parts = _RESULT, _screen.case_parts(case)
+        parts["curves"] = None
+    result = record(
+        **parts,
         verdict=v["verdict"], reasons=list(v["reasons"]), warnings=list(v["warnings"]),
         fill=_FILL(pressure_pa=case.fill_pressure_pa, temperature_k=float(case.fill_temperature_k),
                    temperature_given=True, density_kg_m3=rho_mass, molar_density_mol_m3=rho_molar, mass_kg=mass,
@@ -1407,7 +1414,7 @@ def _layout(case: Case, cols: dict, k: int, v: dict, sun: SunRow | None, fill: t
         rated_pressure_pa=case.rated_pressure_pa, relief_set_pressure_pa=case.relief_set_pressure_pa,
         required_margin_fraction=case.required_margin, required_margin_is_default=case.required_margin_is_default,
         margin_fraction=v["margin_fraction"], relief_margin_fraction=v["relief_margin_fraction"],
-        nominal_margin_fraction=nominal_margin, limits=limits, curves=None, phase_diagram=None,
+        nominal_margin_fraction=nominal_margin, limits=limits, phase_diagram=None,
         # folded in by _one_scenario, in their places
         scenarios=None, governing_scenario=None, exposure=None)
     return _one_scenario(case, result, sun)
@@ -1750,6 +1757,7 @@ class PlainScreening:
         self._full: dict[int, dict] = {}
         self._where: dict[int, tuple[dict, int]] = {}
         self._listed: dict[int, _Listed] = {}
+        self._gas_parts: dict[int, dict] = {}    # {id of a gas: its result part} for the lines of the JSON
         groups: dict[tuple[str, bool], list[int]] = {}
         rest: list[int] = []
         by_mass = ~np.isnan(plain.fill_mass_kg)
@@ -1844,11 +1852,15 @@ class PlainScreening:
                 return {"verdict": "input-error", "error": exc}
         return _assemble(self.plain.case(j), cols, k, sun=self._sun.get(j))
 
-    def full_json(self, j: int) -> dict | None:
+    def full_json(self, j: int, line: bool = False) -> dict | None:
         """``full(j).to_json()``, laid out directly without the Result where the row ran on the columns
         (:func:`_row_dict`; tests/test_batch_json.py keeps the two equal, byte for byte); None where the row could
         not be screened (:meth:`full` gives its input-error record). A new dict on each call, sharing none of
-        its parts with another row's (the governing scenario's summary shares the result's limits and reasons)."""
+        its parts with another row's (the governing scenario's summary shares the result's limits and reasons).
+
+        With `line`, for a line of the batch's JSON, to be written at once: where the row ran on the columns,
+        without its curves and cautions, laid out from the row's :class:`~screening.inputs.columns.CaseRow`
+        rather than its Case, and sharing its gas's part and display units with other rows."""
         if j in self._full or not (cols_k := self._where.get(j)):
             r = self.full(j)
             return r.to_json() if isinstance(r, Result) else None
@@ -1864,7 +1876,15 @@ class PlainScreening:
         if not settled:
             r = self.full(j)
             return r.to_json() if isinstance(r, Result) else None
-        return _row_dict(self.plain.case(j), listed, k, listed["verdict"][k], sun=self._sun.get(j))
+        if line:
+            gas = self.plain.gases[j]
+            part = self._gas_parts.get(id(gas))
+            if part is None:
+                part = self._gas_parts[id(gas)] = _screen.gas_part(gas)   # the gases live as long as self.plain
+            case = self.plain.case_row(j, part)
+        else:
+            case = self.plain.case(j)
+        return _row_dict(case, listed, k, listed["verdict"][k], sun=self._sun.get(j))
 
 
 class _Listed(dict):

@@ -1095,6 +1095,14 @@ def _governing(models: list[Model]) -> Model | None:
     return max(real, key=lambda m: m.peak_pa) if real else None
 
 
+def gas_part(gas) -> dict:
+    """A result's "gas" part: the gas's name, kind, hazards and components (a new dict on each call)."""
+    return {"name": gas.name, "kind": gas.kind, "hazards": list(gas.hazards),
+            "components": [{"name": g.name, "formula": g.formula, "fraction": x,
+                            "molar_mass_kg_mol": g.molar_mass, "coolprop_name": g.coolprop_name}
+                           for g, x in zip(gas.components, gas.fractions)]}
+
+
 def case_parts(case: Case) -> dict:
     """The parts of a result that describe the case as entered: its identity, site, gas, vessel, inputs,
     display units and the cautions (every path's result takes them from here)."""
@@ -1103,10 +1111,7 @@ def case_parts(case: Case) -> dict:
         "tool_version": __version__, "input_sha256": case.input_sha256,
         "site": {"name": case.site.name, "atmospheric_pressure_pa": case.site.atmospheric_pressure_pa,
                  "elevation_m": case.site.elevation_m},
-        "gas": {"name": case.gas.name, "kind": case.gas.kind, "hazards": list(case.gas.hazards),
-                "components": [{"name": g.name, "formula": g.formula, "fraction": x,
-                                "molar_mass_kg_mol": g.molar_mass, "coolprop_name": g.coolprop_name}
-                               for g, x in zip(case.gas.components, case.gas.fractions)]},
+        "gas": gas_part(case.gas),
         "vessel": {"water_capacity_m3": case.water_capacity_m3, "rated_pressure_pa": case.rated_pressure_pa,
                    "rated_pressure_kind": case.rated_pressure_kind,
                    "relief_set_pressure_pa": case.relief_set_pressure_pa,
