@@ -1320,7 +1320,12 @@ def _one_scenario(case: Case, result: dict, sun: SunRow | None) -> dict:
     if not hasattr(case, "scenarios"):
         return result
     name = case.scenarios[0].name if case.scenarios else "exposure"
-    return _screen.fold_scenarios([(name, result, sun.balance if sun is not None else None)])[1]
+    balance = sun.balance if sun is not None else None
+    if type(case) is CaseRow:   # a line of the batch's JSON: fold_scenarios of one scenario, in place
+        result["scenarios"] = [_screen.scenario_summary(name, result, balance, True)]
+        result["governing_scenario"], result["exposure"] = name, balance
+        return result
+    return _screen.fold_scenarios([(name, result, balance)])[1]
 
 
 def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:

@@ -1523,7 +1523,8 @@ def screened_temperature(t_exposure, t_fill_given):
 _SUMMARY = json_record(ScenarioSummary)
 
 
-def _scenario_summary(name: str, r: dict, exposure: dict | None, governing: bool) -> dict:
+def scenario_summary(name: str, r: dict, exposure: dict | None, governing: bool) -> dict:
+    """A scenario's summary under a result's "scenarios" (fold_scenarios)."""
     return _SUMMARY(
         name=name, verdict=r["verdict"], reasons=r["reasons"], worst_case_temperature_k=r["worst_case_temperature_k"],
         worst_case_basis=r["worst_case_basis"], peak_pressure_pa=r["peak_pressure_pa"],
@@ -1624,7 +1625,7 @@ def fold_scenarios(per: list[tuple[str, dict, dict | None]]) -> tuple[int, dict]
     ranked = 0 if len(per) == 1 else max(range(len(per)), key=lambda i: _rank(per[i][1]))
     name, result, balance = per[ranked]
     result = dict(result)
-    result["scenarios"] = [_scenario_summary(n, r, b, i == ranked) for i, (n, r, b) in enumerate(per)]
+    result["scenarios"] = [scenario_summary(n, r, b, i == ranked) for i, (n, r, b) in enumerate(per)]
     result["governing_scenario"] = name
     result["exposure"] = balance
     if len(per) > 1:
