@@ -1881,7 +1881,7 @@ class PlainScreening:
         if not settled:
             r = self.full(j)
             return r.to_json() if isinstance(r, Result) else None
-        if line:
+        if line and self.plain.entered is not None:
             gas = self.plain.gases[j]
             part = self._gas_parts.get(id(gas))
             if part is None:

@@ -143,9 +143,10 @@ class PlainRows:
         line of JSON, without building the Case (`gas_part`: its gas's part, screen.gas_part, which the caller
         may share between the rows of one gas). tests/test_batch_json.py keeps it equal to :meth:`case`."""
         si = self._si_values()
-        texts = {k: v[j] for k, v in self.entered.items() if v[j] is not _MISSING}
-        inputs = [{"key": key, "entered": t if type(t := texts[key]) is str else default_text(None, t),
-                   "si_value": si[key][j], "si_unit": unit} for key, unit in _RECORDS if key in texts]
+        records, description, site_name, rated_kind = self._record_columns()
+        inputs = [{"key": key, "entered": t if type(t := texts[j]) is str else default_text(None, t),
+                   "si_value": values[j], "si_unit": unit} for key, unit, texts, values in records
+                  if texts[j] is not _MISSING]
         text = "\n".join([f"{header} = {values[j]!r}" for header, values in self.cell_texts if values[j]]) + "\n"
         relief, ratio = si["vessel.relief_set_pressure"][j], si["vessel.max_filling_ratio"][j]
         fill_p, fill_m = si["fill.pressure"][j], si["fill.mass"][j]
@@ -163,17 +164,30 @@ class PlainRows:
         row.required_margin = si["criteria.required_margin"][j]
         row.required_margin_is_default = bool(self.required_margin_is_default[j])
         row.parts = {
-            "id": self.ids[j], "description": texts.get("description"), "source": self.inv.source,
+            "id": self.ids[j], "description": _entered(description, j), "source": self.inv.source,
             "tool_version": __version__, "input_sha256": hashlib.sha256(text.encode("utf-8")).hexdigest(),
-            "site": {"name": texts.get("site.name"), "atmospheric_pressure_pa": atm,
+            "site": {"name": _entered(site_name, j), "atmospheric_pressure_pa": atm,
                      "elevation_m": None if elevation != elevation else elevation},
             "gas": gas_part,
             "vessel": {"water_capacity_m3": water, "rated_pressure_pa": rated,
-                       "rated_pressure_kind": texts.get("vessel.rated_pressure_kind"),
+                       "rated_pressure_kind": _entered(rated_kind, j),
                        "relief_set_pressure_pa": relief,
                        "max_filling_ratio_kg_per_l": ratio / 1000.0 if ratio is not None else None},
             "inputs": inputs, "display_units": self.display_units[j]}
         return row
+
+    def _record_columns(self) -> tuple:
+        """For :meth:`case_row`, worked out once: the input records' (key, SI unit, entered texts, SI values) of
+        the keys some row enters, in :data:`_RECORDS`' order, and the entered texts of the description, the
+        site's name and the rated pressure's kind (None where no row enters one)."""
+        got = self.__dict__.get("_records")
+        if got is None:
+            si = self._si_values()
+            entered = self.entered
+            got = self.__dict__["_records"] = (
+                tuple((key, unit, entered[key], si[key]) for key, unit in _RECORDS if key in entered),
+                entered.get("description"), entered.get("site.name"), entered.get("vessel.rated_pressure_kind"))
+        return got
 
     def exposure(self, j: int) -> Exposure:
         """The j-th plain row's one exposure scenario, as the case reader makes it."""
@@ -223,6 +237,14 @@ class PlainRows:
         """The j-th plain row read again by the case reader, the authoritative one."""
         n, cells = self.inv.rows[int(self.index[j])]
         return row_case(self.inv, n, cells, self.defaults)
+
+
+def _entered(texts: list | None, j: int):
+    """The j-th row's entered text of a key (None where neither the row nor a default gives one)."""
+    if texts is None:
+        return None
+    t = texts[j]
+    return None if t is _MISSING else t
 
 
 class _Exposure:
