@@ -51,6 +51,7 @@ limit solves there). ``curves`` and ``phase_diagram`` are None until :func:`with
 
 from __future__ import annotations
 
+import functools
 import math
 import threading
 from dataclasses import dataclass, replace
@@ -2787,6 +2788,15 @@ def _liquefied_plain_columns(part: PlainPart) -> dict:
     return cols
 
 
+@functools.lru_cache(maxsize=64)
+def _line_not_applicable(why: str, equation: str) -> tuple[dict, dict]:
+    """The ideal and generalized models' parts where the gas models do not apply (`why`), as
+    :func:`_assemble_liquefied` lays them out, shared by the lines of the batch's JSON that hold them (each line
+    is written at once and never changed)."""
+    return (_screen.not_applicable("ideal", why, equation=equation).as_dict(),
+            _screen.not_applicable("generalized", why).as_dict())
+
+
 def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:
     """One liquefied-gas row's result dict, laid out as screen.screen_states lays out a single-scenario result."""
     gas = case.gas
@@ -2855,8 +2865,11 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
             governing_reason = _screen.governing_text(v["governing_model"], [
                 nm for nm in v["applicable"] if nm not in (v["governing_model"], "ideal")])
         else:
-            ideal = _screen.not_applicable("ideal", why, equation=equation).as_dict()
-            gen = _screen.not_applicable("generalized", why).as_dict()
+            if type(case) is CaseRow:   # a line of the batch's JSON: the same two parts for every row given this why
+                ideal, gen = _line_not_applicable(why, equation)
+            else:
+                ideal = _screen.not_applicable("ideal", why, equation=equation).as_dict()
+                gen = _screen.not_applicable("generalized", why).as_dict()
             governing_reason = _screen.governing_text("reference", [])
         peak_ref = float(cols["peak_ref"][k])
         models = {
