@@ -398,3 +398,21 @@ def test_a_column_rows_json_is_its_results_to_json_whichever_is_asked_first(seed
             assert json_bytes(data) == json_bytes(full.to_json())
         else:
             assert data is None
+
+
+def test_a_chunk_s_lines_come_back_through_its_spool_file_byte_for_byte(kinds_inventory, tmp_path):
+    # the batch's workers write a chunk's JSON lines to a file of the spool folder and send their lengths; the
+    # batch's process puts them back in place and removes the file; where no file can be written, the lines stay
+    # in the rows
+    import os
+
+    inv, defaults = _inventories(kinds_inventory)[1]
+    want = {"json": True, "full": None, "compact": True}
+    plain = batch.screen_chunk((inv, defaults, {}, want))
+    assert all(isinstance(x[5], bytes) for x in plain)
+    spooled = batch.screen_chunk((inv, defaults, {}, dict(want, spool=str(tmp_path))))
+    assert isinstance(spooled, batch.Spooled) and os.listdir(tmp_path) == [os.path.basename(spooled.path)]
+    assert all(isinstance(x[5], int) for x in spooled.rows)
+    assert batch._unspooled(spooled) == plain
+    assert os.listdir(tmp_path) == []
+    assert batch.screen_chunk((inv, defaults, {}, dict(want, spool=str(tmp_path / "gone")))) == plain
