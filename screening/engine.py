@@ -1495,15 +1495,28 @@ def _state_peaks(cols: dict, k: int) -> dict:
 
 
 def _drive(gas: Mixture, steps: dict, known: dict | None = None, ahead: list | None = None) -> dict:
-    """Run the tolerance generators (screen.tolerance_steps) of many vessels in lockstep: each round's states
-    of every vessel are rows of one table; `known` gives the peaks of states already evaluated (each vessel's
-    nominal state: a row of its nominal table, the same numbers); `ahead`: states evaluated in the first round
-    beside the sensitivities' states (each vessel's expected corner, screen.expected_corner, which the second
-    round asks for whichever corners it needs: the second round then costs no table of its own where every
-    vessel's expected corner is confirmed). Returns {key: tolerance block or None (per row)}."""
+    """Run the tolerance generators (screen.tolerance_steps) of many vessels of a permanent gas in lockstep: each
+    round's states of every vessel are rows of one table (:func:`_corner_peaks`); `known` gives the peaks of
+    states already evaluated (each vessel's nominal state: a row of its nominal table, the same numbers); `ahead`:
+    states evaluated in the first round beside the sensitivities' states (each vessel's expected corner,
+    screen.expected_corner, which the second round asks for whichever corners it needs: the second round then
+    costs no table of its own where every vessel's expected corner is confirmed). Returns {key: tolerance block
+    or None (per row)}."""
+    return _drive_states(steps, lambda todo: _corner_peaks(gas, todo), known, ahead)
+
+
+def _drive_states(steps: dict, corner_peaks: Callable[[list], dict], known: dict | None = None,
+                  ahead: list | None = None, tags: dict | None = None) -> dict:
+    """:func:`_drive` with the table of a round's states given (`corner_peaks`: {state: its corner peaks or None}
+    of a list of states). `tags`: {key: a value put in front of each of that vessel's states}, where the states
+    the generator yields do not fix the state alone (a fill by mass: the fill density); `known` and `ahead` are
+    then tagged states."""
     done: dict = {}
     peaks = dict(known or {})
-    asked = {key: next(gen) for key, gen in steps.items()}
+    if tags is None:
+        asked = {key: next(gen) for key, gen in steps.items()}
+    else:
+        asked = {key: [(tags[key], *s) for s in next(gen)] for key, gen in steps.items()}
     first = True
     while asked:
         todo = [s for s in dict.fromkeys(s for states in asked.values() for s in states) if s not in peaks]
@@ -1511,7 +1524,7 @@ def _drive(gas: Mixture, steps: dict, known: dict | None = None, ahead: list | N
             asked_now = set(todo)
             todo += [s for s in dict.fromkeys(ahead) if s not in peaks and s not in asked_now]
         first = False
-        peaks.update(_corner_peaks(gas, todo))
+        peaks.update(corner_peaks(todo))
         nxt = {}
         for key, states in asked.items():
             got = [peaks[s] for s in states]
@@ -1519,9 +1532,11 @@ def _drive(gas: Mixture, steps: dict, known: dict | None = None, ahead: list | N
                 done[key] = None
                 continue
             try:
-                nxt[key] = steps[key].send(got)
+                states = steps[key].send(got)
             except StopIteration as stop:
                 done[key] = stop.value
+                continue
+            nxt[key] = states if tags is None else [(tags[key], *s) for s in states]
         asked = nxt
     return done
 
@@ -1941,48 +1956,122 @@ def liquefied_vectorisable(case: Case) -> bool:
 
 def liquefied_expandable(case: Case) -> bool:
     """Whether a row the liquefied-gas columns take (:func:`liquefied_vectorisable`, but with several exposure
-    scenarios, each in the sun or not, and no tolerances) runs on them with each scenario a row of the table
-    (:func:`_screen_liquefied_scenarios`)."""
+    scenarios, each in the sun or not, or with input tolerances on a fill by mass) runs on them with each scenario
+    and each state of its tolerance analysis a row of a table (:func:`_screen_liquefied_scenarios`). A fill by
+    pressure with tolerances stays per row: its saturation and critical bands are widened by them."""
     scenarios = getattr(case, "scenarios", ())
-    if len(scenarios) <= 1 or getattr(case, "tolerance", None) is not None or case.fill_temperature_k is None:
+    tolerance = getattr(case, "tolerance", None)
+    if not scenarios or (len(scenarios) <= 1 and tolerance is None) or case.fill_temperature_k is None:
         return False
     if (case.fill_pressure_pa is None) == (case.fill_mass_kg is None):
+        return False
+    if tolerance is not None and case.fill_pressure_pa is not None:
         return False
     return (_on_liquefied_columns(case.gas, case.fill_mass_kg is not None)
             and all(getattr(s, "solar", "none") in ("none", "sun") for s in scenarios))
 
 
 def _screen_liquefied_scenarios(cases: list[Case], balances: dict | None = None) -> list[Result | None]:
-    """Rows of one gas on the liquefied-gas columns with several scenarios: every scenario a row of one table
-    (its worst case as screen._worst_case_temperature finds it, :func:`_exposure_row`), each scenario's result
-    laid out as for a row of one scenario, then folded into one result per vessel by screen.fold_scenarios, as
-    screen.screen_states folds them. None where a row must go per row (one of its scenarios fell back, or its
-    worst case raises)."""
+    """Rows of one gas on the liquefied-gas columns with several scenarios or with input tolerances on a fill by
+    mass: every scenario a row of one table (its worst case as screen._worst_case_temperature finds it,
+    :func:`_exposure_row`), each scenario's result laid out as for a row of one scenario, its tolerance block from
+    screen.tolerance_steps driven for every vessel at once (each round's states rows of one table,
+    :func:`_liquefied_corner_peaks`), then folded into one result per vessel by screen.fold_scenarios, as
+    screen.screen_states folds them. None where a row must go per row (one of its scenarios or tolerance states
+    fell back or is out of scope, or its worst case raises)."""
     out: list[Result | None] = [None] * len(cases)
     exposures, keys = _scenario_rows(cases, balances)
     if not keys:
         return out
-    cols = _liquefied_columns(LiquefiedRows.of_cases([cases[i] for i, _j in keys],
-                                                     [exposures[i][j] for i, j in keys]))
+    rows = LiquefiedRows.of_cases([cases[i] for i, _j in keys], [exposures[i][j] for i, j in keys])
+    cols = _liquefied_columns(rows)
     fallback = cols["fallback"].tolist()
     bad = {i for (i, _j), f in zip(keys, fallback) if f}
     row_of = {key: k for k, key in enumerate(keys)}
-    for i, rows in exposures.items():
+    steps, known, ahead, tags = {}, {}, [], {}
+    for k, (i, j) in enumerate(keys):
+        c = cases[i]
+        if i in bad or c.tolerance is None:
+            continue
+        if cols["refused"][k] or cols["unreachable"][k]:
+            bad.add(i)          # no model applies at the nominal state: per row
+            continue
+        t_fill, t_peak = float(c.fill_temperature_k), float(cols["t_peak"][k])
+        peaks = _liquefied_state_peaks(cols, k)
+        # the models applicable at the nominal state, in the models' order (screen._screen_at)
+        names = [nm for nm in ("ideal", "generalized", "reference") if peaks[nm] is not None]
+        tags[(i, j)] = tag = float(rows.rho_mass[k])
+        steps[(i, j)] = _screen.tolerance_steps(c, t_fill, t_peak, names)
+        # the nominal state (the steps' first): the peaks of this row of the nominal table
+        known[(tag, c.fill_pressure_pa, t_fill, t_peak)] = peaks
+        ahead.append((tag, *_screen.expected_corner(c, t_fill, t_peak)))
+    tolerances = _drive_states(steps, lambda todo: _liquefied_corner_peaks(cases[0].gas, todo), known, ahead,
+                               tags) if steps else {}
+    bad |= {i for (i, _j), t in tolerances.items() if t is None}
+    for i, ex_rows in exposures.items():
         if i in bad:
             continue
         c = cases[i]
         per = []
-        for j, (sc, ex) in enumerate(zip(c.scenarios, rows)):
+        for j, (sc, ex) in enumerate(zip(c.scenarios, ex_rows)):
             k = row_of[(i, j)]
-            v = _liquefied_verdict(cols, k, c.rated_pressure_pa, c.relief_set_pressure_pa,
-                                   c.site.atmospheric_pressure_pa, c.required_margin, c.max_filling_ratio_kg_m3,
-                                   sc.name)
-            r = _assemble_liquefied(c, cols, k, v, sun=ex)
+            args = (cols, k, c.rated_pressure_pa, c.relief_set_pressure_pa, c.site.atmospheric_pressure_pa,
+                    c.required_margin, c.max_filling_ratio_kg_m3, sc.name)
+            tol = tolerances.get((i, j))
+            if tol is None:
+                r = _assemble_liquefied(c, cols, k, _liquefied_verdict(*args), sun=ex)
+            else:
+                findings = tol.pop("_findings")
+                if tol["bounding_peak_pressure_pa"] is None or findings["out_of_scope"]:
+                    break               # not on this path (see _liquefied_corner_peaks): per row
+                # decided once, on the bounding peak and the corners' liquid-full findings; the row's nominal
+                # figures from the nominal peak (the tolerance block's, the governing peak of this very row)
+                v = _liquefied_verdict(*args, bounding=tol["bounding_peak_pressure_pa"],
+                                       liquid_full_more=findings["liquid_full"])
+                r = _assemble_liquefied(c, cols, k, {**v, "peak_pressure_pa": tol["nominal_peak_pressure_pa"]},
+                                        sun=ex)
+                r.update(peak_pressure_pa=v["peak_pressure_pa"], tolerance=tol)
             for key in ("scenarios", "governing_scenario", "exposure"):
                 r.pop(key, None)
             per.append((sc.name, r, ex.balance))
-        out[i] = Result.from_json(_screen.fold_scenarios(per)[1])
+        else:
+            out[i] = Result.from_json(_screen.fold_scenarios(per)[1])
     return out
+
+
+def _liquefied_state_peaks(cols: dict, k: int) -> dict:
+    """Row k of liquefied-gas columns as screen._corner_peak gives a state (the row neither fell back nor is
+    refused or out of scope): the peak of each model (None where it does not apply), the governing peak, and the
+    liquid-full rule's finding in the words of a tolerance corner."""
+    gas_ok = bool(cols["gas_ok"][k])
+    peaks = {"ideal": float(cols["peak_ideal"][k]) if gas_ok else None,
+             "generalized": float(cols["lk_peak"][k]) if gas_ok and cols["lk_ok"][k] else None,
+             "reference": float(cols["peak_ref"][k])}
+    peaks["governing"] = _screen.governing_peak(peaks)
+    peaks["_out_of_scope"] = None
+    peaks["_liquid_full"] = None
+    if cols["liquid_full_applies"][k]:
+        fs = _screen.FillState(liquid_full_temperature=_opt(cols["liquid_full"][k]),
+                               dp_dt_after_liquid_full=_opt(cols["dpdt_liquid_full"][k]))
+        peaks["_liquid_full"] = _screen.liquid_full_text(fs, float(cols["t_peak"][k]), corner=True)
+    return peaks
+
+
+def _liquefied_corner_peaks(gas: Mixture, states: list[tuple]) -> dict:
+    """{state: its corner peaks as screen._corner_peak gives them (:func:`_liquefied_state_peaks`), or None where
+    the vessel must go per row}, for states (fill density [kg/m3], None, fill temperature [K], worst-case
+    temperature [K]) of fills by mass, every state a row of one table of the liquefied-gas columns without their
+    limits. The worst case enters as the stated gas temperature, so that the row's screened temperature is
+    screen.screened_temperature of it and the fill temperature, as at a tolerance corner (screen._corner_state).
+    A state refused, out of the reference equation's range or not settled falls back."""
+    if not states:
+        return {}
+    a = np.array([(s[0], s[2], s[3]) for s in states], dtype=float).reshape(-1, 3)
+    nan = np.full(a.shape[0], np.nan)
+    rows = LiquefiedRows(gas, nan, a[:, 1], nan, a[:, 2], nan, nan, nan, rho_mass=a[:, 0])
+    cols = _liquefied_columns(rows, mass_limit=False, limits=False)
+    stop = (cols["fallback"] | cols["refused"] | cols["unreachable"]).tolist()
+    return {s: None if stop[k] else _liquefied_state_peaks(cols, k) for k, s in enumerate(states)}
 
 
 @dataclass
@@ -2671,10 +2760,11 @@ def _mass_limit_settled(cols: dict, k: int, gas: Mixture) -> bool:
     return unsettled is None or not unsettled[k]
 
 
-def _liquefied_columns(rows: Rows, mass_limit: bool = True) -> dict:
+def _liquefied_columns(rows: Rows, mass_limit: bool = True, limits: bool = True) -> dict:
     """Fill state, phases, the reference model, the liquid-full rule and the limits of rows of one pure liquefied
     gas, as arrays (the liquefied-gas counterpart of :func:`_columns`). Rows where the contents are a gas at fill
-    and at the worst case (the gas models apply), and rows a step is not sure of, are marked ``fallback``."""
+    and at the worst case (the gas models apply), and rows a step is not sure of, are marked ``fallback``.
+    `limits` False: the models alone, for the states of tolerance corners (:func:`_liquefied_corner_peaks`)."""
     n = rows.t_fill.size
     t_peak, stated, fill_governs, t_exposure = worst_case(rows.ambient_max, rows.gas_temperature, rows.t_fill)
     fallback = np.zeros(n, dtype=bool)
@@ -2691,7 +2781,8 @@ def _liquefied_columns(rows: Rows, mass_limit: bool = True) -> dict:
     _dome_columns(fluid, rho, out, fallback)
     _crossing_columns(fluid, out, fallback)
     _liquid_full_columns(rows, fluid, out, fallback)
-    _liquefied_limits(rows, fluid, out, fallback, mass_limit)
+    if limits:
+        _liquefied_limits(rows, fluid, out, fallback, mass_limit)
     return out
 
 
@@ -2702,9 +2793,12 @@ def _unreachable_reason(reason: str) -> str:
 
 
 def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, atm: float, required_margin: float,
-                       max_ratio: float | None, name: str | None) -> dict:
+                       max_ratio: float | None, name: str | None, bounding: float | None = None,
+                       liquid_full_more: Iterable[str] = ()) -> dict:
     """One liquefied-gas row's verdict, reasons, margins, governing model and warnings (through screen.decide and
-    the rules of screen.py), as :func:`_verdict` gives them for a permanent gas."""
+    the rules of screen.py), as :func:`_verdict` gives them for a permanent gas. `bounding`: the bounding peak
+    under the input tolerances [Pa], decided on where it is higher, and `liquid_full_more`: the liquid-full
+    findings at their corners, each added once after the row's own (as screen._screen_at)."""
     warnings = _exposure_warnings(cols, k, name)
     band = cols["band"][k]
     if band is not None:
@@ -2729,6 +2823,8 @@ def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, a
     # the governing model: the highest real-gas peak (screen._governing); the ideal gas governs nothing
     real = [(nm, p) for nm, p in (("generalized", peak_gen), ("reference", peak_ref)) if p is not None]
     gov_name, peak = max(real, key=lambda x: x[1])
+    if bounding is not None:
+        peak = max(peak, bounding)
     disagree = _screen.models_disagree(peak_gen, peak_ref)
     if disagree:
         warnings.append(disagree)
@@ -2737,6 +2833,10 @@ def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, a
         fs = _screen.FillState(liquid_full_temperature=_opt(cols["liquid_full"][k]),
                                dp_dt_after_liquid_full=_opt(cols["dpdt_liquid_full"][k]))
         liquid_full = _screen.liquid_full_text(fs, float(cols["t_peak"][k]))
+    if liquid_full_more:
+        found = [liquid_full] if liquid_full is not None else []
+        found += [r for r in liquid_full_more if r not in found]
+        liquid_full = " ".join(found) or None
     ratio_reason = _screen.filling_ratio_reason(float(cols["rho_fill_mass"][k]), max_ratio)
     verdict, reasons, margin, relief_margin = _screen.decide(
         peak=peak, rated=rated, relief=relief, atm=atm, required_margin=required_margin, any_real_model=True,
