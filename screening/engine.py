@@ -1323,10 +1323,12 @@ def _one_scenario(case: Case, result: dict, sun: SunRow | None) -> dict:
     return _screen.fold_scenarios([(name, result, sun.balance if sun is not None else None)])[1]
 
 
-def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:
-    """One row's result as its JSON layout (:func:`_assemble`; the tolerance and scenario fold works on it)."""
+def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None,
+              fold: bool = True) -> dict:
+    """One row's result as its JSON layout (:func:`_assemble`; the tolerance and scenario fold works on it).
+    `fold` False: one scenario's result of a vessel screened with several (see :func:`_layout`)."""
     if cols.get("kind") == "liquefied":
-        return _assemble_liquefied(case, cols, k, v, sun)
+        return _assemble_liquefied(case, cols, k, v, sun, fold)
     gas = case.gas
     fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
     atm = case.site.atmospheric_pressure_pa
@@ -1375,7 +1377,7 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
                      dp_dt_after_liquid_full_pa_k=_opt(cols["dpdt_liquid_full"][k]))
     mass = (rho_mass if by_pressure else case.fill_mass_kg / case.water_capacity_m3) * case.water_capacity_m3
     return _layout(case, cols, k, v, sun, (rho_mass, rho_molar, mass, phase, None), models, peak, gov_name,
-                   governing_reason, 1.0 - (peak - atm) / (case.rated_pressure_pa - atm), limits)
+                   governing_reason, 1.0 - (peak - atm) / (case.rated_pressure_pa - atm), limits, fold)
 
 
 #: The JSON objects of a result and of its parts laid out from their fields by name (result.json_record: the
@@ -1385,11 +1387,13 @@ _RESULT, _FILL, _LIMITS = json_record(Result, ("row",)), json_record(Fill), json
 
 def _layout(case: Case, cols: dict, k: int, v: dict, sun: SunRow | None, fill: tuple, models: dict,
             peak: float | None, governing_model: str | None, governing_reason: str, nominal_margin: float | None,
-            limits: dict) -> dict:
+            limits: dict, fold: bool = True) -> dict:
     """Row k's one-scenario result laid out as screen.screen_states lays it out (both column kinds), as the JSON
     object ``Result.to_json`` writes (the same keys in the same order, JSON values; tests/test_batch_json.py):
     `fill` is (density [kg/m3], molar density [mol/m3], mass [kg], phase, vapour pressure at fill [Pa]), each
-    None where not established."""
+    None where not established. `fold` False: the result as it is, its "scenarios", "governing_scenario" and
+    "exposure" None (one scenario of several, which the caller folds with the others by screen.fold_scenarios),
+    instead of folded as the vessel's only scenario (:func:`_one_scenario`)."""
     rho_mass, rho_molar, mass, phase, vapour_pressure = fill
     result = _RESULT(
         **_screen.case_parts(case),
@@ -1410,7 +1414,7 @@ def _layout(case: Case, cols: dict, k: int, v: dict, sun: SunRow | None, fill: t
         nominal_margin_fraction=nominal_margin, limits=limits, curves=None, phase_diagram=None,
         # folded in by _one_scenario, in their places
         scenarios=None, governing_scenario=None, exposure=None)
-    return _one_scenario(case, result, sun)
+    return _one_scenario(case, result, sun) if fold else result
 
 
 # ----------------------------------------------------------------------------- tolerances and scenarios as rows
@@ -1583,7 +1587,7 @@ def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Re
                     c.site.atmospheric_pressure_pa, c.required_margin, c.max_filling_ratio_kg_m3, sc.name)
             tol = tolerances.get((i, j))
             if tol is None:
-                r = _row_dict(c, cols, k, _verdict(*args), sun=ex)
+                r = _row_dict(c, cols, k, _verdict(*args), sun=ex, fold=False)
             else:
                 findings = tol.pop("_findings")
                 if tol["bounding_peak_pressure_pa"] is None or findings["out_of_scope"] or findings["liquid_full"]:
@@ -1591,7 +1595,8 @@ def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Re
                 # decided once, on the bounding peak; the row's nominal figures from the nominal peak (the
                 # tolerance block's, the governing peak of this very row: the same number)
                 v = _verdict(*args, bounding=tol["bounding_peak_pressure_pa"])
-                r = _row_dict(c, cols, k, {**v, "peak_pressure_pa": tol["nominal_peak_pressure_pa"]}, sun=ex)
+                r = _row_dict(c, cols, k, {**v, "peak_pressure_pa": tol["nominal_peak_pressure_pa"]}, sun=ex,
+                              fold=False)
                 r.update(peak_pressure_pa=v["peak_pressure_pa"], tolerance=tol)
             for key in ("scenarios", "governing_scenario", "exposure"):
                 r.pop(key, None)
@@ -2019,7 +2024,7 @@ def _screen_liquefied_scenarios(cases: list[Case], balances: dict | None = None)
                     c.required_margin, c.max_filling_ratio_kg_m3, sc.name)
             tol = tolerances.get((i, j))
             if tol is None:
-                r = _assemble_liquefied(c, cols, k, _liquefied_verdict(*args), sun=ex)
+                r = _assemble_liquefied(c, cols, k, _liquefied_verdict(*args), sun=ex, fold=False)
             else:
                 findings = tol.pop("_findings")
                 if tol["bounding_peak_pressure_pa"] is None or findings["out_of_scope"]:
@@ -2029,7 +2034,7 @@ def _screen_liquefied_scenarios(cases: list[Case], balances: dict | None = None)
                 v = _liquefied_verdict(*args, bounding=tol["bounding_peak_pressure_pa"],
                                        liquid_full_more=findings["liquid_full"])
                 r = _assemble_liquefied(c, cols, k, {**v, "peak_pressure_pa": tol["nominal_peak_pressure_pa"]},
-                                        sun=ex)
+                                        sun=ex, fold=False)
                 r.update(peak_pressure_pa=v["peak_pressure_pa"], tolerance=tol)
             for key in ("scenarios", "governing_scenario", "exposure"):
                 r.pop(key, None)
@@ -2862,8 +2867,10 @@ def _liquefied_plain_columns(part: PlainPart) -> dict:
     return cols
 
 
-def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:
-    """One liquefied-gas row's result dict, laid out as screen.screen_states lays out a single-scenario result."""
+def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None,
+                        fold: bool = True) -> dict:
+    """One liquefied-gas row's result dict, laid out as screen.screen_states lays out a single-scenario result
+    (`fold`: see :func:`_layout`)."""
     gas = case.gas
     fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
     atm = case.site.atmospheric_pressure_pa
@@ -2966,4 +2973,4 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
         nominal_margin = 1.0 - (peak - atm) / (case.rated_pressure_pa - atm)
     vap = _opt(cols["vapour_pressure"][k]) if by_pressure else None
     return _layout(case, cols, k, v, sun, (rho_mass, fill_rho_molar, mass, phase, vap), models, peak,
-                   v["governing_model"], governing_reason, nominal_margin, limits)
+                   v["governing_model"], governing_reason, nominal_margin, limits, fold)
