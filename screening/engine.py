@@ -829,11 +829,24 @@ def worst_case(ambient_max: np.ndarray, gas_temperature: np.ndarray,
 
 
 def _lk_density_shared(p: np.ndarray, t: np.ndarray, tc: np.ndarray, pc: np.ndarray, omega: np.ndarray,
-                       shared: bool) -> GeneralizedState:
+                       shared: bool, fills: dict | None = None) -> GeneralizedState:
     """lee_kesler_density of rows; `shared`: each distinct (p, t, tc, pc, omega) solved once and handed to every
     row that has it (the fill of a vessel's scenarios and of most of its tolerance states). Each element is
     solved on its own, whatever the size of its call (physics.eos.generalized), so the rows get the very numbers
-    of the full call."""
+    of the full call. `fills` (with `shared`): {state: its fields} of the states solved by an earlier table of the
+    same screening (a vessel's nominal fill, met again among its tolerance states), read and added to."""
+    if shared and fills is not None and p.size:
+        keys = list(zip(p.tolist(), t.tolist(), tc.tolist(), pc.tolist(), omega.tolist()))
+        todo = [key for key in dict.fromkeys(keys) if key not in fills]
+        if todo:
+            a = np.array(todo, dtype=float)
+            s = lee_kesler_density(a[:, 0], a[:, 1], a[:, 2], a[:, 3], a[:, 4])
+            values = list(zip(*(getattr(s, f).tolist() for f in GENERALIZED_FIELDS)))
+            fills.update(zip(todo, values))
+        got = [fills[key] for key in keys]
+        return GeneralizedState(*(np.array([g[j] for g in got], dtype=bool if f == "valid" else
+                                           object if f == "reason" else float)
+                                  for j, f in enumerate(GENERALIZED_FIELDS)))
     if shared and p.size > 1:
         key = np.stack([p, t, tc, pc, omega], axis=1)
         _u, first, back = np.unique(key, axis=0, return_index=True, return_inverse=True)
@@ -845,13 +858,14 @@ def _lk_density_shared(p: np.ndarray, t: np.ndarray, tc: np.ndarray, pc: np.ndar
 
 
 def _generalized_columns(gas: Mixture, p_fill: np.ndarray, t_fill: np.ndarray, t_peak: np.ndarray,
-                         rho_given: np.ndarray | None = None, shared_fills: bool = False) -> dict:
+                         rho_given: np.ndarray | None = None, shared_fills: bool = False,
+                         fills: dict | None = None) -> dict:
     """The generalized model of rows of one gas as arrays (screen._generalized, screen._quantum_generalized): the
     Lee–Kesler fill and peak states, the pseudocritical constants at both, and for pure hydrogen, helium or neon
     where the Lee–Kesler tables end, the quantum-gas SRK model. A row's fill is its pressure, or where
     ``rho_given`` [mol/m3] is finite (a mass fill), that density; `shared_fills`: rows that repeat a fill (the
-    scenarios and tolerance states of one vessel) solve it once (:func:`_lk_density_shared`). Keys starting
-    with "_" are for the limits."""
+    scenarios and tolerance states of one vessel) solve it once (:func:`_lk_density_shared`, with `fills`).
+    Keys starting with "_" are for the limits."""
     n = t_fill.size
     fr = np.array(gas.fractions)
     comps = gas.components
@@ -874,7 +888,7 @@ def _generalized_columns(gas: Mixture, p_fill: np.ndarray, t_fill: np.ndarray, t
     else:
         tcf, pcf, omf = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_fill))
         tcp, pcp, omp = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_peak))
-    gf = _lk_density_shared(np.where(by_density, 1e5, p_fill), t_fill, tcf, pcf, omf, shared_fills)
+    gf = _lk_density_shared(np.where(by_density, 1e5, p_fill), t_fill, tcf, pcf, omf, shared_fills, fills)
     if by_density.any():
         gd = lee_kesler_pressure(np.where(by_density, rho_given, 1.0), t_fill, tcf, pcf, omf)
         gf = GeneralizedState(*(np.where(by_density, getattr(gd, f), getattr(gf, f)) for f in GENERALIZED_FIELDS))
@@ -916,17 +930,17 @@ _FLOAT_COLUMNS = ("t_peak", "rho_molar", "peak_ref", "rho_ideal", "peak_ideal", 
 
 
 def _reference_fill_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray,
-                            given: np.ndarray | None = None) -> np.ndarray:
+                            given: np.ndarray | None = None, fills: dict | None = None) -> np.ndarray:
     """The reference fill state of permanent-gas rows: the density at the fill (PT flash, checked; where `given`
     [kg/m3] is finite, a fill by mass, that density and the pressure it has at the fill temperature,
     ``p_fill_ref``) and the peak on the same isochore (``rho_molar``, ``peak_ref``). Returns the fill's molar
-    density as the flash gives it (a fill by mass: as given)."""
+    density as the flash gives it (a fill by mass: as given). `fills`: see :func:`_density_once`."""
     n = rows.p_fill.size
     gas, p_fill, t_fill, t_peak = rows.gas, rows.p_fill, rows.t_fill, out["t_peak"]
     by_mass = np.zeros(n, dtype=bool) if given is None else np.isfinite(given)
     rho_molar = np.full(n, np.nan)
     live = np.flatnonzero(~fallback & ~by_mass)
-    rho_molar[live], ok_fill = _density_once(fluid, p_fill[live], t_fill[live])
+    rho_molar[live], ok_fill = _density_once(fluid, p_fill[live], t_fill[live], fills)
     fallback[live[~ok_fill]] = True
     # the single screening takes the fill's mass density and divides by the molar mass again: so here
     rho_ref = (rho_molar * gas.molar_mass) / gas.molar_mass
@@ -1148,13 +1162,15 @@ def _reference_limits(rows: Rows, fluid: ReferenceFluid, pure: bool, out: dict, 
         out["mass_rho"][live[inside]] = r[inside]
 
 
-def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessels: np.ndarray | None = None) -> dict:
+def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessels: np.ndarray | None = None,
+             fills: dict | None = None) -> dict:
     """Every model, the phase boundary and the limits for rows of one pure permanent gas, as arrays
     (`limits` False: the models alone, for the states of tolerance corners, see :func:`_corner_peaks`;
     `shared_fills`: rows repeat fills, each solved once, see :func:`_generalized_columns`, and each distinct
     fill density meets the dome once; `vessels`: each row's vessel, where a vessel has several rows (its
     scenarios), which then share the solve of the one limit that does not depend on the scenario, see
-    :func:`_generalized_limits`).
+    :func:`_generalized_limits`; `fills`: {"reference": {}, "generalized": {}}, the fill states solved by the
+    tables of one screening so far, see :func:`_density_once` and :func:`_lk_density_shared`).
 
     A row filled by mass (rows with ``rho_mass`` [kg/m3], finite for such a row; its ``p_fill`` is NaN) starts from
     that density: its fill pressure on each model is that model's pressure at the fill temperature, and it has no
@@ -1194,7 +1210,8 @@ def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessel
         fallback |= t_fill <= _screen.LIQUID_LIKE_TEMPERATURE_RATIO * tc_ref
 
     # --- reference fill state: density at the fill (PT flash, checked), peak on the same isochore
-    rho_molar = _reference_fill_columns(rows, fluid, out, fallback, given)
+    rho_molar = _reference_fill_columns(rows, fluid, out, fallback, given,
+                                        None if fills is None else fills["reference"])
 
     # --- where the isochore meets the dome (pure fluids; the pseudo-pure air has no phase analysis)
     if pure and limits:
@@ -1207,7 +1224,7 @@ def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessel
     # --- generalized, as arrays
     gen = _generalized_columns(gas, p_fill, t_fill, t_peak,
                                None if not by_mass.any() else np.where(by_mass, out["rho_molar"], np.nan),
-                               shared_fills=shared_fills)
+                               shared_fills=shared_fills, fills=None if fills is None else fills["generalized"])
     out.update({k: v for k, v in gen.items() if not k.startswith("_")})
     lk_ok, q_srk = gen["lk_ok"], gen["q_srk"]
     # the vectorised limits assume constant critical constants (not the quantum correction)
@@ -1419,11 +1436,24 @@ def _layout(case: Case, cols: dict, k: int, v: dict, sun: SunRow | None, fill: t
 
 # ----------------------------------------------------------------------------- tolerances and scenarios as rows
 
-def _density_once(fluid: ReferenceFluid, p: np.ndarray, t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def _density_once(fluid: ReferenceFluid, p: np.ndarray, t: np.ndarray,
+                  fills: dict | None = None) -> tuple[np.ndarray, np.ndarray]:
     """fluid.density at each row's (p, t) [mol/m3] and whether it applies, each distinct state solved once (the
-    states of tolerance corners repeat across scenarios, and an inventory repeats its fills)."""
+    states of tolerance corners repeat across scenarios, and an inventory repeats its fills). `fills`: {(p, t):
+    (density, applies)} of the states solved by an earlier table of the same screening (a vessel's nominal fill,
+    met again among its tolerance states), read and added to: each state is solved on its own, so a state's
+    density is the same number whichever table solved it."""
     if p.size == 0:
         return np.empty(0), np.zeros(0, dtype=bool)
+    if fills is not None:
+        keys = list(zip(p.tolist(), t.tolist()))
+        todo = [key for key in dict.fromkeys(keys) if key not in fills]
+        if todo:
+            a = np.array(todo, dtype=float)
+            values, valid, _ = _loop(fluid.density, a[:, 0], a[:, 1])
+            fills.update(zip(todo, zip(values.tolist(), valid.tolist())))
+        got = [fills[key] for key in keys]
+        return np.array([g[0] for g in got], dtype=float), np.array([g[1] for g in got], dtype=bool)
     if p.size == 1:             # nothing to share (np.unique's cost is then most of the row's)
         values, valid, _ = _loop(fluid.density, p, t)
         return values, valid
@@ -1477,13 +1507,14 @@ def _state_rows(gas: Mixture, states: list[tuple[float, float, float]]) -> Rows:
     return Rows(gas, a[:, 0], a[:, 1], nan, a[:, 2], 2.0 * a[:, 0], one, 0.0 * one)
 
 
-def _corner_peaks(gas: Mixture, states: list[tuple[float, float, float]]) -> dict:
+def _corner_peaks(gas: Mixture, states: list[tuple[float, float, float]], fills: dict | None = None) -> dict:
     """{state: its corner peaks as screen._corner_peak gives them, or None where the row must go per row}, every
     state a row of one table. On this path (single phase, away from the critical and dense-fluid regions) no
-    state is out of scope or liquid-full: a state where that cannot be shown falls back."""
+    state is out of scope or liquid-full: a state where that cannot be shown falls back. `fills`: see
+    :func:`_columns`."""
     if not states:
         return {}
-    cols = _columns(_state_rows(gas, states), limits=False, shared_fills=True)
+    cols = _columns(_state_rows(gas, states), limits=False, shared_fills=True, fills=fills)
     fallback = cols["fallback"].tolist()
     return {s: None if fallback[k] else _state_peaks(cols, k) for k, s in enumerate(states)}
 
@@ -1498,15 +1529,16 @@ def _state_peaks(cols: dict, k: int) -> dict:
     return peaks
 
 
-def _drive(gas: Mixture, steps: dict, known: dict | None = None, ahead: list | None = None) -> dict:
+def _drive(gas: Mixture, steps: dict, known: dict | None = None, ahead: list | None = None,
+           fills: dict | None = None) -> dict:
     """Run the tolerance generators (screen.tolerance_steps) of many vessels of a permanent gas in lockstep: each
     round's states of every vessel are rows of one table (:func:`_corner_peaks`); `known` gives the peaks of
     states already evaluated (each vessel's nominal state: a row of its nominal table, the same numbers); `ahead`:
     states evaluated in the first round beside the sensitivities' states (each vessel's expected corner,
     screen.expected_corner, which the second round asks for whichever corners it needs: the second round then
-    costs no table of its own where every vessel's expected corner is confirmed). Returns {key: tolerance block
-    or None (per row)}."""
-    return _drive_states(steps, lambda todo: _corner_peaks(gas, todo), known, ahead)
+    costs no table of its own where every vessel's expected corner is confirmed); `fills`: the fill states solved
+    so far (:func:`_columns`). Returns {key: tolerance block or None (per row)}."""
+    return _drive_states(steps, lambda todo: _corner_peaks(gas, todo, fills), known, ahead)
 
 
 def _drive_states(steps: dict, corner_peaks: Callable[[list], dict], known: dict | None = None,
@@ -1560,7 +1592,10 @@ def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Re
         (cases[i].fill_pressure_pa, cases[i].fill_temperature_k, math.nan, exposures[i][j].t_exposure,
          cases[i].rated_pressure_pa, cases[i].site.atmospheric_pressure_pa, cases[i].required_margin)
         for i, j in keys))))
-    cols = _columns(nominal, shared_fills=True, vessels=np.array([i for i, _j in keys], dtype=float))
+    # the fill states each table solves, for the tables after it (a vessel's nominal fill is among the states of
+    # its tolerance analysis)
+    fills: dict = {"reference": {}, "generalized": {}}
+    cols = _columns(nominal, shared_fills=True, vessels=np.array([i for i, _j in keys], dtype=float), fills=fills)
     fallback = cols["fallback"].tolist()
     bad = {i for (i, _j), f in zip(keys, fallback) if f}
     row_of = {key: k for k, key in enumerate(keys)}
@@ -1574,7 +1609,7 @@ def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Re
         # the nominal state (the steps' first): the peaks of this row of the nominal table
         known[(c.fill_pressure_pa, float(c.fill_temperature_k), float(cols["t_peak"][k]))] = _state_peaks(cols, k)
         ahead.append(_screen.expected_corner(c, float(c.fill_temperature_k), float(cols["t_peak"][k])))
-    tolerances = _drive(gas, steps, known, ahead)
+    tolerances = _drive(gas, steps, known, ahead, fills=fills)
     bad |= {i for (i, _j), t in tolerances.items() if t is None}
     for i, rows in exposures.items():
         if i in bad:

@@ -49,15 +49,16 @@ def test_expected_corner_evaluated_ahead_gives_the_same_tolerance_blocks_with_on
     calls = []
     real = engine._corner_peaks
 
-    def counted(gas, states):
+    def counted(gas, states, *more):
         calls.append(len(states))
-        return real(gas, states)
+        return real(gas, states, *more)
 
     monkeypatch.setattr(engine, "_corner_peaks", counted)
     got = [r.to_json() for r in engine._screen_expanded(cases)]
     ahead_calls = [n for n in calls if n]
     real_drive = engine._drive
-    monkeypatch.setattr(engine, "_drive", lambda gas, steps, known=None, ahead=None: real_drive(gas, steps, known))
+    monkeypatch.setattr(engine, "_drive", lambda gas, steps, known=None, ahead=None, **kw: real_drive(gas, steps, known,
+                                                                                              **kw))
     calls.clear()
     full = [r.to_json() for r in engine._screen_expanded(cases)]
     assert got == full
