@@ -43,6 +43,32 @@ def test_shared_lee_kesler_fills_are_the_full_calls_numbers_and_match_coolprop()
         assert rho == pytest.approx(CP.PropsSI("Dmolar", "P", pk, "T", tk, "Nitrogen"), rel=0.01)
 
 
+def test_fill_states_handed_from_table_to_table_are_the_numbers_each_table_solves():
+    # a vessel's fill states solved by one table and read again by the next (the nominal table, then its tolerance
+    # states): the reference density and the Lee–Kesler fill are those of a table that solves them itself
+    rnd = random.Random(12)
+    base = [(rnd.uniform(20e5, 300e5), rnd.uniform(253.0, 313.0)) for _ in range(8)]
+    first = [base[rnd.randrange(4)] for _ in range(10)]          # fills of the first table
+    second = [base[rnd.randrange(8)] for _ in range(30)]         # the next: some met before, some new
+    fluid = reference_fluid(("Nitrogen",), (1.0,))
+    fills_ref, fills_lk = {}, {}
+    for rows in (first, second):
+        p, t = (np.array(v) for v in zip(*rows))
+        tc, pc, om = (np.full(p.size, v) for v in (126.192, 3395800.0, 0.0372))
+        rho, ok = engine._density_once(fluid, p, t, fills_ref)
+        want_rho, want_ok = engine._density_once(fluid, p, t)
+        assert np.array_equal(rho, want_rho) and np.array_equal(ok, want_ok)
+        got = engine._lk_density_shared(p, t, tc, pc, om, True, fills_lk)
+        full = lee_kesler_density(p, t, tc, pc, om)
+        for f in ("pressure", "molar_density", "z", "reduced_temperature", "reduced_pressure", "valid", "reason"):
+            assert np.array_equal(getattr(got, f), getattr(full, f)), f
+            assert getattr(got, f).dtype == getattr(full, f).dtype, f
+    assert len(fills_ref) == len(set(first) | set(second))
+    # nitrogen, Span et al. (2000) equation of state through CoolProp's PropsSI
+    for (pk, tk), r in zip(second[:5], rho[:5]):
+        assert r == pytest.approx(CP.PropsSI("Dmolar", "P", pk, "T", tk, "Nitrogen"), rel=1e-9)
+
+
 def test_expected_corner_evaluated_ahead_gives_the_same_tolerance_blocks_with_one_table_fewer(monkeypatch):
     # the same vessels driven with and without the expected corner evaluated beside the sensitivities
     cases = [_case(), _case(scenarios=2, fill=150.0), _case(scenarios=1, fill=30.0)]
