@@ -353,7 +353,7 @@ class ModelResult(_Part):
         details = tuple(k for k in data if k not in cls._COMMON)
         if "detail_keys" in details:
             raise KeyError("ModelResult: unknown keys ['detail_keys']")
-        values = {k: _tuple(data[k]) for k in data}
+        values = {k: _tuple(v) if isinstance(v, list) else v for k, v in data.items()}   # _tuple of each value
         return cls(**values, detail_keys=details)
 
     @classmethod
