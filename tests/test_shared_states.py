@@ -196,6 +196,35 @@ def test_plot_data_on_whole_grids_are_the_point_by_point_isochores(name):
                                           rel=1e-9)
 
 
+def test_lee_kesler_curves_drawn_in_one_call_are_the_curves_drawn_one_by_one(monkeypatch):
+    # vessels with tolerances whose bounding corner the generalized model governs: its curve and the generalized
+    # model's nominal curve in one call of lee_kesler_pressure, and each in a call of its own
+    cases = [_case(scenarios=s, gas=g, fill=f, rated=1.5 * f) for s, g, f in
+             ((3, "nitrogen", 200.0), (1, "argon", 250.0), (2, "methane", 150.0), (1, "oxygen", 120.0),
+              (2, "nitrogen", 40.0), (1, "hydrogen", 300.0))]
+    joined_calls = []
+    real = _screen._lk_isochores_joined
+
+    def counted(models, grid):
+        got = real(models, grid)
+        joined_calls.append(len(got))
+        return got
+
+    monkeypatch.setattr(_screen, "_lk_isochores_joined", counted)
+    results = [engine.screen_case(c, curves=False) for c in cases]
+    together = [_screen.plot_data(c, r)[0] for c, r in zip(cases, results)]
+    assert sum(1 for n in joined_calls if n == 2) >= 3      # the two curves joined for most of these vessels
+    monkeypatch.setattr(_screen, "_lk_isochores_joined", lambda models, grid: {})
+    one_by_one = [_screen.plot_data(c, r)[0] for c, r in zip(cases, results)]
+    assert together == one_by_one
+    # nitrogen, Span et al. (2000) through CoolProp's PropsSI: the generalized curve within 2 % of the reference
+    # equation's isochore at the fill density of the nominal case (the Lee–Kesler model's accuracy here)
+    c0, r0 = together[0], results[0]
+    rho = r0.models["reference"].fill_molar_density_mol_m3
+    for t, p in list(zip(c0["temperature_k"], c0["generalized"]))[::15]:
+        assert p == pytest.approx(CP.PropsSI("P", "Dmolar", rho, "T", t, "Nitrogen"), rel=0.02)
+
+
 def test_phase_diagram_from_one_computation_per_fluid_is_a_fresh_copy_and_coolprops():
     fluid = reference_fluid(("CarbonDioxide",), (1.0,))
     fs = _screen.FillState(fluid=fluid)
