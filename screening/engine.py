@@ -37,12 +37,14 @@ filled by mass or by pressure, or a pure permanent gas with a dome and fixed cri
 refuses them), the fill density and the phases at fill and at the worst case on the reference equation, the
 dome crossings, the liquid-full rule, the ideal and generalized models where the contents are a gas at both,
 and the limits, each root as screen._root finds it; the verdict through the same rules of screen.py
-(:func:`_liquefied_verdict`).
+(:func:`_liquefied_verdict`). Such rows with several scenarios, and those filled by mass with input tolerances,
+run on the same columns with every scenario and every state of the tolerance analysis a row of a table
+(:func:`_screen_liquefied_scenarios`).
 
 Everything else takes the state-by-state route, :func:`screening.screen.screen_states`, one row at a time, on purpose: dissolved gases
 and mixtures (their phase is checked per row by two routes, see physics.mixtures),
-fills of a permanent gas near its critical temperature, liquefied gases with tolerances or several scenarios, a
-permanent-gas row any of whose scenario or tolerance states falls outside this path, and any row where a
+fills of a permanent gas near its critical temperature, liquefied gases filled by pressure with tolerances (the
+tolerances widen their saturation and critical bands), a permanent-gas row any of whose scenario or tolerance states falls outside this path, and any row where a
 vectorised step is not sure of itself (a root next to the edge of a model's range, a solve that did not
 settle, a state the reference equation refuses). Both routes give the same result: the
 same keys, and numbers that agree to the solve tolerance (about 1e-9 relative; the state-by-state route stops its
