@@ -1516,8 +1516,8 @@ def _corner_peaks(gas: Mixture, states: list[tuple[float, float, float]], fills:
     :func:`_columns`."""
     if not states:
         return {}
-    cols = _columns(_state_rows(gas, states), limits=False, shared_fills=True, fills=fills)
-    fallback = cols["fallback"].tolist()
+    cols = _Listed(_columns(_state_rows(gas, states), limits=False, shared_fills=True, fills=fills))
+    fallback = cols["fallback"]
     return {s: None if fallback[k] else _state_peaks(cols, k) for k, s in enumerate(states)}
 
 
@@ -1597,8 +1597,10 @@ def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Re
     # the fill states each table solves, for the tables after it (a vessel's nominal fill is among the states of
     # its tolerance analysis)
     fills: dict = {"reference": {}, "generalized": {}}
-    cols = _columns(nominal, shared_fills=True, vessels=np.array([i for i, _j in keys], dtype=float), fills=fills)
-    fallback = cols["fallback"].tolist()
+    # the columns read as lists (a row's values as Python numbers, without a numpy scalar per value)
+    cols = _Listed(_columns(nominal, shared_fills=True, vessels=np.array([i for i, _j in keys], dtype=float),
+                            fills=fills))
+    fallback = cols["fallback"]
     bad = {i for (i, _j), f in zip(keys, fallback) if f}
     row_of = {key: k for k, key in enumerate(keys)}
     steps, known, ahead = {}, {}, []
@@ -2026,8 +2028,8 @@ def _screen_liquefied_scenarios(cases: list[Case], balances: dict | None = None)
     if not keys:
         return out
     rows = LiquefiedRows.of_cases([cases[i] for i, _j in keys], [exposures[i][j] for i, j in keys])
-    cols = _liquefied_columns(rows)
-    fallback = cols["fallback"].tolist()
+    cols = _Listed(_liquefied_columns(rows))    # read as lists (see _screen_expanded)
+    fallback = cols["fallback"]
     bad = {i for (i, _j), f in zip(keys, fallback) if f}
     row_of = {key: k for k, key in enumerate(keys)}
     steps, known, ahead, tags = {}, {}, [], {}
@@ -2111,8 +2113,9 @@ def _liquefied_corner_peaks(gas: Mixture, states: list[tuple]) -> dict:
     a = np.array([(s[0], s[2], s[3]) for s in states], dtype=float).reshape(-1, 3)
     nan = np.full(a.shape[0], np.nan)
     rows = LiquefiedRows(gas, nan, a[:, 1], nan, a[:, 2], nan, nan, nan, rho_mass=a[:, 0])
-    cols = _liquefied_columns(rows, mass_limit=False, limits=False)
-    stop = (cols["fallback"] | cols["refused"] | cols["unreachable"]).tolist()
+    arrays = _liquefied_columns(rows, mass_limit=False, limits=False)
+    stop = (arrays["fallback"] | arrays["refused"] | arrays["unreachable"]).tolist()
+    cols = _Listed(arrays)
     return {s: None if stop[k] else _liquefied_state_peaks(cols, k) for k, s in enumerate(states)}
 
 
