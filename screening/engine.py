@@ -37,12 +37,14 @@ filled by mass or by pressure, or a pure permanent gas with a dome and fixed cri
 refuses them), the fill density and the phases at fill and at the worst case on the reference equation, the
 dome crossings, the liquid-full rule, the ideal and generalized models where the contents are a gas at both,
 and the limits, each root as screen._root finds it; the verdict through the same rules of screen.py
-(:func:`_liquefied_verdict`).
+(:func:`_liquefied_verdict`). Such rows with several scenarios, and those filled by mass with input tolerances,
+run on the same columns with every scenario and every state of the tolerance analysis a row of a table
+(:func:`_screen_liquefied_scenarios`).
 
 Everything else takes the state-by-state route, :func:`screening.screen.screen_states`, one row at a time, on purpose: dissolved gases
 and mixtures (their phase is checked per row by two routes, see physics.mixtures),
-fills of a permanent gas near its critical temperature, liquefied gases with tolerances or several scenarios, a
-permanent-gas row any of whose scenario or tolerance states falls outside this path, and any row where a
+fills of a permanent gas near its critical temperature, liquefied gases filled by pressure with tolerances (the
+tolerances widen their saturation and critical bands), a permanent-gas row any of whose scenario or tolerance states falls outside this path, and any row where a
 vectorised step is not sure of itself (a root next to the edge of a model's range, a solve that did not
 settle, a state the reference equation refuses). Both routes give the same result: the
 same keys, and numbers that agree to the solve tolerance (about 1e-9 relative; the state-by-state route stops its
@@ -830,11 +832,24 @@ def worst_case(ambient_max: np.ndarray, gas_temperature: np.ndarray,
 
 
 def _lk_density_shared(p: np.ndarray, t: np.ndarray, tc: np.ndarray, pc: np.ndarray, omega: np.ndarray,
-                       shared: bool) -> GeneralizedState:
+                       shared: bool, fills: dict | None = None) -> GeneralizedState:
     """lee_kesler_density of rows; `shared`: each distinct (p, t, tc, pc, omega) solved once and handed to every
     row that has it (the fill of a vessel's scenarios and of most of its tolerance states). Each element is
     solved on its own, whatever the size of its call (physics.eos.generalized), so the rows get the very numbers
-    of the full call."""
+    of the full call. `fills` (with `shared`): {state: its fields} of the states solved by an earlier table of the
+    same screening (a vessel's nominal fill, met again among its tolerance states), read and added to."""
+    if shared and fills is not None and p.size:
+        keys = list(zip(p.tolist(), t.tolist(), tc.tolist(), pc.tolist(), omega.tolist()))
+        todo = [key for key in dict.fromkeys(keys) if key not in fills]
+        if todo:
+            a = np.array(todo, dtype=float)
+            s = lee_kesler_density(a[:, 0], a[:, 1], a[:, 2], a[:, 3], a[:, 4])
+            values = list(zip(*(getattr(s, f).tolist() for f in GENERALIZED_FIELDS)))
+            fills.update(zip(todo, values))
+        got = [fills[key] for key in keys]
+        return GeneralizedState(*(np.array([g[j] for g in got], dtype=bool if f == "valid" else
+                                           object if f == "reason" else float)
+                                  for j, f in enumerate(GENERALIZED_FIELDS)))
     if shared and p.size > 1:
         key = np.stack([p, t, tc, pc, omega], axis=1)
         _u, first, back = np.unique(key, axis=0, return_index=True, return_inverse=True)
@@ -846,13 +861,14 @@ def _lk_density_shared(p: np.ndarray, t: np.ndarray, tc: np.ndarray, pc: np.ndar
 
 
 def _generalized_columns(gas: Mixture, p_fill: np.ndarray, t_fill: np.ndarray, t_peak: np.ndarray,
-                         rho_given: np.ndarray | None = None, shared_fills: bool = False) -> dict:
+                         rho_given: np.ndarray | None = None, shared_fills: bool = False,
+                         fills: dict | None = None) -> dict:
     """The generalized model of rows of one gas as arrays (screen._generalized, screen._quantum_generalized): the
     Lee–Kesler fill and peak states, the pseudocritical constants at both, and for pure hydrogen, helium or neon
     where the Lee–Kesler tables end, the quantum-gas SRK model. A row's fill is its pressure, or where
     ``rho_given`` [mol/m3] is finite (a mass fill), that density; `shared_fills`: rows that repeat a fill (the
-    scenarios and tolerance states of one vessel) solve it once (:func:`_lk_density_shared`). Keys starting
-    with "_" are for the limits."""
+    scenarios and tolerance states of one vessel) solve it once (:func:`_lk_density_shared`, with `fills`).
+    Keys starting with "_" are for the limits."""
     n = t_fill.size
     fr = np.array(gas.fractions)
     comps = gas.components
@@ -875,7 +891,7 @@ def _generalized_columns(gas: Mixture, p_fill: np.ndarray, t_fill: np.ndarray, t
     else:
         tcf, pcf, omf = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_fill))
         tcp, pcp, omp = (np.array(np.broadcast_to(np.asarray(a, dtype=float), (n,))) for a in consts(t_peak))
-    gf = _lk_density_shared(np.where(by_density, 1e5, p_fill), t_fill, tcf, pcf, omf, shared_fills)
+    gf = _lk_density_shared(np.where(by_density, 1e5, p_fill), t_fill, tcf, pcf, omf, shared_fills, fills)
     if by_density.any():
         gd = lee_kesler_pressure(np.where(by_density, rho_given, 1.0), t_fill, tcf, pcf, omf)
         gf = GeneralizedState(*(np.where(by_density, getattr(gd, f), getattr(gf, f)) for f in GENERALIZED_FIELDS))
@@ -917,17 +933,17 @@ _FLOAT_COLUMNS = ("t_peak", "rho_molar", "peak_ref", "rho_ideal", "peak_ideal", 
 
 
 def _reference_fill_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray,
-                            given: np.ndarray | None = None) -> np.ndarray:
+                            given: np.ndarray | None = None, fills: dict | None = None) -> np.ndarray:
     """The reference fill state of permanent-gas rows: the density at the fill (PT flash, checked; where `given`
     [kg/m3] is finite, a fill by mass, that density and the pressure it has at the fill temperature,
     ``p_fill_ref``) and the peak on the same isochore (``rho_molar``, ``peak_ref``). Returns the fill's molar
-    density as the flash gives it (a fill by mass: as given)."""
+    density as the flash gives it (a fill by mass: as given). `fills`: see :func:`_density_once`."""
     n = rows.p_fill.size
     gas, p_fill, t_fill, t_peak = rows.gas, rows.p_fill, rows.t_fill, out["t_peak"]
     by_mass = np.zeros(n, dtype=bool) if given is None else np.isfinite(given)
     rho_molar = np.full(n, np.nan)
     live = np.flatnonzero(~fallback & ~by_mass)
-    rho_molar[live], ok_fill = _density_once(fluid, p_fill[live], t_fill[live])
+    rho_molar[live], ok_fill = _density_once(fluid, p_fill[live], t_fill[live], fills)
     fallback[live[~ok_fill]] = True
     # the single screening takes the fill's mass density and divides by the molar mass again: so here
     rho_ref = (rho_molar * gas.molar_mass) / gas.molar_mass
@@ -1149,13 +1165,15 @@ def _reference_limits(rows: Rows, fluid: ReferenceFluid, pure: bool, out: dict, 
         out["mass_rho"][live[inside]] = r[inside]
 
 
-def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessels: np.ndarray | None = None) -> dict:
+def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessels: np.ndarray | None = None,
+             fills: dict | None = None) -> dict:
     """Every model, the phase boundary and the limits for rows of one pure permanent gas, as arrays
     (`limits` False: the models alone, for the states of tolerance corners, see :func:`_corner_peaks`;
     `shared_fills`: rows repeat fills, each solved once, see :func:`_generalized_columns`, and each distinct
     fill density meets the dome once; `vessels`: each row's vessel, where a vessel has several rows (its
     scenarios), which then share the solve of the one limit that does not depend on the scenario, see
-    :func:`_generalized_limits`).
+    :func:`_generalized_limits`; `fills`: {"reference": {}, "generalized": {}}, the fill states solved by the
+    tables of one screening so far, see :func:`_density_once` and :func:`_lk_density_shared`).
 
     A row filled by mass (rows with ``rho_mass`` [kg/m3], finite for such a row; its ``p_fill`` is NaN) starts from
     that density: its fill pressure on each model is that model's pressure at the fill temperature, and it has no
@@ -1195,7 +1213,8 @@ def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessel
         fallback |= t_fill <= _screen.LIQUID_LIKE_TEMPERATURE_RATIO * tc_ref
 
     # --- reference fill state: density at the fill (PT flash, checked), peak on the same isochore
-    rho_molar = _reference_fill_columns(rows, fluid, out, fallback, given)
+    rho_molar = _reference_fill_columns(rows, fluid, out, fallback, given,
+                                        None if fills is None else fills["reference"])
 
     # --- where the isochore meets the dome (pure fluids; the pseudo-pure air has no phase analysis)
     if pure and limits:
@@ -1208,7 +1227,7 @@ def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessel
     # --- generalized, as arrays
     gen = _generalized_columns(gas, p_fill, t_fill, t_peak,
                                None if not by_mass.any() else np.where(by_mass, out["rho_molar"], np.nan),
-                               shared_fills=shared_fills)
+                               shared_fills=shared_fills, fills=None if fills is None else fills["generalized"])
     out.update({k: v for k, v in gen.items() if not k.startswith("_")})
     lk_ok, q_srk = gen["lk_ok"], gen["q_srk"]
     # the vectorised limits assume constant critical constants (not the quantum correction)
@@ -1329,10 +1348,12 @@ def _one_scenario(case: Case, result: dict, sun: SunRow | None) -> dict:
     return _screen.fold_scenarios([(name, result, balance)])[1]
 
 
-def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:
-    """One row's result as its JSON layout (:func:`_assemble`; the tolerance and scenario fold works on it)."""
+def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None,
+              fold: bool = True) -> dict:
+    """One row's result as its JSON layout (:func:`_assemble`; the tolerance and scenario fold works on it).
+    `fold` False: one scenario's result of a vessel screened with several (see :func:`_layout`)."""
     if cols.get("kind") == "liquefied":
-        return _assemble_liquefied(case, cols, k, v, sun)
+        return _assemble_liquefied(case, cols, k, v, sun, fold)
     gas = case.gas
     fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
     atm = case.site.atmospheric_pressure_pa
@@ -1381,7 +1402,7 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
                      dp_dt_after_liquid_full_pa_k=_opt(cols["dpdt_liquid_full"][k]))
     mass = (rho_mass if by_pressure else case.fill_mass_kg / case.water_capacity_m3) * case.water_capacity_m3
     return _layout(case, cols, k, v, sun, (rho_mass, rho_molar, mass, phase, None), models, peak, gov_name,
-                   governing_reason, 1.0 - (peak - atm) / (case.rated_pressure_pa - atm), limits)
+                   governing_reason, 1.0 - (peak - atm) / (case.rated_pressure_pa - atm), limits, fold)
 
 
 #: The JSON objects of a result and of its parts laid out from their fields by name (result.json_record: the
@@ -1393,11 +1414,13 @@ _LINE = json_record(Result, ("row", "curves", "cautions"))
 
 def _layout(case: Case, cols: dict, k: int, v: dict, sun: SunRow | None, fill: tuple, models: dict,
             peak: float | None, governing_model: str | None, governing_reason: str, nominal_margin: float | None,
-            limits: dict) -> dict:
+            limits: dict, fold: bool = True) -> dict:
     """Row k's one-scenario result laid out as screen.screen_states lays it out (both column kinds), as the JSON
     object ``Result.to_json`` writes (the same keys in the same order, JSON values; tests/test_batch_json.py):
     `fill` is (density [kg/m3], molar density [mol/m3], mass [kg], phase, vapour pressure at fill [Pa]), each
-    None where not established."""
+    None where not established. `fold` False: the result as it is, its "scenarios", "governing_scenario" and
+    "exposure" None (one scenario of several, which the caller folds with the others by screen.fold_scenarios),
+    instead of folded as the vessel's only scenario (:func:`_one_scenario`)."""
     rho_mass, rho_molar, mass, phase, vapour_pressure = fill
     if type(case) is CaseRow:   # a line of the batch's JSON: its case's parts laid out by the column reader
         record, parts = _LINE, case.parts
@@ -1423,16 +1446,29 @@ def _layout(case: Case, cols: dict, k: int, v: dict, sun: SunRow | None, fill: t
         nominal_margin_fraction=nominal_margin, limits=limits, phase_diagram=None,
         # folded in by _one_scenario, in their places
         scenarios=None, governing_scenario=None, exposure=None)
-    return _one_scenario(case, result, sun)
+    return _one_scenario(case, result, sun) if fold else result
 
 
 # ----------------------------------------------------------------------------- tolerances and scenarios as rows
 
-def _density_once(fluid: ReferenceFluid, p: np.ndarray, t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def _density_once(fluid: ReferenceFluid, p: np.ndarray, t: np.ndarray,
+                  fills: dict | None = None) -> tuple[np.ndarray, np.ndarray]:
     """fluid.density at each row's (p, t) [mol/m3] and whether it applies, each distinct state solved once (the
-    states of tolerance corners repeat across scenarios, and an inventory repeats its fills)."""
+    states of tolerance corners repeat across scenarios, and an inventory repeats its fills). `fills`: {(p, t):
+    (density, applies)} of the states solved by an earlier table of the same screening (a vessel's nominal fill,
+    met again among its tolerance states), read and added to: each state is solved on its own, so a state's
+    density is the same number whichever table solved it."""
     if p.size == 0:
         return np.empty(0), np.zeros(0, dtype=bool)
+    if fills is not None:
+        keys = list(zip(p.tolist(), t.tolist()))
+        todo = [key for key in dict.fromkeys(keys) if key not in fills]
+        if todo:
+            a = np.array(todo, dtype=float)
+            values, valid, _ = _loop(fluid.density, a[:, 0], a[:, 1])
+            fills.update(zip(todo, zip(values.tolist(), valid.tolist())))
+        got = [fills[key] for key in keys]
+        return np.array([g[0] for g in got], dtype=float), np.array([g[1] for g in got], dtype=bool)
     if p.size == 1:             # nothing to share (np.unique's cost is then most of the row's)
         values, valid, _ = _loop(fluid.density, p, t)
         return values, valid
@@ -1486,14 +1522,15 @@ def _state_rows(gas: Mixture, states: list[tuple[float, float, float]]) -> Rows:
     return Rows(gas, a[:, 0], a[:, 1], nan, a[:, 2], 2.0 * a[:, 0], one, 0.0 * one)
 
 
-def _corner_peaks(gas: Mixture, states: list[tuple[float, float, float]]) -> dict:
+def _corner_peaks(gas: Mixture, states: list[tuple[float, float, float]], fills: dict | None = None) -> dict:
     """{state: its corner peaks as screen._corner_peak gives them, or None where the row must go per row}, every
     state a row of one table. On this path (single phase, away from the critical and dense-fluid regions) no
-    state is out of scope or liquid-full: a state where that cannot be shown falls back."""
+    state is out of scope or liquid-full: a state where that cannot be shown falls back. `fills`: see
+    :func:`_columns`."""
     if not states:
         return {}
-    cols = _columns(_state_rows(gas, states), limits=False, shared_fills=True)
-    fallback = cols["fallback"].tolist()
+    cols = _Listed(_columns(_state_rows(gas, states), limits=False, shared_fills=True, fills=fills))
+    fallback = cols["fallback"]
     return {s: None if fallback[k] else _state_peaks(cols, k) for k, s in enumerate(states)}
 
 
@@ -1507,16 +1544,30 @@ def _state_peaks(cols: dict, k: int) -> dict:
     return peaks
 
 
-def _drive(gas: Mixture, steps: dict, known: dict | None = None, ahead: list | None = None) -> dict:
-    """Run the tolerance generators (screen.tolerance_steps) of many vessels in lockstep: each round's states
-    of every vessel are rows of one table; `known` gives the peaks of states already evaluated (each vessel's
-    nominal state: a row of its nominal table, the same numbers); `ahead`: states evaluated in the first round
-    beside the sensitivities' states (each vessel's expected corner, screen.expected_corner, which the second
-    round asks for whichever corners it needs: the second round then costs no table of its own where every
-    vessel's expected corner is confirmed). Returns {key: tolerance block or None (per row)}."""
+def _drive(gas: Mixture, steps: dict, known: dict | None = None, ahead: list | None = None,
+           fills: dict | None = None) -> dict:
+    """Run the tolerance generators (screen.tolerance_steps) of many vessels of a permanent gas in lockstep: each
+    round's states of every vessel are rows of one table (:func:`_corner_peaks`); `known` gives the peaks of
+    states already evaluated (each vessel's nominal state: a row of its nominal table, the same numbers); `ahead`:
+    states evaluated in the first round beside the sensitivities' states (each vessel's expected corner,
+    screen.expected_corner, which the second round asks for whichever corners it needs: the second round then
+    costs no table of its own where every vessel's expected corner is confirmed); `fills`: the fill states solved
+    so far (:func:`_columns`). Returns {key: tolerance block or None (per row)}."""
+    return _drive_states(steps, lambda todo: _corner_peaks(gas, todo, fills), known, ahead)
+
+
+def _drive_states(steps: dict, corner_peaks: Callable[[list], dict], known: dict | None = None,
+                  ahead: list | None = None, tags: dict | None = None) -> dict:
+    """:func:`_drive` with the table of a round's states given (`corner_peaks`: {state: its corner peaks or None}
+    of a list of states). `tags`: {key: a value put in front of each of that vessel's states}, where the states
+    the generator yields do not fix the state alone (a fill by mass: the fill density); `known` and `ahead` are
+    then tagged states."""
     done: dict = {}
     peaks = dict(known or {})
-    asked = {key: next(gen) for key, gen in steps.items()}
+    if tags is None:
+        asked = {key: next(gen) for key, gen in steps.items()}
+    else:
+        asked = {key: [(tags[key], *s) for s in next(gen)] for key, gen in steps.items()}
     first = True
     while asked:
         todo = [s for s in dict.fromkeys(s for states in asked.values() for s in states) if s not in peaks]
@@ -1524,7 +1575,7 @@ def _drive(gas: Mixture, steps: dict, known: dict | None = None, ahead: list | N
             asked_now = set(todo)
             todo += [s for s in dict.fromkeys(ahead) if s not in peaks and s not in asked_now]
         first = False
-        peaks.update(_corner_peaks(gas, todo))
+        peaks.update(corner_peaks(todo))
         nxt = {}
         for key, states in asked.items():
             got = [peaks[s] for s in states]
@@ -1532,9 +1583,11 @@ def _drive(gas: Mixture, steps: dict, known: dict | None = None, ahead: list | N
                 done[key] = None
                 continue
             try:
-                nxt[key] = steps[key].send(got)
+                states = steps[key].send(got)
             except StopIteration as stop:
                 done[key] = stop.value
+                continue
+            nxt[key] = states if tags is None else [(tags[key], *s) for s in states]
         asked = nxt
     return done
 
@@ -1554,8 +1607,13 @@ def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Re
         (cases[i].fill_pressure_pa, cases[i].fill_temperature_k, math.nan, exposures[i][j].t_exposure,
          cases[i].rated_pressure_pa, cases[i].site.atmospheric_pressure_pa, cases[i].required_margin)
         for i, j in keys))))
-    cols = _columns(nominal, shared_fills=True, vessels=np.array([i for i, _j in keys], dtype=float))
-    fallback = cols["fallback"].tolist()
+    # the fill states each table solves, for the tables after it (a vessel's nominal fill is among the states of
+    # its tolerance analysis)
+    fills: dict = {"reference": {}, "generalized": {}}
+    # the columns read as lists (a row's values as Python numbers, without a numpy scalar per value)
+    cols = _Listed(_columns(nominal, shared_fills=True, vessels=np.array([i for i, _j in keys], dtype=float),
+                            fills=fills))
+    fallback = cols["fallback"]
     bad = {i for (i, _j), f in zip(keys, fallback) if f}
     row_of = {key: k for k, key in enumerate(keys)}
     steps, known, ahead = {}, {}, []
@@ -1568,7 +1626,7 @@ def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Re
         # the nominal state (the steps' first): the peaks of this row of the nominal table
         known[(c.fill_pressure_pa, float(c.fill_temperature_k), float(cols["t_peak"][k]))] = _state_peaks(cols, k)
         ahead.append(_screen.expected_corner(c, float(c.fill_temperature_k), float(cols["t_peak"][k])))
-    tolerances = _drive(gas, steps, known, ahead)
+    tolerances = _drive(gas, steps, known, ahead, fills=fills)
     bad |= {i for (i, _j), t in tolerances.items() if t is None}
     for i, rows in exposures.items():
         if i in bad:
@@ -1581,7 +1639,7 @@ def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Re
                     c.site.atmospheric_pressure_pa, c.required_margin, c.max_filling_ratio_kg_m3, sc.name)
             tol = tolerances.get((i, j))
             if tol is None:
-                r = _row_dict(c, cols, k, _verdict(*args), sun=ex)
+                r = _row_dict(c, cols, k, _verdict(*args), sun=ex, fold=False)
             else:
                 findings = tol.pop("_findings")
                 if tol["bounding_peak_pressure_pa"] is None or findings["out_of_scope"] or findings["liquid_full"]:
@@ -1589,7 +1647,8 @@ def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Re
                 # decided once, on the bounding peak; the row's nominal figures from the nominal peak (the
                 # tolerance block's, the governing peak of this very row: the same number)
                 v = _verdict(*args, bounding=tol["bounding_peak_pressure_pa"])
-                r = _row_dict(c, cols, k, {**v, "peak_pressure_pa": tol["nominal_peak_pressure_pa"]}, sun=ex)
+                r = _row_dict(c, cols, k, {**v, "peak_pressure_pa": tol["nominal_peak_pressure_pa"]}, sun=ex,
+                              fold=False)
                 r.update(peak_pressure_pa=v["peak_pressure_pa"], tolerance=tol)
             for key in ("scenarios", "governing_scenario", "exposure"):
                 r.pop(key, None)
@@ -1967,48 +2026,123 @@ def liquefied_vectorisable(case: Case) -> bool:
 
 def liquefied_expandable(case: Case) -> bool:
     """Whether a row the liquefied-gas columns take (:func:`liquefied_vectorisable`, but with several exposure
-    scenarios, each in the sun or not, and no tolerances) runs on them with each scenario a row of the table
-    (:func:`_screen_liquefied_scenarios`)."""
+    scenarios, each in the sun or not, or with input tolerances on a fill by mass) runs on them with each scenario
+    and each state of its tolerance analysis a row of a table (:func:`_screen_liquefied_scenarios`). A fill by
+    pressure with tolerances stays per row: its saturation and critical bands are widened by them."""
     scenarios = getattr(case, "scenarios", ())
-    if len(scenarios) <= 1 or getattr(case, "tolerance", None) is not None or case.fill_temperature_k is None:
+    tolerance = getattr(case, "tolerance", None)
+    if not scenarios or (len(scenarios) <= 1 and tolerance is None) or case.fill_temperature_k is None:
         return False
     if (case.fill_pressure_pa is None) == (case.fill_mass_kg is None):
+        return False
+    if tolerance is not None and case.fill_pressure_pa is not None:
         return False
     return (_on_liquefied_columns(case.gas, case.fill_mass_kg is not None)
             and all(getattr(s, "solar", "none") in ("none", "sun") for s in scenarios))
 
 
 def _screen_liquefied_scenarios(cases: list[Case], balances: dict | None = None) -> list[Result | None]:
-    """Rows of one gas on the liquefied-gas columns with several scenarios: every scenario a row of one table
-    (its worst case as screen._worst_case_temperature finds it, :func:`_exposure_row`), each scenario's result
-    laid out as for a row of one scenario, then folded into one result per vessel by screen.fold_scenarios, as
-    screen.screen_states folds them. None where a row must go per row (one of its scenarios fell back, or its
-    worst case raises)."""
+    """Rows of one gas on the liquefied-gas columns with several scenarios or with input tolerances on a fill by
+    mass: every scenario a row of one table (its worst case as screen._worst_case_temperature finds it,
+    :func:`_exposure_row`), each scenario's result laid out as for a row of one scenario, its tolerance block from
+    screen.tolerance_steps driven for every vessel at once (each round's states rows of one table,
+    :func:`_liquefied_corner_peaks`), then folded into one result per vessel by screen.fold_scenarios, as
+    screen.screen_states folds them. None where a row must go per row (one of its scenarios or tolerance states
+    fell back or is out of scope, or its worst case raises)."""
     out: list[Result | None] = [None] * len(cases)
     exposures, keys = _scenario_rows(cases, balances)
     if not keys:
         return out
-    cols = _liquefied_columns(LiquefiedRows.of_cases([cases[i] for i, _j in keys],
-                                                     [exposures[i][j] for i, j in keys]))
-    fallback = cols["fallback"].tolist()
+    rows = LiquefiedRows.of_cases([cases[i] for i, _j in keys], [exposures[i][j] for i, j in keys])
+    cols = _Listed(_liquefied_columns(rows))    # read as lists (see _screen_expanded)
+    fallback = cols["fallback"]
     bad = {i for (i, _j), f in zip(keys, fallback) if f}
     row_of = {key: k for k, key in enumerate(keys)}
-    for i, rows in exposures.items():
+    steps, known, ahead, tags = {}, {}, [], {}
+    for k, (i, j) in enumerate(keys):
+        c = cases[i]
+        if i in bad or c.tolerance is None:
+            continue
+        if cols["refused"][k] or cols["unreachable"][k]:
+            bad.add(i)          # no model applies at the nominal state: per row
+            continue
+        t_fill, t_peak = float(c.fill_temperature_k), float(cols["t_peak"][k])
+        peaks = _liquefied_state_peaks(cols, k)
+        # the models applicable at the nominal state, in the models' order (screen._screen_at)
+        names = [nm for nm in ("ideal", "generalized", "reference") if peaks[nm] is not None]
+        tags[(i, j)] = tag = float(rows.rho_mass[k])
+        steps[(i, j)] = _screen.tolerance_steps(c, t_fill, t_peak, names)
+        # the nominal state (the steps' first): the peaks of this row of the nominal table
+        known[(tag, c.fill_pressure_pa, t_fill, t_peak)] = peaks
+        ahead.append((tag, *_screen.expected_corner(c, t_fill, t_peak)))
+    tolerances = _drive_states(steps, lambda todo: _liquefied_corner_peaks(cases[0].gas, todo), known, ahead,
+                               tags) if steps else {}
+    bad |= {i for (i, _j), t in tolerances.items() if t is None}
+    for i, ex_rows in exposures.items():
         if i in bad:
             continue
         c = cases[i]
         per = []
-        for j, (sc, ex) in enumerate(zip(c.scenarios, rows)):
+        for j, (sc, ex) in enumerate(zip(c.scenarios, ex_rows)):
             k = row_of[(i, j)]
-            v = _liquefied_verdict(cols, k, c.rated_pressure_pa, c.relief_set_pressure_pa,
-                                   c.site.atmospheric_pressure_pa, c.required_margin, c.max_filling_ratio_kg_m3,
-                                   sc.name)
-            r = _assemble_liquefied(c, cols, k, v, sun=ex)
+            args = (cols, k, c.rated_pressure_pa, c.relief_set_pressure_pa, c.site.atmospheric_pressure_pa,
+                    c.required_margin, c.max_filling_ratio_kg_m3, sc.name)
+            tol = tolerances.get((i, j))
+            if tol is None:
+                r = _assemble_liquefied(c, cols, k, _liquefied_verdict(*args), sun=ex, fold=False)
+            else:
+                findings = tol.pop("_findings")
+                if tol["bounding_peak_pressure_pa"] is None or findings["out_of_scope"]:
+                    break               # not on this path (see _liquefied_corner_peaks): per row
+                # decided once, on the bounding peak and the corners' liquid-full findings; the row's nominal
+                # figures from the nominal peak (the tolerance block's, the governing peak of this very row)
+                v = _liquefied_verdict(*args, bounding=tol["bounding_peak_pressure_pa"],
+                                       liquid_full_more=findings["liquid_full"])
+                r = _assemble_liquefied(c, cols, k, {**v, "peak_pressure_pa": tol["nominal_peak_pressure_pa"]},
+                                        sun=ex, fold=False)
+                r.update(peak_pressure_pa=v["peak_pressure_pa"], tolerance=tol)
             for key in ("scenarios", "governing_scenario", "exposure"):
                 r.pop(key, None)
             per.append((sc.name, r, ex.balance))
-        out[i] = Result.from_json(_screen.fold_scenarios(per)[1])
+        else:
+            out[i] = Result.from_json(_screen.fold_scenarios(per)[1])
     return out
+
+
+def _liquefied_state_peaks(cols: dict, k: int) -> dict:
+    """Row k of liquefied-gas columns as screen._corner_peak gives a state (the row neither fell back nor is
+    refused or out of scope): the peak of each model (None where it does not apply), the governing peak, and the
+    liquid-full rule's finding in the words of a tolerance corner."""
+    gas_ok = bool(cols["gas_ok"][k])
+    peaks = {"ideal": float(cols["peak_ideal"][k]) if gas_ok else None,
+             "generalized": float(cols["lk_peak"][k]) if gas_ok and cols["lk_ok"][k] else None,
+             "reference": float(cols["peak_ref"][k])}
+    peaks["governing"] = _screen.governing_peak(peaks)
+    peaks["_out_of_scope"] = None
+    peaks["_liquid_full"] = None
+    if cols["liquid_full_applies"][k]:
+        fs = _screen.FillState(liquid_full_temperature=_opt(cols["liquid_full"][k]),
+                               dp_dt_after_liquid_full=_opt(cols["dpdt_liquid_full"][k]))
+        peaks["_liquid_full"] = _screen.liquid_full_text(fs, float(cols["t_peak"][k]), corner=True)
+    return peaks
+
+
+def _liquefied_corner_peaks(gas: Mixture, states: list[tuple]) -> dict:
+    """{state: its corner peaks as screen._corner_peak gives them (:func:`_liquefied_state_peaks`), or None where
+    the vessel must go per row}, for states (fill density [kg/m3], None, fill temperature [K], worst-case
+    temperature [K]) of fills by mass, every state a row of one table of the liquefied-gas columns without their
+    limits. The worst case enters as the stated gas temperature, so that the row's screened temperature is
+    screen.screened_temperature of it and the fill temperature, as at a tolerance corner (screen._corner_state).
+    A state refused, out of the reference equation's range or not settled falls back."""
+    if not states:
+        return {}
+    a = np.array([(s[0], s[2], s[3]) for s in states], dtype=float).reshape(-1, 3)
+    nan = np.full(a.shape[0], np.nan)
+    rows = LiquefiedRows(gas, nan, a[:, 1], nan, a[:, 2], nan, nan, nan, rho_mass=a[:, 0])
+    arrays = _liquefied_columns(rows, mass_limit=False, limits=False)
+    stop = (arrays["fallback"] | arrays["refused"] | arrays["unreachable"]).tolist()
+    cols = _Listed(arrays)
+    return {s: None if stop[k] else _liquefied_state_peaks(cols, k) for k, s in enumerate(states)}
 
 
 @dataclass
@@ -2697,10 +2831,11 @@ def _mass_limit_settled(cols: dict, k: int, gas: Mixture) -> bool:
     return unsettled is None or not unsettled[k]
 
 
-def _liquefied_columns(rows: Rows, mass_limit: bool = True) -> dict:
+def _liquefied_columns(rows: Rows, mass_limit: bool = True, limits: bool = True) -> dict:
     """Fill state, phases, the reference model, the liquid-full rule and the limits of rows of one pure liquefied
     gas, as arrays (the liquefied-gas counterpart of :func:`_columns`). Rows where the contents are a gas at fill
-    and at the worst case (the gas models apply), and rows a step is not sure of, are marked ``fallback``."""
+    and at the worst case (the gas models apply), and rows a step is not sure of, are marked ``fallback``.
+    `limits` False: the models alone, for the states of tolerance corners (:func:`_liquefied_corner_peaks`)."""
     n = rows.t_fill.size
     t_peak, stated, fill_governs, t_exposure = worst_case(rows.ambient_max, rows.gas_temperature, rows.t_fill)
     fallback = np.zeros(n, dtype=bool)
@@ -2717,7 +2852,8 @@ def _liquefied_columns(rows: Rows, mass_limit: bool = True) -> dict:
     _dome_columns(fluid, rho, out, fallback)
     _crossing_columns(fluid, out, fallback)
     _liquid_full_columns(rows, fluid, out, fallback)
-    _liquefied_limits(rows, fluid, out, fallback, mass_limit)
+    if limits:
+        _liquefied_limits(rows, fluid, out, fallback, mass_limit)
     return out
 
 
@@ -2728,9 +2864,12 @@ def _unreachable_reason(reason: str) -> str:
 
 
 def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, atm: float, required_margin: float,
-                       max_ratio: float | None, name: str | None) -> dict:
+                       max_ratio: float | None, name: str | None, bounding: float | None = None,
+                       liquid_full_more: Iterable[str] = ()) -> dict:
     """One liquefied-gas row's verdict, reasons, margins, governing model and warnings (through screen.decide and
-    the rules of screen.py), as :func:`_verdict` gives them for a permanent gas."""
+    the rules of screen.py), as :func:`_verdict` gives them for a permanent gas. `bounding`: the bounding peak
+    under the input tolerances [Pa], decided on where it is higher, and `liquid_full_more`: the liquid-full
+    findings at their corners, each added once after the row's own (as screen._screen_at)."""
     warnings = _exposure_warnings(cols, k, name)
     band = cols["band"][k]
     if band is not None:
@@ -2755,6 +2894,8 @@ def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, a
     # the governing model: the highest real-gas peak (screen._governing); the ideal gas governs nothing
     real = [(nm, p) for nm, p in (("generalized", peak_gen), ("reference", peak_ref)) if p is not None]
     gov_name, peak = max(real, key=lambda x: x[1])
+    if bounding is not None:
+        peak = max(peak, bounding)
     disagree = _screen.models_disagree(peak_gen, peak_ref)
     if disagree:
         warnings.append(disagree)
@@ -2763,6 +2904,10 @@ def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, a
         fs = _screen.FillState(liquid_full_temperature=_opt(cols["liquid_full"][k]),
                                dp_dt_after_liquid_full=_opt(cols["dpdt_liquid_full"][k]))
         liquid_full = _screen.liquid_full_text(fs, float(cols["t_peak"][k]))
+    if liquid_full_more:
+        found = [liquid_full] if liquid_full is not None else []
+        found += [r for r in liquid_full_more if r not in found]
+        liquid_full = " ".join(found) or None
     ratio_reason = _screen.filling_ratio_reason(float(cols["rho_fill_mass"][k]), max_ratio)
     verdict, reasons, margin, relief_margin = _screen.decide(
         peak=peak, rated=rated, relief=relief, atm=atm, required_margin=required_margin, any_real_model=True,
@@ -2797,8 +2942,10 @@ def _line_not_applicable(why: str, equation: str) -> tuple[dict, dict]:
             _screen.not_applicable("generalized", why).as_dict())
 
 
-def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None) -> dict:
-    """One liquefied-gas row's result dict, laid out as screen.screen_states lays out a single-scenario result."""
+def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None,
+                        fold: bool = True) -> dict:
+    """One liquefied-gas row's result dict, laid out as screen.screen_states lays out a single-scenario result
+    (`fold`: see :func:`_layout`)."""
     gas = case.gas
     fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
     atm = case.site.atmospheric_pressure_pa
@@ -2904,4 +3051,4 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
         nominal_margin = 1.0 - (peak - atm) / (case.rated_pressure_pa - atm)
     vap = _opt(cols["vapour_pressure"][k]) if by_pressure else None
     return _layout(case, cols, k, v, sun, (rho_mass, fill_rho_molar, mass, phase, vap), models, peak,
-                   v["governing_model"], governing_reason, nominal_margin, limits)
+                   v["governing_model"], governing_reason, nominal_margin, limits, fold)

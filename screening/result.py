@@ -77,6 +77,12 @@ class _Part:
     @classmethod
     def from_json(cls, data: dict):
         """The part from its JSON object (a key it does not know is an error: the layout is fixed)."""
+        return _decoder(cls)(data)
+
+    @classmethod
+    def _from_json_read(cls, data: dict):
+        """:meth:`from_json` field by field through each field's reader (what the compiled decoder,
+        :func:`_decoder`, does in one call; its errors where the keys are not the layout's)."""
         names, known, required, readers = _layout(cls)
         if not known.issuperset(data):
             raise KeyError(f"{cls.__name__}: unknown keys {sorted(set(data) - known)}")
@@ -159,6 +165,47 @@ def _codec(cls: type) -> tuple:
               "    return {" + ", ".join(read) + "}\n")
     exec(compile(source, f"<{cls.__name__} JSON codec>", "exec"), scope)   # noqa: S102  (source built above)
     return scope["to_json"], scope["json_layout"]
+
+
+@functools.cache
+def _decoder(cls: type) -> Callable[[dict], Any]:
+    """A part class's from_json, compiled once from its fields and `_READ`: one call of the class with each
+    field read by the expression its reader needs (the same values as :meth:`_Part._from_json_read` gives,
+    without looking up each field's reader per value); where the keys are not the layout's, that method
+    raises its error."""
+    names, known, required, _readers = _layout(cls)
+    scope: dict = {"cls": cls, "known": known, "required": required, "_tuple": _tuple, "Verdict": Verdict,
+                   "_read": cls._from_json_read}
+    args = []
+    for f in dataclasses.fields(cls):
+        how = cls._READ.get(f.name)
+        got = f"data[{f.name!r}]"
+        if how is None:
+            expr = got
+        elif how is tuple:
+            expr = f"_tuple({got})"
+        elif how is Verdict:
+            expr = f"(None if (v := {got}) is None else Verdict(v))"
+        else:
+            part = how[0] if isinstance(how, tuple) else next(iter(how)) if isinstance(how, set) else how
+            scope[f"_part_{f.name}"] = part
+            if isinstance(how, tuple):
+                expr = f"(None if (v := {got}) is None else tuple(_part_{f.name}.from_json(x) for x in v))"
+            elif isinstance(how, set):
+                expr = f"(None if (v := {got}) is None else {{k: _part_{f.name}.from_json(x) for k, x in v.items()}})"
+            else:
+                expr = f"(None if (v := {got}) is None else _part_{f.name}.from_json(v))"
+        if f.default is not dataclasses.MISSING:      # an absent key: the field's default, as it is
+            scope[f"_default_{f.name}"] = f.default
+            expr = f"({expr} if {f.name!r} in data else _default_{f.name})"
+        args.append(f"{f.name}={expr}")
+    check = "data.keys() == known" if known == required else "known.issuperset(data) and required.issubset(data)"
+    source = ("def from_json(data):\n"
+              f"    if not ({check}):\n"
+              "        return _read(data)\n"
+              "    return cls(" + ", ".join(args) + ")\n")
+    exec(compile(source, f"<{cls.__name__} JSON decoder>", "exec"), scope)   # noqa: S102  (source built above)
+    return scope["from_json"]
 
 
 @functools.cache
@@ -306,7 +353,7 @@ class ModelResult(_Part):
         details = tuple(k for k in data if k not in cls._COMMON)
         if "detail_keys" in details:
             raise KeyError("ModelResult: unknown keys ['detail_keys']")
-        values = {k: _tuple(data[k]) for k in data}
+        values = {k: _tuple(v) if isinstance(v, list) else v for k, v in data.items()}   # _tuple of each value
         return cls(**values, detail_keys=details)
 
     @classmethod

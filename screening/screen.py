@@ -19,6 +19,9 @@ from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
 from screening.errors import InputError, NotApplicable
 from screening.inputs.case import Case, Exposure
 from screening.physics.eos.generalized import (
+    _SCALAR_MAX as _LK_SCALAR_MAX,
+)
+from screening.physics.eos.generalized import (
     lee_kesler_density,
     lee_kesler_density_valid,
     lee_kesler_pressure,
@@ -295,7 +298,30 @@ def _lk_isochore_array(arrays: dict, rho: float) -> Callable[[np.ndarray], np.nd
         ts = np.asarray(ts, dtype=float)
         state = lee_kesler_pressure(np.full_like(ts, rho), ts, *_constants_at(arrays, ts))
         return np.where(state.valid, state.pressure, np.nan)
+    isochore_array.lee_kesler = (arrays, rho)       # type: ignore[attr-defined]  (see _lk_isochores_joined)
     return isochore_array
+
+
+def _lk_isochores_joined(models: list[Model], grid: np.ndarray) -> dict[int, list[float | None]]:
+    """{index in `models`: its isochore_values(grid)} for the models whose isochore is a Lee–Kesler isochore of
+    one gas with constant (pseudo)critical constants (:func:`_lk_isochore_array`), where two or more are, each
+    on a grid longer than the Lee–Kesler functions' element-by-element threshold: their grids in one call of
+    lee_kesler_pressure instead of one call each (on such arrays every element is solved on its own, so each
+    value is the one a call of its own gives, bit for bit; tests/test_shared_states.py)."""
+    if grid.size <= _LK_SCALAR_MAX:
+        return {}
+    joined = [(k, m.isochore_array.lee_kesler) for k, m in enumerate(models)
+              if m.isochore_array is not None and getattr(m.isochore_array, "lee_kesler", None) is not None
+              and m.isochore_array.lee_kesler[0]["fixed"] is not None]
+    if len(joined) < 2 or len({a["fixed"] for _k, (a, _r) in joined}) != 1:
+        return {}
+    n = grid.size
+    ts = np.tile(np.asarray(grid, dtype=float), len(joined))
+    rho = np.repeat(np.array([r for _k, (_a, r) in joined], dtype=float), n)
+    state = lee_kesler_pressure(rho, ts, *_constants_at(joined[0][1][0], ts))
+    values = np.where(state.valid, state.pressure, np.nan)
+    return {k: [float(v) if math.isfinite(v) else None for v in values[j * n:(j + 1) * n]]
+            for j, (k, _lk) in enumerate(joined)}
 
 
 def _srk_isochore_array(k: tuple, rho: float) -> Callable[[np.ndarray], np.ndarray]:
@@ -992,13 +1018,17 @@ def _curves(models: list[Model], t_fill: float, t_peak: float, limits: dict,
     slow = any(m.name == "reference" and m.applicable and m.extra.get("fluid", "").count("&") for m in models)
     grid = curve_temperatures(t_fill, t_peak, limits, 25 if slow else 61)
     out: dict = {"temperature_k": [float(t) for t in grid]}
-    for m in models:
-        if not m.applicable or m.isochore is None:
-            out[m.name] = None
-            continue
-        out[m.name] = m.isochore_values(grid)
+    # (key, model) of every curve drawn, in order
+    drawn = [(m.name, m) for m in models if m.applicable and m.isochore is not None]
     if bounding is not None and bounding.isochore is not None:
-        out["bounding"] = bounding.isochore_values(grid)
+        drawn.append(("bounding", bounding))
+    # the Lee–Kesler isochores (the generalized model's and the bounding corner's, where it governs there) in one call
+    joined = _lk_isochores_joined([m for _key, m in drawn], grid)
+    curves = {key: joined[k] if k in joined else m.isochore_values(grid) for k, (key, m) in enumerate(drawn)}
+    for m in models:
+        out[m.name] = curves[m.name] if m.applicable and m.isochore is not None else None
+    if "bounding" in curves:
+        out["bounding"] = curves["bounding"]
         out["bounding_model"] = bounding.name
     return out
 

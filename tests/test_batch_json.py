@@ -26,6 +26,7 @@ import pytest
 
 from screening import batch
 from screening.engine import screen_case, with_plot_data
+from screening.errors import InputError
 from screening.inputs.case import load_case
 from screening.inputs.columns import read_plain
 from screening.inputs.inventory import Inventory, read_inventory
@@ -233,6 +234,19 @@ def test_the_compiled_codec_writes_and_reads_every_part_of_a_full_result(name):
     strict(replace(r, row=7).to_json(), {**out, "row": 7})
 
 
+@pytest.mark.parametrize("name", sorted(p.name for p in (ROOT / "cases").glob("*.toml")))
+def test_the_compiled_decoder_reads_what_the_field_by_field_reader_reads(name):
+    case = load_case(ROOT / "cases" / name)
+    try:
+        r = screen_case(case)
+    except InputError:
+        return
+    out = r.to_json()
+    read = Result._from_json_read(out)
+    assert Result.from_json(out) == read == r
+    strict(Result.from_json(out).to_json(), read.to_json())
+
+
 def test_json_layout_refuses_what_from_json_refuses():
     r = screen_case(load_case(ROOT / "cases" / "kq-n2-014.toml"))
     data = r.to_json()
@@ -242,6 +256,11 @@ def test_json_layout_refuses_what_from_json_refuses():
             Result.from_json(broken)
         with pytest.raises(KeyError):
             Result.json_layout(broken)
+        with pytest.raises(KeyError) as compiled:
+            Result.from_json(broken)
+        with pytest.raises(KeyError) as by_field:
+            Result._from_json_read(broken)
+        assert str(compiled.value) == str(by_field.value)
 
 
 def test_json_line_parses_to_what_the_standard_library_writes():

@@ -43,21 +43,48 @@ def test_shared_lee_kesler_fills_are_the_full_calls_numbers_and_match_coolprop()
         assert rho == pytest.approx(CP.PropsSI("Dmolar", "P", pk, "T", tk, "Nitrogen"), rel=0.01)
 
 
+def test_fill_states_handed_from_table_to_table_are_the_numbers_each_table_solves():
+    # a vessel's fill states solved by one table and read again by the next (the nominal table, then its tolerance
+    # states): the reference density and the Lee–Kesler fill are those of a table that solves them itself
+    rnd = random.Random(12)
+    base = [(rnd.uniform(20e5, 300e5), rnd.uniform(253.0, 313.0)) for _ in range(8)]
+    first = [base[rnd.randrange(4)] for _ in range(10)]          # fills of the first table
+    second = [base[rnd.randrange(8)] for _ in range(30)]         # the next: some met before, some new
+    fluid = reference_fluid(("Nitrogen",), (1.0,))
+    fills_ref, fills_lk = {}, {}
+    for rows in (first, second):
+        p, t = (np.array(v) for v in zip(*rows))
+        tc, pc, om = (np.full(p.size, v) for v in (126.192, 3395800.0, 0.0372))
+        rho, ok = engine._density_once(fluid, p, t, fills_ref)
+        want_rho, want_ok = engine._density_once(fluid, p, t)
+        assert np.array_equal(rho, want_rho) and np.array_equal(ok, want_ok)
+        got = engine._lk_density_shared(p, t, tc, pc, om, True, fills_lk)
+        full = lee_kesler_density(p, t, tc, pc, om)
+        for f in ("pressure", "molar_density", "z", "reduced_temperature", "reduced_pressure", "valid", "reason"):
+            assert np.array_equal(getattr(got, f), getattr(full, f)), f
+            assert getattr(got, f).dtype == getattr(full, f).dtype, f
+    assert len(fills_ref) == len(set(first) | set(second))
+    # nitrogen, Span et al. (2000) equation of state through CoolProp's PropsSI
+    for (pk, tk), r in zip(second[:5], rho[:5]):
+        assert r == pytest.approx(CP.PropsSI("Dmolar", "P", pk, "T", tk, "Nitrogen"), rel=1e-9)
+
+
 def test_expected_corner_evaluated_ahead_gives_the_same_tolerance_blocks_with_one_table_fewer(monkeypatch):
     # the same vessels driven with and without the expected corner evaluated beside the sensitivities
     cases = [_case(), _case(scenarios=2, fill=150.0), _case(scenarios=1, fill=30.0)]
     calls = []
     real = engine._corner_peaks
 
-    def counted(gas, states):
+    def counted(gas, states, *more):
         calls.append(len(states))
-        return real(gas, states)
+        return real(gas, states, *more)
 
     monkeypatch.setattr(engine, "_corner_peaks", counted)
     got = [r.to_json() for r in engine._screen_expanded(cases)]
     ahead_calls = [n for n in calls if n]
     real_drive = engine._drive
-    monkeypatch.setattr(engine, "_drive", lambda gas, steps, known=None, ahead=None: real_drive(gas, steps, known))
+    monkeypatch.setattr(engine, "_drive", lambda gas, steps, known=None, ahead=None, **kw: real_drive(gas, steps, known,
+                                                                                              **kw))
     calls.clear()
     full = [r.to_json() for r in engine._screen_expanded(cases)]
     assert got == full
@@ -167,6 +194,35 @@ def test_plot_data_on_whole_grids_are_the_point_by_point_isochores(name):
             if p is not None:
                 assert p == pytest.approx(CP.PropsSI("P", "Dmolar", ref.fill_molar_density, "T", t, fluid),
                                           rel=1e-9)
+
+
+def test_lee_kesler_curves_drawn_in_one_call_are_the_curves_drawn_one_by_one(monkeypatch):
+    # vessels with tolerances whose bounding corner the generalized model governs: its curve and the generalized
+    # model's nominal curve in one call of lee_kesler_pressure, and each in a call of its own
+    cases = [_case(scenarios=s, gas=g, fill=f, rated=1.5 * f) for s, g, f in
+             ((3, "nitrogen", 200.0), (1, "argon", 250.0), (2, "methane", 150.0), (1, "oxygen", 120.0),
+              (2, "nitrogen", 40.0), (1, "hydrogen", 300.0))]
+    joined_calls = []
+    real = _screen._lk_isochores_joined
+
+    def counted(models, grid):
+        got = real(models, grid)
+        joined_calls.append(len(got))
+        return got
+
+    monkeypatch.setattr(_screen, "_lk_isochores_joined", counted)
+    results = [engine.screen_case(c, curves=False) for c in cases]
+    together = [_screen.plot_data(c, r)[0] for c, r in zip(cases, results)]
+    assert sum(1 for n in joined_calls if n == 2) >= 3      # the two curves joined for most of these vessels
+    monkeypatch.setattr(_screen, "_lk_isochores_joined", lambda models, grid: {})
+    one_by_one = [_screen.plot_data(c, r)[0] for c, r in zip(cases, results)]
+    assert together == one_by_one
+    # nitrogen, Span et al. (2000) through CoolProp's PropsSI: the generalized curve within 2 % of the reference
+    # equation's isochore at the fill density of the nominal case (the Lee–Kesler model's accuracy here)
+    c0, r0 = together[0], results[0]
+    rho = r0.models["reference"].fill_molar_density_mol_m3
+    for t, p in list(zip(c0["temperature_k"], c0["generalized"]))[::15]:
+        assert p == pytest.approx(CP.PropsSI("P", "Dmolar", rho, "T", t, "Nitrogen"), rel=0.02)
 
 
 def test_phase_diagram_from_one_computation_per_fluid_is_a_fresh_copy_and_coolprops():
