@@ -9,7 +9,10 @@ file), reads it, and for each chunk of the batch (screening.batch.CHUNK_ROWS row
 * a worker's chunk without JSON: ``screen_chunk((chunk, None, {}, {"json": False, "full": None}))``;
 * the same chunk with a JSON line per row (``"json": True``): the difference is the JSON's own cost in a worker;
 * the parent writing those lines into a JSON output, as the batch does (``batch._Outputs.write``, to a
-  temporary file).
+  temporary file);
+* with ``--lines``, the JSON lines alone, as a worker's chunk makes them (``batch._chunk_rows``), on the rows sorted
+  by gas as the batch sorts a window, each repeat on a chunk screened anew and not timed (so the first call's work,
+  the liquefied gases' fill-mass limits, is counted): the JSON's own cost without the noise of the screening's.
 
 It prints each per row, and the JSON's share of the worker's time. The whole-process figure (wall time of
 `screening batch --csv` with and without `--json`) is benchmarks/mix.py's.
@@ -47,6 +50,7 @@ def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("rows", nargs="?", type=int, default=20_000)
     ap.add_argument("--reps", type=int, default=3)
+    ap.add_argument("--lines", action="store_true", help="only the JSON lines of chunks sorted by gas (see above)")
     a = ap.parse_args()
     from screening import batch
     from screening.inputs.inventory import Inventory, read_inventory
@@ -58,6 +62,9 @@ def main() -> None:
         inv_path = tmp_path / "mix.csv"
         mix.write_mix(inv_path, tmp_path / "states.tsv", chosen, a.rows)
         inv = read_inventory(inv_path)
+        if a.lines:
+            lines_only(inv, a.reps)
+            return
         batch.screen_chunk((Inventory(inv.source, inv.columns, inv.rows[:50], inv.delimiter, inv.decimal, inv.sheet),
                             None, {}, {"json": True, "full": None}))      # warm: fluids, codecs
         plain = with_json = writing = 0.0
@@ -87,6 +94,39 @@ def main() -> None:
     print(f"worker, the JSON's own part    {(with_json - plain) * us:7.1f} us/row "
           f"({100 * (with_json / plain - 1):.0f} % of the chunk without JSON)")
     print(f"parent, writing the lines      {writing * us:7.1f} us/row")
+
+
+def lines_only(inv, reps: int) -> None:
+    """The CPU per row of the JSON lines of the inventory's chunks, sorted by gas as the batch sorts a window: per
+    repeat, each chunk screened anew (not timed), then its lines made as ``batch._chunk_rows`` makes them."""
+    import inspect
+    from itertools import chain, repeat
+
+    from screening import batch
+    from screening.inputs.inventory import Inventory
+
+    rows = [inv.rows[i] for i in batch._gas_order(inv)]
+    chunks = [Inventory(inv.source, inv.columns, rows[s:s + batch.CHUNK_ROWS], inv.delimiter, inv.decimal, inv.sheet)
+              for s in range(0, len(rows), batch.CHUNK_ROWS)]
+    # the code before the line layout (its full_json has no `line`) is measured the same way
+    line = ("line",) if "line" in inspect.signature(batch.BatchRun.full_json).parameters else ()
+    least = float("inf")
+    for _ in range(reps):
+        runs = [(c, batch._screened(c, None)) for c in chunks]
+        t0 = time.process_time()
+        for c, (results, _full, full_json) in runs:
+            headers = [x.header for x in c.columns]
+            for i, r in enumerate(results):
+                rec = full_json(i, r["warnings"], *(True for _ in line))
+                if rec is r or rec.get("verdict") == "input-error":
+                    rec = dict(rec)
+                for k in batch._DROP:
+                    rec.pop(k, None)
+                rec["row"] = r["row"]
+                rec["input"] = dict(zip(headers, chain(map(str, c.rows[i][1]), repeat(""))))
+                batch.json_bytes(rec)
+        least = min(least, time.process_time() - t0)
+    print(f"worker, the JSON lines alone    {least * 1e6 / len(rows):7.1f} us/row (chunks sorted by gas)")
 
 
 if __name__ == "__main__":

@@ -18,6 +18,7 @@ row is ``within``; 2 only if the file itself cannot be read; else 1.
 
 from __future__ import annotations
 
+import contextlib
 import heapq
 import itertools
 import json
@@ -150,15 +151,16 @@ class BatchRun:
             return r
         return replace(f, row=r["row"], warnings=_warnings(r["warnings"]))
 
-    def full_json(self, i: int, warnings: list[dict]) -> dict:
+    def full_json(self, i: int, warnings: list[dict], line: bool = False) -> dict:
         """``full(i)`` as JSON (:func:`_json`) with the given warnings, built without the Result where the
-        row ran on the columns (:meth:`screening.engine.PlainScreening.full_json`)."""
+        row ran on the columns (:meth:`screening.engine.PlainScreening.full_json`; with `line`, as a line of the
+        JSON output holds it, to be written at once: maybe without the curves and cautions, sharing parts)."""
         r = self.results[i]
         j = self._plain_at.get(i)
         if i in self._fulls or j is None or r["verdict"] == "input-error":
             f = self.full(i)
             return _json(replace(f, warnings=_warnings(warnings)) if isinstance(f, Result) else f)
-        f = self._plain.full_json(j)
+        f = self._plain.full_json(j, line)
         if f is None:
             return r
         f["warnings"] = [ScreeningWarning.json_layout(w) for w in warnings]
@@ -196,7 +198,7 @@ def _screened(inv: Inventory, defaults: dict | None) -> tuple[list[dict], object
             results.append(error_row(n, err, cid))
             fulls.append(results[-1])
 
-    def full_json(i: int, warnings: list[dict]) -> dict:
+    def full_json(i: int, warnings: list[dict], line: bool = False) -> dict:
         f = fulls[i]
         return _json(replace(f, warnings=_warnings(warnings)) if isinstance(f, Result) else f)
     return results, fulls.__getitem__, full_json
@@ -210,8 +212,54 @@ def screen_chunk(job: tuple) -> list[tuple]:
     holds "json" (a JSON line per row), "full" (None, "not-within" or "all": full results for a PDF) and
     "compact"."""
     if job[3].get("compact"):
-        return _compact(_chunk_rows(job))
+        rows = _compact(_chunk_rows(job))
+        return _spooled(rows, job[3]["spool"]) if job[3].get("spool") else rows
     return list(_chunk_rows(job))
+
+
+class Spooled:
+    """A chunk's compact rows whose JSON lines wait in a file of the batch's spool folder (``path``: the lines one
+    after the other, each row's line replaced by its length): one write and one read instead of a pickled bytes
+    object per row through the worker's pipe, which cost the batch's process more than the lines' writing."""
+
+    def __init__(self, path: str, rows: list[tuple]) -> None:
+        self.path = path
+        self.rows = rows
+
+
+def _spooled(rows: list[tuple], folder: str) -> Spooled | list[tuple]:
+    """`rows` (of :func:`_compact`) as :class:`Spooled` in `folder`; the rows as they are where the file cannot be
+    written (the lines then go through the pipe)."""
+    try:
+        fd, path = tempfile.mkstemp(suffix=".jsonl", dir=folder)
+    except OSError:
+        return rows
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(b"".join([x[5] for x in rows if x[5] is not None]))
+    except OSError:
+        with contextlib.suppress(OSError):
+            os.unlink(path)
+        return rows
+    return Spooled(path, [x if x[5] is None else (*x[:5], len(x[5]), *x[6:]) for x in rows])
+
+
+def _unspooled(got: Spooled | list[tuple]) -> list[tuple]:
+    """A chunk's compact rows with their JSON lines back in place (their file read, then removed)."""
+    if not isinstance(got, Spooled):
+        return got
+    with open(got.path, "rb") as fh:
+        blob = fh.read()
+    os.unlink(got.path)
+    out, a = [], 0
+    for x in got.rows:
+        n = x[5]
+        if n is None:
+            out.append(x)
+        else:
+            out.append((*x[:5], blob[a:a + n], *x[6:]))
+            a += n
+    return out
 
 
 def _chunk_rows(job: tuple) -> Iterator[tuple]:
@@ -235,7 +283,7 @@ def _chunk_rows(job: tuple) -> Iterator[tuple]:
             cells = inv.rows[i][1]
             # the full result's JSON: from the Result where the PDF needs it anyway, else built directly (a new
             # dict either way, but for an input-error record: the row's short result itself)
-            rec = _json(f) if f is not None else full_json(i, r["warnings"])
+            rec = _json(f) if f is not None else full_json(i, r["warnings"], True)
             if rec is r or rec.get("verdict") == "input-error":
                 rec = dict(rec)
             for k in _DROP:
@@ -679,8 +727,6 @@ def _load_fluids(inv: Inventory, defaults: dict | None) -> None:
 
 
 def run(args) -> int:
-    import contextlib
-
     from screening import parallel
 
     reg = open_inventory(args.inventory, sheet=args.sheet, decimal=getattr(args, "decimal", None))
@@ -715,6 +761,11 @@ def run(args) -> int:
             outputs = _Outputs(args, reg, stack)
             if first is not None and len(first[0].rows) >= CHUNK_ROWS and n_workers > 1:
                 pools = [stack.enter_context(p) for p in parallel.homes(n_workers)]
+                if want["json"] and want["compact"]:
+                    # the workers' JSON lines come back through files (Spooled); every job holds this `want`, none
+                    # has been sent yet
+                    want["spool"] = stack.enter_context(tempfile.TemporaryDirectory(
+                        prefix="screening-batch-", ignore_cleanup_errors=True))
             opened: deque = deque()         # (window, order, jobs) of the windows whose jobs went out
 
             def all_jobs():
@@ -724,6 +775,7 @@ def run(args) -> int:
 
             parts: list[list] = []
             for got in parallel.routed(pools, screen_chunk, all_jobs(), ahead=CHUNKS_AHEAD):
+                got = _unspooled(got)
                 parts.append(got)
                 if bar is not None:
                     bar.update(len(got))

@@ -53,6 +53,7 @@ limit solves there). ``curves`` and ``phase_diagram`` are None until :func:`with
 
 from __future__ import annotations
 
+import functools
 import math
 import threading
 from dataclasses import dataclass, replace
@@ -64,7 +65,7 @@ from screening import screen as _screen
 from screening.constants import R
 from screening.errors import InputError, NotApplicable
 from screening.inputs.case import Case, load_case, parse_case_text
-from screening.inputs.columns import PlainRows
+from screening.inputs.columns import CaseRow, PlainRows
 from screening.physics.eos.generalized import (
     GENERALIZED_FIELDS,
     LK_REDUCED_PRESSURE_RANGE,
@@ -1339,7 +1340,12 @@ def _one_scenario(case: Case, result: dict, sun: SunRow | None) -> dict:
     if not hasattr(case, "scenarios"):
         return result
     name = case.scenarios[0].name if case.scenarios else "exposure"
-    return _screen.fold_scenarios([(name, result, sun.balance if sun is not None else None)])[1]
+    balance = sun.balance if sun is not None else None
+    if type(case) is CaseRow:   # a line of the batch's JSON: fold_scenarios of one scenario, in place
+        result["scenarios"] = [_screen.scenario_summary(name, result, balance, True)]
+        result["governing_scenario"], result["exposure"] = name, balance
+        return result
+    return _screen.fold_scenarios([(name, result, balance)])[1]
 
 
 def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None,
@@ -1402,6 +1408,8 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
 #: The JSON objects of a result and of its parts laid out from their fields by name (result.json_record: the
 #: order is result.py's); a row's "row" is the batch's to add.
 _RESULT, _FILL, _LIMITS = json_record(Result, ("row",)), json_record(Fill), json_record(Limits)
+#: A result's JSON object as a batch's JSON line holds it: without the curves and the cautions (a CaseRow's layout).
+_LINE = json_record(Result, ("row", "curves", "cautions"))
 
 
 def _layout(case: Case, cols: dict, k: int, v: dict, sun: SunRow | None, fill: tuple, models: dict,
@@ -1414,8 +1422,13 @@ def _layout(case: Case, cols: dict, k: int, v: dict, sun: SunRow | None, fill: t
     "exposure" None (one scenario of several, which the caller folds with the others by screen.fold_scenarios),
     instead of folded as the vessel's only scenario (:func:`_one_scenario`)."""
     rho_mass, rho_molar, mass, phase, vapour_pressure = fill
-    result = _RESULT(
-        **_screen.case_parts(case),
+    if type(case) is CaseRow:   # a line of the batch's JSON: its case's parts laid out by the column reader
+        record, parts = _LINE, case.parts
+    else:
+        record, parts = _RESULT, _screen.case_parts(case)
+        parts["curves"] = None
+    result = record(
+        **parts,
         verdict=v["verdict"], reasons=list(v["reasons"]), warnings=list(v["warnings"]),
         fill=_FILL(pressure_pa=case.fill_pressure_pa, temperature_k=float(case.fill_temperature_k),
                    temperature_given=True, density_kg_m3=rho_mass, molar_density_mol_m3=rho_molar, mass_kg=mass,
@@ -1430,7 +1443,7 @@ def _layout(case: Case, cols: dict, k: int, v: dict, sun: SunRow | None, fill: t
         rated_pressure_pa=case.rated_pressure_pa, relief_set_pressure_pa=case.relief_set_pressure_pa,
         required_margin_fraction=case.required_margin, required_margin_is_default=case.required_margin_is_default,
         margin_fraction=v["margin_fraction"], relief_margin_fraction=v["relief_margin_fraction"],
-        nominal_margin_fraction=nominal_margin, limits=limits, curves=None, phase_diagram=None,
+        nominal_margin_fraction=nominal_margin, limits=limits, phase_diagram=None,
         # folded in by _one_scenario, in their places
         scenarios=None, governing_scenario=None, exposure=None)
     return _one_scenario(case, result, sun) if fold else result
@@ -1809,6 +1822,7 @@ class PlainScreening:
         self._full: dict[int, dict] = {}
         self._where: dict[int, tuple[dict, int]] = {}
         self._listed: dict[int, _Listed] = {}
+        self._gas_parts: dict[int, dict] = {}    # {id of a gas: its result part} for the lines of the JSON
         groups: dict[tuple[str, bool], list[int]] = {}
         rest: list[int] = []
         by_mass = ~np.isnan(plain.fill_mass_kg)
@@ -1903,11 +1917,15 @@ class PlainScreening:
                 return {"verdict": "input-error", "error": exc}
         return _assemble(self.plain.case(j), cols, k, sun=self._sun.get(j))
 
-    def full_json(self, j: int) -> dict | None:
+    def full_json(self, j: int, line: bool = False) -> dict | None:
         """``full(j).to_json()``, laid out directly without the Result where the row ran on the columns
         (:func:`_row_dict`; tests/test_batch_json.py keeps the two equal, byte for byte); None where the row could
         not be screened (:meth:`full` gives its input-error record). A new dict on each call, sharing none of
-        its parts with another row's (the governing scenario's summary shares the result's limits and reasons)."""
+        its parts with another row's (the governing scenario's summary shares the result's limits and reasons).
+
+        With `line`, for a line of the batch's JSON, to be written at once: where the row ran on the columns,
+        without its curves and cautions, laid out from the row's :class:`~screening.inputs.columns.CaseRow`
+        rather than its Case, and sharing its gas's part and display units with other rows."""
         if j in self._full or not (cols_k := self._where.get(j)):
             r = self.full(j)
             return r.to_json() if isinstance(r, Result) else None
@@ -1923,7 +1941,15 @@ class PlainScreening:
         if not settled:
             r = self.full(j)
             return r.to_json() if isinstance(r, Result) else None
-        return _row_dict(self.plain.case(j), listed, k, listed["verdict"][k], sun=self._sun.get(j))
+        if line and self.plain.entered is not None:
+            gas = self.plain.gases[j]
+            part = self._gas_parts.get(id(gas))
+            if part is None:
+                part = self._gas_parts[id(gas)] = _screen.gas_part(gas)   # the gases live as long as self.plain
+            case = self.plain.case_row(j, part)
+        else:
+            case = self.plain.case(j)
+        return _row_dict(case, listed, k, listed["verdict"][k], sun=self._sun.get(j))
 
 
 class _Listed(dict):
@@ -2907,6 +2933,15 @@ def _liquefied_plain_columns(part: PlainPart) -> dict:
     return cols
 
 
+@functools.lru_cache(maxsize=64)
+def _line_not_applicable(why: str, equation: str) -> tuple[dict, dict]:
+    """The ideal and generalized models' parts where the gas models do not apply (`why`), as
+    :func:`_assemble_liquefied` lays them out, shared by the lines of the batch's JSON that hold them (each line
+    is written at once and never changed)."""
+    return (_screen.not_applicable("ideal", why, equation=equation).as_dict(),
+            _screen.not_applicable("generalized", why).as_dict())
+
+
 def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow | None = None,
                         fold: bool = True) -> dict:
     """One liquefied-gas row's result dict, laid out as screen.screen_states lays out a single-scenario result
@@ -2977,8 +3012,11 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
             governing_reason = _screen.governing_text(v["governing_model"], [
                 nm for nm in v["applicable"] if nm not in (v["governing_model"], "ideal")])
         else:
-            ideal = _screen.not_applicable("ideal", why, equation=equation).as_dict()
-            gen = _screen.not_applicable("generalized", why).as_dict()
+            if type(case) is CaseRow:   # a line of the batch's JSON: the same two parts for every row given this why
+                ideal, gen = _line_not_applicable(why, equation)
+            else:
+                ideal = _screen.not_applicable("ideal", why, equation=equation).as_dict()
+                gen = _screen.not_applicable("generalized", why).as_dict()
             governing_reason = _screen.governing_text("reference", [])
         peak_ref = float(cols["peak_ref"][k])
         models = {

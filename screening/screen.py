@@ -1125,6 +1125,14 @@ def _governing(models: list[Model]) -> Model | None:
     return max(real, key=lambda m: m.peak_pa) if real else None
 
 
+def gas_part(gas) -> dict:
+    """A result's "gas" part: the gas's name, kind, hazards and components (a new dict on each call)."""
+    return {"name": gas.name, "kind": gas.kind, "hazards": list(gas.hazards),
+            "components": [{"name": g.name, "formula": g.formula, "fraction": x,
+                            "molar_mass_kg_mol": g.molar_mass, "coolprop_name": g.coolprop_name}
+                           for g, x in zip(gas.components, gas.fractions)]}
+
+
 def case_parts(case: Case) -> dict:
     """The parts of a result that describe the case as entered: its identity, site, gas, vessel, inputs,
     display units and the cautions (every path's result takes them from here)."""
@@ -1133,10 +1141,7 @@ def case_parts(case: Case) -> dict:
         "tool_version": __version__, "input_sha256": case.input_sha256,
         "site": {"name": case.site.name, "atmospheric_pressure_pa": case.site.atmospheric_pressure_pa,
                  "elevation_m": case.site.elevation_m},
-        "gas": {"name": case.gas.name, "kind": case.gas.kind, "hazards": list(case.gas.hazards),
-                "components": [{"name": g.name, "formula": g.formula, "fraction": x,
-                                "molar_mass_kg_mol": g.molar_mass, "coolprop_name": g.coolprop_name}
-                               for g, x in zip(case.gas.components, case.gas.fractions)]},
+        "gas": gas_part(case.gas),
         "vessel": {"water_capacity_m3": case.water_capacity_m3, "rated_pressure_pa": case.rated_pressure_pa,
                    "rated_pressure_kind": case.rated_pressure_kind,
                    "relief_set_pressure_pa": case.relief_set_pressure_pa,
@@ -1548,7 +1553,8 @@ def screened_temperature(t_exposure, t_fill_given):
 _SUMMARY = json_record(ScenarioSummary)
 
 
-def _scenario_summary(name: str, r: dict, exposure: dict | None, governing: bool) -> dict:
+def scenario_summary(name: str, r: dict, exposure: dict | None, governing: bool) -> dict:
+    """A scenario's summary under a result's "scenarios" (fold_scenarios)."""
     return _SUMMARY(
         name=name, verdict=r["verdict"], reasons=r["reasons"], worst_case_temperature_k=r["worst_case_temperature_k"],
         worst_case_basis=r["worst_case_basis"], peak_pressure_pa=r["peak_pressure_pa"],
@@ -1649,7 +1655,7 @@ def fold_scenarios(per: list[tuple[str, dict, dict | None]]) -> tuple[int, dict]
     ranked = 0 if len(per) == 1 else max(range(len(per)), key=lambda i: _rank(per[i][1]))
     name, result, balance = per[ranked]
     result = dict(result)
-    result["scenarios"] = [_scenario_summary(n, r, b, i == ranked) for i, (n, r, b) in enumerate(per)]
+    result["scenarios"] = [scenario_summary(n, r, b, i == ranked) for i, (n, r, b) in enumerate(per)]
     result["governing_scenario"] = name
     result["exposure"] = balance
     if len(per) > 1:

@@ -129,6 +129,30 @@ def test_defaults_sites_and_units_reach_the_case_as_the_case_reader_reads_them(t
             strict(plain.case(j), plain.read_case(j))
 
 
+def test_a_plain_rows_case_row_is_its_case_as_the_json_line_reads_it(kinds_inventory):
+    from screening.inputs.columns import CaseRow
+    from screening.screen import case_parts, gas_part
+
+    seen = 0
+    for inv, defaults in _inventories(kinds_inventory):
+        plain = read_plain(inv, defaults)
+        for j in range(len(plain)):
+            case = plain.case(j)
+            row = plain.case_row(j, gas_part(case.gas))
+            for name in CaseRow.__slots__:
+                if name == "parts":
+                    parts = case_parts(case)
+                    del parts["cautions"]
+                    strict(row.parts, parts)
+                elif name == "atmospheric_pressure_pa":
+                    strict(row.site.atmospheric_pressure_pa, case.site.atmospheric_pressure_pa)
+                else:
+                    strict(getattr(row, name), getattr(case, name))
+            assert [s.name for s in row.scenarios] == [s.name for s in case.scenarios]
+            seen += 1
+    assert seen > 150
+
+
 def _batch_run(inv, defaults):
     return batch.BatchRun(inv, defaults)
 
@@ -170,7 +194,9 @@ def test_every_json_line_of_a_chunk_is_the_line_of_its_full_result(kinds_invento
         run = _batch_run(inv, defaults)
         headers = [c.header for c in inv.columns]
         for i, (r, line, _) in enumerate(got):
-            strict(json.loads(line), json.loads(json.dumps(_expected_line(run, inv, i, r, headers))))
+            expected = _expected_line(run, inv, i, r, headers)
+            strict(json.loads(line), json.loads(json.dumps(expected)))
+            assert line == json_bytes(expected)
         assert any(w["code"] == "duplicate-id" for w in json.loads(got[-1][1])["warnings"])
         # with the PDF's full results asked for as well, the lines are the same
         both = batch.screen_chunk((inv, defaults, dups, {"json": True, "full": "all"}))
@@ -391,3 +417,21 @@ def test_a_column_rows_json_is_its_results_to_json_whichever_is_asked_first(seed
             assert json_bytes(data) == json_bytes(full.to_json())
         else:
             assert data is None
+
+
+def test_a_chunk_s_lines_come_back_through_its_spool_file_byte_for_byte(kinds_inventory, tmp_path):
+    # the batch's workers write a chunk's JSON lines to a file of the spool folder and send their lengths; the
+    # batch's process puts them back in place and removes the file; where no file can be written, the lines stay
+    # in the rows
+    import os
+
+    inv, defaults = _inventories(kinds_inventory)[1]
+    want = {"json": True, "full": None, "compact": True}
+    plain = batch.screen_chunk((inv, defaults, {}, want))
+    assert all(isinstance(x[5], bytes) for x in plain)
+    spooled = batch.screen_chunk((inv, defaults, {}, dict(want, spool=str(tmp_path))))
+    assert isinstance(spooled, batch.Spooled) and os.listdir(tmp_path) == [os.path.basename(spooled.path)]
+    assert all(isinstance(x[5], int) for x in spooled.rows)
+    assert batch._unspooled(spooled) == plain
+    assert os.listdir(tmp_path) == []
+    assert batch.screen_chunk((inv, defaults, {}, dict(want, spool=str(tmp_path / "gone")))) == plain

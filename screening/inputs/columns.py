@@ -19,12 +19,14 @@ case reader gives.
 
 from __future__ import annotations
 
+import hashlib
 import math
 from dataclasses import dataclass
 from itertools import chain
 
 import numpy as np
 
+from screening import __version__
 from screening.constants import P_STANDARD_ATMOSPHERE
 from screening.errors import InputError
 from screening.inputs.case import ATMOSPHERIC_PRESSURE_RANGE_PA, DEFAULT_REQUIRED_MARGIN, Case, Exposure, Site
@@ -136,6 +138,57 @@ class PlainRows:
             scenarios=(self.exposure(j),),
             outside_diameter_m=extra["vessel.outside_diameter"], length_m=extra["vessel.length"])
 
+    def case_row(self, j: int, gas_part: dict) -> CaseRow:
+        """The j-th plain row's :class:`CaseRow`: what :meth:`case` gives, for laying out the row's result as a
+        line of JSON, without building the Case (`gas_part`: its gas's part, screen.gas_part, which the caller
+        may share between the rows of one gas). tests/test_batch_json.py keeps it equal to :meth:`case`."""
+        si = self._si_values()
+        records, description, site_name, rated_kind = self._record_columns()
+        inputs = [{"key": key, "entered": t if type(t := texts[j]) is str else default_text(None, t),
+                   "si_value": values[j], "si_unit": unit} for key, unit, texts, values in records
+                  if texts[j] is not _MISSING]
+        text = "\n".join([f"{header} = {values[j]!r}" for header, values in self.cell_texts if values[j]]) + "\n"
+        relief, ratio = si["vessel.relief_set_pressure"][j], si["vessel.max_filling_ratio"][j]
+        fill_p, fill_m = si["fill.pressure"][j], si["fill.mass"][j]
+        elevation = si["site.elevation"][j]
+        row = CaseRow()
+        row.gas = self.gases[j]
+        row.atmospheric_pressure_pa = atm = si["site.atmospheric_pressure"][j]
+        row.water_capacity_m3 = water = si["vessel.water_capacity"][j]
+        row.rated_pressure_pa = rated = si["vessel.rated_pressure"][j]
+        row.relief_set_pressure_pa = relief = None if relief != relief else relief
+        row.max_filling_ratio_kg_m3 = ratio = None if ratio != ratio else ratio
+        row.fill_pressure_pa = None if fill_p != fill_p else fill_p
+        row.fill_temperature_k = si["fill.temperature"][j]
+        row.fill_mass_kg = None if fill_m != fill_m else fill_m
+        row.required_margin = si["criteria.required_margin"][j]
+        row.required_margin_is_default = bool(self.required_margin_is_default[j])
+        row.parts = {
+            "id": self.ids[j], "description": _entered(description, j), "source": self.inv.source,
+            "tool_version": __version__, "input_sha256": hashlib.sha256(text.encode("utf-8")).hexdigest(),
+            "site": {"name": _entered(site_name, j), "atmospheric_pressure_pa": atm,
+                     "elevation_m": None if elevation != elevation else elevation},
+            "gas": gas_part,
+            "vessel": {"water_capacity_m3": water, "rated_pressure_pa": rated,
+                       "rated_pressure_kind": _entered(rated_kind, j),
+                       "relief_set_pressure_pa": relief,
+                       "max_filling_ratio_kg_per_l": ratio / 1000.0 if ratio is not None else None},
+            "inputs": inputs, "display_units": self.display_units[j]}
+        return row
+
+    def _record_columns(self) -> tuple:
+        """For :meth:`case_row`, worked out once: the input records' (key, SI unit, entered texts, SI values) of
+        the keys some row enters, in :data:`_RECORDS`' order, and the entered texts of the description, the
+        site's name and the rated pressure's kind (None where no row enters one)."""
+        got = self.__dict__.get("_records")
+        if got is None:
+            si = self._si_values()
+            entered = self.entered
+            got = self.__dict__["_records"] = (
+                tuple((key, unit, entered[key], si[key]) for key, unit in _RECORDS if key in entered),
+                entered.get("description"), entered.get("site.name"), entered.get("vessel.rated_pressure_kind"))
+        return got
+
     def exposure(self, j: int) -> Exposure:
         """The j-th plain row's one exposure scenario, as the case reader makes it."""
         ambient, hot = self.ambient_max_k[j].item(), self.gas_temperature_k[j].item()
@@ -184,6 +237,37 @@ class PlainRows:
         """The j-th plain row read again by the case reader, the authoritative one."""
         n, cells = self.inv.rows[int(self.index[j])]
         return row_case(self.inv, n, cells, self.defaults)
+
+
+def _entered(texts: list | None, j: int):
+    """The j-th row's entered text of a key (None where neither the row nor a default gives one)."""
+    if texts is None:
+        return None
+    t = texts[j]
+    return None if t is _MISSING else t
+
+
+class _Exposure:
+    """A plain row's exposure scenario as far as its result's layout reads it: its name."""
+
+    __slots__ = ()
+    name = "exposure"
+
+
+class CaseRow:
+    """A plain row's Case as far as the layout of its result as a line of JSON reads it
+    (:meth:`PlainRows.case_row`): the Case's fields the columns' layout reads (``engine._row_dict``), ``site``
+    (the row itself: its ``atmospheric_pressure_pa``), one scenario named "exposure", and ``parts``, the case's
+    parts of the result (screen.case_parts) without the cautions, which a batch's JSON leaves out."""
+
+    __slots__ = ("gas", "atmospheric_pressure_pa", "water_capacity_m3", "rated_pressure_pa", "relief_set_pressure_pa",
+                 "max_filling_ratio_kg_m3", "fill_pressure_pa", "fill_temperature_k", "fill_mass_kg",
+                 "required_margin", "required_margin_is_default", "parts")
+    scenarios = (_Exposure(),)
+
+    @property
+    def site(self) -> CaseRow:
+        return self
 
 
 #: The input records of a plain row's Case, in the order the case reader makes them (key, SI unit).
