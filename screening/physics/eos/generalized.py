@@ -146,19 +146,31 @@ def _require_finite(a: np.ndarray, name: str) -> None:
 
 
 def _state_arrays(first, first_name: str, first_unit: str, temperature, tc, pc, omega):
-    """Checked, broadcast float arrays of (first, T, Tc, Pc, omega): first and the temperatures and
-    critical constants must be positive and finite, omega finite. Raises InputError otherwise."""
+    """Checked float arrays of (first, T, Tc, Pc, omega) of one broadcast shape: first and the temperatures and
+    critical constants must be positive and finite, omega finite. Raises InputError otherwise. Arrays that
+    already have the broadcast shape are returned as they are (the functions here never write into them);
+    the others are broadcast into new arrays."""
     first = _as_float_array(first, first_name)
     t = _as_float_array(temperature, "temperature")
     tc = _as_float_array(tc, "critical temperature")
     pc = _as_float_array(pc, "critical pressure")
     omega = _as_float_array(omega, "acentric factor")
-    _require_positive_finite(first, first_name, first_unit)
-    _require_positive_finite(t, "temperature", "[K]")
-    _require_positive_finite(tc, "critical temperature", "[K]")
-    _require_positive_finite(pc, "critical pressure", "[Pa]")
-    _require_finite(omega, "acentric factor")
-    return tuple(np.array(x, dtype=float) for x in np.broadcast_arrays(first, t, tc, pc, omega))
+    # one test of the usual case (NaN fails every comparison, so it takes the detailed checks below)
+    if not (first.size and t.size and tc.size and pc.size and omega.size
+            and 0.0 < first.min() and first.max() < math.inf and 0.0 < t.min() and t.max() < math.inf
+            and 0.0 < tc.min() and tc.max() < math.inf and 0.0 < pc.min() and pc.max() < math.inf
+            and -math.inf < omega.min() and omega.max() < math.inf):
+        _require_positive_finite(first, first_name, first_unit)
+        _require_positive_finite(t, "temperature", "[K]")
+        _require_positive_finite(tc, "critical temperature", "[K]")
+        _require_positive_finite(pc, "critical pressure", "[Pa]")
+        _require_finite(omega, "acentric factor")
+    args = (first, t, tc, pc, omega)
+    shape = first.shape
+    if t.shape == shape and tc.shape == shape and pc.shape == shape and omega.shape == shape:
+        return args
+    shape = np.broadcast_shapes(*(x.shape for x in args))
+    return tuple(x if x.shape == shape else np.array(np.broadcast_to(x, shape), dtype=float) for x in args)
 
 
 def _fmt(x: float) -> str:
@@ -173,20 +185,14 @@ def _coefficients(consts: tuple, tr: np.ndarray):
     return (b1 - itr * (b2 + itr * (b3 + itr * b4)), c1 - c2 * itr + c3 * itr3, d1 + d2 * itr, c4 * itr3)
 
 
-def _exp1(x: float) -> float:
-    """exp of one float by numpy's exp (bit for bit what the array functions give; math.exp may differ in the
-    last digit), as a Python float."""
-    return float(np.exp(x))
-
-
-def _bwr(consts: tuple, coef: tuple, rho, exp=np.exp):
-    """Z of one LK fluid and dZ/d(rho) at reduced density rho = 1/V_r [-] (LK eq. 2); rho and coef arrays, or
-    floats with exp=_exp1 (the same arithmetic, bit for bit)."""
+def _bwr(consts: tuple, coef: tuple, rho):
+    """Z of one LK fluid and dZ/d(rho) at reduced density rho = 1/V_r [-] (LK eq. 2) of arrays rho and coef
+    (:func:`_bwr_one` on floats: the same arithmetic, bit for bit)."""
     beta, gamma = consts[10], consts[11]
     B, C, D, E = coef
     r2 = rho * rho
     r4 = r2 * r2
-    ex = E * exp(-gamma * r2)
+    ex = E * np.exp(-gamma * r2)
     z = 1.0 + rho * (B + rho * C + D * r4) + ex * r2 * (beta + gamma * r2)
     dz = B + rho * (2.0 * C + 5.0 * D * r2 * rho) + ex * rho * (
         2.0 * beta + r2 * (4.0 * gamma - 2.0 * gamma * beta) - 2.0 * gamma * gamma * r4)
@@ -279,25 +285,52 @@ def _min(a: float, b: float) -> float:
     return a if a != a else b if (b != b or b < a) else a
 
 
+def _scalar_consts(consts: tuple) -> tuple[float, ...]:
+    """(beta, gamma, -gamma, 2 beta, 4 gamma - 2 gamma beta, 2 gamma gamma) of one LK fluid: the constant factors
+    of :func:`_bwr`, computed as it computes them (bit for bit), for the float loops (numpy's exp of a float is
+    the exp of its arrays; math.exp may differ in the last digit)."""
+    beta, gamma = consts[10], consts[11]
+    return beta, gamma, -gamma, 2.0 * beta, 4.0 * gamma - 2.0 * gamma * beta, 2.0 * gamma * gamma
+
+
+_SIMPLE_1 = _scalar_consts(_SIMPLE)
+_REFERENCE_1 = _scalar_consts(_REFERENCE)
+_SCALAR_CONSTS = {_SIMPLE: _SIMPLE_1, _REFERENCE: _REFERENCE_1}
+
+
 def _gas_root_one(consts: tuple, coef: tuple, t: float, p: float) -> tuple[float, bool, bool]:
-    """One element of :func:`_gas_root`'s Newton, on floats: the same steps and tests, bit for bit.
+    """One element of :func:`_gas_root`'s Newton, on floats: the same steps and tests, bit for bit (:func:`_bwr`,
+    :func:`_div`, :func:`_max` and :func:`_min` written out in the loop, the same operations in the same order).
     Returns (rho, converged, no_root) before the branch check."""
+    beta, gamma, ngamma, beta2, k1, k2 = _SCALAR_CONSTS[consts]
+    B, C, D, E = coef
+    C2, D5 = 2.0 * C, 5.0 * D
+    exp = np.exp
+    isfinite = math.isfinite
     r, lo, hi = 0.0, 0.0, math.inf
     for _ in range(_MAX_INNER):
-        z, dz = _bwr(consts, coef, r, _exp1)
+        r2 = r * r
+        r4 = r2 * r2
+        # exp(-gamma 0) is 1 exactly whatever the exp
+        ex = E * float(exp(ngamma * r2)) if r2 != 0.0 else E
+        z = 1.0 + r * (B + r * C + D * r4) + ex * r2 * (beta + gamma * r2)
+        dz = B + r * (C2 + D5 * r2 * r) + ex * r * (beta2 + r2 * k1 - k2 * r4)
         f = t * r * z - p
         dp = t * (z + r * dz)
         below = f < 0.0
         if below:
-            lo = _max(lo, r)
-        else:
-            hi = _min(hi, r)
-        finite_hi = math.isfinite(hi)
+            if lo == lo and (r != r or r > lo):
+                lo = r
+        elif hi == hi and (r != r or r < hi):
+            hi = r
+        finite_hi = isfinite(hi)
         stuck = below and dp <= 0.0 and not finite_hi
-        newton = r - _div(f, dp)
+        newton = r - (f / dp if dp != 0.0 else _div(f, dp))
         conv = dp > 0.0 and abs(newton - r) <= _RTOL * newton
-        bisect = finite_hi and (not math.isfinite(newton) or newton < lo or newton > hi or dp <= 0.0)
-        new = 0.5 * (lo + hi) if (bisect and not conv) else newton
+        if finite_hi and not conv and (not isfinite(newton) or newton < lo or newton > hi or dp <= 0.0):
+            new = 0.5 * (lo + hi)
+        else:
+            new = newton
         conv = (conv or (finite_hi and (hi - lo) <= _RTOL * hi)) and not stuck
         if conv or stuck:
             return new, conv, stuck
@@ -305,24 +338,81 @@ def _gas_root_one(consts: tuple, coef: tuple, t: float, p: float) -> tuple[float
     return r, False, False
 
 
+def _bwr_one(consts1: tuple, coef: tuple, rho: float) -> tuple[float, float]:
+    """:func:`_bwr` of one float (consts1 from :func:`_scalar_consts`), bit for bit."""
+    beta, gamma, ngamma, beta2, k1, k2 = consts1
+    B, C, D, E = coef
+    r2 = rho * rho
+    r4 = r2 * r2
+    ex = E * float(np.exp(ngamma * r2)) if r2 != 0.0 else E
+    z = 1.0 + rho * (B + rho * C + D * r4) + ex * r2 * (beta + gamma * r2)
+    dz = B + rho * (2.0 * C + 5.0 * D * r2 * rho) + ex * rho * (beta2 + r2 * k1 - k2 * r4)
+    return z, dz
+
+
 def _gas_root_few(consts: tuple, trf: np.ndarray, prf: np.ndarray, active: np.ndarray, shape: tuple):
     """:func:`_gas_root` of a few elements, one by one on floats (numpy's cost per call dominates small arrays);
     the same arithmetic as the array loop, bit for bit."""
-    n = trf.size
-    rho, z, dp = np.zeros(n), np.empty(n), np.empty(n)
-    no_root = np.zeros(n, dtype=bool)
-    converged = np.zeros(n, dtype=bool)
-    for k, (t, p, on) in enumerate(zip(trf.tolist(), prf.tolist(), active.tolist())):
-        coef = _coefficients(consts, t)
+    consts1 = _SCALAR_CONSTS[consts]
+    b1, b2, b3, b4, c1, c2, c3, c4, d1, d2, _beta, _gamma = consts
+    rho, z, dp, no_root, converged = [], [], [], [], []
+    for t, p, on in zip(trf.tolist(), prf.tolist(), active.tolist()):
+        # _coefficients of one float
+        itr = 1.0 / t
+        itr3 = itr * itr * itr
+        coef = (b1 - itr * (b2 + itr * (b3 + itr * b4)), c1 - c2 * itr + c3 * itr3, d1 + d2 * itr, c4 * itr3)
         r, conv, stuck = _gas_root_one(consts, coef, t, p) if on else (0.0, False, False)
-        zk, dzk = _bwr(consts, coef, r, _exp1)
+        zk, dzk = _bwr_one(consts1, coef, r)
         dpk = t * (zk + r * dzk)
         # a converged point on an unstable (dP/drho <= 0) branch is not a gas root
         if conv and dpk <= 0.0:
             conv, stuck = False, True
-        rho[k], z[k], dp[k], no_root[k], converged[k] = r, zk, dpk, stuck, conv
-    return (rho.reshape(shape), z.reshape(shape), dp.reshape(shape), no_root.reshape(shape),
-            converged.reshape(shape))
+        rho.append(r)
+        z.append(zk)
+        dp.append(dpk)
+        no_root.append(stuck)
+        converged.append(conv)
+    return (np.array(rho).reshape(shape), np.array(z).reshape(shape), np.array(dp).reshape(shape),
+            np.array(no_root, dtype=bool).reshape(shape), np.array(converged, dtype=bool).reshape(shape))
+
+
+def _root_one(consts: tuple, coef: tuple, t: float, p: float) -> tuple[float, float, bool, bool]:
+    """One element of :func:`_gas_root_few` (active): (rho, Z, no_root, converged), the same numbers bit for bit."""
+    r, conv, stuck = _gas_root_one(consts, coef, t, p)
+    z, dz = _bwr_one(_SCALAR_CONSTS[consts], coef, r)
+    if conv and t * (z + r * dz) <= 0.0:
+        return r, z, True, False
+    return r, z, stuck, conv
+
+
+def _vapour_caps(tr: np.ndarray, omega: np.ndarray) -> list | None:
+    """LK vapour pressures where 0.3 <= T_r < 1 (inf elsewhere) as :func:`_flag_gas_state` computes them, as
+    floats; None where no element is below the critical temperature."""
+    sub = tr < 1.0
+    if not sub.any():
+        return None
+    return np.where(sub, lee_kesler_vapour_pressure(np.where(sub, tr, 0.5), omega), np.inf).tolist()
+
+
+def _z_few(tr: np.ndarray, pr: np.ndarray, omega: np.ndarray) -> list | None:
+    """Z of :func:`_z_checked` for a few elements (1-d, P_r positive and finite) that are all valid, element by
+    element on floats (the same numbers, bit for bit); None as soon as one is not (the caller then takes the
+    array path, which says why)."""
+    trl, prl = tr.tolist(), pr.tolist()
+    for t, p in zip(trl, prl):
+        if not (_TR_LO <= t <= _TR_HI and p <= _PR_HI):
+            return None
+    psat = _vapour_caps(tr, omega)
+    out = []
+    for k, (t, p, a) in enumerate(zip(trl, prl, (omega / OMEGA_REFERENCE).tolist())):
+        if psat is not None and p > psat[k]:
+            return None
+        r0, z0, nr0, c0 = _root_one(_SIMPLE, _coefficients(_SIMPLE, t), t, p)
+        rr, zr, nrr, cr = _root_one(_REFERENCE, _coefficients(_REFERENCE, t), t, p)
+        if nr0 or nrr or not (c0 and cr):
+            return None
+        out.append(z0 + a * (zr - z0))
+    return out
 
 
 def lee_kesler_vapour_pressure(tr, omega) -> np.ndarray:
@@ -509,7 +599,13 @@ def lee_kesler_density(pressure, temperature, tc, pc, omega) -> GeneralizedState
     p, t, tc, pc, omega = _state_arrays(pressure, "pressure", "[Pa] (absolute)", temperature, tc, pc, omega)
     tr = t / tc
     pr = p / pc
-    z, valid, reason = _z_checked(tr, pr, omega)
+    zl = _z_few(tr, pr, omega) if tr.ndim == 1 and 0 < tr.size <= _SCALAR_MAX else None
+    if zl is not None:      # every element valid: no reasons to build
+        z = np.array(zl)
+        reason = np.full(tr.shape, "", dtype=object)
+        valid = reason == ""
+    else:
+        z, valid, reason = _z_checked(tr, pr, omega)
     rho = np.where(valid, p / (z * R * t), np.nan)
     return GeneralizedState(
         pressure=np.where(valid, p, np.nan), molar_density=rho, z=z,
@@ -525,7 +621,12 @@ def lee_kesler_density_valid(pressure, temperature, tc, pc, omega) -> tuple[np.n
     (True, True)
     """
     p, t, tc, pc, omega = _state_arrays(pressure, "pressure", "[Pa] (absolute)", temperature, tc, pc, omega)
-    z, valid = _z_valid(t / tc, p / pc, omega)
+    tr = t / tc
+    pr = p / pc
+    zl = _z_few(tr, pr, omega) if tr.ndim == 1 and 0 < tr.size <= _SCALAR_MAX else None
+    if zl is not None:      # every element valid
+        return p / (np.array(zl) * R * t), np.ones(tr.shape, dtype=bool)
+    z, valid = _z_valid(tr, pr, omega)
     return np.where(valid, p / (z * R * t), np.nan), valid
 
 
@@ -616,8 +717,8 @@ def _newton_reduced_pressure_one(t: float, v: float, a: float, r0: float, p: flo
     Returns (P_r, V_0, V_ref), or None where it does not converge."""
     rr = r0
     for _ in range(_MAX_NEWTON):
-        z0, dz0 = _bwr(_SIMPLE, c0, r0, _exp1)
-        zr, dzr = _bwr(_REFERENCE, cr, rr, _exp1)
+        z0, dz0 = _bwr_one(_SIMPLE_1, c0, r0)
+        zr, dzr = _bwr_one(_REFERENCE_1, cr, rr)
         p0, pref = t * r0 * z0, t * rr * zr
         d0, dref = t * (z0 + r0 * dz0), t * (zr + rr * dzr)
         w0, wref = _div(1.0 - a, d0 * r0 * r0), _div(a, dref * rr * rr)
@@ -632,6 +733,49 @@ def _newton_reduced_pressure_one(t: float, v: float, a: float, r0: float, p: flo
             return p_new, _div(1.0, r0_new), _div(1.0, rr_new)
         r0, rr, p = r0_new, rr_new, p_new
     return None
+
+
+def _pressure_few(tr: np.ndarray, vf: np.ndarray, omega: np.ndarray) -> tuple[list, list] | None:
+    """(P_r, Z) of :func:`lee_kesler_pressure` for a few elements (1-d) that are all valid and whose coupled Newton
+    settles on the gas branch, element by element on floats: the same steps and tests as the array path (range,
+    :func:`_newton_reduced_pressure`, the check by the cold-started gas roots, the volume and vapour-pressure
+    tests), bit for bit. None as soon as one element is not such (the caller then takes the array path, which
+    solves the rest and says why)."""
+    trl = tr.tolist()
+    for t in trl:
+        if not (_TR_LO <= t <= _TR_HI):
+            return None
+    a = omega / OMEGA_REFERENCE
+    if (tr < 1.0).any():
+        p_max = np.where(tr < 1.0, np.minimum(lee_kesler_vapour_pressure(np.minimum(tr, 1.0), a * OMEGA_REFERENCE),
+                                              _PR_HI), _PR_HI).tolist()
+        psat = _vapour_caps(tr, omega)
+    else:
+        p_max, psat = [_PR_HI] * len(trl), None
+    prs, zs = [], []
+    for k, (t, v, ak) in enumerate(zip(trl, vf.tolist(), a.tolist())):
+        c0, cr = _coefficients(_SIMPLE, t), _coefficients(_REFERENCE, t)
+        r0 = _div(1.0, v)
+        got = _newton_reduced_pressure_one(t, v, ak, r0, t * r0, p_max[k], c0, cr)
+        if got is None:
+            return None
+        pr, fast_v0, fast_vr = got
+        if not pr <= _PR_HI:
+            return None
+        rho0, z0, nr0, cv0 = _root_one(_SIMPLE, c0, t, pr)
+        rhor, zr, nrr, cvr = _root_one(_REFERENCE, cr, t, pr)
+        if nr0 or nrr or not (cv0 and cvr):
+            return None
+        v0, vr = _div(1.0, rho0), _div(1.0, rhor)
+        if not (abs(v0 - fast_v0) <= 1e-9 * fast_v0 and abs(vr - fast_vr) <= 1e-9 * fast_vr):
+            return None
+        if not abs((1.0 - ak) * v0 + ak * vr - v) <= 1e-9 * v:
+            return None
+        if psat is not None and pr > psat[k]:
+            return None
+        prs.append(pr)
+        zs.append(z0 + ak * (zr - z0))
+    return prs, zs
 
 
 def _solve_reduced_pressure(tr, vf, omega, active):
@@ -706,6 +850,14 @@ def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> Generalize
     rho, t, tc, pc, omega = _state_arrays(molar_density, "molar density", "[mol/m3]", temperature, tc, pc, omega)
     tr = t / tc
     vf = pc / (rho * R * tc)          # reduced ideal volume of the gas [-]
+    few = _pressure_few(tr, vf, omega) if tr.ndim == 1 and 0 < tr.size <= _SCALAR_MAX_NEWTON else None
+    if few is not None:     # every element valid: no reasons to build
+        pr_final = np.array(few[0])
+        reason = np.full(tr.shape, "", dtype=object)
+        valid = reason == ""
+        return GeneralizedState(
+            pressure=np.where(valid, pr_final * pc, np.nan), molar_density=np.where(valid, rho, np.nan),
+            z=np.array(few[1]), reduced_temperature=tr, reduced_pressure=pr_final, valid=valid, reason=reason)
     outside = _range_reasons(tr, None)
     active = outside == ""
 
