@@ -387,32 +387,33 @@ def _root_one(consts: tuple, coef: tuple, t: float, p: float) -> tuple[float, fl
 
 def _vapour_caps(tr: np.ndarray, omega: np.ndarray) -> list | None:
     """LK vapour pressures where 0.3 <= T_r < 1 (inf elsewhere) as :func:`_flag_gas_state` computes them, as
-    floats; None where no element is below the critical temperature."""
-    sub = tr < 1.0
+    floats; None where no element is there."""
+    sub = (tr < 1.0) & (tr >= _TR_LO)
     if not sub.any():
         return None
     return np.where(sub, lee_kesler_vapour_pressure(np.where(sub, tr, 0.5), omega), np.inf).tolist()
 
 
-def _z_few(tr: np.ndarray, pr: np.ndarray, omega: np.ndarray) -> list | None:
-    """Z of :func:`_z_checked` for a few elements (1-d, P_r positive and finite) that are all valid, element by
-    element on floats (the same numbers, bit for bit); None as soon as one is not (the caller then takes the
-    array path, which says why)."""
+def _z_few(tr: np.ndarray, pr: np.ndarray, omega: np.ndarray) -> tuple[list, list]:
+    """Z of :func:`_z_checked` for a few elements (1-d, P_r positive), element by element on floats (the same
+    numbers, bit for bit), and the indices of the elements that are not valid (Z NaN there): the caller solves
+    those by the array path, which says why (a state's numbers do not depend on the others in its call)."""
     trl, prl = tr.tolist(), pr.tolist()
-    for t, p in zip(trl, prl):
-        if not (_TR_LO <= t <= _TR_HI and p <= _PR_HI):
-            return None
     psat = _vapour_caps(tr, omega)
-    out = []
+    out, failed = [], []
     for k, (t, p, a) in enumerate(zip(trl, prl, (omega / OMEGA_REFERENCE).tolist())):
-        if psat is not None and p > psat[k]:
-            return None
+        if not (_TR_LO <= t <= _TR_HI and p <= _PR_HI) or (psat is not None and p > psat[k]):
+            out.append(math.nan)
+            failed.append(k)
+            continue
         r0, z0, nr0, c0 = _root_one(_SIMPLE, _coefficients(_SIMPLE, t), t, p)
         rr, zr, nrr, cr = _root_one(_REFERENCE, _coefficients(_REFERENCE, t), t, p)
         if nr0 or nrr or not (c0 and cr):
-            return None
+            out.append(math.nan)
+            failed.append(k)
+            continue
         out.append(z0 + a * (zr - z0))
-    return out
+    return out, failed
 
 
 def lee_kesler_vapour_pressure(tr, omega) -> np.ndarray:
@@ -599,11 +600,14 @@ def lee_kesler_density(pressure, temperature, tc, pc, omega) -> GeneralizedState
     p, t, tc, pc, omega = _state_arrays(pressure, "pressure", "[Pa] (absolute)", temperature, tc, pc, omega)
     tr = t / tc
     pr = p / pc
-    zl = _z_few(tr, pr, omega) if tr.ndim == 1 and 0 < tr.size <= _SCALAR_MAX else None
-    if zl is not None:      # every element valid: no reasons to build
+    if tr.ndim == 1 and 0 < tr.size <= _SCALAR_MAX:
+        # element by element; reasons built only for the elements that are not valid
+        zl, failed = _z_few(tr, pr, omega)
         z = np.array(zl)
         reason = np.full(tr.shape, "", dtype=object)
         valid = reason == ""
+        if failed:
+            z[failed], valid[failed], reason[failed] = _z_checked(tr[failed], pr[failed], omega[failed])
     else:
         z, valid, reason = _z_checked(tr, pr, omega)
     rho = np.where(valid, p / (z * R * t), np.nan)
@@ -623,10 +627,15 @@ def lee_kesler_density_valid(pressure, temperature, tc, pc, omega) -> tuple[np.n
     p, t, tc, pc, omega = _state_arrays(pressure, "pressure", "[Pa] (absolute)", temperature, tc, pc, omega)
     tr = t / tc
     pr = p / pc
-    zl = _z_few(tr, pr, omega) if tr.ndim == 1 and 0 < tr.size <= _SCALAR_MAX else None
-    if zl is not None:      # every element valid
-        return p / (np.array(zl) * R * t), np.ones(tr.shape, dtype=bool)
-    z, valid = _z_valid(tr, pr, omega)
+    if tr.ndim == 1 and 0 < tr.size <= _SCALAR_MAX:
+        zl, failed = _z_few(tr, pr, omega)
+        if not failed:
+            return p / (np.array(zl) * R * t), np.ones(tr.shape, dtype=bool)
+        z = np.array(zl)
+        valid = np.ones(tr.shape, dtype=bool)
+        z[failed], valid[failed] = _z_valid(tr[failed], pr[failed], omega[failed])
+    else:
+        z, valid = _z_valid(tr, pr, omega)
     return np.where(valid, p / (z * R * t), np.nan), valid
 
 
@@ -735,47 +744,45 @@ def _newton_reduced_pressure_one(t: float, v: float, a: float, r0: float, p: flo
     return None
 
 
-def _pressure_few(tr: np.ndarray, vf: np.ndarray, omega: np.ndarray) -> tuple[list, list] | None:
-    """(P_r, Z) of :func:`lee_kesler_pressure` for a few elements (1-d) that are all valid and whose coupled Newton
-    settles on the gas branch, element by element on floats: the same steps and tests as the array path (range,
-    :func:`_newton_reduced_pressure`, the check by the cold-started gas roots, the volume and vapour-pressure
-    tests), bit for bit. None as soon as one element is not such (the caller then takes the array path, which
-    solves the rest and says why)."""
-    trl = tr.tolist()
-    for t in trl:
-        if not (_TR_LO <= t <= _TR_HI):
-            return None
+def _pressure_few(tr: np.ndarray, vf: np.ndarray, omega: np.ndarray) -> tuple[list, list, list]:
+    """(P_r, Z) of :func:`lee_kesler_pressure` for a few elements (1-d), element by element on floats: the same
+    steps and tests as the array path (range, :func:`_newton_reduced_pressure`, the check by the cold-started gas
+    roots, the volume and vapour-pressure tests), bit for bit, for the elements that are valid and whose coupled
+    Newton settles on the gas branch; and the indices of the others (NaN there), which the caller solves by the
+    array path (bracketed solve, reasons; a state's numbers do not depend on the others in its call)."""
     a = omega / OMEGA_REFERENCE
     if (tr < 1.0).any():
-        p_max = np.where(tr < 1.0, np.minimum(lee_kesler_vapour_pressure(np.minimum(tr, 1.0), a * OMEGA_REFERENCE),
-                                              _PR_HI), _PR_HI).tolist()
+        t_in = np.where(tr < _TR_LO, 0.5, tr)       # only the elements in the range are used
+        p_max = np.where(t_in < 1.0, np.minimum(lee_kesler_vapour_pressure(np.minimum(t_in, 1.0), a * OMEGA_REFERENCE),
+                                                _PR_HI), _PR_HI).tolist()
         psat = _vapour_caps(tr, omega)
     else:
-        p_max, psat = [_PR_HI] * len(trl), None
-    prs, zs = [], []
-    for k, (t, v, ak) in enumerate(zip(trl, vf.tolist(), a.tolist())):
-        c0, cr = _coefficients(_SIMPLE, t), _coefficients(_REFERENCE, t)
-        r0 = _div(1.0, v)
-        got = _newton_reduced_pressure_one(t, v, ak, r0, t * r0, p_max[k], c0, cr)
-        if got is None:
-            return None
-        pr, fast_v0, fast_vr = got
-        if not pr <= _PR_HI:
-            return None
-        rho0, z0, nr0, cv0 = _root_one(_SIMPLE, c0, t, pr)
-        rhor, zr, nrr, cvr = _root_one(_REFERENCE, cr, t, pr)
-        if nr0 or nrr or not (cv0 and cvr):
-            return None
-        v0, vr = _div(1.0, rho0), _div(1.0, rhor)
-        if not (abs(v0 - fast_v0) <= 1e-9 * fast_v0 and abs(vr - fast_vr) <= 1e-9 * fast_vr):
-            return None
-        if not abs((1.0 - ak) * v0 + ak * vr - v) <= 1e-9 * v:
-            return None
-        if psat is not None and pr > psat[k]:
-            return None
-        prs.append(pr)
-        zs.append(z0 + ak * (zr - z0))
-    return prs, zs
+        p_max, psat = [_PR_HI] * tr.size, None
+    prs, zs, failed = [], [], []
+    for k, (t, v, ak) in enumerate(zip(tr.tolist(), vf.tolist(), a.tolist())):
+        ok = _TR_LO <= t <= _TR_HI
+        if ok:
+            c0, cr = _coefficients(_SIMPLE, t), _coefficients(_REFERENCE, t)
+            r0 = _div(1.0, v)
+            got = _newton_reduced_pressure_one(t, v, ak, r0, t * r0, p_max[k], c0, cr)
+            ok = got is not None and got[0] <= _PR_HI and (psat is None or not got[0] > psat[k])
+        if ok:
+            pr, fast_v0, fast_vr = got
+            rho0, z0, nr0, cv0 = _root_one(_SIMPLE, c0, t, pr)
+            rhor, zr, nrr, cvr = _root_one(_REFERENCE, cr, t, pr)
+            ok = not (nr0 or nrr) and cv0 and cvr
+            if ok:
+                v0, vr = _div(1.0, rho0), _div(1.0, rhor)
+                ok = (abs(v0 - fast_v0) <= 1e-9 * fast_v0 and abs(vr - fast_vr) <= 1e-9 * fast_vr
+                      and abs((1.0 - ak) * v0 + ak * vr - v) <= 1e-9 * v)
+        if ok:
+            prs.append(pr)
+            zs.append(z0 + ak * (zr - z0))
+        else:
+            prs.append(math.nan)
+            zs.append(math.nan)
+            failed.append(k)
+    return prs, zs, failed
 
 
 def _solve_reduced_pressure(tr, vf, omega, active):
@@ -850,14 +857,26 @@ def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> Generalize
     rho, t, tc, pc, omega = _state_arrays(molar_density, "molar density", "[mol/m3]", temperature, tc, pc, omega)
     tr = t / tc
     vf = pc / (rho * R * tc)          # reduced ideal volume of the gas [-]
-    few = _pressure_few(tr, vf, omega) if tr.ndim == 1 and 0 < tr.size <= _SCALAR_MAX_NEWTON else None
-    if few is not None:     # every element valid: no reasons to build
-        pr_final = np.array(few[0])
-        reason = np.full(tr.shape, "", dtype=object)
-        valid = reason == ""
-        return GeneralizedState(
-            pressure=np.where(valid, pr_final * pc, np.nan), molar_density=np.where(valid, rho, np.nan),
-            z=np.array(few[1]), reduced_temperature=tr, reduced_pressure=pr_final, valid=valid, reason=reason)
+    if not (tr.ndim == 1 and 0 < tr.size <= _SCALAR_MAX):
+        return _pressure_arrays(rho, t, pc, omega, tr, vf)
+    # element by element; the array path (and its reasons) only for the elements that need it
+    prs, zs, failed = _pressure_few(tr, vf, omega)
+    pr_final, z = np.array(prs), np.array(zs)
+    p, rho = pr_final * pc, rho.copy()
+    reason = np.full(tr.shape, "", dtype=object)
+    valid = reason == ""
+    if failed:
+        sub = _pressure_arrays(rho[failed], t[failed], pc[failed], omega[failed], tr[failed], vf[failed])
+        p[failed], rho[failed], z[failed], pr_final[failed] = (sub.pressure, sub.molar_density, sub.z,
+                                                               sub.reduced_pressure)
+        valid[failed], reason[failed] = sub.valid, sub.reason
+    return GeneralizedState(pressure=p, molar_density=rho, z=z, reduced_temperature=tr, reduced_pressure=pr_final,
+                            valid=valid, reason=reason)
+
+
+def _pressure_arrays(rho, t, pc, omega, tr, vf) -> GeneralizedState:
+    """:func:`lee_kesler_pressure` on arrays of one shape (already checked), with T_r and the reduced ideal
+    volume V_r given."""
     outside = _range_reasons(tr, None)
     active = outside == ""
 
