@@ -169,8 +169,11 @@ def _state_arrays(first, first_name: str, first_unit: str, temperature, tc, pc, 
     shape = first.shape
     if t.shape == shape and tc.shape == shape and pc.shape == shape and omega.shape == shape:
         return args
-    shape = np.broadcast_shapes(*(x.shape for x in args))
-    return tuple(x if x.shape == shape else np.array(np.broadcast_to(x, shape), dtype=float) for x in args)
+    shapes = {x.shape for x in args}
+    shapes.discard(())
+    shape = shapes.pop() if len(shapes) == 1 else np.broadcast_shapes(*(x.shape for x in args))
+    return tuple(x if x.shape == shape else np.full(shape, x) if x.ndim == 0
+                 else np.array(np.broadcast_to(x, shape), dtype=float) for x in args)
 
 
 def _fmt(x: float) -> str:
