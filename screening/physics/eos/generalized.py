@@ -130,7 +130,24 @@ def _as_float_array(x: object, name: str) -> np.ndarray:
     return a
 
 
+def _positive_finite(a: np.ndarray) -> bool:
+    """True if every element of the float array a is finite and positive (and it has one); NaN fails every
+    comparison."""
+    if a.size == 1:
+        return 0.0 < a.item() < math.inf
+    return a.size > 0 and 0.0 < a.min() and a.max() < math.inf
+
+
+def _finite(a: np.ndarray) -> bool:
+    """True if every element of the float array a is finite (and it has one)."""
+    if a.size == 1:
+        return -math.inf < a.item() < math.inf
+    return a.size > 0 and -math.inf < a.min() and a.max() < math.inf
+
+
 def _require_positive_finite(a: np.ndarray, name: str, unit: str) -> None:
+    if _positive_finite(a):
+        return
     bad = ~np.isfinite(a) | (a <= 0.0)
     if np.any(bad):
         first = a[bad].flat[0] if a.ndim else float(a)
@@ -139,6 +156,8 @@ def _require_positive_finite(a: np.ndarray, name: str, unit: str) -> None:
 
 
 def _require_finite(a: np.ndarray, name: str) -> None:
+    if _finite(a):
+        return
     bad = ~np.isfinite(a)
     if np.any(bad):
         first = a[bad].flat[0] if a.ndim else float(a)
@@ -156,10 +175,8 @@ def _state_arrays(first, first_name: str, first_unit: str, temperature, tc, pc, 
     pc = _as_float_array(pc, "critical pressure")
     omega = _as_float_array(omega, "acentric factor")
     # one test of the usual case (NaN fails every comparison, so it takes the detailed checks below)
-    if not (first.size and t.size and tc.size and pc.size and omega.size
-            and 0.0 < first.min() and first.max() < math.inf and 0.0 < t.min() and t.max() < math.inf
-            and 0.0 < tc.min() and tc.max() < math.inf and 0.0 < pc.min() and pc.max() < math.inf
-            and -math.inf < omega.min() and omega.max() < math.inf):
+    if not (_positive_finite(first) and _positive_finite(t) and _positive_finite(tc) and _positive_finite(pc)
+            and _finite(omega)):
         _require_positive_finite(first, first_name, first_unit)
         _require_positive_finite(t, "temperature", "[K]")
         _require_positive_finite(tc, "critical temperature", "[K]")
@@ -1138,6 +1155,23 @@ def srk_quantum_density(pressure, temperature, tc_classical, pc_classical, molar
     c1 = A - B - B * B
     c0 = -A * B
     z = 1.0 + np.maximum(1.0, np.maximum(np.abs(c1), np.abs(c0))) + 1.0
+    if z.ndim == 1 and z.size <= _SCALAR_MAX_NEWTON:
+        z, converged = _srk_newton_few(z, c1, c0)
+    else:
+        z, converged = _srk_newton(z, c1, c0)
+    reason = _srk_domain(t, p)
+    _set_reasons(reason, ~converged, lambda i: "the quantum-gas model's root did not converge")
+    valid = reason == ""
+    rho = p / (z * R * t)
+    return GeneralizedState(
+        pressure=np.where(valid, p, np.nan), molar_density=np.where(valid, rho, np.nan),
+        z=np.where(valid, z, np.nan), reduced_temperature=t / tc, reduced_pressure=p / pc, valid=valid,
+        reason=reason)
+
+
+def _srk_newton(z: np.ndarray, c1: np.ndarray, c0: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Newton steps on the SRK cubic from z until every element's step is below 1e-14 relative (all elements
+    step together). Returns (z, converged)."""
     converged = np.zeros(z.shape, dtype=bool)
     for _ in range(_SRK_MAX_NEWTON):
         f = ((z - 1.0) * z + c1) * z + c0
@@ -1147,11 +1181,24 @@ def srk_quantum_density(pressure, temperature, tc_classical, pc_classical, molar
         converged = np.abs(step) <= 1e-14 * z
         if np.all(converged):
             break
-    reason = _srk_domain(t, p)
-    _set_reasons(reason, ~converged, lambda i: "the quantum-gas model's root did not converge")
-    valid = reason == ""
-    rho = p / (z * R * t)
-    return GeneralizedState(
-        pressure=np.where(valid, p, np.nan), molar_density=np.where(valid, rho, np.nan),
-        z=np.where(valid, z, np.nan), reduced_temperature=t / tc, reduced_pressure=p / pc, valid=valid,
-        reason=reason)
+    return z, converged
+
+
+def _srk_newton_few(z: np.ndarray, c1: np.ndarray, c0: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """:func:`_srk_newton` of a few elements (1-d) on floats, the same steps in the same lockstep (every element
+    steps until all have converged), bit for bit."""
+    zl, c1l, c0l = z.tolist(), c1.tolist(), c0.tolist()
+    conv = [False] * len(zl)
+    for _ in range(_SRK_MAX_NEWTON):
+        done = True
+        for k, (zk, c1k, c0k) in enumerate(zip(zl, c1l, c0l)):
+            f = ((zk - 1.0) * zk + c1k) * zk + c0k
+            d = (3.0 * zk - 2.0) * zk + c1k
+            step = _div(f, d)
+            zk = zk - step
+            zl[k] = zk
+            conv[k] = c = abs(step) <= 1e-14 * zk
+            done = done and c
+        if done:
+            break
+    return np.array(zl), np.array(conv, dtype=bool)
