@@ -764,12 +764,14 @@ def _newton_reduced_pressure_one(t: float, v: float, a: float, r0: float, p: flo
     return None
 
 
-def _pressure_few(tr: np.ndarray, vf: np.ndarray, omega: np.ndarray) -> tuple[list, list, list]:
+def _pressure_few(tr: np.ndarray, vf: np.ndarray, omega: np.ndarray) -> tuple[list, list, list, tuple]:
     """(P_r, Z) of :func:`lee_kesler_pressure` for a few elements (1-d), element by element on floats: the same
     steps and tests as the array path (range, :func:`_newton_reduced_pressure`, the check by the cold-started gas
     roots, the volume and vapour-pressure tests), bit for bit, for the elements that are valid and whose coupled
     Newton settles on the gas branch; and the indices of the others (NaN there), which the caller solves by the
-    array path (bracketed solve, reasons; a state's numbers do not depend on the others in its call)."""
+    array path (bracketed solve, reasons; a state's numbers do not depend on the others in its call), with what
+    the coupled Newton gave them: arrays (P_r, V_0, V_ref, settled) as :func:`_newton_reduced_pressure` returns
+    them (the array path need not run it again)."""
     a = omega / OMEGA_REFERENCE
     if (tr < 1.0).any():
         t_in = np.where(tr < _TR_LO, 0.5, tr)       # only the elements in the range are used
@@ -778,9 +780,10 @@ def _pressure_few(tr: np.ndarray, vf: np.ndarray, omega: np.ndarray) -> tuple[li
         psat = _vapour_caps(tr, omega)
     else:
         p_max, psat = [_PR_HI] * tr.size, None
-    prs, zs, failed = [], [], []
+    prs, zs, failed, newton = [], [], [], []
     for k, (t, v, ak) in enumerate(zip(tr.tolist(), vf.tolist(), a.tolist())):
         ok = _TR_LO <= t <= _TR_HI
+        got = None
         if ok:
             c0, cr = _coefficients(_SIMPLE, t), _coefficients(_REFERENCE, t)
             r0 = _div(1.0, v)
@@ -802,7 +805,8 @@ def _pressure_few(tr: np.ndarray, vf: np.ndarray, omega: np.ndarray) -> tuple[li
             prs.append(math.nan)
             zs.append(math.nan)
             failed.append(k)
-    return prs, zs, failed
+            newton.append((*got, True) if got is not None else (math.nan, math.nan, math.nan, False))
+    return prs, zs, failed, (tuple(np.array(x) for x in zip(*newton)) if newton else ())
 
 
 def _solve_reduced_pressure(tr, vf, omega, active):
@@ -880,13 +884,13 @@ def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> Generalize
     if not (tr.ndim == 1 and 0 < tr.size <= _SCALAR_MAX):
         return _pressure_arrays(rho, t, pc, omega, tr, vf)
     # element by element; the array path (and its reasons) only for the elements that need it
-    prs, zs, failed = _pressure_few(tr, vf, omega)
+    prs, zs, failed, newton = _pressure_few(tr, vf, omega)
     pr_final, z = np.array(prs), np.array(zs)
     p, rho = pr_final * pc, rho.copy()
     reason = np.full(tr.shape, "", dtype=object)
     valid = reason == ""
     if failed:
-        sub = _pressure_arrays(rho[failed], t[failed], pc[failed], omega[failed], tr[failed], vf[failed])
+        sub = _pressure_arrays(rho[failed], t[failed], pc[failed], omega[failed], tr[failed], vf[failed], newton)
         p[failed], rho[failed], z[failed], pr_final[failed] = (sub.pressure, sub.molar_density, sub.z,
                                                                sub.reduced_pressure)
         valid[failed], reason[failed] = sub.valid, sub.reason
@@ -894,15 +898,15 @@ def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> Generalize
                             valid=valid, reason=reason)
 
 
-def _pressure_arrays(rho, t, pc, omega, tr, vf) -> GeneralizedState:
+def _pressure_arrays(rho, t, pc, omega, tr, vf, newton: tuple | None = None) -> GeneralizedState:
     """:func:`lee_kesler_pressure` on arrays of one shape (already checked), with T_r and the reduced ideal
-    volume V_r given."""
+    volume V_r given; `newton`: what :func:`_newton_reduced_pressure` gives for them, if already known."""
     outside = _range_reasons(tr, None)
     active = outside == ""
 
     # The coupled Newton first; where it does not settle, or settles off the gas branch (its roots
     # differ from the cold-started gas roots of the check below), the bracketed solve decides.
-    fast_pr, fast_v0, fast_vr, fast = _newton_reduced_pressure(tr, vf, omega, active)
+    fast_pr, fast_v0, fast_vr, fast = newton or _newton_reduced_pressure(tr, vf, omega, active)
     pr, converged, above_cap = _solve_reduced_pressure(tr, vf, omega, active & ~fast)
     pr = np.where(fast, fast_pr, pr)
     converged = converged | fast
