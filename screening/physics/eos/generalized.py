@@ -742,20 +742,40 @@ def _newton_reduced_pressure(tr, vf, omega, active):
 
 def _newton_reduced_pressure_one(t: float, v: float, a: float, r0: float, p: float, p_max: float, c0: tuple,
                                  cr: tuple) -> tuple[float, float, float] | None:
-    """One element of :func:`_newton_reduced_pressure`'s loop, on floats: the same steps and tests, bit for bit.
+    """One element of :func:`_newton_reduced_pressure`'s loop, on floats: the same steps and tests, bit for bit
+    (:func:`_bwr_one` and :func:`_div` written out, the same operations in the same order).
     Returns (P_r, V_0, V_ref), or None where it does not converge."""
+    beta0, gamma0, ngamma0, beta20, k10, k20 = _SIMPLE_1
+    betar, gammar, ngammar, beta2r, k1r, k2r = _REFERENCE_1
+    B0, C0, D0, E0 = c0
+    Br, Cr, Dr, Er = cr
+    C20, D50, C2r, D5r = 2.0 * C0, 5.0 * D0, 2.0 * Cr, 5.0 * Dr
+    b = 1.0 - a
+    exp = np.exp
+    isfinite = math.isfinite
     rr = r0
     for _ in range(_MAX_NEWTON):
-        z0, dz0 = _bwr_one(_SIMPLE_1, c0, r0)
-        zr, dzr = _bwr_one(_REFERENCE_1, cr, rr)
+        s2 = r0 * r0
+        s4 = s2 * s2
+        ex = E0 * float(exp(ngamma0 * s2)) if s2 != 0.0 else E0
+        z0 = 1.0 + r0 * (B0 + r0 * C0 + D0 * s4) + ex * s2 * (beta0 + gamma0 * s2)
+        dz0 = B0 + r0 * (C20 + D50 * s2 * r0) + ex * r0 * (beta20 + s2 * k10 - k20 * s4)
+        s2 = rr * rr
+        s4 = s2 * s2
+        ex = Er * float(exp(ngammar * s2)) if s2 != 0.0 else Er
+        zr = 1.0 + rr * (Br + rr * Cr + Dr * s4) + ex * s2 * (betar + gammar * s2)
+        dzr = Br + rr * (C2r + D5r * s2 * rr) + ex * rr * (beta2r + s2 * k1r - k2r * s4)
         p0, pref = t * r0 * z0, t * rr * zr
         d0, dref = t * (z0 + r0 * dz0), t * (zr + rr * dzr)
-        w0, wref = _div(1.0 - a, d0 * r0 * r0), _div(a, dref * rr * rr)
-        p_new = _div(_div(1.0 - a, r0) + _div(a, rr) - v + w0 * p0 + wref * pref, w0 + wref)
-        r0_new = r0 + _div(p_new - p0, d0)
-        rr_new = rr + _div(p_new - pref, dref)
+        x, y = d0 * r0 * r0, dref * rr * rr
+        w0 = b / x if x else _div(b, x)
+        wref = a / y if y else _div(a, y)
+        x, y = w0 + wref, (b / r0 if r0 else _div(b, r0)) + (a / rr if rr else _div(a, rr)) - v + w0 * p0 + wref * pref
+        p_new = y / x if x else _div(y, x)
+        r0_new = r0 + ((p_new - p0) / d0 if d0 else _div(p_new - p0, d0))
+        rr_new = rr + ((p_new - pref) / dref if dref else _div(p_new - pref, dref))
         if not (d0 > 0.0 and dref > 0.0 and r0_new > 0.0 and rr_new > 0.0 and p_new > 0.0 and p_new <= p_max
-                and math.isfinite(r0_new) and math.isfinite(rr_new)):
+                and isfinite(r0_new) and isfinite(rr_new)):
             return None
         if (abs(p_new - p) <= _PTOL * p_new and abs(r0_new - r0) <= _RTOL * r0_new
                 and abs(rr_new - rr) <= _RTOL * rr_new):
