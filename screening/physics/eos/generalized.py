@@ -326,8 +326,8 @@ def _gas_root_one(consts: tuple, coef: tuple, t: float, p: float) -> tuple[float
     B, C, D, E = coef
     C2, D5 = 2.0 * C, 5.0 * D
     exp = np.exp
-    isfinite = math.isfinite
-    r, lo, hi = 0.0, 0.0, math.inf
+    inf = math.inf
+    r, lo, hi = 0.0, 0.0, inf
     for _ in range(_MAX_INNER):
         r2 = r * r
         r4 = r2 * r2
@@ -343,11 +343,11 @@ def _gas_root_one(consts: tuple, coef: tuple, t: float, p: float) -> tuple[float
                 lo = r
         elif hi == hi and (r != r or r < hi):
             hi = r
-        finite_hi = isfinite(hi)
+        finite_hi = -inf < hi < inf         # math.isfinite
         stuck = below and dp <= 0.0 and not finite_hi
         newton = r - (f / dp if dp != 0.0 else _div(f, dp))
         conv = dp > 0.0 and abs(newton - r) <= _RTOL * newton
-        if finite_hi and not conv and (not isfinite(newton) or newton < lo or newton > hi or dp <= 0.0):
+        if finite_hi and not conv and (not -inf < newton < inf or newton < lo or newton > hi or dp <= 0.0):
             new = 0.5 * (lo + hi)
         else:
             new = newton
@@ -752,7 +752,7 @@ def _newton_reduced_pressure_one(t: float, v: float, a: float, r0: float, p: flo
     C20, D50, C2r, D5r = 2.0 * C0, 5.0 * D0, 2.0 * Cr, 5.0 * Dr
     b = 1.0 - a
     exp = np.exp
-    isfinite = math.isfinite
+    inf = math.inf
     rr = r0
     for _ in range(_MAX_NEWTON):
         s2 = r0 * r0
@@ -775,7 +775,7 @@ def _newton_reduced_pressure_one(t: float, v: float, a: float, r0: float, p: flo
         r0_new = r0 + ((p_new - p0) / d0 if d0 else _div(p_new - p0, d0))
         rr_new = rr + ((p_new - pref) / dref if dref else _div(p_new - pref, dref))
         if not (d0 > 0.0 and dref > 0.0 and r0_new > 0.0 and rr_new > 0.0 and p_new > 0.0 and p_new <= p_max
-                and isfinite(r0_new) and isfinite(rr_new)):
+                and -inf < r0_new < inf and -inf < rr_new < inf):
             return None
         if (abs(p_new - p) <= _PTOL * p_new and abs(r0_new - r0) <= _RTOL * r0_new
                 and abs(rr_new - rr) <= _RTOL * rr_new):
