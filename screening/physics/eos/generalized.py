@@ -108,7 +108,7 @@ _MAX_INNER = 100
 _MAX_OUTER = 200
 _MAX_NEWTON = 30      # steps of the coupled Newton before the bracketed solve takes over
 _PR_SOLVE_MAX = 40.0   # [-] the pressure solve brackets P_r in (0, 40]; above 10 is reported invalid
-_SCALAR_MAX = 40       # gas roots of arrays of at most this many elements are solved element by element on floats
+_SCALAR_MAX = 40       # calls and gas roots of at most this many elements are solved element by element on floats
 _SCALAR_MAX_NEWTON = 8  # the same for the coupled pressure Newton (measured: beyond these, the array loop is cheaper)
 
 # Gunn, Chueh & Prausnitz (1966) constants of the quantum correction [g K/mol], as given in Reid,
@@ -295,16 +295,6 @@ def _div(a: float, b: float) -> float:
     return a / b
 
 
-def _max(a: float, b: float) -> float:
-    """np.maximum of two floats (NaN propagates)."""
-    return a if a != a else b if (b != b or b > a) else a
-
-
-def _min(a: float, b: float) -> float:
-    """np.minimum of two floats (NaN propagates)."""
-    return a if a != a else b if (b != b or b < a) else a
-
-
 def _scalar_consts(consts: tuple) -> tuple[float, ...]:
     """(beta, gamma, -gamma, 2 beta, 4 gamma - 2 gamma beta, 2 gamma gamma) of one LK fluid: the constant factors
     of :func:`_bwr`, computed as it computes them (bit for bit), for the float loops (numpy's exp of a float is
@@ -320,8 +310,8 @@ _SCALAR_CONSTS = {_SIMPLE: _SIMPLE_1, _REFERENCE: _REFERENCE_1}
 
 def _gas_root_one(consts: tuple, coef: tuple, t: float, p: float) -> tuple[float, bool, bool]:
     """One element of :func:`_gas_root`'s Newton, on floats: the same steps and tests, bit for bit (:func:`_bwr`,
-    :func:`_div`, :func:`_max` and :func:`_min` written out in the loop, the same operations in the same order).
-    Returns (rho, converged, no_root) before the branch check."""
+    :func:`_div` and the bracket's np.maximum / np.minimum, NaN propagating, written out in the loop, the same
+    operations in the same order). Returns (rho, converged, no_root) before the branch check."""
     beta, gamma, ngamma, beta2, k1, k2 = _SCALAR_CONSTS[consts]
     B, C, D, E = coef
     C2, D5 = 2.0 * C, 5.0 * D
