@@ -401,7 +401,8 @@ def _vapour_caps(tr: np.ndarray, omega: np.ndarray) -> list | None:
     sub = (tr < 1.0) & (tr >= _TR_LO)
     if not sub.any():
         return None
-    return np.where(sub, lee_kesler_vapour_pressure(np.where(sub, tr, 0.5), omega), np.inf).tolist()
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):     # as in _z_checked
+        return np.where(sub, lee_kesler_vapour_pressure(np.where(sub, tr, 0.5), omega), np.inf).tolist()
 
 
 def _z_few(tr: np.ndarray, pr: np.ndarray, omega: np.ndarray) -> tuple[list, list]:
