@@ -108,7 +108,7 @@ _MAX_INNER = 100
 _MAX_OUTER = 200
 _MAX_NEWTON = 30      # steps of the coupled Newton before the bracketed solve takes over
 _PR_SOLVE_MAX = 40.0   # [-] the pressure solve brackets P_r in (0, 40]; above 10 is reported invalid
-_SCALAR_MAX = 40       # gas roots of arrays of at most this many elements are solved element by element on floats
+_SCALAR_MAX = 40       # calls and gas roots of at most this many elements are solved element by element on floats
 _SCALAR_MAX_NEWTON = 8  # the same for the coupled pressure Newton (measured: beyond these, the array loop is cheaper)
 
 # Gunn, Chueh & Prausnitz (1966) constants of the quantum correction [g K/mol], as given in Reid,
@@ -130,7 +130,24 @@ def _as_float_array(x: object, name: str) -> np.ndarray:
     return a
 
 
+def _positive_finite(a: np.ndarray) -> bool:
+    """True if every element of the float array a is finite and positive (and it has one); NaN fails every
+    comparison."""
+    if a.size == 1:
+        return 0.0 < a.item() < math.inf
+    return a.size > 0 and 0.0 < a.min() and a.max() < math.inf
+
+
+def _finite(a: np.ndarray) -> bool:
+    """True if every element of the float array a is finite (and it has one)."""
+    if a.size == 1:
+        return -math.inf < a.item() < math.inf
+    return a.size > 0 and -math.inf < a.min() and a.max() < math.inf
+
+
 def _require_positive_finite(a: np.ndarray, name: str, unit: str) -> None:
+    if _positive_finite(a):
+        return
     bad = ~np.isfinite(a) | (a <= 0.0)
     if np.any(bad):
         first = a[bad].flat[0] if a.ndim else float(a)
@@ -139,6 +156,8 @@ def _require_positive_finite(a: np.ndarray, name: str, unit: str) -> None:
 
 
 def _require_finite(a: np.ndarray, name: str) -> None:
+    if _finite(a):
+        return
     bad = ~np.isfinite(a)
     if np.any(bad):
         first = a[bad].flat[0] if a.ndim else float(a)
@@ -146,19 +165,32 @@ def _require_finite(a: np.ndarray, name: str) -> None:
 
 
 def _state_arrays(first, first_name: str, first_unit: str, temperature, tc, pc, omega):
-    """Checked, broadcast float arrays of (first, T, Tc, Pc, omega): first and the temperatures and
-    critical constants must be positive and finite, omega finite. Raises InputError otherwise."""
+    """Checked float arrays of (first, T, Tc, Pc, omega) of one broadcast shape: first and the temperatures and
+    critical constants must be positive and finite, omega finite. Raises InputError otherwise. Arrays that
+    already have the broadcast shape are returned as they are (the functions here never write into them);
+    the others are broadcast into new arrays."""
     first = _as_float_array(first, first_name)
     t = _as_float_array(temperature, "temperature")
     tc = _as_float_array(tc, "critical temperature")
     pc = _as_float_array(pc, "critical pressure")
     omega = _as_float_array(omega, "acentric factor")
-    _require_positive_finite(first, first_name, first_unit)
-    _require_positive_finite(t, "temperature", "[K]")
-    _require_positive_finite(tc, "critical temperature", "[K]")
-    _require_positive_finite(pc, "critical pressure", "[Pa]")
-    _require_finite(omega, "acentric factor")
-    return tuple(np.array(x, dtype=float) for x in np.broadcast_arrays(first, t, tc, pc, omega))
+    # one test of the usual case (NaN fails every comparison, so it takes the detailed checks below)
+    if not (_positive_finite(first) and _positive_finite(t) and _positive_finite(tc) and _positive_finite(pc)
+            and _finite(omega)):
+        _require_positive_finite(first, first_name, first_unit)
+        _require_positive_finite(t, "temperature", "[K]")
+        _require_positive_finite(tc, "critical temperature", "[K]")
+        _require_positive_finite(pc, "critical pressure", "[Pa]")
+        _require_finite(omega, "acentric factor")
+    args = (first, t, tc, pc, omega)
+    shape = first.shape
+    if t.shape == shape and tc.shape == shape and pc.shape == shape and omega.shape == shape:
+        return args
+    shapes = {x.shape for x in args}
+    shapes.discard(())
+    shape = shapes.pop() if len(shapes) == 1 else np.broadcast_shapes(*(x.shape for x in args))
+    return tuple(x if x.shape == shape else np.full(shape, x) if x.ndim == 0
+                 else np.array(np.broadcast_to(x, shape), dtype=float) for x in args)
 
 
 def _fmt(x: float) -> str:
@@ -173,20 +205,14 @@ def _coefficients(consts: tuple, tr: np.ndarray):
     return (b1 - itr * (b2 + itr * (b3 + itr * b4)), c1 - c2 * itr + c3 * itr3, d1 + d2 * itr, c4 * itr3)
 
 
-def _exp1(x: float) -> float:
-    """exp of one float by numpy's exp (bit for bit what the array functions give; math.exp may differ in the
-    last digit), as a Python float."""
-    return float(np.exp(x))
-
-
-def _bwr(consts: tuple, coef: tuple, rho, exp=np.exp):
-    """Z of one LK fluid and dZ/d(rho) at reduced density rho = 1/V_r [-] (LK eq. 2); rho and coef arrays, or
-    floats with exp=_exp1 (the same arithmetic, bit for bit)."""
+def _bwr(consts: tuple, coef: tuple, rho):
+    """Z of one LK fluid and dZ/d(rho) at reduced density rho = 1/V_r [-] (LK eq. 2) of arrays rho and coef
+    (:func:`_bwr_one` on floats: the same arithmetic, bit for bit)."""
     beta, gamma = consts[10], consts[11]
     B, C, D, E = coef
     r2 = rho * rho
     r4 = r2 * r2
-    ex = E * exp(-gamma * r2)
+    ex = E * np.exp(-gamma * r2)
     z = 1.0 + rho * (B + rho * C + D * r4) + ex * r2 * (beta + gamma * r2)
     dz = B + rho * (2.0 * C + 5.0 * D * r2 * rho) + ex * rho * (
         2.0 * beta + r2 * (4.0 * gamma - 2.0 * gamma * beta) - 2.0 * gamma * gamma * r4)
@@ -269,35 +295,52 @@ def _div(a: float, b: float) -> float:
     return a / b
 
 
-def _max(a: float, b: float) -> float:
-    """np.maximum of two floats (NaN propagates)."""
-    return a if a != a else b if (b != b or b > a) else a
+def _scalar_consts(consts: tuple) -> tuple[float, ...]:
+    """(beta, gamma, -gamma, 2 beta, 4 gamma - 2 gamma beta, 2 gamma gamma) of one LK fluid: the constant factors
+    of :func:`_bwr`, computed as it computes them (bit for bit), for the float loops (numpy's exp of a float is
+    the exp of its arrays; math.exp may differ in the last digit)."""
+    beta, gamma = consts[10], consts[11]
+    return beta, gamma, -gamma, 2.0 * beta, 4.0 * gamma - 2.0 * gamma * beta, 2.0 * gamma * gamma
 
 
-def _min(a: float, b: float) -> float:
-    """np.minimum of two floats (NaN propagates)."""
-    return a if a != a else b if (b != b or b < a) else a
+_SIMPLE_1 = _scalar_consts(_SIMPLE)
+_REFERENCE_1 = _scalar_consts(_REFERENCE)
+_SCALAR_CONSTS = {_SIMPLE: _SIMPLE_1, _REFERENCE: _REFERENCE_1}
 
 
 def _gas_root_one(consts: tuple, coef: tuple, t: float, p: float) -> tuple[float, bool, bool]:
-    """One element of :func:`_gas_root`'s Newton, on floats: the same steps and tests, bit for bit.
-    Returns (rho, converged, no_root) before the branch check."""
-    r, lo, hi = 0.0, 0.0, math.inf
+    """One element of :func:`_gas_root`'s Newton, on floats: the same steps and tests, bit for bit (:func:`_bwr`,
+    :func:`_div` and the bracket's np.maximum / np.minimum, NaN propagating, written out in the loop, the same
+    operations in the same order). Returns (rho, converged, no_root) before the branch check."""
+    beta, gamma, ngamma, beta2, k1, k2 = _SCALAR_CONSTS[consts]
+    B, C, D, E = coef
+    C2, D5 = 2.0 * C, 5.0 * D
+    exp = np.exp
+    inf = math.inf
+    r, lo, hi = 0.0, 0.0, inf
     for _ in range(_MAX_INNER):
-        z, dz = _bwr(consts, coef, r, _exp1)
+        r2 = r * r
+        r4 = r2 * r2
+        # exp(-gamma 0) is 1 exactly whatever the exp
+        ex = E * float(exp(ngamma * r2)) if r2 != 0.0 else E
+        z = 1.0 + r * (B + r * C + D * r4) + ex * r2 * (beta + gamma * r2)
+        dz = B + r * (C2 + D5 * r2 * r) + ex * r * (beta2 + r2 * k1 - k2 * r4)
         f = t * r * z - p
         dp = t * (z + r * dz)
         below = f < 0.0
         if below:
-            lo = _max(lo, r)
-        else:
-            hi = _min(hi, r)
-        finite_hi = math.isfinite(hi)
+            if lo == lo and (r != r or r > lo):
+                lo = r
+        elif hi == hi and (r != r or r < hi):
+            hi = r
+        finite_hi = -inf < hi < inf         # math.isfinite
         stuck = below and dp <= 0.0 and not finite_hi
-        newton = r - _div(f, dp)
+        newton = r - (f / dp if dp != 0.0 else _div(f, dp))
         conv = dp > 0.0 and abs(newton - r) <= _RTOL * newton
-        bisect = finite_hi and (not math.isfinite(newton) or newton < lo or newton > hi or dp <= 0.0)
-        new = 0.5 * (lo + hi) if (bisect and not conv) else newton
+        if finite_hi and not conv and (not -inf < newton < inf or newton < lo or newton > hi or dp <= 0.0):
+            new = 0.5 * (lo + hi)
+        else:
+            new = newton
         conv = (conv or (finite_hi and (hi - lo) <= _RTOL * hi)) and not stuck
         if conv or stuck:
             return new, conv, stuck
@@ -305,24 +348,83 @@ def _gas_root_one(consts: tuple, coef: tuple, t: float, p: float) -> tuple[float
     return r, False, False
 
 
+def _bwr_one(consts1: tuple, coef: tuple, rho: float) -> tuple[float, float]:
+    """:func:`_bwr` of one float (consts1 from :func:`_scalar_consts`), bit for bit."""
+    beta, gamma, ngamma, beta2, k1, k2 = consts1
+    B, C, D, E = coef
+    r2 = rho * rho
+    r4 = r2 * r2
+    ex = E * float(np.exp(ngamma * r2)) if r2 != 0.0 else E
+    z = 1.0 + rho * (B + rho * C + D * r4) + ex * r2 * (beta + gamma * r2)
+    dz = B + rho * (2.0 * C + 5.0 * D * r2 * rho) + ex * rho * (beta2 + r2 * k1 - k2 * r4)
+    return z, dz
+
+
 def _gas_root_few(consts: tuple, trf: np.ndarray, prf: np.ndarray, active: np.ndarray, shape: tuple):
     """:func:`_gas_root` of a few elements, one by one on floats (numpy's cost per call dominates small arrays);
     the same arithmetic as the array loop, bit for bit."""
-    n = trf.size
-    rho, z, dp = np.zeros(n), np.empty(n), np.empty(n)
-    no_root = np.zeros(n, dtype=bool)
-    converged = np.zeros(n, dtype=bool)
-    for k, (t, p, on) in enumerate(zip(trf.tolist(), prf.tolist(), active.tolist())):
-        coef = _coefficients(consts, t)
+    consts1 = _SCALAR_CONSTS[consts]
+    b1, b2, b3, b4, c1, c2, c3, c4, d1, d2, _beta, _gamma = consts
+    rho, z, dp, no_root, converged = [], [], [], [], []
+    for t, p, on in zip(trf.tolist(), prf.tolist(), active.tolist()):
+        # _coefficients of one float
+        itr = 1.0 / t
+        itr3 = itr * itr * itr
+        coef = (b1 - itr * (b2 + itr * (b3 + itr * b4)), c1 - c2 * itr + c3 * itr3, d1 + d2 * itr, c4 * itr3)
         r, conv, stuck = _gas_root_one(consts, coef, t, p) if on else (0.0, False, False)
-        zk, dzk = _bwr(consts, coef, r, _exp1)
+        zk, dzk = _bwr_one(consts1, coef, r)
         dpk = t * (zk + r * dzk)
         # a converged point on an unstable (dP/drho <= 0) branch is not a gas root
         if conv and dpk <= 0.0:
             conv, stuck = False, True
-        rho[k], z[k], dp[k], no_root[k], converged[k] = r, zk, dpk, stuck, conv
-    return (rho.reshape(shape), z.reshape(shape), dp.reshape(shape), no_root.reshape(shape),
-            converged.reshape(shape))
+        rho.append(r)
+        z.append(zk)
+        dp.append(dpk)
+        no_root.append(stuck)
+        converged.append(conv)
+    return (np.array(rho).reshape(shape), np.array(z).reshape(shape), np.array(dp).reshape(shape),
+            np.array(no_root, dtype=bool).reshape(shape), np.array(converged, dtype=bool).reshape(shape))
+
+
+def _root_one(consts: tuple, coef: tuple, t: float, p: float) -> tuple[float, float, bool, bool]:
+    """One element of :func:`_gas_root_few` (active): (rho, Z, no_root, converged), the same numbers bit for bit."""
+    r, conv, stuck = _gas_root_one(consts, coef, t, p)
+    z, dz = _bwr_one(_SCALAR_CONSTS[consts], coef, r)
+    if conv and t * (z + r * dz) <= 0.0:
+        return r, z, True, False
+    return r, z, stuck, conv
+
+
+def _vapour_caps(tr: np.ndarray, omega: np.ndarray) -> list | None:
+    """LK vapour pressures where 0.3 <= T_r < 1 (inf elsewhere) as :func:`_flag_gas_state` computes them, as
+    floats; None where no element is there."""
+    sub = (tr < 1.0) & (tr >= _TR_LO)
+    if not sub.any():
+        return None
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):     # as in _z_checked
+        return np.where(sub, lee_kesler_vapour_pressure(np.where(sub, tr, 0.5), omega), np.inf).tolist()
+
+
+def _z_few(tr: np.ndarray, pr: np.ndarray, omega: np.ndarray) -> tuple[list, list]:
+    """Z of :func:`_z_checked` for a few elements (1-d, P_r positive), element by element on floats (the same
+    numbers, bit for bit), and the indices of the elements that are not valid (Z NaN there): the caller solves
+    those by the array path, which says why (a state's numbers do not depend on the others in its call)."""
+    trl, prl = tr.tolist(), pr.tolist()
+    psat = _vapour_caps(tr, omega)
+    out, failed = [], []
+    for k, (t, p, a) in enumerate(zip(trl, prl, (omega / OMEGA_REFERENCE).tolist())):
+        if not (_TR_LO <= t <= _TR_HI and p <= _PR_HI) or (psat is not None and p > psat[k]):
+            out.append(math.nan)
+            failed.append(k)
+            continue
+        r0, z0, nr0, c0 = _root_one(_SIMPLE, _coefficients(_SIMPLE, t), t, p)
+        rr, zr, nrr, cr = _root_one(_REFERENCE, _coefficients(_REFERENCE, t), t, p)
+        if nr0 or nrr or not (c0 and cr):
+            out.append(math.nan)
+            failed.append(k)
+            continue
+        out.append(z0 + a * (zr - z0))
+    return out, failed
 
 
 def lee_kesler_vapour_pressure(tr, omega) -> np.ndarray:
@@ -509,7 +611,16 @@ def lee_kesler_density(pressure, temperature, tc, pc, omega) -> GeneralizedState
     p, t, tc, pc, omega = _state_arrays(pressure, "pressure", "[Pa] (absolute)", temperature, tc, pc, omega)
     tr = t / tc
     pr = p / pc
-    z, valid, reason = _z_checked(tr, pr, omega)
+    if tr.ndim == 1 and 0 < tr.size <= _SCALAR_MAX:
+        # element by element; reasons built only for the elements that are not valid
+        zl, failed = _z_few(tr, pr, omega)
+        z = np.array(zl)
+        reason = np.full(tr.shape, "", dtype=object)
+        valid = reason == ""
+        if failed:
+            z[failed], valid[failed], reason[failed] = _z_checked(tr[failed], pr[failed], omega[failed])
+    else:
+        z, valid, reason = _z_checked(tr, pr, omega)
     rho = np.where(valid, p / (z * R * t), np.nan)
     return GeneralizedState(
         pressure=np.where(valid, p, np.nan), molar_density=rho, z=z,
@@ -525,7 +636,17 @@ def lee_kesler_density_valid(pressure, temperature, tc, pc, omega) -> tuple[np.n
     (True, True)
     """
     p, t, tc, pc, omega = _state_arrays(pressure, "pressure", "[Pa] (absolute)", temperature, tc, pc, omega)
-    z, valid = _z_valid(t / tc, p / pc, omega)
+    tr = t / tc
+    pr = p / pc
+    if tr.ndim == 1 and 0 < tr.size <= _SCALAR_MAX:
+        zl, failed = _z_few(tr, pr, omega)
+        if not failed:
+            return p / (np.array(zl) * R * t), np.ones(tr.shape, dtype=bool)
+        z = np.array(zl)
+        valid = np.ones(tr.shape, dtype=bool)
+        z[failed], valid[failed] = _z_valid(tr[failed], pr[failed], omega[failed])
+    else:
+        z, valid = _z_valid(tr, pr, omega)
     return np.where(valid, p / (z * R * t), np.nan), valid
 
 
@@ -612,26 +733,91 @@ def _newton_reduced_pressure(tr, vf, omega, active):
 
 def _newton_reduced_pressure_one(t: float, v: float, a: float, r0: float, p: float, p_max: float, c0: tuple,
                                  cr: tuple) -> tuple[float, float, float] | None:
-    """One element of :func:`_newton_reduced_pressure`'s loop, on floats: the same steps and tests, bit for bit.
+    """One element of :func:`_newton_reduced_pressure`'s loop, on floats: the same steps and tests, bit for bit
+    (:func:`_bwr_one` and :func:`_div` written out, the same operations in the same order).
     Returns (P_r, V_0, V_ref), or None where it does not converge."""
+    beta0, gamma0, ngamma0, beta20, k10, k20 = _SIMPLE_1
+    betar, gammar, ngammar, beta2r, k1r, k2r = _REFERENCE_1
+    B0, C0, D0, E0 = c0
+    Br, Cr, Dr, Er = cr
+    C20, D50, C2r, D5r = 2.0 * C0, 5.0 * D0, 2.0 * Cr, 5.0 * Dr
+    b = 1.0 - a
+    exp = np.exp
+    inf = math.inf
     rr = r0
     for _ in range(_MAX_NEWTON):
-        z0, dz0 = _bwr(_SIMPLE, c0, r0, _exp1)
-        zr, dzr = _bwr(_REFERENCE, cr, rr, _exp1)
+        s2 = r0 * r0
+        s4 = s2 * s2
+        ex = E0 * float(exp(ngamma0 * s2)) if s2 != 0.0 else E0
+        z0 = 1.0 + r0 * (B0 + r0 * C0 + D0 * s4) + ex * s2 * (beta0 + gamma0 * s2)
+        dz0 = B0 + r0 * (C20 + D50 * s2 * r0) + ex * r0 * (beta20 + s2 * k10 - k20 * s4)
+        s2 = rr * rr
+        s4 = s2 * s2
+        ex = Er * float(exp(ngammar * s2)) if s2 != 0.0 else Er
+        zr = 1.0 + rr * (Br + rr * Cr + Dr * s4) + ex * s2 * (betar + gammar * s2)
+        dzr = Br + rr * (C2r + D5r * s2 * rr) + ex * rr * (beta2r + s2 * k1r - k2r * s4)
         p0, pref = t * r0 * z0, t * rr * zr
         d0, dref = t * (z0 + r0 * dz0), t * (zr + rr * dzr)
-        w0, wref = _div(1.0 - a, d0 * r0 * r0), _div(a, dref * rr * rr)
-        p_new = _div(_div(1.0 - a, r0) + _div(a, rr) - v + w0 * p0 + wref * pref, w0 + wref)
-        r0_new = r0 + _div(p_new - p0, d0)
-        rr_new = rr + _div(p_new - pref, dref)
+        x, y = d0 * r0 * r0, dref * rr * rr
+        w0 = b / x if x else _div(b, x)
+        wref = a / y if y else _div(a, y)
+        x, y = w0 + wref, (b / r0 if r0 else _div(b, r0)) + (a / rr if rr else _div(a, rr)) - v + w0 * p0 + wref * pref
+        p_new = y / x if x else _div(y, x)
+        r0_new = r0 + ((p_new - p0) / d0 if d0 else _div(p_new - p0, d0))
+        rr_new = rr + ((p_new - pref) / dref if dref else _div(p_new - pref, dref))
         if not (d0 > 0.0 and dref > 0.0 and r0_new > 0.0 and rr_new > 0.0 and p_new > 0.0 and p_new <= p_max
-                and math.isfinite(r0_new) and math.isfinite(rr_new)):
+                and -inf < r0_new < inf and -inf < rr_new < inf):
             return None
         if (abs(p_new - p) <= _PTOL * p_new and abs(r0_new - r0) <= _RTOL * r0_new
                 and abs(rr_new - rr) <= _RTOL * rr_new):
             return p_new, _div(1.0, r0_new), _div(1.0, rr_new)
         r0, rr, p = r0_new, rr_new, p_new
     return None
+
+
+def _pressure_few(tr: np.ndarray, vf: np.ndarray, omega: np.ndarray) -> tuple[list, list, list, tuple]:
+    """(P_r, Z) of :func:`lee_kesler_pressure` for a few elements (1-d), element by element on floats: the same
+    steps and tests as the array path (range, :func:`_newton_reduced_pressure`, the check by the cold-started gas
+    roots, the volume and vapour-pressure tests), bit for bit, for the elements that are valid and whose coupled
+    Newton settles on the gas branch; and the indices of the others (NaN there), which the caller solves by the
+    array path (bracketed solve, reasons; a state's numbers do not depend on the others in its call), with what
+    the coupled Newton gave them: arrays (P_r, V_0, V_ref, settled) as :func:`_newton_reduced_pressure` returns
+    them (the array path need not run it again)."""
+    a = omega / OMEGA_REFERENCE
+    if (tr < 1.0).any():
+        t_in = np.where(tr < _TR_LO, 0.5, tr)       # only the elements in the range are used
+        p_max = np.where(t_in < 1.0, np.minimum(lee_kesler_vapour_pressure(np.minimum(t_in, 1.0), a * OMEGA_REFERENCE),
+                                                _PR_HI), _PR_HI).tolist()
+        psat = _vapour_caps(tr, omega)
+    else:
+        p_max, psat = [_PR_HI] * tr.size, None
+    prs, zs, failed, newton = [], [], [], []
+    for k, (t, v, ak) in enumerate(zip(tr.tolist(), vf.tolist(), a.tolist())):
+        ok = _TR_LO <= t <= _TR_HI
+        got = None
+        if ok:
+            c0, cr = _coefficients(_SIMPLE, t), _coefficients(_REFERENCE, t)
+            r0 = _div(1.0, v)
+            got = _newton_reduced_pressure_one(t, v, ak, r0, t * r0, p_max[k], c0, cr)
+            ok = got is not None and got[0] <= _PR_HI and (psat is None or not got[0] > psat[k])
+        if ok:
+            pr, fast_v0, fast_vr = got
+            rho0, z0, nr0, cv0 = _root_one(_SIMPLE, c0, t, pr)
+            rhor, zr, nrr, cvr = _root_one(_REFERENCE, cr, t, pr)
+            ok = not (nr0 or nrr) and cv0 and cvr
+            if ok:
+                v0, vr = _div(1.0, rho0), _div(1.0, rhor)
+                ok = (abs(v0 - fast_v0) <= 1e-9 * fast_v0 and abs(vr - fast_vr) <= 1e-9 * fast_vr
+                      and abs((1.0 - ak) * v0 + ak * vr - v) <= 1e-9 * v)
+        if ok:
+            prs.append(pr)
+            zs.append(z0 + ak * (zr - z0))
+        else:
+            prs.append(math.nan)
+            zs.append(math.nan)
+            failed.append(k)
+            newton.append((*got, True) if got is not None else (math.nan, math.nan, math.nan, False))
+    return prs, zs, failed, (tuple(np.array(x) for x in zip(*newton)) if newton else ())
 
 
 def _solve_reduced_pressure(tr, vf, omega, active):
@@ -706,12 +892,32 @@ def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> Generalize
     rho, t, tc, pc, omega = _state_arrays(molar_density, "molar density", "[mol/m3]", temperature, tc, pc, omega)
     tr = t / tc
     vf = pc / (rho * R * tc)          # reduced ideal volume of the gas [-]
+    if not (tr.ndim == 1 and 0 < tr.size <= _SCALAR_MAX):
+        return _pressure_arrays(rho, t, pc, omega, tr, vf)
+    # element by element; the array path (and its reasons) only for the elements that need it
+    prs, zs, failed, newton = _pressure_few(tr, vf, omega)
+    pr_final, z = np.array(prs), np.array(zs)
+    p, rho = pr_final * pc, rho.copy()
+    reason = np.full(tr.shape, "", dtype=object)
+    valid = reason == ""
+    if failed:
+        sub = _pressure_arrays(rho[failed], t[failed], pc[failed], omega[failed], tr[failed], vf[failed], newton)
+        p[failed], rho[failed], z[failed], pr_final[failed] = (sub.pressure, sub.molar_density, sub.z,
+                                                               sub.reduced_pressure)
+        valid[failed], reason[failed] = sub.valid, sub.reason
+    return GeneralizedState(pressure=p, molar_density=rho, z=z, reduced_temperature=tr, reduced_pressure=pr_final,
+                            valid=valid, reason=reason)
+
+
+def _pressure_arrays(rho, t, pc, omega, tr, vf, newton: tuple | None = None) -> GeneralizedState:
+    """:func:`lee_kesler_pressure` on arrays of one shape (already checked), with T_r and the reduced ideal
+    volume V_r given; `newton`: what :func:`_newton_reduced_pressure` gives for them, if already known."""
     outside = _range_reasons(tr, None)
     active = outside == ""
 
     # The coupled Newton first; where it does not settle, or settles off the gas branch (its roots
     # differ from the cold-started gas roots of the check below), the bracketed solve decides.
-    fast_pr, fast_v0, fast_vr, fast = _newton_reduced_pressure(tr, vf, omega, active)
+    fast_pr, fast_v0, fast_vr, fast = newton or _newton_reduced_pressure(tr, vf, omega, active)
     pr, converged, above_cap = _solve_reduced_pressure(tr, vf, omega, active & ~fast)
     pr = np.where(fast, fast_pr, pr)
     converged = converged | fast
@@ -964,6 +1170,23 @@ def srk_quantum_density(pressure, temperature, tc_classical, pc_classical, molar
     c1 = A - B - B * B
     c0 = -A * B
     z = 1.0 + np.maximum(1.0, np.maximum(np.abs(c1), np.abs(c0))) + 1.0
+    if z.ndim == 1 and z.size <= _SCALAR_MAX_NEWTON:
+        z, converged = _srk_newton_few(z, c1, c0)
+    else:
+        z, converged = _srk_newton(z, c1, c0)
+    reason = _srk_domain(t, p)
+    _set_reasons(reason, ~converged, lambda i: "the quantum-gas model's root did not converge")
+    valid = reason == ""
+    rho = p / (z * R * t)
+    return GeneralizedState(
+        pressure=np.where(valid, p, np.nan), molar_density=np.where(valid, rho, np.nan),
+        z=np.where(valid, z, np.nan), reduced_temperature=t / tc, reduced_pressure=p / pc, valid=valid,
+        reason=reason)
+
+
+def _srk_newton(z: np.ndarray, c1: np.ndarray, c0: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Newton steps on the SRK cubic from z until every element's step is below 1e-14 relative (all elements
+    step together). Returns (z, converged)."""
     converged = np.zeros(z.shape, dtype=bool)
     for _ in range(_SRK_MAX_NEWTON):
         f = ((z - 1.0) * z + c1) * z + c0
@@ -973,11 +1196,24 @@ def srk_quantum_density(pressure, temperature, tc_classical, pc_classical, molar
         converged = np.abs(step) <= 1e-14 * z
         if np.all(converged):
             break
-    reason = _srk_domain(t, p)
-    _set_reasons(reason, ~converged, lambda i: "the quantum-gas model's root did not converge")
-    valid = reason == ""
-    rho = p / (z * R * t)
-    return GeneralizedState(
-        pressure=np.where(valid, p, np.nan), molar_density=np.where(valid, rho, np.nan),
-        z=np.where(valid, z, np.nan), reduced_temperature=t / tc, reduced_pressure=p / pc, valid=valid,
-        reason=reason)
+    return z, converged
+
+
+def _srk_newton_few(z: np.ndarray, c1: np.ndarray, c0: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """:func:`_srk_newton` of a few elements (1-d) on floats, the same steps in the same lockstep (every element
+    steps until all have converged), bit for bit."""
+    zl, c1l, c0l = z.tolist(), c1.tolist(), c0.tolist()
+    conv = [False] * len(zl)
+    for _ in range(_SRK_MAX_NEWTON):
+        done = True
+        for k, (zk, c1k, c0k) in enumerate(zip(zl, c1l, c0l)):
+            f = ((zk - 1.0) * zk + c1k) * zk + c0k
+            d = (3.0 * zk - 2.0) * zk + c1k
+            step = _div(f, d)
+            zk = zk - step
+            zl[k] = zk
+            conv[k] = c = abs(step) <= 1e-14 * zk
+            done = done and c
+        if done:
+            break
+    return np.array(zl), np.array(conv, dtype=bool)
