@@ -61,3 +61,39 @@ def result_differences(a, b, rtol: float, rtol_limits: float, path: str = "", li
         return [f"{path}: {a!r} against {b!r}"]
     return [] if a == b else [f"{path}: {a!r} against {b!r}"]
 
+
+#: A defaults file for registers: input tolerances and two scenarios (the listed exposure and a closed van).
+TOLERANCES_AND_SCENARIOS = """[tolerance]
+fill_pressure = "2 bar"
+fill_temperature = "2 K"
+gas_temperature = "3 K"
+
+[[scenario]]
+name = "as listed"
+
+[[scenario]]
+name = "closed van"
+gas_temperature = "65 degC"
+"""
+
+
+def batch_on_one_and_two_workers(tmp_path, monkeypatch, lines: list[str], defaults_text: str) -> dict[str, list[bytes]]:
+    """The CSV and JSON bytes of `screening batch` on the register `lines` with the defaults `defaults_text`, chunks
+    of 7 rows, run with one worker and with two: {"1": [csv, json], "2": [csv, json]}."""
+    from screening import batch, parallel
+    from screening.cli import run
+
+    inv = tmp_path / "inv.csv"
+    inv.write_text("".join(lines), encoding="utf-8")
+    defaults = tmp_path / "defaults.toml"
+    defaults.write_text(defaults_text, encoding="utf-8")
+    monkeypatch.setattr(batch, "CHUNK_ROWS", 7)
+    outs = {}
+    for n in ("1", "2"):
+        monkeypatch.setenv(parallel.WORKERS_ENV, n)
+        monkeypatch.setattr(parallel, "workers", lambda n=n: int(n))
+        names = [tmp_path / f"o{n}.{ext}" for ext in ("csv", "json")]
+        run(["batch", str(inv), "--defaults", str(defaults), "--csv", str(names[0]), "--json", str(names[1]),
+             "--quiet"])
+        outs[n] = [p.read_bytes() for p in names]
+    return outs

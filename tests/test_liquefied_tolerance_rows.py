@@ -12,7 +12,7 @@ import random
 
 import CoolProp.CoolProp as CP
 import pytest
-from helpers import result_differences
+from helpers import TOLERANCES_AND_SCENARIOS, batch_on_one_and_two_workers, result_differences
 
 from screening import engine, screen
 from screening.inputs.case import parse_case_text
@@ -100,24 +100,9 @@ def test_a_propane_cylinder_with_a_gas_temperature_tolerance_matches_coolprop():
 
 
 HEAD = "id,gas,water_capacity,rated_pressure,fill_mass,fill_temperature,ambient_max,solar\n"
-DEFAULTS = """[tolerance]
-fill_pressure = "2 bar"
-fill_temperature = "2 K"
-gas_temperature = "3 K"
-
-[[scenario]]
-name = "as listed"
-
-[[scenario]]
-name = "closed van"
-gas_temperature = "65 degC"
-"""
 
 
 def test_batch_by_mass_with_tolerances_is_the_same_whatever_the_number_of_workers(tmp_path, monkeypatch):
-    from screening import batch, parallel
-    from screening.cli import run
-
     rnd = random.Random(11)
     lines = [HEAD]
     for i in range(40):
@@ -127,19 +112,7 @@ def test_batch_by_mass_with_tolerances_is_the_same_whatever_the_number_of_worker
         lines.append(f"R{i},{gas},{cap:.2f} L,{rnd.uniform(rlo, rhi):.1f} bar(g),{cap * rnd.uniform(lo, hi):.3f} kg,"
                      f"{rnd.uniform(-20, 40):.1f} degC,{rnd.uniform(-40, 60):.1f} degC,"
                      f"{'sun' if rnd.random() < 0.2 else ''}\n")
-    inv = tmp_path / "inv.csv"
-    inv.write_text("".join(lines), encoding="utf-8")
-    defaults = tmp_path / "defaults.toml"
-    defaults.write_text(DEFAULTS, encoding="utf-8")
-    monkeypatch.setattr(batch, "CHUNK_ROWS", 7)
-    outs = {}
-    for n in ("1", "2"):
-        monkeypatch.setenv(parallel.WORKERS_ENV, n)
-        monkeypatch.setattr(parallel, "workers", lambda n=n: int(n))
-        names = [tmp_path / f"o{n}.{ext}" for ext in ("csv", "json")]
-        run(["batch", str(inv), "--defaults", str(defaults), "--csv", str(names[0]), "--json", str(names[1]),
-             "--quiet"])
-        outs[n] = [p.read_bytes() for p in names]
+    outs = batch_on_one_and_two_workers(tmp_path, monkeypatch, lines, TOLERANCES_AND_SCENARIOS)
     assert outs["1"] == outs["2"]
     assert outs["1"][1].count(b"closed van") >= 40
     assert outs["1"][1].count(b'"bounding_peak_pressure_pa"') >= 40

@@ -5,7 +5,7 @@ import random
 
 import CoolProp.CoolProp as CP
 import pytest
-from helpers import result_differences
+from helpers import TOLERANCES_AND_SCENARIOS, batch_on_one_and_two_workers, result_differences
 
 from screening import engine
 from screening.inputs.case import parse_case_data
@@ -118,24 +118,9 @@ def test_tolerance_block_on_the_array_path_matches_coolprop_at_its_states():
 
 
 HEAD = "id,gas,water_capacity,rated_pressure,fill_pressure,fill_temperature,ambient_max,solar\n"
-DEFAULTS = """[tolerance]
-fill_pressure = "2 bar"
-fill_temperature = "2 K"
-gas_temperature = "3 K"
-
-[[scenario]]
-name = "as listed"
-
-[[scenario]]
-name = "closed van"
-gas_temperature = "65 degC"
-"""
 
 
 def test_batch_with_tolerances_and_scenarios_is_the_same_whatever_the_number_of_workers(tmp_path, monkeypatch):
-    from screening import batch, parallel
-    from screening.cli import run
-
     rnd = random.Random(7)
     lines = [HEAD]
     for i in range(40):
@@ -144,18 +129,6 @@ def test_batch_with_tolerances_and_scenarios_is_the_same_whatever_the_number_of_
         lines.append(f"R{i},{gas},50 L,{rated:.1f} bar(g),{rated * rnd.uniform(0.1, 1.0):.1f} bar(g),"
                      f"{rnd.uniform(-20, 40):.1f} degC,{rnd.uniform(-40, 85):.1f} degC,"
                      f"{'sun' if rnd.random() < 0.2 else ''}\n")
-    inv = tmp_path / "inv.csv"
-    inv.write_text("".join(lines), encoding="utf-8")
-    defaults = tmp_path / "defaults.toml"
-    defaults.write_text(DEFAULTS, encoding="utf-8")
-    monkeypatch.setattr(batch, "CHUNK_ROWS", 7)
-    outs = {}
-    for n in ("1", "2"):
-        monkeypatch.setenv(parallel.WORKERS_ENV, n)
-        monkeypatch.setattr(parallel, "workers", lambda n=n: int(n))
-        names = [tmp_path / f"o{n}.{ext}" for ext in ("csv", "json")]
-        run(["batch", str(inv), "--defaults", str(defaults), "--csv", str(names[0]), "--json", str(names[1]),
-             "--quiet"])
-        outs[n] = [p.read_bytes() for p in names]
+    outs = batch_on_one_and_two_workers(tmp_path, monkeypatch, lines, TOLERANCES_AND_SCENARIOS)
     assert outs["1"] == outs["2"]
     assert outs["1"][1].count(b"closed van") >= 40
