@@ -52,7 +52,7 @@ def _dump(value: Any) -> Any:
 def _tuple(value: Any) -> Any:
     """Lists (nested) as tuples; None stays None."""
     if isinstance(value, list):
-        return tuple(_tuple(v) for v in value)
+        return tuple([_tuple(v) if isinstance(v, list) else v for v in value])   # leaves without a call each
     return value
 
 

@@ -104,7 +104,8 @@ class Model:
         """The isochore at many temperatures; None where the model does not apply."""
         whole = self.isochore_array if self.isochore_array is not None else self.isochore_points
         if whole is not None:
-            return [float(v) if math.isfinite(v) else None for v in whole(temperatures)]
+            # Python floats from one tolist (the same values as float() of each numpy scalar)
+            return [v if math.isfinite(v) else None for v in np.asarray(whole(temperatures), dtype=float).tolist()]
         values: list[float | None] = []
         for t in temperatures:
             try:
@@ -320,7 +321,7 @@ def _lk_isochores_joined(models: list[Model], grid: np.ndarray) -> dict[int, lis
     rho = np.repeat(np.array([r for _k, (_a, r) in joined], dtype=float), n)
     state = lee_kesler_pressure(rho, ts, *_constants_at(joined[0][1][0], ts))
     values = np.where(state.valid, state.pressure, np.nan)
-    return {k: [float(v) if math.isfinite(v) else None for v in values[j * n:(j + 1) * n]]
+    return {k: [v if math.isfinite(v) else None for v in values[j * n:(j + 1) * n].tolist()]
             for j, (k, _lk) in enumerate(joined)}
 
 
