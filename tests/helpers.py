@@ -77,23 +77,27 @@ gas_temperature = "65 degC"
 """
 
 
-def batch_on_one_and_two_workers(tmp_path, monkeypatch, lines: list[str], defaults_text: str) -> dict[str, list[bytes]]:
-    """The CSV and JSON bytes of `screening batch` on the register `lines` with the defaults `defaults_text`, chunks
-    of 7 rows, run with one worker and with two: {"1": [csv, json], "2": [csv, json]}."""
+def batch_on_one_and_two_workers(tmp_path, monkeypatch, lines: list[str], defaults_text: str | None = None,
+                                 chunk_rows: int = 7) -> dict[str, list[bytes]]:
+    """The CSV and JSON bytes of `screening batch` on the register `lines` (each ending with its newline), with the
+    defaults `defaults_text` where given, in chunks of `chunk_rows` rows, run with one worker and with two:
+    {"1": [csv, json], "2": [csv, json]}."""
     from screening import batch, parallel
     from screening.cli import run
 
     inv = tmp_path / "inv.csv"
     inv.write_text("".join(lines), encoding="utf-8")
-    defaults = tmp_path / "defaults.toml"
-    defaults.write_text(defaults_text, encoding="utf-8")
-    monkeypatch.setattr(batch, "CHUNK_ROWS", 7)
+    extra = []
+    if defaults_text is not None:
+        defaults = tmp_path / "defaults.toml"
+        defaults.write_text(defaults_text, encoding="utf-8")
+        extra = ["--defaults", str(defaults)]
+    monkeypatch.setattr(batch, "CHUNK_ROWS", chunk_rows)
     outs = {}
     for n in ("1", "2"):
         monkeypatch.setenv(parallel.WORKERS_ENV, n)
         monkeypatch.setattr(parallel, "workers", lambda n=n: int(n))
         names = [tmp_path / f"o{n}.{ext}" for ext in ("csv", "json")]
-        run(["batch", str(inv), "--defaults", str(defaults), "--csv", str(names[0]), "--json", str(names[1]),
-             "--quiet"])
+        run(["batch", str(inv), *extra, "--csv", str(names[0]), "--json", str(names[1]), "--quiet"])
         outs[n] = [p.read_bytes() for p in names]
     return outs

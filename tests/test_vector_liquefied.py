@@ -6,9 +6,9 @@ import random
 import CoolProp.CoolProp as CP
 import numpy as np
 import pytest
+from helpers import batch_on_one_and_two_workers
 
 from screening import engine
-from screening.cli import run
 from screening.inputs.case import parse_case_data
 from screening.result import Result
 from screening.screen import P_TOL, screen_states
@@ -123,8 +123,6 @@ def test_liquid_fill_by_pressure_near_saturation_is_refused_on_the_array_path_as
 
 
 def test_liquefied_batch_outputs_are_the_same_whatever_the_number_of_workers(tmp_path, monkeypatch):
-    from screening import batch, parallel
-
     rnd = random.Random(5)
     lines = ["id,gas,water_capacity [L],rated_pressure [bar(g)],fill_pressure [bar(g)],fill_mass [kg],"
              "fill_temperature [degC],ambient_max [degC]"]
@@ -137,16 +135,7 @@ def test_liquefied_batch_outputs_are_the_same_whatever_the_number_of_workers(tmp
         else:
             lines.append(f"R{i},{gas},40,{rnd.uniform(lo, hi):.1f},,{40 * rnd.uniform(0.05, 0.5):.2f},{t:.1f},"
                          f"{rnd.uniform(20, 70):.1f}")
-    inv = tmp_path / "inv.csv"
-    inv.write_text("\n".join(lines) + "\n", encoding="utf-8")
-    monkeypatch.setattr(batch, "CHUNK_ROWS", 10)
-    outs = {}
-    for n in ("1", "2"):
-        monkeypatch.setenv(parallel.WORKERS_ENV, n)
-        monkeypatch.setattr(parallel, "workers", lambda n=n: int(n))
-        names = [tmp_path / f"o{n}.{ext}" for ext in ("csv", "json")]
-        run(["batch", str(inv), "--csv", str(names[0]), "--json", str(names[1]), "--quiet"])
-        outs[n] = [p.read_bytes() for p in names]
+    outs = batch_on_one_and_two_workers(tmp_path, monkeypatch, [line + "\n" for line in lines], chunk_rows=10)
     assert outs["1"] == outs["2"]
     assert len(json.loads(outs["1"][1])["results"]) == 40
 
