@@ -2904,10 +2904,7 @@ def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, a
         fs = _screen.FillState(liquid_full_temperature=_opt(cols["liquid_full"][k]),
                                dp_dt_after_liquid_full=_opt(cols["dpdt_liquid_full"][k]))
         liquid_full = _screen.liquid_full_text(fs, float(cols["t_peak"][k]))
-    if liquid_full_more:
-        found = [liquid_full] if liquid_full is not None else []
-        found += [r for r in liquid_full_more if r not in found]
-        liquid_full = " ".join(found) or None
+    liquid_full = _screen.liquid_full_reason(liquid_full, liquid_full_more)
     ratio_reason = _screen.filling_ratio_reason(float(cols["rho_fill_mass"][k]), max_ratio)
     verdict, reasons, margin, relief_margin = _screen.decide(
         peak=peak, rated=rated, relief=relief, atm=atm, required_margin=required_margin, any_real_model=True,

@@ -10,7 +10,7 @@ import functools
 import math
 import threading
 from dataclasses import dataclass, field, replace
-from typing import Callable
+from typing import Callable, Iterable
 
 import numpy as np
 
@@ -898,6 +898,14 @@ def governing_text(governing: str | None, others: list[str]) -> str:
             "comparison only and governs nothing.")
 
 
+def liquid_full_reason(own: str | None, corners: Iterable[str] = ()) -> str | None:
+    """The liquid-full reason of a vessel: its own finding at the worst case (None: none), then each finding at a
+    corner of the input tolerances not given already, in one text; None where there is none."""
+    found = [own] if own is not None else []
+    found += [r for r in corners if r not in found]
+    return " ".join(found) or None
+
+
 def liquid_full_text(fs: FillState, t_peak: float, corner: bool = False) -> str:
     """The reason where the vessel is liquid-full, or a dense liquid-like fluid, at the worst case."""
     rise = fs.dp_dt_after_liquid_full
@@ -1184,8 +1192,9 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
         reasons_na = "; ".join(f"{', '.join(names)}: {note}" for note, names in notes.items())
         out_of_scope = f"No real-gas model applies to this vessel ({reasons_na}), so it cannot be screened."
 
-    liquid_full = [liquid_full_text(fs, t_peak)] if _liquid_full_applies(fs, _molar(case, fs), t_fill, t_peak, case.gas) \
-        else []
+    liquid_full = liquid_full_text(fs, t_peak) if _liquid_full_applies(fs, _molar(case, fs), t_fill, t_peak, case.gas) \
+        else None
+    corners_liquid_full: list[str] = []
     ratio_reason = filling_ratio_reason(fs.rho_mass, case.max_filling_ratio_kg_m3)
 
     tolerance = _tolerance(case, t_fill, t_peak, models) if (case.tolerance and governing) else None
@@ -1197,12 +1206,11 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
                 "with these tolerances.")
         else:
             peak = max(peak, tolerance["bounding_peak_pressure_pa"])
-        liquid_full += [r for r in corner_findings["liquid_full"] if r not in liquid_full]
-    liquid_full_reason = " ".join(liquid_full) or None
+        corners_liquid_full = corner_findings["liquid_full"]
     verdict, reasons, margin, relief_margin = decide(
         peak=peak, rated=case.rated_pressure_pa, relief=case.relief_set_pressure_pa, atm=atm,
         required_margin=case.required_margin, any_real_model=bool(real), out_of_scope_reason=out_of_scope,
-        liquid_full_reason=liquid_full_reason, filling_ratio_reason=ratio_reason)
+        liquid_full_reason=liquid_full_reason(liquid_full, corners_liquid_full), filling_ratio_reason=ratio_reason)
 
     limits = _limits(case, models, t_fill, t_peak) if real else {
         "max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,
