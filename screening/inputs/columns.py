@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import hashlib
 import math
+import re
 from dataclasses import dataclass
 from itertools import chain
 
@@ -33,7 +34,14 @@ from screening.inputs.case import ATMOSPHERIC_PRESSURE_RANGE_PA, DEFAULT_REQUIRE
 from screening.inputs.gas_spec import parse_gas
 from screening.inputs.inventory import Inventory, Unreadable, cell_value, default_text, row_case
 from screening.physics.gases import Mixture
-from screening.units import parse, si_many, standard_atmosphere_pressure
+from screening.units import (
+    MAX_TEXT,
+    parse,
+    si_array,
+    si_many,
+    standard_atmosphere_pressure,
+    unit_after_number,
+)
 
 #: The energy balance's quantity inputs a plain row may give: (case key, quantity kind as units.parse names it).
 #: Each is read one text at a time by units.parse with its key (whose range is the key's, not the kind's), then
@@ -454,6 +462,94 @@ class _Cache:
         return got
 
 
+#: The characters of a bare number :func:`_bare_column` reads (a text of these alone that float() reads is one)
+_BARE_CHARS = re.compile(r"[0-9.+-]*")
+#: A bare number :func:`_bare_column` reads: ASCII digits, an optional sign and decimal point, no exponent
+_BARE_FAST = re.compile(r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)")
+
+
+@dataclass
+class _Bare:
+    """A quantity column's cells read by :func:`_bare_column`, per row."""
+
+    #: whether the cell is a bare number of :data:`_BARE_FAST` (its text is f"{cell} {unit}"); None: every cell is
+    numbered: np.ndarray | None
+    #: whether the cell's value is read here (`si`); the others (and every empty cell) go to the cell's parser
+    fast: np.ndarray
+    #: [SI, as written] the value of each cell read here (NaN elsewhere)
+    si: np.ndarray
+    #: the header's unit as the unit parser reads it after a number
+    spec: object
+
+
+def _bare_column(col, cells: list) -> _Bare | None:
+    r"""The cells of a quantity column with a unit in its header that are bare numbers, read at once (None: none read).
+
+    What it reads: a cell that is exactly ``[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)`` (:data:`_BARE_FAST`: ASCII
+    digits, an optional sign and point; no whitespace, no decimal comma, no exponent, no underscore, no other
+    digits, no "inf" or "nan") and no longer than the unit parser takes with the unit after it. Such a cell's text
+    as the case reader reads it is f"{cell} {unit}" (:func:`~screening.inputs.inventory.cell_value`: stripping
+    changes nothing, there is no comma, and the cell is a bare number of ``_BARE_NUMBER``, a superset); in that
+    text the unit pattern of :func:`screening.units.si_many` takes the cell as its number and the header's unit
+    as its unit (:func:`~screening.units.unit_after_number`), so the number is ``float(cell)`` and the value is
+    the same pint conversion of the numbers of that unit as one array (:func:`~screening.units.si_array`, which
+    si_many calls), elementwise the same float whatever else is in the array. A value is taken where si_many
+    and ``_accepted`` would take it: inside the kind's range, and above zero (in [0, 1) for a fraction; any
+    pressure, whose basis is the header unit's or, for a unit of no stated basis, the row's
+    ``pressure_basis``: :func:`read_plain` decides). Every other cell, and a bare number whose value is not
+    taken, goes to the column's parser (:class:`_Cache`), which reads it as before; so what is accepted and
+    refused is unchanged, and tests/test_columns.py compares the two on random registers.
+
+    A column whose every non-empty cell holds only the characters of :data:`_BARE_CHARS` is read by one
+    ``float`` per cell (of those characters, float() reads exactly the texts of _BARE_FAST); any other column
+    cell by cell with _BARE_FAST."""
+    kind = _KINDS.get(col.key)
+    spec = unit_after_number(col.unit, kind) if kind is not None and col.unit else None
+    if spec is None:
+        return None
+    room = MAX_TEXT - 1 - len(col.unit)            # the longest cell whose text with its unit is read
+    try:
+        joined = "".join(cells)
+    except TypeError:                              # a cell that is not a text
+        return None
+    if not joined:                                 # every cell empty
+        return None
+    numbers = None
+    every = all(cells)
+    if _BARE_CHARS.fullmatch(joined):
+        sub = cells if every else [c for c in cells if c]
+        if max(map(len, sub)) <= room:
+            try:
+                numbers = list(map(float, sub))
+            except ValueError:                     # "1.2.3", "-", "+-1": not numbers, cell by cell
+                pass
+    if numbers is not None:
+        numbered = None if every else np.fromiter(map(bool, cells), dtype=bool, count=len(cells))
+    else:
+        numbered = np.fromiter((len(c) <= room and _BARE_FAST.fullmatch(c) is not None for c in cells),
+                               dtype=bool, count=len(cells))
+        if not numbered.any():
+            return None
+        sub = [c for c, b in zip(cells, numbered.tolist()) if b]
+        numbers = list(map(float, sub))
+        every = bool(numbered.all())
+        if every:
+            numbered = None
+    si, taken = si_array(np.array(numbers, dtype=float), spec.pint_name, kind)
+    with np.errstate(invalid="ignore"):
+        if kind == "fraction":                      # as _accepted
+            taken &= (si >= 0.0) & (si < 1.0)
+        elif kind != "pressure":
+            taken &= si > 0.0
+    if numbered is None:
+        return _Bare(None, taken, si, spec)
+    fast = np.zeros(len(cells), dtype=bool)
+    fast[numbered] = taken
+    full = np.full(len(cells), np.nan)
+    full[numbered] = si
+    return _Bare(numbered, fast, full, spec)
+
+
 def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     """The plain rows of ``inv.rows``, as arrays."""
     empty = {k: [] for k in ("index", "ids", "gases", "atm", "cap", "rated", "relief", "ratio", "p", "t", "amb",
@@ -467,20 +563,42 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     # the text of every key per row: the column's cell (with the header's unit), else the default, else missing
     texts: dict[str, list] = {}
     cell_texts: list[tuple[str, list[str]]] = []     # every case key's column, as the row's case text shows it
+    bare: dict[str, _Bare] = {}                       # the quantity columns' bare numbers, read at once
     for j, col in enumerate(inv.columns):
         if col.key is None:              # a column of the user's own: carried through, not read
             continue
         cells = [(row[j] if j < len(row) else "") for _, row in inv.rows]
-        seen: dict[str, str] = {}
-        values = []
-        for c in cells:
-            v = seen.get(c)
-            if v is None:
-                v = seen[c] = cell_value(col, c)
-            values.append(v)
+        b = _bare_column(col, cells) if col.key in _KINDS else None
+        if b is not None:
+            bare[col.key] = b
+        if b is not None and b.numbered is None:        # every cell a bare number: its text, with the unit
+            unit = " " + col.unit
+            values = [c + unit for c in cells]
+        else:
+            seen: dict[str, str] = {}
+            values = []
+            if b is not None:
+                unit = " " + col.unit
+                for c, numbered in zip(cells, b.numbered.tolist()):
+                    if numbered:
+                        values.append(c + unit)
+                        continue
+                    v = seen.get(c)
+                    if v is None:
+                        v = seen[c] = cell_value(col, c)
+                    values.append(v)
+            else:
+                for c in cells:
+                    v = seen.get(c)
+                    if v is None:
+                        v = seen[c] = cell_value(col, c)
+                    values.append(v)
         cell_texts.append((col.header, values))
         if col.key not in PLAIN_KEYS:
             ok &= np.array([not v for v in values], dtype=bool)
+            continue
+        if b is not None and b.numbered is None:        # no empty cell: no default read
+            texts[col.key] = values
             continue
         default = flat.get(col.key, _MISSING)
         if default is not _MISSING:
@@ -500,15 +618,21 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     def column(key: str) -> list:
         return texts.get(key) or [_MISSING] * n_rows
 
-    def parsed(key: str, values: list, required: bool = False) -> list:
+    def parsed(key: str, values: list, required: bool = False, rows: list | None = None) -> list:
+        """Each of `values` (those of the rows `rows`, or of every row) read by the key's parser (None where
+        missing or refused, and the row then not plain)."""
         if key not in texts:                                    # neither a column nor a default
             if required:
                 ok[:] = False
             return [None] * n_rows
+        if values and values[0] is _MISSING and values.count(_MISSING) == len(values):     # none given
+            if required:
+                ok[rows if rows is not None else slice(None)] = False
+            return [None] * len(values)
         cache = _Cache(key)
         cache.prime(values)
         out = []
-        for i, v in enumerate(values):
+        for i, v in zip(rows if rows is not None else range(len(values)), values):
             if v is _MISSING:
                 if required:
                     ok[i] = False
@@ -541,6 +665,9 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
 
     def pressures(key: str, required: bool = False) -> tuple[np.ndarray, list]:
         raw = texts.get(key)
+        b = bare.get(key)
+        if b is not None:
+            return bare_pressures(key, b, raw, required)
         got = parsed(key, [v if v is _MISSING else (v, b) for v, b in zip(raw, bases)] if raw else [], required)
         p_abs = np.full(n_rows, np.nan)
         labels: list = [None] * n_rows
@@ -554,7 +681,45 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
             ok[np.isfinite(p_abs) & ~(p_abs > 0.0)] = False
         return p_abs, labels
 
+    def bare_pressures(key: str, b: _Bare, raw: list, required: bool) -> tuple[np.ndarray, list]:
+        """pressures() of a column some of whose cells `b` read: those cells' values taken as they are, the
+        others read by the column's parser."""
+        spec = b.spec
+        fast = b.fast
+        if spec.basis is None:                  # the row's pressure_basis states it
+            gauge = np.array([x == "gauge" for x in bases], dtype=bool)
+            fast = fast & (gauge | np.array([x == "absolute" for x in bases], dtype=bool))
+            named = {"gauge": f"{spec.label}(g)", "absolute": f"{spec.label}(a)"}
+            labels = [named[x] if f else None for x, f in zip(bases, fast.tolist())]
+        else:
+            gauge = spec.basis == "gauge"
+            labels = [spec.label] * n_rows if fast.all() else [spec.label if f else None for f in fast.tolist()]
+        with np.errstate(invalid="ignore", over="ignore"):
+            p_abs = np.where(fast, np.where(gauge, b.si + atm, b.si), np.nan)
+        slow = np.flatnonzero(~fast).tolist()
+        if slow:
+            got = parsed(key, [raw[i] if raw[i] is _MISSING else (raw[i], bases[i]) for i in slow], required, slow)
+            for i, g in zip(slow, got):
+                if g is not None:
+                    p_abs[i] = g[0] + atm[i] if g[1] else g[0]
+                    labels[i] = g[2]
+        with np.errstate(invalid="ignore"):
+            ok[np.isfinite(p_abs) & ~(p_abs > 0.0)] = False
+        return p_abs, labels
+
     def quantities(key: str, required: bool = False) -> tuple[np.ndarray, list]:
+        b = bare.get(key)
+        if b is not None:
+            values = np.where(b.fast, b.si, np.nan)
+            label = b.spec.label
+            labels = [label] * n_rows if b.fast.all() else [label if f else None for f in b.fast.tolist()]
+            slow = np.flatnonzero(~b.fast).tolist()
+            if slow:
+                raw = column(key)
+                for i, g in zip(slow, parsed(key, [raw[i] for i in slow], required, slow)):
+                    if g is not None:
+                        values[i], labels[i] = g
+            return values, labels
         got = parsed(key, column(key), required)
         return (np.array([np.nan if g is None else g[0] for g in got], dtype=float),
                 [None if g is None else g[1] for g in got])
