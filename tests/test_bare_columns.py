@@ -89,7 +89,10 @@ def _register(seed: int, tmp_path) -> tuple:
     head = ["id", "gas"] + [f"{n} [{units[n]}]" if units[n] else n for n in names] + (
         ["pressure_basis"] if basis_column else [])
     lines = [delim.join(head)]
-    rows = rnd.randrange(1, 60)
+    rows = rnd.randrange(1, 60) if rnd.random() < 0.7 else rnd.randrange(65, 300)
+    # some registers repeat their values, as a site's does (a column then reads each distinct number once)
+    pools = {n: [_cell(rnd, n, units[n], decimal, noise) for _ in range(rnd.randrange(1, 12))]
+             for n in names} if rnd.random() < 0.4 else None
     for i in range(rows):
         cells = [f"R{i}", rnd.choice(["nitrogen"] * 6 + ["argon", "propane", "", "unobtainium"])]
         by_mass = rnd.random() < 0.4
@@ -97,7 +100,7 @@ def _register(seed: int, tmp_path) -> tuple:
             if (n == "fill_pressure" and by_mass) or (n == "fill_mass" and not by_mass and rnd.random() < 0.9):
                 cells.append("")
                 continue
-            cells.append(_cell(rnd, n, units[n], decimal, noise))
+            cells.append(rnd.choice(pools[n]) if pools else _cell(rnd, n, units[n], decimal, noise))
         if basis_column:
             cells.append(rnd.choice(["gauge"] * 4 + ["absolute", "", "gage"]))
         lines.append(delim.join(f'"{c}"' if delim in c else c for c in cells))

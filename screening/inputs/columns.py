@@ -32,6 +32,7 @@ from screening.constants import P_STANDARD_ATMOSPHERE
 from screening.errors import InputError
 from screening.inputs.case import ATMOSPHERIC_PRESSURE_RANGE_PA, DEFAULT_REQUIRED_MARGIN, Case, Exposure, Site
 from screening.inputs.gas_spec import parse_gas
+from screening.inputs.headers import TEXT_KEYS
 from screening.inputs.inventory import Inventory, Unreadable, cell_value, default_text, row_case
 from screening.physics.gases import Mixture
 from screening.units import (
@@ -520,7 +521,7 @@ def _bare_column(col, cells: list) -> _Bare | None:
         sub = cells if every else [c for c in cells if c]
         if max(map(len, sub)) <= room:
             try:
-                numbers = list(map(float, sub))
+                numbers, back = _floats(sub)
             except ValueError:                     # "1.2.3", "-", "+-1": not numbers, cell by cell
                 pass
     if numbers is not None:
@@ -530,12 +531,13 @@ def _bare_column(col, cells: list) -> _Bare | None:
                                dtype=bool, count=len(cells))
         if not numbered.any():
             return None
-        sub = [c for c, b in zip(cells, numbered.tolist()) if b]
-        numbers = list(map(float, sub))
+        numbers, back = _floats([c for c, b in zip(cells, numbered.tolist()) if b])
         every = bool(numbered.all())
         if every:
             numbered = None
-    si, taken = si_array(np.array(numbers, dtype=float), spec.pint_name, kind)
+    si, taken = si_array(numbers, spec.pint_name, kind)
+    if back is not None:
+        si, taken = si[back], taken[back]
     with np.errstate(invalid="ignore"):
         if kind == "fraction":                      # as _accepted
             taken &= (si >= 0.0) & (si < 1.0)
@@ -548,6 +550,19 @@ def _bare_column(col, cells: list) -> _Bare | None:
     full = np.full(len(cells), np.nan)
     full[numbered] = si
     return _Bare(numbered, fast, full, spec)
+
+
+def _floats(texts) -> tuple[np.ndarray, np.ndarray | None]:
+    """float() of each of `texts` (ValueError where one is not a number): (the numbers, None), or, for texts
+    that repeat their values (a capacity, a rating, a temperature written to a tenth), (the numbers of the
+    distinct texts, each text's position among them)."""
+    if len(texts) > 64 and len(set(texts[:64])) <= 32:
+        distinct = list(dict.fromkeys(texts))
+        if 2 * len(distinct) <= len(texts):
+            at = dict(zip(distinct, range(len(distinct))))
+            return (np.array(list(map(float, distinct)), dtype=float),
+                    np.fromiter(map(at.__getitem__, texts), dtype=np.intp, count=len(texts)))
+    return np.array(list(map(float, texts)), dtype=float), None
 
 
 def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
@@ -564,17 +579,27 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     texts: dict[str, list] = {}
     cell_texts: list[tuple[str, list[str]]] = []     # every case key's column, as the row's case text shows it
     bare: dict[str, _Bare] = {}                       # the quantity columns' bare numbers, read at once
+    row_cells = [row for _, row in inv.rows]
+    longest = max(map(len, row_cells), default=0)
+    # the cells column by column: one transposition where every row has a cell in every column
+    by_column = list(zip(*row_cells)) if n_rows and min(map(len, row_cells)) >= width else None
     for j, col in enumerate(inv.columns):
         if col.key is None:              # a column of the user's own: carried through, not read
             continue
-        cells = [(row[j] if j < len(row) else "") for _, row in inv.rows]
+        cells = by_column[j] if by_column is not None else [(row[j] if j < len(row) else "") for row in row_cells]
         b = _bare_column(col, cells) if col.key in _KINDS else None
         if b is not None:
             bare[col.key] = b
+        values = None
         if b is not None and b.numbered is None:        # every cell a bare number: its text, with the unit
             unit = " " + col.unit
             values = [c + unit for c in cells]
-        else:
+        elif col.key in TEXT_KEYS:                      # cell_value: the cell stripped
+            try:
+                values = list(map(str.strip, cells))
+            except TypeError:                           # a cell that is not a text
+                pass
+        if values is None:
             seen: dict[str, str] = {}
             values = []
             if b is not None:
@@ -597,18 +622,18 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
         if col.key not in PLAIN_KEYS:
             ok &= np.array([not v for v in values], dtype=bool)
             continue
-        if b is not None and b.numbered is None:        # no empty cell: no default read
+        if all(values):                                 # no empty cell: no default read
             texts[col.key] = values
             continue
         default = flat.get(col.key, _MISSING)
         if default is not _MISSING:
             default = default_text(col, default)
-        texts[col.key] = [v if v else default for v in values]
+        texts[col.key] = [v if v else default for v in values] if any(values) else [default] * n_rows
     for k, v in flat.items():
         texts.setdefault(k, [v] * n_rows)
     # a cell the reader could not read is an Unreadable (a str subclass): none where every cell is a plain str
-    plain_text = set(map(type, chain.from_iterable(row for _, row in inv.rows))) <= {str}
-    for pos, (_, row) in enumerate(inv.rows):
+    plain_text = set(map(type, chain.from_iterable(row_cells))) <= {str}
+    for pos, row in enumerate(row_cells) if longest > width or not plain_text else ():
         if len(row) > width and any((c or "").strip() for c in row[width:]):
             ok[pos] = False
         elif not plain_text and any(isinstance(c, Unreadable) and (c.in_any_column or (j < width and inv.columns[j].key))
@@ -629,7 +654,24 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
             if required:
                 ok[rows if rows is not None else slice(None)] = False
             return [None] * len(values)
+        if key in _TEXT and set(map(type, values)) == {str} and all(map(str.strip, values)):
+            return values                               # every one a text that is not blank: the text parser's own
         cache = _Cache(key)
+        try:
+            distinct = dict.fromkeys(values)
+        except TypeError:                               # an unhashable default (a table): one by one below
+            distinct = None
+        if distinct is not None:                        # each distinct value read once, then given to its rows
+            cache.prime(list(distinct))
+            got = {v: None if v is _MISSING else cache(v) for v in distinct}
+            refused = {v for v, g in got.items() if g is _NotPlain or (required and v is _MISSING)}
+            out = list(map(got.__getitem__, values))
+            if refused:
+                bad = np.fromiter(map(refused.__contains__, values), dtype=bool, count=len(values))
+                ok[np.asarray(rows, dtype=np.intp)[bad] if rows is not None else bad] = False
+                if any(g is _NotPlain for g in got.values()):
+                    out = [None if g is _NotPlain else g for g in out]
+            return out
         cache.prime(values)
         out = []
         for i, v in zip(rows if rows is not None else range(len(values)), values):
@@ -655,7 +697,8 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     elev = np.full(n_rows, np.nan)
     atm_label: list = [None] * n_rows
     elev_given = column("site.elevation")
-    for i, (a, e) in enumerate(zip(atm_read, elev_read)):
+    given = "site.atmospheric_pressure" in texts or "site.elevation" in texts
+    for i, (a, e) in enumerate(zip(atm_read, elev_read) if given else ()):
         if a is not None:
             if elev_given[i] is not _MISSING:
                 ok[i] = False                       # both given
@@ -721,6 +764,8 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
                         values[i], labels[i] = g
             return values, labels
         got = parsed(key, column(key), required)
+        if got.count(None) == n_rows:                   # none given or read
+            return np.full(n_rows, np.nan), got
         return (np.array([np.nan if g is None else g[0] for g in got], dtype=float),
                 [None if g is None else g[1] for g in got])
 
@@ -755,32 +800,31 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
         ok &= np.isnan(p_fill) != np.isnan(mass)               # the fill by pressure or by mass, not both
         ok &= ~(sun & np.isnan(amb))                            # the sun's balance needs the ambient air
 
-    # the display units: the first reading of each kind in the case reader's order
-    units_cache: dict[tuple, dict] = {}
-    out = empty
-    for i in np.flatnonzero(ok):
-        pressure_label = atm_label[i] or rated_label[i]
-        ukey = (pressure_label, t_label[i], cap_label[i], mass_label[i])
-        units = units_cache.get(ukey)
-        if units is None:
-            units = units_cache[ukey] = {"pressure": "bar(a)" if pressure_label == "atm" else pressure_label,
-                                         "temperature": t_label[i], "volume": cap_label[i],
-                                         "mass": mass_label[i] or "kg"}
-        out["ids"].append(ids[i])
-        out["finish"].append(finishes[i])
-        out["gases"].append(gases[i])
-        out["units"].append(units)
     sel = np.flatnonzero(ok)
+    rows = sel.tolist()
+    if len(rows) == n_rows:
+        def pick(values: list) -> list:     # the plain rows' items of a per-row list
+            return list(values)
+    else:
+        def pick(values: list) -> list:
+            return list(map(values.__getitem__, rows))
+    # the display units: the first reading of each kind in the case reader's order
+    ukeys = list(zip([a or r for a, r in zip(pick(atm_label), pick(rated_label))], pick(t_label), pick(cap_label),
+                     pick(mass_label)))
+    units_cache = {ukey: {"pressure": "bar(a)" if ukey[0] == "atm" else ukey[0], "temperature": ukey[1],
+                          "volume": ukey[2], "mass": ukey[3] or "kg"} for ukey in dict.fromkeys(ukeys)}
+    out = empty
+    out["ids"], out["finish"], out["gases"] = pick(ids), pick(finishes), pick(gases)
+    out["units"] = list(map(units_cache.__getitem__, ukeys))
     out["index"] = sel
     for name, arr in (("atm", atm), ("cap", cap), ("rated", rated), ("relief", relief), ("ratio", ratio),
                       ("p", p_fill), ("t", t_fill), ("amb", amb), ("gas_t", hot), ("margin", margin),
                       ("margin_default", margin_default), ("mass", mass), ("elev", elev), ("sun", sun)):
         out[name] = arr[sel]
-    rows = sel.tolist()
     out["sun_inputs"] = {k: [math.nan if v[i] is None and k != "exposure.orientation" else v[i] for i in rows]
                          for k, v in sun_read.items()}
-    entered = {k: [v[i] for i in rows] for k, v in texts.items()}
-    return _finish(inv, defaults, out, entered, [(h, [v[i] for i in rows]) for h, v in cell_texts])
+    entered = {k: pick(v) for k, v in texts.items()}
+    return _finish(inv, defaults, out, entered, [(h, pick(v)) for h, v in cell_texts])
 
 
 def _finish(inv: Inventory, defaults: dict | None, out: dict, entered: dict | None = None,
@@ -790,4 +834,4 @@ def _finish(inv: Inventory, defaults: dict | None, out: dict, entered: dict | No
                      f("cap"), f("rated"), f("relief"), f("ratio"), f("p"), f("t"), f("amb"), f("gas_t"),
                      f("margin"), np.array(out["margin_default"], dtype=bool), out["units"], f("mass"), f("elev"),
                      entered, cell_texts, np.array(out["sun"], dtype=bool),
-                     out["finish"] if any(f is not None for f in out["finish"]) else None, out["sun_inputs"] or None)
+                     out["finish"] if out["finish"].count(None) != len(out["finish"]) else None, out["sun_inputs"] or None)
