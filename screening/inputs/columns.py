@@ -4,7 +4,8 @@ An inventory of thousands of cylinders repeats its values: a few gases, capaciti
 pressures and temperatures written to a tenth. Reading every row through the case validator costs far
 more than screening it, so the rows that hold only the plain keys below are read column by column:
 each distinct cell text is parsed once, with the same unit parser (:func:`screening.units.parse`) and
-the same gas parser as a case file, and the row's values are gathered into arrays in SI.
+the same gas parser as a case file, and the row's values are gathered into arrays in SI. The bare numbers of a
+quantity column with a unit in its header are read at once (:func:`_bare_column`), to the same values.
 
 What a plain row is: every non-empty cell (or default) belongs to :data:`PLAIN_KEYS`; the fill is given
 by pressure and temperature, or by mass and temperature; a row in the sun (``solar`` "sun" with its ambient
@@ -499,7 +500,7 @@ def _bare_column(col, cells: list) -> _Bare | None:
     pressure, whose basis is the header unit's or, for a unit of no stated basis, the row's
     ``pressure_basis``: :func:`read_plain` decides). Every other cell, and a bare number whose value is not
     taken, goes to the column's parser (:class:`_Cache`), which reads it as before; so what is accepted and
-    refused is unchanged, and tests/test_columns.py compares the two on random registers.
+    refused is unchanged, and tests/test_bare_columns.py compares the two on random registers.
 
     A column whose every non-empty cell holds only the characters of :data:`_BARE_CHARS` is read by one
     ``float`` per cell (of those characters, float() reads exactly the texts of _BARE_FAST); any other column
