@@ -109,6 +109,8 @@ ureg = _RegistryOnFirstUse()
 _NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,4})?"
 _PATTERN = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
 _MAX_TEXT = 64
+#: The longest quantity text read [characters] (a longer one is refused).
+MAX_TEXT = _MAX_TEXT
 
 
 @dataclass(frozen=True)
@@ -438,18 +440,36 @@ def si_many(texts: list, kind: str, pressure_basis: str | None = None) -> tuple[
             spec = UnitSpec(f"{spec.label}({pressure_basis[0]})", "pressure", spec.pint_name, pressure_basis)
         found[i] = spec
         groups.setdefault(spec.pint_name, []).append((i, number))
-    rng = KIND_RANGES[kind]
     for pint_name, members in groups.items():
-        numbers = np.array([x for _, x in members], dtype=float)
-        with np.errstate(over="ignore", invalid="ignore"):      # an overflow is inf, refused below
-            si = np.asarray(ureg.Quantity(numbers, ureg.Unit(pint_name)).to(ureg.Unit(_SI_UNIT[kind])).magnitude,
-                            dtype=float)
-            inside = np.isfinite(si) & (si >= rng.low) & (si <= rng.high)
+        si, inside = si_array(np.array([x for _, x in members], dtype=float), pint_name, kind)
         for (i, _), v, ok in zip(members, si.tolist(), inside.tolist()):
             if ok:
                 values[i] = v
                 specs[i] = found[i]
     return values, specs
+
+
+def si_array(numbers, pint_name: str, kind: str):
+    """pint's conversion of a numpy array of `numbers` [float] in the allowlisted unit `pint_name` to the SI unit of
+    `kind`, as one array (the conversion :func:`si_many` makes of each unit's numbers), and whether each value lies
+    in the kind's range (KIND_RANGES; an overflow is inf, outside): (SI values [array], inside [bool array])."""
+    import numpy as np
+
+    rng = KIND_RANGES[kind]
+    with np.errstate(over="ignore", invalid="ignore"):
+        si = np.asarray(ureg.Quantity(numbers, ureg.Unit(pint_name)).to(ureg.Unit(_SI_UNIT[kind])).magnitude,
+                        dtype=float)
+        inside = np.isfinite(si) & (si >= rng.low) & (si <= rng.high)
+    return si, inside
+
+
+def unit_after_number(unit: str, kind: str) -> UnitSpec | None:
+    """The allowlisted unit of `kind` that :func:`parse` and :func:`si_many` read in a text ``f"{number} {unit}"``
+    (a number of :data:`_NUMBER`'s form, whatever it is: the pattern splits the unit off after it the same way),
+    None where they read none there. A pressure unit of no stated basis is given as it is (basis None)."""
+    m = _PATTERN.match(f"0 {unit}")
+    spec = _UNITS.get(m.group(2)) if m else None
+    return spec if spec is not None and spec.kind == kind else None
 
 
 def to_absolute_pressure(reading: Reading, atmospheric_pa: float) -> float:

@@ -4,7 +4,8 @@ An inventory of thousands of cylinders repeats its values: a few gases, capaciti
 pressures and temperatures written to a tenth. Reading every row through the case validator costs far
 more than screening it, so the rows that hold only the plain keys below are read column by column:
 each distinct cell text is parsed once, with the same unit parser (:func:`screening.units.parse`) and
-the same gas parser as a case file, and the row's values are gathered into arrays in SI.
+the same gas parser as a case file, and the row's values are gathered into arrays in SI. The bare numbers of a
+quantity column with a unit in its header are read at once (:func:`_bare_column`), to the same values.
 
 What a plain row is: every non-empty cell (or default) belongs to :data:`PLAIN_KEYS`; the fill is given
 by pressure and temperature, or by mass and temperature; a row in the sun (``solar`` "sun" with its ambient
@@ -21,6 +22,7 @@ from __future__ import annotations
 
 import hashlib
 import math
+import re
 from dataclasses import dataclass
 from itertools import chain
 
@@ -31,9 +33,17 @@ from screening.constants import P_STANDARD_ATMOSPHERE
 from screening.errors import InputError
 from screening.inputs.case import ATMOSPHERIC_PRESSURE_RANGE_PA, DEFAULT_REQUIRED_MARGIN, Case, Exposure, Site
 from screening.inputs.gas_spec import parse_gas
+from screening.inputs.headers import TEXT_KEYS
 from screening.inputs.inventory import Inventory, Unreadable, cell_value, default_text, row_case
 from screening.physics.gases import Mixture
-from screening.units import parse, si_many, standard_atmosphere_pressure
+from screening.units import (
+    MAX_TEXT,
+    parse,
+    si_array,
+    si_many,
+    standard_atmosphere_pressure,
+    unit_after_number,
+)
 
 #: The energy balance's quantity inputs a plain row may give: (case key, quantity kind as units.parse names it).
 #: Each is read one text at a time by units.parse with its key (whose range is the key's, not the kind's), then
@@ -454,6 +464,108 @@ class _Cache:
         return got
 
 
+#: The characters of a bare number :func:`_bare_column` reads (a text of these alone that float() reads is one)
+_BARE_CHARS = re.compile(r"[0-9.+-]*")
+#: A bare number :func:`_bare_column` reads: ASCII digits, an optional sign and decimal point, no exponent
+_BARE_FAST = re.compile(r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)")
+
+
+@dataclass
+class _Bare:
+    """A quantity column's cells read by :func:`_bare_column`, per row."""
+
+    #: whether the cell is a bare number of :data:`_BARE_FAST` (its text is f"{cell} {unit}"); None: every cell is
+    numbered: np.ndarray | None
+    #: whether the cell's value is read here (`si`); the others (and every empty cell) go to the cell's parser
+    fast: np.ndarray
+    #: [SI, as written] the value of each cell read here (NaN elsewhere)
+    si: np.ndarray
+    #: the header's unit as the unit parser reads it after a number
+    spec: object
+
+
+def _bare_column(col, cells: list) -> _Bare | None:
+    r"""The cells of a quantity column with a unit in its header that are bare numbers, read at once (None: none read).
+
+    What it reads: a cell that is exactly ``[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)`` (:data:`_BARE_FAST`: ASCII
+    digits, an optional sign and point; no whitespace, no decimal comma, no exponent, no underscore, no other
+    digits, no "inf" or "nan") and no longer than the unit parser takes with the unit after it. Such a cell's text
+    as the case reader reads it is f"{cell} {unit}" (:func:`~screening.inputs.inventory.cell_value`: stripping
+    changes nothing, there is no comma, and the cell is a bare number of ``_BARE_NUMBER``, a superset); in that
+    text the unit pattern of :func:`screening.units.si_many` takes the cell as its number and the header's unit
+    as its unit (:func:`~screening.units.unit_after_number`), so the number is ``float(cell)`` and the value is
+    the same pint conversion of the numbers of that unit as one array (:func:`~screening.units.si_array`, which
+    si_many calls), elementwise the same float whatever else is in the array. A value is taken where si_many
+    and ``_accepted`` would take it: inside the kind's range, and above zero (in [0, 1) for a fraction; any
+    pressure, whose basis is the header unit's or, for a unit of no stated basis, the row's
+    ``pressure_basis``: :func:`read_plain` decides). Every other cell, and a bare number whose value is not
+    taken, goes to the column's parser (:class:`_Cache`), which reads it as before; so what is accepted and
+    refused is unchanged, and tests/test_bare_columns.py compares the two on random registers.
+
+    A column whose every non-empty cell holds only the characters of :data:`_BARE_CHARS` is read by one
+    ``float`` per cell (of those characters, float() reads exactly the texts of _BARE_FAST); any other column
+    cell by cell with _BARE_FAST."""
+    kind = _KINDS.get(col.key)
+    spec = unit_after_number(col.unit, kind) if kind is not None and col.unit else None
+    if spec is None:
+        return None
+    room = MAX_TEXT - 1 - len(col.unit)            # the longest cell whose text with its unit is read
+    try:
+        joined = "".join(cells)
+    except TypeError:                              # a cell that is not a text
+        return None
+    if not joined:                                 # every cell empty
+        return None
+    numbers = None
+    every = all(cells)
+    if _BARE_CHARS.fullmatch(joined):
+        sub = cells if every else [c for c in cells if c]
+        if max(map(len, sub)) <= room:
+            try:
+                numbers, back = _floats(sub)
+            except ValueError:                     # "1.2.3", "-", "+-1": not numbers, cell by cell
+                pass
+    if numbers is not None:
+        numbered = None if every else np.fromiter(map(bool, cells), dtype=bool, count=len(cells))
+    else:
+        numbered = np.fromiter((len(c) <= room and _BARE_FAST.fullmatch(c) is not None for c in cells),
+                               dtype=bool, count=len(cells))
+        if not numbered.any():
+            return None
+        numbers, back = _floats([c for c, b in zip(cells, numbered.tolist()) if b])
+        every = bool(numbered.all())
+        if every:
+            numbered = None
+    si, taken = si_array(numbers, spec.pint_name, kind)
+    if back is not None:
+        si, taken = si[back], taken[back]
+    with np.errstate(invalid="ignore"):
+        if kind == "fraction":                      # as _accepted
+            taken &= (si >= 0.0) & (si < 1.0)
+        elif kind != "pressure":
+            taken &= si > 0.0
+    if numbered is None:
+        return _Bare(None, taken, si, spec)
+    fast = np.zeros(len(cells), dtype=bool)
+    fast[numbered] = taken
+    full = np.full(len(cells), np.nan)
+    full[numbered] = si
+    return _Bare(numbered, fast, full, spec)
+
+
+def _floats(texts) -> tuple[np.ndarray, np.ndarray | None]:
+    """float() of each of `texts` (ValueError where one is not a number): (the numbers, None), or, for texts
+    that repeat their values (a capacity, a rating, a temperature written to a tenth), (the numbers of the
+    distinct texts, each text's position among them)."""
+    if len(texts) > 64 and len(set(texts[:64])) <= 32:
+        distinct = list(dict.fromkeys(texts))
+        if 2 * len(distinct) <= len(texts):
+            at = dict(zip(distinct, range(len(distinct))))
+            return (np.array(list(map(float, distinct)), dtype=float),
+                    np.fromiter(map(at.__getitem__, texts), dtype=np.intp, count=len(texts)))
+    return np.array(list(map(float, texts)), dtype=float), None
+
+
 def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     """The plain rows of ``inv.rows``, as arrays."""
     empty = {k: [] for k in ("index", "ids", "gases", "atm", "cap", "rated", "relief", "ratio", "p", "t", "amb",
@@ -467,30 +579,62 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     # the text of every key per row: the column's cell (with the header's unit), else the default, else missing
     texts: dict[str, list] = {}
     cell_texts: list[tuple[str, list[str]]] = []     # every case key's column, as the row's case text shows it
+    bare: dict[str, _Bare] = {}                       # the quantity columns' bare numbers, read at once
+    row_cells = [row for _, row in inv.rows]
+    longest = max(map(len, row_cells), default=0)
+    # the cells column by column: one transposition where every row has a cell in every column
+    by_column = list(zip(*row_cells)) if n_rows and min(map(len, row_cells)) >= width else None
     for j, col in enumerate(inv.columns):
         if col.key is None:              # a column of the user's own: carried through, not read
             continue
-        cells = [(row[j] if j < len(row) else "") for _, row in inv.rows]
-        seen: dict[str, str] = {}
-        values = []
-        for c in cells:
-            v = seen.get(c)
-            if v is None:
-                v = seen[c] = cell_value(col, c)
-            values.append(v)
+        cells = by_column[j] if by_column is not None else [(row[j] if j < len(row) else "") for row in row_cells]
+        b = _bare_column(col, cells) if col.key in _KINDS else None
+        if b is not None:
+            bare[col.key] = b
+        values = None
+        if b is not None and b.numbered is None:        # every cell a bare number: its text, with the unit
+            unit = " " + col.unit
+            values = [c + unit for c in cells]
+        elif col.key in TEXT_KEYS:                      # cell_value: the cell stripped
+            try:
+                values = list(map(str.strip, cells))
+            except TypeError:                           # a cell that is not a text
+                pass
+        if values is None:
+            seen: dict[str, str] = {}
+            values = []
+            if b is not None:
+                unit = " " + col.unit
+                for c, numbered in zip(cells, b.numbered.tolist()):
+                    if numbered:
+                        values.append(c + unit)
+                        continue
+                    v = seen.get(c)
+                    if v is None:
+                        v = seen[c] = cell_value(col, c)
+                    values.append(v)
+            else:
+                for c in cells:
+                    v = seen.get(c)
+                    if v is None:
+                        v = seen[c] = cell_value(col, c)
+                    values.append(v)
         cell_texts.append((col.header, values))
         if col.key not in PLAIN_KEYS:
             ok &= np.array([not v for v in values], dtype=bool)
             continue
+        if all(values):                                 # no empty cell: no default read
+            texts[col.key] = values
+            continue
         default = flat.get(col.key, _MISSING)
         if default is not _MISSING:
             default = default_text(col, default)
-        texts[col.key] = [v if v else default for v in values]
+        texts[col.key] = [v if v else default for v in values] if any(values) else [default] * n_rows
     for k, v in flat.items():
         texts.setdefault(k, [v] * n_rows)
     # a cell the reader could not read is an Unreadable (a str subclass): none where every cell is a plain str
-    plain_text = set(map(type, chain.from_iterable(row for _, row in inv.rows))) <= {str}
-    for pos, (_, row) in enumerate(inv.rows):
+    plain_text = set(map(type, chain.from_iterable(row_cells))) <= {str}
+    for pos, row in enumerate(row_cells) if longest > width or not plain_text else ():
         if len(row) > width and any((c or "").strip() for c in row[width:]):
             ok[pos] = False
         elif not plain_text and any(isinstance(c, Unreadable) and (c.in_any_column or (j < width and inv.columns[j].key))
@@ -500,15 +644,38 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     def column(key: str) -> list:
         return texts.get(key) or [_MISSING] * n_rows
 
-    def parsed(key: str, values: list, required: bool = False) -> list:
+    def parsed(key: str, values: list, required: bool = False, rows: list | None = None) -> list:
+        """Each of `values` (those of the rows `rows`, or of every row) read by the key's parser (None where
+        missing or refused, and the row then not plain)."""
         if key not in texts:                                    # neither a column nor a default
             if required:
                 ok[:] = False
             return [None] * n_rows
+        if values and values[0] is _MISSING and values.count(_MISSING) == len(values):     # none given
+            if required:
+                ok[rows if rows is not None else slice(None)] = False
+            return [None] * len(values)
+        if key in _TEXT and set(map(type, values)) == {str} and all(map(str.strip, values)):
+            return values                               # every one a text that is not blank: the text parser's own
         cache = _Cache(key)
+        try:
+            distinct = dict.fromkeys(values)
+        except TypeError:                               # an unhashable default (a table): one by one below
+            distinct = None
+        if distinct is not None:                        # each distinct value read once, then given to its rows
+            cache.prime(list(distinct))
+            got = {v: None if v is _MISSING else cache(v) for v in distinct}
+            refused = {v for v, g in got.items() if g is _NotPlain or (required and v is _MISSING)}
+            out = list(map(got.__getitem__, values))
+            if refused:
+                bad = np.fromiter(map(refused.__contains__, values), dtype=bool, count=len(values))
+                ok[np.asarray(rows, dtype=np.intp)[bad] if rows is not None else bad] = False
+                if any(g is _NotPlain for g in got.values()):
+                    out = [None if g is _NotPlain else g for g in out]
+            return out
         cache.prime(values)
         out = []
-        for i, v in enumerate(values):
+        for i, v in zip(rows if rows is not None else range(len(values)), values):
             if v is _MISSING:
                 if required:
                     ok[i] = False
@@ -531,7 +698,8 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     elev = np.full(n_rows, np.nan)
     atm_label: list = [None] * n_rows
     elev_given = column("site.elevation")
-    for i, (a, e) in enumerate(zip(atm_read, elev_read)):
+    given = "site.atmospheric_pressure" in texts or "site.elevation" in texts
+    for i, (a, e) in enumerate(zip(atm_read, elev_read) if given else ()):
         if a is not None:
             if elev_given[i] is not _MISSING:
                 ok[i] = False                       # both given
@@ -541,6 +709,9 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
 
     def pressures(key: str, required: bool = False) -> tuple[np.ndarray, list]:
         raw = texts.get(key)
+        b = bare.get(key)
+        if b is not None:
+            return bare_pressures(key, b, raw, required)
         got = parsed(key, [v if v is _MISSING else (v, b) for v, b in zip(raw, bases)] if raw else [], required)
         p_abs = np.full(n_rows, np.nan)
         labels: list = [None] * n_rows
@@ -554,8 +725,48 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
             ok[np.isfinite(p_abs) & ~(p_abs > 0.0)] = False
         return p_abs, labels
 
+    def bare_pressures(key: str, b: _Bare, raw: list, required: bool) -> tuple[np.ndarray, list]:
+        """pressures() of a column some of whose cells `b` read: those cells' values taken as they are, the
+        others read by the column's parser."""
+        spec = b.spec
+        fast = b.fast
+        if spec.basis is None:                  # the row's pressure_basis states it
+            gauge = np.array([x == "gauge" for x in bases], dtype=bool)
+            fast = fast & (gauge | np.array([x == "absolute" for x in bases], dtype=bool))
+            named = {"gauge": f"{spec.label}(g)", "absolute": f"{spec.label}(a)"}
+            labels = [named[x] if f else None for x, f in zip(bases, fast.tolist())]
+        else:
+            gauge = spec.basis == "gauge"
+            labels = [spec.label] * n_rows if fast.all() else [spec.label if f else None for f in fast.tolist()]
+        with np.errstate(invalid="ignore", over="ignore"):
+            p_abs = np.where(fast, np.where(gauge, b.si + atm, b.si), np.nan)
+        slow = np.flatnonzero(~fast).tolist()
+        if slow:
+            got = parsed(key, [raw[i] if raw[i] is _MISSING else (raw[i], bases[i]) for i in slow], required, slow)
+            for i, g in zip(slow, got):
+                if g is not None:
+                    p_abs[i] = g[0] + atm[i] if g[1] else g[0]
+                    labels[i] = g[2]
+        with np.errstate(invalid="ignore"):
+            ok[np.isfinite(p_abs) & ~(p_abs > 0.0)] = False
+        return p_abs, labels
+
     def quantities(key: str, required: bool = False) -> tuple[np.ndarray, list]:
+        b = bare.get(key)
+        if b is not None:
+            values = np.where(b.fast, b.si, np.nan)
+            label = b.spec.label
+            labels = [label] * n_rows if b.fast.all() else [label if f else None for f in b.fast.tolist()]
+            slow = np.flatnonzero(~b.fast).tolist()
+            if slow:
+                raw = column(key)
+                for i, g in zip(slow, parsed(key, [raw[i] for i in slow], required, slow)):
+                    if g is not None:
+                        values[i], labels[i] = g
+            return values, labels
         got = parsed(key, column(key), required)
+        if got.count(None) == n_rows:                   # none given or read
+            return np.full(n_rows, np.nan), got
         return (np.array([np.nan if g is None else g[0] for g in got], dtype=float),
                 [None if g is None else g[1] for g in got])
 
@@ -590,32 +801,31 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
         ok &= np.isnan(p_fill) != np.isnan(mass)               # the fill by pressure or by mass, not both
         ok &= ~(sun & np.isnan(amb))                            # the sun's balance needs the ambient air
 
-    # the display units: the first reading of each kind in the case reader's order
-    units_cache: dict[tuple, dict] = {}
-    out = empty
-    for i in np.flatnonzero(ok):
-        pressure_label = atm_label[i] or rated_label[i]
-        ukey = (pressure_label, t_label[i], cap_label[i], mass_label[i])
-        units = units_cache.get(ukey)
-        if units is None:
-            units = units_cache[ukey] = {"pressure": "bar(a)" if pressure_label == "atm" else pressure_label,
-                                         "temperature": t_label[i], "volume": cap_label[i],
-                                         "mass": mass_label[i] or "kg"}
-        out["ids"].append(ids[i])
-        out["finish"].append(finishes[i])
-        out["gases"].append(gases[i])
-        out["units"].append(units)
     sel = np.flatnonzero(ok)
+    rows = sel.tolist()
+    if len(rows) == n_rows:
+        def pick(values: list) -> list:     # the plain rows' items of a per-row list
+            return list(values)
+    else:
+        def pick(values: list) -> list:
+            return list(map(values.__getitem__, rows))
+    # the display units: the first reading of each kind in the case reader's order
+    ukeys = list(zip([a or r for a, r in zip(pick(atm_label), pick(rated_label))], pick(t_label), pick(cap_label),
+                     pick(mass_label)))
+    units_cache = {ukey: {"pressure": "bar(a)" if ukey[0] == "atm" else ukey[0], "temperature": ukey[1],
+                          "volume": ukey[2], "mass": ukey[3] or "kg"} for ukey in dict.fromkeys(ukeys)}
+    out = empty
+    out["ids"], out["finish"], out["gases"] = pick(ids), pick(finishes), pick(gases)
+    out["units"] = list(map(units_cache.__getitem__, ukeys))
     out["index"] = sel
     for name, arr in (("atm", atm), ("cap", cap), ("rated", rated), ("relief", relief), ("ratio", ratio),
                       ("p", p_fill), ("t", t_fill), ("amb", amb), ("gas_t", hot), ("margin", margin),
                       ("margin_default", margin_default), ("mass", mass), ("elev", elev), ("sun", sun)):
         out[name] = arr[sel]
-    rows = sel.tolist()
     out["sun_inputs"] = {k: [math.nan if v[i] is None and k != "exposure.orientation" else v[i] for i in rows]
                          for k, v in sun_read.items()}
-    entered = {k: [v[i] for i in rows] for k, v in texts.items()}
-    return _finish(inv, defaults, out, entered, [(h, [v[i] for i in rows]) for h, v in cell_texts])
+    entered = {k: pick(v) for k, v in texts.items()}
+    return _finish(inv, defaults, out, entered, [(h, pick(v)) for h, v in cell_texts])
 
 
 def _finish(inv: Inventory, defaults: dict | None, out: dict, entered: dict | None = None,
@@ -625,4 +835,4 @@ def _finish(inv: Inventory, defaults: dict | None, out: dict, entered: dict | No
                      f("cap"), f("rated"), f("relief"), f("ratio"), f("p"), f("t"), f("amb"), f("gas_t"),
                      f("margin"), np.array(out["margin_default"], dtype=bool), out["units"], f("mass"), f("elev"),
                      entered, cell_texts, np.array(out["sun"], dtype=bool),
-                     out["finish"] if any(f is not None for f in out["finish"]) else None, out["sun_inputs"] or None)
+                     out["finish"] if out["finish"].count(None) != len(out["finish"]) else None, out["sun_inputs"] or None)
