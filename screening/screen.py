@@ -926,6 +926,11 @@ def _molar(case: Case, fs: FillState) -> float | None:
     return fs.rho_mass / case.gas.molar_mass if fs.rho_mass is not None else None
 
 
+#: Each verdict's word and severity (Verdict.value, Verdict.severity), looked up once per decision.
+_WORD = {v: v.value for v in Verdict}
+_SEVERITY_OF = {v: v.severity for v in Verdict}
+
+
 def decide(*, peak: float | None, rated: float, relief: float | None, atm: float, required_margin: float,
            any_real_model: bool, out_of_scope_reason: str | None, liquid_full_reason: str | None = None,
            filling_ratio_reason: str | None = None) -> tuple[str, list[str], float | None, float | None]:
@@ -961,12 +966,18 @@ def decide(*, peak: float | None, rated: float, relief: float | None, atm: float
                                        f"required margin of {req}: the relief device may open."))
     if liquid_full_reason:
         findings.append((Verdict.LOW_MARGIN, liquid_full_reason))
-    verdict = max((v for v, _ in findings), key=lambda v: v.severity, default=Verdict.WITHIN)
-    reasons = [r for _, r in sorted(findings, key=lambda f: -f[0].severity)]
+    if not findings:
+        verdict, reasons = _WORD[Verdict.WITHIN], []
+    elif len(findings) == 1:
+        verdict, reasons = _WORD[findings[0][0]], [findings[0][1]]
+    else:
+        verdict = _WORD[max((v for v, _ in findings), key=_SEVERITY_OF.__getitem__)]
+        reasons = [r for _, r in sorted(findings, key=lambda f: -_SEVERITY_OF[f[0]])]
     if peak <= rated and margin >= required_margin:
         m, req = percent_pair(margin, required_margin)
         reasons.append(f"The peak pressure stays within the rating with a margin of {m} (required {req}).")
-    return verdict.value, reasons, margin, relief_margin   # the word itself: results are plain data
+    return verdict, reasons, margin, relief_margin   # the word itself: results are plain data
+
 
 
 # ----------------------------------------------------------------------------- the screening
