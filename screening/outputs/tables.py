@@ -49,6 +49,8 @@ def result_headers(pu: str, tu: str) -> list[str]:
 
 
 def _num(x: float | None) -> float | None:
+    if type(x) is float:        # the common case, as below: a finite float to six significant digits
+        return float(f"{x:.6g}") if x - x == 0.0 else None
     if x is None or not isinstance(x, (int, float)) or not math.isfinite(x):
         return None
     return float(f"{x:.6g}")
@@ -56,22 +58,21 @@ def _num(x: float | None) -> float | None:
 
 def result_values(r: dict, pu: str, tu: str) -> list:
     """The result columns of one row: numbers (None where there is none) and texts."""
-    warnings = " ".join(w["message"] for w in r.get("warnings") or [])
-    reasons = " ".join(str(x) for x in r.get("reasons") or [])
-    if r["verdict"] == "input-error":
+    warnings = r.get("warnings")
+    warnings = " ".join([w["message"] for w in warnings]) if warnings else ""
+    reasons = r.get("reasons")
+    reasons = " ".join(map(str, reasons)) if reasons else ""
+    verdict = r["verdict"]
+    if verdict == "input-error":
         return [None, "", None, "input-error", reasons, None, None, warnings]
     atm = r["site"]["atmospheric_pressure_pa"]
     lim = r["limits"]
-
-    def P(p):
-        return None if p is None else _num(pressure_in(p, pu, atm))
-
-    def T(t):
-        return None if t is None else _num(temperature_in(t, tu))
-
-    m = r["margin_fraction"]
-    return [P(r["peak_pressure_pa"]), r["governing_model"] or "", None if m is None else _num(100.0 * m),
-            r["verdict"], reasons, T(lim["max_gas_temperature_k"]), P(lim["max_fill_pressure_pa"]), warnings]
+    peak, m = r["peak_pressure_pa"], r["margin_fraction"]
+    t, p = lim["max_gas_temperature_k"], lim["max_fill_pressure_pa"]
+    return [None if peak is None else _num(pressure_in(peak, pu, atm)), r["governing_model"] or "",
+            None if m is None else _num(100.0 * m), verdict, reasons,
+            None if t is None else _num(temperature_in(t, tu)), None if p is None else _num(pressure_in(p, pu, atm)),
+            warnings]
 
 
 class CsvTable:
@@ -86,6 +87,9 @@ class CsvTable:
         self.w.writerow(headers)
 
     def _text(self, v) -> str:
+        if type(v) is float:        # the common case, as below
+            text = repr(v) if not v.is_integer() else str(int(v)) if abs(v) < 1e16 else repr(v)
+            return text.replace(".", ",") if self.decimal == "," else text
         if v is None:
             return ""
         if isinstance(v, float):
