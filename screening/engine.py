@@ -1838,12 +1838,17 @@ class PlainScreening:
         rest: list[int] = []
         by_mass = ~np.isnan(plain.fill_mass_kg)
         on_columns = []
-        for j, gas in enumerate(plain.gases):
+        routes: dict[tuple[int, bool], tuple[bool, bool]] = {}    # {(id of a gas, by mass): the row's route}
+        for j, (gas, mass) in enumerate(zip(plain.gases, by_mass.tolist())):
             # a permanent gas with a dome filled by mass on the liquefied-gas columns; hydrogen, helium, neon and
             # air filled by mass on the permanent-gas columns with their fills by pressure
-            liquefied = _on_liquefied_columns(gas, bool(by_mass[j]))
-            on_columns.append(liquefied or _vector_gas(gas))
-            if on_columns[-1]:
+            route = routes.get((id(gas), mass))
+            if route is None:       # the gases live as long as `plain`
+                liquefied = _on_liquefied_columns(gas, mass)
+                route = routes[id(gas), mass] = (liquefied, liquefied or _vector_gas(gas))
+            liquefied, columns = route
+            on_columns.append(columns)
+            if columns:
                 groups.setdefault((gas.name, liquefied), []).append(j)
             else:
                 rest.append(j)

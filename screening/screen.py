@@ -901,6 +901,8 @@ def governing_text(governing: str | None, others: list[str]) -> str:
 def liquid_full_reason(own: str | None, corners: Iterable[str] = ()) -> str | None:
     """The liquid-full reason of a vessel: its own finding at the worst case (None: none), then each finding at a
     corner of the input tolerances not given already, in one text; None where there is none."""
+    if not corners:         # none at the corners (an empty tuple or list): the vessel's own finding
+        return own or None
     found = [own] if own is not None else []
     found += [r for r in corners if r not in found]
     return " ".join(found) or None
