@@ -83,13 +83,14 @@ class CsvTable:
         self.decimal = decimal
         self.buf = io.StringIO(newline="")
         self.w = csv.writer(self.buf, delimiter=delimiter)
+        self.delimiter = delimiter
+        # a row whose texts hold none of these is written as the csv module writes it, joined by the delimiter
+        # (QUOTE_MINIMAL quotes a text only for one of them); other rows by the csv module
+        self._joined = delimiter not in ' "\r\n\0' and len(delimiter) == 1
         fh.write("\ufeff")
         self.w.writerow(headers)
 
     def _text(self, v) -> str:
-        if type(v) is float:        # the common case, as below
-            text = repr(v) if not v.is_integer() else str(int(v)) if abs(v) < 1e16 else repr(v)
-            return text.replace(".", ",") if self.decimal == "," else text
         if v is None:
             return ""
         if isinstance(v, float):
@@ -99,7 +100,13 @@ class CsvTable:
 
     def write(self, values: list) -> None:
         text = self._text
-        self.w.writerow([v if type(v) is str else text(v) for v in values])   # the input's cells are texts
+        texts = [v if type(v) is str else text(v) for v in values]   # the input's cells are texts
+        line = self.delimiter.join(texts)
+        if (self._joined and len(texts) > 1 and line.count(self.delimiter) == len(texts) - 1 and '"' not in line
+                and "\n" not in line and "\r" not in line and "\0" not in line):
+            self.buf.write(line + "\r\n")
+        else:
+            self.w.writerow(texts)
         if self.buf.tell() > 1 << 16:
             self.flush()
 
