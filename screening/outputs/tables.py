@@ -84,8 +84,9 @@ class CsvTable:
         self.buf = io.StringIO(newline="")
         self.w = csv.writer(self.buf, delimiter=delimiter)
         self.delimiter = delimiter
-        # a row whose texts hold none of these is written as the csv module writes it, joined by the delimiter
-        # (QUOTE_MINIMAL quotes a text only for one of them); other rows by the csv module
+        # a row whose texts hold none of these is written as the csv module writes it, joined by the delimiter, a
+        # text that holds the delimiter in quotes (QUOTE_MINIMAL quotes a text only for one of them or the
+        # delimiter); other rows by the csv module
         self._joined = delimiter not in ' "\r\n\0' and len(delimiter) == 1
         fh.write("\ufeff")
         self.w.writerow(headers)
@@ -101,9 +102,12 @@ class CsvTable:
     def write(self, values: list) -> None:
         text = self._text
         texts = [v if type(v) is str else text(v) for v in values]   # the input's cells are texts
-        line = self.delimiter.join(texts)
-        if (self._joined and len(texts) > 1 and line.count(self.delimiter) == len(texts) - 1 and '"' not in line
-                and "\n" not in line and "\r" not in line and "\0" not in line):
+        d = self.delimiter
+        line = d.join(texts)
+        if (self._joined and len(texts) > 1 and '"' not in line and "\n" not in line and "\r" not in line
+                and "\0" not in line):
+            if line.count(d) != len(texts) - 1:     # a text holding the separator: quoted, as QUOTE_MINIMAL quotes it
+                line = d.join([f'"{t}"' if d in t else t for t in texts])
             self.buf.write(line + "\r\n")
         else:
             self.w.writerow(texts)
