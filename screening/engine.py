@@ -2213,8 +2213,8 @@ _SMALL_ROOT = 0.35
 
 #: Columns of the liquefied-gas path per row (floats; NaN for none), besides _FLOAT_COLUMNS' shared names.
 _LIQUEFIED_FLOAT_COLUMNS = ("t_peak", "rho_molar", "rho_fill_mass", "peak_ref", "p_fill_ref", "vapour_pressure",
-                            "dry", "liquid_full", "dpdt_liquid_full", "crossing", "max_t", "max_p", "target",
-                            "mass_rho", "lf_density")
+                            "liquid_fill_sat", "dry", "liquid_full", "dpdt_liquid_full", "crossing", "max_t", "max_p",
+                            "target", "mass_rho", "lf_density")
 
 
 def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:
@@ -2235,7 +2235,10 @@ def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.n
     ip = np.flatnonzero(by_pressure)
     below = ip[t_fill[ip] < tc]
     if below.size:
-        out["vapour_pressure"][below], _ok, _r = _loop(fluid.vapour_pressure, t_fill[below])
+        # the vapour pressure and, from the same flash, the saturated liquid's density (what vapour_pressure and
+        # saturated_liquid_density give; NaN where they raise), kept for _no_fill_reaches
+        out["vapour_pressure"][below], out["liquid_fill_sat"][below] = _saturation_states(fluid, t_fill[below],
+                                                                                           0.0)
     name = gas.name
     p_fill, atm = rows.p_fill.tolist(), rows.atm.tolist()
     tf = t_fill.tolist()
@@ -2500,7 +2503,16 @@ def _liquid_full_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback:
 _JUMP_CLEAR = 1e-5
 
 
-def _no_fill_reaches(fluid: ReferenceFluid, t_fill: np.ndarray, t_peak: np.ndarray, target: np.ndarray) -> np.ndarray:
+def _saturation_states(fluid: ReferenceFluid, t: np.ndarray, q: float) -> tuple[np.ndarray, np.ndarray]:
+    """fluid.saturation_states(t, q): NaN in both for every row where the fluid has no saturation states."""
+    try:
+        return fluid.saturation_states(t, q)
+    except NotApplicable:       # not a pure fluid: vapour_pressure raises for every row
+        return np.full(t.size, np.nan), np.full(t.size, np.nan)
+
+
+def _no_fill_reaches(fluid: ReferenceFluid, t_fill: np.ndarray, t_peak: np.ndarray, target: np.ndarray,
+                     rho_liquid: np.ndarray | None = None) -> np.ndarray:
     """Whether screen._limits finds no fill pressure whose peak is the target (rows whose target density at t_peak
     lies inside the dome at t_fill), shown so: the fills below the vapour pressure at t_fill are vapour, no denser
     than the saturated vapour there, and those above it liquid, no lighter than the saturated liquid; the
@@ -2508,20 +2520,21 @@ def _no_fill_reaches(fluid: ReferenceFluid, t_fill: np.ndarray, t_peak: np.ndarr
     target and those of the liquid fills above it (or beyond the equation's range). The only sign change
     screen._root can meet is that jump; the point it settles on there is rejected by the check |peak - target| <=
     1e-6 target, unless the jump ends next to the target: True where both ends are clear of it by _JUMP_CLEAR
-    (a liquid end beyond the range counts as clear), False where that is not shown."""
-    out = np.zeros(t_fill.size, dtype=bool)
-    for j, (tf, tp, tg) in enumerate(zip(t_fill.tolist(), t_peak.tolist(), target.tolist())):
-        try:
-            vapour_end = fluid.pressure(fluid.saturated_vapour_density(tf), tp) - tg
-            rho_l = fluid.saturated_liquid_density(tf)
-        except NotApplicable:
-            continue
-        try:
-            liquid_end = fluid.pressure(rho_l, tp) - tg
-        except NotApplicable:
-            liquid_end = math.inf
-        out[j] = vapour_end < -_JUMP_CLEAR * tg and liquid_end > _JUMP_CLEAR * tg
-    return out
+    (a liquid end beyond the range counts as clear), False where that is not shown. `rho_liquid`: the saturated
+    liquid's density at t_fill where the caller has it (NaN: none, where saturated_liquid_density raises).
+    The saturated states and pressures are those of saturated_vapour_density, saturated_liquid_density and
+    pressure, each evaluated over the rows at once."""
+    if t_fill.size == 0:
+        return np.zeros(0, dtype=bool)
+    _pv, rho_v = _saturation_states(fluid, t_fill, 1.0)
+    if rho_liquid is None:
+        _pl, rho_liquid = _saturation_states(fluid, t_fill, 0.0)
+    known = np.isfinite(rho_v) & np.isfinite(rho_liquid)
+    p_v, _v, _r = fluid.pressures(rho_v, t_peak)
+    p_l, ok_l, _r = fluid.pressures(rho_liquid, t_peak)
+    vapour_end = p_v - target
+    liquid_end = np.where(ok_l, p_l - target, np.inf)
+    return known & (vapour_end < -_JUMP_CLEAR * target) & (liquid_end > _JUMP_CLEAR * target)
 
 
 #: Relative width of the bracket within which :func:`_newton_in_bracket` settles a root (the root solves of
@@ -2722,7 +2735,7 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
     live = np.flatnonzero(~fallback & ~screened_out)
     rho_star = out["rho_star"] = np.full(n, np.nan)
     first = live if mass_limit else live[by_pressure[live]]
-    rho_star[first], _ok, _r = _loop(fluid.density, target[first], t_peak[first])
+    rho_star[first] = _target_densities(fluid, target[first], t_peak[first])
 
     # fill pressure whose peak is the target: the pressure of that density at the fill temperature, where that
     # state is one phase there (inside the dome no fill pressure gives that density: no limit)
@@ -2738,15 +2751,16 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
             p_star[have] = np.where(v & (ph != "two-phase"), p, np.nan)
             in_dome[have] = v & (ph == "two-phase")
 
+        # the vapour pressure at each fill temperature, known (NaN: not known, or none above the critical point)
+        vap_fill = out["vapour_pressure"]
+
         def f_p(p, ix):
+            # fluid.pressure(fluid.density(p, t_fill), t_peak) - target (NaN where either raises NotApplicable),
+            # the fill density's flash told the vapour pressure at t_fill that it would work out again
             r = pr[ix]
-            res = np.full(p.size, np.nan)
-            for j, (pj, i) in enumerate(zip(p.tolist(), r.tolist())):
-                try:
-                    res[j] = fluid.pressure(fluid.density(pj, float(t_fill[i])), float(t_peak[i])) - target[i]
-                except NotApplicable:
-                    pass
-            return res
+            rho_p, _pb, _ph, _ok = fluid.densities(p, t_fill[r], vap_fill[r])
+            peak_p, _v, _r = fluid.pressures(rho_p, t_peak[r])
+            return peak_p - target[r]
 
         # screen._root first looks at both ends: a fill at the top of the range may be a liquid heated past the
         # equation's range; only those rows need the look (a vapour fill there stays far inside it)
@@ -2763,7 +2777,8 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
             # the target's density inside the dome at the fill temperature: no limit (above), where the peak's
             # jump at the vapour pressure is clear of the target (_no_fill_reaches); else per row
             d = risky[in_dome[risky]]
-            fallback[pr[d[~_no_fill_reaches(fluid, t_fill[pr[d]], t_peak[pr[d]], target[pr[d]])]]] = True
+            fallback[pr[d[~_no_fill_reaches(fluid, t_fill[pr[d]], t_peak[pr[d]], target[pr[d]],
+                                            out["liquid_fill_sat"][pr[d]])]]] = True
             risky = risky[~in_dome[risky]]
         if risky.size:
             f_hi = f_p(p_hi[risky], risky)
@@ -2787,13 +2802,19 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         fallback[live[~_liquefied_mass_limit(fluid, out, live, live[:0])]] = True
 
 
+def _target_densities(fluid: ReferenceFluid, target: np.ndarray, t_peak: np.ndarray) -> np.ndarray:
+    """The density of the target pressure at the worst case per row (fluid.density: the PT flash; NaN where it
+    raises NotApplicable), the rows' flashes in one call."""
+    return fluid.densities(target, t_peak, np.full(target.size, np.nan))[0]
+
+
 def _liquefied_mass_limit(fluid: ReferenceFluid, out: dict, live: np.ndarray, star: np.ndarray) -> np.ndarray:
     """The fill density whose peak is the target (screen._mass_limit's root, before the liquid-full cap) of rows
     `live` into ``out["mass_rho"]``, the target's density first solved for rows `star`; returns whether each
     row's root is settled (False: the row needs the single screening)."""
     t_peak, target, rho_star = out["t_peak"], out["target"], out["rho_star"]
     if star.size:
-        rho_star[star], _ok, _r = _loop(fluid.density, target[star], t_peak[star])
+        rho_star[star] = _target_densities(fluid, target[star], t_peak[star])
     top = _rho_top(fluid, True)
     lo, hi = np.full(live.size, 1e-6 * top), np.full(live.size, top * 0.999)
 
