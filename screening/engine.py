@@ -2453,8 +2453,10 @@ def _dome_columns(fluid: ReferenceFluid, rho_molar: np.ndarray, out: dict, fallb
             fallback[d_rows[~ok_b]] = True
     lf = np.flatnonzero(~_stopped(out, fallback) & np.isfinite(out["liquid_full"]))
     if lf.size:
-        out["dpdt_liquid_full"][lf], ok, _ = _loop(fluid.dp_dt_at_constant_density, rho_molar[lf],
-                                                   out["liquid_full"][lf] + LIQUID_FULL_STEP)
+        # fluid.dp_dt_at_constant_density over the rows (its evaluation and slope; NaN where it raises)
+        _p, d = fluid.isochore_slopes(rho_molar[lf], out["liquid_full"][lf] + LIQUID_FULL_STEP)
+        ok = np.isfinite(d)
+        out["dpdt_liquid_full"][lf] = np.where(ok, d, np.nan)
         fallback[lf[~ok]] = True
 
 
