@@ -2597,6 +2597,23 @@ def _newton_in_bracket(g: Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, n
     return root, settled
 
 
+def _newton_guess(fluid: ReferenceFluid, rho: np.ndarray, rated: np.ndarray, rows: np.ndarray,
+                  guess: np.ndarray) -> np.ndarray:
+    """A guess of the temperature at which the isochores of rows `rows` reach the rating, bettered by one Newton
+    step on the isochore's own slope at it (the guess kept where the isochore cannot be evaluated there or does
+    not rise). A starting point only (:func:`_scan_up` settles on the same points whatever it is guessed)."""
+    out = np.array(guess, dtype=float)
+    g = np.flatnonzero(np.isfinite(out))
+    if g.size:
+        r = rows[g]
+        p, d = fluid.isochore_slopes(rho[r], out[g])
+        with np.errstate(invalid="ignore", divide="ignore"):
+            step = out[g] - (p - rated[r]) / d
+        use = np.isfinite(step) & (d > 0.0)
+        out[g[use]] = step[use]
+    return out
+
+
 def _temperature_limit(fluid: ReferenceFluid, f_t: Callable[[np.ndarray, np.ndarray], np.ndarray],
                        rho: np.ndarray, rated: np.ndarray, rows: np.ndarray, lo: np.ndarray, mid: np.ndarray,
                        f_mid: np.ndarray, hi: np.ndarray, boundary: np.ndarray,
@@ -2630,7 +2647,7 @@ def _temperature_limit(fluid: ReferenceFluid, f_t: Callable[[np.ndarray, np.ndar
             s = up[nan]
             # f_t cannot be evaluated at `end`, so nowhere above it either (the range is one interval from lo)
             root[s] = _scan_up(f_t, rows[s], lo[s], mid[s], f_mid[s], hi[s], nan_from=end[s],
-                               guess=None if guess is None else guess[s])
+                               guess=None if guess is None else _newton_guess(fluid, rho, rated, rows[s], guess[s]))
             done[s] = True
         below = ~nan & (f_end < 0.0)
         done[up[below]] = True                      # no root
