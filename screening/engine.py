@@ -2245,8 +2245,21 @@ def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.n
     # the vapour pressure at the fill, worked out once for the bands and the fill density
     vap = out["vapour_pressure"]
     psat = [None if math.isnan(x) else x for x in vap.tolist()]
+    # the vapour pressures at the ends of the saturation band of each fill below the critical temperature, the
+    # rows' flashes in one call each (NaN where vapour_pressure raises; the critical pressure where the upper end
+    # is at or above the critical temperature)
+    ends = [_screen.saturation_band_ends(tf[k], fluid) for k in below.tolist()]
+    t_lo = np.array([e[0] for e in ends], dtype=float)
+    t_hi = np.array([math.nan if e[1] is None else e[1] for e in ends], dtype=float)
+    p_lo = _saturation_states(fluid, t_lo, 0.0)[0]
+    p_hi = np.full(below.size, fluid.critical_pressure)
+    has_hi = np.flatnonzero(np.isfinite(t_hi))
+    p_hi[has_hi] = _saturation_states(fluid, t_hi[has_hi], 0.0)[0]
+    psat_ends: list = [None] * n
+    for k, lo_k, hi_k in zip(below.tolist(), p_lo.tolist(), p_hi.tolist()):
+        psat_ends[k] = (lo_k, hi_k)
     for k in ip.tolist():
-        band[k] = _screen.band_reason(p_fill[k], tf[k], fluid, name, atm[k], psat=psat[k])
+        band[k] = _screen.band_reason(p_fill[k], tf[k], fluid, name, atm[k], psat=psat[k], psat_ends=psat_ends[k])
     refused = np.array([b is not None for b in band], dtype=bool)
     out["band"], out["refused"] = band, refused
     rho_molar = np.full(n, np.nan)
@@ -2823,8 +2836,14 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
 
 def _target_densities(fluid: ReferenceFluid, target: np.ndarray, t_peak: np.ndarray) -> np.ndarray:
     """The density of the target pressure at the worst case per row (fluid.density: the PT flash; NaN where it
-    raises NotApplicable), the rows' flashes in one call."""
-    return fluid.densities(target, t_peak, np.full(target.size, np.nan))[0]
+    raises NotApplicable), the rows' flashes in one call, the vapour pressures they are told below the critical
+    temperature in one call before them (what vapour_pressure gives; NaN where it raises: density works it out
+    again and raises)."""
+    ps = np.full(target.size, np.nan)
+    below = np.flatnonzero(t_peak < fluid.critical_temperature)
+    if below.size:
+        ps[below] = _saturation_states(fluid, t_peak[below], 0.0)[0]
+    return fluid.densities(target, t_peak, ps)[0]
 
 
 def _liquefied_mass_limit(fluid: ReferenceFluid, out: dict, live: np.ndarray, star: np.ndarray) -> np.ndarray:
