@@ -2466,11 +2466,17 @@ def _dome_columns(fluid: ReferenceFluid, rho_molar: np.ndarray, out: dict, fallb
             fallback[d_rows[~ok_b]] = True
     lf = np.flatnonzero(~_stopped(out, fallback) & np.isfinite(out["liquid_full"]))
     if lf.size:
-        # fluid.dp_dt_at_constant_density over the rows (its evaluation and slope; NaN where it raises)
-        _p, d = fluid.isochore_slopes(rho_molar[lf], out["liquid_full"][lf] + LIQUID_FULL_STEP)
-        ok = np.isfinite(d)
-        out["dpdt_liquid_full"][lf] = np.where(ok, d, np.nan)
+        out["dpdt_liquid_full"][lf], ok = _isochore_slopes(fluid, rho_molar[lf], out["liquid_full"][lf] + LIQUID_FULL_STEP)
         fallback[lf[~ok]] = True
+
+
+def _isochore_slopes(fluid: ReferenceFluid, rho: np.ndarray, t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """fluid.dp_dt_at_constant_density per row (the same evaluation and slope), over the rows at once; returns
+    (slopes, valid) with NaN and False where it raises NotApplicable (and where CoolProp fails on the slope,
+    which that method does not catch)."""
+    _p, d = fluid.isochore_slopes(rho, t)
+    ok = np.isfinite(d)
+    return np.where(ok, d, np.nan), ok
 
 
 def _crossing_columns(fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:
@@ -2783,16 +2789,11 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
             p_star[have] = np.where(v & (ph != "two-phase"), p, np.nan)
             in_dome[have] = v & (ph == "two-phase")
 
-        # the vapour pressure at each fill temperature, known (NaN: not known, or none above the critical point)
         vap_fill = out["vapour_pressure"]
 
         def f_p(p, ix):
-            # fluid.pressure(fluid.density(p, t_fill), t_peak) - target (NaN where either raises NotApplicable),
-            # the fill density's flash told the vapour pressure at t_fill that it would work out again
             r = pr[ix]
-            rho_p, _pb, _ph, _ok = fluid.densities(p, t_fill[r], vap_fill[r])
-            peak_p, _v, _r = fluid.pressures(rho_p, t_peak[r])
-            return peak_p - target[r]
+            return _fill_peak_offsets(fluid, p, t_fill[r], t_peak[r], target[r], vap_fill[r])
 
         # screen._root first looks at both ends: a fill at the top of the range may be a liquid heated past the
         # equation's range; only those rows need the look (a vapour fill there stays far inside it)
@@ -2844,6 +2845,16 @@ def _target_densities(fluid: ReferenceFluid, target: np.ndarray, t_peak: np.ndar
     if below.size:
         ps[below] = _saturation_states(fluid, t_peak[below], 0.0)[0]
     return fluid.densities(target, t_peak, ps)[0]
+
+
+def _fill_peak_offsets(fluid: ReferenceFluid, p: np.ndarray, t_fill: np.ndarray, t_peak: np.ndarray,
+                       target: np.ndarray, vapour: np.ndarray) -> np.ndarray:
+    """fluid.pressure(fluid.density(p, t_fill), t_peak) - target per row (the worst-case peak of a fill pressure
+    p, less the target; NaN where either raises NotApplicable), over the rows at once; `vapour`: the vapour
+    pressure at t_fill where it is known (what vapour_pressure gives; NaN: density works it out)."""
+    rho, _p, _phase, _ok = fluid.densities(p, t_fill, vapour)
+    peak, _v, _r = fluid.pressures(rho, t_peak)
+    return peak - target
 
 
 def _liquefied_mass_limit(fluid: ReferenceFluid, out: dict, live: np.ndarray, star: np.ndarray) -> np.ndarray:
