@@ -2213,7 +2213,7 @@ _SMALL_ROOT = 0.35
 
 #: Columns of the liquefied-gas path per row (floats; NaN for none), besides _FLOAT_COLUMNS' shared names.
 _LIQUEFIED_FLOAT_COLUMNS = ("t_peak", "rho_molar", "rho_fill_mass", "peak_ref", "p_fill_ref", "vapour_pressure",
-                            "liquid_fill_sat", "dry", "liquid_full", "dpdt_liquid_full", "crossing", "max_t", "max_p",
+                            "liquid_fill_sat", "vapour_pressure_peak", "liquid_peak_sat", "dry", "liquid_full", "dpdt_liquid_full", "crossing", "max_t", "max_p",
                             "target", "mass_rho", "lf_density")
 
 
@@ -2508,9 +2508,18 @@ def _liquid_full_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback:
     gas = rows.gas
     tf, tp, rho = rows.t_fill.tolist(), out["t_peak"].tolist(), out["rho_molar"].tolist()
     lfd = out["lf_density"]
-    for k in np.flatnonzero(~fallback & ~out["refused"] & ~out["unreachable"]).tolist():
+    live = np.flatnonzero(~fallback & ~out["refused"] & ~out["unreachable"])
+    # the vapour pressure and the saturated liquid at the worst case below the critical temperature, from one
+    # flash a row (what vapour_pressure and saturated_liquid_density give; NaN where they raise): the liquid-full
+    # density here, the target's density's flash in _liquefied_limits
+    below = live[out["t_peak"][live] < fluid.critical_temperature]
+    if below.size:
+        out["vapour_pressure_peak"][below], out["liquid_peak_sat"][below] = _saturation_states(
+            fluid, out["t_peak"][below], 0.0)
+    sat = out["liquid_peak_sat"].tolist()
+    for k in live.tolist():
         try:
-            lfd[k] = _screen.liquid_full_density(fluid, tf[k], tp[k], gas)
+            lfd[k] = _screen.liquid_full_density(fluid, tf[k], tp[k], gas, sat[k])
         except NotApplicable:
             lfd[k] = np.nan
             applies[k] = True       # screen._liquid_full_applies: the liquid side not shown to be away from it
@@ -2773,7 +2782,7 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
     live = np.flatnonzero(~fallback & ~screened_out)
     rho_star = out["rho_star"] = np.full(n, np.nan)
     first = live if mass_limit else live[by_pressure[live]]
-    rho_star[first] = _target_densities(fluid, target[first], t_peak[first])
+    rho_star[first] = _target_densities(fluid, target[first], t_peak[first], out["vapour_pressure_peak"][first])
 
     # fill pressure whose peak is the target: the pressure of that density at the fill temperature, where that
     # state is one phase there (inside the dome no fill pressure gives that density: no limit)
@@ -2835,15 +2844,16 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         fallback[live[~_liquefied_mass_limit(fluid, out, live, live[:0])]] = True
 
 
-def _target_densities(fluid: ReferenceFluid, target: np.ndarray, t_peak: np.ndarray) -> np.ndarray:
+def _target_densities(fluid: ReferenceFluid, target: np.ndarray, t_peak: np.ndarray,
+                      vapour: np.ndarray) -> np.ndarray:
     """The density of the target pressure at the worst case per row (fluid.density: the PT flash; NaN where it
-    raises NotApplicable), the rows' flashes in one call, the vapour pressures they are told below the critical
-    temperature in one call before them (what vapour_pressure gives; NaN where it raises: density works it out
-    again and raises)."""
-    ps = np.full(target.size, np.nan)
-    below = np.flatnonzero(t_peak < fluid.critical_temperature)
-    if below.size:
-        ps[below] = _saturation_states(fluid, t_peak[below], 0.0)[0]
+    raises NotApplicable), the rows' flashes in one call; `vapour`: the vapour pressure at t_peak where it is
+    known (what vapour_pressure gives), the rest below the critical temperature worked out in one call before
+    the flashes (NaN where vapour_pressure raises: density works it out again and raises)."""
+    ps = np.array(vapour, dtype=float)
+    ask = np.flatnonzero(np.isnan(ps) & (t_peak < fluid.critical_temperature))
+    if ask.size:
+        ps[ask] = _saturation_states(fluid, t_peak[ask], 0.0)[0]
     return fluid.densities(target, t_peak, ps)[0]
 
 
@@ -2863,7 +2873,7 @@ def _liquefied_mass_limit(fluid: ReferenceFluid, out: dict, live: np.ndarray, st
     row's root is settled (False: the row needs the single screening)."""
     t_peak, target, rho_star = out["t_peak"], out["target"], out["rho_star"]
     if star.size:
-        rho_star[star] = _target_densities(fluid, target[star], t_peak[star])
+        rho_star[star] = _target_densities(fluid, target[star], t_peak[star], out["vapour_pressure_peak"][star])
     top = _rho_top(fluid, True)
     lo, hi = np.full(live.size, 1e-6 * top), np.full(live.size, top * 0.999)
 

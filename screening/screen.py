@@ -1069,7 +1069,8 @@ def _curves(models: list[Model], t_fill: float, t_peak: float, limits: dict,
 LIQUID_LIKE_TEMPERATURE_RATIO = 1.2
 
 
-def liquid_full_density(fluid: ReferenceFluid, t_fill: float, t_peak: float, gas: Mixture | None = None) -> float:
+def liquid_full_density(fluid: ReferenceFluid, t_fill: float, t_peak: float, gas: Mixture | None = None,
+                        saturated: float = math.nan) -> float:
     """Molar density [mol/m3] at and above which a vessel of a pure fluid or a liquefied blend counts as
     liquid-full (or a dense, liquid-like fluid) at the worst-case temperature t_peak [K] for a fill at
     t_fill [K]; inf where none. One rule for the verdict and for the fill-mass limit.
@@ -1078,7 +1079,8 @@ def liquid_full_density(fluid: ReferenceFluid, t_fill: float, t_peak: float, gas
     vessel at or below t_peak); above it, the critical density if the fill was at or below
     LIQUID_LIKE_TEMPERATURE_RATIO × Tc, else none. Liquefied blend: its bubble-point liquid density at t_peak;
     where the blend has no bubble point there (above its critical region), the dense-fluid rule with Kay's-rule
-    critical constants of `gas`.
+    critical constants of `gas`. `saturated`: a pure fluid's saturated-liquid density at t_peak where the caller
+    has it (what saturated_liquid_density gives; NaN: worked out here).
     """
     if isinstance(fluid, LiquefiedBlend):
         try:
@@ -1088,7 +1090,7 @@ def liquid_full_density(fluid: ReferenceFluid, t_fill: float, t_peak: float, gas
             return rho_c if t_fill <= LIQUID_LIKE_TEMPERATURE_RATIO * tc else math.inf
     tc = fluid.critical_temperature
     if t_peak < tc:
-        return fluid.saturated_liquid_density(t_peak)
+        return saturated if saturated == saturated else fluid.saturated_liquid_density(t_peak)
     if t_fill <= LIQUID_LIKE_TEMPERATURE_RATIO * tc:
         return fluid.critical_molar_density
     return math.inf

@@ -71,7 +71,7 @@ def _saturation_states_per_row(fluid, t, q):
     return p, rho
 
 
-def _target_densities_per_row(fluid, target, t_peak):
+def _target_densities_per_row(fluid, target, t_peak, vapour):
     return engine._loop(fluid.density, target, t_peak)[0]
 
 
@@ -110,7 +110,11 @@ def _band_reason_per_row(*args, psat_ends=None, **kwargs):
     return _band_reason(*args, **kwargs)
 
 
-_band_reason = _screen.band_reason
+def _liquid_full_density_per_row(fluid, t_fill, t_peak, gas=None, saturated=math.nan):
+    return _liquid_full_density(fluid, t_fill, t_peak, gas)
+
+
+_band_reason, _liquid_full_density = _screen.band_reason, _screen.liquid_full_density
 
 
 def _per_row(monkeypatch):
@@ -121,6 +125,7 @@ def _per_row(monkeypatch):
     monkeypatch.setattr(engine, "_isochore_slopes", _isochore_slopes_per_row)
     monkeypatch.setattr(engine, "_newton_guess", lambda fluid, rho, rated, rows, guess: guess)
     monkeypatch.setattr(_screen, "band_reason", _band_reason_per_row)
+    monkeypatch.setattr(_screen, "liquid_full_density", _liquid_full_density_per_row)
 
 
 def _same(a, b, key):
@@ -159,6 +164,12 @@ def test_liquefied_columns_at_once_equal_the_per_row_evaluations(tmp_path, monke
         t = float(part.t_fill[k])
         assert got["vapour_pressure"][k] == pytest.approx(CP.PropsSI("P", "T", t, "Q", 0, cp), rel=1e-9)
         assert got["liquid_fill_sat"][k] == pytest.approx(CP.PropsSI("Dmolar", "T", t, "Q", 0, cp), rel=1e-9)
+    ks = np.flatnonzero(np.isfinite(got["liquid_peak_sat"]))
+    assert ks.size
+    for k in ks[:20].tolist():
+        t = float(got["t_peak"][k])
+        assert got["vapour_pressure_peak"][k] == pytest.approx(CP.PropsSI("P", "T", t, "Q", 0, cp), rel=1e-9)
+        assert got["liquid_peak_sat"][k] == pytest.approx(CP.PropsSI("Dmolar", "T", t, "Q", 0, cp), rel=1e-9)
     ks = np.flatnonzero(np.isfinite(got["rho_star"]))
     assert ks.size
     for k in ks[:20].tolist():
