@@ -2213,8 +2213,8 @@ _SMALL_ROOT = 0.35
 
 #: Columns of the liquefied-gas path per row (floats; NaN for none), besides _FLOAT_COLUMNS' shared names.
 _LIQUEFIED_FLOAT_COLUMNS = ("t_peak", "rho_molar", "rho_fill_mass", "peak_ref", "p_fill_ref", "vapour_pressure",
-                            "liquid_fill_sat", "vapour_pressure_peak", "liquid_peak_sat", "dry", "liquid_full", "dpdt_liquid_full", "crossing", "max_t", "max_p",
-                            "target", "mass_rho", "lf_density")
+                            "liquid_fill_sat", "vapour_pressure_peak", "liquid_peak_sat", "dry", "liquid_full",
+                            "dpdt_liquid_full", "crossing", "max_t", "max_p", "target", "mass_rho", "lf_density")
 
 
 def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:
@@ -2466,7 +2466,8 @@ def _dome_columns(fluid: ReferenceFluid, rho_molar: np.ndarray, out: dict, fallb
             fallback[d_rows[~ok_b]] = True
     lf = np.flatnonzero(~_stopped(out, fallback) & np.isfinite(out["liquid_full"]))
     if lf.size:
-        out["dpdt_liquid_full"][lf], ok = _isochore_slopes(fluid, rho_molar[lf], out["liquid_full"][lf] + LIQUID_FULL_STEP)
+        out["dpdt_liquid_full"][lf], ok = _isochore_slopes(fluid, rho_molar[lf],
+                                                           out["liquid_full"][lf] + LIQUID_FULL_STEP)
         fallback[lf[~ok]] = True
 
 
