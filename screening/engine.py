@@ -2239,8 +2239,8 @@ _SMALL_ROOT = 0.35
 
 #: Columns of the liquefied-gas path per row (floats; NaN for none), besides _FLOAT_COLUMNS' shared names.
 _LIQUEFIED_FLOAT_COLUMNS = ("t_peak", "rho_molar", "rho_fill_mass", "peak_ref", "p_fill_ref", "vapour_pressure",
-                            "dry", "liquid_full", "dpdt_liquid_full", "crossing", "max_t", "max_p", "target",
-                            "mass_rho", "lf_density")
+                            "liquid_fill_sat", "vapour_pressure_peak", "liquid_peak_sat", "dry", "liquid_full",
+                            "dpdt_liquid_full", "crossing", "max_t", "max_p", "target", "mass_rho", "lf_density")
 
 
 def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:
@@ -2261,15 +2261,31 @@ def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.n
     ip = np.flatnonzero(by_pressure)
     below = ip[t_fill[ip] < tc]
     if below.size:
-        out["vapour_pressure"][below], _ok, _r = _loop(fluid.vapour_pressure, t_fill[below])
+        # the vapour pressure and, from the same flash, the saturated liquid's density (what vapour_pressure and
+        # saturated_liquid_density give; NaN where they raise), kept for _no_fill_reaches
+        out["vapour_pressure"][below], out["liquid_fill_sat"][below] = _saturation_states(fluid, t_fill[below],
+                                                                                           0.0)
     name = gas.name
     p_fill, atm = rows.p_fill.tolist(), rows.atm.tolist()
     tf = t_fill.tolist()
     # the vapour pressure at the fill, worked out once for the bands and the fill density
     vap = out["vapour_pressure"]
     psat = [None if math.isnan(x) else x for x in vap.tolist()]
+    # the vapour pressures at the ends of the saturation band of each fill below the critical temperature, the
+    # rows' flashes in one call each (NaN where vapour_pressure raises; the critical pressure where the upper end
+    # is at or above the critical temperature)
+    ends = [_screen.saturation_band_ends(tf[k], fluid) for k in below.tolist()]
+    t_lo = np.array([e[0] for e in ends], dtype=float)
+    t_hi = np.array([math.nan if e[1] is None else e[1] for e in ends], dtype=float)
+    p_lo = _saturation_states(fluid, t_lo, 0.0)[0]
+    p_hi = np.full(below.size, fluid.critical_pressure)
+    has_hi = np.flatnonzero(np.isfinite(t_hi))
+    p_hi[has_hi] = _saturation_states(fluid, t_hi[has_hi], 0.0)[0]
+    psat_ends: list = [None] * n
+    for k, lo_k, hi_k in zip(below.tolist(), p_lo.tolist(), p_hi.tolist()):
+        psat_ends[k] = (lo_k, hi_k)
     for k in ip.tolist():
-        band[k] = _screen.band_reason(p_fill[k], tf[k], fluid, name, atm[k], psat=psat[k])
+        band[k] = _screen.band_reason(p_fill[k], tf[k], fluid, name, atm[k], psat=psat[k], psat_ends=psat_ends[k])
     refused = np.array([b is not None for b in band], dtype=bool)
     out["band"], out["refused"] = band, refused
     rho_molar = np.full(n, np.nan)
@@ -2476,9 +2492,18 @@ def _dome_columns(fluid: ReferenceFluid, rho_molar: np.ndarray, out: dict, fallb
             fallback[d_rows[~ok_b]] = True
     lf = np.flatnonzero(~_stopped(out, fallback) & np.isfinite(out["liquid_full"]))
     if lf.size:
-        out["dpdt_liquid_full"][lf], ok, _ = _loop(fluid.dp_dt_at_constant_density, rho_molar[lf],
-                                                   out["liquid_full"][lf] + LIQUID_FULL_STEP)
+        out["dpdt_liquid_full"][lf], ok = _isochore_slopes(fluid, rho_molar[lf],
+                                                           out["liquid_full"][lf] + LIQUID_FULL_STEP)
         fallback[lf[~ok]] = True
+
+
+def _isochore_slopes(fluid: ReferenceFluid, rho: np.ndarray, t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """fluid.dp_dt_at_constant_density per row (the same evaluation and slope), over the rows at once; returns
+    (slopes, valid) with NaN and False where it raises NotApplicable (and where CoolProp fails on the slope,
+    which that method does not catch)."""
+    _p, d = fluid.isochore_slopes(rho, t)
+    ok = np.isfinite(d)
+    return np.where(ok, d, np.nan), ok
 
 
 def _crossing_columns(fluid: ReferenceFluid, out: dict, fallback: np.ndarray) -> None:
@@ -2510,9 +2535,18 @@ def _liquid_full_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback:
     gas = rows.gas
     tf, tp, rho = rows.t_fill.tolist(), out["t_peak"].tolist(), out["rho_molar"].tolist()
     lfd = out["lf_density"]
-    for k in np.flatnonzero(~fallback & ~out["refused"] & ~out["unreachable"]).tolist():
+    live = np.flatnonzero(~fallback & ~out["refused"] & ~out["unreachable"])
+    # the vapour pressure and the saturated liquid at the worst case below the critical temperature, from one
+    # flash a row (what vapour_pressure and saturated_liquid_density give; NaN where they raise): the liquid-full
+    # density here, the target's density's flash in _liquefied_limits
+    below = live[out["t_peak"][live] < fluid.critical_temperature]
+    if below.size:
+        out["vapour_pressure_peak"][below], out["liquid_peak_sat"][below] = _saturation_states(
+            fluid, out["t_peak"][below], 0.0)
+    sat = out["liquid_peak_sat"].tolist()
+    for k in live.tolist():
         try:
-            lfd[k] = _screen.liquid_full_density(fluid, tf[k], tp[k], gas)
+            lfd[k] = _screen.liquid_full_density(fluid, tf[k], tp[k], gas, sat[k])
         except NotApplicable:
             lfd[k] = np.nan
             applies[k] = True       # screen._liquid_full_applies: the liquid side not shown to be away from it
@@ -2526,7 +2560,16 @@ def _liquid_full_columns(rows: Rows, fluid: ReferenceFluid, out: dict, fallback:
 _JUMP_CLEAR = 1e-5
 
 
-def _no_fill_reaches(fluid: ReferenceFluid, t_fill: np.ndarray, t_peak: np.ndarray, target: np.ndarray) -> np.ndarray:
+def _saturation_states(fluid: ReferenceFluid, t: np.ndarray, q: float) -> tuple[np.ndarray, np.ndarray]:
+    """fluid.saturation_states(t, q): NaN in both for every row where the fluid has no saturation states."""
+    try:
+        return fluid.saturation_states(t, q)
+    except NotApplicable:       # not a pure fluid: vapour_pressure raises for every row
+        return np.full(t.size, np.nan), np.full(t.size, np.nan)
+
+
+def _no_fill_reaches(fluid: ReferenceFluid, t_fill: np.ndarray, t_peak: np.ndarray, target: np.ndarray,
+                     rho_liquid: np.ndarray | None = None) -> np.ndarray:
     """Whether screen._limits finds no fill pressure whose peak is the target (rows whose target density at t_peak
     lies inside the dome at t_fill), shown so: the fills below the vapour pressure at t_fill are vapour, no denser
     than the saturated vapour there, and those above it liquid, no lighter than the saturated liquid; the
@@ -2534,20 +2577,21 @@ def _no_fill_reaches(fluid: ReferenceFluid, t_fill: np.ndarray, t_peak: np.ndarr
     target and those of the liquid fills above it (or beyond the equation's range). The only sign change
     screen._root can meet is that jump; the point it settles on there is rejected by the check |peak - target| <=
     1e-6 target, unless the jump ends next to the target: True where both ends are clear of it by _JUMP_CLEAR
-    (a liquid end beyond the range counts as clear), False where that is not shown."""
-    out = np.zeros(t_fill.size, dtype=bool)
-    for j, (tf, tp, tg) in enumerate(zip(t_fill.tolist(), t_peak.tolist(), target.tolist())):
-        try:
-            vapour_end = fluid.pressure(fluid.saturated_vapour_density(tf), tp) - tg
-            rho_l = fluid.saturated_liquid_density(tf)
-        except NotApplicable:
-            continue
-        try:
-            liquid_end = fluid.pressure(rho_l, tp) - tg
-        except NotApplicable:
-            liquid_end = math.inf
-        out[j] = vapour_end < -_JUMP_CLEAR * tg and liquid_end > _JUMP_CLEAR * tg
-    return out
+    (a liquid end beyond the range counts as clear), False where that is not shown. `rho_liquid`: the saturated
+    liquid's density at t_fill where the caller has it (NaN: none, where saturated_liquid_density raises).
+    The saturated states and pressures are those of saturated_vapour_density, saturated_liquid_density and
+    pressure, each evaluated over the rows at once."""
+    if t_fill.size == 0:
+        return np.zeros(0, dtype=bool)
+    _pv, rho_v = _saturation_states(fluid, t_fill, 1.0)
+    if rho_liquid is None:
+        _pl, rho_liquid = _saturation_states(fluid, t_fill, 0.0)
+    known = np.isfinite(rho_v) & np.isfinite(rho_liquid)
+    p_v, _v, _r = fluid.pressures(rho_v, t_peak)
+    p_l, ok_l, _r = fluid.pressures(rho_liquid, t_peak)
+    vapour_end = p_v - target
+    liquid_end = np.where(ok_l, p_l - target, np.inf)
+    return known & (vapour_end < -_JUMP_CLEAR * target) & (liquid_end > _JUMP_CLEAR * target)
 
 
 #: Relative width of the bracket within which :func:`_newton_in_bracket` settles a root (the root solves of
@@ -2608,6 +2652,23 @@ def _newton_in_bracket(g: Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, n
     return root, settled
 
 
+def _newton_guess(fluid: ReferenceFluid, rho: np.ndarray, rated: np.ndarray, rows: np.ndarray,
+                  guess: np.ndarray) -> np.ndarray:
+    """A guess of the temperature at which the isochores of rows `rows` reach the rating, bettered by one Newton
+    step on the isochore's own slope at it (the guess kept where the isochore cannot be evaluated there or does
+    not rise). A starting point only (:func:`_scan_up` settles on the same points whatever it is guessed)."""
+    out = np.array(guess, dtype=float)
+    g = np.flatnonzero(np.isfinite(out))
+    if g.size:
+        r = rows[g]
+        p, d = fluid.isochore_slopes(rho[r], out[g])
+        with np.errstate(invalid="ignore", divide="ignore"):
+            step = out[g] - (p - rated[r]) / d
+        use = np.isfinite(step) & (d > 0.0)
+        out[g[use]] = step[use]
+    return out
+
+
 def _temperature_limit(fluid: ReferenceFluid, f_t: Callable[[np.ndarray, np.ndarray], np.ndarray],
                        rho: np.ndarray, rated: np.ndarray, rows: np.ndarray, lo: np.ndarray, mid: np.ndarray,
                        f_mid: np.ndarray, hi: np.ndarray, boundary: np.ndarray,
@@ -2641,7 +2702,7 @@ def _temperature_limit(fluid: ReferenceFluid, f_t: Callable[[np.ndarray, np.ndar
             s = up[nan]
             # f_t cannot be evaluated at `end`, so nowhere above it either (the range is one interval from lo)
             root[s] = _scan_up(f_t, rows[s], lo[s], mid[s], f_mid[s], hi[s], nan_from=end[s],
-                               guess=None if guess is None else guess[s])
+                               guess=None if guess is None else _newton_guess(fluid, rho, rated, rows[s], guess[s]))
             done[s] = True
         below = ~nan & (f_end < 0.0)
         done[up[below]] = True                      # no root
@@ -2748,7 +2809,7 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
     live = np.flatnonzero(~fallback & ~screened_out)
     rho_star = out["rho_star"] = np.full(n, np.nan)
     first = live if mass_limit else live[by_pressure[live]]
-    rho_star[first], _ok, _r = _loop(fluid.density, target[first], t_peak[first])
+    rho_star[first] = _target_densities(fluid, target[first], t_peak[first], out["vapour_pressure_peak"][first])
 
     # fill pressure whose peak is the target: the pressure of that density at the fill temperature, where that
     # state is one phase there (inside the dome no fill pressure gives that density: no limit)
@@ -2764,15 +2825,11 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
             p_star[have] = np.where(v & (ph != "two-phase"), p, np.nan)
             in_dome[have] = v & (ph == "two-phase")
 
+        vap_fill = out["vapour_pressure"]
+
         def f_p(p, ix):
             r = pr[ix]
-            res = np.full(p.size, np.nan)
-            for j, (pj, i) in enumerate(zip(p.tolist(), r.tolist())):
-                try:
-                    res[j] = fluid.pressure(fluid.density(pj, float(t_fill[i])), float(t_peak[i])) - target[i]
-                except NotApplicable:
-                    pass
-            return res
+            return _fill_peak_offsets(fluid, p, t_fill[r], t_peak[r], target[r], vap_fill[r])
 
         # screen._root first looks at both ends: a fill at the top of the range may be a liquid heated past the
         # equation's range; only those rows need the look (a vapour fill there stays far inside it)
@@ -2789,7 +2846,8 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
             # the target's density inside the dome at the fill temperature: no limit (above), where the peak's
             # jump at the vapour pressure is clear of the target (_no_fill_reaches); else per row
             d = risky[in_dome[risky]]
-            fallback[pr[d[~_no_fill_reaches(fluid, t_fill[pr[d]], t_peak[pr[d]], target[pr[d]])]]] = True
+            fallback[pr[d[~_no_fill_reaches(fluid, t_fill[pr[d]], t_peak[pr[d]], target[pr[d]],
+                                            out["liquid_fill_sat"][pr[d]])]]] = True
             risky = risky[~in_dome[risky]]
         if risky.size:
             f_hi = f_p(p_hi[risky], risky)
@@ -2813,13 +2871,36 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         fallback[live[~_liquefied_mass_limit(fluid, out, live, live[:0])]] = True
 
 
+def _target_densities(fluid: ReferenceFluid, target: np.ndarray, t_peak: np.ndarray,
+                      vapour: np.ndarray) -> np.ndarray:
+    """The density of the target pressure at the worst case per row (fluid.density: the PT flash; NaN where it
+    raises NotApplicable), the rows' flashes in one call; `vapour`: the vapour pressure at t_peak where it is
+    known (what vapour_pressure gives), the rest below the critical temperature worked out in one call before
+    the flashes (NaN where vapour_pressure raises: density works it out again and raises)."""
+    ps = np.array(vapour, dtype=float)
+    ask = np.flatnonzero(np.isnan(ps) & (t_peak < fluid.critical_temperature))
+    if ask.size:
+        ps[ask] = _saturation_states(fluid, t_peak[ask], 0.0)[0]
+    return fluid.densities(target, t_peak, ps)[0]
+
+
+def _fill_peak_offsets(fluid: ReferenceFluid, p: np.ndarray, t_fill: np.ndarray, t_peak: np.ndarray,
+                       target: np.ndarray, vapour: np.ndarray) -> np.ndarray:
+    """fluid.pressure(fluid.density(p, t_fill), t_peak) - target per row (the worst-case peak of a fill pressure
+    p, less the target; NaN where either raises NotApplicable), over the rows at once; `vapour`: the vapour
+    pressure at t_fill where it is known (what vapour_pressure gives; NaN: density works it out)."""
+    rho, _p, _phase, _ok = fluid.densities(p, t_fill, vapour)
+    peak, _v, _r = fluid.pressures(rho, t_peak)
+    return peak - target
+
+
 def _liquefied_mass_limit(fluid: ReferenceFluid, out: dict, live: np.ndarray, star: np.ndarray) -> np.ndarray:
     """The fill density whose peak is the target (screen._mass_limit's root, before the liquid-full cap) of rows
     `live` into ``out["mass_rho"]``, the target's density first solved for rows `star`; returns whether each
     row's root is settled (False: the row needs the single screening)."""
     t_peak, target, rho_star = out["t_peak"], out["target"], out["rho_star"]
     if star.size:
-        rho_star[star], _ok, _r = _loop(fluid.density, target[star], t_peak[star])
+        rho_star[star] = _target_densities(fluid, target[star], t_peak[star], out["vapour_pressure_peak"][star])
     top = _rho_top(fluid, True)
     lo, hi = np.full(live.size, 1e-6 * top), np.full(live.size, top * 0.999)
 

@@ -437,11 +437,23 @@ def _band_reason(case: Case, fluid: ReferenceFluid, t_fill: float) -> tuple[str,
                        tol.fill_temperature_k if tol is not None else 0.0)
 
 
+def saturation_band_ends(t_fill: float, fluid: ReferenceFluid, tol_t: float = 0.0) -> tuple[float, float | None]:
+    """The temperatures [K] at the ends of the saturation band around a fill temperature t_fill [K] below the
+    critical point (:func:`band_reason`): the lower one, and the upper one (None where it is at or above the
+    critical temperature: the band then reaches up to the critical pressure)."""
+    band_t = max(SATURATION_BAND_K, tol_t)
+    t_hi = t_fill + band_t
+    return max(t_fill - band_t, fluid.triple_temperature), (t_hi if t_hi < fluid.critical_temperature else None)
+
+
 def band_reason(p: float, t_fill: float, fluid: ReferenceFluid, gas_name: str, atm: float, tol_p: float = 0.0,
-                tol_t: float = 0.0, psat: float | None = None) -> tuple[str, str, str] | None:
+                tol_t: float = 0.0, psat: float | None = None,
+                psat_ends: tuple[float, float] | None = None) -> tuple[str, str, str] | None:
     """The rule of :func:`_band_reason` on plain values (one row of a batch as well as one case): fill pressure
     p [Pa] absolute at t_fill [K], atmospheric pressure atm [Pa], the input tolerances' half-bands tol_p [Pa] and
-    tol_t [K] (0: none); psat [Pa]: the fluid's vapour pressure at t_fill where the caller has it."""
+    tol_t [K] (0: none); psat [Pa]: the fluid's vapour pressure at t_fill where the caller has it; psat_ends
+    [Pa]: the vapour pressures at the ends of :func:`saturation_band_ends` where the caller has them (the
+    critical pressure at an upper end of None; NaN where vapour_pressure raises there)."""
     tc, pc = fluid.critical_temperature, fluid.critical_pressure
     band_t, band_p = max(CRITICAL_BAND_K, tol_t), max(CRITICAL_BAND_FRACTION * pc, tol_p)
     ask = "the fill pressure cannot fix how much is in the vessel. Give the fill mass instead."
@@ -457,8 +469,14 @@ def band_reason(p: float, t_fill: float, fluid: ReferenceFluid, gas_name: str, a
     try:
         if psat is None:
             psat = fluid.vapour_pressure(t_fill)
-        lo = fluid.vapour_pressure(max(t_fill - band_t, fluid.triple_temperature))
-        hi = fluid.vapour_pressure(t_fill + band_t) if t_fill + band_t < tc else pc
+        if psat_ends is None:
+            t_lo, t_hi = saturation_band_ends(t_fill, fluid, tol_t)
+            lo = fluid.vapour_pressure(t_lo)
+            hi = fluid.vapour_pressure(t_hi) if t_hi is not None else pc
+        else:
+            lo, hi = psat_ends
+            if math.isnan(lo) or math.isnan(hi):
+                return None
     except NotApplicable:
         return None
     band_p = max(SATURATION_BAND_FRACTION * psat, tol_p)
@@ -1064,7 +1082,8 @@ def _curves(models: list[Model], t_fill: float, t_peak: float, limits: dict,
 LIQUID_LIKE_TEMPERATURE_RATIO = 1.2
 
 
-def liquid_full_density(fluid: ReferenceFluid, t_fill: float, t_peak: float, gas: Mixture | None = None) -> float:
+def liquid_full_density(fluid: ReferenceFluid, t_fill: float, t_peak: float, gas: Mixture | None = None,
+                        saturated: float = math.nan) -> float:
     """Molar density [mol/m3] at and above which a vessel of a pure fluid or a liquefied blend counts as
     liquid-full (or a dense, liquid-like fluid) at the worst-case temperature t_peak [K] for a fill at
     t_fill [K]; inf where none. One rule for the verdict and for the fill-mass limit.
@@ -1073,7 +1092,8 @@ def liquid_full_density(fluid: ReferenceFluid, t_fill: float, t_peak: float, gas
     vessel at or below t_peak); above it, the critical density if the fill was at or below
     LIQUID_LIKE_TEMPERATURE_RATIO × Tc, else none. Liquefied blend: its bubble-point liquid density at t_peak;
     where the blend has no bubble point there (above its critical region), the dense-fluid rule with Kay's-rule
-    critical constants of `gas`.
+    critical constants of `gas`. `saturated`: a pure fluid's saturated-liquid density at t_peak where the caller
+    has it (what saturated_liquid_density gives; NaN: worked out here).
     """
     if isinstance(fluid, LiquefiedBlend):
         try:
@@ -1083,7 +1103,7 @@ def liquid_full_density(fluid: ReferenceFluid, t_fill: float, t_peak: float, gas
             return rho_c if t_fill <= LIQUID_LIKE_TEMPERATURE_RATIO * tc else math.inf
     tc = fluid.critical_temperature
     if t_peak < tc:
-        return fluid.saturated_liquid_density(t_peak)
+        return saturated if saturated == saturated else fluid.saturated_liquid_density(t_peak)
     if t_fill <= LIQUID_LIKE_TEMPERATURE_RATIO * tc:
         return fluid.critical_molar_density
     return math.inf

@@ -242,6 +242,11 @@ class ReferenceFluid:
             self.triple_temperature: float | None = float(a.Ttriple())
         else:
             self._init_mixture()
+        #: Whether the array methods recognise this fluid's good states on their fast path (`_evaluate_rows`):
+        #: a pure fluid that is not pseudo-pure, whose ranges are finite numbers (so that the fast path's plain
+        #: comparisons refuse every non-finite value the checks refuse).
+        self._rows_fast = (not self.is_mixture and not self.is_pseudo_pure
+                           and all(math.isfinite(x) for x in (self.t_min, self.t_max, self.p_max)))
 
     def __repr__(self) -> str:
         return f"ReferenceFluid({self.label})"
@@ -324,6 +329,8 @@ class ReferenceFluid:
 
     # ---------------------------------------------------------------------------------------------
     # core state evaluation at (rho, T); leaves self._state at that state. Returns (p, phase).
+    # The checked path: every rule and every reason is written here and in the _check_* methods. The array
+    # methods' fast path (_evaluate_rows) only recognises the states that pass all of them.
     def _evaluate(self, rho: float, T: float) -> tuple[float, str]:
         self._check_density(rho)
         self._check_temperature(T)
@@ -344,6 +351,74 @@ class ReferenceFluid:
         if T >= self.critical_temperature:
             return p, "supercritical"
         return p, "liquid" if rho > self.critical_molar_density else "gas"
+
+    def _evaluate_rows(self, rho_f: list[float], T_f: list[float], slopes: bool = False
+                       ) -> tuple[list[float], list[str | None], list[str], bytearray, list[float] | None]:
+        """:meth:`_evaluate` of many states (Python floats, lists of equal length), for the array methods; the
+        caller holds the lock. Returns (pressures [Pa], phase words, reasons, valid (one byte a state, 1 where
+        valid), slopes): a state that :meth:`_evaluate` refuses carries NaN, None, its NotApplicable reason and 0.
+        With ``slopes``, each valid state's slope along the isochore [Pa/K] (in the dome dp_sat/dT, as
+        :meth:`dp_dt_at_constant_density` takes it, unchecked), read right after its evaluation; a state where
+        CoolProp raises ValueError (in the evaluation or the slope) is then skipped, without a reason, as NaN.
+
+        Fast path (pure fluids that are not pseudo-pure, ``_rows_fast``): the same CoolProp calls as
+        :meth:`_evaluate`, in the same order, with its checks as plain comparisons on local names, which
+        accept exactly the states the checks accept, and the same phase words. It only answers "every check
+        passes, here are p and the phase": a state failing any comparison, or where CoolProp raises, goes
+        through :meth:`_evaluate` itself, which evaluates it again (the same calls, so the state is left where
+        it leaves it) and says why it is refused, so the rules and their reasons are written once, there
+        (tests/test_reference_rows.py compares the two paths state by state). Other fluids take
+        :meth:`_evaluate` for every state."""
+        n = len(rho_f)
+        p_out = [math.nan] * n
+        words: list[str | None] = [None] * n
+        reasons = [""] * n
+        valid = bytearray(n)
+        d_out = [math.nan] * n if slopes else None
+        evaluate, a = self._evaluate, self._state
+        iP, iT, iD = CoolProp.iP, CoolProp.iT, CoolProp.iDmolar
+        fast = self._rows_fast
+        if fast:
+            update, get_p, get_phase, dp_drho = a.update, a.p, a.phase, a.first_partial_deriv
+            by_rho_T, two_phase, inf = CoolProp.DmolarT_INPUTS, _TWO_PHASE, math.inf
+            t_min, t_max, p_max = self.t_min, self.t_max, self.p_max
+            t_c, rho_c = self.critical_temperature, self.critical_molar_density
+        for i in range(n):
+            rho, T = rho_f[i], T_f[i]
+            word = None
+            # _check_density, _check_temperature (NaN fails every comparison)
+            if fast and 0.0 < rho < inf and t_min <= T <= t_max:
+                try:
+                    update(by_rho_T, rho, T)
+                    p = get_p()
+                    iphase = get_phase()
+                    if 0.0 < p <= p_max:                                # _check_pressure
+                        if iphase == two_phase:
+                            word = "two-phase"
+                        elif 0.0 < dp_drho(iP, iD, iT) < inf:           # _check_stable
+                            word = "supercritical" if T >= t_c else "liquid" if rho > rho_c else "gas"
+                except ValueError:
+                    pass
+            if word is None:        # refused, or not on the fast path: the checked path answers, and says why
+                try:
+                    p, word = evaluate(rho, T)
+                except NotApplicable as exc:
+                    reasons[i] = exc.reason
+                    continue
+                except ValueError:
+                    if not slopes:
+                        raise
+                    continue
+            if slopes:
+                try:
+                    d_out[i] = (a.first_saturation_deriv(iP, iT) if word == "two-phase"
+                                else a.first_partial_deriv(iP, iT, iD))
+                except ValueError:
+                    continue
+            p_out[i] = p
+            words[i] = word
+            valid[i] = 1
+        return p_out, words, reasons, valid, d_out
 
     # ---------------------------------------------------------------------------------------------
     # mixtures
@@ -809,19 +884,10 @@ class ReferenceFluid:
         """
         rho_b, t_b = np.broadcast_arrays(np.asarray(rho_molar, dtype=float), np.asarray(T, dtype=float))
         shape = rho_b.shape
-        rho_f, t_f = rho_b.ravel().tolist(), t_b.ravel().tolist()     # Python floats: cheaper per row
-        n = len(rho_f)
-        out = np.full(n, np.nan)
-        valid = np.zeros(n, dtype=bool)
-        reasons = [""] * n
-        evaluate = self._evaluate
-        for i in range(n):
-            try:
-                out[i] = evaluate(rho_f[i], t_f[i])[0]
-                valid[i] = True
-            except NotApplicable as exc:
-                reasons[i] = exc.reason
-        return out.reshape(shape), valid.reshape(shape), np.array(reasons, dtype=str).reshape(shape)
+        # Python floats: cheaper per row
+        p, _words, reasons, valid, _ = self._evaluate_rows(rho_b.ravel().tolist(), t_b.ravel().tolist())
+        return (np.array(p, dtype=float).reshape(shape), np.frombuffer(valid, dtype=bool).reshape(shape),
+                np.array(reasons, dtype=str).reshape(shape))
 
 
     @_holding_the_state
@@ -829,22 +895,9 @@ class ReferenceFluid:
         """:meth:`pressure` and :meth:`dp_dt_at_constant_density` of many rows of a pure fluid from one evaluation
         each (1-D arrays of equal length): the pressure [Pa] and its slope along the isochore [Pa/K] (in the dome
         dp_sat/dT). Rows that cannot be evaluated carry NaN in both."""
-        rho_f, t_f = np.asarray(rho_molar, dtype=float).tolist(), np.asarray(T, dtype=float).tolist()
-        n = len(rho_f)
-        p_out = np.full(n, np.nan)
-        d_out = np.full(n, np.nan)
-        evaluate, a = self._evaluate, self._state
-        for i in range(n):
-            try:
-                p, phase = evaluate(rho_f[i], t_f[i])
-                d = (a.first_saturation_deriv(CoolProp.iP, CoolProp.iT) if phase == "two-phase"
-                     else a.first_partial_deriv(CoolProp.iP, CoolProp.iT, CoolProp.iDmolar))
-            except NotApplicable:
-                continue
-            except ValueError:
-                continue
-            p_out[i], d_out[i] = p, d
-        return p_out, d_out
+        p, _words, _reasons, _valid, d = self._evaluate_rows(np.asarray(rho_molar, dtype=float).tolist(),
+                                                             np.asarray(T, dtype=float).tolist(), slopes=True)
+        return np.array(p, dtype=float), np.array(d, dtype=float)
 
     @_holding_the_state
     def states(self, rho_molar: np.ndarray, T: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -853,19 +906,11 @@ class ReferenceFluid:
         Returns (pressures [Pa], phases (object array of the words of :meth:`phase`), valid mask); invalid rows
         carry NaN, None and False.
         """
-        rho_f, t_f = np.asarray(rho_molar, dtype=float).tolist(), np.asarray(T, dtype=float).tolist()
-        n = len(rho_f)
-        out = np.full(n, np.nan)
-        phases = np.full(n, None, dtype=object)
-        valid = np.zeros(n, dtype=bool)
-        evaluate = self._evaluate
-        for i in range(n):
-            try:
-                out[i], phases[i] = evaluate(rho_f[i], t_f[i])
-                valid[i] = True
-            except NotApplicable:
-                pass
-        return out, phases, valid
+        p, words, _reasons, valid, _ = self._evaluate_rows(np.asarray(rho_molar, dtype=float).tolist(),
+                                                           np.asarray(T, dtype=float).tolist())
+        phases = np.empty(len(words), dtype=object)
+        phases[:] = words
+        return np.array(p, dtype=float), phases, np.frombuffer(valid, dtype=bool)
 
 
 class LiquefiedBlend(ReferenceFluid):
