@@ -99,11 +99,15 @@ class BatchRun:
         slots: list[dict | None] = [None] * len(inv.rows)
         self._plain_at: dict[int, int] = {}
         self._fulls: dict[int, Result] = {}
-        for j, pos in enumerate(plain.index):
-            pos = int(pos)
-            r = self._plain.summaries[j]
+        rows, summaries = inv.rows, self._plain.summaries
+        for j, pos in enumerate(plain.index.tolist()):
+            r = summaries[j]
             self._plain_at[pos] = j
-            slots[pos] = self._placed(pos, r, plain.case(j).id if r.get("verdict") == "input-error" else None)
+            if r["verdict"] != "input-error":      # a screened row's summary (a dict), numbered as _placed numbers it
+                r["row"] = rows[pos][0]
+                slots[pos] = r
+            else:
+                slots[pos] = self._placed(pos, r, plain.case(j).id)
         cases, where = [], []
         for pos, (n, row_cells) in enumerate(inv.rows):
             if slots[pos] is not None:
@@ -236,12 +240,12 @@ def _spooled(rows: list[tuple], folder: str) -> Spooled | list[tuple]:
         return rows
     try:
         with os.fdopen(fd, "wb") as fh:
-            fh.write(b"".join([x[5] for x in rows if x[5] is not None]))
+            fh.write(b"".join([x[_LINE] for x in rows if x[_LINE] is not None]))
     except OSError:
         with contextlib.suppress(OSError):
             os.unlink(path)
         return rows
-    return Spooled(path, [x if x[5] is None else (*x[:5], len(x[5]), *x[6:]) for x in rows])
+    return Spooled(path, [x if x[_LINE] is None else (*x[:_LINE], len(x[_LINE]), *x[_LINE + 1:]) for x in rows])
 
 
 def _unspooled(got: Spooled | list[tuple]) -> list[tuple]:
@@ -253,11 +257,11 @@ def _unspooled(got: Spooled | list[tuple]) -> list[tuple]:
     os.unlink(got.path)
     out, a = [], 0
     for x in got.rows:
-        n = x[5]
+        n = x[_LINE]
         if n is None:
             out.append(x)
         else:
-            out.append((*x[:5], blob[a:a + n], *x[6:]))
+            out.append((*x[:_LINE], blob[a:a + n], *x[_LINE + 1:]))
             a += n
     return out
 
@@ -267,6 +271,7 @@ def _chunk_rows(job: tuple) -> Iterator[tuple]:
     inv, defaults, dups, want = job
     results, full, full_json = _screened(inv, defaults)
     headers = [c.header for c in inv.columns]
+    full_kind, json_on = want.get("full"), want.get("json")
     for i, r in enumerate(results):
         n = r["row"]
         if n in dups:
@@ -274,12 +279,13 @@ def _chunk_rows(job: tuple) -> Iterator[tuple]:
             r["warnings"] = list(r.get("warnings") or []) + [
                 {"code": "duplicate-id", "message": f"The id '{r.get('id')}' is also used on row {dups[n]}."}]
         f = None
-        if want.get("full") == "all" or (want.get("full") == "not-within" and r["verdict"] != "within"):
+        detail = full_kind == "all" or (full_kind == "not-within" and r["verdict"] != "within")
+        if detail:
             f = full(i)
             if isinstance(f, Result):
                 f = replace(f, warnings=_warnings(r["warnings"]))
         line = None
-        if want.get("json"):
+        if json_on:
             cells = inv.rows[i][1]
             # the full result's JSON: from the Result where the PDF needs it anyway, else built directly (a new
             # dict either way, but for an input-error record: the row's short result itself)
@@ -291,9 +297,14 @@ def _chunk_rows(job: tuple) -> Iterator[tuple]:
             rec["row"] = n
             rec["input"] = dict(zip(headers, chain(map(str, cells), repeat(""))))   # every header, "" past the cells
             line = json_bytes(rec)
-        keep_full = _with_curves(f, inv, i, defaults) if want.get("full") == "all" or (want.get("full") == "not-within"
-                                                                     and r["verdict"] != "within") else None
+        keep_full = _with_curves(f, inv, i, defaults) if detail else None
         yield r, line, keep_full
+
+
+#: The fields of a row as the batch writes and counts it (:func:`_row_summary`), one flat tuple a row: its severity
+#: key (three fields: rank, margin, row), verdict, duplicate id or not, the units of its result columns, JSON line,
+#: short result, then its result columns.
+_KEY, _VERDICT, _DUP, _UNITS, _LINE, _SHORT, _RESULT = slice(0, 3), 3, 4, 5, 6, 7, 8
 
 
 def _compact(rows: Iterator[tuple]) -> list[tuple]:
@@ -301,32 +312,37 @@ def _compact(rows: Iterator[tuple]) -> list[tuple]:
     back to the batch's process than everything else): per row :func:`_row_summary` with the short result only
     for the chunk's TERMINAL_ROWS worst rows, the only ones that can be among the inventory's worst (the keys are
     distinct: they end with the row)."""
-    units: dict[tuple, tuple] = {}
+    units: dict[tuple, tuple] = {}      # one tuple of units per chunk, pickled once
     out, short = [], []
     for r, line, _f in rows:
-        x = _row_summary(r, line, None)
-        if x[3] is not None:
-            x[3] = units.setdefault(x[3], x[3])     # one tuple of units per chunk, pickled once
-        out.append(x)
+        out.append(_row_summary(r, line, None, units))
         short.append(r)
-    for i in heapq.nsmallest(TERMINAL_ROWS, range(len(out)), key=lambda i: out[i][0]):
-        out[i][6] = short[i]
-    return [tuple(x) for x in out]
+    for i in heapq.nsmallest(TERMINAL_ROWS, range(len(out)), key=lambda i: out[i][_KEY]):
+        out[i] = (*out[i][:_SHORT], short[i], *out[i][_SHORT + 1:])
+    return out
 
 
 def _expanded(got: list[tuple]) -> list[tuple]:
     """screen_chunk's rows without ``compact`` as _compact's rows, each with its short result."""
-    return [tuple(_row_summary(r, line, r)) for r, line, _f in got]
+    return [_row_summary(r, line, r) for r, line, _f in got]
 
 
-def _row_summary(r: dict, line: bytes | None, short: dict | None) -> list:
-    """A screened row as the batch writes and counts it: [severity key, verdict, duplicate id or not, the units of
-    its result columns (None for an input error), its result columns in those units (result_values, as a tuple: a
-    tuple of numbers and texts is no work for the garbage collector once it has seen it), JSON line or None, `short`]."""
-    u = None if r["verdict"] == "input-error" else file_units(r)
-    pu, tu = u or ("bar(g)", "degC")
-    dup = any(w.get("code") == "duplicate-id" for w in r.get("warnings") or [])
-    return [severity_key(r), r["verdict"], dup, u, tuple(result_values(r, pu, tu)), line, short]
+def _row_summary(r: dict, line: bytes | None, short: dict | None, units: dict | None = None) -> tuple:
+    """A screened row as the batch writes and counts it, as one flat tuple (see _KEY...): its severity key's three
+    fields, verdict, duplicate id or not, the units of its result columns (None for an input error; the one equal
+    tuple of `units` where given), JSON line or None, `short`, then its result columns in those units
+    (result_values). One tuple of numbers and texts a row: no work for the garbage collector once it has seen it."""
+    verdict = r["verdict"]
+    if verdict == "input-error":
+        u = None
+        pu, tu = "bar(g)", "degC"
+    else:
+        u = pu, tu = file_units(r)
+        if units is not None:
+            u = units.setdefault(u, u)
+    warnings = r.get("warnings")
+    dup = bool(warnings) and any(w.get("code") == "duplicate-id" for w in warnings)
+    return (*severity_key(r), verdict, dup, u, line, short, *result_values(r, pu, tu))
 
 
 def _with_curves(f: Result | dict | None, inv: Inventory, i: int, defaults: dict | None) -> Result | dict | None:
@@ -790,16 +806,17 @@ def run(args) -> int:
                     done, fulls = _expanded(raw), [f for _, _, f in raw]
                 parts = []
                 if outputs.headers is None:
-                    outputs.open(None, next((u for _k, v, _d, u, *_ in done if v != "input-error"), None))
+                    outputs.open(None, next((x[_UNITS] for x in done if x[_VERDICT] != "input-error"), None))
                 units = (outputs.pu, outputs.tu)
-                if any(u is not None and u != units and s is None for _k, _v, _d, u, _r, _l, s in done):
+                if any(x[_UNITS] is not None and x[_UNITS] != units and x[_SHORT] is None for x in done):
                     # a row entered in other units than the file's first row: the window's short results, here
                     done = _expanded(_in_input_order([screen_chunk((*job[:3], dict(job[3], compact=False)))
                                                       for _h, _w, job in jobs], order))
-                for (key, verdict, dup, u, res, line, s), f, (_, cells_) in zip(done, fulls, window.rows):
-                    if u is not None and u != units:
-                        res = result_values(s, *units)
-                    tally.add_row(key, verdict, dup, s)
+                for x, f, (_, cells_) in zip(done, fulls, window.rows):
+                    u, s, line = x[_UNITS], x[_SHORT], x[_LINE]
+                    res = x[_RESULT:] if u is None or u == units else result_values(s, *units)
+                    key = x[_KEY]
+                    tally.add_row(key, x[_VERDICT], x[_DUP], s)
                     values = outputs.row_values(key[2], cells_, res)
                     if spill is not None:
                         spill.add(key, (values, line))

@@ -1283,15 +1283,11 @@ def _verdict(cols: dict, k: int, molar_mass: float, rated: float, relief: float 
     """One row's verdict, reasons, margins, governing model and warnings (through screen.decide); `bounding`:
     the bounding peak under the input tolerances [Pa], decided on where it is higher (as screen._screen_at)."""
     warnings = _exposure_warnings(cols, k, name)
-    peak_ideal, peak_ref = float(cols["peak_ideal"][k]), float(cols["peak_ref"][k])
-    lk_ok = bool(cols["lk_ok"][k])
-    peak_gen = float(cols["lk_peak"][k]) if lk_ok else None
-    # the governing model: the highest real-gas peak (screen._governing); the ideal gas governs nothing
-    real = [(nm, p) for nm, p in (("generalized", peak_gen), ("reference", peak_ref)) if p is not None]
-    gov_name, peak = max(real, key=lambda x: x[1])
+    peak_ref = float(cols["peak_ref"][k])
+    peak_gen = float(cols["lk_peak"][k]) if cols["lk_ok"][k] else None
+    gov_name, peak = _highest(peak_gen, peak_ref)
     if bounding is not None:
         peak = max(peak, bounding)
-    applicable = [("ideal", peak_ideal)] + real
     disagree = _screen.models_disagree(peak_gen, peak_ref)
     if disagree:
         warnings.append(disagree)
@@ -1301,7 +1297,21 @@ def _verdict(cols: dict, k: int, molar_mass: float, rated: float, relief: float 
         out_of_scope_reason=None, liquid_full_reason=None, filling_ratio_reason=ratio_reason)
     return {"verdict": verdict, "reasons": reasons, "warnings": warnings, "margin_fraction": margin,
             "relief_margin_fraction": relief_margin, "governing_model": gov_name, "peak_pressure_pa": peak,
-            "applicable": [nm for nm, _ in applicable]}
+            "applicable": _APPLICABLE[True, peak_gen is not None]}
+
+
+#: The names of a row's applicable models, keyed by (the ideal gas applies, the generalized model applies): one
+#: tuple shared by the rows (read only), in the order the models are listed; the reference model always applies.
+_APPLICABLE = {(ideal, gen): ("ideal",) * ideal + ("generalized",) * gen + ("reference",)
+               for ideal in (False, True) for gen in (False, True)}
+
+
+def _highest(peak_gen: float | None, peak_ref: float) -> tuple[str, float]:
+    """(name, peak) of the governing model: the highest real-gas peak (screen._governing), the generalized model's
+    where the two tie or the generalized model does not apply; the ideal gas governs nothing."""
+    if peak_gen is None or peak_ref > peak_gen:
+        return "reference", peak_ref
+    return "generalized", peak_gen
 
 
 def _generalized_model(cols: dict, k: int, gas: Mixture) -> dict:
@@ -1820,19 +1830,25 @@ class PlainScreening:
         n = len(plain)
         self.summaries: list[dict | None] = [None] * n
         self._full: dict[int, dict] = {}
-        self._where: dict[int, tuple[dict, int]] = {}
+        self._where: dict[int, int] = {}         # {plain row: its index in its group's columns} ...
+        self._group: dict[int, dict] = {}       # ... and those columns, where the row ran on the columns
         self._listed: dict[int, _Listed] = {}
         self._gas_parts: dict[int, dict] = {}    # {id of a gas: its result part} for the lines of the JSON
         groups: dict[tuple[str, bool], list[int]] = {}
         rest: list[int] = []
         by_mass = ~np.isnan(plain.fill_mass_kg)
         on_columns = []
-        for j, gas in enumerate(plain.gases):
+        routes: dict[tuple[int, bool], tuple[bool, bool]] = {}    # {(id of a gas, by mass): the row's route}
+        for j, (gas, mass) in enumerate(zip(plain.gases, by_mass.tolist())):
             # a permanent gas with a dome filled by mass on the liquefied-gas columns; hydrogen, helium, neon and
             # air filled by mass on the permanent-gas columns with their fills by pressure
-            liquefied = _on_liquefied_columns(gas, bool(by_mass[j]))
-            on_columns.append(liquefied or _vector_gas(gas))
-            if on_columns[-1]:
+            route = routes.get((id(gas), mass))
+            if route is None:       # the gases live as long as `plain`
+                liquefied = _on_liquefied_columns(gas, mass)
+                route = routes[id(gas), mass] = (liquefied, liquefied or _vector_gas(gas))
+            liquefied, columns = route
+            on_columns.append(columns)
+            if columns:
                 groups.setdefault((gas.name, liquefied), []).append(j)
             else:
                 rest.append(j)
@@ -1871,25 +1887,35 @@ class PlainScreening:
             max_t, max_p = cols["max_t"].tolist(), cols["max_p"].tolist()
             rated, margin_req, atm, p_fill = (a[groups[nm]].tolist() for a in (
                 plain.rated_pa, plain.required_margin, plain.atmospheric_pa, plain.fill_pressure_pa))
+            # the parts every row of the group reads alike, shared by its summaries (read only): the gas's name,
+            # the site of each atmospheric pressure
+            gas_name = {"name": gas.name}
+            sites: dict[float, dict] = {}
+            ids, units, summaries, suns = plain.ids, plain.display_units, self.summaries, self._sun
+            where, group = self._where, self._group
             for k, j in enumerate(groups[nm]):
                 if fallback[k]:
                     rest.append(j)
                     continue
                 v = verdicts[k]
-                self._where[j] = (cols, k)
-                sun = self._sun.get(j)
-                self.summaries[j] = {
-                    "id": plain.ids[j], "verdict": v["verdict"], "reasons": v["reasons"],
-                    "warnings": v["warnings"] if sun is None else _sun_warnings(v["warnings"], sun, keep),
+                where[j] = k
+                group[j] = cols
+                warnings = v["warnings"]
+                if suns and (sun := suns.get(j)) is not None:
+                    warnings = _sun_warnings(warnings, sun, keep)
+                site = sites.get(atm[k])
+                if site is None:
+                    site = sites[atm[k]] = {"atmospheric_pressure_pa": atm[k]}
+                t, p = max_t[k], max_p[k]
+                summaries[j] = {
+                    "id": ids[j], "verdict": v["verdict"], "reasons": v["reasons"], "warnings": warnings,
                     "peak_pressure_pa": v["peak_pressure_pa"], "rated_pressure_pa": rated[k],
                     "margin_fraction": v["margin_fraction"],
                     "required_margin_fraction": margin_req[k],
                     "governing_model": v["governing_model"],
-                    "limits": {"max_gas_temperature_k": (None if math.isnan(max_t[k]) or p_fill[k] >= rated[k]
-                                                         else max_t[k]),
-                               "max_fill_pressure_pa": None if math.isnan(max_p[k]) else max_p[k]},
-                    "gas": {"name": gas.name}, "display_units": plain.display_units[j],
-                    "site": {"atmospheric_pressure_pa": atm[k]}}
+                    "limits": {"max_gas_temperature_k": None if t != t or p_fill[k] >= rated[k] else t,
+                               "max_fill_pressure_pa": None if p != p else p},
+                    "gas": gas_name, "display_units": units[j], "site": site}
                 done += 1
             if progress:
                 progress(done)
@@ -1909,7 +1935,7 @@ class PlainScreening:
         """The full result of the j-th plain row (the input-error record where it could not be screened)."""
         if j in self._full:
             return self._full[j]
-        cols, k = self._where[j]
+        cols, k = self._group[j], self._where[j]
         if cols.get("kind") == "liquefied" and not _mass_limit_settled(cols, k, self.plain.gases[j]):
             try:
                 return single(self.plain.case(j))
@@ -1926,10 +1952,10 @@ class PlainScreening:
         With `line`, for a line of the batch's JSON, to be written at once: where the row ran on the columns,
         without its curves and cautions, laid out from the row's :class:`~screening.inputs.columns.CaseRow`
         rather than its Case, and sharing its gas's part and display units with other rows."""
-        if j in self._full or not (cols_k := self._where.get(j)):
+        if j in self._full or j not in self._where:
             r = self.full(j)
             return r.to_json() if isinstance(r, Result) else None
-        cols, k = cols_k
+        cols, k = self._group[j], self._where[j]
         # the row's columns as lists, once per group and column (a liquefied gas's fill-mass limit settled first,
         # for every row of the group at once), and the verdict its columns decided
         listed = self._listed.get(id(cols))
@@ -2972,9 +2998,7 @@ def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, a
     peak_ref = float(cols["peak_ref"][k])
     gas_ok = bool(cols["gas_ok"][k])
     peak_gen = float(cols["lk_peak"][k]) if gas_ok and cols["lk_ok"][k] else None
-    # the governing model: the highest real-gas peak (screen._governing); the ideal gas governs nothing
-    real = [(nm, p) for nm, p in (("generalized", peak_gen), ("reference", peak_ref)) if p is not None]
-    gov_name, peak = max(real, key=lambda x: x[1])
+    gov_name, peak = _highest(peak_gen, peak_ref)
     if bounding is not None:
         peak = max(peak, bounding)
     disagree = _screen.models_disagree(peak_gen, peak_ref)
@@ -2992,7 +3016,7 @@ def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, a
         out_of_scope_reason=None, liquid_full_reason=liquid_full, filling_ratio_reason=ratio_reason)
     return {"verdict": verdict, "reasons": reasons, "warnings": warnings, "margin_fraction": margin,
             "relief_margin_fraction": relief_margin, "governing_model": gov_name, "peak_pressure_pa": peak,
-            "applicable": (["ideal"] if gas_ok else []) + [nm for nm, _ in real]}
+            "applicable": _APPLICABLE[gas_ok, peak_gen is not None]}
 
 
 def _liquefied_plain_columns(part: PlainPart) -> dict:

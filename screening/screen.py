@@ -919,6 +919,8 @@ def governing_text(governing: str | None, others: list[str]) -> str:
 def liquid_full_reason(own: str | None, corners: Iterable[str] = ()) -> str | None:
     """The liquid-full reason of a vessel: its own finding at the worst case (None: none), then each finding at a
     corner of the input tolerances not given already, in one text; None where there is none."""
+    if not corners:         # none at the corners (an empty tuple or list): the vessel's own finding
+        return own or None
     found = [own] if own is not None else []
     found += [r for r in corners if r not in found]
     return " ".join(found) or None
@@ -942,6 +944,11 @@ def liquid_full_text(fs: FillState, t_peak: float, corner: bool = False) -> str:
 def _molar(case: Case, fs: FillState) -> float | None:
     """Fill molar density [mol/m3] from the fill state, as every model takes it."""
     return fs.rho_mass / case.gas.molar_mass if fs.rho_mass is not None else None
+
+
+#: Each verdict's word and severity (Verdict.value, Verdict.severity), looked up once per decision.
+_WORD = {v: v.value for v in Verdict}
+_SEVERITY_OF = {v: v.severity for v in Verdict}
 
 
 def decide(*, peak: float | None, rated: float, relief: float | None, atm: float, required_margin: float,
@@ -979,12 +986,18 @@ def decide(*, peak: float | None, rated: float, relief: float | None, atm: float
                                        f"required margin of {req}: the relief device may open."))
     if liquid_full_reason:
         findings.append((Verdict.LOW_MARGIN, liquid_full_reason))
-    verdict = max((v for v, _ in findings), key=lambda v: v.severity, default=Verdict.WITHIN)
-    reasons = [r for _, r in sorted(findings, key=lambda f: -f[0].severity)]
+    if not findings:
+        verdict, reasons = _WORD[Verdict.WITHIN], []
+    elif len(findings) == 1:
+        verdict, reasons = _WORD[findings[0][0]], [findings[0][1]]
+    else:
+        verdict = _WORD[max((v for v, _ in findings), key=_SEVERITY_OF.__getitem__)]
+        reasons = [r for _, r in sorted(findings, key=lambda f: -_SEVERITY_OF[f[0]])]
     if peak <= rated and margin >= required_margin:
         m, req = percent_pair(margin, required_margin)
         reasons.append(f"The peak pressure stays within the rating with a margin of {m} (required {req}).")
-    return verdict.value, reasons, margin, relief_margin   # the word itself: results are plain data
+    return verdict, reasons, margin, relief_margin   # the word itself: results are plain data
+
 
 
 # ----------------------------------------------------------------------------- the screening

@@ -428,10 +428,10 @@ def test_a_chunk_s_lines_come_back_through_its_spool_file_byte_for_byte(kinds_in
     inv, defaults = _inventories(kinds_inventory)[1]
     want = {"json": True, "full": None, "compact": True}
     plain = batch.screen_chunk((inv, defaults, {}, want))
-    assert all(isinstance(x[5], bytes) for x in plain)
+    assert all(isinstance(x[batch._LINE], bytes) for x in plain)
     spooled = batch.screen_chunk((inv, defaults, {}, dict(want, spool=str(tmp_path))))
     assert isinstance(spooled, batch.Spooled) and os.listdir(tmp_path) == [os.path.basename(spooled.path)]
-    assert all(isinstance(x[5], int) for x in spooled.rows)
+    assert all(isinstance(x[batch._LINE], int) for x in spooled.rows)
     assert batch._unspooled(spooled) == plain
     assert os.listdir(tmp_path) == []
     assert batch.screen_chunk((inv, defaults, {}, dict(want, spool=str(tmp_path / "gone")))) == plain

@@ -49,6 +49,8 @@ def result_headers(pu: str, tu: str) -> list[str]:
 
 
 def _num(x: float | None) -> float | None:
+    if type(x) is float:        # the common case, as below: a finite float to six significant digits
+        return float(f"{x:.6g}") if x - x == 0.0 else None
     if x is None or not isinstance(x, (int, float)) or not math.isfinite(x):
         return None
     return float(f"{x:.6g}")
@@ -56,22 +58,21 @@ def _num(x: float | None) -> float | None:
 
 def result_values(r: dict, pu: str, tu: str) -> list:
     """The result columns of one row: numbers (None where there is none) and texts."""
-    warnings = " ".join(w["message"] for w in r.get("warnings") or [])
-    reasons = " ".join(str(x) for x in r.get("reasons") or [])
-    if r["verdict"] == "input-error":
+    warnings = r.get("warnings")
+    warnings = " ".join([w["message"] for w in warnings]) if warnings else ""
+    reasons = r.get("reasons")
+    reasons = " ".join(map(str, reasons)) if reasons else ""
+    verdict = r["verdict"]
+    if verdict == "input-error":
         return [None, "", None, "input-error", reasons, None, None, warnings]
     atm = r["site"]["atmospheric_pressure_pa"]
     lim = r["limits"]
-
-    def P(p):
-        return None if p is None else _num(pressure_in(p, pu, atm))
-
-    def T(t):
-        return None if t is None else _num(temperature_in(t, tu))
-
-    m = r["margin_fraction"]
-    return [P(r["peak_pressure_pa"]), r["governing_model"] or "", None if m is None else _num(100.0 * m),
-            r["verdict"], reasons, T(lim["max_gas_temperature_k"]), P(lim["max_fill_pressure_pa"]), warnings]
+    peak, m = r["peak_pressure_pa"], r["margin_fraction"]
+    t, p = lim["max_gas_temperature_k"], lim["max_fill_pressure_pa"]
+    return [None if peak is None else _num(pressure_in(peak, pu, atm)), r["governing_model"] or "",
+            None if m is None else _num(100.0 * m), verdict, reasons,
+            None if t is None else _num(temperature_in(t, tu)), None if p is None else _num(pressure_in(p, pu, atm)),
+            warnings]
 
 
 class CsvTable:
@@ -82,6 +83,11 @@ class CsvTable:
         self.decimal = decimal
         self.buf = io.StringIO(newline="")
         self.w = csv.writer(self.buf, delimiter=delimiter)
+        self.delimiter = delimiter
+        # a row whose texts hold none of these is written as the csv module writes it, joined by the delimiter, a
+        # text that holds the delimiter in quotes (QUOTE_MINIMAL quotes a text only for one of them or the
+        # delimiter); other rows by the csv module
+        self._joined = delimiter not in ' "\r\n\0' and len(delimiter) == 1
         fh.write("\ufeff")
         self.w.writerow(headers)
 
@@ -95,7 +101,16 @@ class CsvTable:
 
     def write(self, values: list) -> None:
         text = self._text
-        self.w.writerow([v if type(v) is str else text(v) for v in values])   # the input's cells are texts
+        texts = [v if type(v) is str else text(v) for v in values]   # the input's cells are texts
+        d = self.delimiter
+        line = d.join(texts)
+        if (self._joined and len(texts) > 1 and '"' not in line and "\n" not in line and "\r" not in line
+                and "\0" not in line):
+            if line.count(d) != len(texts) - 1:     # a text holding the separator: quoted, as QUOTE_MINIMAL quotes it
+                line = d.join([f'"{t}"' if d in t else t for t in texts])
+            self.buf.write(line + "\r\n")
+        else:
+            self.w.writerow(texts)
         if self.buf.tell() > 1 << 16:
             self.flush()
 
