@@ -708,26 +708,31 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
             atm[i], elev[i] = e[0], e[2]
 
     def pressures(key: str, required: bool = False) -> tuple[np.ndarray, list]:
+        """[Pa, absolute] the key's pressures and their units: the bare numbers read at once taken as they are
+        (:func:`bare_pressures`), the other cells read by the column's parser."""
         raw = texts.get(key)
+        if raw is None:                         # neither a column nor a default
+            parsed(key, [], required)
+            return np.full(n_rows, np.nan), [None] * n_rows
         b = bare.get(key)
-        if b is not None:
-            return bare_pressures(key, b, raw, required)
-        got = parsed(key, [v if v is _MISSING else (v, b) for v, b in zip(raw, bases)] if raw else [], required)
-        p_abs = np.full(n_rows, np.nan)
-        labels: list = [None] * n_rows
-        if raw is None:
-            return p_abs, labels
-        for i, g in enumerate(got):
-            if g is not None:
-                p_abs[i] = g[0] + atm[i] if g[1] else g[0]
-                labels[i] = g[2]
+        if b is None:
+            p_abs, labels, slow = np.full(n_rows, np.nan), [None] * n_rows, list(range(n_rows))
+        else:
+            p_abs, labels, slow = bare_pressures(b)
+        if slow:
+            got = parsed(key, [raw[i] if raw[i] is _MISSING else (raw[i], bases[i]) for i in slow], required,
+                         None if b is None else slow)
+            for i, g in zip(slow, got):
+                if g is not None:
+                    p_abs[i] = g[0] + atm[i] if g[1] else g[0]
+                    labels[i] = g[2]
         with np.errstate(invalid="ignore"):
             ok[np.isfinite(p_abs) & ~(p_abs > 0.0)] = False
         return p_abs, labels
 
-    def bare_pressures(key: str, b: _Bare, raw: list, required: bool) -> tuple[np.ndarray, list]:
-        """pressures() of a column some of whose cells `b` read: those cells' values taken as they are, the
-        others read by the column's parser."""
+    def bare_pressures(b: _Bare) -> tuple[np.ndarray, list, list]:
+        """The pressures [Pa, absolute] and units of the cells `b` read (NaN and None elsewhere), and the rows
+        left to the column's parser."""
         spec = b.spec
         fast = b.fast
         if spec.basis is None:                  # the row's pressure_basis states it
@@ -740,16 +745,7 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
             labels = [spec.label] * n_rows if fast.all() else [spec.label if f else None for f in fast.tolist()]
         with np.errstate(invalid="ignore", over="ignore"):
             p_abs = np.where(fast, np.where(gauge, b.si + atm, b.si), np.nan)
-        slow = np.flatnonzero(~fast).tolist()
-        if slow:
-            got = parsed(key, [raw[i] if raw[i] is _MISSING else (raw[i], bases[i]) for i in slow], required, slow)
-            for i, g in zip(slow, got):
-                if g is not None:
-                    p_abs[i] = g[0] + atm[i] if g[1] else g[0]
-                    labels[i] = g[2]
-        with np.errstate(invalid="ignore"):
-            ok[np.isfinite(p_abs) & ~(p_abs > 0.0)] = False
-        return p_abs, labels
+        return p_abs, labels, np.flatnonzero(~fast).tolist()
 
     def quantities(key: str, required: bool = False) -> tuple[np.ndarray, list]:
         b = bare.get(key)
