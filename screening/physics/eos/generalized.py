@@ -1138,13 +1138,7 @@ def srk_quantum_pressure(molar_density, temperature, tc_classical, pc_classical,
     v = 1.0 / rho
     with np.errstate(divide="ignore", invalid="ignore"):
         p = np.where(v > b, R * t / (v - b) - a / (v * (v + b)), np.nan)
-    reason = _srk_domain(t, p)
-    valid = reason == ""
-    z = p / (rho * R * t)
-    return GeneralizedState(
-        pressure=np.where(valid, p, np.nan), molar_density=np.where(valid, rho, np.nan),
-        z=np.where(valid, z, np.nan), reduced_temperature=t / tc, reduced_pressure=p / pc, valid=valid,
-        reason=reason)
+    return _srk_state(p, rho, p / (rho * R * t), t, tc, pc, _srk_domain(t, p))
 
 
 def srk_quantum_density(pressure, temperature, tc_classical, pc_classical, molar_mass) -> GeneralizedState:
@@ -1176,8 +1170,13 @@ def srk_quantum_density(pressure, temperature, tc_classical, pc_classical, molar
         z, converged = _srk_newton(z, c1, c0)
     reason = _srk_domain(t, p)
     _set_reasons(reason, ~converged, lambda i: "the quantum-gas model's root did not converge")
+    return _srk_state(p, p / (z * R * t), z, t, tc, pc, reason)
+
+
+def _srk_state(p, rho, z, t, tc, pc, reason: np.ndarray) -> GeneralizedState:
+    """The quantum-gas model's state of pressures p [Pa], molar densities rho [mol/m3] and Z at t [K] (its
+    critical constants tc, pc): NaN where `reason` says why the model does not apply there."""
     valid = reason == ""
-    rho = p / (z * R * t)
     return GeneralizedState(
         pressure=np.where(valid, p, np.nan), molar_density=np.where(valid, rho, np.nan),
         z=np.where(valid, z, np.nan), reduced_temperature=t / tc, reduced_pressure=p / pc, valid=valid,
