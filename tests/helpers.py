@@ -101,3 +101,17 @@ def batch_on_one_and_two_workers(tmp_path, monkeypatch, lines: list[str], defaul
         run(["batch", str(inv), *extra, "--csv", str(names[0]), "--json", str(names[1]), "--quiet"])
         outs[n] = [p.read_bytes() for p in names]
     return outs
+
+
+def random_scenarios(rnd, counts: list[int]) -> str:
+    """The [[scenario]] tables of a random case: one of `counts` of them, each as listed, with a stated gas
+    temperature, or in the sun."""
+    text = ""
+    for j in range(rnd.choice(counts)):
+        text += f'[[scenario]]\nname = "s{j}"\n'
+        r = rnd.random()
+        if r < 0.4:
+            text += f'gas_temperature = "{rnd.uniform(-10, 80):.1f} degC"\n'
+        elif r < 0.6:
+            text += 'solar = "sun"\n'
+    return text

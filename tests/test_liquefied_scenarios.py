@@ -11,7 +11,7 @@ import random
 
 import CoolProp.CoolProp as CP
 import pytest
-from helpers import result_differences
+from helpers import random_scenarios, result_differences
 
 from screening import engine, screen
 from screening.inputs.case import parse_case_text
@@ -32,13 +32,7 @@ def _text(i: int, gas: str, rnd: random.Random) -> str:
             f'rated_pressure = "{rnd.uniform(rlo, rhi):.2f} bar(g)"\n'
             f'[fill]\ngas = "{gas}"\n{fill}\ntemperature = "{rnd.uniform(-20, 40):.2f} degC"\n'
             f'[exposure]\nambient_max = "{rnd.uniform(-30, 50):.2f} degC"\n')
-    for j in range(rnd.choice([2, 3])):
-        text += f'[[scenario]]\nname = "s{j}"\n'
-        r = rnd.random()
-        if r < 0.4:
-            text += f'gas_temperature = "{rnd.uniform(-10, 80):.1f} degC"\n'
-        elif r < 0.6:
-            text += 'solar = "sun"\n'
+    text += random_scenarios(rnd, [2, 3])
     return text
 
 

@@ -12,7 +12,12 @@ import random
 
 import CoolProp.CoolProp as CP
 import pytest
-from helpers import TOLERANCES_AND_SCENARIOS, batch_on_one_and_two_workers, result_differences
+from helpers import (
+    TOLERANCES_AND_SCENARIOS,
+    batch_on_one_and_two_workers,
+    random_scenarios,
+    result_differences,
+)
 
 from screening import engine, screen
 from screening.inputs.case import parse_case_text
@@ -31,13 +36,7 @@ def _text(i: int, gas: str, rnd: random.Random) -> str:
             f'[fill]\ngas = "{gas}"\nmass = "{cap * rnd.uniform(lo, hi):.3f} kg"\n'
             f'temperature = "{rnd.uniform(-20, 40):.2f} degC"\n'
             f'[exposure]\nambient_max = "{rnd.uniform(-30, 60):.2f} degC"\n')
-    for j in range(rnd.choice([1, 2, 3])):
-        text += f'[[scenario]]\nname = "s{j}"\n'
-        r = rnd.random()
-        if r < 0.4:
-            text += f'gas_temperature = "{rnd.uniform(-10, 80):.1f} degC"\n'
-        elif r < 0.6:
-            text += 'solar = "sun"\n'
+    text += random_scenarios(rnd, [1, 2, 3])
     text += f'[tolerance]\ngas_temperature = "{rnd.uniform(0.5, 8):.2f} K"\n'
     if rnd.random() < 0.5:        # a fill by mass: the fill temperature's band does not change the contents
         text += f'fill_temperature = "{rnd.uniform(0.5, 4):.2f} K"\n'
