@@ -177,13 +177,24 @@ def test_the_cached_fluid_and_empty_calls():
     assert p.shape == d.shape == (0,)
 
 
-def test_pseudo_pure_and_mixtures_take_the_checked_path_for_every_state():
+def test_pseudo_pure_from_its_maxcondentherm_and_mixtures_on_the_checked_path():
     air = reference_fluid(("Air",), (1.0,))
-    assert air.is_pseudo_pure and not air._rows_fast
+    assert air.is_pseudo_pure and air._rows_fast
+    # below its maxcondentherm a pseudo-pure fluid is refused: those states go to the checked path, which says so
+    assert air._rows_t_min == max(air.t_min, air.critical_temperature) > air.t_min
     rng = np.random.default_rng(11)
     rho = np.concatenate([rng.uniform(1.0, 20000.0, 200), [NAN, -1.0]])
     T = np.concatenate([rng.uniform(60.0, 400.0, 200), [300.0, 300.0]])   # some below its maxcondentherm
     _assert_rows_are_the_checked_path(air, rho, T)
+    p, phases, valid = air.states(rho, T)
+    below = T < air.critical_temperature
+    assert below.any() and not valid[below].any() and valid[~below].sum() > 100
+    reasons = air.pressures(rho, T)[2]
+    assert all("pseudo-pure" in r for r in reasons[below].tolist())
+    for r, t, pi in zip(rho[valid].tolist(), T[valid].tolist(), p[valid].tolist()):
+        # source: CoolProp's PropsSI for the air pseudo-pure fluid at the same (molar density, temperature)
+        assert pi == pytest.approx(CP.PropsSI("P", "Dmolar", r, "T", t, "Air"), rel=1e-12, abs=0.0)
+    assert set(phases[valid].tolist()) == {"supercritical"}
     mix = reference_fluid(("Argon", "CarbonDioxide"), (0.82, 0.18))
     assert not mix._rows_fast
     rho = np.array([400.0, 2000.0, NAN, 3000.0])

@@ -243,10 +243,14 @@ class ReferenceFluid:
         else:
             self._init_mixture()
         #: Whether the array methods recognise this fluid's good states on their fast path (`_evaluate_rows`):
-        #: a pure fluid that is not pseudo-pure, whose ranges are finite numbers (so that the fast path's plain
+        #: a pure or pseudo-pure fluid whose ranges are finite numbers (so that the fast path's plain
         #: comparisons refuse every non-finite value the checks refuse).
-        self._rows_fast = (not self.is_mixture and not self.is_pseudo_pure
+        self._rows_fast = (not self.is_mixture
                            and all(math.isfinite(x) for x in (self.t_min, self.t_max, self.p_max)))
+        #: The lowest temperature [K] the fast path takes: a pseudo-pure fluid is refused below its
+        #: maxcondentherm (:meth:`_check_temperature`), those states go to the checked path, which says so.
+        self._rows_t_min = (max(self.t_min, self.critical_temperature) if self._rows_fast and self.is_pseudo_pure
+                            else self.t_min)
 
     def __repr__(self) -> str:
         return f"ReferenceFluid({self.label})"
@@ -361,7 +365,8 @@ class ReferenceFluid:
         :meth:`dp_dt_at_constant_density` takes it, unchecked), read right after its evaluation; a state where
         CoolProp raises ValueError (in the evaluation or the slope) is then skipped, without a reason, as NaN.
 
-        Fast path (pure fluids that are not pseudo-pure, ``_rows_fast``): the same CoolProp calls as
+        Fast path (pure and pseudo-pure fluids, ``_rows_fast``; a pseudo-pure one from its maxcondentherm up,
+        ``_rows_t_min``): the same CoolProp calls as
         :meth:`_evaluate`, in the same order, with its checks as plain comparisons on local names, which
         accept exactly the states the checks accept, and the same phase words. It only answers "every check
         passes, here are p and the phase": a state failing any comparison, or where CoolProp raises, goes
@@ -381,7 +386,7 @@ class ReferenceFluid:
         if fast:
             update, get_p, get_phase, dp_drho = a.update, a.p, a.phase, a.first_partial_deriv
             by_rho_T, two_phase, inf = CoolProp.DmolarT_INPUTS, _TWO_PHASE, math.inf
-            t_min, t_max, p_max = self.t_min, self.t_max, self.p_max
+            t_min, t_max, p_max = self._rows_t_min, self.t_max, self.p_max
             t_c, rho_c = self.critical_temperature, self.critical_molar_density
         for i in range(n):
             rho, T = rho_f[i], T_f[i]
