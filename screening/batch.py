@@ -18,7 +18,9 @@ row is ``within``; 2 only if the file itself cannot be read; else 1.
 
 from __future__ import annotations
 
+import bisect
 import contextlib
+import functools
 import heapq
 import itertools
 import json
@@ -82,9 +84,11 @@ def _id_column(inv: Inventory) -> int:
 class BatchRun:
     """Every row of an inventory (or of one chunk of it) screened, in input order.
 
-    ``results[i]`` is row i's slim record with its "row": the part the table, CSV and counts use (see
-    :func:`screening.engine.slim`), or the ``input-error`` record. ``full(i)`` gives row i's full
-    :class:`~screening.result.Result` (built on demand; the input-error record for such a row)."""
+    ``result(i)`` is row i's slim record with its "row": the part the table, CSV and counts use (see
+    :func:`screening.engine.slim`), or the ``input-error`` record; a row that ran on the columns gets a new one
+    on each call (the batch lays a chunk's records out one at a time, as it writes them). ``results`` holds
+    every row's, laid out once. ``full(i)`` gives row i's full :class:`~screening.result.Result` (built on
+    demand; the input-error record for such a row)."""
 
     def __init__(self, inv: Inventory, defaults: dict | None = None, quiet: bool = True, plain=None) -> None:
         from screening.engine import PlainScreening, screen_cases
@@ -99,18 +103,14 @@ class BatchRun:
         slots: list[dict | None] = [None] * len(inv.rows)
         self._plain_at: dict[int, int] = {}
         self._fulls: dict[int, Result] = {}
-        rows, summaries = inv.rows, self._plain.summaries
+        screened = self._plain
         for j, pos in enumerate(plain.index.tolist()):
-            r = summaries[j]
             self._plain_at[pos] = j
-            if r["verdict"] != "input-error":      # a screened row's summary (a dict), numbered as _placed numbers it
-                r["row"] = rows[pos][0]
-                slots[pos] = r
-            else:
-                slots[pos] = self._placed(pos, r, plain.case(j).id)
+            if screened.failed(j):
+                slots[pos] = self._placed(pos, screened.summary(j), plain.case(j).id)
         cases, where = [], []
         for pos, (n, row_cells) in enumerate(inv.rows):
-            if slots[pos] is not None:
+            if slots[pos] is not None or pos in self._plain_at:
                 continue
             try:
                 cases.append(row_case(inv, n, row_cells, defaults))
@@ -120,7 +120,23 @@ class BatchRun:
                 slots[pos] = error_row(n, exc, cid)
         for pos, case, r in zip(where, cases, screen_cases(cases)):
             slots[pos] = self._placed(pos, r, case.id)
-        self.results: list[dict] = slots  # type: ignore[assignment]
+        self._slots = slots
+
+    def __len__(self) -> int:
+        return len(self._slots)
+
+    def result(self, i: int) -> dict:
+        """Row i's slim record with its "row" (see the class)."""
+        r = self._slots[i]
+        if r is None:       # a plain row screened on the columns (or per row), numbered as _placed numbers it
+            r = self._plain.summary(self._plain_at[i])
+            r["row"] = self.inv.rows[i][0]
+        return r
+
+    @functools.cached_property
+    def results(self) -> list[dict]:
+        """Every row's :meth:`result`, in order (laid out once, kept)."""
+        return [self.result(i) for i in range(len(self._slots))]
 
     def _placed(self, pos: int, r: Result | dict, case_id: str | None) -> dict:
         n = self.inv.rows[pos][0]
@@ -144,9 +160,9 @@ class BatchRun:
     def full(self, i: int) -> Result | dict:
         """Row i's full result (with its "row" and the batch's warnings); its input-error record for a
         row that could not be screened."""
-        r = self.results[i]
         if i in self._fulls:
             return self._fulls[i]
+        r = self.result(i)
         j = self._plain_at.get(i)
         if j is None or r["verdict"] == "input-error":
             return r
@@ -159,16 +175,15 @@ class BatchRun:
         """``full(i)`` as JSON (:func:`_json`) with the given warnings, built without the Result where the
         row ran on the columns (:meth:`screening.engine.PlainScreening.full_json`; with `line`, as a line of the
         JSON output holds it, to be written at once: maybe without the curves and cautions, sharing parts)."""
-        r = self.results[i]
         j = self._plain_at.get(i)
-        if i in self._fulls or j is None or r["verdict"] == "input-error":
+        if i in self._fulls or j is None or self._plain.failed(j):
             f = self.full(i)
             return _json(replace(f, warnings=_warnings(warnings)) if isinstance(f, Result) else f)
         f = self._plain.full_json(j, line)
         if f is None:
-            return r
+            return self.result(i)
         f["warnings"] = [ScreeningWarning.json_layout(w) for w in warnings]
-        f["row"] = r["row"]
+        f["row"] = self.inv.rows[i][0]
         return f
 
 
@@ -176,12 +191,12 @@ def _warnings(records: list[dict]) -> tuple[ScreeningWarning, ...]:
     return tuple(ScreeningWarning.from_json(w) for w in records)
 
 
-def _screened(inv: Inventory, defaults: dict | None) -> tuple[list[dict], object, object]:
-    """(results, full, full_json) of a chunk (see BatchRun); a row whose screening raises is screened alone, and
-    if it still raises, it becomes an input-error row: a bad row never takes its chunk with it."""
+def _screened(inv: Inventory, defaults: dict | None) -> tuple[int, object, object, object]:
+    """(rows, result, full, full_json) of a chunk (see BatchRun); a row whose screening raises is screened alone,
+    and if it still raises, it becomes an input-error row: a bad row never takes its chunk with it."""
     try:
         run = BatchRun(inv, defaults)
-        return run.results, run.full, run.full_json
+        return len(run), run.result, run.full, run.full_json
     except (InputError, ArithmeticError, ValueError):
         if len(inv.rows) == 1:
             raise
@@ -191,7 +206,7 @@ def _screened(inv: Inventory, defaults: dict | None) -> tuple[list[dict], object
         one = Inventory(inv.source, inv.columns, [(n, row_cells)], inv.delimiter, inv.decimal, inv.sheet)
         try:
             run = BatchRun(one, defaults)
-            results.append(run.results[0])
+            results.append(run.result(0))
             fulls.append(run.full(0))
         except (InputError, ArithmeticError, ValueError) as exc:
             cid = row_cells[id_col].strip() if id_col < len(row_cells) and row_cells[id_col].strip() else None
@@ -205,7 +220,7 @@ def _screened(inv: Inventory, defaults: dict | None) -> tuple[list[dict], object
     def full_json(i: int, warnings: list[dict], line: bool = False) -> dict:
         f = fulls[i]
         return _json(replace(f, warnings=_warnings(warnings)) if isinstance(f, Result) else f)
-    return results, fulls.__getitem__, full_json
+    return len(results), results.__getitem__, fulls.__getitem__, full_json
 
 
 def screen_chunk(job: tuple) -> list[tuple]:
@@ -269,10 +284,11 @@ def _unspooled(got: Spooled | list[tuple]) -> list[tuple]:
 def _chunk_rows(job: tuple) -> Iterator[tuple]:
     """screen_chunk's rows, one by one: (short result, JSON line or None, full result or None)."""
     inv, defaults, dups, want = job
-    results, full, full_json = _screened(inv, defaults)
+    rows, result, full, full_json = _screened(inv, defaults)
     headers = [c.header for c in inv.columns]
     full_kind, json_on = want.get("full"), want.get("json")
-    for i, r in enumerate(results):
+    for i in range(rows):
+        r = result(i)
         n = r["row"]
         if n in dups:
             r = dict(r)
@@ -313,12 +329,22 @@ def _compact(rows: Iterator[tuple]) -> list[tuple]:
     for the chunk's TERMINAL_ROWS worst rows, the only ones that can be among the inventory's worst (the keys are
     distinct: they end with the row)."""
     units: dict[tuple, tuple] = {}      # one tuple of units per chunk, pickled once
-    out, short = [], []
-    for r, line, _f in rows:
-        out.append(_row_summary(r, line, None, units))
-        short.append(r)
-    for i in heapq.nsmallest(TERMINAL_ROWS, range(len(out)), key=lambda i: out[i][_KEY]):
-        out[i] = (*out[i][:_SHORT], short[i], *out[i][_SHORT + 1:])
+    out: list[tuple] = []
+    # the TERMINAL_ROWS worst rows so far, by key, and their short results: a row not among them when it is
+    # screened is not among the chunk's, and its short result is let go at once
+    worst: list[tuple] = []
+    short: dict[int, dict] = {}
+    for i, (r, line, _f) in enumerate(rows):
+        x = _row_summary(r, line, None, units)
+        out.append(x)
+        key = (*x[_KEY], i)
+        if len(worst) < TERMINAL_ROWS or key < worst[-1]:
+            bisect.insort(worst, key)
+            short[i] = r
+            if len(worst) > TERMINAL_ROWS:
+                del short[worst.pop()[-1]]
+    for i, r in short.items():
+        out[i] = (*out[i][:_SHORT], r, *out[i][_SHORT + 1:])
     return out
 
 

@@ -799,23 +799,23 @@ class PlainPart(Rows):
 
 
 def _plain_columns(part: PlainPart) -> dict:
-    """_columns of the part plus ``verdict``: each vectorised row's :func:`_verdict` (None on fallback rows),
+    """_columns of the part plus each vectorised row's :func:`_verdict` (:func:`_verdict_columns`; None on
+    fallback rows),
     so that forked workers decide the verdicts of their own rows (a liquefied gas, or ``part.liquefied``:
     :func:`_liquefied_plain_columns`)."""
     if part.liquefied or _liquefied_gas(part.gas):
         return _liquefied_plain_columns(part)
     cols = _columns(part)
-    verdicts = np.full(part.p_fill.size, None, dtype=object)
     molar_mass = part.gas.molar_mass
     rated, atm, margin_req = part.rated.tolist(), part.atm.tolist(), part.margin_req.tolist()
     relief, ratio = part.relief.tolist(), part.ratio.tolist()
     # the columns _verdict reads, as lists (indexing a list is cheaper than making a numpy scalar)
     listed = {key: cols[key].tolist() for key in ("gas_below_ambient", "peak_ideal", "peak_ref", "lk_ok", "lk_peak",
                                                   "rho_molar", "fill_governs", "t_exposure", "t_peak")}
-    for k in np.flatnonzero(~cols["fallback"]).tolist():
-        verdicts[k] = _verdict(listed, k, molar_mass, rated[k], None if math.isnan(relief[k]) else relief[k], atm[k],
-                               margin_req[k], None if math.isnan(ratio[k]) else ratio[k], "exposure")
-    cols["verdict"] = verdicts
+    _verdict_columns(cols, part.p_fill.size, (
+        (k, _verdict(listed, k, molar_mass, rated[k], None if math.isnan(relief[k]) else relief[k], atm[k],
+                     margin_req[k], None if math.isnan(ratio[k]) else ratio[k], "exposure"))
+        for k in np.flatnonzero(~cols["fallback"]).tolist()))
     return cols
 
 
@@ -1304,6 +1304,39 @@ def _verdict(cols: dict, k: int, molar_mass: float, rated: float, relief: float 
 #: tuple shared by the rows (read only), in the order the models are listed; the reference model always applies.
 _APPLICABLE = {(ideal, gen): ("ideal",) * ideal + ("generalized",) * gen + ("reference",)
                for ideal in (False, True) for gen in (False, True)}
+
+
+def _verdict_columns(cols: dict, n: int, verdicts: Iterable[tuple[int, dict]]) -> None:
+    """Rows' verdicts ((row, :func:`_verdict` or :func:`_liquefied_verdict`) pairs) into the columns as a batch's
+    plain rows keep them until their chunk is written: ``verdict`` (its word, margins, governing model, peak and
+    applicable models, one tuple a row), ``verdict_reasons`` and ``verdict_warnings`` (tuples of texts), each in its
+    own object array (None on the other rows; :func:`_verdict_of` gives a row's back). A tuple of numbers and texts
+    held by an array alone leaves the garbage collector's lists at its first look, where a dict of lists a row
+    (or a tuple holding a tuple) would be traced by its collections as long as the chunk lives."""
+    word, reasons, warnings = (np.full(n, None, dtype=object) for _ in range(3))
+    for k, v in verdicts:
+        word[k] = (v["verdict"], v["margin_fraction"], v["relief_margin_fraction"], v["governing_model"],
+                   v["peak_pressure_pa"], tuple(v["applicable"]))
+        reasons[k] = tuple(v["reasons"])
+        # each warning's code and message, one after the other (a warning is a code and its sentence,
+        # result.ScreeningWarning; a tuple holding dicts would stay in the collector's lists)
+        ws = v["warnings"]
+        warnings[k] = tuple(x for w in ws for x in (w["code"], w["message"])) if ws else ()
+    cols["verdict"], cols["verdict_reasons"], cols["verdict_warnings"] = word, reasons, warnings
+
+
+def _warnings_of(flat: tuple) -> list[dict]:
+    """The warnings :func:`_verdict_columns` keeps one after the other, as dicts again."""
+    return [{"code": flat[i], "message": flat[i + 1]} for i in range(0, len(flat), 2)] if flat else []
+
+
+def _verdict_of(cols: dict, k: int) -> dict:
+    """Row k's verdict kept by :func:`_verdict_columns`, as :func:`_verdict` gives it (its lists as tuples; the
+    layouts copy them)."""
+    word, margin, relief_margin, governing, peak, applicable = cols["verdict"][k]
+    return {"verdict": word, "reasons": cols["verdict_reasons"][k],
+            "warnings": _warnings_of(cols["verdict_warnings"][k]), "margin_fraction": margin, "relief_margin_fraction": relief_margin, "governing_model": governing,
+            "peak_pressure_pa": peak, "applicable": applicable}
 
 
 def _highest(peak_gen: float | None, peak_ref: float) -> tuple[str, float]:
@@ -1828,7 +1861,8 @@ class PlainScreening:
     def __init__(self, plain: PlainRows, progress: Callable[[int], None] | None = None) -> None:
         self.plain = plain
         n = len(plain)
-        self.summaries: list[dict | None] = [None] * n
+        self._slim: dict[int, dict] = {}         # {plain row: its summary} where the row went per row
+        self._parts: dict[int, _SummaryParts] = {}   # {id of a group's columns: what its rows' summaries read}
         self._full: dict[int, dict] = {}
         self._where: dict[int, int] = {}         # {plain row: its index in its group's columns} ...
         self._group: dict[int, dict] = {}       # ... and those columns, where the row ran on the columns
@@ -1879,44 +1913,19 @@ class PlainScreening:
                                    ambient[idx], hot[idx], plain.rated_pa[idx],
                                    plain.atmospheric_pa[idx], plain.required_margin[idx], plain.relief_pa[idx],
                                    plain.max_filling_ratio_kg_m3[idx], rho_mass, liquefied=nm[1]))
+        where, group = self._where, self._group
         for nm, cols in zip(names, _run_columns(parts, _plain_columns)):
             done = 0
-            gas = plain.gases[groups[nm][0]]
-            keep = _SUN_KEEPS_LIQUEFIED if cols.get("kind") == "liquefied" else _SUN_KEEPS
-            fallback, verdicts = cols["fallback"].tolist(), cols["verdict"].tolist()
-            max_t, max_p = cols["max_t"].tolist(), cols["max_p"].tolist()
-            rated, margin_req, atm, p_fill = (a[groups[nm]].tolist() for a in (
-                plain.rated_pa, plain.required_margin, plain.atmospheric_pa, plain.fill_pressure_pa))
-            # the parts every row of the group reads alike, shared by its summaries (read only): the gas's name,
-            # the site of each atmospheric pressure
-            gas_name = {"name": gas.name}
-            sites: dict[float, dict] = {}
-            ids, units, summaries, suns = plain.ids, plain.display_units, self.summaries, self._sun
-            where, group = self._where, self._group
+            fallback = cols["fallback"].tolist()
             for k, j in enumerate(groups[nm]):
                 if fallback[k]:
                     rest.append(j)
                     continue
-                v = verdicts[k]
                 where[j] = k
                 group[j] = cols
-                warnings = v["warnings"]
-                if suns and (sun := suns.get(j)) is not None:
-                    warnings = _sun_warnings(warnings, sun, keep)
-                site = sites.get(atm[k])
-                if site is None:
-                    site = sites[atm[k]] = {"atmospheric_pressure_pa": atm[k]}
-                t, p = max_t[k], max_p[k]
-                summaries[j] = {
-                    "id": ids[j], "verdict": v["verdict"], "reasons": v["reasons"], "warnings": warnings,
-                    "peak_pressure_pa": v["peak_pressure_pa"], "rated_pressure_pa": rated[k],
-                    "margin_fraction": v["margin_fraction"],
-                    "required_margin_fraction": margin_req[k],
-                    "governing_model": v["governing_model"],
-                    "limits": {"max_gas_temperature_k": None if t != t or p_fill[k] >= rated[k] else t,
-                               "max_fill_pressure_pa": None if p != p else p},
-                    "gas": gas_name, "display_units": units[j], "site": site}
                 done += 1
+            if done:
+                self._parts[id(cols)] = _SummaryParts(plain, groups[nm], cols)
             if progress:
                 progress(done)
         self.vectorised = n - len(rest)
@@ -1927,9 +1936,30 @@ class PlainScreening:
             except InputError as exc:
                 r = {"verdict": "input-error", "error": exc}
             self._full[j] = r
-            self.summaries[j] = slim(r) if isinstance(r, Result) else r
+            self._slim[j] = slim(r) if isinstance(r, Result) else r
             if progress:
                 progress(1)
+
+    def summary(self, j: int) -> dict:
+        """What the batch table, CSV and counts need of the j-th plain row (see :func:`slim`); the input-error
+        record where it could not be screened. Where the row ran on the columns, laid out from them on each call,
+        a new dict (the chunk's rows hold nothing for the garbage collector to trace while they wait to be
+        written); else the one record kept for the row."""
+        r = self._slim.get(j)
+        if r is not None:
+            return r
+        cols = self._group[j]
+        return self._parts[id(cols)].summary(self.plain, j, self._where[j], self._sun.get(j))
+
+    @functools.cached_property
+    def summaries(self) -> list[dict]:
+        """:meth:`summary` of every plain row, in order (laid out once, kept)."""
+        return [self.summary(j) for j in range(len(self.plain))]
+
+    def failed(self, j: int) -> bool:
+        """Whether the j-th plain row could not be screened (its summary is an input-error record)."""
+        r = self._slim.get(j)
+        return r is not None and r["verdict"] == "input-error"
 
     def full(self, j: int) -> Result | dict:
         """The full result of the j-th plain row (the input-error record where it could not be screened)."""
@@ -1975,7 +2005,42 @@ class PlainScreening:
             case = self.plain.case_row(j, part)
         else:
             case = self.plain.case(j)
-        return _row_dict(case, listed, k, listed["verdict"][k], sun=self._sun.get(j))
+        return _row_dict(case, listed, k, _verdict_of(listed, k), sun=self._sun.get(j))
+
+
+class _SummaryParts:
+    """What the summaries of a group's plain rows read (:meth:`PlainScreening.summary`): its columns as lists, each
+    listed once, and the parts every row of the group reads alike, shared by its summaries (read only): the gas's
+    name, the site of each atmospheric pressure."""
+
+    def __init__(self, plain: PlainRows, rows: list[int], cols: dict) -> None:
+        self.keep = _SUN_KEEPS_LIQUEFIED if cols.get("kind") == "liquefied" else _SUN_KEEPS
+        self.verdicts, self.reasons, self.warnings = (cols[key].tolist() for key in (
+            "verdict", "verdict_reasons", "verdict_warnings"))
+        self.max_t, self.max_p = cols["max_t"].tolist(), cols["max_p"].tolist()
+        self.rated, self.margin_req, self.atm, self.p_fill = (a[rows].tolist() for a in (
+            plain.rated_pa, plain.required_margin, plain.atmospheric_pa, plain.fill_pressure_pa))
+        self.gas_name = {"name": plain.gases[rows[0]].name}
+        self.sites: dict[float, dict] = {}
+
+    def summary(self, plain: PlainRows, j: int, k: int, sun: SunRow | None) -> dict:
+        """The summary of plain row j, row k of the group's columns; `sun`: its worst case in the sun, if any."""
+        word, margin, _relief_margin, governing, peak, _applicable = self.verdicts[k]
+        warnings = _warnings_of(self.warnings[k])
+        if sun is not None:
+            warnings = _sun_warnings(warnings, sun, self.keep)
+        atm, rated, p_fill = self.atm[k], self.rated[k], self.p_fill[k]
+        site = self.sites.get(atm)
+        if site is None:
+            site = self.sites[atm] = {"atmospheric_pressure_pa": atm}
+        t, p = self.max_t[k], self.max_p[k]
+        return {
+            "id": plain.ids[j], "verdict": word, "reasons": list(self.reasons[k]), "warnings": warnings,
+            "peak_pressure_pa": peak, "rated_pressure_pa": rated, "margin_fraction": margin,
+            "required_margin_fraction": self.margin_req[k], "governing_model": governing,
+            "limits": {"max_gas_temperature_k": None if t != t or p_fill >= rated else t,
+                       "max_fill_pressure_pa": None if p != p else p},
+            "gas": self.gas_name, "display_units": plain.display_units[j], "site": site}
 
 
 class _Listed(dict):
@@ -3023,15 +3088,14 @@ def _liquefied_plain_columns(part: PlainPart) -> dict:
     """_liquefied_columns of a part of plain rows plus each row's ``verdict``; the fill-density limit is solved
     only where a full result is asked for (:func:`_mass_limit_settled`)."""
     cols = _liquefied_columns(part, mass_limit=False)
-    verdicts = np.full(part.p_fill.size, None, dtype=object)
     rated, atm, margin_req = part.rated.tolist(), part.atm.tolist(), part.margin_req.tolist()
     relief, ratio = part.relief.tolist(), part.ratio.tolist()
     # the columns _liquefied_verdict reads, each listed once (indexing a list is cheaper than making a numpy scalar)
     listed = _Listed(cols)
-    for k in np.flatnonzero(~cols["fallback"]).tolist():
-        verdicts[k] = _liquefied_verdict(listed, k, rated[k], None if math.isnan(relief[k]) else relief[k], atm[k],
-                                         margin_req[k], None if math.isnan(ratio[k]) else ratio[k], "exposure")
-    cols["verdict"] = verdicts
+    _verdict_columns(cols, part.p_fill.size, (
+        (k, _liquefied_verdict(listed, k, rated[k], None if math.isnan(relief[k]) else relief[k], atm[k],
+                               margin_req[k], None if math.isnan(ratio[k]) else ratio[k], "exposure"))
+        for k in np.flatnonzero(~cols["fallback"]).tolist()))
     return cols
 
 

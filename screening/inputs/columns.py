@@ -25,6 +25,7 @@ import math
 import re
 from dataclasses import dataclass
 from itertools import chain
+from operator import itemgetter
 
 import numpy as np
 
@@ -582,8 +583,10 @@ def read_plain(inv: Inventory, defaults: dict | None) -> PlainRows:
     bare: dict[str, _Bare] = {}                       # the quantity columns' bare numbers, read at once
     row_cells = [row for _, row in inv.rows]
     longest = max(map(len, row_cells), default=0)
-    # the cells column by column: one transposition where every row has a cell in every column
-    by_column = list(zip(*row_cells)) if n_rows and min(map(len, row_cells)) >= width else None
+    # the cells column by column, where every row has a cell in every column (a column at a time: zip(*rows) would
+    # hold an iterator per row at once, which the garbage collector then traces as long-lived)
+    by_column = ([list(map(itemgetter(j), row_cells)) for j in range(width)]
+                 if n_rows and min(map(len, row_cells)) >= width else None)
     for j, col in enumerate(inv.columns):
         if col.key is None:              # a column of the user's own: carried through, not read
             continue
