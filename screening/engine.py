@@ -2315,14 +2315,16 @@ def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.n
     unreachable = np.zeros(n, dtype=bool)
     out["unreachable_reason"] = np.full(n, None, dtype=object)
     why = np.full(n, None, dtype=object)
+    # a fill by mass mostly lies inside the saturation dome at the fill temperature, and often at the worst case:
+    # those states are first looked at through the saturation flash (the same numbers, fewer full evaluations)
     for key, t in (("fill", t_fill), ("peak", t_peak)):
         if key == "fill":
             p, ph, ok = p_check[live], phase_check[live], np.ones(live.size, dtype=bool)
             e = np.flatnonzero(~checked[live])
             if e.size:
-                p[e], ph[e], ok[e] = fluid.states(rho[live[e]], t[live[e]])
+                p[e], ph[e], ok[e] = fluid.states(rho[live[e]], t[live[e]], dome=~by_pressure[live[e]])
         else:
-            p, ph, ok = fluid.states(rho[live], t[live])
+            p, ph, ok = fluid.states(rho[live], t[live], dome=~by_pressure[live])
         phases[key] = np.full(n, None, dtype=object)
         phases[key][live] = ph
         out["p_fill_ref" if key == "fill" else "peak_ref"][live] = p
@@ -2779,8 +2781,12 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
     if live.size == 0:
         return
 
+    # below the temperature where a row's isochore leaves the dome its states are two-phase: looked at through the
+    # saturation flash first (the same numbers, fewer full evaluations)
+    leaves = np.fmin(out["dry"], out["liquid_full"])
+
     def f_t(t, ix):
-        p, _v, _r = fluid.pressures(rho[ix], t)
+        p, _v, _r = fluid.pressures(rho[ix], t, dome=t < leaves[ix])
         return p / rated[ix] - 1.0
 
     # the reference isochore can be evaluated from the lower temperature up to the equation's range (its
@@ -2792,7 +2798,7 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         guess = np.where(t_peak[live] > lf, t_peak[live] + (rated[live] - peak[live]) / slope,
                          lf + (rated[live] - out["crossing"][live]) / slope)
     root, ok = _temperature_limit(fluid, f_t, rho, rated, live, t_lo[live], t_peak[live], peak[live] / rated[live] - 1.0,
-                                  t_hi[live], np.fmin(out["dry"], out["liquid_full"])[live], guess)
+                                  t_hi[live], leaves[live], guess)
     fallback[live[~ok]] = True
     max_t = out["max_t"]
     max_t[live[ok]] = root[ok]
