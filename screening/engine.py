@@ -2782,11 +2782,11 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         return
 
     # below the temperature where a row's isochore leaves the dome its states are two-phase: looked at through the
-    # saturation flash first (the same numbers, fewer full evaluations)
+    # saturation flash first (the same numbers, fewer full evaluations); a refused state's reason is not asked for
     leaves = np.fmin(out["dry"], out["liquid_full"])
 
     def f_t(t, ix):
-        p, _v, _r = fluid.pressures(rho[ix], t, dome=t < leaves[ix])
+        p, _v, _r = fluid.pressures(rho[ix], t, dome=t < leaves[ix], why=False)
         return p / rated[ix] - 1.0
 
     # the reference isochore can be evaluated from the lower temperature up to the equation's range (its

@@ -1,7 +1,8 @@
 """States inside the saturation dome looked at through the saturation flash first (`ReferenceFluid._evaluate_rows`
 with ``dome``: `pressures(..., dome=...)`, `states(..., dome=...)`) give what the density-temperature evaluation
 gives, bit for bit: the same pressures, phase words, valid flags and reasons, on states inside the dome, next to
-its boundary on either side, near the critical point, outside it and refused. The two-phase states it takes are
+its boundary on either side, near the critical point, outside it and refused; and `pressures(..., why=False)` the
+same pressures and valid flags without the refusals' reasons. The two-phase states it takes are
 checked against CoolProp's high-level PropsSI, evaluated here (its own state and call path); and the liquefied-gas
 columns, which ask for it where their states mostly lie inside the dome, are the same with it switched off."""
 
@@ -77,6 +78,14 @@ def test_dome_states_equal_the_density_temperature_evaluations(name):
         p, ph, v = f.states(rho, T, dome=dome)
         assert _same_bits(p, want_sp)
         assert ph.tolist() == want_ph.tolist() and v.tolist() == want_sv.tolist()
+    # the reasons not asked for: the same pressures and valid flags, no reasons
+    for dome in (False, True, mask):
+        p, v, r = f.pressures(rho, T, dome=dome, why=False)
+        assert _same_bits(p, want_p) and v.tolist() == want_v.tolist()
+        # a reason only where CoolProp itself raised (the checked path answers those), and then the same one
+        assert all(x in ("", y) for x, y in zip(r.tolist(), want_r.tolist()))
+        assert sum(x != "" for x in r.tolist()) < 0.1 * (~want_v).sum()
+    assert (~want_v).sum() > 20
     # broadcast and two-dimensional, with a mask of the same shape
     p2, v2, r2 = f.pressures(rho[:12].reshape(3, 4), T[:12].reshape(3, 4), dome=mask[:12].reshape(3, 4))
     assert _same_bits(p2.ravel(), want_p[:12]) and r2.ravel().tolist() == want_r[:12].tolist()
@@ -136,7 +145,7 @@ def test_two_phase_states_take_one_saturation_flash_and_agree_with_propssi(name)
 def _without_dome(monkeypatch):
     evaluate_rows = ReferenceFluid._evaluate_rows
 
-    def plain(self, rho_f, T_f, slopes=False, dome=False):
+    def plain(self, rho_f, T_f, slopes=False, dome=False, why=True):     # every state evaluated, every reason
         return evaluate_rows(self, rho_f, T_f, slopes)
 
     monkeypatch.setattr(ReferenceFluid, "_evaluate_rows", plain)
@@ -145,7 +154,7 @@ def _without_dome(monkeypatch):
 @pytest.mark.parametrize("gas,cp", [("carbon dioxide", "CarbonDioxide"), ("chlorine", "Chlorine"),
                                     ("ethylene", "Ethylene"), ("n-butane", "n-Butane"),
                                     ("nitrous oxide", "NitrousOxide")])
-def test_liquefied_columns_equal_those_without_the_saturation_flash(tmp_path, monkeypatch, gas, cp):
+def test_liquefied_columns_equal_those_without_the_saturation_flash_and_with_every_reason(tmp_path, monkeypatch, gas, cp):
     part = _part(tmp_path, gas, cp, 160, seed=sum(gas.encode()) + 5)
     got = engine._liquefied_columns(part)
     with monkeypatch.context() as m:

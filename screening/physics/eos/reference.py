@@ -359,7 +359,7 @@ class ReferenceFluid:
         return p, "liquid" if rho > self.critical_molar_density else "gas"
 
     def _evaluate_rows(self, rho_f: list[float], T_f: list[float], slopes: bool = False,
-                       dome: bool | np.ndarray = False
+                       dome: bool | np.ndarray = False, why: bool = True
                        ) -> tuple[list[float], list[str | None], list[str], bytearray, list[float] | None]:
         """:meth:`_evaluate` of many states (Python floats, lists of equal length), for the array methods; the
         caller holds the lock. Returns (pressures [Pa], phase words, reasons, valid (one byte a state, 1 where
@@ -384,8 +384,13 @@ class ReferenceFluid:
         density, the saturated vapour's below it, and the vapour pressure). A density inside the dome by more than
         _DOME_MARGIN of that saturated density is a two-phase state, whose pressure is the vapour pressure: what
         the density-temperature evaluation gives there, bit for bit, at a fraction of its cost (it works out both
-        saturated states in full). Any other state is evaluated as above (tests/test_reference_rows.py compares
-        the two, and PropsSI, state by state)."""
+        saturated states in full). Any other state is evaluated as above (tests/test_dome_states.py compares
+        the two, and PropsSI, state by state). The state is then left at the last flash made.
+
+        ``why`` False (for callers that only ask whether a state can be evaluated): a state the fast path's
+        comparisons refuse, without CoolProp raising, is given NaN, None, an empty reason and 0 without the
+        checked path evaluating it again to say why (it refuses every such state); where CoolProp raised, the
+        checked path answers as above."""
         n = len(rho_f)
         p_out = [math.nan] * n
         words: list[str | None] = [None] * n
@@ -421,18 +426,24 @@ class ReferenceFluid:
                         continue
                 except ValueError:
                     pass
-            if fast and 0.0 < rho < inf and t_min <= T <= t_max:
-                try:
-                    update(by_rho_T, rho, T)
-                    p = get_p()
-                    iphase = get_phase()
-                    if 0.0 < p <= p_max:                                # _check_pressure
-                        if iphase == two_phase:
-                            word = "two-phase"
-                        elif 0.0 < dp_drho(iP, iD, iT) < inf:           # _check_stable
-                            word = "supercritical" if T >= t_c else "liquid" if rho > rho_c else "gas"
-                except ValueError:
-                    pass
+            if fast:
+                if not (0.0 < rho < inf and t_min <= T <= t_max):
+                    if not why:
+                        continue
+                else:
+                    try:
+                        update(by_rho_T, rho, T)
+                        p = get_p()
+                        iphase = get_phase()
+                        if 0.0 < p <= p_max:                            # _check_pressure
+                            if iphase == two_phase:
+                                word = "two-phase"
+                            elif 0.0 < dp_drho(iP, iD, iT) < inf:       # _check_stable
+                                word = "supercritical" if T >= t_c else "liquid" if rho > rho_c else "gas"
+                        if word is None and not why:
+                            continue
+                    except ValueError:
+                        pass
             if word is None:        # refused, or not on the fast path: the checked path answers, and says why
                 try:
                     p, word = evaluate(rho, T)
@@ -910,20 +921,22 @@ class ReferenceFluid:
 
     # ---------------------------------------------------------------------------------------------
     @_holding_the_state
-    def pressures(self, rho_molar: np.ndarray, T: np.ndarray, dome: bool | np.ndarray = False
+    def pressures(self, rho_molar: np.ndarray, T: np.ndarray, dome: bool | np.ndarray = False, why: bool = True
                   ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """Vectorised :meth:`pressure` over rows (broadcast), looping the one cached AbstractState.
 
         Returns (pressures [Pa], valid mask [bool], reason [str, '' where valid]); invalid rows carry NaN,
         False and the reason in plain words. `dome`: the states (True: all; else a mask of the flattened states)
-        that mostly lie inside the saturation dome (the same numbers; :meth:`_evaluate_rows`).
+        that mostly lie inside the saturation dome (the same numbers; :meth:`_evaluate_rows`); `why` False: the
+        reasons of refused states are not asked for (empty; the same pressures and valid flags).
         """
         rho_b, t_b = np.broadcast_arrays(np.asarray(rho_molar, dtype=float), np.asarray(T, dtype=float))
         shape = rho_b.shape
         # Python floats: cheaper per row
         if not isinstance(dome, bool):
             dome = np.broadcast_to(np.asarray(dome, dtype=bool), shape).ravel()
-        p, _words, reasons, valid, _ = self._evaluate_rows(rho_b.ravel().tolist(), t_b.ravel().tolist(), dome=dome)
+        p, _words, reasons, valid, _ = self._evaluate_rows(rho_b.ravel().tolist(), t_b.ravel().tolist(), dome=dome,
+                                                           why=why)
         return (np.array(p, dtype=float).reshape(shape), np.frombuffer(valid, dtype=bool).reshape(shape),
                 np.array(reasons, dtype=str).reshape(shape))
 
