@@ -166,3 +166,75 @@ def test_liquefied_columns_equal_those_without_the_saturation_flash_and_with_eve
     # rows by mass whose fill lies inside the dome, and temperature limits found
     assert np.sum(got["phase_fill"] == "two-phase") > 20
     assert np.isfinite(got["max_t"]).sum() > 40
+
+
+@pytest.mark.parametrize("triple", [False, True])
+def test_newton_in_bracket_with_f_alone_at_the_pushed_points_equals_it_without(triple):
+    """Roots of x**3 - c on brackets around them by Newton steps (the point set past a converged step closes the
+    bracket), and of (x - r)**3, a triple root, from next to it (Newton converges slowly there: the points set
+    past a step fall short of the root, and g is asked there for the derivative): the same roots and flags, bit
+    for bit."""
+    rng = np.random.default_rng(3 if triple else 4)
+    c = rng.uniform(1.0, 1000.0, 400)
+    root = np.cbrt(c)
+    if triple:
+        a, b = root * (1.0 - 1e-3), root * (1.0 + 1e-3)
+        x0 = root * (1.0 + rng.uniform(-1e-9, 1e-9, c.size))
+    else:
+        a, b = root * rng.uniform(0.5, 0.99, c.size), root * rng.uniform(1.01, 2.0, c.size)
+        x0 = 0.5 * (a + b)
+    calls = {"g": 0, "f": 0}
+
+    def f(x, ix):
+        return (x - root[ix]) ** 3 if triple else x ** 3 - c[ix]
+
+    def g(x, ix):
+        calls["g"] += x.size
+        return f(x, ix), 3.0 * (x - root[ix]) ** 2 if triple else 3.0 * x ** 2
+
+    def f_only(x, ix):
+        calls["f"] += x.size
+        return f(x, ix)
+
+    idx = np.arange(c.size)
+    fa, fb = f(a, idx), f(b, idx)
+    want, ok_want = engine._newton_in_bracket(g, a, fa, b, fb, x0, idx)
+    g_plain = calls["g"]
+    calls["g"] = 0
+    got, ok_got = engine._newton_in_bracket(g, a, fa, b, fb, x0, idx, f_only)
+    assert ok_got.tolist() == ok_want.tolist() and ok_want.sum() > 0.9 * c.size
+    assert _same_bits(got, want)
+    assert calls["f"] > 0
+    if triple:
+        assert calls["g"] + calls["f"] > g_plain           # pushed points that did not close: g asked there too
+    else:
+        assert calls["g"] + calls["f"] == g_plain          # every pushed point closed its bracket
+    # the roots against numpy's cube root (an independent computation)
+    assert np.allclose(got[ok_got], root[ok_got], rtol=1e-11, atol=0.0)
+
+
+@pytest.mark.parametrize("cp", ["Chlorine", "IsoButane", "n-Butane", "CO2", "Ammonia"])
+def test_temperature_limit_equals_it_with_the_slope_at_every_point(cp, monkeypatch):
+    from test_liquefied_solves import _limit_problem, _rows
+
+    fluid, rho, t_fill, t_peak, rated = _rows(cp, 253.0, 298.0, 233.0, 358.0, 300, seed=len(cp) + 3)
+    rho = np.concatenate([rho, 0.6 * rho])
+    t_fill, t_peak, rated = (np.concatenate([x, x]) for x in (t_fill, t_peak, rated))
+    live, rc, boundary, f_t, t_lo, t_hi, f_mid = _limit_problem(fluid, rho, t_fill, t_peak, rated)
+    args = (fluid, f_t, rho, rated, live, t_lo, t_peak[live], f_mid, t_hi, boundary[live])
+    got, ok_got = engine._temperature_limit(*args)
+    newton = engine._newton_in_bracket
+    with monkeypatch.context() as m:
+        m.setattr(engine, "_newton_in_bracket", lambda g, a, fa, b, fb, x0, idx, f_only=None:
+                  newton(g, a, fa, b, fb, x0, idx))
+        want, ok_want = engine._temperature_limit(*args)
+    assert ok_got.tolist() == ok_want.tolist()
+    assert _same_bits(got, want)
+    found = np.flatnonzero(np.isfinite(got))
+    assert found.size > 100
+    # roots on the dome part of the isochore among them
+    assert (got[found] < boundary[live][found]).sum() > 10
+    # CoolProp's reference equation through PropsSI (an independent call path): the rating at the root
+    for j in found[:: max(1, found.size // 40)].tolist():
+        r = live[j]
+        assert CP.PropsSI("P", "Dmolar", rho[r], "T", got[j], cp) == pytest.approx(rated[r], rel=1e-9)
