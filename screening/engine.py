@@ -2866,7 +2866,12 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         p_star = np.full(pr.size, np.nan)
         in_dome = np.zeros(pr.size, dtype=bool)
         if have.any():
-            p, ph, v = fluid.states(rho_star[pr][have], t_fill[pr][have])
+            # about half of these states lie inside the dome: looked at through the saturation flash first, except
+            # those known to be denser than the saturated liquid at the fill temperature (the same numbers)
+            rs = rho_star[pr][have]
+            with np.errstate(invalid="ignore"):
+                liquid = (rs > fluid.critical_molar_density) & ~(rs < out["liquid_fill_sat"][pr][have])
+            p, ph, v = fluid.states(rs, t_fill[pr][have], dome=~liquid)
             p_star[have] = np.where(v & (ph != "two-phase"), p, np.nan)
             in_dome[have] = v & (ph == "two-phase")
 
