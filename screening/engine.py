@@ -2380,14 +2380,16 @@ def _liquefied_fill(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np.n
     unreachable = np.zeros(n, dtype=bool)
     out["unreachable_reason"] = np.full(n, None, dtype=object)
     why = np.full(n, None, dtype=object)
+    # a fill by mass mostly lies inside the saturation dome at the fill temperature, and often at the worst case:
+    # those states are first looked at through the saturation flash (the same numbers, fewer full evaluations)
     for key, t in (("fill", t_fill), ("peak", t_peak)):
         if key == "fill":
             p, ph, ok = p_check[live], phase_check[live], np.ones(live.size, dtype=bool)
             e = np.flatnonzero(~checked[live])
             if e.size:
-                p[e], ph[e], ok[e] = fluid.states(rho[live[e]], t[live[e]])
+                p[e], ph[e], ok[e] = fluid.states(rho[live[e]], t[live[e]], dome=~by_pressure[live[e]])
         else:
-            p, ph, ok = fluid.states(rho[live], t[live])
+            p, ph, ok = fluid.states(rho[live], t[live], dome=~by_pressure[live])
         phases[key] = np.full(n, None, dtype=object)
         phases[key][live] = ph
         out["p_fill_ref" if key == "fill" else "peak_ref"][live] = p
@@ -2667,14 +2669,17 @@ _NEWTON_MAX = 40
 
 def _newton_in_bracket(g: Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, np.ndarray]], a: np.ndarray,
                        fa: np.ndarray, b: np.ndarray, fb: np.ndarray, x0: np.ndarray,
-                       idx: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+                       idx: np.ndarray, f_only: Callable[[np.ndarray, np.ndarray], np.ndarray] | None = None
+                       ) -> tuple[np.ndarray, np.ndarray]:
     """Per row, the root of an increasing f inside [a, b] (f(a) < 0 < f(b)), where g(x, idx) gives f and its
     derivative at once: Newton steps from x0 kept inside the bracket (a bisection where a step leaves it or
     the derivative is not positive), each evaluation narrowing the bracket, until the bracket is narrower than
     _NEWTON_BRACKET_RTOL of the root. The root is therefore shown, not estimated: a sign change of f within
     that width; once a Newton step has converged the next point is set just past it, on the other side, to
     close the bracket. Returns (root, settled); settled False where f could not be evaluated on the way or
-    the bracket did not close (those rows are solved another way)."""
+    the bracket did not close (those rows are solved another way). `f_only`: f alone (the same numbers as g's f,
+    for less), asked at the points set just past a converged step, where the bracket is expected to close and the
+    derivative is not used; where it does not close, g is asked there for the derivative."""
     m = a.size
     root = np.full(m, np.nan)
     settled = np.zeros(m, dtype=bool)
@@ -2683,12 +2688,21 @@ def _newton_in_bracket(g: Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, n
     bad0 = ~((x > a) & (x < b))
     x[bad0] = 0.5 * (a[bad0] + b[bad0])
     cand = x.copy()                 # the point the row's root is taken to be once its bracket closes
+    pushed = np.zeros(m, dtype=bool)   # x is a point set just past a converged step
     live = np.arange(m)
     for _ in range(_NEWTON_MAX):
         if live.size == 0:
             break
         xl = x[live]
-        f, df = g(xl, idx[live])
+        pu = np.flatnonzero(pushed[live]) if f_only is not None else live[:0]
+        if pu.size:
+            f, df = np.empty(live.size), np.full(live.size, np.nan)
+            full = np.flatnonzero(~pushed[live])
+            if full.size:
+                f[full], df[full] = g(xl[full], idx[live[full]])
+            f[pu] = f_only(xl[pu], idx[live[pu]])
+        else:
+            f, df = g(xl, idx[live])
         bad = ~np.isfinite(f)
         zero = ~bad & (f == 0.0)
         root[live[zero]] = xl[zero]
@@ -2701,6 +2715,12 @@ def _newton_in_bracket(g: Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, n
         root[live[closed]] = c[closed]
         settled[live[closed]] = True
         go = ~bad & ~zero & ~closed
+        if pu.size:     # a pushed point that did not close the bracket: its derivative from g
+            ask = pu[go[pu]]
+            if ask.size:
+                f_ask, df[ask] = g(xl[ask], idx[live[ask]])
+                bad_ask = ~np.isfinite(f_ask)
+                go[ask[bad_ask]] = False
         with np.errstate(divide="ignore", invalid="ignore"):
             step = -f / df
         xn = xl + step
@@ -2713,20 +2733,35 @@ def _newton_in_bracket(g: Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, n
         nxt = np.where(tiny, np.clip(push, al, bl), np.where(newton, xn, 0.5 * (al + bl)))
         cand[live] = np.where(tiny | newton, np.clip(xn, al, bl), nxt)
         x[live] = nxt
+        pushed[live] = tiny
         live = live[go]
     return root, settled
 
 
+#: The temperature step [K] of the vapour-pressure slope that betters a guess inside the dome (_newton_guess).
+_GUESS_DT = 1e-3
+
+
 def _newton_guess(fluid: ReferenceFluid, rho: np.ndarray, rated: np.ndarray, rows: np.ndarray,
-                  guess: np.ndarray) -> np.ndarray:
+                  guess: np.ndarray, boundary: np.ndarray | None = None) -> np.ndarray:
     """A guess of the temperature at which the isochores of rows `rows` reach the rating, bettered by one Newton
     step on the isochore's own slope at it (the guess kept where the isochore cannot be evaluated there or does
-    not rise). A starting point only (:func:`_scan_up` settles on the same points whatever it is guessed)."""
+    not rise). A starting point only (:func:`_scan_up` settles on the same points whatever it is guessed).
+    `boundary`: per row, where its isochore leaves the dome; below it the isochore is the vapour pressure, whose
+    slope is taken from two saturation flashes _GUESS_DT apart (cheaper than the slope of a two-phase state)."""
     out = np.array(guess, dtype=float)
     g = np.flatnonzero(np.isfinite(out))
     if g.size:
         r = rows[g]
-        p, d = fluid.isochore_slopes(rho[r], out[g])
+        p, d = np.full(g.size, np.nan), np.full(g.size, np.nan)
+        sat = np.zeros(g.size, dtype=bool) if boundary is None else out[g] < boundary[g]
+        ks = np.flatnonzero(sat)
+        if ks.size:
+            ps = _saturation_states(fluid, np.concatenate([out[g[ks]], out[g[ks]] + _GUESS_DT]), 0.0)[0]
+            p[ks], d[ks] = ps[:ks.size], (ps[ks.size:] - ps[:ks.size]) / _GUESS_DT
+        kf = np.flatnonzero(~sat)
+        if kf.size:
+            p[kf], d[kf] = fluid.isochore_slopes(rho[r[kf]], out[g[kf]])
         with np.errstate(invalid="ignore", divide="ignore"):
             step = out[g] - (p - rated[r]) / d
         use = np.isfinite(step) & (d > 0.0)
@@ -2767,7 +2802,8 @@ def _temperature_limit(fluid: ReferenceFluid, f_t: Callable[[np.ndarray, np.ndar
             s = up[nan]
             # f_t cannot be evaluated at `end`, so nowhere above it either (the range is one interval from lo)
             root[s] = _scan_up(f_t, rows[s], lo[s], mid[s], f_mid[s], hi[s], nan_from=end[s],
-                               guess=None if guess is None else _newton_guess(fluid, rho, rated, rows[s], guess[s]))
+                               guess=None if guess is None else _newton_guess(fluid, rho, rated, rows[s], guess[s],
+                                                                             boundary[s]))
             done[s] = True
         below = ~nan & (f_end < 0.0)
         done[up[below]] = True                      # no root
@@ -2803,7 +2839,12 @@ def _temperature_limit(fluid: ReferenceFluid, f_t: Callable[[np.ndarray, np.ndar
             p, d = fluid.isochore_slopes(rho[r], t)
             return p / rated[r] - 1.0, d / rated[r]
 
-        r, settled = _newton_in_bracket(g, a[s], fa[s], b[s], fb[s], x0, np.arange(s.size))
+        def f_only(t, ix):      # the same pressures without the slope (inside the dome: one saturation flash)
+            r = rows[s[ix]]
+            p, _v, _r = fluid.pressures(rho[r], t, dome=t < boundary[s[ix]], why=False)
+            return p / rated[r] - 1.0
+
+        r, settled = _newton_in_bracket(g, a[s], fa[s], b[s], fb[s], x0, np.arange(s.size), f_only)
         root[s[settled]] = r[settled]
         done[s[settled]] = True
     # beyond `top` screen._root scans: a root in a scan interval that reaches past `top` is not found
@@ -2844,8 +2885,12 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
     if live.size == 0:
         return
 
+    # below the temperature where a row's isochore leaves the dome its states are two-phase: looked at through the
+    # saturation flash first (the same numbers, fewer full evaluations); a refused state's reason is not asked for
+    leaves = np.fmin(out["dry"], out["liquid_full"])
+
     def f_t(t, ix):
-        p, _v, _r = fluid.pressures(rho[ix], t)
+        p, _v, _r = fluid.pressures(rho[ix], t, dome=t < leaves[ix], why=False)
         return p / rated[ix] - 1.0
 
     # the reference isochore can be evaluated from the lower temperature up to the equation's range (its
@@ -2857,7 +2902,7 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         guess = np.where(t_peak[live] > lf, t_peak[live] + (rated[live] - peak[live]) / slope,
                          lf + (rated[live] - out["crossing"][live]) / slope)
     root, ok = _temperature_limit(fluid, f_t, rho, rated, live, t_lo[live], t_peak[live], peak[live] / rated[live] - 1.0,
-                                  t_hi[live], np.fmin(out["dry"], out["liquid_full"])[live], guess)
+                                  t_hi[live], leaves[live], guess)
     fallback[live[~ok]] = True
     max_t = out["max_t"]
     max_t[live[ok]] = root[ok]
@@ -2886,7 +2931,12 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
         p_star = np.full(pr.size, np.nan)
         in_dome = np.zeros(pr.size, dtype=bool)
         if have.any():
-            p, ph, v = fluid.states(rho_star[pr][have], t_fill[pr][have])
+            # about half of these states lie inside the dome: looked at through the saturation flash first, except
+            # those known to be denser than the saturated liquid at the fill temperature (the same numbers)
+            rs = rho_star[pr][have]
+            with np.errstate(invalid="ignore"):
+                liquid = (rs > fluid.critical_molar_density) & ~(rs < out["liquid_fill_sat"][pr][have])
+            p, ph, v = fluid.states(rs, t_fill[pr][have], dome=~liquid)
             p_star[have] = np.where(v & (ph != "two-phase"), p, np.nan)
             in_dome[have] = v & (ph == "two-phase")
 

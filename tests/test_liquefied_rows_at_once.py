@@ -123,7 +123,7 @@ def _per_row(monkeypatch):
     monkeypatch.setattr(engine, "_fill_peak_offsets", _fill_peak_offsets_per_row)
     monkeypatch.setattr(engine, "_no_fill_reaches", _no_fill_reaches_per_row)
     monkeypatch.setattr(engine, "_isochore_slopes", _isochore_slopes_per_row)
-    monkeypatch.setattr(engine, "_newton_guess", lambda fluid, rho, rated, rows, guess: guess)
+    monkeypatch.setattr(engine, "_newton_guess", lambda fluid, rho, rated, rows, guess, boundary=None: guess)
     monkeypatch.setattr(_screen, "band_reason", _band_reason_per_row)
     monkeypatch.setattr(_screen, "liquid_full_density", _liquid_full_density_per_row)
 

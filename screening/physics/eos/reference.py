@@ -51,6 +51,12 @@ ROUND_TRIP_RTOL = 1e-6
 SATURATION_BAND = 1e-9
 
 _TWO_PHASE = CoolProp.iphase_twophase
+#: The saturation flash looks at states below this fraction of the critical temperature (`_evaluate_rows`, ``dome``),
+#: where the saturated densities stand well apart from the critical density.
+_DOME_T_MAX = 0.999
+#: A density inside the dome by more than this fraction of the saturated density is taken as two-phase from the
+#: saturation flash; closer to the boundary the density-temperature evaluation decides.
+_DOME_MARGIN = 1e-6
 
 #: Most settled phase answers one mixture keeps (oldest dropped first).
 _ANSWERS_KEPT = 4096
@@ -356,7 +362,8 @@ class ReferenceFluid:
             return p, "supercritical"
         return p, "liquid" if rho > self.critical_molar_density else "gas"
 
-    def _evaluate_rows(self, rho_f: list[float], T_f: list[float], slopes: bool = False
+    def _evaluate_rows(self, rho_f: list[float], T_f: list[float], slopes: bool = False,
+                       dome: bool | np.ndarray = False, why: bool = True
                        ) -> tuple[list[float], list[str | None], list[str], bytearray, list[float] | None]:
         """:meth:`_evaluate` of many states (Python floats, lists of equal length), for the array methods; the
         caller holds the lock. Returns (pressures [Pa], phase words, reasons, valid (one byte a state, 1 where
@@ -373,7 +380,22 @@ class ReferenceFluid:
         through :meth:`_evaluate` itself, which evaluates it again (the same calls, so the state is left where
         it leaves it) and says why it is refused, so the rules and their reasons are written once, there
         (tests/test_reference_rows.py compares the two paths state by state). Other fluids take
-        :meth:`_evaluate` for every state."""
+        :meth:`_evaluate` for every state.
+
+        ``dome`` (without ``slopes``; True for every state, or a mask of the states, for callers whose states
+        mostly lie inside the saturation dome): such a state of the fast path between the triple point and
+        _DOME_T_MAX of the critical temperature is first looked at through one saturation flash at its
+        temperature (CoolProp's temperature-quality flash: the saturated liquid's density above the critical
+        density, the saturated vapour's below it, and the vapour pressure). A density inside the dome by more than
+        _DOME_MARGIN of that saturated density is a two-phase state, whose pressure is the vapour pressure: what
+        the density-temperature evaluation gives there, bit for bit, at a fraction of its cost (it works out both
+        saturated states in full). Any other state is evaluated as above (tests/test_dome_states.py compares
+        the two, and PropsSI, state by state). The state is then left at the last flash made.
+
+        ``why`` False (for callers that only ask whether a state can be evaluated): a state the fast path's
+        comparisons refuse, without CoolProp raising, is given NaN, None, an empty reason and 0 without the
+        checked path evaluating it again to say why (it refuses every such state); where CoolProp raised, the
+        checked path answers as above."""
         n = len(rho_f)
         p_out = [math.nan] * n
         words: list[str | None] = [None] * n
@@ -383,27 +405,50 @@ class ReferenceFluid:
         evaluate, a = self._evaluate, self._state
         iP, iT, iD = CoolProp.iP, CoolProp.iT, CoolProp.iDmolar
         fast = self._rows_fast
+        marked = None if isinstance(dome, bool) else np.asarray(dome, dtype=bool).tolist()
+        dome = fast and not slopes and (dome if marked is None else any(marked))
         if fast:
             update, get_p, get_phase, dp_drho = a.update, a.p, a.phase, a.first_partial_deriv
             by_rho_T, two_phase, inf = CoolProp.DmolarT_INPUTS, _TWO_PHASE, math.inf
             t_min, t_max, p_max = self._rows_t_min, self.t_max, self.p_max
             t_c, rho_c = self.critical_temperature, self.critical_molar_density
+            if dome:
+                by_q_T, get_rho = CoolProp.QT_INPUTS, a.rhomolar
+                t_sat_lo, t_sat_hi = max(self.triple_temperature, t_min), _DOME_T_MAX * t_c
+                inner_l, inner_v = 1.0 - _DOME_MARGIN, 1.0 + _DOME_MARGIN
         for i in range(n):
             rho, T = rho_f[i], T_f[i]
             word = None
             # _check_density, _check_temperature (NaN fails every comparison)
-            if fast and 0.0 < rho < inf and t_min <= T <= t_max:
-                try:
-                    update(by_rho_T, rho, T)
-                    p = get_p()
-                    iphase = get_phase()
-                    if 0.0 < p <= p_max:                                # _check_pressure
-                        if iphase == two_phase:
-                            word = "two-phase"
-                        elif 0.0 < dp_drho(iP, iD, iT) < inf:           # _check_stable
-                            word = "supercritical" if T >= t_c else "liquid" if rho > rho_c else "gas"
+            if dome and 0.0 < rho < inf and t_sat_lo <= T < t_sat_hi and (marked is None or marked[i]):
+                try:        # the saturated density on the state's side of the critical density, the vapour pressure
+                    update(by_q_T, 0.0 if rho > rho_c else 1.0, T)
+                    ps, rs = get_p(), get_rho()
+                    if (rho < rs * inner_l if rho > rho_c else rho > rs * inner_v) and 0.0 < ps <= p_max:
+                        p_out[i] = ps
+                        words[i] = "two-phase"
+                        valid[i] = 1
+                        continue
                 except ValueError:
                     pass
+            if fast:
+                if not (0.0 < rho < inf and t_min <= T <= t_max):
+                    if not why:
+                        continue
+                else:
+                    try:
+                        update(by_rho_T, rho, T)
+                        p = get_p()
+                        iphase = get_phase()
+                        if 0.0 < p <= p_max:                            # _check_pressure
+                            if iphase == two_phase:
+                                word = "two-phase"
+                            elif 0.0 < dp_drho(iP, iD, iT) < inf:       # _check_stable
+                                word = "supercritical" if T >= t_c else "liquid" if rho > rho_c else "gas"
+                        if word is None and not why:
+                            continue
+                    except ValueError:
+                        pass
             if word is None:        # refused, or not on the fast path: the checked path answers, and says why
                 try:
                     p, word = evaluate(rho, T)
@@ -881,16 +926,22 @@ class ReferenceFluid:
 
     # ---------------------------------------------------------------------------------------------
     @_holding_the_state
-    def pressures(self, rho_molar: np.ndarray, T: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    def pressures(self, rho_molar: np.ndarray, T: np.ndarray, dome: bool | np.ndarray = False, why: bool = True
+                  ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """Vectorised :meth:`pressure` over rows (broadcast), looping the one cached AbstractState.
 
         Returns (pressures [Pa], valid mask [bool], reason [str, '' where valid]); invalid rows carry NaN,
-        False and the reason in plain words.
+        False and the reason in plain words. `dome`: the states (True: all; else a mask of the flattened states)
+        that mostly lie inside the saturation dome (the same numbers; :meth:`_evaluate_rows`); `why` False: the
+        reasons of refused states are not asked for (empty; the same pressures and valid flags).
         """
         rho_b, t_b = np.broadcast_arrays(np.asarray(rho_molar, dtype=float), np.asarray(T, dtype=float))
         shape = rho_b.shape
         # Python floats: cheaper per row
-        p, _words, reasons, valid, _ = self._evaluate_rows(rho_b.ravel().tolist(), t_b.ravel().tolist())
+        if not isinstance(dome, bool):
+            dome = np.broadcast_to(np.asarray(dome, dtype=bool), shape).ravel()
+        p, _words, reasons, valid, _ = self._evaluate_rows(rho_b.ravel().tolist(), t_b.ravel().tolist(), dome=dome,
+                                                           why=why)
         return (np.array(p, dtype=float).reshape(shape), np.frombuffer(valid, dtype=bool).reshape(shape),
                 np.array(reasons, dtype=str).reshape(shape))
 
@@ -905,14 +956,16 @@ class ReferenceFluid:
         return np.array(p, dtype=float), np.array(d, dtype=float)
 
     @_holding_the_state
-    def states(self, rho_molar: np.ndarray, T: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    def states(self, rho_molar: np.ndarray, T: np.ndarray, dome: bool | np.ndarray = False
+               ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """:meth:`pressure` and :meth:`phase` of many rows in one evaluation each (1-D arrays of equal length).
 
         Returns (pressures [Pa], phases (object array of the words of :meth:`phase`), valid mask); invalid rows
-        carry NaN, None and False.
+        carry NaN, None and False. `dome`: the states (True: all; else a mask) that mostly lie inside the
+        saturation dome (the same numbers; :meth:`_evaluate_rows`).
         """
         p, words, _reasons, valid, _ = self._evaluate_rows(np.asarray(rho_molar, dtype=float).tolist(),
-                                                           np.asarray(T, dtype=float).tolist())
+                                                           np.asarray(T, dtype=float).tolist(), dome=dome)
         phases = np.empty(len(words), dtype=object)
         phases[:] = words
         return np.array(p, dtype=float), phases, np.frombuffer(valid, dtype=bool)
