@@ -363,6 +363,13 @@ def _dome(fluid: ReferenceFluid, side: str) -> _Dome:
     return _DOMES[(fluid.label, side)]
 
 
+def _densities(fluid: ReferenceFluid, p: np.ndarray, t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """fluid.density of a pure fluid at each row's (p [Pa], t [K]) [mol/m3] and whether it applies (NaN and
+    False where it raises NotApplicable), through its array method (:meth:`ReferenceFluid.densities`)."""
+    rho, _p, _phases, valid = fluid.densities(p, t, np.full(np.shape(p), np.nan))
+    return rho, valid
+
+
 def _loop(fn, *arrays) -> tuple[np.ndarray, np.ndarray, list]:
     """fn over rows of arrays; (values, valid, reasons) with NaN/False/reason where it raises NotApplicable."""
     n = arrays[0].size
@@ -1141,7 +1148,7 @@ def _reference_limits(rows: Rows, fluid: ReferenceFluid, pure: bool, out: dict, 
     max_p_ref = np.full(n, np.nan)
     rho_star_ref = np.full(n, np.nan)
     if live.size:
-        rs, vs, _ = _loop(fluid.density, target[live], t_peak[live])
+        rs, vs = _densities(fluid, target[live], t_peak[live])
         rho_star_ref[live] = rs
         ps = np.full(live.size, np.nan)
         vp = np.zeros(live.size, dtype=bool)
@@ -1508,15 +1515,14 @@ def _density_once(fluid: ReferenceFluid, p: np.ndarray, t: np.ndarray,
         todo = [key for key in dict.fromkeys(keys) if key not in fills]
         if todo:
             a = np.array(todo, dtype=float)
-            values, valid, _ = _loop(fluid.density, a[:, 0], a[:, 1])
+            values, valid = _densities(fluid, a[:, 0], a[:, 1])
             fills.update(zip(todo, zip(values.tolist(), valid.tolist())))
         got = [fills[key] for key in keys]
         return np.array([g[0] for g in got], dtype=float), np.array([g[1] for g in got], dtype=bool)
     if p.size == 1:             # nothing to share (np.unique's cost is then most of the row's)
-        values, valid, _ = _loop(fluid.density, p, t)
-        return values, valid
+        return _densities(fluid, p, t)
     uniq, back = np.unique(np.stack([p, t], axis=1), axis=0, return_inverse=True)
-    values, valid, _ = _loop(fluid.density, uniq[:, 0], uniq[:, 1])
+    values, valid = _densities(fluid, uniq[:, 0], uniq[:, 1])
     back = back.ravel()
     return values[back], valid[back]
 

@@ -288,3 +288,61 @@ def test_a_derivative_that_raises_does_so_on_both_paths():
     # isochore_slopes skips the state, as it skips a slope that CoolProp cannot give
     p, d = f.isochore_slopes(rho, T)
     assert np.isnan(p[1]) and np.isnan(d[1]) and np.isfinite(p[[0, 2]]).all() and np.isfinite(d[[0, 2]]).all()
+
+
+def _pt_states(f: ReferenceFluid, n: int, seed: int) -> tuple[np.ndarray, np.ndarray]:
+    """Random (pressure, temperature) states of a pure fluid for its pressure-temperature flash: most above the
+    critical temperature (the array method's fast path), some below it (vapour and liquid), at the vapour
+    pressure, above the equation's pressure range, and values that are not numbers or not positive."""
+    rng = np.random.default_rng(seed)
+    tc = f.critical_temperature
+    T = list(rng.uniform(tc, min(f.t_max * 1.02, 4.0 * tc), n)) + list(rng.uniform(max(f.t_min, 0.6 * tc), tc, n // 4))
+    p = list(np.exp(rng.uniform(math.log(1e3), math.log(1.1 * f.p_max), len(T))))
+    a = f._state
+    for t in rng.uniform(max(f.t_min, f.triple_temperature or f.t_min, 0.7 * tc), 0.99 * tc, 5):
+        if f.is_pseudo_pure:
+            break
+        a.update(CoolProp.QT_INPUTS, 0.0, t)
+        p.append(a.p())                                          # the vapour pressure itself: refused
+        T.append(t)
+    edges = [(f.p_max, 1.5 * tc), (np.nextafter(f.p_max, INF), 1.5 * tc), (1e5, tc), (1e5, np.nextafter(tc, 0.0)),
+             (1e5, f.t_max), (1e5, np.nextafter(f.t_max, INF)), (-1.0, 300.0), (0.0, 300.0), (NAN, 300.0),
+             (INF, 300.0), (1e5, NAN), (1e5, -5.0), (1e5, INF)]
+    for pi, ti in edges:
+        p.append(pi)
+        T.append(ti)
+    order = rng.permutation(len(p))
+    return np.asarray(p, dtype=float)[order], np.asarray(T, dtype=float)[order]
+
+
+@pytest.mark.parametrize("name", FLUIDS + ["Air", "Helium", "Methane"])
+def test_densities_give_the_checked_flash_state_by_state(name):
+    f = ReferenceFluid((name,), (1.0,))
+    p, T = _pt_states(f, 400, seed=sum(name.encode()) + 11)
+    want = []
+    with f._lock:
+        for pi, ti in zip(p.tolist(), T.tolist()):
+            try:
+                want.append(f._pure_density(pi, ti))
+            except NotApplicable:
+                want.append(None)
+        where_checked = _where(f)
+    rho, p_back, phases, valid = f.densities(p, T, np.full(p.shape, NAN))
+    assert _where(f) == where_checked           # the state is left where the checked path leaves it
+    assert valid.tolist() == [w is not None for w in want]
+    assert 0 < valid.sum() < valid.size
+    assert _same_bits(rho, [w[0] if w else NAN for w in want])
+    assert _same_bits(p_back, [w[1] if w else NAN for w in want])
+    assert phases.tolist() == [w[2] if w else None for w in want]
+    # and as density() gives them one at a time
+    for pi, ti, r in zip(p.tolist()[:60], T.tolist()[:60], rho.tolist()[:60]):
+        try:
+            got = f.density(pi, ti)
+        except NotApplicable:
+            got = NAN
+        assert _same_bits([got], [r])
+    fast = valid & (T >= f.critical_temperature)             # the states of the fast path
+    assert fast.sum() > 100
+    for pi, ti, r in zip(p[fast].tolist(), T[fast].tolist(), rho[fast].tolist()):
+        # source: CoolProp's PropsSI at the same pressure and temperature, its own state and call path
+        assert r == pytest.approx(CP.PropsSI("Dmolar", "P", pi, "T", ti, name), rel=1e-9)

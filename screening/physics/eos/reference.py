@@ -692,9 +692,45 @@ class ReferenceFluid:
         phases = np.full(n, None, dtype=object)
         valid = np.zeros(n, dtype=bool)
         pure = self._pure_density
+        # Fast path (as _evaluate_rows'), for states at or above the critical temperature, where _pure_density
+        # needs no vapour pressure and imposes no phase: its CoolProp calls in its order (the flash, then the
+        # check at the density found), its checks as plain comparisons that accept exactly the states it accepts,
+        # its phase words. A state failing any of them, or where CoolProp raises, goes through _pure_density
+        # itself, which makes the same calls again and says why (tests/test_reference_rows.py).
+        fast = self._rows_fast
+        if fast:
+            a = self._state
+            update, get_rho, unspecify, get_p, get_phase, dp_drho = (
+                a.update, a.rhomolar, a.unspecify_phase, a.p, a.phase, a.first_partial_deriv)
+            by_p_T, by_rho_T, two_phase, inf = CoolProp.PT_INPUTS, CoolProp.DmolarT_INPUTS, _TWO_PHASE, math.inf
+            iP, iT, iD = CoolProp.iP, CoolProp.iT, CoolProp.iDmolar
+            t_lo, t_max, p_max = max(self._rows_t_min, self.critical_temperature), self.t_max, self.p_max
         for i in range(n):
+            pi, ti = p_f[i], t_f[i]
+            # _check_temperature, _check_pressure (NaN fails every comparison); above the critical temperature
+            if fast and t_lo <= ti <= t_max and 0.0 < pi <= p_max:
+                word = None
+                try:
+                    update(by_p_T, pi, ti)
+                    r = get_rho()
+                    unspecify()
+                    if 0.0 < r < inf:                                   # _check_density
+                        update(by_rho_T, r, ti)                         # _evaluate(r, T)
+                        pb = get_p()
+                        iphase = get_phase()
+                        if 0.0 < pb <= p_max:                           # _check_pressure
+                            if iphase == two_phase:
+                                word = "two-phase"
+                            elif 0.0 < dp_drho(iP, iD, iT) < inf:       # _check_stable
+                                word = "supercritical"
+                except ValueError:
+                    word = None
+                if word is not None and not abs(pb - pi) > 1e-6 * pi:  # the check maps back to p
+                    rho[i], p_back[i], phases[i] = r, pb, word
+                    valid[i] = True
+                    continue
             try:
-                rho[i], p_back[i], phases[i] = pure(p_f[i], t_f[i], s_f[i] if math.isfinite(s_f[i]) else None)
+                rho[i], p_back[i], phases[i] = pure(pi, ti, s_f[i] if math.isfinite(s_f[i]) else None)
                 valid[i] = True
             except NotApplicable:
                 pass
