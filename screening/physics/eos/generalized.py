@@ -109,6 +109,7 @@ _MAX_OUTER = 200
 _MAX_NEWTON = 30      # steps of the coupled Newton before the bracketed solve takes over
 _PR_SOLVE_MAX = 40.0   # [-] the pressure solve brackets P_r in (0, 40]; above 10 is reported invalid
 _SCALAR_MAX = 40       # calls and gas roots of at most this many elements are solved element by element on floats
+_JOINED_MAX = 3000     # the two fluids' gas roots in one loop up to this many elements (measured: beyond, two loops)
 _SCALAR_MAX_NEWTON = 8  # the same for the coupled pressure Newton (measured: beyond these, the array loop is cheaper)
 
 # Gunn, Chueh & Prausnitz (1966) constants of the quantum correction [g K/mol], as given in Reid,
@@ -220,7 +221,7 @@ def _bwr(consts: tuple, coef: tuple, rho):
 
 
 def _gas_root(consts: tuple, tr: np.ndarray, pr: np.ndarray, active: np.ndarray):
-    """Smallest reduced density solving P_r = T_r rho Z(rho) (the gas / vapour-like root).
+    """Smallest reduced density solving P_r = T_r rho Z(rho) (the gas / vapour-like root) of one LK fluid.
 
     Newton from rho = 0 with a bracket. On the vapour branch the isotherm P_r(rho) is
     concave, so Newton from the left climbs monotonically to the first root; where it
@@ -236,54 +237,110 @@ def _gas_root(consts: tuple, tr: np.ndarray, pr: np.ndarray, active: np.ndarray)
     prf = pr.reshape(-1)
     if trf.size <= _SCALAR_MAX:
         return _gas_root_few(consts, trf, prf, active.reshape(-1), shape)
+    return tuple(x.reshape(shape) for x in _gas_root_arrays(_fluid_rows(consts, trf), trf, prf, active.reshape(-1)))
+
+
+def _gas_roots(tr: np.ndarray, pr: np.ndarray, active: np.ndarray):
+    """:func:`_gas_root` of both LK fluids (simple, reference) at the same states, as two tuples: on arrays, both
+    fluids' elements iterate in one loop (one set of numpy calls a step for the two), each element's steps those
+    of its own fluid's loop, so the numbers are those of two calls of :func:`_gas_root`, bit for bit."""
+    shape = tr.shape
+    trf = tr.reshape(-1)
+    prf = pr.reshape(-1)
+    n = trf.size
+    if n <= _SCALAR_MAX or n > _JOINED_MAX:
+        return _gas_root(_SIMPLE, tr, pr, active), _gas_root(_REFERENCE, tr, pr, active)
+    rows = [np.concatenate(pair) for pair in zip(_fluid_rows(_SIMPLE, trf, True), _fluid_rows(_REFERENCE, trf, True))]
+    act = active.reshape(-1)
+    both = _gas_root_arrays(rows, np.concatenate([trf, trf]), np.concatenate([prf, prf]), np.concatenate([act, act]))
+    return tuple(x[:n].reshape(shape) for x in both), tuple(x[n:].reshape(shape) for x in both)
+
+
+def _fluid_rows(consts: tuple, trf: np.ndarray, per_element: bool = False) -> list:
+    """The constants of :func:`_bwr` for one LK fluid at the reduced temperatures trf (1-d): B, C, D, c4/T_r^3
+    (:func:`_coefficients`), 2 C, 5 D (arrays, an element per state), then beta, gamma, -gamma, 2 beta,
+    4 gamma - 2 gamma beta, 2 gamma gamma (the factors :func:`_bwr` forms, computed as it forms them: floats, or
+    with `per_element` arrays, so that two fluids' rows can be joined)."""
+    B, C, D, E = _coefficients(consts, trf)
+    fixed = _SCALAR_CONSTS[consts]
+    return [B, C, D, E, 2.0 * C, 5.0 * D, *((np.full(trf.shape, x) for x in fixed) if per_element else fixed)]
+
+
+def _bwr_rows(k: np.ndarray, rho: np.ndarray):
+    """:func:`_bwr` with the constants of each element in k (:func:`_fluid_rows`): the same
+    operations in the same order, bit for bit."""
+    B, C, D, E, C2, D5, beta, gamma, ngamma, beta2, k1, k2 = k
+    r2 = rho * rho
+    r4 = r2 * r2
+    ex = E * np.exp(ngamma * r2)
+    z = 1.0 + rho * (B + rho * C + D * r4) + ex * r2 * (beta + gamma * r2)
+    dz = B + rho * (C2 + D5 * r2 * rho) + ex * rho * (beta2 + r2 * k1 - k2 * r4)
+    return z, dz
+
+
+def _gas_root_arrays(k: np.ndarray, trf: np.ndarray, prf: np.ndarray, active: np.ndarray):
+    """The array loop of :func:`_gas_root` on 1-d arrays, each element with its fluid's constants in k
+    (:func:`_fluid_rows`). Returns (rho, z, dp_drho, no_root, converged), 1-d."""
     rho = np.zeros(trf.shape)
     no_root = np.zeros(trf.shape, dtype=bool)
     converged = np.zeros(trf.shape, dtype=bool)
-    idx = np.flatnonzero(active.reshape(-1))
-    t = trf[idx]
-    p_t = prf[idx]
-    coef = _coefficients(consts, t)
+    if active.all():
+        idx, t, p_t, kk = np.arange(trf.size), trf, prf, k
+    else:
+        idx = np.flatnonzero(active)
+        t, p_t, kk = trf[idx], prf[idx], [x[idx] if np.ndim(x) else x for x in k]
     r = np.zeros(idx.shape)
     lo = np.zeros(idx.shape)
     hi = np.full(idx.shape, np.inf)
+    bracketed = False               # some element has a finite upper end (else no bisection can be asked for)
+    # elements that have finished stay in the arrays (their later steps are not used) until a quarter of them
+    # has: the arrays are compacted then, not at every step
+    done = np.zeros(idx.shape, dtype=bool)
     for _ in range(_MAX_INNER):
         if idx.size == 0:
             break
-        z, dz = _bwr(consts, coef, r)
+        z, dz = _bwr_rows(kk, r)
         f = t * r * z - p_t
         dp = t * (z + r * dz)
         below = f < 0.0
         lo = np.where(below, np.maximum(lo, r), lo)
-        hi = np.where(below, hi, np.minimum(hi, r))
-        finite_hi = np.isfinite(hi)
-        # non-positive slope while still below the target: past the vapour-branch maximum
-        stuck = below & (dp <= 0.0) & ~finite_hi
+        if bracketed or not below.all():
+            hi = np.where(below, hi, np.minimum(hi, r))
+            finite_hi = np.isfinite(hi)
+            bracketed = bool(finite_hi.any())
         newton = r - f / dp
         conv = (dp > 0.0) & (np.abs(newton - r) <= _RTOL * newton)
-        bisect = finite_hi & (~np.isfinite(newton) | (newton < lo) | (newton > hi) | (dp <= 0.0))
-        new = np.where(bisect & ~conv, 0.5 * (lo + hi), newton)
-        conv |= finite_hi & ((hi - lo) <= _RTOL * hi)
+        if bracketed:
+            # non-positive slope while still below the target: past the vapour-branch maximum
+            stuck = below & (dp <= 0.0) & ~finite_hi
+            bisect = finite_hi & (~np.isfinite(newton) | (newton < lo) | (newton > hi) | (dp <= 0.0))
+            new = np.where(bisect & ~conv, 0.5 * (lo + hi), newton)
+            conv |= finite_hi & ((hi - lo) <= _RTOL * hi)
+        else:                       # every upper end infinite: no bisection, no collapsed bracket
+            stuck = below & (dp <= 0.0)
+            new = newton
         conv &= ~stuck
-        finished = conv | stuck
+        finished = (conv | stuck) & ~done
+        r = new
         if not finished.any():          # nothing to record or drop this step
-            r = new
             continue
         rho[idx[finished]] = new[finished]
-        converged[idx[conv]] = True
-        no_root[idx[stuck]] = True
-        keep = ~finished
-        idx, t, p_t, r, lo, hi = idx[keep], t[keep], p_t[keep], new[keep], lo[keep], hi[keep]
-        coef = tuple(c[keep] for c in coef)
-    rho[idx] = r                        # elements still iterating after _MAX_INNER steps: their last step
-    coef = _coefficients(consts, trf)
-    z, dz = _bwr(consts, coef, rho)
+        converged[idx[conv & finished]] = True
+        no_root[idx[stuck & finished]] = True
+        done |= finished
+        if 4 * np.count_nonzero(done) >= done.size:
+            keep = ~done
+            idx, t, p_t, r, lo, hi, kk = idx[keep], t[keep], p_t[keep], r[keep], lo[keep], hi[keep], [x[keep] if np.ndim(x) else x for x in kk]
+            done = done[keep]
+    open_ = ~done
+    rho[idx[open_]] = r[open_]          # elements still iterating after _MAX_INNER steps: their last step
+    z, dz = _bwr_rows(k, rho)
     dp = trf * (z + rho * dz)
     # a converged point on an unstable (dP/drho <= 0) branch is not a gas root
     bad_branch = converged & (dp <= 0.0)
     no_root |= bad_branch
     converged &= ~bad_branch
-    return (rho.reshape(shape), z.reshape(shape), dp.reshape(shape), no_root.reshape(shape),
-            converged.reshape(shape))
+    return rho, z, dp, no_root, converged
 
 
 def _div(a: float, b: float) -> float:
@@ -479,8 +536,7 @@ def _set_reasons(reason: np.ndarray, mask: np.ndarray, make) -> None:
 def _z_core(tr: np.ndarray, pr: np.ndarray, omega: np.ndarray, active: np.ndarray):
     """Z, dZ/dP_r, reduced volumes and per-element failure reasons at (T_r, P_r, omega)."""
     a = omega / OMEGA_REFERENCE
-    r0, z0, dp0, nr0, c0 = _gas_root(_SIMPLE, tr, pr, active)
-    rr, zr, dpr, nrr, cr = _gas_root(_REFERENCE, tr, pr, active)
+    (r0, z0, dp0, nr0, c0), (rr, zr, dpr, nrr, cr) = _gas_roots(tr, pr, active)
     z = z0 + a * (zr - z0)
     # Z_i = P_r / (T_r rho_i): dZ_i/dP_r = (1/rho_i - P_r/(rho_i^2 dP_i/drho_i)) / T_r
     with np.errstate(divide="ignore", invalid="ignore"):
