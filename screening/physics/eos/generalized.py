@@ -72,6 +72,7 @@ __all__ = [
     "lee_kesler_pressure",
     "lee_kesler_density",
     "lee_kesler_density_valid",
+    "lee_kesler_pressure_valid",
     "lee_kesler_vapour_pressure",
     "quantum_effective_critical",
     "kay_pseudocritical",
@@ -923,6 +924,43 @@ def _solve_reduced_pressure(tr, vf, omega, active):
     return pr_out.reshape(shape), converged.reshape(shape), above_cap.reshape(shape)
 
 
+#: The reduced gas volume (1 - a) V_0 + a V_ref of the two LK fluids' gas roots decreases as P_r rises wherever
+#: 0 <= a <= 1 (each V_i does); with a < 0 it does where (1 - a) |dV_0/dP_r| > |a| |dV_ref/dP_r|, which holds from
+#: T_r = 1.1 up for every a above -0.38 (the ratio of the two fluids' slopes stays above 0.63 there up to P_r = 10;
+#: tests/test_generalized.py checks it on a grid): the states of :func:`_no_gas_state_up_to_cap` are those.
+_MONOTONE_TR = 1.1
+_MONOTONE_A = -0.25
+#: Relative margin by which the reduced gas volume at the cap must exceed V_r (a state is valid only where they
+#: agree to 1e-9; round-off is some 1e-13).
+_NO_GAS_MARGIN = 1e-6
+
+
+def _no_gas_state_up_to_cap(tr, vf, omega, cand) -> np.ndarray:
+    """Where (among cand, inside the T_r range) no gas state of the LK model has the reduced ideal volume vf at any
+    reduced pressure it accepts (up to 10, and up to the LK vapour pressure below T_r = 1): the gas volume
+    (1 - a) V_0 + a V_ref at that cap exceeds vf by _NO_GAS_MARGIN, and the gas volume only falls as P_r rises
+    (a in [0, 1], or T_r >= _MONOTONE_TR and a >= _MONOTONE_A), so every accepted pressure gives a larger volume
+    than vf: the bracketed solve can only end above the cap or unsettled, and the state is refused whatever it
+    finds. False where not sure (the caller solves)."""
+    shape = tr.shape
+    out = np.zeros(tr.size, dtype=bool)
+    trf, vff, omf = tr.reshape(-1), vf.reshape(-1), omega.reshape(-1)
+    a = omf / OMEGA_REFERENCE
+    sure = cand.reshape(-1) & (((a >= 0.0) & (a <= 1.0)) | ((trf >= _MONOTONE_TR) & (a >= _MONOTONE_A) & (a < 0.0)))
+    k = np.flatnonzero(sure)
+    if k.size == 0:
+        return out.reshape(shape)
+    t = trf[k]
+    cap = np.full(k.size, _PR_HI)
+    sub = t < 1.0
+    if sub.any():
+        cap[sub] = np.minimum(lee_kesler_vapour_pressure(t[sub], omf[k][sub]), _PR_HI)
+    _z, v0, vr, _dv0, _dvr, no_root, not_conv, ak = _z_core(t, cap, omf[k], np.ones(k.size, dtype=bool))
+    mix = (1.0 - ak) * v0 + ak * vr
+    out[k] = ~no_root & ~not_conv & (mix > vff[k] * (1.0 + _NO_GAS_MARGIN))
+    return out.reshape(shape)
+
+
 @np.errstate(divide="ignore", invalid="ignore", over="ignore")
 def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> GeneralizedState:
     """Absolute pressure [Pa] of the gas at fixed molar density [mol/m3] and temperature [K].
@@ -945,11 +983,34 @@ def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> Generalize
     >>> round(float(s.pressure) / 1e5, 3), bool(s.valid)
     (1.012, True)
     """
+    return _pressure(molar_density, temperature, tc, pc, omega)
+
+
+@np.errstate(divide="ignore", invalid="ignore", over="ignore")
+def lee_kesler_pressure_valid(molar_density, temperature, tc, pc, omega) -> tuple[np.ndarray, np.ndarray]:
+    """(pressure [Pa], valid) as :func:`lee_kesler_pressure` gives them (the same numbers and validity, bit for
+    bit), for a solver that evaluates it many times and reads only these. A state that has no gas state of the
+    model up to the highest pressure one can have (:func:`_no_gas_state_up_to_cap`) is refused without the
+    bracketed solve that would find its reduced pressure (above 10, or above the vapour pressure), which only
+    its reason in words uses.
+
+    >>> p, ok = lee_kesler_pressure_valid(40.6, 300.0, 126.192, 3.3958e6, 0.0372)   # nitrogen near 1 atm
+    >>> bool(ok), bool(p == lee_kesler_pressure(40.6, 300.0, 126.192, 3.3958e6, 0.0372).pressure)
+    (True, True)
+    """
+    s = _pressure(molar_density, temperature, tc, pc, omega, sure_none=True)
+    return s.pressure, s.valid
+
+
+def _pressure(molar_density, temperature, tc, pc, omega, sure_none: bool = False) -> GeneralizedState:
+    """:func:`lee_kesler_pressure`; `sure_none`: the states :func:`_no_gas_state_up_to_cap` finds are refused
+    without their bracketed solve (their reasons and reduced pressures are then not those of
+    :func:`lee_kesler_pressure`: for :func:`lee_kesler_pressure_valid` only)."""
     rho, t, tc, pc, omega = _state_arrays(molar_density, "molar density", "[mol/m3]", temperature, tc, pc, omega)
     tr = t / tc
     vf = pc / (rho * R * tc)          # reduced ideal volume of the gas [-]
     if not (tr.ndim == 1 and 0 < tr.size <= _SCALAR_MAX):
-        return _pressure_arrays(rho, t, pc, omega, tr, vf)
+        return _pressure_arrays(rho, t, pc, omega, tr, vf, sure_none=sure_none)
     # element by element; the array path (and its reasons) only for the elements that need it
     prs, zs, failed, newton = _pressure_few(tr, vf, omega)
     pr_final, z = np.array(prs), np.array(zs)
@@ -957,7 +1018,8 @@ def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> Generalize
     reason = np.full(tr.shape, "", dtype=object)
     valid = reason == ""
     if failed:
-        sub = _pressure_arrays(rho[failed], t[failed], pc[failed], omega[failed], tr[failed], vf[failed], newton)
+        sub = _pressure_arrays(rho[failed], t[failed], pc[failed], omega[failed], tr[failed], vf[failed], newton,
+                               sure_none)
         p[failed], rho[failed], z[failed], pr_final[failed] = (sub.pressure, sub.molar_density, sub.z,
                                                                sub.reduced_pressure)
         valid[failed], reason[failed] = sub.valid, sub.reason
@@ -965,16 +1027,22 @@ def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> Generalize
                             valid=valid, reason=reason)
 
 
-def _pressure_arrays(rho, t, pc, omega, tr, vf, newton: tuple | None = None) -> GeneralizedState:
+def _pressure_arrays(rho, t, pc, omega, tr, vf, newton: tuple | None = None,
+                     sure_none: bool = False) -> GeneralizedState:
     """:func:`lee_kesler_pressure` on arrays of one shape (already checked), with T_r and the reduced ideal
-    volume V_r given; `newton`: what :func:`_newton_reduced_pressure` gives for them, if already known."""
+    volume V_r given; `newton`: what :func:`_newton_reduced_pressure` gives for them, if already known;
+    `sure_none`: as :func:`_pressure` takes it."""
     outside = _range_reasons(tr, None)
     active = outside == ""
 
     # The coupled Newton first; where it does not settle, or settles off the gas branch (its roots
     # differ from the cold-started gas roots of the check below), the bracketed solve decides.
     fast_pr, fast_v0, fast_vr, fast = newton or _newton_reduced_pressure(tr, vf, omega, active)
-    pr, converged, above_cap = _solve_reduced_pressure(tr, vf, omega, active & ~fast)
+    solve = active & ~fast
+    if sure_none and solve.any():
+        # no gas state of the model at this density: not solved, so not converged (refused)
+        solve &= ~_no_gas_state_up_to_cap(tr, vf, omega, solve)
+    pr, converged, above_cap = _solve_reduced_pressure(tr, vf, omega, solve)
     pr = np.where(fast, fast_pr, pr)
     converged = converged | fast
     while True:
