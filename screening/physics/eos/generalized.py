@@ -251,9 +251,9 @@ def _gas_roots(tr: np.ndarray, pr: np.ndarray, active: np.ndarray):
     n = trf.size
     if n <= _SCALAR_MAX or n > _JOINED_MAX:
         return _gas_root(_SIMPLE, tr, pr, active), _gas_root(_REFERENCE, tr, pr, active)
-    rows = [np.concatenate(pair) for pair in zip(_fluid_rows(_SIMPLE, trf, True), _fluid_rows(_REFERENCE, trf, True))]
     act = active.reshape(-1)
-    both = _gas_root_arrays(rows, np.concatenate([trf, trf]), np.concatenate([prf, prf]), np.concatenate([act, act]))
+    both = _gas_root_arrays(_both_rows(trf), np.concatenate([trf, trf]), np.concatenate([prf, prf]),
+                            np.concatenate([act, act]))
     return tuple(x[:n].reshape(shape) for x in both), tuple(x[n:].reshape(shape) for x in both)
 
 
@@ -267,7 +267,12 @@ def _fluid_rows(consts: tuple, trf: np.ndarray, per_element: bool = False) -> li
     return [B, C, D, E, 2.0 * C, 5.0 * D, *((np.full(trf.shape, x) for x in fixed) if per_element else fixed)]
 
 
-def _bwr_rows(k: np.ndarray, rho: np.ndarray):
+def _both_rows(trf: np.ndarray) -> list[np.ndarray]:
+    """:func:`_fluid_rows` of the simple fluid, then of the reference fluid, joined: a column per state and fluid."""
+    return [np.concatenate(pair) for pair in zip(_fluid_rows(_SIMPLE, trf, True), _fluid_rows(_REFERENCE, trf, True))]
+
+
+def _bwr_rows(k: list, rho: np.ndarray):
     """:func:`_bwr` with the constants of each element in k (:func:`_fluid_rows`): the same
     operations in the same order, bit for bit."""
     B, C, D, E, C2, D5, beta, gamma, ngamma, beta2, k1, k2 = k
@@ -749,13 +754,13 @@ def _newton_reduced_pressure(tr, vf, omega, active):
     converged = np.zeros(n, dtype=bool)
     idx = np.flatnonzero(active.reshape(-1))
     t, v, a = tr.reshape(-1)[idx], vf.reshape(-1)[idx], omega.reshape(-1)[idx] / OMEGA_REFERENCE
-    c0, cr = _coefficients(_SIMPLE, t), _coefficients(_REFERENCE, t)
     r0 = 1.0 / v
     rr = r0.copy()
     p = t * r0
     p_max = np.where(t < 1.0, np.minimum(lee_kesler_vapour_pressure(np.minimum(t, 1.0), a * OMEGA_REFERENCE), _PR_HI),
                      _PR_HI)
     if idx.size <= _SCALAR_MAX_NEWTON:
+        c0, cr = _coefficients(_SIMPLE, t), _coefficients(_REFERENCE, t)
         for k, tk, vk, ak, r0k, pk, pmk, c0k, crk in zip(idx.tolist(), t.tolist(), v.tolist(), a.tolist(), r0.tolist(),
                                                        p.tolist(), p_max.tolist(), zip(*c0), zip(*cr)):
             got = _newton_reduced_pressure_one(tk, vk, ak, r0k, pk, pmk, c0k, crk)
@@ -763,28 +768,42 @@ def _newton_reduced_pressure(tr, vf, omega, active):
                 pr_out[k], v0_out[k], vr_out[k] = got
                 converged[k] = True
         return pr_out.reshape(shape), v0_out.reshape(shape), vr_out.reshape(shape), converged.reshape(shape)
+    # both fluids' densities in one array (simple, then reference), so that each step's numpy calls serve both;
+    # the same operations per element as the two fluids' own arrays, in the same order (bit for bit); elements
+    # that have finished stay in the arrays (their later steps are not used) until a quarter of them has
+    m = idx.size
+    k = _both_rows(t)
+    tt = np.concatenate([t, t])
+    wa = np.concatenate([1.0 - a, a])
+    r = np.concatenate([r0, rr])
+    finished = np.zeros(m, dtype=bool)
     for _ in range(_MAX_NEWTON):
-        if idx.size == 0:
+        if m == 0:
             break
-        z0, dz0 = _bwr(_SIMPLE, c0, r0)
-        zr, dzr = _bwr(_REFERENCE, cr, rr)
-        p0, pref = t * r0 * z0, t * rr * zr
-        d0, dref = t * (z0 + r0 * dz0), t * (zr + rr * dzr)
-        w0, wref = (1.0 - a) / (d0 * r0 * r0), a / (dref * rr * rr)
-        p_new = ((1.0 - a) / r0 + a / rr - v + w0 * p0 + wref * pref) / (w0 + wref)
-        r0_new = r0 + (p_new - p0) / d0
-        rr_new = rr + (p_new - pref) / dref
-        bad = ~((d0 > 0.0) & (dref > 0.0) & (r0_new > 0.0) & (rr_new > 0.0) & (p_new > 0.0)
-                & (p_new <= p_max) & np.isfinite(r0_new) & np.isfinite(rr_new))
-        done = ~bad & (np.abs(p_new - p) <= _PTOL * p_new) & (np.abs(r0_new - r0) <= _RTOL * r0_new) \
-            & (np.abs(rr_new - rr) <= _RTOL * rr_new)
+        z, dz = _bwr_rows(k, r)
+        pz = tt * r * z                             # P_0, P_ref
+        d = tt * (z + r * dz)                       # dP_0/drho_0, dP_ref/drho_ref
+        w = wa / (d * r * r)                        # w_0, w_ref
+        q = wa / r
+        wp = w * pz
+        p_new = (q[:m] + q[m:] - v + wp[:m] + wp[m:]) / (w[:m] + w[m:])
+        r_new = r + (np.concatenate([p_new, p_new]) - pz) / d
+        ok = (d > 0.0) & (r_new > 0.0) & np.isfinite(r_new)
+        good = ok[:m] & ok[m:] & (p_new > 0.0) & (p_new <= p_max) & ~finished
+        close = np.abs(r_new - r) <= _RTOL * r_new
+        done = good & (np.abs(p_new - p) <= _PTOL * p_new) & close[:m] & close[m:]
         fin = idx[done]
-        pr_out[fin], v0_out[fin], vr_out[fin] = p_new[done], 1.0 / r0_new[done], 1.0 / rr_new[done]
+        pr_out[fin], v0_out[fin], vr_out[fin] = p_new[done], 1.0 / r_new[:m][done], 1.0 / r_new[m:][done]
         converged[fin] = True
-        keep = ~done & ~bad
-        idx, t, v, a, r0, rr, p = idx[keep], t[keep], v[keep], a[keep], r0_new[keep], rr_new[keep], p_new[keep]
-        p_max = p_max[keep]
-        c0, cr = tuple(c[keep] for c in c0), tuple(c[keep] for c in cr)
+        finished |= done | ~good
+        r, p = r_new, p_new
+        if 4 * np.count_nonzero(finished) >= m:
+            keep = ~finished
+            keep2 = np.concatenate([keep, keep])
+            idx, v, p, p_max = idx[keep], v[keep], p[keep], p_max[keep]
+            tt, wa, r, k = tt[keep2], wa[keep2], r[keep2], [x[keep2] for x in k]
+            m = idx.size
+            finished = finished[keep]
     return pr_out.reshape(shape), v0_out.reshape(shape), vr_out.reshape(shape), converged.reshape(shape)
 
 
