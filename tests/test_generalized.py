@@ -500,20 +500,33 @@ def test_quantum_srk_newton_of_a_few_elements_is_the_array_newton(monkeypatch):
         _fields_equal(s, srk_quantum_density(p[i:i + 3], t[i:i + 3], tc0, pc0, m), slice(None))
 
 
-@pytest.mark.parametrize("size", [41, 300, 3001])
-def test_both_fluids_gas_roots_in_one_loop_are_each_fluids_own(size):
-    # _gas_roots solves the simple and the reference fluid's gas roots of a call in one array loop (one loop per
-    # fluid beyond _JOINED_MAX); each element's numbers must be those of its own fluid solved element by element on
-    # floats (_gas_root_few, written out separately), bit for bit: gas states on both sides of T_c, liquid-like
-    # pressures (no gas root) and elements left out (inactive).
+@pytest.mark.parametrize("size", [41, 300, 5001])
+def test_both_fluids_gas_roots_in_one_loop_are_each_fluids_own(size, monkeypatch):
+    # _gas_roots solves the simple and the reference fluid's gas roots of a call in one array loop (in blocks of
+    # _BLOCK states, its last few open elements handed to the float loop); each element's numbers must be those of
+    # its own fluid solved element by element on floats from the start (_gas_root_few), bit for bit: gas states on
+    # both sides of T_c, near the critical point (slow to settle), liquid-like pressures (no gas root) and
+    # elements left out (inactive).
     import screening.physics.eos.generalized as gen
 
     rng = np.random.default_rng(size)
     tr = rng.uniform(0.3, 4.0, size)
     pr = rng.uniform(1e-3, 12.0, size)
+    near = rng.random(size) < 0.3
+    tr[near] = rng.uniform(0.98, 1.02, near.sum())
+    pr[near] = rng.uniform(0.9, 1.1, near.sum())
     active = rng.random(size) < 0.9
+    continued = []
+    one = gen._gas_root_one
+
+    def count(*args):
+        continued.append(len(args) > 4 and args[7] > 0)
+        return one(*args)
+    monkeypatch.setattr(gen, "_gas_root_one", count)
     simple, reference = gen._gas_roots(tr, pr, active)
-    assert (size > gen._JOINED_MAX) == (size == 3001)
+    assert any(continued)                           # some elements went on on floats
+    monkeypatch.setattr(gen, "_gas_root_one", one)
+    assert (size > gen._BLOCK) == (size == 5001)
     for consts, got in ((gen._SIMPLE, simple), (gen._REFERENCE, reference)):
         want = gen._gas_root_few(consts, tr, pr, active, tr.shape)
         assert got[3].any() and got[4].any()        # both no-root and converged elements are compared
@@ -597,3 +610,24 @@ def test_gas_volume_falls_as_pressure_rises_where_states_are_refused_without_sol
     a = gen._MONOTONE_A
     # a margin: the slopes' ratio stays well inside the bound between the grid's points
     assert ((1.0 - a) * fall0 + 1.5 * a * fallr > 0.0).all()
+
+
+def test_coupled_newton_of_both_fluids_in_one_array_is_each_states_own():
+    # The coupled pressure Newton steps both fluids' densities of every state in one array; each state's P_r and
+    # volumes must be those of the state solved alone (on floats: _newton_reduced_pressure_one), bit for bit,
+    # whether it settles, leaves the gas region or goes above the model's pressures.
+    import screening.physics.eos.generalized as gen
+
+    rng = np.random.default_rng(11)
+    n = gen._BLOCK + 300                # two blocks
+    tr = rng.uniform(0.5, 4.0, n)
+    vf = rng.uniform(0.05, 20.0, n)
+    # krypton's and propane's acentric factors as CoolProp gives them
+    omega = np.where(rng.random(n) < 0.5, CP.PropsSI("acentric", "Krypton"), CP.PropsSI("acentric", "Propane"))
+    active = rng.random(n) < 0.95
+    together = gen._newton_reduced_pressure(tr, vf, omega, active)
+    assert 0 < together[3].sum() < active.sum()
+    for i in range(0, n, 3):
+        alone = gen._newton_reduced_pressure(tr[i:i + 1], vf[i:i + 1], omega[i:i + 1], active[i:i + 1])
+        for a, b in zip(alone, together):
+            assert a.tobytes() == b[i:i + 1].tobytes()

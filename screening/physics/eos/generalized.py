@@ -110,7 +110,8 @@ _MAX_OUTER = 200
 _MAX_NEWTON = 30      # steps of the coupled Newton before the bracketed solve takes over
 _PR_SOLVE_MAX = 40.0   # [-] the pressure solve brackets P_r in (0, 40]; above 10 is reported invalid
 _SCALAR_MAX = 40       # calls and gas roots of at most this many elements are solved element by element on floats
-_JOINED_MAX = 3000     # the two fluids' gas roots in one loop up to this many elements (measured: beyond, two loops)
+_SCALAR_TAIL = 8       # the gas roots' array loop hands its last open elements to the float loop
+_BLOCK = 2500          # the array loops take at most this many states at once (measured: longer arrays cost more a state)
 _SCALAR_MAX_NEWTON = 8  # the same for the coupled pressure Newton (measured: beyond these, the array loop is cheaper)
 
 # Gunn, Chueh & Prausnitz (1966) constants of the quantum correction [g K/mol], as given in Reid,
@@ -221,55 +222,60 @@ def _bwr(consts: tuple, coef: tuple, rho):
     return z, dz
 
 
-def _gas_root(consts: tuple, tr: np.ndarray, pr: np.ndarray, active: np.ndarray):
-    """Smallest reduced density solving P_r = T_r rho Z(rho) (the gas / vapour-like root) of one LK fluid.
+def _gas_roots(tr: np.ndarray, pr: np.ndarray, active: np.ndarray):
+    """Smallest reduced density solving P_r = T_r rho Z(rho) (the gas / vapour-like root) of each LK fluid.
 
     Newton from rho = 0 with a bracket. On the vapour branch the isotherm P_r(rho) is
     concave, so Newton from the left climbs monotonically to the first root; where it
     is convex (supercritical) it overshoots once and comes back from the right inside
     the bracket (bisection if a step leaves it). If the slope reaches zero before P_r
     is reached, the isotherm has a maximum below P_r: no gas root (``no_root``).
-    Only the elements still iterating are computed at each step.
 
-    Returns (rho, z, dp_drho, no_root, converged) as arrays of the broadcast shape.
+    Returns, for the simple fluid then the reference fluid, (rho, z, dp_drho, no_root, converged) as arrays of the
+    broadcast shape. Up to _SCALAR_MAX elements each is solved on floats (:func:`_gas_root_few`); on arrays both
+    fluids' elements iterate in one loop (:func:`_gas_root_arrays`, one set of numpy calls a step for the two), in
+    blocks of at most _BLOCK states (measured: longer arrays cost more a state), each element's steps its own, so
+    the numbers do not depend on the others in the call, bit for bit.
     """
     shape = tr.shape
     trf = tr.reshape(-1)
     prf = pr.reshape(-1)
-    if trf.size <= _SCALAR_MAX:
-        return _gas_root_few(consts, trf, prf, active.reshape(-1), shape)
-    return tuple(x.reshape(shape) for x in _gas_root_arrays(_fluid_rows(consts, trf), trf, prf, active.reshape(-1)))
-
-
-def _gas_roots(tr: np.ndarray, pr: np.ndarray, active: np.ndarray):
-    """:func:`_gas_root` of both LK fluids (simple, reference) at the same states, as two tuples: on arrays, both
-    fluids' elements iterate in one loop (one set of numpy calls a step for the two), each element's steps those
-    of its own fluid's loop, so the numbers are those of two calls of :func:`_gas_root`, bit for bit."""
-    shape = tr.shape
-    trf = tr.reshape(-1)
-    prf = pr.reshape(-1)
-    n = trf.size
-    if n <= _SCALAR_MAX or n > _JOINED_MAX:
-        return _gas_root(_SIMPLE, tr, pr, active), _gas_root(_REFERENCE, tr, pr, active)
     act = active.reshape(-1)
-    both = _gas_root_arrays(_both_rows(trf), np.concatenate([trf, trf]), np.concatenate([prf, prf]),
-                            np.concatenate([act, act]))
-    return tuple(x[:n].reshape(shape) for x in both), tuple(x[n:].reshape(shape) for x in both)
+    n = trf.size
+    if n <= _SCALAR_MAX:
+        return (_gas_root_few(_SIMPLE, trf, prf, act, shape), _gas_root_few(_REFERENCE, trf, prf, act, shape))
+    parts = []
+    for s in _blocks(n):
+        m = s.stop - s.start
+        both = _gas_root_arrays(_both_rows(trf[s]), np.concatenate([trf[s], trf[s]]),
+                                np.concatenate([prf[s], prf[s]]), np.concatenate([act[s], act[s]]))
+        parts.append(tuple((x[:m], x[m:]) for x in both))
+    if len(parts) == 1:
+        return tuple(tuple(x[f].reshape(shape) for x in parts[0]) for f in (0, 1))
+    return tuple(tuple(np.concatenate([part[j][f] for part in parts]).reshape(shape) for j in range(5))
+                 for f in (0, 1))
 
 
-def _fluid_rows(consts: tuple, trf: np.ndarray, per_element: bool = False) -> list:
-    """The constants of :func:`_bwr` for one LK fluid at the reduced temperatures trf (1-d): B, C, D, c4/T_r^3
-    (:func:`_coefficients`), 2 C, 5 D (arrays, an element per state), then beta, gamma, -gamma, 2 beta,
-    4 gamma - 2 gamma beta, 2 gamma gamma (the factors :func:`_bwr` forms, computed as it forms them: floats, or
-    with `per_element` arrays, so that two fluids' rows can be joined)."""
+def _blocks(n: int) -> list[slice]:
+    """n elements cut into blocks of at most _BLOCK, of nearly equal sizes."""
+    if n == 0:
+        return []
+    k = -(-n // _BLOCK)
+    size = -(-n // k)
+    return [slice(i, min(n, i + size)) for i in range(0, n, size)]
+
+
+def _fluid_rows(consts: tuple, trf: np.ndarray) -> list[np.ndarray]:
+    """The constants of :func:`_bwr` for one LK fluid at the reduced temperatures trf (1-d), an array each with an
+    element per state: B, C, D, c4/T_r^3 (:func:`_coefficients`), 2 C, 5 D, beta, gamma, -gamma, 2 beta,
+    4 gamma - 2 gamma beta, 2 gamma gamma (the factors :func:`_bwr` forms, computed as it forms them)."""
     B, C, D, E = _coefficients(consts, trf)
-    fixed = _SCALAR_CONSTS[consts]
-    return [B, C, D, E, 2.0 * C, 5.0 * D, *((np.full(trf.shape, x) for x in fixed) if per_element else fixed)]
+    return [B, C, D, E, 2.0 * C, 5.0 * D, *(np.full(trf.shape, x) for x in _SCALAR_CONSTS[consts])]
 
 
 def _both_rows(trf: np.ndarray) -> list[np.ndarray]:
-    """:func:`_fluid_rows` of the simple fluid, then of the reference fluid, joined: a column per state and fluid."""
-    return [np.concatenate(pair) for pair in zip(_fluid_rows(_SIMPLE, trf, True), _fluid_rows(_REFERENCE, trf, True))]
+    """:func:`_fluid_rows` of the simple fluid, then of the reference fluid, joined: an element per state and fluid."""
+    return [np.concatenate(pair) for pair in zip(_fluid_rows(_SIMPLE, trf), _fluid_rows(_REFERENCE, trf))]
 
 
 def _bwr_rows(k: list, rho: np.ndarray):
@@ -285,8 +291,12 @@ def _bwr_rows(k: list, rho: np.ndarray):
 
 
 def _gas_root_arrays(k: np.ndarray, trf: np.ndarray, prf: np.ndarray, active: np.ndarray):
-    """The array loop of :func:`_gas_root` on 1-d arrays, each element with its fluid's constants in k
-    (:func:`_fluid_rows`). Returns (rho, z, dp_drho, no_root, converged), 1-d."""
+    """The array loop of :func:`_gas_roots` on 1-d arrays of the simple fluid's states, then the reference
+    fluid's, each element with its fluid's constants in k (:func:`_both_rows`). Returns (rho, z, dp_drho,
+    no_root, converged), 1-d. The last _SCALAR_TAIL elements still open go on on floats (:func:`_gas_root_one`
+    from where they are: the same steps, bit for bit), where a numpy call costs more than its few elements'
+    arithmetic (near the critical point some take all _MAX_INNER steps)."""
+    half = trf.size // 2
     rho = np.zeros(trf.shape)
     no_root = np.zeros(trf.shape, dtype=bool)
     converged = np.zeros(trf.shape, dtype=bool)
@@ -294,7 +304,7 @@ def _gas_root_arrays(k: np.ndarray, trf: np.ndarray, prf: np.ndarray, active: np
         idx, t, p_t, kk = np.arange(trf.size), trf, prf, k
     else:
         idx = np.flatnonzero(active)
-        t, p_t, kk = trf[idx], prf[idx], [x[idx] if np.ndim(x) else x for x in k]
+        t, p_t, kk = trf[idx], prf[idx], [x[idx] for x in k]
     r = np.zeros(idx.shape)
     lo = np.zeros(idx.shape)
     hi = np.full(idx.shape, np.inf)
@@ -302,8 +312,19 @@ def _gas_root_arrays(k: np.ndarray, trf: np.ndarray, prf: np.ndarray, active: np
     # elements that have finished stay in the arrays (their later steps are not used) until a quarter of them
     # has: the arrays are compacted then, not at every step
     done = np.zeros(idx.shape, dtype=bool)
-    for _ in range(_MAX_INNER):
-        if idx.size == 0:
+    n_open = idx.size
+    for step in range(_MAX_INNER):
+        if n_open == 0:
+            break
+        if n_open <= _SCALAR_TAIL:
+            # the last few elements go on on floats from where they are (the same steps, bit for bit)
+            for j in np.flatnonzero(~done).tolist():
+                i = int(idx[j])
+                fluid = _SIMPLE if i < half else _REFERENCE
+                rho[i], converged[i], no_root[i] = _gas_root_one(
+                    fluid, (float(kk[0][j]), float(kk[1][j]), float(kk[2][j]), float(kk[3][j])), float(t[j]),
+                    float(p_t[j]), float(r[j]), float(lo[j]), float(hi[j]), step)
+            idx = idx[:0]
             break
         z, dz = _bwr_rows(kk, r)
         f = t * r * z - p_t
@@ -334,12 +355,15 @@ def _gas_root_arrays(k: np.ndarray, trf: np.ndarray, prf: np.ndarray, active: np
         converged[idx[conv & finished]] = True
         no_root[idx[stuck & finished]] = True
         done |= finished
+        n_open -= np.count_nonzero(finished)
         if 4 * np.count_nonzero(done) >= done.size:
             keep = ~done
-            idx, t, p_t, r, lo, hi, kk = idx[keep], t[keep], p_t[keep], r[keep], lo[keep], hi[keep], [x[keep] if np.ndim(x) else x for x in kk]
+            idx, t, p_t, r, lo, hi = idx[keep], t[keep], p_t[keep], r[keep], lo[keep], hi[keep]
+            kk = [x[keep] for x in kk]
             done = done[keep]
-    open_ = ~done
-    rho[idx[open_]] = r[open_]          # elements still iterating after _MAX_INNER steps: their last step
+    if idx.size:
+        open_ = ~done
+        rho[idx[open_]] = r[open_]      # elements still iterating after _MAX_INNER steps: their last step
     z, dz = _bwr_rows(k, rho)
     dp = trf * (z + rho * dz)
     # a converged point on an unstable (dP/drho <= 0) branch is not a gas root
@@ -371,17 +395,18 @@ _REFERENCE_1 = _scalar_consts(_REFERENCE)
 _SCALAR_CONSTS = {_SIMPLE: _SIMPLE_1, _REFERENCE: _REFERENCE_1}
 
 
-def _gas_root_one(consts: tuple, coef: tuple, t: float, p: float) -> tuple[float, bool, bool]:
-    """One element of :func:`_gas_root`'s Newton, on floats: the same steps and tests, bit for bit (:func:`_bwr`,
+def _gas_root_one(consts: tuple, coef: tuple, t: float, p: float, r: float = 0.0, lo: float = 0.0,
+                  hi: float = math.inf, start: int = 0) -> tuple[float, bool, bool]:
+    """One element of :func:`_gas_roots`'s Newton, on floats: the same steps and tests, bit for bit (:func:`_bwr`,
     :func:`_div` and the bracket's np.maximum / np.minimum, NaN propagating, written out in the loop, the same
-    operations in the same order). Returns (rho, converged, no_root) before the branch check."""
+    operations in the same order). Returns (rho, converged, no_root) before the branch check. `r`, `lo`, `hi`,
+    `start`: the state of an element after `start` steps of the array loop, which it continues.)"""
     beta, gamma, ngamma, beta2, k1, k2 = _SCALAR_CONSTS[consts]
     B, C, D, E = coef
     C2, D5 = 2.0 * C, 5.0 * D
     exp = np.exp
     inf = math.inf
-    r, lo, hi = 0.0, 0.0, inf
-    for _ in range(_MAX_INNER):
+    for _ in range(start, _MAX_INNER):
         r2 = r * r
         r4 = r2 * r2
         # exp(-gamma 0) is 1 exactly whatever the exp
@@ -424,7 +449,7 @@ def _bwr_one(consts1: tuple, coef: tuple, rho: float) -> tuple[float, float]:
 
 
 def _gas_root_few(consts: tuple, trf: np.ndarray, prf: np.ndarray, active: np.ndarray, shape: tuple):
-    """:func:`_gas_root` of a few elements, one by one on floats (numpy's cost per call dominates small arrays);
+    """:func:`_gas_roots` of one fluid for a few elements, one by one on floats (numpy's cost per call dominates small arrays);
     the same arithmetic as the array loop, bit for bit."""
     consts1 = _SCALAR_CONSTS[consts]
     b1, b2, b3, b4, c1, c2, c3, c4, d1, d2, _beta, _gamma = consts
@@ -755,7 +780,6 @@ def _newton_reduced_pressure(tr, vf, omega, active):
     idx = np.flatnonzero(active.reshape(-1))
     t, v, a = tr.reshape(-1)[idx], vf.reshape(-1)[idx], omega.reshape(-1)[idx] / OMEGA_REFERENCE
     r0 = 1.0 / v
-    rr = r0.copy()
     p = t * r0
     p_max = np.where(t < 1.0, np.minimum(lee_kesler_vapour_pressure(np.minimum(t, 1.0), a * OMEGA_REFERENCE), _PR_HI),
                      _PR_HI)
@@ -768,14 +792,22 @@ def _newton_reduced_pressure(tr, vf, omega, active):
                 pr_out[k], v0_out[k], vr_out[k] = got
                 converged[k] = True
         return pr_out.reshape(shape), v0_out.reshape(shape), vr_out.reshape(shape), converged.reshape(shape)
-    # both fluids' densities in one array (simple, then reference), so that each step's numpy calls serve both;
-    # the same operations per element as the two fluids' own arrays, in the same order (bit for bit); elements
-    # that have finished stay in the arrays (their later steps are not used) until a quarter of them has
+    for s in _blocks(idx.size):
+        _newton_block(idx[s], t[s], v[s], a[s], r0[s], p[s], p_max[s], pr_out, v0_out, vr_out, converged)
+    return pr_out.reshape(shape), v0_out.reshape(shape), vr_out.reshape(shape), converged.reshape(shape)
+
+
+def _newton_block(idx, t, v, a, r0, p, p_max, pr_out, v0_out, vr_out, converged) -> None:
+    """The array loop of :func:`_newton_reduced_pressure` over the elements idx (their T_r, V_r, a, start and cap),
+    into its outputs. Both fluids' densities are stepped in one array (simple, then reference), so that each step's
+    numpy calls serve both: the same operations per element as the two fluids' own arrays, in the same order (bit
+    for bit). Elements that have finished stay in the arrays (their later steps are not used) until a quarter of
+    them has."""
     m = idx.size
     k = _both_rows(t)
     tt = np.concatenate([t, t])
     wa = np.concatenate([1.0 - a, a])
-    r = np.concatenate([r0, rr])
+    r = np.concatenate([r0, r0])
     finished = np.zeros(m, dtype=bool)
     for _ in range(_MAX_NEWTON):
         if m == 0:
@@ -804,7 +836,6 @@ def _newton_reduced_pressure(tr, vf, omega, active):
             tt, wa, r, k = tt[keep2], wa[keep2], r[keep2], [x[keep2] for x in k]
             m = idx.size
             finished = finished[keep]
-    return pr_out.reshape(shape), v0_out.reshape(shape), vr_out.reshape(shape), converged.reshape(shape)
 
 
 def _newton_reduced_pressure_one(t: float, v: float, a: float, r0: float, p: float, p_max: float, c0: tuple,
