@@ -265,21 +265,23 @@ def _blocks(n: int) -> list[slice]:
     return [slice(i, min(n, i + size)) for i in range(0, n, size)]
 
 
-def _fluid_rows(consts: tuple, trf: np.ndarray) -> list[np.ndarray]:
-    """The constants of :func:`_bwr` for one LK fluid at the reduced temperatures trf (1-d), an array each with an
-    element per state: B, C, D, c4/T_r^3 (:func:`_coefficients`), 2 C, 5 D, beta, gamma, -gamma, 2 beta,
-    4 gamma - 2 gamma beta, 2 gamma gamma (the factors :func:`_bwr` forms, computed as it forms them)."""
-    B, C, D, E = _coefficients(consts, trf)
-    return [B, C, D, E, 2.0 * C, 5.0 * D, *(np.full(trf.shape, x) for x in _SCALAR_CONSTS[consts])]
-
-
 def _both_rows(trf: np.ndarray) -> list[np.ndarray]:
-    """:func:`_fluid_rows` of the simple fluid, then of the reference fluid, joined: an element per state and fluid."""
-    return [np.concatenate(pair) for pair in zip(_fluid_rows(_SIMPLE, trf), _fluid_rows(_REFERENCE, trf))]
+    """The constants of :func:`_bwr` of the simple fluid at the reduced temperatures trf (1-d), then of the reference
+    fluid, an element per state and fluid: B, C, D, c4/T_r^3 (:func:`_coefficients`), 2 C, 5 D, beta, gamma,
+    -gamma, 2 beta, 4 gamma - 2 gamma beta, 2 gamma gamma, computed as :func:`_coefficients` and :func:`_bwr` form
+    them (the same operations on each element: bit for bit)."""
+    m = trf.size
+    tt = np.concatenate([trf, trf])
+    c = np.repeat(_FLUID_CONSTS, m, axis=1)
+    b1, b2, b3, b4, c1, c2, c3, c4, d1, d2 = c[:10]
+    itr = 1.0 / tt
+    itr3 = itr * itr * itr
+    B, C, D = b1 - itr * (b2 + itr * (b3 + itr * b4)), c1 - c2 * itr + c3 * itr3, d1 + d2 * itr
+    return [B, C, D, c4 * itr3, 2.0 * C, 5.0 * D, *c[10:]]
 
 
 def _bwr_rows(k: list, rho: np.ndarray):
-    """:func:`_bwr` with the constants of each element in k (:func:`_fluid_rows`): the same
+    """:func:`_bwr` with the constants of each element in k (:func:`_both_rows`): the same
     operations in the same order, bit for bit."""
     B, C, D, E, C2, D5, beta, gamma, ngamma, beta2, k1, k2 = k
     r2 = rho * rho
@@ -393,6 +395,9 @@ def _scalar_consts(consts: tuple) -> tuple[float, ...]:
 _SIMPLE_1 = _scalar_consts(_SIMPLE)
 _REFERENCE_1 = _scalar_consts(_REFERENCE)
 _SCALAR_CONSTS = {_SIMPLE: _SIMPLE_1, _REFERENCE: _REFERENCE_1}
+#: Per fluid (a column each: simple, reference): b1 ... d2 of LK Table 1, then beta, gamma and the factors of
+#: :func:`_scalar_consts`, for :func:`_both_rows`.
+_FLUID_CONSTS = np.ascontiguousarray(np.array([[*_SIMPLE[:10], *_SIMPLE_1], [*_REFERENCE[:10], *_REFERENCE_1]]).T)
 
 
 def _gas_root_one(consts: tuple, coef: tuple, t: float, p: float, r: float = 0.0, lo: float = 0.0,
