@@ -405,7 +405,7 @@ def _gas_root_one(consts: tuple, coef: tuple, t: float, p: float, r: float = 0.0
     """One element of :func:`_gas_roots`'s Newton, on floats: the same steps and tests, bit for bit (:func:`_bwr`,
     :func:`_div` and the bracket's np.maximum / np.minimum, NaN propagating, written out in the loop, the same
     operations in the same order). Returns (rho, converged, no_root) before the branch check. `r`, `lo`, `hi`,
-    `start`: the state of an element after `start` steps of the array loop, which it continues.)"""
+    `start`: the state of an element after `start` steps of the array loop, which it continues."""
     beta, gamma, ngamma, beta2, k1, k2 = _SCALAR_CONSTS[consts]
     B, C, D, E = coef
     C2, D5 = 2.0 * C, 5.0 * D
@@ -454,8 +454,8 @@ def _bwr_one(consts1: tuple, coef: tuple, rho: float) -> tuple[float, float]:
 
 
 def _gas_root_few(consts: tuple, trf: np.ndarray, prf: np.ndarray, active: np.ndarray, shape: tuple):
-    """:func:`_gas_roots` of one fluid for a few elements, one by one on floats (numpy's cost per call dominates small arrays);
-    the same arithmetic as the array loop, bit for bit."""
+    """:func:`_gas_roots` of one fluid for a few elements, one by one on floats (numpy's cost per call dominates
+    small arrays); the same arithmetic as the array loop, bit for bit."""
     consts1 = _SCALAR_CONSTS[consts]
     b1, b2, b3, b4, c1, c2, c3, c4, d1, d2, _beta, _gamma = consts
     rho, z, dp, no_root, converged = [], [], [], [], []
