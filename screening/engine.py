@@ -75,6 +75,7 @@ from screening.physics.eos.generalized import (
     lee_kesler_density,
     lee_kesler_density_valid,
     lee_kesler_pressure,
+    lee_kesler_pressure_valid,
     lee_kesler_vapour_pressure,
     pseudocritical,
     srk_quantum_density,
@@ -1049,8 +1050,8 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
             """T -> generalized isochore pressure minus the rating, for the rows rows_ (NaN out of range)."""
             def f(t, ix):
                 r = rows_[ix]
-                s = lee_kesler_pressure(rho_lk[r], t, tcp[r], pcp[r], omp[r])
-                return np.where(s.valid, s.pressure - rated[r], np.nan)
+                p, ok = lee_kesler_pressure_valid(rho_lk[r], t, tcp[r], pcp[r], omp[r])
+                return np.where(ok, p - rated[r], np.nan)
             return f
 
         root = _settle_edges(isochore_over_rating(i), root, reach & conv, t_lo[i], t_hi[i])
@@ -1097,8 +1098,8 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
                 def f(p, ix):
                     r = rows_[ix]
                     rho1, ok1 = lee_kesler_density_valid(p, t_fill[r], tcf[r], pcf[r], omf[r])
-                    s2 = lee_kesler_pressure(np.where(ok1, rho1, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
-                    return np.where(ok1 & s2.valid, s2.pressure - target[r], np.nan)
+                    p2, ok2 = lee_kesler_pressure_valid(np.where(ok1, rho1, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
+                    return np.where(ok1 & ok2, p2 - target[r], np.nan)
                 return f
 
             root, settled = _root_in_interval(fill_over_target(u), p_lo[u], p_hi[u], pstar[unsure])
@@ -2465,13 +2466,13 @@ def _lk_limits(rows: Rows, out: dict, lk: np.ndarray, t_ref: np.ndarray, pk: np.
     tcf, pcf, omf, tcp, pcp, omp, rho_lk = (out[k] for k in ("tcf", "pcf", "omp", "tcp", "pcp", "omp", "lk_rho_fill"))
 
     def isochore(t, r):
-        st = lee_kesler_pressure(rho_lk[r], t, tcp[r], pcp[r], omp[r])
-        return np.where(st.valid, st.pressure - rated[r], np.nan)
+        p, ok = lee_kesler_pressure_valid(rho_lk[r], t, tcp[r], pcp[r], omp[r])
+        return np.where(ok, p - rated[r], np.nan)
 
     def fill(p, r):
         rho1, ok1 = lee_kesler_density_valid(p, t_fill[r], tcf[r], pcf[r], omf[r])
-        s2 = lee_kesler_pressure(np.where(ok1, rho1, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
-        return np.where(ok1 & s2.valid, s2.pressure - target[r], np.nan)
+        p2, ok2 = lee_kesler_pressure_valid(np.where(ok1, rho1, 1.0), t_peak[r], tcp[r], pcp[r], omp[r])
+        return np.where(ok1 & ok2, p2 - target[r], np.nan)
 
     # a rating above every pressure of the model: the isochore stays below it wherever it can be evaluated (none)
     sel = ~_above_lk_pressures(rated[lk], pcp[lk])

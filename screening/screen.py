@@ -25,6 +25,7 @@ from screening.physics.eos.generalized import (
     lee_kesler_density,
     lee_kesler_density_valid,
     lee_kesler_pressure,
+    lee_kesler_pressure_valid,
     pseudocritical,
     quantum_effective_critical,
     srk_quantum_density,
@@ -231,8 +232,8 @@ def _generalized(case: Case, rho_mass: float | None, t_fill: float, t_peak: floa
         ps = np.asarray(ps, dtype=float)
         t1, t2 = np.full_like(ps, t_fill), np.full_like(ps, t_peak)
         rho_fill, fill_ok = lee_kesler_density_valid(ps, t1, *constants_at(t1))
-        peak_state = lee_kesler_pressure(np.where(fill_ok, rho_fill, 1.0), t2, *constants_at(t2))
-        return np.where(fill_ok & peak_state.valid, peak_state.pressure, np.nan)
+        p2, ok2 = lee_kesler_pressure_valid(np.where(fill_ok, rho_fill, 1.0), t2, *constants_at(t2))
+        return np.where(fill_ok & ok2, p2, np.nan)
 
     def fill_for_peak(p_peak: float) -> float | None:
         # the density at the peak pressure and temperature, then the pressure of that density at the fill;
@@ -297,8 +298,8 @@ def _lk_isochore_array(arrays: dict, rho: float) -> Callable[[np.ndarray], np.nd
     apply), for a gas given by _gas_arrays."""
     def isochore_array(ts: np.ndarray) -> np.ndarray:
         ts = np.asarray(ts, dtype=float)
-        state = lee_kesler_pressure(np.full_like(ts, rho), ts, *_constants_at(arrays, ts))
-        return np.where(state.valid, state.pressure, np.nan)
+        p, ok = lee_kesler_pressure_valid(np.full_like(ts, rho), ts, *_constants_at(arrays, ts))
+        return np.where(ok, p, np.nan)
     isochore_array.lee_kesler = (arrays, rho)       # type: ignore[attr-defined]  (see _lk_isochores_joined)
     return isochore_array
 
@@ -319,8 +320,8 @@ def _lk_isochores_joined(models: list[Model], grid: np.ndarray) -> dict[int, lis
     n = grid.size
     ts = np.tile(np.asarray(grid, dtype=float), len(joined))
     rho = np.repeat(np.array([r for _k, (_a, r) in joined], dtype=float), n)
-    state = lee_kesler_pressure(rho, ts, *_constants_at(joined[0][1][0], ts))
-    values = np.where(state.valid, state.pressure, np.nan)
+    p, ok = lee_kesler_pressure_valid(rho, ts, *_constants_at(joined[0][1][0], ts))
+    values = np.where(ok, p, np.nan)
     return {k: [v if math.isfinite(v) else None for v in values[j * n:(j + 1) * n].tolist()]
             for j, (k, _lk) in enumerate(joined)}
 

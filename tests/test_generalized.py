@@ -498,3 +498,136 @@ def test_quantum_srk_newton_of_a_few_elements_is_the_array_newton(monkeypatch):
     monkeypatch.setattr(gen, "_SCALAR_MAX_NEWTON", 0)        # the array loop for every size
     for i, s in zip(range(0, 60, 3), small):
         _fields_equal(s, srk_quantum_density(p[i:i + 3], t[i:i + 3], tc0, pc0, m), slice(None))
+
+
+@pytest.mark.parametrize("size", [41, 300, 5001])
+def test_both_fluids_gas_roots_in_one_loop_are_each_fluids_own(size, monkeypatch):
+    # _gas_roots solves the simple and the reference fluid's gas roots of a call in one array loop (in blocks of
+    # _BLOCK states, its last few open elements handed to the float loop); each element's numbers must be those of
+    # its own fluid solved element by element on floats from the start (_gas_root_few), bit for bit: gas states on
+    # both sides of T_c, near the critical point (slow to settle), liquid-like pressures (no gas root) and
+    # elements left out (inactive).
+    import screening.physics.eos.generalized as gen
+
+    rng = np.random.default_rng(size)
+    tr = rng.uniform(0.3, 4.0, size)
+    pr = rng.uniform(1e-3, 12.0, size)
+    near = rng.random(size) < 0.3
+    tr[near] = rng.uniform(0.98, 1.02, near.sum())
+    pr[near] = rng.uniform(0.9, 1.1, near.sum())
+    active = rng.random(size) < 0.9
+    continued = []
+    one = gen._gas_root_one
+
+    def count(*args):
+        continued.append(len(args) > 4 and args[7] > 0)
+        return one(*args)
+    monkeypatch.setattr(gen, "_gas_root_one", count)
+    simple, reference = gen._gas_roots(tr, pr, active)
+    assert any(continued)                           # some elements went on on floats
+    monkeypatch.setattr(gen, "_gas_root_one", one)
+    assert (size > gen._BLOCK) == (size == 5001)
+    for consts, got in ((gen._SIMPLE, simple), (gen._REFERENCE, reference)):
+        want = gen._gas_root_few(consts, tr, pr, active, tr.shape)
+        assert got[3].any() and got[4].any()        # both no-root and converged elements are compared
+        for g, w in zip(got, want):
+            assert g.tobytes() == w.tobytes()
+
+
+def _refused_without_solve(monkeypatch):
+    """Counts the states lee_kesler_pressure_valid refuses without the bracketed solve."""
+    import screening.physics.eos.generalized as gen
+
+    counted = []
+    original = gen._no_gas_state_up_to_cap
+
+    def count(*args):
+        out = original(*args)
+        counted.append(int(out.sum()))
+        return out
+    monkeypatch.setattr(gen, "_no_gas_state_up_to_cap", count)
+    return counted
+
+
+@pytest.mark.parametrize("fluid", ["Krypton", "Argon", "Xenon", "Methane", "Propane", "Hydrogen"])
+def test_pressure_without_reasons_is_the_pressure_with_them(fluid, monkeypatch):
+    # lee_kesler_pressure_valid refuses states that have no gas state up to the highest pressure the model accepts
+    # without solving for their pressure; its pressures and validity must be lee_kesler_pressure's, bit for bit,
+    # on hot states above P_r = 10, near-critical states inside the dome, and calls of a few and of many elements.
+    from screening.physics.eos.generalized import lee_kesler_pressure_valid
+
+    refused = _refused_without_solve(monkeypatch)
+    # the fluid's critical constants and acentric factor as CoolProp gives them
+    tc, pc, om = critical(fluid)
+    rho_c = CP.PropsSI("rhomolar_critical", fluid)
+    rng = np.random.default_rng(len(fluid))
+    for n in (1, 7, 40, 300, 2000):
+        for t_lo, t_hi, r_lo, r_hi in ((0.3, 4.0, 0.01, 3.0), (0.95, 1.05, 0.3, 2.5), (1.5, 3.9, 0.5, 3.0)):
+            t = rng.uniform(t_lo, t_hi, n) * tc
+            rho = rng.uniform(r_lo, r_hi, n) * rho_c
+            full = lee_kesler_pressure(rho, t, tc, pc, om)
+            p, ok = lee_kesler_pressure_valid(rho, t, tc, pc, om)
+            np.testing.assert_array_equal(ok, full.valid)
+            assert p.tobytes() == full.pressure.tobytes()
+    if fluid != "Hydrogen":         # a = omega / omega_r = -0.55: the gas volume's fall is not known there
+        assert sum(refused) > 100
+
+
+@pytest.mark.parametrize("fluid", ["Krypton", "Argon", "Methane", "Xenon"])
+def test_states_refused_without_solve_are_above_the_range_by_the_reference_equation(fluid):
+    # The hot dense states refused without a solve are those whose pressure is above P_r = 10: CoolProp's
+    # reference equation puts them there too (within the model's few per cent).
+    import screening.physics.eos.generalized as gen
+
+    # the fluid's critical constants and acentric factor as CoolProp gives them
+    tc, pc, om = critical(fluid)
+    rng = np.random.default_rng(5)
+    n = 600
+    t = rng.uniform(1.1, 3.9, n) * tc
+    rho = rng.uniform(0.3, 3.0, n) * CP.PropsSI("rhomolar_critical", fluid)
+    sure = gen._no_gas_state_up_to_cap(t / tc, pc / (rho * R * tc), np.full(n, om), np.ones(n, dtype=bool))
+    assert 50 < sure.sum() < n
+    full = lee_kesler_pressure(rho, t, tc, pc, om)
+    assert not full.valid[sure].any()
+    assert not (full.reduced_pressure[sure] <= 10.0).any()     # above 10, or above the solve's cap of 40 (NaN)
+    # source: CoolProp PropsSI, the fluid's reference equation at the same density and temperature
+    p_ref = np.array([CP.PropsSI("P", "Dmolar", r, "T", x, fluid) for r, x in zip(rho[sure], t[sure])])
+    assert (p_ref / pc > 9.0).all()
+
+
+def test_gas_volume_falls_as_pressure_rises_where_states_are_refused_without_solve():
+    # _no_gas_state_up_to_cap relies on (1 - a) V_0 + a V_ref falling as P_r rises at fixed T_r: true for
+    # 0 <= a <= 1 (each gas volume falls), and for a < 0 where (1 - a) |dV_0/dP_r| > |a| |dV_ref/dP_r|, checked
+    # here on a grid at the lowest a and T_r it is used for, up to P_r = 10 (the model's range).
+    import screening.physics.eos.generalized as gen
+
+    tr, pr = np.meshgrid(np.linspace(gen._MONOTONE_TR, 4.0, 291), np.geomspace(1e-4, 10.01, 400))
+    tr, pr = tr.ravel(), pr.ravel()
+    (r0, _z0, dp0, nr0, c0), (rr, _zr, dpr, nrr, cr) = gen._gas_roots(tr, pr, np.ones(tr.size, dtype=bool))
+    assert (c0 & cr & ~nr0 & ~nrr).all()
+    fall0, fallr = 1.0 / (r0 * r0 * dp0), 1.0 / (rr * rr * dpr)     # -dV_i/dP_r
+    assert (fall0 > 0).all() and (fallr > 0).all()
+    a = gen._MONOTONE_A
+    # a margin: the slopes' ratio stays well inside the bound between the grid's points
+    assert ((1.0 - a) * fall0 + 1.5 * a * fallr > 0.0).all()
+
+
+def test_coupled_newton_of_both_fluids_in_one_array_is_each_states_own():
+    # The coupled pressure Newton steps both fluids' densities of every state in one array; each state's P_r and
+    # volumes must be those of the state solved alone (on floats: _newton_reduced_pressure_one), bit for bit,
+    # whether it settles, leaves the gas region or goes above the model's pressures.
+    import screening.physics.eos.generalized as gen
+
+    rng = np.random.default_rng(11)
+    n = gen._BLOCK + 300                # two blocks
+    tr = rng.uniform(0.5, 4.0, n)
+    vf = rng.uniform(0.05, 20.0, n)
+    # krypton's and propane's acentric factors as CoolProp gives them
+    omega = np.where(rng.random(n) < 0.5, CP.PropsSI("acentric", "Krypton"), CP.PropsSI("acentric", "Propane"))
+    active = rng.random(n) < 0.95
+    together = gen._newton_reduced_pressure(tr, vf, omega, active)
+    assert 0 < together[3].sum() < active.sum()
+    for i in range(0, n, 3):
+        alone = gen._newton_reduced_pressure(tr[i:i + 1], vf[i:i + 1], omega[i:i + 1], active[i:i + 1])
+        for a, b in zip(alone, together):
+            assert a.tobytes() == b[i:i + 1].tobytes()

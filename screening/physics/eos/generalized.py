@@ -72,6 +72,7 @@ __all__ = [
     "lee_kesler_pressure",
     "lee_kesler_density",
     "lee_kesler_density_valid",
+    "lee_kesler_pressure_valid",
     "lee_kesler_vapour_pressure",
     "quantum_effective_critical",
     "kay_pseudocritical",
@@ -109,6 +110,8 @@ _MAX_OUTER = 200
 _MAX_NEWTON = 30      # steps of the coupled Newton before the bracketed solve takes over
 _PR_SOLVE_MAX = 40.0   # [-] the pressure solve brackets P_r in (0, 40]; above 10 is reported invalid
 _SCALAR_MAX = 40       # calls and gas roots of at most this many elements are solved element by element on floats
+_SCALAR_TAIL = 8       # the gas roots' array loop hands its last open elements to the float loop
+_BLOCK = 2500          # the array loops take at most this many states at once (measured: longer arrays cost more a state)
 _SCALAR_MAX_NEWTON = 8  # the same for the coupled pressure Newton (measured: beyond these, the array loop is cheaper)
 
 # Gunn, Chueh & Prausnitz (1966) constants of the quantum correction [g K/mol], as given in Reid,
@@ -219,71 +222,157 @@ def _bwr(consts: tuple, coef: tuple, rho):
     return z, dz
 
 
-def _gas_root(consts: tuple, tr: np.ndarray, pr: np.ndarray, active: np.ndarray):
-    """Smallest reduced density solving P_r = T_r rho Z(rho) (the gas / vapour-like root).
+def _gas_roots(tr: np.ndarray, pr: np.ndarray, active: np.ndarray):
+    """Smallest reduced density solving P_r = T_r rho Z(rho) (the gas / vapour-like root) of each LK fluid.
 
     Newton from rho = 0 with a bracket. On the vapour branch the isotherm P_r(rho) is
     concave, so Newton from the left climbs monotonically to the first root; where it
     is convex (supercritical) it overshoots once and comes back from the right inside
     the bracket (bisection if a step leaves it). If the slope reaches zero before P_r
     is reached, the isotherm has a maximum below P_r: no gas root (``no_root``).
-    Only the elements still iterating are computed at each step.
 
-    Returns (rho, z, dp_drho, no_root, converged) as arrays of the broadcast shape.
+    Returns, for the simple fluid then the reference fluid, (rho, z, dp_drho, no_root, converged) as arrays of the
+    broadcast shape. Up to _SCALAR_MAX elements each is solved on floats (:func:`_gas_root_few`); on arrays both
+    fluids' elements iterate in one loop (:func:`_gas_root_arrays`, one set of numpy calls a step for the two), in
+    blocks of at most _BLOCK states (measured: longer arrays cost more a state), each element's steps its own, so
+    the numbers do not depend on the others in the call, bit for bit.
     """
     shape = tr.shape
     trf = tr.reshape(-1)
     prf = pr.reshape(-1)
-    if trf.size <= _SCALAR_MAX:
-        return _gas_root_few(consts, trf, prf, active.reshape(-1), shape)
+    act = active.reshape(-1)
+    n = trf.size
+    if n <= _SCALAR_MAX:
+        return (_gas_root_few(_SIMPLE, trf, prf, act, shape), _gas_root_few(_REFERENCE, trf, prf, act, shape))
+    parts = []
+    for s in _blocks(n):
+        m = s.stop - s.start
+        both = _gas_root_arrays(_both_rows(trf[s]), np.concatenate([trf[s], trf[s]]),
+                                np.concatenate([prf[s], prf[s]]), np.concatenate([act[s], act[s]]))
+        parts.append(tuple((x[:m], x[m:]) for x in both))
+    if len(parts) == 1:
+        return tuple(tuple(x[f].reshape(shape) for x in parts[0]) for f in (0, 1))
+    return tuple(tuple(np.concatenate([part[j][f] for part in parts]).reshape(shape) for j in range(5))
+                 for f in (0, 1))
+
+
+def _blocks(n: int) -> list[slice]:
+    """n elements cut into blocks of at most _BLOCK, of nearly equal sizes."""
+    if n == 0:
+        return []
+    k = -(-n // _BLOCK)
+    size = -(-n // k)
+    return [slice(i, min(n, i + size)) for i in range(0, n, size)]
+
+
+def _both_rows(trf: np.ndarray) -> list[np.ndarray]:
+    """The constants of :func:`_bwr` of the simple fluid at the reduced temperatures trf (1-d), then of the reference
+    fluid, an element per state and fluid: B, C, D, c4/T_r^3 (:func:`_coefficients`), 2 C, 5 D, beta, gamma,
+    -gamma, 2 beta, 4 gamma - 2 gamma beta, 2 gamma gamma, computed as :func:`_coefficients` and :func:`_bwr` form
+    them (the same operations on each element: bit for bit)."""
+    m = trf.size
+    tt = np.concatenate([trf, trf])
+    c = np.repeat(_FLUID_CONSTS, m, axis=1)
+    b1, b2, b3, b4, c1, c2, c3, c4, d1, d2 = c[:10]
+    itr = 1.0 / tt
+    itr3 = itr * itr * itr
+    B, C, D = b1 - itr * (b2 + itr * (b3 + itr * b4)), c1 - c2 * itr + c3 * itr3, d1 + d2 * itr
+    return [B, C, D, c4 * itr3, 2.0 * C, 5.0 * D, *c[10:]]
+
+
+def _bwr_rows(k: list, rho: np.ndarray):
+    """:func:`_bwr` with the constants of each element in k (:func:`_both_rows`): the same
+    operations in the same order, bit for bit."""
+    B, C, D, E, C2, D5, beta, gamma, ngamma, beta2, k1, k2 = k
+    r2 = rho * rho
+    r4 = r2 * r2
+    ex = E * np.exp(ngamma * r2)
+    z = 1.0 + rho * (B + rho * C + D * r4) + ex * r2 * (beta + gamma * r2)
+    dz = B + rho * (C2 + D5 * r2 * rho) + ex * rho * (beta2 + r2 * k1 - k2 * r4)
+    return z, dz
+
+
+def _gas_root_arrays(k: np.ndarray, trf: np.ndarray, prf: np.ndarray, active: np.ndarray):
+    """The array loop of :func:`_gas_roots` on 1-d arrays of the simple fluid's states, then the reference
+    fluid's, each element with its fluid's constants in k (:func:`_both_rows`). Returns (rho, z, dp_drho,
+    no_root, converged), 1-d. The last _SCALAR_TAIL elements still open go on on floats (:func:`_gas_root_one`
+    from where they are: the same steps, bit for bit), where a numpy call costs more than its few elements'
+    arithmetic (near the critical point some take all _MAX_INNER steps)."""
+    half = trf.size // 2
     rho = np.zeros(trf.shape)
     no_root = np.zeros(trf.shape, dtype=bool)
     converged = np.zeros(trf.shape, dtype=bool)
-    idx = np.flatnonzero(active.reshape(-1))
-    t = trf[idx]
-    p_t = prf[idx]
-    coef = _coefficients(consts, t)
+    if active.all():
+        idx, t, p_t, kk = np.arange(trf.size), trf, prf, k
+    else:
+        idx = np.flatnonzero(active)
+        t, p_t, kk = trf[idx], prf[idx], [x[idx] for x in k]
     r = np.zeros(idx.shape)
     lo = np.zeros(idx.shape)
     hi = np.full(idx.shape, np.inf)
-    for _ in range(_MAX_INNER):
-        if idx.size == 0:
+    bracketed = False               # some element has a finite upper end (else no bisection can be asked for)
+    # elements that have finished stay in the arrays (their later steps are not used) until a quarter of them
+    # has: the arrays are compacted then, not at every step
+    done = np.zeros(idx.shape, dtype=bool)
+    n_open = idx.size
+    for step in range(_MAX_INNER):
+        if n_open == 0:
             break
-        z, dz = _bwr(consts, coef, r)
+        if n_open <= _SCALAR_TAIL:
+            # the last few elements go on on floats from where they are (the same steps, bit for bit)
+            for j in np.flatnonzero(~done).tolist():
+                i = int(idx[j])
+                fluid = _SIMPLE if i < half else _REFERENCE
+                rho[i], converged[i], no_root[i] = _gas_root_one(
+                    fluid, (float(kk[0][j]), float(kk[1][j]), float(kk[2][j]), float(kk[3][j])), float(t[j]),
+                    float(p_t[j]), float(r[j]), float(lo[j]), float(hi[j]), step)
+            idx = idx[:0]
+            break
+        z, dz = _bwr_rows(kk, r)
         f = t * r * z - p_t
         dp = t * (z + r * dz)
         below = f < 0.0
         lo = np.where(below, np.maximum(lo, r), lo)
-        hi = np.where(below, hi, np.minimum(hi, r))
-        finite_hi = np.isfinite(hi)
-        # non-positive slope while still below the target: past the vapour-branch maximum
-        stuck = below & (dp <= 0.0) & ~finite_hi
+        if bracketed or not below.all():
+            hi = np.where(below, hi, np.minimum(hi, r))
+            finite_hi = np.isfinite(hi)
+            bracketed = bool(finite_hi.any())
         newton = r - f / dp
         conv = (dp > 0.0) & (np.abs(newton - r) <= _RTOL * newton)
-        bisect = finite_hi & (~np.isfinite(newton) | (newton < lo) | (newton > hi) | (dp <= 0.0))
-        new = np.where(bisect & ~conv, 0.5 * (lo + hi), newton)
-        conv |= finite_hi & ((hi - lo) <= _RTOL * hi)
+        if bracketed:
+            # non-positive slope while still below the target: past the vapour-branch maximum
+            stuck = below & (dp <= 0.0) & ~finite_hi
+            bisect = finite_hi & (~np.isfinite(newton) | (newton < lo) | (newton > hi) | (dp <= 0.0))
+            new = np.where(bisect & ~conv, 0.5 * (lo + hi), newton)
+            conv |= finite_hi & ((hi - lo) <= _RTOL * hi)
+        else:                       # every upper end infinite: no bisection, no collapsed bracket
+            stuck = below & (dp <= 0.0)
+            new = newton
         conv &= ~stuck
-        finished = conv | stuck
+        finished = (conv | stuck) & ~done
+        r = new
         if not finished.any():          # nothing to record or drop this step
-            r = new
             continue
         rho[idx[finished]] = new[finished]
-        converged[idx[conv]] = True
-        no_root[idx[stuck]] = True
-        keep = ~finished
-        idx, t, p_t, r, lo, hi = idx[keep], t[keep], p_t[keep], new[keep], lo[keep], hi[keep]
-        coef = tuple(c[keep] for c in coef)
-    rho[idx] = r                        # elements still iterating after _MAX_INNER steps: their last step
-    coef = _coefficients(consts, trf)
-    z, dz = _bwr(consts, coef, rho)
+        converged[idx[conv & finished]] = True
+        no_root[idx[stuck & finished]] = True
+        done |= finished
+        n_open -= np.count_nonzero(finished)
+        if 4 * np.count_nonzero(done) >= done.size:
+            keep = ~done
+            idx, t, p_t, r, lo, hi = idx[keep], t[keep], p_t[keep], r[keep], lo[keep], hi[keep]
+            kk = [x[keep] for x in kk]
+            done = done[keep]
+    if idx.size:
+        open_ = ~done
+        rho[idx[open_]] = r[open_]      # elements still iterating after _MAX_INNER steps: their last step
+    z, dz = _bwr_rows(k, rho)
     dp = trf * (z + rho * dz)
     # a converged point on an unstable (dP/drho <= 0) branch is not a gas root
     bad_branch = converged & (dp <= 0.0)
     no_root |= bad_branch
     converged &= ~bad_branch
-    return (rho.reshape(shape), z.reshape(shape), dp.reshape(shape), no_root.reshape(shape),
-            converged.reshape(shape))
+    return rho, z, dp, no_root, converged
 
 
 def _div(a: float, b: float) -> float:
@@ -306,19 +395,23 @@ def _scalar_consts(consts: tuple) -> tuple[float, ...]:
 _SIMPLE_1 = _scalar_consts(_SIMPLE)
 _REFERENCE_1 = _scalar_consts(_REFERENCE)
 _SCALAR_CONSTS = {_SIMPLE: _SIMPLE_1, _REFERENCE: _REFERENCE_1}
+#: Per fluid (a column each: simple, reference): b1 ... d2 of LK Table 1, then beta, gamma and the factors of
+#: :func:`_scalar_consts`, for :func:`_both_rows`.
+_FLUID_CONSTS = np.ascontiguousarray(np.array([[*_SIMPLE[:10], *_SIMPLE_1], [*_REFERENCE[:10], *_REFERENCE_1]]).T)
 
 
-def _gas_root_one(consts: tuple, coef: tuple, t: float, p: float) -> tuple[float, bool, bool]:
-    """One element of :func:`_gas_root`'s Newton, on floats: the same steps and tests, bit for bit (:func:`_bwr`,
+def _gas_root_one(consts: tuple, coef: tuple, t: float, p: float, r: float = 0.0, lo: float = 0.0,
+                  hi: float = math.inf, start: int = 0) -> tuple[float, bool, bool]:
+    """One element of :func:`_gas_roots`'s Newton, on floats: the same steps and tests, bit for bit (:func:`_bwr`,
     :func:`_div` and the bracket's np.maximum / np.minimum, NaN propagating, written out in the loop, the same
-    operations in the same order). Returns (rho, converged, no_root) before the branch check."""
+    operations in the same order). Returns (rho, converged, no_root) before the branch check. `r`, `lo`, `hi`,
+    `start`: the state of an element after `start` steps of the array loop, which it continues."""
     beta, gamma, ngamma, beta2, k1, k2 = _SCALAR_CONSTS[consts]
     B, C, D, E = coef
     C2, D5 = 2.0 * C, 5.0 * D
     exp = np.exp
     inf = math.inf
-    r, lo, hi = 0.0, 0.0, inf
-    for _ in range(_MAX_INNER):
+    for _ in range(start, _MAX_INNER):
         r2 = r * r
         r4 = r2 * r2
         # exp(-gamma 0) is 1 exactly whatever the exp
@@ -361,8 +454,8 @@ def _bwr_one(consts1: tuple, coef: tuple, rho: float) -> tuple[float, float]:
 
 
 def _gas_root_few(consts: tuple, trf: np.ndarray, prf: np.ndarray, active: np.ndarray, shape: tuple):
-    """:func:`_gas_root` of a few elements, one by one on floats (numpy's cost per call dominates small arrays);
-    the same arithmetic as the array loop, bit for bit."""
+    """:func:`_gas_roots` of one fluid for a few elements, one by one on floats (numpy's cost per call dominates
+    small arrays); the same arithmetic as the array loop, bit for bit."""
     consts1 = _SCALAR_CONSTS[consts]
     b1, b2, b3, b4, c1, c2, c3, c4, d1, d2, _beta, _gamma = consts
     rho, z, dp, no_root, converged = [], [], [], [], []
@@ -479,8 +572,7 @@ def _set_reasons(reason: np.ndarray, mask: np.ndarray, make) -> None:
 def _z_core(tr: np.ndarray, pr: np.ndarray, omega: np.ndarray, active: np.ndarray):
     """Z, dZ/dP_r, reduced volumes and per-element failure reasons at (T_r, P_r, omega)."""
     a = omega / OMEGA_REFERENCE
-    r0, z0, dp0, nr0, c0 = _gas_root(_SIMPLE, tr, pr, active)
-    rr, zr, dpr, nrr, cr = _gas_root(_REFERENCE, tr, pr, active)
+    (r0, z0, dp0, nr0, c0), (rr, zr, dpr, nrr, cr) = _gas_roots(tr, pr, active)
     z = z0 + a * (zr - z0)
     # Z_i = P_r / (T_r rho_i): dZ_i/dP_r = (1/rho_i - P_r/(rho_i^2 dP_i/drho_i)) / T_r
     with np.errstate(divide="ignore", invalid="ignore"):
@@ -692,13 +784,12 @@ def _newton_reduced_pressure(tr, vf, omega, active):
     converged = np.zeros(n, dtype=bool)
     idx = np.flatnonzero(active.reshape(-1))
     t, v, a = tr.reshape(-1)[idx], vf.reshape(-1)[idx], omega.reshape(-1)[idx] / OMEGA_REFERENCE
-    c0, cr = _coefficients(_SIMPLE, t), _coefficients(_REFERENCE, t)
     r0 = 1.0 / v
-    rr = r0.copy()
     p = t * r0
     p_max = np.where(t < 1.0, np.minimum(lee_kesler_vapour_pressure(np.minimum(t, 1.0), a * OMEGA_REFERENCE), _PR_HI),
                      _PR_HI)
     if idx.size <= _SCALAR_MAX_NEWTON:
+        c0, cr = _coefficients(_SIMPLE, t), _coefficients(_REFERENCE, t)
         for k, tk, vk, ak, r0k, pk, pmk, c0k, crk in zip(idx.tolist(), t.tolist(), v.tolist(), a.tolist(), r0.tolist(),
                                                        p.tolist(), p_max.tolist(), zip(*c0), zip(*cr)):
             got = _newton_reduced_pressure_one(tk, vk, ak, r0k, pk, pmk, c0k, crk)
@@ -706,29 +797,50 @@ def _newton_reduced_pressure(tr, vf, omega, active):
                 pr_out[k], v0_out[k], vr_out[k] = got
                 converged[k] = True
         return pr_out.reshape(shape), v0_out.reshape(shape), vr_out.reshape(shape), converged.reshape(shape)
-    for _ in range(_MAX_NEWTON):
-        if idx.size == 0:
-            break
-        z0, dz0 = _bwr(_SIMPLE, c0, r0)
-        zr, dzr = _bwr(_REFERENCE, cr, rr)
-        p0, pref = t * r0 * z0, t * rr * zr
-        d0, dref = t * (z0 + r0 * dz0), t * (zr + rr * dzr)
-        w0, wref = (1.0 - a) / (d0 * r0 * r0), a / (dref * rr * rr)
-        p_new = ((1.0 - a) / r0 + a / rr - v + w0 * p0 + wref * pref) / (w0 + wref)
-        r0_new = r0 + (p_new - p0) / d0
-        rr_new = rr + (p_new - pref) / dref
-        bad = ~((d0 > 0.0) & (dref > 0.0) & (r0_new > 0.0) & (rr_new > 0.0) & (p_new > 0.0)
-                & (p_new <= p_max) & np.isfinite(r0_new) & np.isfinite(rr_new))
-        done = ~bad & (np.abs(p_new - p) <= _PTOL * p_new) & (np.abs(r0_new - r0) <= _RTOL * r0_new) \
-            & (np.abs(rr_new - rr) <= _RTOL * rr_new)
-        fin = idx[done]
-        pr_out[fin], v0_out[fin], vr_out[fin] = p_new[done], 1.0 / r0_new[done], 1.0 / rr_new[done]
-        converged[fin] = True
-        keep = ~done & ~bad
-        idx, t, v, a, r0, rr, p = idx[keep], t[keep], v[keep], a[keep], r0_new[keep], rr_new[keep], p_new[keep]
-        p_max = p_max[keep]
-        c0, cr = tuple(c[keep] for c in c0), tuple(c[keep] for c in cr)
+    for s in _blocks(idx.size):
+        _newton_block(idx[s], t[s], v[s], a[s], r0[s], p[s], p_max[s], pr_out, v0_out, vr_out, converged)
     return pr_out.reshape(shape), v0_out.reshape(shape), vr_out.reshape(shape), converged.reshape(shape)
+
+
+def _newton_block(idx, t, v, a, r0, p, p_max, pr_out, v0_out, vr_out, converged) -> None:
+    """The array loop of :func:`_newton_reduced_pressure` over the elements idx (their T_r, V_r, a, start and cap),
+    into its outputs. Both fluids' densities are stepped in one array (simple, then reference), so that each step's
+    numpy calls serve both: the same operations per element as the two fluids' own arrays, in the same order (bit
+    for bit). Elements that have finished stay in the arrays (their later steps are not used) until a quarter of
+    them has."""
+    m = idx.size
+    k = _both_rows(t)
+    tt = np.concatenate([t, t])
+    wa = np.concatenate([1.0 - a, a])
+    r = np.concatenate([r0, r0])
+    finished = np.zeros(m, dtype=bool)
+    for _ in range(_MAX_NEWTON):
+        if m == 0:
+            break
+        z, dz = _bwr_rows(k, r)
+        pz = tt * r * z                             # P_0, P_ref
+        d = tt * (z + r * dz)                       # dP_0/drho_0, dP_ref/drho_ref
+        w = wa / (d * r * r)                        # w_0, w_ref
+        q = wa / r
+        wp = w * pz
+        p_new = (q[:m] + q[m:] - v + wp[:m] + wp[m:]) / (w[:m] + w[m:])
+        r_new = r + (np.concatenate([p_new, p_new]) - pz) / d
+        ok = (d > 0.0) & (r_new > 0.0) & np.isfinite(r_new)
+        good = ok[:m] & ok[m:] & (p_new > 0.0) & (p_new <= p_max) & ~finished
+        close = np.abs(r_new - r) <= _RTOL * r_new
+        done = good & (np.abs(p_new - p) <= _PTOL * p_new) & close[:m] & close[m:]
+        fin = idx[done]
+        pr_out[fin], v0_out[fin], vr_out[fin] = p_new[done], 1.0 / r_new[:m][done], 1.0 / r_new[m:][done]
+        converged[fin] = True
+        finished |= done | ~good
+        r, p = r_new, p_new
+        if 4 * np.count_nonzero(finished) >= m:
+            keep = ~finished
+            keep2 = np.concatenate([keep, keep])
+            idx, v, p, p_max = idx[keep], v[keep], p[keep], p_max[keep]
+            tt, wa, r, k = tt[keep2], wa[keep2], r[keep2], [x[keep2] for x in k]
+            m = idx.size
+            finished = finished[keep]
 
 
 def _newton_reduced_pressure_one(t: float, v: float, a: float, r0: float, p: float, p_max: float, c0: tuple,
@@ -867,6 +979,43 @@ def _solve_reduced_pressure(tr, vf, omega, active):
     return pr_out.reshape(shape), converged.reshape(shape), above_cap.reshape(shape)
 
 
+#: The reduced gas volume (1 - a) V_0 + a V_ref of the two LK fluids' gas roots decreases as P_r rises wherever
+#: 0 <= a <= 1 (each V_i does); with a < 0 it does where (1 - a) |dV_0/dP_r| > |a| |dV_ref/dP_r|, which holds from
+#: T_r = 1.1 up for every a above -0.38 (the ratio of the two fluids' slopes stays above 0.63 there up to P_r = 10;
+#: tests/test_generalized.py checks it on a grid): the states of :func:`_no_gas_state_up_to_cap` are those.
+_MONOTONE_TR = 1.1
+_MONOTONE_A = -0.25
+#: Relative margin by which the reduced gas volume at the cap must exceed V_r (a state is valid only where they
+#: agree to 1e-9; round-off is some 1e-13).
+_NO_GAS_MARGIN = 1e-6
+
+
+def _no_gas_state_up_to_cap(tr, vf, omega, cand) -> np.ndarray:
+    """Where (among cand, inside the T_r range) no gas state of the LK model has the reduced ideal volume vf at any
+    reduced pressure it accepts (up to 10, and up to the LK vapour pressure below T_r = 1): the gas volume
+    (1 - a) V_0 + a V_ref at that cap exceeds vf by _NO_GAS_MARGIN, and the gas volume only falls as P_r rises
+    (a in [0, 1], or T_r >= _MONOTONE_TR and a >= _MONOTONE_A), so every accepted pressure gives a larger volume
+    than vf: the bracketed solve can only end above the cap or unsettled, and the state is refused whatever it
+    finds. False where not sure (the caller solves)."""
+    shape = tr.shape
+    out = np.zeros(tr.size, dtype=bool)
+    trf, vff, omf = tr.reshape(-1), vf.reshape(-1), omega.reshape(-1)
+    a = omf / OMEGA_REFERENCE
+    sure = cand.reshape(-1) & (((a >= 0.0) & (a <= 1.0)) | ((trf >= _MONOTONE_TR) & (a >= _MONOTONE_A) & (a < 0.0)))
+    k = np.flatnonzero(sure)
+    if k.size == 0:
+        return out.reshape(shape)
+    t = trf[k]
+    cap = np.full(k.size, _PR_HI)
+    sub = t < 1.0
+    if sub.any():
+        cap[sub] = np.minimum(lee_kesler_vapour_pressure(t[sub], omf[k][sub]), _PR_HI)
+    _z, v0, vr, _dv0, _dvr, no_root, not_conv, ak = _z_core(t, cap, omf[k], np.ones(k.size, dtype=bool))
+    mix = (1.0 - ak) * v0 + ak * vr
+    out[k] = ~no_root & ~not_conv & (mix > vff[k] * (1.0 + _NO_GAS_MARGIN))
+    return out.reshape(shape)
+
+
 @np.errstate(divide="ignore", invalid="ignore", over="ignore")
 def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> GeneralizedState:
     """Absolute pressure [Pa] of the gas at fixed molar density [mol/m3] and temperature [K].
@@ -889,11 +1038,34 @@ def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> Generalize
     >>> round(float(s.pressure) / 1e5, 3), bool(s.valid)
     (1.012, True)
     """
+    return _pressure(molar_density, temperature, tc, pc, omega)
+
+
+@np.errstate(divide="ignore", invalid="ignore", over="ignore")
+def lee_kesler_pressure_valid(molar_density, temperature, tc, pc, omega) -> tuple[np.ndarray, np.ndarray]:
+    """(pressure [Pa], valid) as :func:`lee_kesler_pressure` gives them (the same numbers and validity, bit for
+    bit), for a solver that evaluates it many times and reads only these. A state that has no gas state of the
+    model up to the highest pressure one can have (:func:`_no_gas_state_up_to_cap`) is refused without the
+    bracketed solve that would find its reduced pressure (above 10, or above the vapour pressure), which only
+    its reason in words uses.
+
+    >>> p, ok = lee_kesler_pressure_valid(40.6, 300.0, 126.192, 3.3958e6, 0.0372)   # nitrogen near 1 atm
+    >>> bool(ok), bool(p == lee_kesler_pressure(40.6, 300.0, 126.192, 3.3958e6, 0.0372).pressure)
+    (True, True)
+    """
+    s = _pressure(molar_density, temperature, tc, pc, omega, sure_none=True)
+    return s.pressure, s.valid
+
+
+def _pressure(molar_density, temperature, tc, pc, omega, sure_none: bool = False) -> GeneralizedState:
+    """:func:`lee_kesler_pressure`; `sure_none`: the states :func:`_no_gas_state_up_to_cap` finds are refused
+    without their bracketed solve (their reasons and reduced pressures are then not those of
+    :func:`lee_kesler_pressure`: for :func:`lee_kesler_pressure_valid` only)."""
     rho, t, tc, pc, omega = _state_arrays(molar_density, "molar density", "[mol/m3]", temperature, tc, pc, omega)
     tr = t / tc
     vf = pc / (rho * R * tc)          # reduced ideal volume of the gas [-]
     if not (tr.ndim == 1 and 0 < tr.size <= _SCALAR_MAX):
-        return _pressure_arrays(rho, t, pc, omega, tr, vf)
+        return _pressure_arrays(rho, t, pc, omega, tr, vf, sure_none=sure_none)
     # element by element; the array path (and its reasons) only for the elements that need it
     prs, zs, failed, newton = _pressure_few(tr, vf, omega)
     pr_final, z = np.array(prs), np.array(zs)
@@ -901,7 +1073,8 @@ def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> Generalize
     reason = np.full(tr.shape, "", dtype=object)
     valid = reason == ""
     if failed:
-        sub = _pressure_arrays(rho[failed], t[failed], pc[failed], omega[failed], tr[failed], vf[failed], newton)
+        sub = _pressure_arrays(rho[failed], t[failed], pc[failed], omega[failed], tr[failed], vf[failed], newton,
+                               sure_none)
         p[failed], rho[failed], z[failed], pr_final[failed] = (sub.pressure, sub.molar_density, sub.z,
                                                                sub.reduced_pressure)
         valid[failed], reason[failed] = sub.valid, sub.reason
@@ -909,16 +1082,22 @@ def lee_kesler_pressure(molar_density, temperature, tc, pc, omega) -> Generalize
                             valid=valid, reason=reason)
 
 
-def _pressure_arrays(rho, t, pc, omega, tr, vf, newton: tuple | None = None) -> GeneralizedState:
+def _pressure_arrays(rho, t, pc, omega, tr, vf, newton: tuple | None = None,
+                     sure_none: bool = False) -> GeneralizedState:
     """:func:`lee_kesler_pressure` on arrays of one shape (already checked), with T_r and the reduced ideal
-    volume V_r given; `newton`: what :func:`_newton_reduced_pressure` gives for them, if already known."""
+    volume V_r given; `newton`: what :func:`_newton_reduced_pressure` gives for them, if already known;
+    `sure_none`: as :func:`_pressure` takes it."""
     outside = _range_reasons(tr, None)
     active = outside == ""
 
     # The coupled Newton first; where it does not settle, or settles off the gas branch (its roots
     # differ from the cold-started gas roots of the check below), the bracketed solve decides.
     fast_pr, fast_v0, fast_vr, fast = newton or _newton_reduced_pressure(tr, vf, omega, active)
-    pr, converged, above_cap = _solve_reduced_pressure(tr, vf, omega, active & ~fast)
+    solve = active & ~fast
+    if sure_none and solve.any():
+        # no gas state of the model at this density: not solved, so not converged (refused)
+        solve &= ~_no_gas_state_up_to_cap(tr, vf, omega, solve)
+    pr, converged, above_cap = _solve_reduced_pressure(tr, vf, omega, solve)
     pr = np.where(fast, fast_pr, pr)
     converged = converged | fast
     while True:
