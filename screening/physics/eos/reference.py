@@ -693,38 +693,50 @@ class ReferenceFluid:
         valid = np.zeros(n, dtype=bool)
         pure = self._pure_density
         # Fast path (as _evaluate_rows'), for states at or above the critical temperature, where _pure_density
-        # needs no vapour pressure and imposes no phase: its CoolProp calls in its order (the flash, then the
-        # check at the density found), its checks as plain comparisons that accept exactly the states it accepts,
-        # its phase words. A state failing any of them, or where CoolProp raises, goes through _pure_density
-        # itself, which makes the same calls again and says why (tests/test_reference_rows.py).
+        # needs no vapour pressure and imposes no phase, and below it where the caller gives the vapour pressure
+        # and the state is off the saturation band: its CoolProp calls in its order (the phase imposed, the
+        # flash, then the check at the density found), its checks as plain comparisons that accept exactly the
+        # states it accepts, its phase words. A state failing any of them, or where CoolProp raises, goes through
+        # _pure_density itself, which makes the same calls again and says why (tests/test_reference_rows.py).
         fast = self._rows_fast
         if fast:
             a = self._state
-            update, get_rho, unspecify, get_p, get_phase, dp_drho = (
-                a.update, a.rhomolar, a.unspecify_phase, a.p, a.phase, a.first_partial_deriv)
+            update, get_rho, specify, unspecify, get_p, get_phase, dp_drho = (
+                a.update, a.rhomolar, a.specify_phase, a.unspecify_phase, a.p, a.phase, a.first_partial_deriv)
             by_p_T, by_rho_T, two_phase, inf = CoolProp.PT_INPUTS, CoolProp.DmolarT_INPUTS, _TWO_PHASE, math.inf
+            as_liquid, as_gas = CoolProp.iphase_liquid, CoolProp.iphase_gas
             iP, iT, iD = CoolProp.iP, CoolProp.iT, CoolProp.iDmolar
-            t_lo, t_max, p_max = max(self._rows_t_min, self.critical_temperature), self.t_max, self.p_max
+            t_min, t_max, p_max = self._rows_t_min, self.t_max, self.p_max
+            t_c, rho_c, band = self.critical_temperature, self.critical_molar_density, SATURATION_BAND
         for i in range(n):
             pi, ti = p_f[i], t_f[i]
-            # _check_temperature, _check_pressure (NaN fails every comparison); above the critical temperature
-            if fast and t_lo <= ti <= t_max and 0.0 < pi <= p_max:
+            # _check_temperature, _check_pressure (NaN fails every comparison)
+            if fast and t_min <= ti <= t_max and 0.0 < pi <= p_max:
                 word = None
-                try:
-                    update(by_p_T, pi, ti)
-                    r = get_rho()
-                    unspecify()
-                    if 0.0 < r < inf:                                   # _check_density
-                        update(by_rho_T, r, ti)                         # _evaluate(r, T)
-                        pb = get_p()
-                        iphase = get_phase()
-                        if 0.0 < pb <= p_max:                           # _check_pressure
-                            if iphase == two_phase:
-                                word = "two-phase"
-                            elif 0.0 < dp_drho(iP, iD, iT) < inf:       # _check_stable
-                                word = "supercritical"
-                except ValueError:
-                    word = None
+                imposed = None
+                if ti < t_c:        # a pseudo-pure fluid never comes here (t_min is its maxcondentherm)
+                    ps = s_f[i]
+                    # the vapour pressure as given (NaN: not known, asked by _pure_density), off its band
+                    imposed = (as_liquid if pi > ps else as_gas) if 0.0 < ps < inf and abs(pi - ps) > band * ps \
+                        else False
+                if imposed is not False:
+                    try:
+                        if imposed is not None:
+                            specify(imposed)
+                        update(by_p_T, pi, ti)
+                        r = get_rho()
+                        unspecify()
+                        if 0.0 < r < inf:                                   # _check_density
+                            update(by_rho_T, r, ti)                         # _evaluate(r, T)
+                            pb = get_p()
+                            iphase = get_phase()
+                            if 0.0 < pb <= p_max:                           # _check_pressure
+                                if iphase == two_phase:
+                                    word = "two-phase"
+                                elif 0.0 < dp_drho(iP, iD, iT) < inf:       # _check_stable
+                                    word = ("supercritical" if ti >= t_c else "liquid" if r > rho_c else "gas")
+                    except ValueError:
+                        word = None
                 if word is not None and not abs(pb - pi) > 1e-6 * pi:  # the check maps back to p
                     rho[i], p_back[i], phases[i] = r, pb, word
                     valid[i] = True
