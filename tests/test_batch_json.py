@@ -431,7 +431,11 @@ def test_a_chunk_s_lines_come_back_through_its_spool_file_byte_for_byte(kinds_in
     assert all(isinstance(x[batch._LINE], bytes) for x in plain)
     spooled = batch.screen_chunk((inv, defaults, {}, dict(want, spool=str(tmp_path))))
     assert isinstance(spooled, batch.Spooled) and os.listdir(tmp_path) == [os.path.basename(spooled.path)]
-    assert all(isinstance(x[batch._LINE], int) for x in spooled.rows)
-    assert batch._unspooled(spooled) == plain
+    assert [x[batch._LINE] for x in spooled.rows] == [len(x[batch._LINE]) for x in plain]
+    rows, lines = batch._unspooled(spooled)
+    assert [bytes(line) for line in lines] == [x[batch._LINE] for x in plain]
+    assert [(*x[:batch._LINE], *x[batch._LINE + 1:]) for x in rows] == [
+        (*x[:batch._LINE], *x[batch._LINE + 1:]) for x in plain]
     assert os.listdir(tmp_path) == []
     assert batch.screen_chunk((inv, defaults, {}, dict(want, spool=str(tmp_path / "gone")))) == plain
+    assert batch._unspooled(plain) == (plain, [x[batch._LINE] for x in plain])
