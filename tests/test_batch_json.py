@@ -439,3 +439,8 @@ def test_a_chunk_s_lines_come_back_through_its_spool_file_byte_for_byte(kinds_in
     assert os.listdir(tmp_path) == []
     assert batch.screen_chunk((inv, defaults, {}, dict(want, spool=str(tmp_path / "gone")))) == plain
     assert batch._unspooled(plain) == (plain, [x[batch._LINE] for x in plain])
+    # a file's bytes, mapped or read: an empty file too
+    for content in (b"", b'{"a":1}\n' * 3000):
+        (tmp_path / "f").write_bytes(content)
+        with open(tmp_path / "f", "rb") as fh:
+            assert bytes(batch._whole_file(fh)) == content
