@@ -218,8 +218,9 @@ def screen_chunk(job: tuple) -> list[tuple]:
     "compact"."""
     if job[3].get("compact"):
         if job[3].get("spool"):
-            lines: list[bytes] = []
-            return _spooled(_compact(_lines_taken(_chunk_rows(job), lines)), lines, job[3]["spool"])
+            got = _spooled(job, job[3]["spool"])
+            if got is not None:
+                return got
         return _compact(_chunk_rows(job))
     return list(_chunk_rows(job))
 
@@ -234,38 +235,32 @@ class Spooled:
         self.rows = rows
 
 
-def _spooled(rows: list[tuple], lines: list[bytes], folder: str) -> Spooled | list[tuple]:
-    """`rows` (of :func:`_compact`, each row's line given as its length, the lines themselves in `lines`, in the
-    rows' order) as :class:`Spooled` in `folder`; the rows with their lines in place where the file cannot be
-    written (the lines then go through the pipe)."""
+def _spooled(job: tuple, folder: str) -> Spooled | None:
+    """The chunk's compact rows (:func:`_compact`) as :class:`Spooled` in `folder`: each row's JSON line written to
+    the file as soon as it is laid out, through a buffer of a megabyte (the chunk's lines, some 30 MB, are never
+    held: fresh memory for them cost more in page faults than their write); None where the file cannot be written
+    (the caller screens the chunk again, its lines then going through the pipe)."""
     try:
         fd, path = tempfile.mkstemp(suffix=".jsonl", dir=folder)
     except OSError:
-        return _with_lines(rows, iter(lines))
+        return None
     try:
-        # written from the lines themselves through a buffer of a megabyte (joining them first would cost a fresh
-        # buffer of the chunk's size: its page faults cost more than the write)
         with os.fdopen(fd, "wb", buffering=_WRITE_BYTES) as fh:
-            fh.writelines(lines)
+            rows = _compact(_lines_written(_chunk_rows(job), fh.write))
     except OSError:
         with contextlib.suppress(OSError):
             os.unlink(path)
-        return _with_lines(rows, iter(lines))
+        return None
     return Spooled(path, rows)
 
 
-def _lines_taken(rows: Iterator[tuple], lines: list[bytes]) -> Iterator[tuple]:
-    """_chunk_rows' rows with each JSON line put in `lines` and its length in its place (see :class:`Spooled`)."""
+def _lines_written(rows: Iterator[tuple], write) -> Iterator[tuple]:
+    """_chunk_rows' rows with each JSON line given to `write` and its length in its place (see :class:`Spooled`)."""
     for r, line, f in rows:
         if line is not None:
-            lines.append(line)
+            write(line)
             line = len(line)
         yield r, line, f
-
-
-def _with_lines(rows: list[tuple], lines: Iterator) -> list[tuple]:
-    """Rows whose line is given as its length (or None: no line) with the next of `lines` in its place."""
-    return [x if x[_LINE] is None else (*x[:_LINE], next(lines), *x[_LINE + 1:]) for x in rows]
 
 
 def _unspooled(got: Spooled | list[tuple]) -> tuple[list[tuple], list]:

@@ -1263,8 +1263,7 @@ def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessel
 
 
 def _opt(x) -> float | None:
-    x = float(x)
-    return None if math.isnan(x) else x
+    return None if x != x else float(x)     # NaN: None (x != x only for NaN)
 
 
 def _exposure_warnings(cols: dict, k: int, name: str | None) -> list[dict]:
