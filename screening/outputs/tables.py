@@ -214,8 +214,8 @@ def json_bytes(result: dict) -> bytes:
 def _fragment(x):
     """The content of an orjson.Fragment for the standard library's writer (anything else it cannot write: its
     TypeError)."""
-    if isinstance(x, orjson.Fragment):
-        return json.loads(x.contents)
+    if isinstance(x, orjson.Fragment):      # its content is what orjson writes of it
+        return json.loads(orjson.dumps(x))
     raise TypeError(f"Object of type {type(x).__name__} is not JSON serializable")
 
 
