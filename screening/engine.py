@@ -1449,15 +1449,13 @@ def _layout(case: Case, cols: dict, k: int, v: dict, sun: SunRow | None, fill: t
     rho_mass, rho_molar, mass, phase, vapour_pressure = fill
     if type(case) is CaseRow:   # a line of the batch's JSON: its case's parts laid out by the column reader
         record, parts = _LINE, case.parts
-        warnings = v["warnings"]    # the line's warnings are the batch's (BatchRun.full_json): never changed here
     else:
         record, parts = _RESULT, _screen.case_parts(case)
         parts["curves"] = None
-        warnings = list(v["warnings"])
     p_fill = case.fill_pressure_pa
     # in _OUTCOME's order; scenarios, governing_scenario and exposure are folded in by _one_scenario
     result = record(
-        parts, v["verdict"], list(v["reasons"]), warnings,
+        parts, v["verdict"], list(v["reasons"]), list(v["warnings"]),
         _FILL(p_fill, float(case.fill_temperature_k), True, rho_mass, rho_molar, mass, phase,
               rho_mass / 1000.0 if rho_mass else None, vapour_pressure, "pressure" if p_fill is not None else "mass"),
         float(cols["t_peak"][k]),
@@ -1961,7 +1959,8 @@ class PlainScreening:
 
         With `line`, for a line of the batch's JSON, to be written at once: where the row ran on the columns,
         without its curves and cautions, laid out from the row's :class:`~screening.inputs.columns.CaseRow`
-        rather than its Case, and sharing its gas's part and display units with other rows."""
+        rather than its Case, sharing its display units with other rows, and holding its gas's part and its reference
+        model's sources as their JSON, written once per gas and fluid (orjson.Fragment: ``json_bytes`` writes it)."""
         if j in self._full or j not in self._where:
             r = self.full(j)
             return r.to_json() if isinstance(r, Result) else None
