@@ -24,6 +24,7 @@ import functools
 import heapq
 import itertools
 import json
+import mmap
 import os
 import pickle
 import sys
@@ -231,8 +232,11 @@ def screen_chunk(job: tuple) -> list[tuple]:
     holds "json" (a JSON line per row), "full" (None, "not-within" or "all": full results for a PDF) and
     "compact"."""
     if job[3].get("compact"):
-        rows = _compact(_chunk_rows(job))
-        return _spooled(rows, job[3]["spool"]) if job[3].get("spool") else rows
+        if job[3].get("spool"):
+            got = _spooled(job, job[3]["spool"])
+            if got is not None:
+                return got
+        return _compact(_chunk_rows(job))
     return list(_chunk_rows(job))
 
 
@@ -246,39 +250,63 @@ class Spooled:
         self.rows = rows
 
 
-def _spooled(rows: list[tuple], folder: str) -> Spooled | list[tuple]:
-    """`rows` (of :func:`_compact`) as :class:`Spooled` in `folder`; the rows as they are where the file cannot be
-    written (the lines then go through the pipe)."""
+def _spooled(job: tuple, folder: str) -> Spooled | None:
+    """The chunk's compact rows (:func:`_compact`) as :class:`Spooled` in `folder`: each row's JSON line written to
+    the file as soon as it is laid out, through a buffer of a megabyte (the chunk's lines, some 30 MB, are never
+    held: fresh memory for them cost more in page faults than their write); None where the file cannot be written
+    (the caller screens the chunk again, its lines then going through the pipe)."""
     try:
         fd, path = tempfile.mkstemp(suffix=".jsonl", dir=folder)
     except OSError:
-        return rows
+        return None
     try:
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(b"".join([x[_LINE] for x in rows if x[_LINE] is not None]))
+        with os.fdopen(fd, "wb", buffering=_WRITE_BYTES) as fh:
+            rows = _compact(_lines_written(_chunk_rows(job), fh.write))
     except OSError:
         with contextlib.suppress(OSError):
             os.unlink(path)
-        return rows
-    return Spooled(path, [x if x[_LINE] is None else (*x[:_LINE], len(x[_LINE]), *x[_LINE + 1:]) for x in rows])
+        return None
+    return Spooled(path, rows)
 
 
-def _unspooled(got: Spooled | list[tuple]) -> list[tuple]:
-    """A chunk's compact rows with their JSON lines back in place (their file read, then removed)."""
+def _lines_written(rows: Iterator[tuple], write) -> Iterator[tuple]:
+    """_chunk_rows' rows with each JSON line given to `write` and its length in its place (see :class:`Spooled`)."""
+    for r, line, f in rows:
+        if line is not None:
+            write(line)
+            line = len(line)
+        yield r, line, f
+
+
+def _unspooled(got: Spooled | list[tuple]) -> tuple[list[tuple], list]:
+    """(a chunk's compact rows, their JSON lines in the same order: None for a row without one). The lines of a
+    :class:`Spooled` chunk are taken from its file (then removed) as slices of its bytes (:func:`_whole_file`),
+    without copying them and without making its rows anew (each row's line field then holds its length); other
+    rows hold their lines."""
     if not isinstance(got, Spooled):
-        return got
+        return got, [x[_LINE] for x in got]
     with open(got.path, "rb") as fh:
-        blob = fh.read()
+        view = _whole_file(fh)
     os.unlink(got.path)
-    out, a = [], 0
-    for x in got.rows:
-        n = x[_LINE]
-        if n is None:
-            out.append(x)
-        else:
-            out.append((*x[:_LINE], blob[a:a + n], *x[_LINE + 1:]))
-            a += n
-    return out
+    sizes = [x[_LINE] for x in got.rows]
+    if None in sizes:
+        ends = list(itertools.accumulate(0 if n is None else n for n in sizes))
+        return got.rows, [None if n is None else view[b - n:b] for n, b in zip(sizes, ends)]
+    ends = list(itertools.accumulate(sizes))
+    return got.rows, [view[a:b] for a, b in zip([0, *ends], ends)]
+
+
+def _whole_file(fh) -> memoryview:
+    """The bytes of a file opened for reading: mapped into memory where the platform can map it with its pages read
+    at once (MAP_POPULATE: no copy, and no page faults one page at a time, as a fresh buffer of its size takes);
+    else read. The mapping stays as long as a slice of it does (a removed file's pages then go)."""
+    populate = getattr(mmap, "MAP_POPULATE", None)
+    if populate is not None:
+        try:
+            return memoryview(mmap.mmap(fh.fileno(), 0, flags=mmap.MAP_SHARED | populate, prot=mmap.PROT_READ))
+        except (OSError, ValueError):       # an empty file, a file system that does not map
+            pass
+    return memoryview(fh.read())
 
 
 def _chunk_rows(job: tuple) -> Iterator[tuple]:
@@ -286,6 +314,7 @@ def _chunk_rows(job: tuple) -> Iterator[tuple]:
     inv, defaults, dups, want = job
     rows, result, full, full_json = _screened(inv, defaults)
     headers = [c.header for c in inv.columns]
+    width = len(headers)
     full_kind, json_on = want.get("full"), want.get("json")
     for i in range(rows):
         r = result(i)
@@ -308,10 +337,13 @@ def _chunk_rows(job: tuple) -> Iterator[tuple]:
             rec = _json(f) if f is not None else full_json(i, r["warnings"], True)
             if rec is r or rec.get("verdict") == "input-error":
                 rec = dict(rec)
-            for k in _DROP:
-                rec.pop(k, None)
+            if "cautions" in rec or "curves" in rec:      # a full result's (a row's line has neither)
+                for k in _DROP:
+                    rec.pop(k, None)
             rec["row"] = n
-            rec["input"] = dict(zip(headers, chain(map(str, cells), repeat(""))))   # every header, "" past the cells
+            # every header, "" past the cells
+            rec["input"] = dict(zip(headers, map(str, cells) if len(cells) >= width else
+                                    chain(map(str, cells), repeat(""))))
             line = json_bytes(rec)
         keep_full = _with_curves(f, inv, i, defaults) if detail else None
         yield r, line, keep_full
@@ -353,7 +385,7 @@ def _expanded(got: list[tuple]) -> list[tuple]:
     return [_row_summary(r, line, r) for r, line, _f in got]
 
 
-def _row_summary(r: dict, line: bytes | None, short: dict | None, units: dict | None = None) -> tuple:
+def _row_summary(r: dict, line: bytes | int | None, short: dict | None, units: dict | None = None) -> tuple:
     """A screened row as the batch writes and counts it, as one flat tuple (see _KEY...): its severity key's three
     fields, verdict, duplicate id or not, the units of its result columns (None for an input error; the one equal
     tuple of `units` where given), JSON line or None, `short`, then its result columns in those units
@@ -580,7 +612,7 @@ class _Outputs:
         row = (list(cells) + [""] * self.width)[:self.width]
         return [n, *map(str, row), *result_columns]
 
-    def write(self, values: list, line: bytes | None) -> None:
+    def write(self, values: list, line: bytes | memoryview | None) -> None:
         if self.csv:
             self.csv.write(values)
         if self.xlsx:
@@ -816,8 +848,11 @@ def run(args) -> int:
                     yield from jobs
 
             parts: list[list] = []
+            line_parts: list[list] = []     # the JSON lines of the compact rows of `parts`, in the same order
             for got in parallel.routed(pools, screen_chunk, all_jobs(), ahead=CHUNKS_AHEAD):
-                got = _unspooled(got)
+                if want["compact"]:
+                    got, lines = _unspooled(got)
+                    line_parts.append(lines)
                 parts.append(got)
                 if bar is not None:
                     bar.update(len(got))
@@ -827,10 +862,12 @@ def run(args) -> int:
                 opened.popleft()
                 if want["compact"]:
                     done, fulls = _in_input_order(parts, order), repeat(None)
+                    lines = _in_input_order(line_parts, order)
                 else:
                     raw = _in_input_order(parts, order)
                     done, fulls = _expanded(raw), [f for _, _, f in raw]
-                parts = []
+                    lines = [x[_LINE] for x in done]
+                parts, line_parts = [], []
                 if outputs.headers is None:
                     outputs.open(None, next((x[_UNITS] for x in done if x[_VERDICT] != "input-error"), None))
                 units = (outputs.pu, outputs.tu)
@@ -838,14 +875,16 @@ def run(args) -> int:
                     # a row entered in other units than the file's first row: the window's short results, here
                     done = _expanded(_in_input_order([screen_chunk((*job[:3], dict(job[3], compact=False)))
                                                       for _h, _w, job in jobs], order))
-                for x, f, (_, cells_) in zip(done, fulls, window.rows):
-                    u, s, line = x[_UNITS], x[_SHORT], x[_LINE]
+                    lines = [x[_LINE] for x in done]
+                for x, line, f, (_, cells_) in zip(done, lines, fulls, window.rows):
+                    u, s = x[_UNITS], x[_SHORT]
                     res = x[_RESULT:] if u is None or u == units else result_values(s, *units)
                     key = x[_KEY]
                     tally.add_row(key, x[_VERDICT], x[_DUP], s)
                     values = outputs.row_values(key[2], cells_, res)
                     if spill is not None:
-                        spill.add(key, (values, line))
+                        # a line read from a spool file is a slice of its buffer: kept as bytes of its own
+                        spill.add(key, (values, line if line is None or type(line) is bytes else bytes(line)))
                     else:
                         outputs.write(values, line)
                     if args.pdf:

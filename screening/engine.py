@@ -60,6 +60,7 @@ from dataclasses import dataclass, replace
 from typing import Callable, Iterable
 
 import numpy as np
+import orjson
 
 from screening import screen as _screen
 from screening.constants import R
@@ -1270,8 +1271,7 @@ def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessel
 
 
 def _opt(x) -> float | None:
-    x = float(x)
-    return None if math.isnan(x) else x
+    return None if x != x else float(x)     # NaN: None (x != x only for NaN)
 
 
 def _exposure_warnings(cols: dict, k: int, name: str | None) -> list[dict]:
@@ -1430,7 +1430,8 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
            "note": "multiparameter Helmholtz-energy equation of state (CoolProp)",
            "fill_molar_density_mol_m3": rho_molar, "fluid": fluid.label, "phase_fill": phase, "phase_peak": phase,
            "z_fill": p_fill_ref / (rho_molar * 8.314462618 * t_fill),
-           "z_peak": peak_ref / (rho_molar * R * t_peak), "eos_references": fluid.eos_references()}
+           "z_peak": peak_ref / (rho_molar * R * t_peak),
+           "eos_references": _line_references(fluid) if type(case) is CaseRow else fluid.eos_references()}
     models = {"ideal": ideal, "generalized": gen, "reference": ref}
     gov_name, peak = v["governing_model"], v["peak_pressure_pa"]
     others = [nm for nm in v["applicable"] if nm not in (gov_name, "ideal")]
@@ -1438,29 +1439,43 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
     ideal["off_governing_fraction"] = peak_ideal / peak - 1.0
     mass_rho = _opt(cols["mass_rho"][k])
     if mass_rho is None:
-        mass_limit = {"max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None}
+        mass_limit = _NO_MASS_LIMIT
     else:
         rm, basis = mass_rho * gas.molar_mass, "the required margin at the worst-case temperature"
         if case.max_filling_ratio_kg_m3 is not None and case.max_filling_ratio_kg_m3 < rm:
             rm, basis = case.max_filling_ratio_kg_m3, "the vessel's maximum filling ratio"
-        mass_limit = {"max_fill_mass_kg": rm * case.water_capacity_m3, "max_filling_ratio_kg_per_l": rm / 1000.0,
-                      "max_fill_mass_basis": basis}
+        mass_limit = (rm * case.water_capacity_m3, rm / 1000.0, basis)
     fill_over = case.fill_pressure_pa >= case.rated_pressure_pa if by_pressure else bool(cols["fill_over"][k])
-    limits = _LIMITS(**mass_limit, max_gas_temperature_k=None if fill_over else _opt(cols["max_t"][k]),
-                     max_fill_pressure_pa=_opt(cols["max_p"][k]), target_peak_pressure_pa=float(cols["target"][k]),
-                     note=_screen.limits_note(True, fill_over), liquid_full_temperature_k=_opt(cols["liquid_full"][k]),
-                     dry_out_temperature_k=_opt(cols["dry"][k]), phase_boundary_pressure_pa=_opt(cols["crossing"][k]),
-                     dp_dt_after_liquid_full_pa_k=_opt(cols["dpdt_liquid_full"][k]))
+    limits = _LIMITS(*mass_limit, None if fill_over else _opt(cols["max_t"][k]), _opt(cols["max_p"][k]),
+                     float(cols["target"][k]), _screen.limits_note(True, fill_over), _opt(cols["liquid_full"][k]),
+                     _opt(cols["dry"][k]), _opt(cols["crossing"][k]), _opt(cols["dpdt_liquid_full"][k]))
     mass = (rho_mass if by_pressure else case.fill_mass_kg / case.water_capacity_m3) * case.water_capacity_m3
     return _layout(case, cols, k, v, sun, (rho_mass, rho_molar, mass, phase, None), models, peak, gov_name,
                    governing_reason, 1.0 - (peak - atm) / (case.rated_pressure_pa - atm), limits, fold)
 
 
-#: The JSON objects of a result and of its parts laid out from their fields by name (result.json_record: the
-#: order is result.py's); a row's "row" is the batch's to add.
-_RESULT, _FILL, _LIMITS = json_record(Result, ("row",)), json_record(Fill), json_record(Limits)
+#: The JSON objects of a result and of its parts laid out from their fields given by position, in these orders
+#: (result.json_record: the keys' order is result.py's); a row's "row" is the batch's to add. A result's: the case's
+#: parts (screen.case_parts) in a dict, then its outcome.
+_CASE_PARTS = ("id", "description", "source", "tool_version", "input_sha256", "site", "gas", "vessel", "inputs",
+               "display_units")
+_OUTCOME = ("verdict", "reasons", "warnings", "fill", "worst_case_temperature_k", "worst_case_basis", "models",
+            "peak_pressure_pa", "nominal_peak_pressure_pa", "tolerance", "governing_model", "governing_reason",
+            "rated_pressure_pa", "relief_set_pressure_pa", "required_margin_fraction", "required_margin_is_default",
+            "margin_fraction", "relief_margin_fraction", "nominal_margin_fraction", "limits", "phase_diagram",
+            "scenarios", "governing_scenario", "exposure")
+_RESULT = json_record(Result, ("row",), _OUTCOME, _CASE_PARTS + ("curves", "cautions"))
 #: A result's JSON object as a batch's JSON line holds it: without the curves and the cautions (a CaseRow's layout).
-_LINE = json_record(Result, ("row", "curves", "cautions"))
+_LINE = json_record(Result, ("row", "curves", "cautions"), _OUTCOME, _CASE_PARTS)
+_FILL = json_record(Fill, (), ("pressure_pa", "temperature_k", "temperature_given", "density_kg_m3",
+                               "molar_density_mol_m3", "mass_kg", "phase", "filling_ratio_kg_per_l",
+                               "vapour_pressure_pa", "given"))
+_LIMITS = json_record(Limits, (), ("max_fill_mass_kg", "max_filling_ratio_kg_per_l", "max_fill_mass_basis",
+                                   "max_gas_temperature_k", "max_fill_pressure_pa", "target_peak_pressure_pa", "note",
+                                   "liquid_full_temperature_k", "dry_out_temperature_k", "phase_boundary_pressure_pa",
+                                   "dp_dt_after_liquid_full_pa_k"))
+#: (max_fill_mass_kg, max_filling_ratio_kg_per_l, max_fill_mass_basis) where there is no fill-mass limit.
+_NO_MASS_LIMIT = (None, None, None)
 
 
 def _layout(case: Case, cols: dict, k: int, v: dict, sun: SunRow | None, fill: tuple, models: dict,
@@ -1478,25 +1493,18 @@ def _layout(case: Case, cols: dict, k: int, v: dict, sun: SunRow | None, fill: t
     else:
         record, parts = _RESULT, _screen.case_parts(case)
         parts["curves"] = None
+    p_fill = case.fill_pressure_pa
+    # in _OUTCOME's order; scenarios, governing_scenario and exposure are folded in by _one_scenario
     result = record(
-        **parts,
-        verdict=v["verdict"], reasons=list(v["reasons"]), warnings=list(v["warnings"]),
-        fill=_FILL(pressure_pa=case.fill_pressure_pa, temperature_k=float(case.fill_temperature_k),
-                   temperature_given=True, density_kg_m3=rho_mass, molar_density_mol_m3=rho_molar, mass_kg=mass,
-                   phase=phase, filling_ratio_kg_per_l=rho_mass / 1000.0 if rho_mass else None,
-                   vapour_pressure_pa=vapour_pressure,
-                   given="pressure" if case.fill_pressure_pa is not None else "mass"),
-        worst_case_temperature_k=float(cols["t_peak"][k]),
-        worst_case_basis=(sun.basis if sun is not None else _screen.FILL_STATE_BASIS if cols["fill_governs"][k] else
-                          "gas temperature stated in the case" if cols["stated"][k] else "ambient maximum"),
-        models=models, peak_pressure_pa=peak, nominal_peak_pressure_pa=peak, tolerance=None,
-        governing_model=governing_model, governing_reason=governing_reason,
-        rated_pressure_pa=case.rated_pressure_pa, relief_set_pressure_pa=case.relief_set_pressure_pa,
-        required_margin_fraction=case.required_margin, required_margin_is_default=case.required_margin_is_default,
-        margin_fraction=v["margin_fraction"], relief_margin_fraction=v["relief_margin_fraction"],
-        nominal_margin_fraction=nominal_margin, limits=limits, phase_diagram=None,
-        # folded in by _one_scenario, in their places
-        scenarios=None, governing_scenario=None, exposure=None)
+        parts, v["verdict"], list(v["reasons"]), list(v["warnings"]),
+        _FILL(p_fill, float(case.fill_temperature_k), True, rho_mass, rho_molar, mass, phase,
+              rho_mass / 1000.0 if rho_mass else None, vapour_pressure, "pressure" if p_fill is not None else "mass"),
+        float(cols["t_peak"][k]),
+        (sun.basis if sun is not None else _screen.FILL_STATE_BASIS if cols["fill_governs"][k] else
+         "gas temperature stated in the case" if cols["stated"][k] else "ambient maximum"),
+        models, peak, peak, None, governing_model, governing_reason, case.rated_pressure_pa,
+        case.relief_set_pressure_pa, case.required_margin, case.required_margin_is_default, v["margin_fraction"],
+        v["relief_margin_fraction"], nominal_margin, limits, None, None, None, None)
     return _one_scenario(case, result, sun) if fold else result
 
 
@@ -1874,7 +1882,7 @@ class PlainScreening:
         self._where: dict[int, int] = {}         # {plain row: its index in its group's columns} ...
         self._group: dict[int, dict] = {}       # ... and those columns, where the row ran on the columns
         self._listed: dict[int, _Listed] = {}
-        self._gas_parts: dict[int, dict] = {}    # {id of a gas: its result part} for the lines of the JSON
+        self._gas_parts: dict[int, orjson.Fragment] = {}    # {id of a gas: its result part's JSON} for the lines
         groups: dict[tuple[str, bool], list[int]] = {}
         rest: list[int] = []
         by_mass = ~np.isnan(plain.fill_mass_kg)
@@ -1988,7 +1996,8 @@ class PlainScreening:
 
         With `line`, for a line of the batch's JSON, to be written at once: where the row ran on the columns,
         without its curves and cautions, laid out from the row's :class:`~screening.inputs.columns.CaseRow`
-        rather than its Case, and sharing its gas's part and display units with other rows."""
+        rather than its Case, sharing its display units with other rows, and holding its gas's part and its reference
+        model's sources as their JSON, written once per gas and fluid (orjson.Fragment: ``json_bytes`` writes it)."""
         if j in self._full or j not in self._where:
             r = self.full(j)
             return r.to_json() if isinstance(r, Result) else None
@@ -2007,8 +2016,8 @@ class PlainScreening:
         if line and self.plain.entered is not None:
             gas = self.plain.gases[j]
             part = self._gas_parts.get(id(gas))
-            if part is None:
-                part = self._gas_parts[id(gas)] = _screen.gas_part(gas)   # the gases live as long as self.plain
+            if part is None:    # its JSON, written once per gas (the gases live as long as self.plain)
+                part = self._gas_parts[id(gas)] = orjson.Fragment(orjson.dumps(_screen.gas_part(gas)))
             case = self.plain.case_row(j, part)
         else:
             case = self.plain.case(j)
@@ -3156,6 +3165,13 @@ def _liquefied_plain_columns(part: PlainPart) -> dict:
     return cols
 
 
+@functools.lru_cache(maxsize=256)
+def _line_references(fluid: ReferenceFluid) -> orjson.Fragment:
+    """The reference model's "eos_references" as a line of the batch's JSON holds them: their JSON, written once
+    per fluid (an orjson.Fragment, written into each line as it is; the fluids live as long as the process)."""
+    return orjson.Fragment(orjson.dumps(fluid.eos_references()))
+
+
 @functools.lru_cache(maxsize=64)
 def _line_not_applicable(why: str, equation: str) -> tuple[dict, dict]:
     """The ideal and generalized models' parts where the gas models do not apply (`why`), as
@@ -3181,18 +3197,13 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
     t_fill, t_peak = float(case.fill_temperature_k), float(cols["t_peak"][k])
     by_pressure = case.fill_pressure_pa is not None
     refused = bool(cols["refused"][k])
-    lim_extra = {"liquid_full_temperature_k": _opt(cols["liquid_full"][k]),
-                 "dry_out_temperature_k": _opt(cols["dry"][k]),
-                 "phase_boundary_pressure_pa": _opt(cols["crossing"][k]),
-                 "dp_dt_after_liquid_full_pa_k": _opt(cols["dpdt_liquid_full"][k])}
-    if refused or cols["unreachable"][k]:
-        no_limits = {"max_gas_temperature_k": None, "max_fill_pressure_pa": None, "target_peak_pressure_pa": None,
-                     "max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,
-                     "note": _screen.limits_note(False, False)}
+    # the limits' liquid-full temperature, dry-out temperature, phase-boundary pressure and slope after liquid-full
+    lim_extra = (_opt(cols["liquid_full"][k]), _opt(cols["dry"][k]), _opt(cols["crossing"][k]),
+                 _opt(cols["dpdt_liquid_full"][k]))
     if refused:
         na = "the fill state cannot be established (see the verdict's reason)"
         models = {nm: _screen.not_applicable(nm, na).as_dict() for nm in ("ideal", "generalized", "reference")}
-        limits = _LIMITS(**no_limits, **lim_extra)
+        limits = _LIMITS(None, None, None, None, None, None, _screen.limits_note(False, False), *lim_extra)
         fill_rho_molar = rho_mass = mass = None
         phase = None
         peak = None
@@ -3208,7 +3219,7 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
                   "reference": _screen.not_applicable(
                       "reference", f"reference equation of state not applicable: {cols['unreachable_reason'][k]}",
                       fluid=fluid.label).as_dict()}
-        limits = _LIMITS(**no_limits, **{key: None for key in lim_extra})
+        limits = _LIMITS(None, None, None, None, None, None, _screen.limits_note(False, False), None, None, None, None)
         rho_fill_mass = float(cols["rho_fill_mass"][k])
         fill_rho_molar = rho_fill_mass / gas.molar_mass
         rho_mass = fill_rho_molar * gas.molar_mass
@@ -3249,11 +3260,13 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
                           "fill_molar_density_mol_m3": rho, "fluid": fluid.label, "phase_fill": phase,
                           "phase_peak": cols["phase_peak"][k],
                           "z_fill": (case.fill_pressure_pa or p_fill_ref) / (rho * 8.314462618 * t_fill),
-                          "z_peak": peak_ref / (rho * R * t_peak), "eos_references": fluid.eos_references()}}
+                          "z_peak": peak_ref / (rho * R * t_peak),
+                          "eos_references": (_line_references(fluid) if type(case) is CaseRow
+                                             else fluid.eos_references())}}
         # screen._mass_limit: the target's density, capped by the liquid-full density, then the filling ratio
         mass_rho, lf_density = _opt(cols["mass_rho"][k]), _opt(cols["lf_density"][k])
         if mass_rho is None or lf_density is None:
-            mass_limit = {"max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None}
+            mass_limit = _NO_MASS_LIMIT
         else:
             basis = "the required margin at the worst-case temperature"
             if lf_density < mass_rho:
@@ -3261,13 +3274,11 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
             rm = mass_rho * gas.molar_mass
             if case.max_filling_ratio_kg_m3 is not None and case.max_filling_ratio_kg_m3 < rm:
                 rm, basis = case.max_filling_ratio_kg_m3, "the vessel's maximum filling ratio"
-            mass_limit = {"max_fill_mass_kg": rm * case.water_capacity_m3, "max_filling_ratio_kg_per_l": rm / 1000.0,
-                          "max_fill_mass_basis": basis}
+            mass_limit = (rm * case.water_capacity_m3, rm / 1000.0, basis)
         fill_over = bool(cols["fill_over"][k])
-        limits = _LIMITS(**mass_limit, max_gas_temperature_k=None if fill_over else _opt(cols["max_t"][k]),
-                         max_fill_pressure_pa=_opt(cols["max_p"][k]) if by_pressure else None,
-                         target_peak_pressure_pa=float(cols["target"][k]), note=_screen.limits_note(True, fill_over),
-                         **lim_extra)
+        limits = _LIMITS(*mass_limit, None if fill_over else _opt(cols["max_t"][k]),
+                         _opt(cols["max_p"][k]) if by_pressure else None, float(cols["target"][k]),
+                         _screen.limits_note(True, fill_over), *lim_extra)
         fill_rho_molar = rho
         rho_mass = rho * gas.molar_mass
         mass = rho_fill_mass * case.water_capacity_m3

@@ -1592,21 +1592,18 @@ def screened_temperature(t_exposure, t_fill_given):
     return np.fmax(t_exposure, t_fill_given) if isinstance(t_exposure, np.ndarray) else max(t_exposure, t_fill_given)
 
 
-#: A scenario's summary laid out from its fields (result.json_record: the order is result.py's).
-_SUMMARY = json_record(ScenarioSummary)
+#: A scenario's summary laid out from its fields: the result's fields it repeats in a dict, then its own
+#: (result.json_record: the keys' order is result.py's).
+_SUMMARY = json_record(ScenarioSummary, (), ("name", "exposure", "models", "governing"),
+                       ("verdict", "reasons", "worst_case_temperature_k", "worst_case_basis", "peak_pressure_pa",
+                        "nominal_peak_pressure_pa", "governing_model", "margin_fraction", "relief_margin_fraction",
+                        "limits", "tolerance"))
 
 
 def scenario_summary(name: str, r: dict, exposure: dict | None, governing: bool) -> dict:
     """A scenario's summary under a result's "scenarios" (fold_scenarios)."""
-    return _SUMMARY(
-        name=name, verdict=r["verdict"], reasons=r["reasons"], worst_case_temperature_k=r["worst_case_temperature_k"],
-        worst_case_basis=r["worst_case_basis"], peak_pressure_pa=r["peak_pressure_pa"],
-        nominal_peak_pressure_pa=r["nominal_peak_pressure_pa"], governing_model=r["governing_model"],
-        margin_fraction=r["margin_fraction"], relief_margin_fraction=r["relief_margin_fraction"], limits=r["limits"],
-        tolerance=r["tolerance"], exposure=exposure,
-        models={n: {"applicable": m["applicable"], "peak_pressure_pa": m["peak_pressure_pa"]}
-                for n, m in r["models"].items()},
-        governing=governing)
+    return _SUMMARY(r, name, exposure, {n: {"applicable": m["applicable"], "peak_pressure_pa": m["peak_pressure_pa"]}
+                                        for n, m in r["models"].items()}, governing)
 
 
 def _rank(r: dict) -> tuple:

@@ -336,3 +336,25 @@ def test_routed_answers_in_order_each_home_in_one_process_and_a_dead_worker_neve
             p.shutdown()
     # without pools: in this process, in order
     assert list(parallel.routed(None, _pid, items[:3])) == [(i, os.getpid()) for i in range(3)]
+
+
+@pytest.mark.skipif(not hasattr(os, "fork"), reason="needs fork")
+def test_sorted_by_severity_the_outputs_are_the_same_with_one_or_two_workers(tmp_path, monkeypatch, capsys):
+    # with two workers the JSON lines come back through spool files, as slices of the files' bytes; sorted by
+    # severity they are spilled to temporary files: the same bytes as one process writes
+    from screening import batch, parallel
+
+    inv = _mixed_register(tmp_path)
+    monkeypatch.setattr(batch, "CHUNK_ROWS", 4)
+    monkeypatch.setattr(batch, "MIXTURE_WORK", 1)
+    monkeypatch.setattr(batch, "SORT_RUN_ROWS", 7)        # several sorted runs spilled, then merged
+    outs = {}
+    for n in ("1", "2"):
+        monkeypatch.setenv(parallel.WORKERS_ENV, n)
+        monkeypatch.setattr(parallel, "workers", lambda n=n: int(n))
+        names = [tmp_path / f"s{n}.{ext}" for ext in ("csv", "jsonl", "json")]
+        run(["batch", str(inv), "--sort", "severity", "--csv", str(names[0]), "--jsonl", str(names[1]),
+             "--json", str(names[2])])
+        outs[n] = [p.read_bytes() for p in names] + [capsys.readouterr().out]
+    assert outs["1"] == outs["2"]
+    assert outs["1"][1].count(b"\n") == 40

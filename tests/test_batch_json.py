@@ -431,7 +431,97 @@ def test_a_chunk_s_lines_come_back_through_its_spool_file_byte_for_byte(kinds_in
     assert all(isinstance(x[batch._LINE], bytes) for x in plain)
     spooled = batch.screen_chunk((inv, defaults, {}, dict(want, spool=str(tmp_path))))
     assert isinstance(spooled, batch.Spooled) and os.listdir(tmp_path) == [os.path.basename(spooled.path)]
-    assert all(isinstance(x[batch._LINE], int) for x in spooled.rows)
-    assert batch._unspooled(spooled) == plain
+    assert [x[batch._LINE] for x in spooled.rows] == [len(x[batch._LINE]) for x in plain]
+    rows, lines = batch._unspooled(spooled)
+    assert [bytes(line) for line in lines] == [x[batch._LINE] for x in plain]
+    assert [(*x[:batch._LINE], *x[batch._LINE + 1:]) for x in rows] == [
+        (*x[:batch._LINE], *x[batch._LINE + 1:]) for x in plain]
     assert os.listdir(tmp_path) == []
     assert batch.screen_chunk((inv, defaults, {}, dict(want, spool=str(tmp_path / "gone")))) == plain
+    assert batch._unspooled(plain) == (plain, [x[batch._LINE] for x in plain])
+    # a file's bytes, mapped or read: an empty file too
+    for content in (b"", b'{"a":1}\n' * 3000):
+        (tmp_path / "f").write_bytes(content)
+        with open(tmp_path / "f", "rb") as fh:
+            assert bytes(batch._whole_file(fh)) == content
+
+
+# ----------------------------------------------------------------------------- records by position, shared parts
+
+@pytest.mark.parametrize("cls", [Result, Fill, Limits, ScenarioSummary, Site, Vessel, Gas])
+def test_a_json_record_by_position_lays_out_what_the_record_by_name_does(cls):
+    # the fields given in a random order, some of them in a dict (parts): the same keys in the same order and the
+    # same values as the record by name (the keys' order is result.py's either way)
+    rnd = random.Random(cls.__name__)
+    names = [f.name for f in dataclasses.fields(cls) if f.name != "row"]
+    by_name = json_record(cls, ("row",) if cls is Result else ())
+    for _ in range(20):
+        values = {n: rnd.choice([None, rnd.random(), f"text {rnd.random()}", [rnd.random()], {"k": 1}])
+                  for n in names}
+        order = rnd.sample(names, len(names))
+        cut = rnd.randrange(len(order) + 1)
+        parts, args = tuple(order[:cut]), tuple(order[cut:])
+        by_position = json_record(cls, ("row",) if cls is Result else (), args, parts)
+        got = by_position(*(({n: values[n] for n in parts},) if parts else ()), *(values[n] for n in args))
+        strict(got, by_name(**values))
+
+
+def test_a_json_record_by_position_refuses_fields_missing_unknown_or_twice():
+    names = tuple(f.name for f in dataclasses.fields(Limits))
+    json_record(Limits, (), names)
+    for args, parts in ((names[1:], ()), (names + ("colour",), ()), (names, names[:1]), (names[2:], names[:1])):
+        with pytest.raises(TypeError):
+            json_record(Limits, (), args, parts)
+
+
+def test_json_bytes_writes_a_shared_part_as_it_is_on_either_writer():
+    import orjson
+
+    gas = {"name": "nitrogen", "kind": "permanent", "hazards": ["asphyxiant"], "x": 1e-05}
+    record = {"a": 1.5, "gas": orjson.Fragment(orjson.dumps(gas)), "b": [None, "é"]}
+    assert json_bytes(record) == orjson.dumps({"a": 1.5, "gas": gas, "b": [None, "é"]})
+    # a value orjson does not take: the standard library's writer, the fragment's content in its place
+    odd = {**record, "n": np.float64(2.5), "nan": math.nan}
+    assert json.loads(json_bytes(odd)) == {"a": 1.5, "gas": gas, "b": [None, "é"], "n": 2.5, "nan": None}
+    with pytest.raises(TypeError):
+        json_bytes({"n": np.float64(1.0), "x": object()})
+
+
+@pytest.fixture(scope="module", params=[5, 17, 23])
+def random_register(request, tmp_path_factory):
+    """A register of seeded random rows of the plain kinds of benchmarks/kinds.py (each kind drawn by its share),
+    one row in five in the sun."""
+    rnd = random.Random(request.param)
+    kinds = [k for k in K.kinds() if len(k) == 5]
+    lines = [K.HEADER]
+    for i in range(160):
+        line, _fill = rnd.choices(kinds, [k[4] for k in kinds])[0][3](rnd, i)
+        lines.append(line[:line.rindex(",") + 1] + ("sun" if rnd.random() < 0.2 else ""))
+    path = tmp_path_factory.mktemp(f"random{request.param}") / "register.csv"
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    return read_inventory(path)
+
+
+def test_the_line_builder_on_random_rows_is_the_results_to_json_and_the_json_modules_parse(random_register):
+    # each row's line (laid out from its columns by position, its gas part and references shared, written by
+    # orjson) against its full Result's to_json written by the standard library's json: the same parse, key for
+    # key and in order; and byte for byte the line orjson writes of that Result's JSON
+    inv = random_register
+    got = batch.screen_chunk((inv, None, {}, {"json": True, "full": None}))
+    run = _batch_run(inv, None)
+    headers = [c.header for c in inv.columns]
+    on_columns = 0
+    for i, (r, line, _) in enumerate(got):
+        expected = _expected_line(run, inv, i, r, headers)
+        strict(json.loads(line), json.loads(json.dumps(expected, ensure_ascii=False)))
+        assert line == json_bytes(expected), f"row {r['row']}"
+        on_columns += run._plain_at.get(i) in run._plain._where
+    assert on_columns > 120
+    # the compact rows with their lines through a spool file give the same lines
+    import tempfile
+
+    with tempfile.TemporaryDirectory() as folder:
+        spooled = batch.screen_chunk((inv, None, {}, {"json": True, "full": None, "compact": True, "spool": folder}))
+        assert isinstance(spooled, batch.Spooled)
+        _rows, lines = batch._unspooled(spooled)
+        assert [bytes(x) for x in lines] == [line for _, line, _ in got]

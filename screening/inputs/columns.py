@@ -158,7 +158,6 @@ class PlainRows:
         inputs = [{"key": key, "entered": t if type(t := texts[j]) is str else default_text(None, t),
                    "si_value": values[j], "si_unit": unit} for key, unit, texts, values in records
                   if texts[j] is not _MISSING]
-        text = "\n".join([f"{header} = {values[j]!r}" for header, values in self.cell_texts if values[j]]) + "\n"
         relief, ratio = si["vessel.relief_set_pressure"][j], si["vessel.max_filling_ratio"][j]
         fill_p, fill_m = si["fill.pressure"][j], si["fill.mass"][j]
         elevation = si["site.elevation"][j]
@@ -176,7 +175,7 @@ class PlainRows:
         row.required_margin_is_default = bool(self.required_margin_is_default[j])
         row.parts = {
             "id": self.ids[j], "description": _entered(description, j), "source": self.inv.source,
-            "tool_version": __version__, "input_sha256": hashlib.sha256(text.encode("utf-8")).hexdigest(),
+            "tool_version": __version__, "input_sha256": self._input_hashes()[j],
             "site": {"name": _entered(site_name, j), "atmospheric_pressure_pa": atm,
                      "elevation_m": None if elevation != elevation else elevation},
             "gas": gas_part,
@@ -186,6 +185,19 @@ class PlainRows:
                        "max_filling_ratio_kg_per_l": ratio / 1000.0 if ratio is not None else None},
             "inputs": inputs, "display_units": self.display_units[j]}
         return row
+
+    def _input_hashes(self) -> list[str]:
+        """For :meth:`case_row`, worked out once for every plain row: the SHA-256 of each row's case text (what
+        :meth:`case` gives as its ``text``, whose ``input_sha256`` it is), the text laid out column by column."""
+        got = self.__dict__.get("_hashes")
+        if got is None:
+            pieces = [[f"{header} = {v!r}" if v else "" for v in values] for header, values in self.cell_texts]
+            sha = hashlib.sha256
+            # the texts of the columns a row fills, one a line ("" where it fills none: left out)
+            got = self.__dict__["_hashes"] = (
+                [sha(("\n".join(filter(None, row)) + "\n").encode("utf-8")).hexdigest() for row in zip(*pieces)]
+                if pieces else [sha(b"\n").hexdigest()] * len(self))
+        return got
 
     def _record_columns(self) -> tuple:
         """For :meth:`case_row`, worked out once: the input records' (key, SI unit, entered texts, SI values) of

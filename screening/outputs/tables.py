@@ -196,16 +196,27 @@ def json_bytes(result: dict) -> bytes:
     orjson writes it (a tenth of the time of the standard library's json, which matters at thousands of
     rows of several kilobytes); it writes a non-finite number as null as well. A value orjson does not
     take (a numpy number, a key that is not a text, an integer past 64 bits) goes to the standard
-    library's writer, which gives the same content."""
+    library's writer, which gives the same content. A part already written as JSON (an orjson.Fragment, which
+    the batch's lines hold for the parts many rows share) is written as it is (by the standard library's writer:
+    its content)."""
     try:
         return orjson.dumps(result)
     except TypeError:
         pass
     try:
-        text = json.dumps(result, ensure_ascii=False, allow_nan=False, separators=(",", ":"))
+        text = json.dumps(result, ensure_ascii=False, allow_nan=False, separators=(",", ":"), default=_fragment)
     except ValueError:          # a non-finite number somewhere: written as null
-        text = json.dumps(_json_safe(result), ensure_ascii=False, allow_nan=False, separators=(",", ":"))
+        text = json.dumps(_json_safe(result), ensure_ascii=False, allow_nan=False, separators=(",", ":"),
+                          default=_fragment)
     return text.encode()
+
+
+def _fragment(x):
+    """The content of an orjson.Fragment for the standard library's writer (anything else it cannot write: its
+    TypeError)."""
+    if isinstance(x, orjson.Fragment):      # its content is what orjson writes of it
+        return json.loads(orjson.dumps(x))
+    raise TypeError(f"Object of type {type(x).__name__} is not JSON serializable")
 
 
 def _json_safe(x):
