@@ -1343,8 +1343,9 @@ def _verdict_of(cols: dict, k: int) -> dict:
     layouts copy them)."""
     word, margin, relief_margin, governing, peak, applicable = cols["verdict"][k]
     return {"verdict": word, "reasons": cols["verdict_reasons"][k],
-            "warnings": _warnings_of(cols["verdict_warnings"][k]), "margin_fraction": margin, "relief_margin_fraction": relief_margin, "governing_model": governing,
-            "peak_pressure_pa": peak, "applicable": applicable}
+            "warnings": _warnings_of(cols["verdict_warnings"][k]), "margin_fraction": margin,
+            "relief_margin_fraction": relief_margin, "governing_model": governing, "peak_pressure_pa": peak,
+            "applicable": applicable}
 
 
 def _highest(peak_gen: float | None, peak_ref: float) -> tuple[str, float]:
