@@ -948,15 +948,16 @@ class ReferenceFluid:
         t_f = np.asarray(T, dtype=float).tolist()
         p_out, rho_out = np.full(len(t_f), np.nan), np.full(len(t_f), np.nan)
         tt, tc, a = self.triple_temperature, self.critical_temperature, self._state
+        inf = math.inf
         for i, t in enumerate(t_f):
-            if not math.isfinite(t) or t < tt or t >= tc:
+            if not tt <= t < tc:        # NaN fails the comparisons too
                 continue
             try:
                 a.update(CoolProp.QT_INPUTS, q, t)
                 p, rho = a.p(), a.rhomolar()
             except ValueError:
                 continue
-            if math.isfinite(p) and math.isfinite(rho) and p > 0 and rho > 0:
+            if 0.0 < p < inf and 0.0 < rho < inf:     # finite and positive (NaN fails)
                 p_out[i], rho_out[i] = p, rho
         return p_out, rho_out
 
