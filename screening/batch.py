@@ -37,15 +37,17 @@ from typing import Iterator
 from screening.errors import InputError
 from screening.inputs.inventory import Inventory, load_defaults, open_inventory, read_inventory, row_case
 from screening.outputs.files import atomic_writer, check_target
-from screening.outputs.listing import ORDER, cells, ranked, severity_key, summary
+from screening.outputs.listing import ORDER, cells, ranked, severity_key, severity_key_of, summary
 from screening.outputs.tables import (
     CsvTable,
     XlsxTable,
     file_units,
     json_bytes,
     json_line,
+    result_cells,
     result_headers,
     result_values,
+    units_of,
 )
 from screening.result import Result, ScreeningWarning
 from screening.verdicts import EXIT_INPUT, EXIT_NOT_WITHIN, EXIT_WITHIN, Verdict
@@ -134,6 +136,14 @@ class BatchRun:
             r["row"] = self.inv.rows[i][0]
         return r
 
+    def fields(self, i: int) -> tuple | None:
+        """Row i's number followed by its fields (:meth:`screening.engine.PlainScreening.fields`) where it ran on the
+        columns outside the sun, for :func:`_lean_summary`; else None."""
+        if self._slots[i] is not None:
+            return None
+        f = self._plain.fields(self._plain_at[i])
+        return None if f is None else (self.inv.rows[i][0], *f)
+
     @functools.cached_property
     def results(self) -> list[dict]:
         """Every row's :meth:`result`, in order (laid out once, kept)."""
@@ -192,12 +202,12 @@ def _warnings(records: list[dict]) -> tuple[ScreeningWarning, ...]:
     return tuple(ScreeningWarning.from_json(w) for w in records)
 
 
-def _screened(inv: Inventory, defaults: dict | None) -> tuple[int, object, object, object]:
-    """(rows, result, full, full_json) of a chunk (see BatchRun); a row whose screening raises is screened alone,
-    and if it still raises, it becomes an input-error row: a bad row never takes its chunk with it."""
+def _screened(inv: Inventory, defaults: dict | None) -> tuple[int, object, object, object, object]:
+    """(rows, result, full, full_json, fields) of a chunk (see BatchRun); a row whose screening raises is screened
+    alone, and if it still raises, it becomes an input-error row: a bad row never takes its chunk with it."""
     try:
         run = BatchRun(inv, defaults)
-        return len(run), run.result, run.full, run.full_json
+        return len(run), run.result, run.full, run.full_json, run.fields
     except (InputError, ArithmeticError, ValueError):
         if len(inv.rows) == 1:
             raise
@@ -221,7 +231,7 @@ def _screened(inv: Inventory, defaults: dict | None) -> tuple[int, object, objec
     def full_json(i: int, warnings: list[dict], line: bool = False) -> dict:
         f = fulls[i]
         return _json(replace(f, warnings=_warnings(warnings)) if isinstance(f, Result) else f)
-    return len(results), results.__getitem__, fulls.__getitem__, full_json
+    return len(results), results.__getitem__, fulls.__getitem__, full_json, lambda i: None
 
 
 def screen_chunk(job: tuple) -> list[tuple]:
@@ -310,13 +320,22 @@ def _whole_file(fh) -> memoryview:
 
 
 def _chunk_rows(job: tuple) -> Iterator[tuple]:
-    """screen_chunk's rows, one by one: (short result, JSON line or None, full result or None)."""
+    """screen_chunk's rows, one by one: (short result, JSON line or None, full result or None). With
+    ``want["compact"]`` and neither JSON lines nor full results wanted, a row that ran on the columns outside the sun
+    and whose id is not a duplicate comes as (its fields, None, a function giving its short result) instead: its
+    fields (:meth:`BatchRun.fields`) are what :func:`_compact` lays it out from, without its short result."""
     inv, defaults, dups, want = job
-    rows, result, full, full_json = _screened(inv, defaults)
+    rows, result, full, full_json, fields = _screened(inv, defaults)
     headers = [c.header for c in inv.columns]
     width = len(headers)
     full_kind, json_on = want.get("full"), want.get("json")
+    lean = want.get("compact") and not json_on and not full_kind
     for i in range(rows):
+        if lean:
+            x = fields(i)
+            if x is not None and x[0] not in dups:
+                yield x, None, functools.partial(result, i)
+                continue
         r = result(i)
         n = r["row"]
         if n in dups:
@@ -366,13 +385,14 @@ def _compact(rows: Iterator[tuple]) -> list[tuple]:
     # screened is not among the chunk's, and its short result is let go at once
     worst: list[tuple] = []
     short: dict[int, dict] = {}
-    for i, (r, line, _f) in enumerate(rows):
-        x = _row_summary(r, line, None, units)
+    for i, (r, line, f) in enumerate(rows):
+        lean = type(r) is tuple         # a row's fields (see _chunk_rows), `f` giving its short result
+        x = _lean_summary(r, None, units) if lean else _row_summary(r, line, None, units)
         out.append(x)
         key = (*x[_KEY], i)
         if len(worst) < TERMINAL_ROWS or key < worst[-1]:
             bisect.insort(worst, key)
-            short[i] = r
+            short[i] = f() if lean else r
             if len(worst) > TERMINAL_ROWS:
                 del short[worst.pop()[-1]]
     for i, r in short.items():
@@ -382,7 +402,7 @@ def _compact(rows: Iterator[tuple]) -> list[tuple]:
 
 def _expanded(got: list[tuple]) -> list[tuple]:
     """screen_chunk's rows without ``compact`` as _compact's rows, each with its short result."""
-    return [_row_summary(r, line, r) for r, line, _f in got]
+    return [_lean_summary(r, f()) if type(r) is tuple else _row_summary(r, line, r) for r, line, f in got]
 
 
 def _row_summary(r: dict, line: bytes | int | None, short: dict | None, units: dict | None = None) -> tuple:
@@ -401,6 +421,18 @@ def _row_summary(r: dict, line: bytes | int | None, short: dict | None, units: d
     warnings = r.get("warnings")
     dup = bool(warnings) and any(w.get("code") == "duplicate-id" for w in warnings)
     return (*severity_key(r), verdict, dup, u, line, short, *result_values(r, pu, tu))
+
+
+def _lean_summary(fields: tuple, short: dict | None, units: dict | None = None) -> tuple:
+    """:func:`_row_summary` of a row given by its number and fields (:meth:`BatchRun.fields`: screened on the
+    columns, not an input error, its id no duplicate) rather than its short result, without a JSON line."""
+    row, verdict, margin, governing, peak, reasons, warnings, atm, t, p, display_units = fields
+    u = pu, tu = units_of(display_units)
+    if units is not None:
+        u = units.setdefault(u, u)
+    return (*severity_key_of(verdict, margin, row), verdict, False, u, None, short,
+            *result_cells(verdict, " ".join(map(str, reasons)) if reasons else "",
+                          " ".join(warnings[1::2]) if warnings else "", atm, peak, governing, margin, t, p, pu, tu))
 
 
 def _with_curves(f: Result | dict | None, inv: Inventory, i: int, defaults: dict | None) -> Result | dict | None:

@@ -1967,6 +1967,15 @@ class PlainScreening:
         cols = self._group[j]
         return self._parts[id(cols)].summary(self.plain, j, self._where[j], self._sun.get(j))
 
+    def fields(self, j: int) -> tuple | None:
+        """The j-th plain row's fields (:meth:`_SummaryParts.fields`) followed by its display units, where it ran on
+        the columns outside the sun (what its summary's result columns, severity and units read, without laying the
+        summary out); else None."""
+        cols = self._group.get(j)
+        if cols is None or j in self._sun:
+            return None
+        return (*self._parts[id(cols)].fields(self._where[j]), self.plain.display_units[j])
+
     @functools.cached_property
     def summaries(self) -> list[dict]:
         """:meth:`summary` of every plain row, in order (laid out once, kept)."""
@@ -2040,23 +2049,29 @@ class _SummaryParts:
         self.gas_name = {"name": plain.gases[rows[0]].name}
         self.sites: dict[float, dict] = {}
 
+    def fields(self, k: int) -> tuple:
+        """Row k's fields as its summary holds them: (verdict, margin, governing model, peak pressure, reasons (a tuple
+        of texts), warnings (codes and messages one after the other, see :func:`_verdict_columns`; without those of
+        the sun), atmospheric pressure, highest gas temperature, highest fill pressure) (None where there is none)."""
+        word, margin, _relief_margin, governing, peak, _applicable = self.verdicts[k]
+        t, p = self.max_t[k], self.max_p[k]
+        return (word, margin, governing, peak, self.reasons[k], self.warnings[k], self.atm[k],
+                None if t != t or self.p_fill[k] >= self.rated[k] else t, None if p != p else p)
+
     def summary(self, plain: PlainRows, j: int, k: int, sun: SunRow | None) -> dict:
         """The summary of plain row j, row k of the group's columns; `sun`: its worst case in the sun, if any."""
-        word, margin, _relief_margin, governing, peak, _applicable = self.verdicts[k]
-        warnings = _warnings_of(self.warnings[k])
+        word, margin, governing, peak, reasons, flat, atm, t, p = self.fields(k)
+        warnings = _warnings_of(flat)
         if sun is not None:
             warnings = _sun_warnings(warnings, sun, self.keep)
-        atm, rated, p_fill = self.atm[k], self.rated[k], self.p_fill[k]
         site = self.sites.get(atm)
         if site is None:
             site = self.sites[atm] = {"atmospheric_pressure_pa": atm}
-        t, p = self.max_t[k], self.max_p[k]
         return {
-            "id": plain.ids[j], "verdict": word, "reasons": list(self.reasons[k]), "warnings": warnings,
-            "peak_pressure_pa": peak, "rated_pressure_pa": rated, "margin_fraction": margin,
+            "id": plain.ids[j], "verdict": word, "reasons": list(reasons), "warnings": warnings,
+            "peak_pressure_pa": peak, "rated_pressure_pa": self.rated[k], "margin_fraction": margin,
             "required_margin_fraction": self.margin_req[k], "governing_model": governing,
-            "limits": {"max_gas_temperature_k": None if t != t or p_fill >= rated else t,
-                       "max_fill_pressure_pa": None if p != p else p},
+            "limits": {"max_gas_temperature_k": t, "max_fill_pressure_pa": p},
             "gas": self.gas_name, "display_units": plain.display_units[j], "site": site}
 
 

@@ -117,3 +117,41 @@ def test_the_chunks_worst_rows_are_heapq_nsmallest():
     assert kept == set(heapq.nsmallest(batch.TERMINAL_ROWS, range(len(rows)), key=keys.__getitem__))
     assert all(out[i][batch._SHORT] is rows[i] for i in kept)
     assert np.all([x[batch._SHORT] is None for i, x in enumerate(out) if i not in kept])
+
+
+def test_a_row_laid_out_from_its_fields_is_the_row_laid_out_from_its_summary(tmp_path):
+    # invented register: nitrogen and propane by pressure and by mass, margins on both sides of the required one,
+    # rows over their rating, rows in other display units (psig), a row in the sun and a row with a relief valve
+    lines = ["id,gas,water_capacity [L],rated_pressure [bar(g)],relief_set_pressure [bar(g)],fill_pressure [bar(g)],"
+             "fill_mass [kg],fill_temperature [degC],ambient_max [degC],solar"]
+    rng = random.Random(11)
+    for i in range(80):
+        relief = f"{rng.uniform(150, 320):.0f}" if i % 7 == 0 else ""
+        solar = "sun" if i % 13 == 0 else ""
+        if i % 3:
+            lines.append(f"V{i},nitrogen,50,{rng.uniform(150, 320):.0f},{relief},{rng.uniform(20, 260):.1f},,"
+                         f"{rng.uniform(-10, 40):.1f},{rng.uniform(-30, 60):.1f},{solar}")
+        else:
+            lines.append(f"V{i},propane,26,25,,,{rng.uniform(1, 12):.2f},{rng.uniform(0, 30):.1f},"
+                         f"{rng.uniform(-20, 60):.1f},{solar}")
+    path = tmp_path / "register.csv"
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    run = batch.BatchRun(read_inventory(path))
+    lean = 0
+    verdicts = set()
+    for i in range(len(run)):
+        fields = run.fields(i)
+        r = run.result(i)
+        verdicts.add(r["verdict"])
+        if fields is None:      # a row in the sun (or not on the columns): laid out from its summary alone
+            continue
+        lean += 1
+        units: dict = {}
+        assert batch._lean_summary(fields, r, units) == batch._row_summary(r, None, r)
+        assert batch._lean_summary(fields, None) == batch._row_summary(r, None, None)
+        # in other units than the row's own, as a file whose first row was entered so lays it out
+        pu, tu = ("psig", "degF")
+        assert batch.result_cells(
+            fields[1], " ".join(fields[5]), " ".join(fields[6][1::2]), fields[7], fields[4], fields[3], fields[2],
+            fields[8], fields[9], pu, tu) == batch.result_values(r, pu, tu)
+    assert lean >= 60 and {"within", "low-margin", "over"} <= verdicts

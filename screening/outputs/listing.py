@@ -18,8 +18,12 @@ _RANK = {v: i for i, v in enumerate(ORDER)}
 
 def severity_key(r: dict) -> tuple:
     """Worst first: input-error, over, out-of-scope, low-margin, within; then lowest margin; then row."""
-    m = r.get("margin_fraction")
-    return (_RANK.get(r["verdict"], 0), m if m is not None else -math.inf, r["row"])
+    return severity_key_of(r["verdict"], r.get("margin_fraction"), r["row"])
+
+
+def severity_key_of(verdict: str, m: float | None, row: int) -> tuple:
+    """:func:`severity_key` of a row given by its verdict, margin [-] (or None) and row."""
+    return (_RANK.get(verdict, 0), m if m is not None else -math.inf, row)
 
 
 def ranked(results: list[dict]) -> list[dict]:

@@ -37,7 +37,12 @@ XLSX_MAX_ROWS = 1_048_575
 
 def file_units(result: dict | None) -> tuple[str, str]:
     """(pressure label, temperature label) of an output file: those of its first screened row."""
-    du = (result or {}).get("display_units") or {}
+    return units_of((result or {}).get("display_units"))
+
+
+def units_of(display_units: dict | None) -> tuple[str, str]:
+    """(pressure label, temperature label) of a row's display units (see :func:`file_units`)."""
+    du = display_units or {}
     return du.get("pressure") or "bar(g)", du.get("temperature") or "degC"
 
 
@@ -64,12 +69,21 @@ def result_values(r: dict, pu: str, tu: str) -> list:
     reasons = " ".join(map(str, reasons)) if reasons else ""
     verdict = r["verdict"]
     if verdict == "input-error":
-        return [None, "", None, "input-error", reasons, None, None, warnings]
-    atm = r["site"]["atmospheric_pressure_pa"]
+        return result_cells(verdict, reasons, warnings, None, None, None, None, None, None, pu, tu)
     lim = r["limits"]
-    peak, m = r["peak_pressure_pa"], r["margin_fraction"]
-    t, p = lim["max_gas_temperature_k"], lim["max_fill_pressure_pa"]
-    return [None if peak is None else _num(pressure_in(peak, pu, atm)), r["governing_model"] or "",
+    return result_cells(verdict, reasons, warnings, r["site"]["atmospheric_pressure_pa"], r["peak_pressure_pa"],
+                        r["governing_model"], r["margin_fraction"], lim["max_gas_temperature_k"],
+                        lim["max_fill_pressure_pa"], pu, tu)
+
+
+def result_cells(verdict: str, reasons: str, warnings: str, atm: float | None, peak: float | None,
+                 governing: str | None, m: float | None, t: float | None, p: float | None, pu: str, tu: str) -> list:
+    """:func:`result_values` of a row given by its fields: verdict, reasons and warnings (each joined into one
+    text), atmospheric pressure [Pa], peak pressure [Pa], governing model, margin [-], highest gas temperature [K]
+    and highest fill pressure [Pa] (None where there is none)."""
+    if verdict == "input-error":
+        return [None, "", None, "input-error", reasons, None, None, warnings]
+    return [None if peak is None else _num(pressure_in(peak, pu, atm)), governing or "",
             None if m is None else _num(100.0 * m), verdict, reasons,
             None if t is None else _num(temperature_in(t, tu)), None if p is None else _num(pressure_in(p, pu, atm)),
             warnings]
