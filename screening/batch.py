@@ -49,7 +49,7 @@ from screening.outputs.tables import (
     result_values,
     units_of,
 )
-from screening.result import Result, ScreeningWarning
+from screening.result import Result, ResultData, ScreeningWarning
 from screening.verdicts import EXIT_INPUT, EXIT_NOT_WITHIN, EXIT_WITHIN, Verdict
 
 #: Keys of a result left out of the JSON outputs (shared or bulky parts).
@@ -105,7 +105,7 @@ class BatchRun:
         self._plain = PlainScreening(plain)
         slots: list[dict | None] = [None] * len(inv.rows)
         self._plain_at: dict[int, int] = {}
-        self._fulls: dict[int, Result] = {}
+        self._fulls: dict[int, Result | ResultData] = {}
         screened = self._plain
         for j, pos in enumerate(plain.index.tolist()):
             self._plain_at[pos] = j
@@ -121,7 +121,7 @@ class BatchRun:
             except InputError as exc:
                 cid = row_cells[id_col].strip() if id_col < len(row_cells) and row_cells[id_col].strip() else None
                 slots[pos] = error_row(n, exc, cid)
-        for pos, case, r in zip(where, cases, screen_cases(cases)):
+        for pos, case, r in zip(where, cases, screen_cases(cases, data=True)):
             slots[pos] = self._placed(pos, r, case.id)
         self._slots = slots
 
@@ -149,9 +149,13 @@ class BatchRun:
         """Every row's :meth:`result`, in order (laid out once, kept)."""
         return [self.result(i) for i in range(len(self._slots))]
 
-    def _placed(self, pos: int, r: Result | dict, case_id: str | None) -> dict:
+    def _placed(self, pos: int, r: Result | ResultData | dict, case_id: str | None) -> dict:
         n = self.inv.rows[pos][0]
-        if isinstance(r, Result):
+        if isinstance(r, ResultData):       # its Result made only where full(i) asks for it
+            r.data["row"] = n
+            self._fulls[pos] = r
+            r = r.summary_record()
+        elif isinstance(r, Result):
             from screening.engine import slim
 
             self._fulls[pos] = replace(r, row=n)
@@ -172,7 +176,8 @@ class BatchRun:
         """Row i's full result (with its "row" and the batch's warnings); its input-error record for a
         row that could not be screened."""
         if i in self._fulls:
-            return self._fulls[i]
+            f = self._fulls[i]
+            return f.result() if isinstance(f, ResultData) else f
         r = self.result(i)
         j = self._plain_at.get(i)
         if j is None or r["verdict"] == "input-error":

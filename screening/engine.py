@@ -85,7 +85,16 @@ from screening.physics.eos.generalized import (
 from screening.physics.eos.reference import ReferenceFluid, reference_fluid
 from screening.physics.gases import Mixture
 from screening.physics.isochore import LIQUID_FULL_STEP
-from screening.result import Curves, Fill, Limits, PhaseDiagram, Result, json_record
+from screening.result import (
+    Curves,
+    Fill,
+    Limits,
+    PhaseDiagram,
+    Result,
+    ResultData,
+    json_record,
+    summary_record,
+)
 
 #: Number of scan points screen._limits uses (kept equal so the bracket checks agree).
 _SCAN_N = 40
@@ -1651,7 +1660,7 @@ def _drive_states(steps: dict, corner_peaks: Callable[[list], dict], known: dict
     return done
 
 
-def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Result | None]:
+def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[ResultData | None]:
     """Rows of one pure permanent gas with input tolerances and/or several scenarios, on the arrays: every
     scenario a row of the table, every tolerance corner (and the states of its sensitivities) an extra row; the
     rows folded back into one result per vessel as screen.screen_states gives it (tolerance block, scenarios, the
@@ -1713,7 +1722,7 @@ def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Re
                 r.pop(key, None)
             per.append((sc.name, r, ex.balance))
         else:
-            out[i] = Result.from_json(_screen.fold_scenarios(per)[1])
+            out[i] = ResultData(_screen.fold_scenarios(per)[1])
     return out
 
 
@@ -1763,11 +1772,14 @@ def _run_columns(parts: list[Rows], fn: Callable[[Rows], dict] = _columns) -> li
     return parallel.map_rows(fn, parts)
 
 
-def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = None) -> list[dict]:
+def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = None, *,
+                 data: bool = False) -> list[Result | ResultData | dict]:
     """Screen every case; results in the input order. `progress(n)` is told of rows done.
 
     A row whose screening raises InputError (e.g. a fill denser than any liquid) comes back as
-    ``{"verdict": "input-error", "error": InputError}`` for the caller to place.
+    ``{"verdict": "input-error", "error": InputError}`` for the caller to place. With `data`, the rows folded from
+    several scenarios or tolerance corners come back as :class:`~screening.result.ResultData` (their Result made
+    where one is asked for); else every screened row as a Result.
     """
     results: list[dict | None] = [None] * len(cases)
     # groups by gas and by the columns that take them (a permanent gas: by pressure on _columns, by mass on
@@ -1822,6 +1834,8 @@ def screen_cases(cases: list[Case], progress: Callable[[int], None] | None = Non
         if progress:
             progress(done)
     STATS.set(len(cases) - len(rest), len(rest))
+    if not data:
+        results = [r.result() if isinstance(r, ResultData) else r for r in results]
     for i in sorted(rest):
         try:
             results[i] = single(cases[i])
@@ -2067,12 +2081,8 @@ class _SummaryParts:
         site = self.sites.get(atm)
         if site is None:
             site = self.sites[atm] = {"atmospheric_pressure_pa": atm}
-        return {
-            "id": plain.ids[j], "verdict": word, "reasons": list(reasons), "warnings": warnings,
-            "peak_pressure_pa": peak, "rated_pressure_pa": self.rated[k], "margin_fraction": margin,
-            "required_margin_fraction": self.margin_req[k], "governing_model": governing,
-            "limits": {"max_gas_temperature_k": t, "max_fill_pressure_pa": p},
-            "gas": self.gas_name, "display_units": plain.display_units[j], "site": site}
+        return summary_record(plain.ids[j], word, reasons, warnings, peak, self.rated[k], margin, self.margin_req[k],
+                              governing, t, p, self.gas_name, plain.display_units[j], site)
 
 
 class _Listed(dict):
@@ -2164,7 +2174,7 @@ def liquefied_expandable(case: Case) -> bool:
             and all(getattr(s, "solar", "none") in ("none", "sun") for s in scenarios))
 
 
-def _screen_liquefied_scenarios(cases: list[Case], balances: dict | None = None) -> list[Result | None]:
+def _screen_liquefied_scenarios(cases: list[Case], balances: dict | None = None) -> list[ResultData | None]:
     """Rows of one gas on the liquefied-gas columns with several scenarios or with input tolerances on a fill by
     mass: every scenario a row of one table (its worst case as screen._worst_case_temperature finds it,
     :func:`_exposure_row`), each scenario's result laid out as for a row of one scenario, its tolerance block from
@@ -2228,7 +2238,7 @@ def _screen_liquefied_scenarios(cases: list[Case], balances: dict | None = None)
                 r.pop(key, None)
             per.append((sc.name, r, ex.balance))
         else:
-            out[i] = Result.from_json(_screen.fold_scenarios(per)[1])
+            out[i] = ResultData(_screen.fold_scenarios(per)[1])
     return out
 
 

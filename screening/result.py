@@ -627,14 +627,61 @@ class Result(_Part):
         return out
 
     def summary_record(self) -> dict:
-        """The part of the result the batch table, CSV and counts use (JSON-ready; the batch builds the
-        same record directly for the rows it screens as columns)."""
-        return {"id": self.id, "verdict": self.verdict.value, "reasons": list(self.reasons),
-                "warnings": [w.to_json() for w in self.warnings], "peak_pressure_pa": self.peak_pressure_pa,
-                "rated_pressure_pa": self.rated_pressure_pa, "margin_fraction": self.margin_fraction,
-                "required_margin_fraction": self.required_margin_fraction,
-                "governing_model": self.governing_model,
-                "limits": {"max_gas_temperature_k": self.limits.max_gas_temperature_k,
-                           "max_fill_pressure_pa": self.limits.max_fill_pressure_pa},
-                "gas": {"name": self.gas.name}, "display_units": self.display_units,
-                "site": {"atmospheric_pressure_pa": self.site.atmospheric_pressure_pa}}
+        """The part of the result the batch table, CSV and counts use (JSON-ready; :func:`summary_record`)."""
+        return summary_record(self.id, self.verdict.value, self.reasons, [w.to_json() for w in self.warnings],
+                              self.peak_pressure_pa, self.rated_pressure_pa, self.margin_fraction,
+                              self.required_margin_fraction, self.governing_model, self.limits.max_gas_temperature_k,
+                              self.limits.max_fill_pressure_pa, {"name": self.gas.name}, self.display_units,
+                              {"atmospheric_pressure_pa": self.site.atmospheric_pressure_pa})
+
+
+def summary_record(id_: str | None, verdict: str, reasons, warnings: list[dict], peak: float | None, rated: float,
+                   margin: float | None, required_margin: float, governing: str | None, max_t: float | None,
+                   max_p: float | None, gas: dict, display_units: dict, site: dict) -> dict:
+    """The part of a result the batch table, CSV and counts use (JSON-ready), from its fields: the verdict's word,
+    its reasons (texts), its warnings (JSON objects), pressures [Pa] absolute, the margins, the governing model, the
+    limits (the highest gas temperature [K] and fill pressure [Pa]), and the dicts it holds as they are given: the
+    gas ({"name": ...}), the display units and the site ({"atmospheric_pressure_pa": ...}), which many rows of a
+    batch may share (read only). The one layout of :meth:`Result.summary_record`, :func:`summary_record_of` and the
+    batch's rows screened as columns."""
+    return {"id": id_, "verdict": verdict, "reasons": list(reasons), "warnings": warnings, "peak_pressure_pa": peak,
+            "rated_pressure_pa": rated, "margin_fraction": margin, "required_margin_fraction": required_margin,
+            "governing_model": governing,
+            "limits": {"max_gas_temperature_k": max_t, "max_fill_pressure_pa": max_p},
+            "gas": gas, "display_units": display_units, "site": site}
+
+
+def summary_record_of(data: dict) -> dict:
+    """:meth:`Result.summary_record` of the result whose JSON data (the layout of :meth:`Result.to_json`) is `data`,
+    without making the Result."""
+    lim = data["limits"]
+    return summary_record(data["id"], data["verdict"], data["reasons"],
+                          [ScreeningWarning.json_layout(w) for w in data["warnings"]], data["peak_pressure_pa"],
+                          data["rated_pressure_pa"], data["margin_fraction"], data["required_margin_fraction"],
+                          data["governing_model"], lim["max_gas_temperature_k"], lim["max_fill_pressure_pa"],
+                          {"name": data["gas"]["name"]}, data["display_units"],
+                          {"atmospheric_pressure_pa": data["site"]["atmospheric_pressure_pa"]})
+
+
+class ResultData:
+    """A result held as its JSON data (the layout of :meth:`Result.to_json`), made a :class:`Result` only where one
+    is asked for (:meth:`result`, once): a batch lays most rows out from their summaries alone
+    (:meth:`summary_record`), and a Result of many parts (scenarios, tolerance corners) costs more to make than its
+    rows cost to screen. Not shared between threads (a batch's chunk holds it)."""
+
+    __slots__ = ("data", "_result")
+
+    def __init__(self, data: dict) -> None:
+        self.data = data
+        self._result: Result | None = None
+
+    def result(self) -> Result:
+        if self._result is None:
+            self._result = Result.from_json(self.data)
+        return self._result
+
+    def summary_record(self) -> dict:
+        return summary_record_of(self.data)
+
+    def to_json(self) -> dict:
+        return self.result().to_json()
