@@ -193,6 +193,9 @@ class BatchRun:
         JSON output holds it, to be written at once: maybe without the curves and cautions, sharing parts)."""
         j = self._plain_at.get(i)
         if i in self._fulls or j is None or self._plain.failed(j):
+            f = self._fulls.get(i)
+            if isinstance(f, ResultData):       # laid out from its data, without its Result
+                return f.to_json(warnings)
             f = self.full(i)
             return _json(replace(f, warnings=_warnings(warnings)) if isinstance(f, Result) else f)
         f = self._plain.full_json(j, line)

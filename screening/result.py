@@ -683,5 +683,7 @@ class ResultData:
     def summary_record(self) -> dict:
         return summary_record_of(self.data)
 
-    def to_json(self) -> dict:
-        return self.result().to_json()
+    def to_json(self, warnings: list[dict] | None = None) -> dict:
+        """:meth:`Result.to_json` of the result, with `warnings` (JSON objects) in place of its own where given,
+        laid out from the data (:meth:`Result.json_layout`) without making the Result."""
+        return Result.json_layout(self.data if warnings is None else {**self.data, "warnings": warnings})

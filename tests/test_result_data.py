@@ -8,13 +8,14 @@ screening itself is checked against CoolProp in tests/test_shared_states.py and 
 from __future__ import annotations
 
 import random
+from dataclasses import replace
 
 from helpers import random_scenarios
 
 from screening import batch, engine
 from screening.inputs.case import parse_case_text
 from screening.inputs.inventory import load_defaults, read_inventory
-from screening.result import Result, ResultData, summary_record_of
+from screening.result import Result, ResultData, ScreeningWarning, summary_record_of
 
 
 def _case(i: int, rnd: random.Random) -> str:
@@ -52,6 +53,9 @@ def test_a_folded_row_held_as_data_gives_the_same_summary_and_result():
         assert h.summary_record() == m.summary_record() == summary_record_of(m.to_json())
         assert h.result() == m and h.result() is h.result()
         assert h.to_json() == m.to_json()
+        # with other warnings, as a batch's JSON gives a row whose id is a duplicate
+        extra = [*m.to_json()["warnings"], {"code": "duplicate-id", "message": "The id is also used on row 2."}]
+        assert h.to_json(extra) == replace(m, warnings=tuple(ScreeningWarning.from_json(w) for w in extra)).to_json()
     assert folded >= 40
 
 
