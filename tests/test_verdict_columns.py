@@ -51,6 +51,14 @@ def test_verdicts_come_back_as_given():
             ScreeningWarning.json_layout(w) for w in v["warnings"]]
 
 
+def _register(tmp_path, header: str, row, count: int, seed: int):
+    """An invented register read back: the header, then row(i, rng) for i in range(count), one random source."""
+    rng = random.Random(seed)
+    path = tmp_path / "register.csv"
+    path.write_text("\n".join([header] + [row(i, rng) for i in range(count)]) + "\n", encoding="utf-8")
+    return read_inventory(path)
+
+
 def _atomic_tuple(x) -> bool:
     return type(x) is tuple and all(isinstance(e, ATOMIC) or (type(e) is tuple and all(
         isinstance(f, ATOMIC) for f in e)) for e in x)
@@ -58,19 +66,13 @@ def _atomic_tuple(x) -> bool:
 
 def test_a_chunks_rows_keep_no_containers_of_their_own(tmp_path):
     # invented register: rows filled by pressure and by mass, some whose fill state governs (a warning each)
-    lines = ["id,gas,water_capacity [L],rated_pressure [bar(g)],fill_pressure [bar(g)],fill_mass [kg],"
-             "fill_temperature [degC],ambient_max [degC]"]
-    rng = random.Random(9)
-    for i in range(60):
+    def row(i: int, rng: random.Random) -> str:
         if i % 2:
-            lines.append(f"V{i},nitrogen,50,300,{rng.uniform(20, 200):.1f},,{rng.uniform(-10, 40):.1f},"
-                         f"{rng.uniform(-30, 60):.1f}")
-        else:
-            lines.append(f"V{i},propane,26,25,,{rng.uniform(1, 10):.2f},{rng.uniform(0, 30):.1f},"
-                         f"{rng.uniform(-20, 50):.1f}")
-    path = tmp_path / "register.csv"
-    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
-    inv = read_inventory(path)
+            return f"V{i},nitrogen,50,300,{rng.uniform(20, 200):.1f},,{rng.uniform(-10, 40):.1f},{rng.uniform(-30, 60):.1f}"
+        return f"V{i},propane,26,25,,{rng.uniform(1, 10):.2f},{rng.uniform(0, 30):.1f},{rng.uniform(-20, 50):.1f}"
+
+    inv = _register(tmp_path, "id,gas,water_capacity [L],rated_pressure [bar(g)],fill_pressure [bar(g)],"
+                    "fill_mass [kg],fill_temperature [degC],ambient_max [degC]", row, 60, 9)
     screened = engine.PlainScreening(read_plain(inv, None))
     groups = {id(c): c for c in screened._group.values()}
     assert len(groups) == 2
@@ -120,23 +122,20 @@ def test_the_chunks_worst_rows_are_heapq_nsmallest():
 
 
 def test_a_row_laid_out_from_its_fields_is_the_row_laid_out_from_its_summary(tmp_path):
-    # invented register: nitrogen and propane by pressure and by mass, margins on both sides of the required one,
-    # rows over their rating, rows in other display units (psig), a row in the sun and a row with a relief valve
-    lines = ["id,gas,water_capacity [L],rated_pressure [bar(g)],relief_set_pressure [bar(g)],fill_pressure [bar(g)],"
-             "fill_mass [kg],fill_temperature [degC],ambient_max [degC],solar"]
-    rng = random.Random(11)
-    for i in range(80):
+    # invented register: nitrogen by pressure and propane by mass, margins on both sides of the required one, rows
+    # over their rating, rows in the sun (laid out from their summaries) and rows with a relief valve
+    def row(i: int, rng: random.Random) -> str:
         relief = f"{rng.uniform(150, 320):.0f}" if i % 7 == 0 else ""
         solar = "sun" if i % 13 == 0 else ""
         if i % 3:
-            lines.append(f"V{i},nitrogen,50,{rng.uniform(150, 320):.0f},{relief},{rng.uniform(20, 260):.1f},,"
-                         f"{rng.uniform(-10, 40):.1f},{rng.uniform(-30, 60):.1f},{solar}")
-        else:
-            lines.append(f"V{i},propane,26,25,,,{rng.uniform(1, 12):.2f},{rng.uniform(0, 30):.1f},"
-                         f"{rng.uniform(-20, 60):.1f},{solar}")
-    path = tmp_path / "register.csv"
-    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
-    run = batch.BatchRun(read_inventory(path))
+            return (f"V{i},nitrogen,50,{rng.uniform(150, 320):.0f},{relief},{rng.uniform(20, 260):.1f},,"
+                    f"{rng.uniform(-10, 40):.1f},{rng.uniform(-30, 60):.1f},{solar}")
+        return (f"V{i},propane,26,25,,,{rng.uniform(1, 12):.2f},{rng.uniform(0, 30):.1f},"
+                f"{rng.uniform(-20, 60):.1f},{solar}")
+
+    run = batch.BatchRun(_register(tmp_path, "id,gas,water_capacity [L],rated_pressure [bar(g)],"
+                                   "relief_set_pressure [bar(g)],fill_pressure [bar(g)],fill_mass [kg],"
+                                   "fill_temperature [degC],ambient_max [degC],solar", row, 80, 11))
     lean = 0
     verdicts = set()
     for i in range(len(run)):
