@@ -385,7 +385,27 @@ def parse(text: object, kind: str, *, pressure_basis: str | None = None, **where
     288.15
     >>> parse("200 bar(g)", "pressure").unit.basis
     'gauge'
+
+    A text read before with the same kind, basis and key gives the same (immutable) reading again without being
+    read anew (:func:`_parse_text`: a register repeats its values); a text that is not accepted is read here, so
+    that the message names `where`.
     """
+    if type(text) is str:
+        try:
+            return _parse_text(text, kind, pressure_basis, where.get("key"))
+        except InputError:
+            pass
+    return _parse(text, kind, pressure_basis, where)
+
+
+@lru_cache(maxsize=8192)
+def _parse_text(text: str, kind: str, pressure_basis: str | None, key: str | None) -> Reading:
+    """:func:`parse` of a text accepted with these arguments (the key chooses the accepted range), kept."""
+    return _parse(text, kind, pressure_basis, {} if key is None else {"key": key})
+
+
+def _parse(text: object, kind: str, pressure_basis: str | None, where: dict) -> Reading:
+    """:func:`parse`, read anew."""
     expected = expected_for(kind)
     if kind == "fraction" and isinstance(text, (int, float)) and not isinstance(text, bool):
         text = repr(float(text))

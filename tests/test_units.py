@@ -165,3 +165,25 @@ def test_every_allowlisted_unit_converts_by_its_factor_exactly_as_pint_does():
         assert units._to_si_factor(*spec) is not None, spec
         for x in numbers:
             assert units._to_si(x, *spec) == units._pint_to_si(x, *spec), (spec, x)
+
+
+def test_a_text_read_again_gives_the_same_reading_and_a_refused_one_names_its_own_key():
+    # A register repeats its values: a text read before with the same kind, basis and key is not read anew. The
+    # reading must be what reading it anew gives, and the key still chooses the accepted range: the same text
+    # accepted under one key and refused under another names the key, file and row it was given under.
+    from screening.units import _parse
+
+    first = parse("65 degC", "temperature", key="exposure.gas_temperature", file="a.csv")
+    again = parse("65 degC", "temperature", key="exposure.gas_temperature", file="b.csv")
+    assert first == again == _parse("65 degC", "temperature", None, {"key": "exposure.gas_temperature"})
+    assert parse("200 bar", "pressure", pressure_basis="gauge").unit.basis == "gauge"
+    assert parse("200 bar", "pressure", pressure_basis="absolute").unit.basis == "absolute"
+    # 150 K is a difference of 150 K as a tolerance (above its 100 K), a temperature elsewhere
+    assert parse("150 K", "temperature", key="fill.temperature").si() == 150.0
+    with pytest.raises(InputError) as err:
+        parse("150 K", "temperature", key="tolerance.fill_temperature", file="site.toml", row=7)
+    assert err.value.key == "tolerance.fill_temperature" and err.value.file == "site.toml"
+    assert "7" in str(err.value)
+    with pytest.raises(InputError) as err:     # refused, then refused again with its own file
+        parse("200 bar", "pressure", file="second.toml", key="fill.pressure")
+    assert err.value.file == "second.toml" and "gauge or absolute" in str(err.value)
