@@ -5,6 +5,8 @@ acentric factors), the `chemicals` package (Lee–Kesler vapour pressure, Abbott
 virial coefficient), and hand arithmetic.
 """
 
+import sys
+
 import CoolProp.CoolProp as CP
 import numpy as np
 import pytest
@@ -600,6 +602,55 @@ def test_gas_volume_falls_as_pressure_rises_where_states_are_refused_without_sol
     a = gen._MONOTONE_A
     # a margin: the slopes' ratio stays well inside the bound between the grid's points
     assert ((1.0 - a) * fall0 + 1.5 * a * fallr > 0.0).all()
+
+
+def test_each_fluids_isotherm_rises_at_every_density_from_the_one_root_temperature():
+    # lee_kesler_pressure_valid takes the coupled Newton's densities as the gas roots from _ONE_ROOT_TR up,
+    # because there each LK fluid's isotherm P_r(rho) rises at every density (one root at any P_r): checked on a
+    # grid of T_r up to the top of the tables and of densities far past any gas or liquid state, with a margin;
+    # just below T_r = 1 (each fluid's critical point) the isotherm has its loop.
+    import screening.physics.eos.generalized as gen
+
+    rho = np.concatenate([np.linspace(1e-8, 12.0, 60001), np.geomspace(12.0, 1e4, 2001)])
+    for consts in (gen._SIMPLE, gen._REFERENCE):
+        for tr in np.linspace(gen._ONE_ROOT_TR, 4.0, 119):
+            z, dz = gen._bwr(consts, gen._coefficients(consts, tr), rho)
+            assert (tr * (z + rho * dz)).min() > 0.1
+        z, dz = gen._bwr(consts, gen._coefficients(consts, 0.99), rho)
+        assert (0.99 * (z + rho * dz)).min() < 0.0
+
+
+@pytest.mark.parametrize("fluid", ["Krypton", "Methane", "Ethylene", "CO2"])
+def test_pressures_without_the_gas_root_check_are_those_with_it(fluid, monkeypatch):
+    # From _ONE_ROOT_TR up lee_kesler_pressure_valid does not solve the gas roots again at the coupled Newton's
+    # pressure: its pressures and validity must still be lee_kesler_pressure's, bit for bit, on states around
+    # that temperature and on hot dense ones, in calls of a few and of many elements.
+    import screening.physics.eos.generalized as gen
+    from screening.physics.eos.generalized import lee_kesler_pressure_valid
+
+    asked = []
+    original = gen._z_core
+
+    def count(tr, pr, omega, active):       # the gas roots solved again at the settled pressures
+        if sys._getframe(1).f_code.co_name == "_pressure_arrays":
+            asked.append(int(np.count_nonzero(active)))
+        return original(tr, pr, omega, active)
+    monkeypatch.setattr(gen, "_z_core", count)
+    # the fluid's critical constants and acentric factor as CoolProp gives them
+    tc, pc, om = critical(fluid)
+    rho_c = CP.PropsSI("rhomolar_critical", fluid)
+    rng = np.random.default_rng(3)
+    for n in (1, 9, 40, 2000):
+        for t_lo, t_hi, r_lo, r_hi in ((1.0, 1.1, 0.01, 2.5), (1.04, 1.06, 0.05, 2.0), (1.1, 3.9, 0.01, 3.0)):
+            t = rng.uniform(t_lo, t_hi, n) * tc
+            rho = rng.uniform(r_lo, r_hi, n) * rho_c
+            full = lee_kesler_pressure(rho, t, tc, pc, om)
+            asked.clear()
+            p, ok = lee_kesler_pressure_valid(rho, t, tc, pc, om)
+            np.testing.assert_array_equal(ok, full.valid)
+            assert p.tobytes() == full.pressure.tobytes()
+            if n == 2000:       # the gas roots solved again only below _ONE_ROOT_TR (and where the Newton did not settle)
+                assert sum(asked) <= np.count_nonzero(t < gen._ONE_ROOT_TR * tc) + 0.05 * n
 
 
 def test_coupled_newton_of_both_fluids_in_one_array_is_each_states_own():

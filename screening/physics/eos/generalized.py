@@ -887,14 +887,17 @@ def _newton_reduced_pressure_one(t: float, v: float, a: float, r0: float, p: flo
     return None
 
 
-def _pressure_few(tr: np.ndarray, vf: np.ndarray, omega: np.ndarray) -> tuple[list, list, list, tuple]:
+def _pressure_few(tr: np.ndarray, vf: np.ndarray, omega: np.ndarray, one_root: bool = False
+                  ) -> tuple[list, list, list, tuple]:
     """(P_r, Z) of :func:`lee_kesler_pressure` for a few elements (1-d), element by element on floats: the same
     steps and tests as the array path (range, :func:`_newton_reduced_pressure`, the check by the cold-started gas
     roots, the volume and vapour-pressure tests), bit for bit, for the elements that are valid and whose coupled
     Newton settles on the gas branch; and the indices of the others (NaN there), which the caller solves by the
     array path (bracketed solve, reasons; a state's numbers do not depend on the others in its call), with what
     the coupled Newton gave them: arrays (P_r, V_0, V_ref, settled) as :func:`_newton_reduced_pressure` returns
-    them (the array path need not run it again)."""
+    them (the array path need not run it again). `one_root` (for :func:`lee_kesler_pressure_valid`): from
+    _ONE_ROOT_TR up the settled densities are taken as the gas roots without solving those again (the same P_r
+    and validity; Z is then P_r V_r / T_r of the coupled solution, which that function does not give)."""
     a = omega / OMEGA_REFERENCE
     if (tr < 1.0).any():
         t_in = np.where(tr < _TR_LO, 0.5, tr)       # only the elements in the range are used
@@ -912,6 +915,10 @@ def _pressure_few(tr: np.ndarray, vf: np.ndarray, omega: np.ndarray) -> tuple[li
             r0 = _div(1.0, v)
             got = _newton_reduced_pressure_one(t, v, ak, r0, t * r0, p_max[k], c0, cr)
             ok = got is not None and got[0] <= _PR_HI and (psat is None or not got[0] > psat[k])
+        if ok and one_root and t >= _ONE_ROOT_TR and abs((1.0 - ak) * got[1] + ak * got[2] - v) <= 1e-9 * v:
+            prs.append(got[0])
+            zs.append(got[0] * v / t)
+            continue
         if ok:
             pr, fast_v0, fast_vr = got
             rho0, z0, nr0, cv0 = _root_one(_SIMPLE, c0, t, pr)
@@ -985,6 +992,13 @@ def _solve_reduced_pressure(tr, vf, omega, active):
 #: tests/test_generalized.py checks it on a grid): the states of :func:`_no_gas_state_up_to_cap` are those.
 _MONOTONE_TR = 1.1
 _MONOTONE_A = -0.25
+#: From this reduced temperature up (to the top of the tables, T_r = 4) each LK fluid's isotherm P_r(rho) rises at
+#: every density (dP_r/drho >= 0.11 on a grid of rho up to 1e4; each fluid's critical point lies at T_r = 1, below
+#: which the isotherm has its loop: tests/test_generalized.py checks the grid). Each fluid then has one root at any
+#: P_r, which is its gas root: the densities the coupled Newton settles on there are those the cold-started gas
+#: roots give, so :func:`lee_kesler_pressure_valid` does not solve those again (its pressures and validity are
+#: those of :func:`lee_kesler_pressure`, bit for bit).
+_ONE_ROOT_TR = 1.05
 #: Relative margin by which the reduced gas volume at the cap must exceed V_r (a state is valid only where they
 #: agree to 1e-9; round-off is some 1e-13).
 _NO_GAS_MARGIN = 1e-6
@@ -1060,14 +1074,15 @@ def lee_kesler_pressure_valid(molar_density, temperature, tc, pc, omega) -> tupl
 def _pressure(molar_density, temperature, tc, pc, omega, sure_none: bool = False) -> GeneralizedState:
     """:func:`lee_kesler_pressure`; `sure_none`: the states :func:`_no_gas_state_up_to_cap` finds are refused
     without their bracketed solve (their reasons and reduced pressures are then not those of
-    :func:`lee_kesler_pressure`: for :func:`lee_kesler_pressure_valid` only)."""
+    :func:`lee_kesler_pressure`: for :func:`lee_kesler_pressure_valid` only), and from _ONE_ROOT_TR up the
+    coupled Newton's densities are not checked against the cold-started gas roots (there they are those)."""
     rho, t, tc, pc, omega = _state_arrays(molar_density, "molar density", "[mol/m3]", temperature, tc, pc, omega)
     tr = t / tc
     vf = pc / (rho * R * tc)          # reduced ideal volume of the gas [-]
     if not (tr.ndim == 1 and 0 < tr.size <= _SCALAR_MAX):
         return _pressure_arrays(rho, t, pc, omega, tr, vf, sure_none=sure_none)
     # element by element; the array path (and its reasons) only for the elements that need it
-    prs, zs, failed, newton = _pressure_few(tr, vf, omega)
+    prs, zs, failed, newton = _pressure_few(tr, vf, omega, one_root=sure_none)
     pr_final, z = np.array(prs), np.array(zs)
     p, rho = pr_final * pc, rho.copy()
     reason = np.full(tr.shape, "", dtype=object)
@@ -1093,6 +1108,7 @@ def _pressure_arrays(rho, t, pc, omega, tr, vf, newton: tuple | None = None,
     # The coupled Newton first; where it does not settle, or settles off the gas branch (its roots
     # differ from the cold-started gas roots of the check below), the bracketed solve decides.
     fast_pr, fast_v0, fast_vr, fast = newton or _newton_reduced_pressure(tr, vf, omega, active)
+    a_f = omega / OMEGA_REFERENCE
     solve = active & ~fast
     if sure_none and solve.any():
         # no gas state of the model at this density: not solved, so not converged (refused)
@@ -1110,7 +1126,14 @@ def _pressure_arrays(rho, t, pc, omega, tr, vf, newton: tuple | None = None,
         _set_reasons(reason, active & above_cap, lambda i: (
             f"reduced pressure is above {_fmt(_PR_SOLVE_MAX)}, beyond the Lee–Kesler range ({_RANGE_TEXT_PR})"))
         check = (reason == "") & np.isfinite(pr_final)
-        z, v0, vr, _dv0, _dvr, no_root, not_conv, a = _z_core(tr, np.where(check, pr_final, 1.0), omega, check)
+        # sure_none: from _ONE_ROOT_TR up a settled coupled Newton's densities are the gas roots (one root each)
+        one = (check & fast & (tr >= _ONE_ROOT_TR) & (np.abs((1.0 - a_f) * fast_v0 + a_f * fast_vr - vf) <= 1e-9 * vf)
+               if sure_none else np.zeros(tr.shape, dtype=bool))
+        cold = check & ~one
+        z, v0, vr, _dv0, _dvr, no_root, not_conv, a = _z_core(tr, np.where(cold, pr_final, 1.0), omega, cold)
+        if one.any():
+            z, v0, vr = (np.where(one, pr_final * vf / tr, z), np.where(one, fast_v0, v0),
+                         np.where(one, fast_vr, vr))
         off = fast & ~(check & ~no_root & ~not_conv & (np.abs(v0 - fast_v0) <= 1e-9 * fast_v0)
                        & (np.abs(vr - fast_vr) <= 1e-9 * fast_vr))
         if not off.any():
