@@ -34,6 +34,7 @@ from dataclasses import replace
 from itertools import chain, repeat
 from typing import Iterator
 
+from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
 from screening.errors import InputError
 from screening.inputs.inventory import Inventory, load_defaults, open_inventory, read_inventory, row_case
 from screening.outputs.files import atomic_writer, check_target
@@ -49,6 +50,7 @@ from screening.outputs.tables import (
     result_values,
     units_of,
 )
+from screening.outputs.text import visible
 from screening.result import Result, ResultData, ScreeningWarning
 from screening.verdicts import EXIT_INPUT, EXIT_NOT_WITHIN, EXIT_WITHIN, Verdict
 
@@ -554,8 +556,14 @@ def _counts_line(s: dict) -> str:
     return "  ".join(f"{v}: {s['counts'][v]}" for v in ORDER) + f"  (rows: {s['rows']})"
 
 
+def _clip(text: str, width: int) -> str:
+    """`text` in at most `width` characters, a cut one ending in an ellipsis."""
+    return text if len(text) <= width else text[:width - 1] + "\u2026"
+
+
 def terminal_table(results: list[dict], s: dict | None = None) -> str:
-    """The counts, then the rows worst first (`results`: all rows, or the worst kept of them)."""
+    """The counts, then the rows worst first (`results`: all rows, or the worst kept of them), each row that is not
+    within with the first of its reasons; then the caution."""
     s = s or summary(results)
     lines = [_counts_line(s)]
     head = f"{'row':>6}  {'id':<18} {'verdict':<12} {'gas':<14} {'peak':>16} {'rated':>16} {'margin':>9}"
@@ -563,15 +571,16 @@ def terminal_table(results: list[dict], s: dict | None = None) -> str:
     shown = ranked(results)
     for r in shown:
         c = cells(r)
-        lines.append(f"{r['row']:>6}  {str(r.get('id') or '')[:18]:<18} {r['verdict']:<12} {c['gas'][:14]:<14} "
-                     f"{c['peak']:>16} {c['rated']:>16} {c['margin']:>9}")
-        if r["verdict"] in ("input-error", "out-of-scope"):
-            lines.append(f"{'':>8}{r['reasons'][0]}")
+        lines.append(f"{r['row']:>6}  {_clip(visible(str(r.get('id') or '')), 18):<18} {r['verdict']:<12} "
+                     f"{_clip(c['gas'], 14):<14} {c['peak']:>16} {c['rated']:>16} {c['margin']:>9}")
+        if r["verdict"] != "within" and r.get("reasons"):
+            lines.append(f"{'':>8}{visible(str(r['reasons'][0]))}")
         for w in r.get("warnings", []):
             if w.get("code") == "duplicate-id":
                 lines.append(f"{'':>8}warning: {w['message']}")
     if s["rows"] > len(shown):
         lines.append(f"... the {len(shown)} worst rows of {s['rows']:,} shown; every row is in the output files")
+    lines += ["", "CAUTION: " + SHORT_CAUTION]
     return "\n".join(lines)
 
 
@@ -594,15 +603,20 @@ def run_inventory(inv: Inventory, defaults: dict | None = None, quiet: bool = Tr
     return out
 
 
+#: The cautions block of the batch's JSON document, after its summary (as a single result's JSON carries it).
+_JSON_CAUTIONS = ',\n "cautions": ' + json.dumps({"caution": CAUTION, "short_caution": SHORT_CAUTION,
+                                                  "assumptions": list(ASSUMPTIONS)}, ensure_ascii=False)
+
+
 def write_json(results: list[dict], path, full=None) -> None:
-    """A JSON document of finished results: {"results": [...], "summary": {...}}."""
+    """A JSON document of finished results: {"results": [...], "summary": {...}, "cautions": {...}}."""
     with atomic_writer(path, "JSON output") as fh:
         fh.write('{"results": [\n')
         for i, r in enumerate(results):
             if full is not None:
                 r = full(i)
             fh.write(("  " if i == 0 else ",\n  ") + json_line({k: v for k, v in _json(r).items() if k not in _DROP}))
-        fh.write('\n],\n "summary": ' + json.dumps(summary(results)) + "}\n")
+        fh.write('\n],\n "summary": ' + json.dumps(summary(results)) + _JSON_CAUTIONS + "}\n")
 
 
 # ----------------------------------------------------------------------------- the command
@@ -682,7 +696,7 @@ class _Outputs:
             self.xlsx.finish(self._xlsx_fh, tally.counts, tally.rows, tally.duplicates, self.reg.source)
         self._flush()
         if self.json:
-            self.json.write(('\n],\n "summary": ' + json.dumps(tally.summary()) + "}\n").encode())
+            self.json.write(('\n],\n "summary": ' + json.dumps(tally.summary()) + _JSON_CAUTIONS + "}\n").encode())
 
 
 class _Spill:
@@ -959,7 +973,7 @@ def run(args) -> int:
         bar.close()
     s = tally.summary()
     if args.quiet:
-        print(_counts_line(s))
+        print(_counts_line(s) + "\nCAUTION: " + SHORT_CAUTION)
     else:
         print(terminal_table(tally.worst(), s))
     return tally.exit_code()

@@ -829,7 +829,7 @@ def _plain_columns(part: PlainPart) -> dict:
     relief, ratio = part.relief.tolist(), part.ratio.tolist()
     # the columns _verdict reads, as lists (indexing a list is cheaper than making a numpy scalar)
     listed = {key: cols[key].tolist() for key in ("gas_below_ambient", "peak_ideal", "peak_ref", "lk_ok", "lk_peak",
-                                                  "rho_molar", "fill_governs", "t_exposure", "t_peak")}
+                                                  "rho_molar", "fill_governs", "t_exposure", "t_peak", "fill_over")}
     _verdict_columns(cols, part.p_fill.size, (
         (k, _verdict(listed, k, molar_mass, rated[k], None if math.isnan(relief[k]) else relief[k], atm[k],
                      margin_req[k], None if math.isnan(ratio[k]) else ratio[k], "exposure"))
@@ -1311,7 +1311,8 @@ def _verdict(cols: dict, k: int, molar_mass: float, rated: float, relief: float 
     ratio_reason = _screen.filling_ratio_reason(float(cols["rho_molar"][k]) * molar_mass, max_ratio)
     verdict, reasons, margin, relief_margin = _screen.decide(
         peak=peak, rated=rated, relief=relief, atm=atm, required_margin=required_margin, any_real_model=True,
-        out_of_scope_reason=None, liquid_full_reason=None, filling_ratio_reason=ratio_reason)
+        out_of_scope_reason=None, liquid_full_reason=None, filling_ratio_reason=ratio_reason,
+        fill_over=bool(cols["fill_over"][k]))
     return {"verdict": verdict, "reasons": reasons, "warnings": warnings, "margin_fraction": margin,
             "relief_margin_fraction": relief_margin, "governing_model": gov_name, "peak_pressure_pa": peak,
             "applicable": _APPLICABLE[True, peak_gen is not None]}
@@ -1457,7 +1458,7 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
         mass_limit = (rm * case.water_capacity_m3, rm / 1000.0, basis)
     fill_over = case.fill_pressure_pa >= case.rated_pressure_pa if by_pressure else bool(cols["fill_over"][k])
     limits = _LIMITS(*mass_limit, None if fill_over else _opt(cols["max_t"][k]), _opt(cols["max_p"][k]),
-                     float(cols["target"][k]), _screen.limits_note(True, fill_over), _opt(cols["liquid_full"][k]),
+                     float(cols["target"][k]), _screen.limits_note(True, fill_over, case), _opt(cols["liquid_full"][k]),
                      _opt(cols["dry"][k]), _opt(cols["crossing"][k]), _opt(cols["dpdt_liquid_full"][k]))
     mass = (rho_mass if by_pressure else case.fill_mass_kg / case.water_capacity_m3) * case.water_capacity_m3
     return _layout(case, cols, k, v, sun, (rho_mass, rho_molar, mass, phase, None), models, peak, gov_name,
@@ -3170,7 +3171,8 @@ def _liquefied_verdict(cols: dict, k: int, rated: float, relief: float | None, a
     ratio_reason = _screen.filling_ratio_reason(float(cols["rho_fill_mass"][k]), max_ratio)
     verdict, reasons, margin, relief_margin = _screen.decide(
         peak=peak, rated=rated, relief=relief, atm=atm, required_margin=required_margin, any_real_model=True,
-        out_of_scope_reason=None, liquid_full_reason=liquid_full, filling_ratio_reason=ratio_reason)
+        out_of_scope_reason=None, liquid_full_reason=liquid_full, filling_ratio_reason=ratio_reason,
+        fill_over=bool(cols["fill_over"][k]))
     return {"verdict": verdict, "reasons": reasons, "warnings": warnings, "margin_fraction": margin,
             "relief_margin_fraction": relief_margin, "governing_model": gov_name, "peak_pressure_pa": peak,
             "applicable": _APPLICABLE[gas_ok, peak_gen is not None]}
@@ -3304,7 +3306,7 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
         fill_over = bool(cols["fill_over"][k])
         limits = _LIMITS(*mass_limit, None if fill_over else _opt(cols["max_t"][k]),
                          _opt(cols["max_p"][k]) if by_pressure else None, float(cols["target"][k]),
-                         _screen.limits_note(True, fill_over), *lim_extra)
+                         _screen.limits_note(True, fill_over, case), *lim_extra)
         fill_rho_molar = rho
         rho_mass = rho * gas.molar_mass
         mass = rho_fill_mass * case.water_capacity_m3

@@ -815,7 +815,7 @@ def _limits(case: Case, models: list[Model], t_fill: float, t_peak: float) -> di
     fill_over = case.fill_temperature_k is not None and _fill_over_rating(case, real, t_fill)
     if fill_over:  # a temperature limit below the fill temperature would contradict the fill: say so instead
         max_t = []
-    note = limits_note(bool(real), fill_over)
+    note = limits_note(bool(real), fill_over, case)
     return {
         **mass_limit,
         "max_gas_temperature_k": min(max_t) if max_t else None,
@@ -825,13 +825,33 @@ def _limits(case: Case, models: list[Model], t_fill: float, t_peak: float) -> di
     }
 
 
-def limits_note(any_real_model: bool, fill_over: bool) -> str:
-    """How the limits were found, in words; where the fill itself is at or above the rating, that too."""
+def limits_note(any_real_model: bool, fill_over: bool, case: Case | None = None) -> str:
+    """How the limits were found, in words; where the fill itself is at or above the rating, that too; and what
+    they leave out for `case` (:func:`limits_caveat`)."""
     if not any_real_model:
         return "no real-gas model applies, so no limit is given"
+    caveat = (limits_caveat(getattr(case, "tolerance", None) is not None, case.relief_set_pressure_pa,
+                            case.rated_pressure_pa) if case is not None else None)
     return ("solved on each applicable real-gas model; the lowest (most conservative) value is given"
             + ("; the fill itself is at or above the rated pressure, so no gas temperature keeps the vessel "
-               "within its rating: the fill must be reduced" if fill_over else ""))
+               "within its rating: the fill must be reduced" if fill_over else "")
+            + (f"; {caveat[0].lower()}{caveat[1:]}" if caveat else ""))
+
+
+def limits_caveat(tolerances: bool, relief: float | None, rated: float) -> str | None:
+    """What the limits leave out, in one sentence (None where nothing): they are solved at the nominal readings
+    and against the rated pressure [Pa], so input tolerances (`tolerances`) and a relief set pressure [Pa] below
+    the rating come on top of them (the verdict counts both)."""
+    parts = []
+    if tolerances:
+        parts.append("at the nominal readings: the reading tolerances are not taken off")
+    if relief is not None and relief < rated:
+        parts.append("against the rated pressure: the relief set pressure, which is lower, is not taken into "
+                     "account")
+    if not parts:
+        return None
+    return ("These limits are " + " and ".join(parts) + ", so a fill or temperature at a limit can still fail "
+            "the screening; screen the vessel again at the value chosen.")
 
 
 def _fill_over_rating(case: Case, real: list[Model], t_fill: float) -> bool:
@@ -952,9 +972,15 @@ _WORD = {v: v.value for v in Verdict}
 _SEVERITY_OF = {v: v.severity for v in Verdict}
 
 
+#: The reason given where the fill itself is at or above the rated pressure (beside the peak's own).
+FILL_OVER_REASON = ("The fill itself is at or above the rated pressure: no gas temperature keeps the vessel within "
+                    "its rating, so the fill must be reduced.")
+
+
 def decide(*, peak: float | None, rated: float, relief: float | None, atm: float, required_margin: float,
            any_real_model: bool, out_of_scope_reason: str | None, liquid_full_reason: str | None = None,
-           filling_ratio_reason: str | None = None) -> tuple[str, list[str], float | None, float | None]:
+           filling_ratio_reason: str | None = None, fill_over: bool = False
+           ) -> tuple[str, list[str], float | None, float | None]:
     """Verdict, reasons, margin against the rated pressure and against the relief set pressure.
 
     margin = 1 − peak_gauge / rated_gauge, relief margin likewise against the relief set pressure.
@@ -962,6 +988,8 @@ def decide(*, peak: float | None, rated: float, relief: float | None, atm: float
     the required one, the relief margin below the required one (the relief device may open), or the vessel
     liquid-full (or liquid-like) at the worst case; `within`: none of these; `out-of-scope`: no applicable
     real-gas model, or a reason given by the caller. The reasons that decide the verdict come first.
+    `fill_over`: the fill itself is at or above the rated pressure on an applicable real-gas model (its peak is
+    then at or above the rating too): said as a reason of its own, since no limit on the temperature helps.
     """
     if out_of_scope_reason or not any_real_model or peak is None:
         return Verdict.OUT_OF_SCOPE.value, [out_of_scope_reason or "No real-gas model applies to this vessel, so it cannot "
@@ -976,6 +1004,8 @@ def decide(*, peak: float | None, rated: float, relief: float | None, atm: float
         m, req = percent_pair(margin, required_margin)
         findings.append((Verdict.LOW_MARGIN, f"The peak pressure stays within the rating but the margin, {m}, is below "
                                        f"the required {req}."))
+    if fill_over:
+        findings.append((Verdict.LOW_MARGIN, FILL_OVER_REASON))
     if filling_ratio_reason:
         findings.append((Verdict.OVER, filling_ratio_reason))
     if relief is not None and peak > relief:
@@ -1244,7 +1274,8 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
     verdict, reasons, margin, relief_margin = decide(
         peak=peak, rated=case.rated_pressure_pa, relief=case.relief_set_pressure_pa, atm=atm,
         required_margin=case.required_margin, any_real_model=bool(real), out_of_scope_reason=out_of_scope,
-        liquid_full_reason=liquid_full_reason(liquid_full, corners_liquid_full), filling_ratio_reason=ratio_reason)
+        liquid_full_reason=liquid_full_reason(liquid_full, corners_liquid_full), filling_ratio_reason=ratio_reason,
+        fill_over=bool(real) and case.fill_temperature_k is not None and _fill_over_rating(case, real, t_fill))
 
     limits = _limits(case, models, t_fill, t_peak) if real else {
         "max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,

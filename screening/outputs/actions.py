@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from screening.outputs.text import fmt_pressure, fmt_temperature, visible
 from screening.result import Result
+from screening.screen import limits_caveat
 from screening.units import format_quantity
 
 
@@ -66,6 +67,7 @@ def action_line(result: Result) -> str | None:
     line = "To pass: " + "; or ".join(parts) + "."
     if keep_below:
         line += " In any case " + keep_below + "."
-    if result.tolerance is not None and result.tolerance.bounding_peak_pressure_pa is not None:
-        line += " (Limits at the nominal readings; the reading tolerances come on top.)"
+    caveat = limits_caveat(result.tolerance is not None, result.relief_set_pressure_pa, result.rated_pressure_pa)
+    if caveat:
+        line += " " + caveat
     return line

@@ -25,6 +25,7 @@ from screening.outputs.text import (
     visible,
 )
 from screening.result import Result, ScenarioSummary
+from screening.screen import limits_caveat
 from screening.units import format_percent, format_quantity, pressure_in
 
 _VERDICT_WORDS = {
@@ -175,6 +176,9 @@ def format_summary(result: Result, width: int | None = None) -> str:
     t_full = lim.liquid_full_temperature_k
     if t_full is not None and t_full >= fill.temperature_k:
         w.add(f"liquid-full temperature: {T(t_full)}", "  ")
+    caveat = limits_caveat(result.tolerance is not None, result.relief_set_pressure_pa, result.rated_pressure_pa)
+    if caveat:
+        w.add(caveat, "  ", "  ")
     if result.warnings:
         w.blank()
         w.add("Warnings")
