@@ -29,14 +29,15 @@ import numpy as np
 from screening import parallel
 from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
 from screening.outputs.actions import action_line
+from screening.outputs.listing import ranked
 from screening.outputs.plot import drawable_models, plot_png, png_data_uri, svg_data_uri
 from screening.outputs.report import (
-    MODEL_TITLES,
     VERDICTS,
     ReportRenderError,
     _environment,
     _make_fetcher,
     _source_date_epoch,
+    model_title,
     templates_dir,
 )
 from screening.outputs.text import fmt_pressure, reasons_shown, visible
@@ -86,7 +87,7 @@ def _margin_chart(results: list[dict]) -> str:
             ax.text(0.5, 0.5, "no screened vessel has a margin", ha="center", va="center", transform=ax.transAxes)
             ax.set_axis_off()
         elif len(rows) <= BAR_CHART_MAX:
-            rows = sorted(rows, key=lambda r: r["margin_fraction"])
+            rows = ranked(rows)         # the listing's order: by severity, then by margin
             m = np.array([100 * r["margin_fraction"] for r in rows])
             req = np.array([100 * (r.get("required_margin_fraction") or 0.0) for r in rows])
             hatch = {"over": "xxxx", "low-margin": "////", "within": ""}
@@ -145,11 +146,11 @@ def _detail(r: Result | dict, location: str = "") -> dict:
         ("Rated pressure", P(r.rated_pressure_pa)),
         ("Margin to rated", format_percent(r.margin_fraction)),
         ("Required margin", format_percent(r.required_margin_fraction)),
-        ("Governing model", MODEL_TITLES.get(r.governing_model, "none")),
+        ("Governing model", model_title(r, r.governing_model)),
         ("Highest gas temperature", format_temperature(lim.max_gas_temperature_k, tu)),
         ("Highest fill pressure", P(lim.max_fill_pressure_pa)),
     ]
-    d["models"] = [(MODEL_TITLES[n], P(m.peak_pressure_pa) if m.applicable else "not applicable: " + m.note)
+    d["models"] = [(model_title(r, n), P(m.peak_pressure_pa) if m.applicable else "not applicable: " + m.note)
                    for n, m in r.models.items()]
     # the curves come with the result (the batch computes them for the detail rows); without them the section
     # keeps its numbers and has no plot

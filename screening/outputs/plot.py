@@ -42,6 +42,15 @@ MODEL_STYLE = {
     "ideal": dict(linestyle=":", linewidth=1.6, marker="^", label="Ideal gas"),
 }
 MODEL_ORDER = ("reference", "generalized", "ideal")
+#: The generalized model's legend name where it is the quantum-gas Soave–Redlich–Kwong model (its ``method``).
+SRK_LABEL = "Generalized (SRK, quantum-gas constants)"
+
+
+def model_label(result: Result, name: str) -> str:
+    """The legend name of model `name` in `result`: the generalized model's by the equation it used."""
+    if name == "generalized" and result.models["generalized"].method:
+        return SRK_LABEL
+    return MODEL_STYLE[name]["label"]
 
 _RC = {
     "svg.hashsalt": "screening-report",
@@ -320,10 +329,10 @@ def plot_svg(result: Result, png_dpi: int | None = None, return_figure: bool = F
                     xs.append(T(t))
                     ys.append(P(p))
             style = MODEL_STYLE[name]
-            names = [MODEL_STYLE[n]["label"] for n in group]
+            # the governing model named as such, not the group (the ideal gas governs nothing)
+            names = [model_label(result, n) + ("  \u2190 governs" if n == result.governing_model else "")
+                     for n in group]
             label = "\n= ".join(names) + ("\n(coincide)" if len(group) > 1 else "")
-            if result.governing_model in group:
-                label += "  \u2190 governs"
             ax.plot(xs, ys, color="black", linestyle=style["linestyle"], linewidth=style["linewidth"],
                     label=label, zorder=3)
             drawn.extend(group)
@@ -356,7 +365,8 @@ def plot_svg(result: Result, png_dpi: int | None = None, return_figure: bool = F
             xs = [T(t) for t, p in zip(temps_k, series) if _finite(t) and _finite(p)]
             ys = [P(p) for t, p in zip(temps_k, series) if _finite(t) and _finite(p)]
             if len(xs) >= 2:
-                name = MODEL_STYLE.get(str(curves.bounding_model), {}).get("label", "governing model")
+                name = (model_label(result, str(curves.bounding_model)) if str(curves.bounding_model) in MODEL_STYLE
+                        else "governing model")
                 ax.plot(xs, ys, color="black", linestyle=BOUNDING_STYLE, linewidth=1.1, zorder=3,
                         label=f"{name},\nfill at the bounding corner")
             lo, hi = tol["low_k"], tol["high_k"]

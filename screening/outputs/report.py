@@ -58,6 +58,11 @@ from screening.outputs.text import (
     reasons_shown,
     visible,
 )
+from screening.physics.eos.generalized import (
+    SRK_QUANTUM_PRESSURE_MAX,
+    SRK_QUANTUM_TEMPERATURE_RANGE,
+    SRK_QUANTUM_Z_ERROR,
+)
 from screening.result import ModelResult, Result
 from screening.units import format_percent, format_pressure, format_quantity, format_temperature, pressure_in
 
@@ -91,6 +96,37 @@ MODEL_TITLES = {
 MODEL_SHORT = {"ideal": "Ideal gas", "generalized": "Generalized (Lee\u2013Kesler)",
                "reference": "Reference EOS (Helmholtz)"}
 
+
+
+def model_title(result: Result, name: str | None, short: bool = False, none: str = "none") -> str:
+    """The title of model `name` in `result` (MODEL_SHORT's with `short`): the generalized model's by the
+    equation it used (the quantum-gas Soave–Redlich–Kwong model for pure hydrogen, helium and neon); `none`
+    where there is no such model."""
+    if not name or name not in MODEL_TITLES:
+        return none
+    model = result.models.get(name) if hasattr(result.models, "get") else None
+    if name == "generalized" and model is not None and model.method:
+        return "Generalized (quantum-gas SRK)" if short else f"Generalized compressibility ({model.method})"
+    return (MODEL_SHORT if short else MODEL_TITLES)[name]
+
+
+#: The validity text of the generalized model where it is the quantum-gas Soave–Redlich–Kwong model.
+SRK_VALIDITY = (
+    "Soave\u2013Redlich\u2013Kwong with the Gunn\u2013Chueh\u2013Prausnitz effective critical constants, for pure "
+    "hydrogen, helium and neon, whose reduced temperatures lie above the Lee\u2013Kesler tables: checked against "
+    "their reference equations of state from {lo:g} to {hi:g} \u00b0C up to {pmax:g} bar(a), |Z/Z_ref \u2212 1| at "
+    "most {errors}.").format(
+        lo=SRK_QUANTUM_TEMPERATURE_RANGE[0] - 273.15, hi=SRK_QUANTUM_TEMPERATURE_RANGE[1] - 273.15,
+        pmax=SRK_QUANTUM_PRESSURE_MAX / 1e5,
+        errors=", ".join(f"{100 * e:.1f} % ({g})" for g, e in SRK_QUANTUM_Z_ERROR.items()))
+
+#: References of the quantum-gas Soave–Redlich–Kwong model (with the Gunn–Chueh–Prausnitz citation of the gas
+#: library's sources).
+SRK_REFERENCES = (
+    "Soave, G. (1972). Equilibrium constants from a modified Redlich\u2013Kwong equation of state. "
+    "Chem. Eng. Sci. 27, 1197\u20131203. doi:10.1016/0009-2509(72)80096-4",
+)
+
 VALIDITY = {
     "ideal": (
         "For comparison only: close to real behaviour far from the critical point at low reduced pressure; at "
@@ -108,6 +144,22 @@ VALIDITY = {
     ),
 }
 
+def _references(result: Result) -> list[str]:
+    """The general references of `result`: Lee–Kesler (whose tables' range decides where the quantum-gas model
+    takes over), the quantum-gas Soave–Redlich–Kwong model with the Gunn–Chueh–Prausnitz constants where it was
+    used, Kay's rule for a mixture, then the rest."""
+    gen = result.models.get("generalized")
+    refs = [GENERAL_REFERENCES[0]]
+    if gen is not None and gen.method:
+        from screening.physics.gases import citations
+
+        refs += [*SRK_REFERENCES, citations()["gcp-quantum"]]
+    if len(result.gas.components) > 1:
+        refs.append(GENERAL_REFERENCES[1])
+    return refs + list(GENERAL_REFERENCES[2:])
+
+
+#: Lee–Kesler, Kay's rule (mixtures only), then the references of every result (:func:`_references`).
 GENERAL_REFERENCES = (
     "Lee, B.I., Kesler, M.G. (1975). A generalized thermodynamic correlation based on three-parameter "
     "corresponding states. AIChE Journal 21(3), 510\u2013527. doi:10.1002/aic.690210313",
@@ -488,7 +540,8 @@ def _tolerance_view(result: Result, f: _Fmt) -> dict | None:
             "; this should come close to the bounding peak, {} (not equal it: the isochores are not straight)."
         ).format(f.Pabs(tol.bounding_peak_pressure_pa))
     return dict(side=side, bands=bands, sensitivities=sensitivities, corners=corners, check=check,
-                bounding_model=MODEL_TITLES.get(str(result.curves.bounding_model if result.curves else None), ""))
+                bounding_model=model_title(result, str(result.curves.bounding_model if result.curves else None),
+                                           none=""))
 
 
 def _phase_view(result: Result, f: _Fmt, plot_uri: str | None) -> dict | None:
@@ -647,7 +700,7 @@ def _key_figures(result: Result, f: _Fmt) -> list[tuple[str, str]]:
             ("Margin to relief set", format_percent(result.relief_margin_fraction)),
         ]
     governing = result.governing_model
-    figures.append(("Governing model", MODEL_SHORT.get(governing, "none") if governing else "none"))
+    figures.append(("Governing model", model_title(result, governing, short=True)))
     return figures
 
 
@@ -757,10 +810,11 @@ def _model_view(result: Result, name: str, m: ModelResult, f: _Fmt) -> dict:
             check = _z_check(m.z_peak, rho, t_peak, peak)
     rows = [(label, value) for label, value in rows if _has_value(value)]
     return dict(
-        key=name, title=(f"Generalized compressibility ({m.method})" if m.method else MODEL_TITLES[name]),
+        key=name, title=model_title(result, name),
         applicable=bool(m.applicable),
         governs=(name == result.governing_model), peak=f.P(peak), peak_abs=mpa_abs(peak),
-        note=_text(m.note) or "", rows=rows, check=check, validity=VALIDITY[name],
+        note=_text(m.note) or "", rows=rows, check=check,
+        validity=SRK_VALIDITY if name == "generalized" and m.method else VALIDITY[name],
     )
 
 
@@ -914,7 +968,7 @@ def build_view(result: Result, case_text: str, report_date: _dt.date, plots: dic
         components=_component_rows(result), fill_rows=fill_rows,
         worst_case=dict(temperature=f"{f.T(t_peak)} = {f.TK(t_peak)}", basis=str(result.worst_case_basis)),
         models=model_views, comparison=comparison,
-        governing=dict(title=MODEL_TITLES.get(governing, "none") if governing else "none",
+        governing=dict(title=model_title(result, governing),
                        reason=str(result.governing_reason)),
         margin_rows=margin_rows, margin_check=margin_check,
         limit_rows=_limit_rows(result, f), limits_note=_text(result.limits.note) or "",
@@ -927,7 +981,8 @@ def build_view(result: Result, case_text: str, report_date: _dt.date, plots: dic
         R=str(R),
         caution=str(cautions.caution), short_caution=str(cautions.short_caution),
         assumptions=[str(a) for a in cautions.assumptions],
-        references=list(GENERAL_REFERENCES) + eos_refs,
+        references=_references(result) + eos_refs,
+        generalized_srk=bool(result.models.get("generalized") and result.models["generalized"].method),
         eos_refs_given=bool(eos_refs),
         case_text=visible(case_text, keep_newlines=True),
         case_columns=_case_columns(visible(case_text, keep_newlines=True)),
