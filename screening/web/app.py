@@ -26,6 +26,7 @@ from starlette.staticfiles import StaticFiles
 
 from screening import __version__, cautions
 from screening.errors import InputError
+from screening.outputs.listing import ORDER
 from screening.web import batch_outputs, form
 from screening.web.runner import Runner
 from screening.web.security import CSP_SVG, LOOPBACK_NAMES, Guard, TooLarge, too_large_page
@@ -36,7 +37,8 @@ FORM_LIMIT = 1_000_000
 INVENTORY_LIMIT = 64_000_000
 #: Vessels per page of the inventory's listing.
 PAGE_ROWS = 50
-VERDICT_ORDER = ("input-error", "out-of-scope", "over", "low-margin", "within")
+#: The counts' order: the listing's, worst first (screening.outputs.listing.ORDER).
+VERDICT_ORDER = ORDER
 #: Words for the verdict codes the inventory counts (the report's words for the four of a vessel).
 INPUT_ERROR_WORDS = "Could not be read"
 
@@ -291,8 +293,9 @@ def gas_row(g, cites: dict) -> dict:
         models = ["none: a dissolved gas is outside the method"]
     else:
         models = ["ideal gas (for comparison)",
-                  "Lee\u2013Kesler" + (" with the quantum-gas correction" if g.quantum else "")
-                  + ", single-phase gas within its range",
+                  ("Soave\u2013Redlich\u2013Kwong with the Gunn\u2013Chueh\u2013Prausnitz quantum-gas constants "
+                   "(above the Lee\u2013Kesler tables at every cylinder temperature)" if g.quantum else
+                   "Lee\u2013Kesler, single-phase gas within its range"),
                   f"reference equation of state ({g.coolprop_name})" if g.coolprop_name
                   else "no reference equation of state"]
     return dict(name=g.name, aliases=list(g.aliases), formula=g.formula, cas=g.cas,
