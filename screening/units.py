@@ -410,6 +410,8 @@ def _parse(text: object, kind: str, pressure_basis: str | None, where: dict) -> 
     if kind == "fraction" and isinstance(text, (int, float)) and not isinstance(text, bool):
         text = repr(float(text))
     number, unit_text = _split(text, where={"expected": expected, **where})
+    if not unit_text and kind != "fraction":
+        raise InputError("a number without its unit", given=str(text), expected=expected, **where)
     spec = _UNITS.get(unit_text)
     if spec is None:
         raise InputError(f"unit '{unit_text}' is not one this tool reads", given=str(text), expected=expected,

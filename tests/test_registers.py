@@ -92,6 +92,21 @@ def test_decimal_commas_where_the_separator_is_a_semicolon(tmp_path):
     assert rows2[0]["verdict"] == "within"
 
 
+def test_a_register_rows_messages_speak_of_its_cells_and_columns(tmp_path):
+    # messages of a register row name its cells and columns, not a case file's keys and tables: an empty cell,
+    # a fill pressure without its temperature, a decimal comma in a comma-separated file
+    text = ("id,gas,water_capacity [L],rated_pressure [bar(g)],fill_pressure [bar(g)],fill_temperature [degC],"
+            'ambient_max [degC]\nA,nitrogen,50,,200,15,45\nB,nitrogen,50,300,200,,45\nC,nitrogen,50,300,"200,5",15,45\n')
+    _, rows = batch(tmp_path, write(tmp_path, text))
+    assert [r["verdict"] for r in rows] == ["input-error"] * 3
+    a, b, c = (r["reasons"] for r in rows)
+    assert "the cell is empty" in a and "rated_pressure [bar(g)]" in a
+    assert "fill temperature in this row" in b
+    assert "decimal comma" in c and "--decimal ," in c
+    for reason in (a, b, c):
+        assert "[vessel]" not in reason and "[fill]" not in reason and "table)" not in reason
+
+
 def test_a_bare_number_without_a_unit_says_what_is_missing(tmp_path):
     text = HEAD.replace("water_capacity", "water_capacity") + "A,nitrogen,50,300 bar(g),200 bar(g),15 degC,45 degC\n"
     _, rows = batch(tmp_path, write(tmp_path, text))

@@ -187,3 +187,11 @@ def test_a_text_read_again_gives_the_same_reading_and_a_refused_one_names_its_ow
     with pytest.raises(InputError) as err:     # refused, then refused again with its own file
         parse("200 bar", "pressure", file="second.toml", key="fill.pressure")
     assert err.value.file == "second.toml" and "gauge or absolute" in str(err.value)
+
+
+def test_a_bare_number_is_refused_as_a_number_without_its_unit():
+    # a case file's `pressure = 200` (a TOML number, no unit): said as such, with an example of what is read
+    with pytest.raises(InputError) as err:
+        parse(200, "pressure", key="fill.pressure")
+    assert err.value.message == "a number without its unit" and "200 bar(g)" in err.value.expected
+    assert parse("0.1", "fraction").si() == 0.1       # a fraction needs none

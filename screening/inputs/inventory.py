@@ -531,5 +531,32 @@ def locate(exc: InputError, inv: Inventory, row_number: int, defaults: dict | No
                     column = f"{name} (from the defaults file {src})"
                 else:
                     column = f"{name} (no such column, and no default)"
-    return InputError(exc.message, file=inv.source, row=row_number, column=column,
-                      key=None if column else key, given=exc.given, expected=exc.expected)
+    message, expected = _register_words(exc, inv, column)
+    return InputError(message, file=inv.source, row=row_number, column=column,
+                      key=None if column else key, given=exc.given, expected=expected)
+
+
+#: A number written with a decimal comma, as a cell of a comma-separated file holds it ("200,5").
+_COMMA_NUMBER = re.compile(r"^\s*[+-]?\d+,\d+\b")
+
+
+def _register_words(exc: InputError, inv: Inventory, column: str | None) -> tuple[str, str | None]:
+    """The message and the expectation of an error of the case reader in the words of a register (its cells,
+    columns and headers rather than a case file's keys and tables)."""
+    message, expected = exc.message, exc.expected
+    in_column = column is not None and not column.endswith(")")      # a column of the register itself
+    if message == "required key is missing":
+        if in_column:
+            return "the cell is empty", "a value in this column, or a default for it in a defaults file"
+        return "a value the screening needs is missing", "a column for it, or a default in a defaults file"
+    if message.startswith("a fill pressure needs the temperature"):
+        return message, "the fill temperature in this row, e.g. 15 in the header's unit, or '15 degC'"
+    if message == "a pressure must say whether it is gauge or absolute":
+        return message, ("a unit with its basis, e.g. '200 bar(g)' or '21 MPa(a)', in the cell or in the header "
+                         "('fill_pressure [bar(g)]'), or pressure_basis in a defaults file")
+    if (message.startswith("unit '") and inv.delimiter == "," and isinstance(exc.given, str)
+            and _COMMA_NUMBER.match(exc.given)):
+        return ("a decimal comma in a comma-separated file",
+                "a decimal point ('200.5'), or the file saved with ';' as its separator, or the cell quoted "
+                "('\"200,5\"') with --decimal ,")
+    return message, expected
