@@ -26,3 +26,19 @@ ASSUMPTIONS = (
     "The vessel's own strength, corrosion, damage and fatigue are not assessed.",
     "The fill record (gas, water capacity, fill pressure and temperature or fill mass) is correct.",
 )
+
+
+def limits_caveat(tolerances: bool, relief: float | None, rated: float) -> str | None:
+    """What the limits leave out, in one sentence (None where nothing): they are solved at the nominal readings
+    and against the rated pressure [Pa], so input tolerances (`tolerances`) and a relief set pressure [Pa] below
+    the rating come on top of them (the verdict counts both)."""
+    parts = []
+    if tolerances:
+        parts.append("at the nominal readings: the reading tolerances are not taken off")
+    if relief is not None and relief < rated:
+        parts.append("against the rated pressure: the relief set pressure, which is lower, is not taken into "
+                     "account")
+    if not parts:
+        return None
+    return ("These limits are " + " and ".join(parts) + ", so a fill or temperature at a limit can still fail "
+            "the screening; screen the vessel again at the value chosen.")

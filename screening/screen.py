@@ -15,7 +15,7 @@ from typing import Callable, Iterable
 import numpy as np
 
 from screening import __version__
-from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
+from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION, limits_caveat
 from screening.errors import InputError, NotApplicable
 from screening.inputs.case import Case, Exposure
 from screening.physics.eos.generalized import (
@@ -836,22 +836,6 @@ def limits_note(any_real_model: bool, fill_over: bool, case: Case | None = None)
             + ("; the fill itself is at or above the rated pressure, so no gas temperature keeps the vessel "
                "within its rating: the fill must be reduced" if fill_over else "")
             + (f"; {caveat[0].lower()}{caveat[1:]}" if caveat else ""))
-
-
-def limits_caveat(tolerances: bool, relief: float | None, rated: float) -> str | None:
-    """What the limits leave out, in one sentence (None where nothing): they are solved at the nominal readings
-    and against the rated pressure [Pa], so input tolerances (`tolerances`) and a relief set pressure [Pa] below
-    the rating come on top of them (the verdict counts both)."""
-    parts = []
-    if tolerances:
-        parts.append("at the nominal readings: the reading tolerances are not taken off")
-    if relief is not None and relief < rated:
-        parts.append("against the rated pressure: the relief set pressure, which is lower, is not taken into "
-                     "account")
-    if not parts:
-        return None
-    return ("These limits are " + " and ".join(parts) + ", so a fill or temperature at a limit can still fail "
-            "the screening; screen the vessel again at the value chosen.")
 
 
 def _fill_over_rating(case: Case, real: list[Model], t_fill: float) -> bool:

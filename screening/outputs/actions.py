@@ -9,9 +9,9 @@ sentence from :func:`action_line`.
 
 from __future__ import annotations
 
+from screening.cautions import limits_caveat
 from screening.outputs.text import fmt_pressure, fmt_temperature, visible
 from screening.result import Result
-from screening.screen import limits_caveat
 from screening.units import format_quantity
 
 

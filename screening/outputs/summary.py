@@ -13,6 +13,7 @@ import re
 import shutil
 import textwrap
 
+from screening.cautions import limits_caveat
 from screening.outputs.actions import action_line
 from screening.outputs.text import (
     fmt_pressure,
@@ -25,7 +26,6 @@ from screening.outputs.text import (
     visible,
 )
 from screening.result import Result, ScenarioSummary
-from screening.screen import limits_caveat
 from screening.units import format_percent, format_quantity, pressure_in
 
 _VERDICT_WORDS = {
