@@ -398,3 +398,55 @@ def test_the_inventory_page_writes_an_xlsx_and_a_batch_pdf_that_verifies(tmp_pat
     assert "summary" in book.sheetnames
     ok, message = verify_report(str(tmp_path / "inventory.report.pdf"), run_batch=run_batch)
     assert ok, message
+
+
+def _descendants(pid: int) -> set[int]:
+    """The processes started by `pid`, and theirs (Linux /proc)."""
+    found: set[int] = set()
+    todo = [pid]
+    while todo:
+        p = todo.pop()
+        for task in Path(f"/proc/{p}/task").glob("*"):
+            try:
+                kids = {int(x) for x in (task / "children").read_text().split()}
+            except OSError:
+                continue
+            todo += list(kids - found)
+            found |= kids
+    return found
+
+
+@pytest.mark.skipif(not Path("/proc/self/task").exists(), reason="needs Linux /proc to list a process's children")
+def test_a_termination_signal_stops_the_server_and_its_worker_processes():
+    # SIGTERM (a service manager's stop, `kill`) stops the page as Ctrl-C does: exit 0, "stopped", and no
+    # worker process of its pools is left running
+    import signal
+    import socket
+    import subprocess
+    import sys
+
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        port = s.getsockname()[1]
+    proc = subprocess.Popen([sys.executable, "-m", "screening.cli", "serve", "--port", str(port)], cwd=ROOT,
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+    try:
+        line = proc.stdout.readline()
+        assert f"http://127.0.0.1:{port}/" in line, line + proc.stderr.read()
+        deadline = time.monotonic() + 30
+        kids = _descendants(proc.pid)
+        while not kids and time.monotonic() < deadline:
+            time.sleep(0.2)
+            kids = _descendants(proc.pid)
+        assert kids                             # the warm pools' processes
+        proc.send_signal(signal.SIGTERM)
+        out, err = proc.communicate(timeout=60)
+    finally:
+        if proc.poll() is None:
+            proc.kill()
+    assert proc.returncode == 0, err
+    assert "stopped" in out and "Traceback" not in err
+    deadline = time.monotonic() + 10
+    while time.monotonic() < deadline and any(Path(f"/proc/{k}").exists() for k in kids):
+        time.sleep(0.2)
+    assert not [k for k in kids if Path(f"/proc/{k}").exists()]

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import ipaddress
+import signal
 import sys
 import threading
 import time
@@ -24,6 +25,11 @@ def is_loopback(host: str) -> bool:
 def url_of(host: str, port: int) -> str:
     shown = f"[{host}]" if ":" in host else host
     return f"http://{shown}:{port}/"
+
+
+def _interrupted(signum, frame) -> None:
+    """A termination signal taken as Ctrl-C (:func:`serve`)."""
+    raise KeyboardInterrupt
 
 
 def serve(host: str = DEFAULT_HOST, port: int = DEFAULT_PORT, open_browser: bool = False, out=None) -> int:
@@ -56,6 +62,11 @@ def serve(host: str = DEFAULT_HOST, port: int = DEFAULT_PORT, open_browser: bool
                 webbrowser.open(url)
 
     threading.Thread(target=announce, daemon=True).start()
+    # A termination signal stops the page as Ctrl-C does: uvicorn shuts down on it, then raises it again once
+    # it has restored the handler found here; the default one would end the process before the worker pools
+    # are closed (leaving their processes behind), this one lets `finally` close them.
+    previous = (signal.signal(signal.SIGTERM, _interrupted)
+                if threading.current_thread() is threading.main_thread() else None)
     try:
         server.run()
     except KeyboardInterrupt:
@@ -64,6 +75,8 @@ def serve(host: str = DEFAULT_HOST, port: int = DEFAULT_PORT, open_browser: bool
         pass
     finally:
         runner.close()
+        if previous is not None:
+            signal.signal(signal.SIGTERM, previous)
     if not server.started:
         print(f"screening serve: error: could not listen on {host}:{port} (is another program using the port? "
               "try another --port; is the address this computer's?)", file=sys.stderr)
