@@ -59,9 +59,18 @@ def action_line(result: Result) -> str | None:
     t_worst = result.worst_case_temperature_k
     keep_below = (f"keep the gas below {fmt_temperature(result, t_max)}, where it reaches the rated pressure"
                   if t_max is not None else None)
+    relief_below = result.relief_set_pressure_pa is not None and result.relief_set_pressure_pa < result.rated_pressure_pa
     if not parts:
         if keep_below and t_worst is not None and t_worst >= t_max:
             return "To pass: " + keep_below + "."
+        if result.tolerance is not None or relief_below:
+            # the limits do not count the tolerances or the relief setting (cautions.limits_caveat), which is
+            # what this vessel fails on: a lower fill helps, by how much the limits cannot say
+            what = " and ".join(w for w, on in (("the reading tolerances", result.tolerance is not None),
+                                                ("the relief set pressure, which is below the rating", relief_below))
+                                if on)
+            return ("To pass: lower the fill and screen the vessel again. Its limits, solved at the nominal readings "
+                    f"against the rated pressure, are above this fill; what it fails on is {what}.")
         return ("No limit of this screening removes the reason by itself; the reasons above say what must "
                 "change.")
     line = "To pass: " + "; or ".join(parts) + "."
