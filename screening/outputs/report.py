@@ -97,14 +97,13 @@ MODEL_SHORT = {"ideal": "Ideal gas", "generalized": "Generalized (Lee\u2013Kesle
                "reference": "Reference EOS (Helmholtz)"}
 
 
-
 def model_title(result: Result, name: str | None, short: bool = False, none: str = "none") -> str:
     """The title of model `name` in `result` (MODEL_SHORT's with `short`): the generalized model's by the
     equation it used (the quantum-gas Soave–Redlich–Kwong model for pure hydrogen, helium and neon); `none`
     where there is no such model."""
     if not name or name not in MODEL_TITLES:
         return none
-    model = result.models.get(name) if hasattr(result.models, "get") else None
+    model = result.models.get(name)
     if name == "generalized" and model is not None and model.method:
         return "Generalized (quantum-gas SRK)" if short else f"Generalized compressibility ({model.method})"
     return (MODEL_SHORT if short else MODEL_TITLES)[name]
@@ -143,6 +142,7 @@ VALIDITY = {
         "and pressure range its authors state; where it applies, the most accurate of the three."
     ),
 }
+
 
 def _references(result: Result) -> list[str]:
     """The general references of `result`: Lee–Kesler (whose tables' range decides where the quantum-gas model
