@@ -28,17 +28,16 @@ ASSUMPTIONS = (
 )
 
 
-def limits_caveat(tolerances: bool, relief: float | None, rated: float) -> str | None:
-    """What the limits leave out, in one sentence (None where nothing): they are solved at the nominal readings
-    and against the rated pressure [Pa], so input tolerances (`tolerances`) and a relief set pressure [Pa] below
-    the rating come on top of them (the verdict counts both)."""
-    parts = []
-    if tolerances:
-        parts.append("at the nominal readings: the reading tolerances are not taken off")
-    if relief is not None and relief < rated:
-        parts.append("against the rated pressure: the relief set pressure, which is lower, is not taken into "
-                     "account")
-    if not parts:
+def ceiling_name(relief: float | None, rated: float) -> str:
+    """What the limits are solved against, in words: the rated pressure [Pa], or the relief set pressure [Pa]
+    where it is lower (above it the relief device opens; screen.limit_ceiling)."""
+    return "the relief set pressure" if relief is not None and relief < rated else "the rated pressure"
+
+
+def limits_caveat(tolerances: bool) -> str | None:
+    """What the limits leave out, in one sentence (None where nothing): they are solved at the nominal readings,
+    so input tolerances (`tolerances`) come on top of them (the verdict counts them)."""
+    if not tolerances:
         return None
-    return ("These limits are " + " and ".join(parts) + ", so a fill or temperature at a limit can still fail "
-            "the screening; screen the vessel again at the value chosen.")
+    return ("These limits are at the nominal readings: the reading tolerances are not taken off, so a fill or "
+            "temperature at a limit can still fail the screening; screen the vessel again at the value chosen.")

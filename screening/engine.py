@@ -774,6 +774,13 @@ class Rows:
     rated: np.ndarray
     atm: np.ndarray
     margin_req: np.ndarray
+    relief: np.ndarray
+
+    @property
+    def ceiling(self) -> np.ndarray:
+        """The pressure [Pa] the limits solve to: the rated pressure, or the relief set pressure where that is
+        lower (screen.limit_ceiling); NaN relief: none."""
+        return np.fmin(self.rated, self.relief)
 
     @staticmethod
     def of_cases(cases: list[Case], sun: list[SunRow | None] | None = None) -> "Rows":
@@ -790,22 +797,23 @@ class Rows:
                               else s.gas_temperature_k for s, u in zip(sc, sun)], dtype=float),
                     np.array([c.rated_pressure_pa for c in cases], dtype=float),
                     np.array([c.site.atmospheric_pressure_pa for c in cases], dtype=float),
-                    np.array([c.required_margin for c in cases], dtype=float))
+                    np.array([c.required_margin for c in cases], dtype=float),
+                    np.array([nan if c.relief_set_pressure_pa is None else c.relief_set_pressure_pa for c in cases],
+                             dtype=float))
 
     def take(self, idx: np.ndarray) -> "Rows":
         return Rows(self.gas, *(getattr(self, k)[idx] for k in ("p_fill", "t_fill", "ambient_max", "gas_temperature",
-                                                               "rated", "atm", "margin_req")))
+                                                               "rated", "atm", "margin_req", "relief")))
 
 
 @dataclass
 class PlainPart(Rows):
-    """Rows of one gas from an inventory's plain rows, with what their verdicts need besides: the relief
-    set pressure [Pa] absolute and the maximum filling ratio [kg/m3] (NaN: none); for a liquefied gas, the
+    """Rows of one gas from an inventory's plain rows, with what their verdicts need besides: the maximum
+    filling ratio [kg/m3] (NaN: none); for a liquefied gas, the
     fill mass per water capacity [kg/m3] (NaN where the fill is given by pressure, whose ``p_fill`` is NaN
     where it is given by mass; None: every row by pressure); ``liquefied``: the part runs on
     :func:`_liquefied_columns` (a liquefied gas, or a permanent gas filled by mass)."""
 
-    relief: np.ndarray
     ratio: np.ndarray
     rho_mass: np.ndarray | None = None
     liquefied: bool = False
@@ -943,6 +951,26 @@ def _generalized_columns(gas: Mixture, p_fill: np.ndarray, t_fill: np.ndarray, t
                 _omf=omf, _rho_lk=rho_lk, _kq=kq)
 
 
+def _generalized_target_density(gas: Mixture, out: dict, rows: np.ndarray) -> np.ndarray:
+    """The generalized model's molar density [mol/m3] at each row's target pressure and worst-case temperature
+    (screen.generalized_density), for rows `rows` where the model applies (``lk_ok``; the quantum-gas SRK model
+    where ``q_srk``); NaN where it does not apply or does not apply at that state."""
+    out_rho = np.full(rows.size, np.nan)
+    target, t_peak = out["target"][rows], out["t_peak"][rows]
+    lk = out["lk_ok"][rows] & ~out["q_srk"][rows]
+    if lk.any():
+        r = rows[lk]
+        st = lee_kesler_density(target[lk], t_peak[lk], out["tcp"][r], out["pcp"][r], out["omp"][r])
+        out_rho[lk] = np.where(st.valid, st.molar_density, np.nan)
+    q = out["q_srk"][rows]
+    if q.any():
+        g = gas.components[0]
+        st = srk_quantum_density(target[q], t_peak[q], g.classical_critical_temperature,
+                                 g.classical_critical_pressure, g.molar_mass)
+        out_rho[q] = np.where(st.valid, st.molar_density, np.nan)
+    return out_rho
+
+
 #: Columns a group computes per row (floats; NaN for none) besides the masks.
 _FLOAT_COLUMNS = ("t_peak", "rho_molar", "peak_ref", "rho_ideal", "peak_ideal", "lk_rho_fill", "lk_z_fill",
                   "lk_tr_fill", "lk_pr_fill", "lk_peak", "lk_z_peak", "lk_tr_peak", "lk_pr_peak", "tcf", "pcf",
@@ -1001,7 +1029,7 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
     The root is the same to the solve's tolerance (_SECANT_RTOL), far inside the solve tolerance of the limits
     (screen.P_TOL)."""
     n = rows.p_fill.size
-    rated, t_fill, t_peak, target = rows.rated, rows.t_fill, out["t_peak"], out["target"]
+    ceiling, t_fill, t_peak, target = rows.ceiling, rows.t_fill, out["t_peak"], out["target"]
     by_mass = out["by_mass"]
     lk_ok, q_srk, rho_lk, kq = gen["lk_ok"], gen["q_srk"], gen["_rho_lk"], gen["_kq"]
     tcf, pcf, omf, tcp, pcp, omp = (gen[k] for k in ("tcf", "pcf", "_omf", "tcp", "pcp", "omp"))
@@ -1015,7 +1043,7 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
         def iso_q(t, ix):
             r = rows_q[ix]
             st = srk_quantum_pressure(rho_lk[r], t, *kq)
-            return np.where(st.valid, st.pressure - rated[r], np.nan)
+            return np.where(st.valid, st.pressure - ceiling[r], np.nan)
 
         rows_qp = rows_q[~by_mass[rows_q]]      # a fill by mass has no fill-pressure limit
 
@@ -1038,15 +1066,15 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
         i = rows_lk
 
         def f_t(t, ix):
-            rho, valid = lee_kesler_density_valid(rated[ix], t, tcp[ix], pcp[ix], omp[ix])
+            rho, valid = lee_kesler_density_valid(ceiling[ix], t, tcp[ix], pcp[ix], omp[ix])
             return np.where(valid, rho / rho_lk[ix] - 1.0, np.nan)
 
-        # generalized: T on the isochore at the rated pressure (density at the rated pressure = fill density)
-        reach = rated[i] / pcp[i] <= 10.0
-        x0 = np.minimum(t_peak[i] * np.clip(rated[i] / peak_lk[i], 0.2, 5.0), 3.9 * tcp[i])
+        # generalized: T on the isochore at the ceiling pressure (density at the ceiling pressure = fill density)
+        reach = ceiling[i] / pcp[i] <= 10.0
+        x0 = np.minimum(t_peak[i] * np.clip(ceiling[i] / peak_lk[i], 0.2, 5.0), 3.9 * tcp[i])
         one = None
         if vessels is not None and i.size > 1:
-            key = np.stack([vessels[i], rated[i], rho_lk[i], tcp[i], pcp[i], omp[i]], axis=1)
+            key = np.stack([vessels[i], ceiling[i], rho_lk[i], tcp[i], pcp[i], omp[i]], axis=1)
             _u, one, back = np.unique(key, axis=0, return_index=True, return_inverse=True)
             if one.size == i.size:
                 one = None
@@ -1061,20 +1089,20 @@ def _generalized_limits(rows: Rows, out: dict, gen: dict, fallback: np.ndarray, 
             def f(t, ix):
                 r = rows_[ix]
                 p, ok = lee_kesler_pressure_valid(rho_lk[r], t, tcp[r], pcp[r], omp[r])
-                return np.where(ok, p - rated[r], np.nan)
+                return np.where(ok, p - ceiling[r], np.nan)
             return f
 
         root = _settle_edges(isochore_over_rating(i), root, reach & conv, t_lo[i], t_hi[i])
         has = reach & conv & (root >= t_lo[i]) & (root <= t_hi[i])
         a, b = _linspace_bracket(t_lo[i], t_hi[i], root)
-        edge = has & ((b / tcp[i] > _LK_TR_EDGE) | (rated[i] * b / root / pcp[i] > _LK_PR_EDGE))
+        edge = has & ((b / tcp[i] > _LK_TR_EDGE) | (ceiling[i] * b / root / pcp[i] > _LK_PR_EDGE))
         # a root beyond the range or a bracket at its edge: the scan decides, as screen._limits scans
-        unsure = (~reach & (rated[i] / pcp[i] < 10.5)) | edge | (reach & ~conv)
+        unsure = (~reach & (ceiling[i] / pcp[i] < 10.5)) | edge | (reach & ~conv)
         unsure |= reach & ~has & conv & (root > t_lo[i]) & (b / tcp[i] > _LK_TR_EDGE)
         t_lk[i[has & ~unsure]] = root[has & ~unsure]
         # the rating above the highest pressure of the Lee–Kesler range: no state the model gives reaches it, so
         # the scan finds no root (NaN stays)
-        unsure &= ~_above_lk_pressures(rated[i], pcp[i])
+        unsure &= ~_above_lk_pressures(ceiling[i], pcp[i])
         u = i[unsure]
         if u.size:     # the scan interval that holds the secant's root decides where it can; else the scan
             got, settled = _root_in_interval(isochore_over_rating(u), t_lo[u], t_hi[u],
@@ -1127,7 +1155,7 @@ def _reference_limits(rows: Rows, fluid: ReferenceFluid, pure: bool, out: dict, 
     lowest: the highest gas temperature (solved only where it can be below the generalized one), the highest
     fill pressure and the fill density whose peak is the target (screen._limits, screen._mass_limit)."""
     n = rows.p_fill.size
-    rated, t_fill, t_peak, target = rows.rated, rows.t_fill, out["t_peak"], out["target"]
+    ceiling, t_fill, t_peak, target = rows.ceiling, rows.t_fill, out["t_peak"], out["target"]
     rho_ref, peak_ref = out["rho_molar"], out["peak_ref"]
     # reference: max temperature, solved only where it can be below the generalized one
     live = np.flatnonzero(~fallback)
@@ -1140,15 +1168,15 @@ def _reference_limits(rows: Rows, fluid: ReferenceFluid, pure: bool, out: dict, 
             j = live[with_lk]
             pj, vj, _ = fluid.pressures(rho_ref[j], t_lk[j])
             fallback[j[~vj]] = True
-            below = vj & (pj < rated[j])           # reference still under the rating there: its root is higher
+            below = vj & (pj < ceiling[j])           # reference still under the rating there: its root is higher
             need = np.setdiff1d(live, j[below])
         need = need[~fallback[need]]
         if need.size:
             def f_ref(t, ix):
                 p, _v, _r = fluid.pressures(rho_ref[ix], t)
-                return p / rated[ix] - 1.0
+                return p / ceiling[ix] - 1.0
 
-            root, ok = _increasing_root(f_ref, need, t_lo[need], t_peak[need], peak_ref[need] / rated[need] - 1.0,
+            root, ok = _increasing_root(f_ref, need, t_lo[need], t_peak[need], peak_ref[need] / ceiling[need] - 1.0,
                                         t_hi[need], fluid.t_max)
             fallback[need[~ok]] = True
             t_ref[need[ok]] = root[ok]
@@ -1180,7 +1208,9 @@ def _reference_limits(rows: Rows, fluid: ReferenceFluid, pure: bool, out: dict, 
         live = np.flatnonzero(~fallback)
         r = rho_star_ref[live]
         inside = np.isfinite(r) & (r >= 1e-6 * rho_top) & (r <= 0.999 * rho_top)
-        out["mass_rho"][live[inside]] = r[inside]
+        # the generalized model's density at the target where it is lower (screen._mass_limit)
+        got = live[inside]
+        out["mass_rho"][got] = np.fmin(r[inside], _generalized_target_density(rows.gas, out, got))
 
 
 def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessels: np.ndarray | None = None,
@@ -1261,7 +1291,7 @@ def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessel
                                     ~(out["p_fill_ref"] < rated) | (lk_ok & (out["lk_p_fill"] >= rated)))
 
     # --- limits: targets and scan ranges as screen._limits has them
-    out["target"] = target = atm + (rated - atm) * (1.0 - margin_req)
+    out["target"] = target = atm + (rows.ceiling - atm) * (1.0 - margin_req)
     t_lo = np.minimum(t_fill, t_peak)
     t_hi = np.maximum(t_peak, t_fill) + 300.0
     p_lo = atm * 1.01
@@ -1588,7 +1618,7 @@ def _state_rows(gas: Mixture, states: list[tuple[float, float, float]]) -> Rows:
     screen.screened_temperature of it and the fill temperature, as at a tolerance corner (screen._corner_state)."""
     a = np.array(states, dtype=float).reshape(-1, 3)
     nan, one = np.full(a.shape[0], np.nan), np.ones(a.shape[0])
-    return Rows(gas, a[:, 0], a[:, 1], nan, a[:, 2], 2.0 * a[:, 0], one, 0.0 * one)
+    return Rows(gas, a[:, 0], a[:, 1], nan, a[:, 2], 2.0 * a[:, 0], one, 0.0 * one, nan)
 
 
 def _corner_peaks(gas: Mixture, states: list[tuple[float, float, float]], fills: dict | None = None) -> dict:
@@ -1674,7 +1704,8 @@ def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Re
         return out
     nominal = Rows(gas, *(np.array(v, dtype=float) for v in zip(*(
         (cases[i].fill_pressure_pa, cases[i].fill_temperature_k, math.nan, exposures[i][j].t_exposure,
-         cases[i].rated_pressure_pa, cases[i].site.atmospheric_pressure_pa, cases[i].required_margin)
+         cases[i].rated_pressure_pa, cases[i].site.atmospheric_pressure_pa, cases[i].required_margin,
+         math.nan if cases[i].relief_set_pressure_pa is None else cases[i].relief_set_pressure_pa)
         for i, j in keys))))
     # the fill states each table solves, for the tables after it (a vessel's nominal fill is among the states of
     # its tolerance analysis)
@@ -2272,7 +2303,7 @@ def _liquefied_corner_peaks(gas: Mixture, states: list[tuple]) -> dict:
         return {}
     a = np.array([(s[0], s[2], s[3]) for s in states], dtype=float).reshape(-1, 3)
     nan = np.full(a.shape[0], np.nan)
-    rows = LiquefiedRows(gas, nan, a[:, 1], nan, a[:, 2], nan, nan, nan, rho_mass=a[:, 0])
+    rows = LiquefiedRows(gas, nan, a[:, 1], nan, a[:, 2], nan, nan, nan, nan, rho_mass=a[:, 0])
     arrays = _liquefied_columns(rows, mass_limit=False, limits=False)
     stop = (arrays["fallback"] | arrays["refused"] | arrays["unreachable"]).tolist()
     cols = _Listed(arrays)
@@ -2294,13 +2325,13 @@ class LiquefiedRows(Rows):
         rho_mass = np.array([math.nan if c.fill_mass_kg is None else c.fill_mass_kg / c.water_capacity_m3
                              for c in cases], dtype=float)
         return LiquefiedRows(**{k: getattr(base, k) for k in ("gas", "p_fill", "t_fill", "ambient_max",
-                                                              "gas_temperature", "rated", "atm", "margin_req")},
+                                                              "gas_temperature", "rated", "atm", "margin_req", "relief")},
                              rho_mass=rho_mass)
 
     def take(self, idx: np.ndarray) -> "LiquefiedRows":
         base = Rows.take(self, idx)
         return LiquefiedRows(**{k: getattr(base, k) for k in ("gas", "p_fill", "t_fill", "ambient_max",
-                                                              "gas_temperature", "rated", "atm", "margin_req")},
+                                                              "gas_temperature", "rated", "atm", "margin_req", "relief")},
                              rho_mass=self.rho_mass[idx])
 
 
@@ -2497,13 +2528,13 @@ def _lk_limits(rows: Rows, out: dict, lk: np.ndarray, t_ref: np.ndarray, pk: np.
     given, so a row whose generalized function is below zero at the reference root needs no solve: both rise
     (the isochore with the temperature, the peak with the fill pressure), so any root of the generalized model
     lies above the reference's and the lower one is the reference's (its entry stays NaN)."""
-    t_fill, t_peak, rated, atm, target = rows.t_fill, out["t_peak"], rows.rated, rows.atm, out["target"]
+    t_fill, t_peak, ceiling, atm, target = rows.t_fill, out["t_peak"], rows.ceiling, rows.atm, out["target"]
     # a pure liquefied gas: the component's own constants, at fill as at the worst case
     tcf, pcf, omf, tcp, pcp, omp, rho_lk = (out[k] for k in ("tcf", "pcf", "omp", "tcp", "pcp", "omp", "lk_rho_fill"))
 
     def isochore(t, r):
         p, ok = lee_kesler_pressure_valid(rho_lk[r], t, tcp[r], pcp[r], omp[r])
-        return np.where(ok, p - rated[r], np.nan)
+        return np.where(ok, p - ceiling[r], np.nan)
 
     def fill(p, r):
         rho1, ok1 = lee_kesler_density_valid(p, t_fill[r], tcf[r], pcf[r], omf[r])
@@ -2511,11 +2542,11 @@ def _lk_limits(rows: Rows, out: dict, lk: np.ndarray, t_ref: np.ndarray, pk: np.
         return np.where(ok1 & ok2, p2 - target[r], np.nan)
 
     # a rating above every pressure of the model: the isochore stays below it wherever it can be evaluated (none)
-    sel = ~_above_lk_pressures(rated[lk], pcp[lk])
+    sel = ~_above_lk_pressures(ceiling[lk], pcp[lk])
     lk, t_ref = lk[sel], t_ref[sel]
     # the model's pressure at the worst case is its peak (the same call on the same state)
-    f_mid = out["lk_peak"][lk] - rated[lk]
-    guess = t_peak[lk] * rated[lk] / out["lk_peak"][lk]     # as if the pressure rose in proportion to T
+    f_mid = out["lk_peak"][lk] - ceiling[lk]
+    guess = t_peak[lk] * ceiling[lk] / out["lk_peak"][lk]     # as if the pressure rose in proportion to T
     known = np.flatnonzero(np.isfinite(t_ref))
     if known.size:
         f_ref = isochore(t_ref[known], lk[known])
@@ -2910,9 +2941,9 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
     `mass_limit` False: the fill-density limit is left for :func:`_mass_limit_settled` to solve when a full
     result is asked for (the batch's table and CSV do not show it); ``mass_pending`` marks its rows."""
     n = rows.t_fill.size
-    t_fill, t_peak, rated, atm = rows.t_fill, out["t_peak"], rows.rated, rows.atm
+    t_fill, t_peak, rated, ceiling, atm = rows.t_fill, out["t_peak"], rows.rated, rows.ceiling, rows.atm
     rho, peak = out["rho_molar"], out["peak_ref"]
-    out["target"] = target = atm + (rated - atm) * (1.0 - rows.margin_req)
+    out["target"] = target = atm + (ceiling - atm) * (1.0 - rows.margin_req)
     by_pressure = out["by_pressure"]
     # the fill itself at or above the rating (screen._fill_over_rating): the fill pressure, or for a mass fill
     # each applicable real-gas model's pressure at the fill
@@ -2934,7 +2965,7 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
 
     def f_t(t, ix):
         p, _v, _r = fluid.pressures(rho[ix], t, dome=t < leaves[ix], why=False)
-        return p / rated[ix] - 1.0
+        return p / ceiling[ix] - 1.0
 
     # the reference isochore can be evaluated from the lower temperature up to the equation's range (its
     # temperature range, its highest pressure): an end past it is scanned upwards from the worst case
@@ -2942,9 +2973,9 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
     # liquid isochore past the liquid-full point, in proportion to its slope just past it
     lf, slope = out["liquid_full"][live], out["dpdt_liquid_full"][live]
     with np.errstate(invalid="ignore", divide="ignore"):
-        guess = np.where(t_peak[live] > lf, t_peak[live] + (rated[live] - peak[live]) / slope,
-                         lf + (rated[live] - out["crossing"][live]) / slope)
-    root, ok = _temperature_limit(fluid, f_t, rho, rated, live, t_lo[live], t_peak[live], peak[live] / rated[live] - 1.0,
+        guess = np.where(t_peak[live] > lf, t_peak[live] + (ceiling[live] - peak[live]) / slope,
+                         lf + (ceiling[live] - out["crossing"][live]) / slope)
+    root, ok = _temperature_limit(fluid, f_t, rho, ceiling, live, t_lo[live], t_peak[live], peak[live] / ceiling[live] - 1.0,
                                   t_hi[live], leaves[live], guess)
     fallback[live[~ok]] = True
     max_t = out["max_t"]
@@ -3026,7 +3057,7 @@ def _liquefied_limits(rows: Rows, fluid: ReferenceFluid, out: dict, fallback: np
     if not mass_limit:
         out["mass_pending"][live] = True
     elif live.size:
-        fallback[live[~_liquefied_mass_limit(fluid, out, live, live[:0])]] = True
+        fallback[live[~_liquefied_mass_limit(rows.gas, fluid, out, live, live[:0])]] = True
 
 
 def _target_densities(fluid: ReferenceFluid, target: np.ndarray, t_peak: np.ndarray,
@@ -3052,9 +3083,10 @@ def _fill_peak_offsets(fluid: ReferenceFluid, p: np.ndarray, t_fill: np.ndarray,
     return peak - target
 
 
-def _liquefied_mass_limit(fluid: ReferenceFluid, out: dict, live: np.ndarray, star: np.ndarray) -> np.ndarray:
-    """The fill density whose peak is the target (screen._mass_limit's root, before the liquid-full cap) of rows
-    `live` into ``out["mass_rho"]``, the target's density first solved for rows `star`; returns whether each
+def _liquefied_mass_limit(gas: Mixture, fluid: ReferenceFluid, out: dict, live: np.ndarray,
+                          star: np.ndarray) -> np.ndarray:
+    """The fill density whose peak is the target (screen._mass_limit's root, the lower of the reference and the
+    generalized model's, before the liquid-full cap) of rows `live` of `gas` into ``out["mass_rho"]``, the target's density first solved for rows `star`; returns whether each
     row's root is settled (False: the row needs the single screening)."""
     t_peak, target, rho_star = out["t_peak"], out["target"], out["rho_star"]
     if star.size:
@@ -3077,6 +3109,8 @@ def _liquefied_mass_limit(fluid: ReferenceFluid, out: dict, live: np.ndarray, st
         tp, tg = float(t_peak[i]), float(target[i])
         out["mass_rho"][i] = _screen._root(lambda x, tp=tp, tg=tg: fluid.pressure(x, tp) - tg, float(lo[j]),
                                            float(hi[j]), n=60) or np.nan
+    # the generalized model's density at the target where it is lower (screen._mass_limit)
+    out["mass_rho"][live] = np.fmin(out["mass_rho"][live], _generalized_target_density(gas, out, live))
     return ok
 
 
@@ -3088,7 +3122,7 @@ def _mass_limit_settled(cols: dict, k: int, gas: Mixture) -> bool:
     if pending.size:
         fluid = reference_fluid((gas.components[0].coolprop_name,), (1.0,))
         unsettled = np.zeros(cols["t_peak"].size, dtype=bool)
-        ok = _liquefied_mass_limit(fluid, cols, pending, pending[~cols["by_pressure"][pending]])
+        ok = _liquefied_mass_limit(gas, fluid, cols, pending, pending[~cols["by_pressure"][pending]])
         unsettled[pending[~ok]] = True
         cols["mass_unsettled"] = unsettled
         cols["mass_pending"] = np.zeros(cols["t_peak"].size, dtype=bool)

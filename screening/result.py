@@ -398,7 +398,7 @@ class Limits(_Part):
     max_fill_mass_kg: float | None
     max_filling_ratio_kg_per_l: float | None
     max_fill_mass_basis: str | None
-    max_gas_temperature_k: float | None       #: the gas temperature at which the rating is reached
+    max_gas_temperature_k: float | None       #: the gas temperature at which the rating (or a lower relief setting) is reached
     max_fill_pressure_pa: float | None        #: [Pa] absolute; None for a mass fill or where not found
     target_peak_pressure_pa: float | None     #: the rating less the required margin; None: no model applies
     note: str

@@ -15,7 +15,7 @@ from typing import Callable, Iterable
 import numpy as np
 
 from screening import __version__
-from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION, limits_caveat
+from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION, ceiling_name, limits_caveat
 from screening.errors import InputError, NotApplicable
 from screening.inputs.case import Case, Exposure
 from screening.physics.eos.generalized import (
@@ -770,23 +770,33 @@ def _known_root(x: float | None, f_array: Callable[[np.ndarray], np.ndarray], lo
     return False, None
 
 
+def limit_ceiling(case: Case) -> float:
+    """The pressure [Pa] the limits solve to: the rated pressure, or the relief set pressure where that is lower
+    (above it the relief device opens, and :func:`decide` asks the required margin against it too)."""
+    relief = case.relief_set_pressure_pa
+    return case.rated_pressure_pa if relief is None else min(case.rated_pressure_pa, relief)
+
+
 def _limits(case: Case, models: list[Model], t_fill: float, t_peak: float) -> dict:
+    """The limits of one state (screen the vessel at them and it is on the edge): the gas temperature at which
+    the governing isochore reaches :func:`limit_ceiling`, and the fill pressure and fill mass whose peak at
+    `t_peak` is the target (the ceiling less the required margin), each the lowest over the applicable
+    real-gas models."""
     real = [m for m in models if m.applicable and m.name != "ideal"]
-    target = case.site.atmospheric_pressure_pa + (case.rated_pressure_pa - case.site.atmospheric_pressure_pa) \
-        * (1.0 - case.required_margin)
+    ceiling, atm = limit_ceiling(case), case.site.atmospheric_pressure_pa
+    target = atm + (ceiling - atm) * (1.0 - case.required_margin)
     t_lo = min(t_fill, t_peak)
     t_hi = max(t_peak, t_fill) + 300.0
     max_t = []
     for m in real:
-        f_array = ((lambda ts, m=m: m.isochore_array(ts) - case.rated_pressure_pa)
+        f_array = ((lambda ts, m=m: m.isochore_array(ts) - ceiling)
                    if m.isochore_array is not None else None)
         settled = False
         if m.temperature_at is not None and f_array is not None:
             # the model's inverse and one check instead of a scan and a scalar solve
-            settled, t = _known_root(m.temperature_at(case.rated_pressure_pa), f_array, t_lo, t_hi, 40,
-                                     1e-9 * case.rated_pressure_pa)
+            settled, t = _known_root(m.temperature_at(ceiling), f_array, t_lo, t_hi, 40, 1e-9 * ceiling)
         if not settled:
-            t = _root(lambda t, m=m: m.isochore(t) - case.rated_pressure_pa, t_lo, t_hi, n=40, f_array=f_array)
+            t = _root(lambda t, m=m: m.isochore(t) - ceiling, t_lo, t_hi, n=40, f_array=f_array)
         if t is not None:
             max_t.append(t)
     max_p = []
@@ -826,13 +836,16 @@ def _limits(case: Case, models: list[Model], t_fill: float, t_peak: float) -> di
 
 
 def limits_note(any_real_model: bool, fill_over: bool, case: Case | None = None) -> str:
-    """How the limits were found, in words; where the fill itself is at or above the rating, that too; and what
-    they leave out for `case` (:func:`limits_caveat`)."""
+    """How the limits were found, in words: against what pressure (:func:`limit_ceiling`), where the fill itself is
+    at or above the rating that too, and what they leave out for `case` (:func:`limits_caveat`)."""
     if not any_real_model:
         return "no real-gas model applies, so no limit is given"
-    caveat = (limits_caveat(getattr(case, "tolerance", None) is not None, case.relief_set_pressure_pa,
-                            case.rated_pressure_pa) if case is not None else None)
+    relief_governs = case is not None and ceiling_name(case.relief_set_pressure_pa, case.rated_pressure_pa) \
+        != ceiling_name(None, case.rated_pressure_pa)
+    caveat = limits_caveat(getattr(case, "tolerance", None) is not None) if case is not None else None
     return ("solved on each applicable real-gas model; the lowest (most conservative) value is given"
+            + ("; solved against the relief set pressure, which is below the rated pressure" if relief_governs
+               else "")
             + ("; the fill itself is at or above the rated pressure, so no gas temperature keeps the vessel "
                "within its rating: the fill must be reduced" if fill_over else "")
             + (f"; {caveat[0].lower()}{caveat[1:]}" if caveat else ""))
@@ -851,10 +864,25 @@ def _fill_over_rating(case: Case, real: list[Model], t_fill: float) -> bool:
     return False
 
 
+def generalized_density(gas: Mixture, model: Model, p: float, t: float) -> float | None:
+    """The molar density [mol/m3] of the applicable generalized model `model` of `gas` at p [Pa] and t [K]
+    (Lee–Kesler, or the quantum-gas SRK model where that is the model's method); None where the model does
+    not apply at that state."""
+    if model.extra.get("method") == QUANTUM_SRK_METHOD:
+        g = gas.components[0]
+        st = srk_quantum_density(p, t, g.classical_critical_temperature, g.classical_critical_pressure, g.molar_mass)
+        return float(st.molar_density[()]) if st.valid[()] else None
+    tc, pc, om = _lk_constants(_gas_arrays(gas), t)
+    st = lee_kesler_density(np.array([p]), np.array([t]), tc, pc, om)
+    return float(st.molar_density[0]) if st.valid[0] else None
+
+
 def _mass_limit(case: Case, models: list[Model], t_fill: float, t_peak: float, target: float) -> dict:
-    """Highest fill mass [kg] (and filling ratio [kg/L]) for which the reference peak at the worst-case
-    temperature stays at the target pressure and the vessel is not liquid-full (or a dense, liquid-like
-    fluid) at that temperature; also capped by the vessel's maximum filling ratio. Reference model only."""
+    """Highest fill mass [kg] (and filling ratio [kg/L]) for which the peak at the worst-case temperature stays
+    at the target pressure on the reference model and on the generalized model where it applies (the lower
+    density of the two: the model that governs at that fill), and the vessel is not liquid-full (or a dense,
+    liquid-like fluid) at that temperature; also capped by the vessel's maximum filling ratio. None where the
+    reference model does not apply."""
     none = {"max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None}
     ref = next((m for m in models if m.name == "reference" and m.applicable), None)
     if ref is None:
@@ -873,6 +901,10 @@ def _mass_limit(case: Case, models: list[Model], t_fill: float, t_peak: float, t
             lambda r: fluid.pressure(r, t_peak) - target, 1e-6 * rho_top, rho_top * 0.999, n=60))
     if rho is None:
         return none
+    gen = next((m for m in models if m.name == "generalized" and m.applicable), None)
+    rho_gen = generalized_density(case.gas, gen, target, t_peak) if gen is not None else None
+    if rho_gen is not None and rho_gen < rho:
+        rho = rho_gen       # the generalized model reaches the target at a lower density: it governs the limit
     if _has_liquid_full_analysis(fluid):
         try:
             rho_lf = liquid_full_density(fluid, t_fill, t_peak, case.gas)

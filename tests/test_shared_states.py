@@ -117,7 +117,7 @@ def test_scenarios_share_the_gas_temperature_limit_within_the_solve_tolerance():
         for sc in c.scenarios:
             ex = engine._exposure_row(c, sc)
             rows.append((c.fill_pressure_pa, c.fill_temperature_k, np.nan, ex.t_exposure, c.rated_pressure_pa,
-                         c.site.atmospheric_pressure_pa, c.required_margin))
+                         c.site.atmospheric_pressure_pa, c.required_margin, np.nan))
             vessels.append(i)
 
     def table(group):

@@ -2,14 +2,15 @@
 
 Formatting only. Every number comes from the finished result: the limits the screening solved
 (``limits.max_fill_pressure_pa`` and ``limits.max_fill_mass_kg`` keep the required margin at the
-worst case; ``limits.max_gas_temperature_k`` is where the rated pressure is reached) and the
+worst case; ``limits.max_gas_temperature_k`` is where the rated pressure, or a lower relief set pressure,
+is reached) and the
 verdicts of its scenarios. The terminal summary, the PDF report and the batch PDF all take the
 sentence from :func:`action_line`.
 """
 
 from __future__ import annotations
 
-from screening.cautions import limits_caveat
+from screening.cautions import ceiling_name, limits_caveat
 from screening.outputs.text import fmt_pressure, fmt_temperature, visible
 from screening.result import Result
 from screening.units import format_quantity
@@ -57,26 +58,23 @@ def action_line(result: Result) -> str | None:
         parts.append(f"fill at most {format_quantity(m_max, mass_unit, 2)}")
     t_max = limits.max_gas_temperature_k
     t_worst = result.worst_case_temperature_k
-    keep_below = (f"keep the gas below {fmt_temperature(result, t_max)}, where it reaches the rated pressure"
+    ceiling = ceiling_name(result.relief_set_pressure_pa, result.rated_pressure_pa)
+    keep_below = (f"keep the gas below {fmt_temperature(result, t_max)}, where it reaches {ceiling}"
                   if t_max is not None else None)
-    relief_below = result.relief_set_pressure_pa is not None and result.relief_set_pressure_pa < result.rated_pressure_pa
     if not parts:
         if keep_below and t_worst is not None and t_worst >= t_max:
             return "To pass: " + keep_below + "."
-        if result.tolerance is not None or relief_below:
-            # the limits do not count the tolerances or the relief setting (cautions.limits_caveat), which is
-            # what this vessel fails on: a lower fill helps, by how much the limits cannot say
-            what = " and ".join(w for w, on in (("the reading tolerances", result.tolerance is not None),
-                                                ("the relief set pressure, which is below the rating", relief_below))
-                                if on)
-            return ("To pass: lower the fill and screen the vessel again. Its limits, solved at the nominal readings "
-                    f"against the rated pressure, are above this fill; what it fails on is {what}.")
+        if result.tolerance is not None:
+            # the limits do not count the tolerances (cautions.limits_caveat), which is what this vessel fails
+            # on: a lower fill helps, by how much the limits cannot say
+            return ("To pass: lower the fill and screen the vessel again. Its limits, solved at the nominal "
+                    "readings, are above this fill; what it fails on is the reading tolerances.")
         return ("No limit of this screening removes the reason by itself; the reasons above say what must "
                 "change.")
     line = "To pass: " + "; or ".join(parts) + "."
     if keep_below:
         line += " In any case " + keep_below + "."
-    caveat = limits_caveat(result.tolerance is not None, result.relief_set_pressure_pa, result.rated_pressure_pa)
+    caveat = limits_caveat(result.tolerance is not None)
     if caveat:
         line += " " + caveat
     return line

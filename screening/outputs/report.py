@@ -34,6 +34,7 @@ from urllib.request import url2pathname
 import jinja2
 from markupsafe import Markup
 
+from screening.cautions import ceiling_name
 from screening.constants import P_STANDARD_ATMOSPHERE, R
 from screening.outputs.actions import action_line
 from screening.outputs.files import check_target, write_bytes
@@ -852,7 +853,8 @@ def _limit_rows(result: Result, f: _Fmt) -> list[tuple[str, str]]:
     limits, t_fill = result.limits, result.fill.temperature_k
     max_fill_p = limits.max_fill_pressure_pa
     rows = [
-        ("Highest gas temperature (rated pressure reached)", T(limits.max_gas_temperature_k)),
+        (f"Highest gas temperature ({ceiling_name(result.relief_set_pressure_pa, result.rated_pressure_pa)} "
+         "reached)", T(limits.max_gas_temperature_k)),
         (f"Highest fill pressure at {T(t_fill)}",
          "not given (fill by mass)" if max_fill_p is None and result.fill.given == "mass" else P(max_fill_p)),
     ]

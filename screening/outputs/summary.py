@@ -13,7 +13,7 @@ import re
 import shutil
 import textwrap
 
-from screening.cautions import limits_caveat
+from screening.cautions import ceiling_name, limits_caveat
 from screening.outputs.actions import action_line
 from screening.outputs.text import (
     fmt_pressure,
@@ -165,7 +165,8 @@ def format_summary(result: Result, width: int | None = None) -> str:
     lim = result.limits
     w.blank()
     w.add("Limits")
-    w.add(f"highest gas temperature before the rated pressure: {T(lim.max_gas_temperature_k)}", "  ")
+    w.add(f"highest gas temperature before {ceiling_name(result.relief_set_pressure_pa, result.rated_pressure_pa)}: "
+          f"{T(lim.max_gas_temperature_k)}", "  ")
     if fill.given == "pressure":
         w.add(f"highest fill pressure at {T(fill.temperature_k)} for the required margin: "
               f"{P(lim.max_fill_pressure_pa)}", "  ")
@@ -176,7 +177,7 @@ def format_summary(result: Result, width: int | None = None) -> str:
     t_full = lim.liquid_full_temperature_k
     if t_full is not None and t_full >= fill.temperature_k:
         w.add(f"liquid-full temperature: {T(t_full)}", "  ")
-    caveat = limits_caveat(result.tolerance is not None, result.relief_set_pressure_pa, result.rated_pressure_pa)
+    caveat = limits_caveat(result.tolerance is not None)
     if caveat:
         w.add(caveat, "  ", "  ")
     if result.warnings:
