@@ -32,12 +32,3 @@ def ceiling_name(relief: float | None, rated: float) -> str:
     """What the limits are solved against, in words: the rated pressure [Pa], or the relief set pressure [Pa]
     where it is lower (above it the relief device opens; screen.limit_ceiling)."""
     return "the relief set pressure" if relief is not None and relief < rated else "the rated pressure"
-
-
-def limits_caveat(tolerances: bool) -> str | None:
-    """What the limits leave out, in one sentence (None where nothing): they are solved at the nominal readings,
-    so input tolerances (`tolerances`) come on top of them (the verdict counts them)."""
-    if not tolerances:
-        return None
-    return ("These limits are at the nominal readings: the reading tolerances are not taken off, so a fill or "
-            "temperature at a limit can still fail the screening; screen the vessel again at the value chosen.")

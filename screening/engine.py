@@ -1478,14 +1478,7 @@ def _row_dict(case: Case, cols: dict, k: int, v: dict | None = None, sun: SunRow
     others = [nm for nm in v["applicable"] if nm not in (gov_name, "ideal")]
     governing_reason = _screen.governing_text(gov_name, others)
     ideal["off_governing_fraction"] = peak_ideal / peak - 1.0
-    mass_rho = _opt(cols["mass_rho"][k])
-    if mass_rho is None:
-        mass_limit = _NO_MASS_LIMIT
-    else:
-        rm, basis = mass_rho * gas.molar_mass, "the required margin at the worst-case temperature"
-        if case.max_filling_ratio_kg_m3 is not None and case.max_filling_ratio_kg_m3 < rm:
-            rm, basis = case.max_filling_ratio_kg_m3, "the vessel's maximum filling ratio"
-        mass_limit = (rm * case.water_capacity_m3, rm / 1000.0, basis)
+    mass_limit = _mass_limit_of(case, cols, k)
     fill_over = case.fill_pressure_pa >= case.rated_pressure_pa if by_pressure else bool(cols["fill_over"][k])
     limits = _LIMITS(*mass_limit, None if fill_over else _opt(cols["max_t"][k]), _opt(cols["max_p"][k]),
                      float(cols["target"][k]), _screen.limits_note(True, fill_over, case), _opt(cols["liquid_full"][k]),
@@ -1517,6 +1510,34 @@ _LIMITS = json_record(Limits, (), ("max_fill_mass_kg", "max_filling_ratio_kg_per
                                    "dp_dt_after_liquid_full_pa_k"))
 #: (max_fill_mass_kg, max_filling_ratio_kg_per_l, max_fill_mass_basis) where there is no fill-mass limit.
 _NO_MASS_LIMIT = (None, None, None)
+
+
+def _mass_limit_of(case: Case, cols: dict, k: int) -> tuple:
+    """Row k's fill-mass limit (max_fill_mass_kg, max_filling_ratio_kg_per_l, max_fill_mass_basis) as
+    screen._mass_limit gives it: the target's density (``mass_rho``), on liquefied-gas columns capped by the
+    liquid-full density (``lf_density``; none where that is not known), then by the vessel's filling ratio."""
+    mass_rho = _opt(cols["mass_rho"][k])
+    basis = "the required margin at the worst-case temperature"
+    if cols.get("kind") == "liquefied":
+        lf_density = _opt(cols["lf_density"][k])
+        if lf_density is None:
+            return _NO_MASS_LIMIT
+        if mass_rho is not None and lf_density < mass_rho:
+            mass_rho, basis = lf_density, "the liquid-full point at the worst-case temperature"
+    if mass_rho is None:
+        return _NO_MASS_LIMIT
+    rm = mass_rho * case.gas.molar_mass
+    if case.max_filling_ratio_kg_m3 is not None and case.max_filling_ratio_kg_m3 < rm:
+        rm, basis = case.max_filling_ratio_kg_m3, "the vessel's maximum filling ratio"
+    return (rm * case.water_capacity_m3, rm / 1000.0, basis)
+
+
+def _corner_limit_values(case: Case, cols: dict, k: int) -> dict:
+    """The limits of row k of a table of tolerance corners, as screen._limits names them (for
+    screen.take_off_tolerances)."""
+    mass = _mass_limit_of(case, cols, k)
+    return {"max_fill_mass_kg": mass[0], "max_filling_ratio_kg_per_l": mass[1], "max_fill_mass_basis": mass[2],
+            "max_gas_temperature_k": _opt(cols["max_t"][k]), "max_fill_pressure_pa": _opt(cols["max_p"][k])}
 
 
 def _layout(case: Case, cols: dict, k: int, v: dict, sun: SunRow | None, fill: tuple, models: dict,
@@ -1728,6 +1749,15 @@ def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Re
         ahead.append(_screen.expected_corner(c, float(c.fill_temperature_k), float(cols["t_peak"][k])))
     tolerances = _drive(gas, steps, known, ahead, fills=fills)
     bad |= {i for (i, _j), t in tolerances.items() if t is None}
+    # the limits at each bounding corner, rows of one table with their vessels' ratings (screen._corner_limits)
+    corners = {key: t["bounding_corner"] for key, t in tolerances.items()
+               if t is not None and t["bounding_peak_pressure_pa"] is not None and key[0] not in bad}
+    corner_row = {key: kc for kc, key in enumerate(corners)}
+    ccols = _Listed(_columns(Rows(gas, *(np.array(v, dtype=float) for v in zip(*(
+        (b["fill_pressure_pa"], b["fill_temperature_k"], math.nan, b["worst_case_temperature_k"],
+         cases[i].rated_pressure_pa, cases[i].site.atmospheric_pressure_pa, cases[i].required_margin,
+         math.nan if cases[i].relief_set_pressure_pa is None else cases[i].relief_set_pressure_pa)
+        for (i, _j), b in corners.items())))), shared_fills=True, fills=fills)) if corners else None
     for i, rows in exposures.items():
         if i in bad:
             continue
@@ -1746,10 +1776,15 @@ def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Re
                     break               # not on this path (see _corner_peaks): per row
                 # decided once, on the bounding peak; the row's nominal figures from the nominal peak (the
                 # tolerance block's, the governing peak of this very row: the same number)
+                kc = corner_row[(i, j)]
+                if ccols["fallback"][kc]:
+                    break               # the corner's limits not on this path: per row
                 v = _verdict(*args, bounding=tol["bounding_peak_pressure_pa"])
                 r = _row_dict(c, cols, k, {**v, "peak_pressure_pa": tol["nominal_peak_pressure_pa"]}, sun=ex,
                               fold=False)
-                r.update(peak_pressure_pa=v["peak_pressure_pa"], tolerance=tol)
+                r.update(peak_pressure_pa=v["peak_pressure_pa"], tolerance=tol,
+                         limits=_screen.take_off_tolerances(r["limits"], _corner_limit_values(c, ccols, kc),
+                                                            c.tolerance, True))
             for key in ("scenarios", "governing_scenario", "exposure"):
                 r.pop(key, None)
             per.append((sc.name, r, ex.balance))
@@ -2243,6 +2278,20 @@ def _screen_liquefied_scenarios(cases: list[Case], balances: dict | None = None)
     tolerances = _drive_states(steps, lambda todo: _liquefied_corner_peaks(cases[0].gas, todo), known, ahead,
                                tags) if steps else {}
     bad |= {i for (i, _j), t in tolerances.items() if t is None}
+    # the limits at each bounding corner (a fill by mass: its worst case alone moves), rows of one table with their
+    # vessels' ratings (screen._corner_limits)
+    corners = {key: t["bounding_corner"] for key, t in tolerances.items()
+               if t is not None and t["bounding_peak_pressure_pa"] is not None and key[0] not in bad}
+    corner_row = {key: kc for kc, key in enumerate(corners)}
+    ccols = None
+    if corners:
+        a = np.array([(tags[key], b["fill_temperature_k"], b["worst_case_temperature_k"],
+                       cases[key[0]].rated_pressure_pa, cases[key[0]].site.atmospheric_pressure_pa,
+                       cases[key[0]].required_margin, math.nan if cases[key[0]].relief_set_pressure_pa is None
+                       else cases[key[0]].relief_set_pressure_pa) for key, b in corners.items()], dtype=float)
+        nan = np.full(a.shape[0], np.nan)
+        ccols = _Listed(_liquefied_columns(LiquefiedRows(cases[0].gas, nan, a[:, 1], nan, a[:, 2], a[:, 3], a[:, 4],
+                                                         a[:, 5], a[:, 6], rho_mass=a[:, 0])))
     for i, ex_rows in exposures.items():
         if i in bad:
             continue
@@ -2261,11 +2310,16 @@ def _screen_liquefied_scenarios(cases: list[Case], balances: dict | None = None)
                     break               # not on this path (see _liquefied_corner_peaks): per row
                 # decided once, on the bounding peak and the corners' liquid-full findings; the row's nominal
                 # figures from the nominal peak (the tolerance block's, the governing peak of this very row)
+                kc = corner_row[(i, j)]
+                if ccols["fallback"][kc] or ccols["refused"][kc] or ccols["unreachable"][kc]:
+                    break               # the corner's limits not on this path: per row
                 v = _liquefied_verdict(*args, bounding=tol["bounding_peak_pressure_pa"],
                                        liquid_full_more=findings["liquid_full"])
                 r = _assemble_liquefied(c, cols, k, {**v, "peak_pressure_pa": tol["nominal_peak_pressure_pa"]},
                                         sun=ex, fold=False)
-                r.update(peak_pressure_pa=v["peak_pressure_pa"], tolerance=tol)
+                r.update(peak_pressure_pa=v["peak_pressure_pa"], tolerance=tol,
+                         limits=_screen.take_off_tolerances(r["limits"], _corner_limit_values(c, ccols, kc),
+                                                            c.tolerance, c.fill_pressure_pa is not None))
             for key in ("scenarios", "governing_scenario", "exposure"):
                 r.pop(key, None)
             per.append((sc.name, r, ex.balance))
@@ -3325,18 +3379,7 @@ def _assemble_liquefied(case: Case, cols: dict, k: int, v: dict | None = None, s
                           "z_peak": peak_ref / (rho * R * t_peak),
                           "eos_references": (_line_references(fluid) if type(case) is CaseRow
                                              else fluid.eos_references())}}
-        # screen._mass_limit: the target's density, capped by the liquid-full density, then the filling ratio
-        mass_rho, lf_density = _opt(cols["mass_rho"][k]), _opt(cols["lf_density"][k])
-        if mass_rho is None or lf_density is None:
-            mass_limit = _NO_MASS_LIMIT
-        else:
-            basis = "the required margin at the worst-case temperature"
-            if lf_density < mass_rho:
-                mass_rho, basis = lf_density, "the liquid-full point at the worst-case temperature"
-            rm = mass_rho * gas.molar_mass
-            if case.max_filling_ratio_kg_m3 is not None and case.max_filling_ratio_kg_m3 < rm:
-                rm, basis = case.max_filling_ratio_kg_m3, "the vessel's maximum filling ratio"
-            mass_limit = (rm * case.water_capacity_m3, rm / 1000.0, basis)
+        mass_limit = _mass_limit_of(case, cols, k)
         fill_over = bool(cols["fill_over"][k])
         limits = _LIMITS(*mass_limit, None if fill_over else _opt(cols["max_t"][k]),
                          _opt(cols["max_p"][k]) if by_pressure else None, float(cols["target"][k]),

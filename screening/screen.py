@@ -15,9 +15,9 @@ from typing import Callable, Iterable
 import numpy as np
 
 from screening import __version__
-from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION, ceiling_name, limits_caveat
+from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION, ceiling_name
 from screening.errors import InputError, NotApplicable
-from screening.inputs.case import Case, Exposure
+from screening.inputs.case import Case, Exposure, Tolerance
 from screening.physics.eos.generalized import (
     _SCALAR_MAX as _LK_SCALAR_MAX,
 )
@@ -836,19 +836,45 @@ def _limits(case: Case, models: list[Model], t_fill: float, t_peak: float) -> di
 
 
 def limits_note(any_real_model: bool, fill_over: bool, case: Case | None = None) -> str:
-    """How the limits were found, in words: against what pressure (:func:`limit_ceiling`), where the fill itself is
-    at or above the rating that too, and what they leave out for `case` (:func:`limits_caveat`)."""
+    """How the limits were found, in words: against what pressure (:func:`limit_ceiling`), with the reading
+    tolerances taken off where `case` has them (:func:`take_off_tolerances`), and where the fill itself is at or
+    above the rating, that."""
     if not any_real_model:
         return "no real-gas model applies, so no limit is given"
     relief_governs = case is not None and ceiling_name(case.relief_set_pressure_pa, case.rated_pressure_pa) \
         != ceiling_name(None, case.rated_pressure_pa)
-    caveat = limits_caveat(getattr(case, "tolerance", None) is not None) if case is not None else None
+    tolerances = case is not None and getattr(case, "tolerance", None) is not None
     return ("solved on each applicable real-gas model; the lowest (most conservative) value is given"
             + ("; solved against the relief set pressure, which is below the rated pressure" if relief_governs
                else "")
+            + (f"; {TOLERANCES_TAKEN_OFF}" if tolerances else "")
             + ("; the fill itself is at or above the rated pressure, so no gas temperature keeps the vessel "
-               "within its rating: the fill must be reduced" if fill_over else "")
-            + (f"; {caveat[0].lower()}{caveat[1:]}" if caveat else ""))
+               "within its rating: the fill must be reduced" if fill_over else ""))
+
+
+#: How the limits of a vessel with reading tolerances are found, in words (take_off_tolerances).
+TOLERANCES_TAKEN_OFF = ("the reading tolerances are taken off: the limits are solved at the tolerances' bounding "
+                        "corner, less the gas-temperature band and the fill-pressure band")
+
+
+def take_off_tolerances(limits: dict, corner: dict, tolerance: Tolerance, by_pressure: bool) -> dict:
+    """The nominal `limits` with the reading tolerances taken off: `corner` holds the limits solved at the
+    tolerances' bounding corner (its fill state and its worst case, where the peak is highest); the
+    gas-temperature band comes off its temperature limit and the fill-pressure band off its fill-pressure limit,
+    so that a reading at a limit passes at every corner. The fill-mass limit is the corner's (a fill mass has no
+    band). A temperature limit the nominal limits leave out (a fill at or over the rating) stays out, and a
+    limit the corner has not is not given."""
+    out = dict(limits)
+    for key in ("max_fill_mass_kg", "max_filling_ratio_kg_per_l", "max_fill_mass_basis"):
+        out[key] = corner[key]
+    t = corner["max_gas_temperature_k"]
+    out["max_gas_temperature_k"] = (None if limits["max_gas_temperature_k"] is None or t is None
+                                    else t - tolerance.gas_temperature_k)
+    p = corner["max_fill_pressure_pa"]
+    out["max_fill_pressure_pa"] = p - tolerance.fill_pressure_pa if (by_pressure and p is not None) else None
+    if out["max_fill_pressure_pa"] is not None and out["max_fill_pressure_pa"] <= 0.0:
+        out["max_fill_pressure_pa"] = None
+    return out
 
 
 def _fill_over_rating(case: Case, real: list[Model], t_fill: float) -> bool:
@@ -1297,6 +1323,9 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
         "max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,
         "max_gas_temperature_k": None, "max_fill_pressure_pa": None, "target_peak_pressure_pa": None,
         "note": "no real-gas model applies, so no limit is given"}
+    if real and tolerance is not None and tolerance["bounding_peak_pressure_pa"] is not None:
+        limits = take_off_tolerances(limits, _corner_limits(case, tolerance["bounding_corner"]), case.tolerance,
+                                     case.fill_pressure_pa is not None)
     limits["liquid_full_temperature_k"] = fs.liquid_full_temperature
     limits["dry_out_temperature_k"] = fs.dry_out_temperature
     limits["phase_boundary_pressure_pa"] = fs.crossing_pressure
@@ -1368,6 +1397,17 @@ def _corner_peak(case: Case, p_fill: float | None, t_fill: float, t_peak: float)
     out["_liquid_full"] = (liquid_full_text(fs, t_screen, corner=True)
                            if _liquid_full_applies(fs, _molar(variant, fs), t_fill, t_screen, case.gas) else None)
     return out
+
+
+def _corner_limits(case: Case, corner: dict) -> dict:
+    """The limits (as :func:`_limits` gives them) at a tolerance corner (a tolerance block's "bounding_corner"),
+    its state evaluated as _corner_state evaluates it; no limit where no real-gas model applies there."""
+    variant, t_screen, _fs, models, _ = _corner_state(case, corner["fill_pressure_pa"], corner["fill_temperature_k"],
+                                                      corner["worst_case_temperature_k"])
+    if not any(m.applicable and m.name != "ideal" for m in models):
+        return {"max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,
+                "max_gas_temperature_k": None, "max_fill_pressure_pa": None}
+    return _limits(variant, models, corner["fill_temperature_k"], t_screen)
 
 
 def _bounding_model(case: Case, tolerance: dict | None) -> Model | None:

@@ -10,7 +10,7 @@ sentence from :func:`action_line`.
 
 from __future__ import annotations
 
-from screening.cautions import ceiling_name, limits_caveat
+from screening.cautions import ceiling_name
 from screening.outputs.text import fmt_pressure, fmt_temperature, visible
 from screening.result import Result
 from screening.units import format_quantity
@@ -59,22 +59,16 @@ def action_line(result: Result) -> str | None:
     t_max = limits.max_gas_temperature_k
     t_worst = result.worst_case_temperature_k
     ceiling = ceiling_name(result.relief_set_pressure_pa, result.rated_pressure_pa)
-    keep_below = (f"keep the gas below {fmt_temperature(result, t_max)}, where it reaches {ceiling}"
+    keep_below = (f"keep the gas below {fmt_temperature(result, t_max)}, "
+                  + (f"where it reaches {ceiling}" if result.tolerance is None else
+                     f"which keeps it below {ceiling} within the reading tolerances")
                   if t_max is not None else None)
     if not parts:
         if keep_below and t_worst is not None and t_worst >= t_max:
             return "To pass: " + keep_below + "."
-        if result.tolerance is not None:
-            # the limits do not count the tolerances (cautions.limits_caveat), which is what this vessel fails
-            # on: a lower fill helps, by how much the limits cannot say
-            return ("To pass: lower the fill and screen the vessel again. Its limits, solved at the nominal "
-                    "readings, are above this fill; what it fails on is the reading tolerances.")
         return ("No limit of this screening removes the reason by itself; the reasons above say what must "
                 "change.")
     line = "To pass: " + "; or ".join(parts) + "."
     if keep_below:
         line += " In any case " + keep_below + "."
-    caveat = limits_caveat(result.tolerance is not None)
-    if caveat:
-        line += " " + caveat
     return line

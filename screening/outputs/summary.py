@@ -13,7 +13,7 @@ import re
 import shutil
 import textwrap
 
-from screening.cautions import ceiling_name, limits_caveat
+from screening.cautions import ceiling_name
 from screening.outputs.actions import action_line
 from screening.outputs.text import (
     fmt_pressure,
@@ -177,9 +177,9 @@ def format_summary(result: Result, width: int | None = None) -> str:
     t_full = lim.liquid_full_temperature_k
     if t_full is not None and t_full >= fill.temperature_k:
         w.add(f"liquid-full temperature: {T(t_full)}", "  ")
-    caveat = limits_caveat(result.tolerance is not None)
-    if caveat:
-        w.add(caveat, "  ", "  ")
+    if result.tolerance is not None:
+        w.add("These limits have the reading tolerances taken off: solved at the tolerances' bounding corner, "
+              "less the gas-temperature and fill-pressure bands.", "  ", "  ")
     if result.warnings:
         w.blank()
         w.add("Warnings")
