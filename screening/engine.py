@@ -1214,9 +1214,11 @@ def _reference_limits(rows: Rows, fluid: ReferenceFluid, pure: bool, out: dict, 
 
 
 def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessels: np.ndarray | None = None,
-             fills: dict | None = None) -> dict:
+             fills: dict | None = None, limit_rows: np.ndarray | None = None) -> dict:
     """Every model, the phase boundary and the limits for rows of one pure permanent gas, as arrays
     (`limits` False: the models alone, for the states of tolerance corners, see :func:`_corner_peaks`;
+    `limit_rows`: where given, the rows whose limits are solved, the others' NaN (a vessel with tolerances, whose
+    limits are its expected corner's, see :func:`_screen_expanded`);
     `shared_fills`: rows repeat fills, each solved once, see :func:`_generalized_columns`, and each distinct
     fill density meets the dome once; `vessels`: each row's vessel, where a vessel has several rows (its
     scenarios), which then share the solve of the one limit that does not depend on the scenario, see
@@ -1297,9 +1299,13 @@ def _columns(rows: Rows, limits: bool = True, shared_fills: bool = False, vessel
     p_lo = atm * 1.01
     p_hi = np.maximum(target, p_fill) * np.maximum(1.0, t_fill / t_peak) * 1.05
 
-    t_lk, max_p_lk = _generalized_limits(rows, out, gen, fallback, t_lo, t_hi, p_lo, p_hi, vessels)
+    # rows left out of the limits count as fallen back for their solves, and only for those
+    skip = fallback if limit_rows is None else fallback | ~limit_rows
+    t_lk, max_p_lk = _generalized_limits(rows, out, gen, skip, t_lo, t_hi, p_lo, p_hi, vessels)
 
-    _reference_limits(rows, fluid, pure, out, fallback, t_lk, max_p_lk, t_lo, t_hi, p_lo, p_hi)
+    _reference_limits(rows, fluid, pure, out, skip, t_lk, max_p_lk, t_lo, t_hi, p_lo, p_hi)
+    if limit_rows is not None:
+        fallback |= skip & limit_rows
     # a fill by mass: no fill-pressure limit, and no temperature limit where the fill itself is over the rating
     out["max_p"][by_mass] = np.nan
     out["max_t"][by_mass & out["fill_over"]] = np.nan
@@ -1664,37 +1670,30 @@ def _state_peaks(cols: dict, k: int) -> dict:
     return peaks
 
 
-def _drive(gas: Mixture, steps: dict, known: dict | None = None, ahead: list | None = None,
-           fills: dict | None = None) -> dict:
+def _drive(gas: Mixture, steps: dict, known: dict | None = None, fills: dict | None = None) -> dict:
     """Run the tolerance generators (screen.tolerance_steps) of many vessels of a permanent gas in lockstep: each
     round's states of every vessel are rows of one table (:func:`_corner_peaks`); `known` gives the peaks of
-    states already evaluated (each vessel's nominal state: a row of its nominal table, the same numbers); `ahead`:
-    states evaluated in the first round beside the sensitivities' states (each vessel's expected corner,
-    screen.expected_corner, which the second round asks for whichever corners it needs: the second round then
-    costs no table of its own where every vessel's expected corner is confirmed); `fills`: the fill states solved
-    so far (:func:`_columns`). Returns {key: tolerance block or None (per row)}."""
-    return _drive_states(steps, lambda todo: _corner_peaks(gas, todo, fills), known, ahead)
+    states already evaluated (each vessel's nominal state and its expected corner, screen.expected_corner: rows of
+    its nominal table, the same numbers; the second round then costs no table of its own where every vessel's
+    expected corner is confirmed); `fills`: the fill states solved so far (:func:`_columns`). Returns {key:
+    tolerance block or None (per row)}."""
+    return _drive_states(steps, lambda todo: _corner_peaks(gas, todo, fills), known)
 
 
 def _drive_states(steps: dict, corner_peaks: Callable[[list], dict], known: dict | None = None,
-                  ahead: list | None = None, tags: dict | None = None) -> dict:
+                  tags: dict | None = None) -> dict:
     """:func:`_drive` with the table of a round's states given (`corner_peaks`: {state: its corner peaks or None}
     of a list of states). `tags`: {key: a value put in front of each of that vessel's states}, where the states
-    the generator yields do not fix the state alone (a fill by mass: the fill density); `known` and `ahead` are
-    then tagged states."""
+    the generator yields do not fix the state alone (a fill by mass: the fill density); `known` then holds tagged
+    states."""
     done: dict = {}
     peaks = dict(known or {})
     if tags is None:
         asked = {key: next(gen) for key, gen in steps.items()}
     else:
         asked = {key: [(tags[key], *s) for s in next(gen)] for key, gen in steps.items()}
-    first = True
     while asked:
         todo = [s for s in dict.fromkeys(s for states in asked.values() for s in states) if s not in peaks]
-        if first and ahead:
-            asked_now = set(todo)
-            todo += [s for s in dict.fromkeys(ahead) if s not in peaks and s not in asked_now]
-        first = False
         peaks.update(corner_peaks(todo))
         nxt = {}
         for key, states in asked.items():
@@ -1723,41 +1722,48 @@ def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Re
     exposures, keys = _scenario_rows(cases, balances)
     if not keys:
         return out
+    # each scenario of each vessel a row, then the expected bounding corner of each one with tolerances
+    # (screen.expected_corner, at its screened temperature as the row's column has it): its peaks serve the
+    # tolerance analysis and its limits, with its vessel's rating, are the vessel's with the tolerances taken off
+    # (screen._corner_limits)
+    corner_of = {}
+    for i, j in keys:
+        c = cases[i]
+        if c.tolerance is not None:
+            t_fill = float(c.fill_temperature_k)
+            corner_of[(i, j)] = _screen.expected_corner(
+                c, t_fill, _screen.screened_temperature(exposures[i][j].t_exposure, t_fill))
+    table = [(cases[i].fill_pressure_pa, cases[i].fill_temperature_k, exposures[i][j].t_exposure, i) for i, j in keys]
+    table += [(p_c, tf_c, tg_c, i) for (i, _j), (p_c, tf_c, tg_c) in corner_of.items()]
     nominal = Rows(gas, *(np.array(v, dtype=float) for v in zip(*(
-        (cases[i].fill_pressure_pa, cases[i].fill_temperature_k, math.nan, exposures[i][j].t_exposure,
-         cases[i].rated_pressure_pa, cases[i].site.atmospheric_pressure_pa, cases[i].required_margin,
+        (p, tf, math.nan, tg, cases[i].rated_pressure_pa, cases[i].site.atmospheric_pressure_pa,
+         cases[i].required_margin,
          math.nan if cases[i].relief_set_pressure_pa is None else cases[i].relief_set_pressure_pa)
-        for i, j in keys))))
+        for p, tf, tg, i in table))))
     # the fill states each table solves, for the tables after it (a vessel's nominal fill is among the states of
     # its tolerance analysis)
     fills: dict = {"reference": {}, "generalized": {}}
     # the columns read as lists (a row's values as Python numbers, without a numpy scalar per value)
-    cols = _Listed(_columns(nominal, shared_fills=True, vessels=np.array([i for i, _j in keys], dtype=float),
-                            fills=fills))
+    # a vessel with tolerances takes its limits from its expected corner's row: its own rows' are not solved
+    cols = _Listed(_columns(nominal, shared_fills=True, vessels=np.array([i for *_s, i in table], dtype=float),
+                            fills=fills, limit_rows=np.array([cases[i].tolerance is None for i, _j in keys]
+                                                             + [True] * len(corner_of), dtype=bool)))
     fallback = cols["fallback"]
-    bad = {i for (i, _j), f in zip(keys, fallback) if f}
+    bad = {i for (*_s, i), f in zip(table, fallback) if f}
     row_of = {key: k for k, key in enumerate(keys)}
-    steps, known, ahead = {}, {}, []
+    corner_row = {key: len(keys) + n for n, key in enumerate(corner_of)}
+    steps, known = {}, {}
     for k, (i, j) in enumerate(keys):
         c = cases[i]
         if i in bad or c.tolerance is None:
             continue
         names = ["ideal"] + (["generalized"] if cols["lk_ok"][k] else []) + ["reference"]
         steps[(i, j)] = _screen.tolerance_steps(c, float(c.fill_temperature_k), float(cols["t_peak"][k]), names)
-        # the nominal state (the steps' first): the peaks of this row of the nominal table
+        # the nominal state (the steps' first) and the expected corner: the peaks of their rows of this table
         known[(c.fill_pressure_pa, float(c.fill_temperature_k), float(cols["t_peak"][k]))] = _state_peaks(cols, k)
-        ahead.append(_screen.expected_corner(c, float(c.fill_temperature_k), float(cols["t_peak"][k])))
-    tolerances = _drive(gas, steps, known, ahead, fills=fills)
+        known[corner_of[(i, j)]] = _state_peaks(cols, corner_row[(i, j)])
+    tolerances = _drive(gas, steps, known, fills=fills)
     bad |= {i for (i, _j), t in tolerances.items() if t is None}
-    # the limits at each bounding corner, rows of one table with their vessels' ratings (screen._corner_limits)
-    corners = {key: t["bounding_corner"] for key, t in tolerances.items()
-               if t is not None and t["bounding_peak_pressure_pa"] is not None and key[0] not in bad}
-    corner_row = {key: kc for kc, key in enumerate(corners)}
-    ccols = _Listed(_columns(Rows(gas, *(np.array(v, dtype=float) for v in zip(*(
-        (b["fill_pressure_pa"], b["fill_temperature_k"], math.nan, b["worst_case_temperature_k"],
-         cases[i].rated_pressure_pa, cases[i].site.atmospheric_pressure_pa, cases[i].required_margin,
-         math.nan if cases[i].relief_set_pressure_pa is None else cases[i].relief_set_pressure_pa)
-        for (i, _j), b in corners.items())))), shared_fills=True, fills=fills)) if corners else None
     for i, rows in exposures.items():
         if i in bad:
             continue
@@ -1776,15 +1782,18 @@ def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Re
                     break               # not on this path (see _corner_peaks): per row
                 # decided once, on the bounding peak; the row's nominal figures from the nominal peak (the
                 # tolerance block's, the governing peak of this very row: the same number)
-                kc = corner_row[(i, j)]
-                if ccols["fallback"][kc]:
-                    break               # the corner's limits not on this path: per row
+                b = tol["bounding_corner"]
+                if (b["fill_pressure_pa"], b["fill_temperature_k"], b["worst_case_temperature_k"]) \
+                        != corner_of[(i, j)]:
+                    break               # another corner bounds: its limits per row
                 v = _verdict(*args, bounding=tol["bounding_peak_pressure_pa"])
                 r = _row_dict(c, cols, k, {**v, "peak_pressure_pa": tol["nominal_peak_pressure_pa"]}, sun=ex,
                               fold=False)
                 r.update(peak_pressure_pa=v["peak_pressure_pa"], tolerance=tol,
-                         limits=_screen.take_off_tolerances(r["limits"], _corner_limit_values(c, ccols, kc),
-                                                            c.tolerance, True))
+                         limits=_screen.take_off_tolerances(r["limits"],
+                                                            _corner_limit_values(c, cols, corner_row[(i, j)]),
+                                                            c.tolerance, True,
+                                                            c.fill_pressure_pa >= c.rated_pressure_pa))
             for key in ("scenarios", "governing_scenario", "exposure"):
                 r.pop(key, None)
             per.append((sc.name, r, ex.balance))
@@ -2254,11 +2263,37 @@ def _screen_liquefied_scenarios(cases: list[Case], balances: dict | None = None)
     if not keys:
         return out
     rows = LiquefiedRows.of_cases([cases[i] for i, _j in keys], [exposures[i][j] for i, j in keys])
-    cols = _Listed(_liquefied_columns(rows))    # read as lists (see _screen_expanded)
-    fallback = cols["fallback"]
-    bad = {i for (i, _j), f in zip(keys, fallback) if f}
+    # then the expected bounding corner of each scenario of a vessel with tolerances (a fill by mass: its worst case
+    # alone moves), rows of the same table with their vessel's rating: its peaks serve the tolerance analysis and
+    # its limits are the vessel's with the tolerances taken off (see _screen_expanded)
+    corner_of, tags = {}, {}
+    for i, j in keys:
+        c = cases[i]
+        if c.tolerance is not None:
+            t_fill = float(c.fill_temperature_k)
+            tags[(i, j)] = c.fill_mass_kg / c.water_capacity_m3     # as LiquefiedRows.of_cases divides it
+            corner_of[(i, j)] = (tags[(i, j)], *_screen.expected_corner(
+                c, t_fill, _screen.screened_temperature(exposures[i][j].t_exposure, t_fill)))
+    if corner_of:
+        a = np.array([(tag, tf, tg, cases[i].rated_pressure_pa, cases[i].site.atmospheric_pressure_pa,
+                       cases[i].required_margin, math.nan if cases[i].relief_set_pressure_pa is None
+                       else cases[i].relief_set_pressure_pa)
+                      for (i, _j), (tag, _p, tf, tg) in corner_of.items()], dtype=float)
+        nan = np.full(a.shape[0], np.nan)
+        rows = LiquefiedRows(rows.gas, *(np.concatenate([getattr(rows, name), more]) for name, more in (
+            ("p_fill", nan), ("t_fill", a[:, 1]), ("ambient_max", nan), ("gas_temperature", a[:, 2]),
+            ("rated", a[:, 3]), ("atm", a[:, 4]), ("margin_req", a[:, 5]), ("relief", a[:, 6]),
+            ("rho_mass", a[:, 0]))))
+    # a vessel with tolerances takes its limits from its expected corner's row: its own rows' are not solved
+    cols = _Listed(_liquefied_columns(rows, limit_rows=np.array([cases[i].tolerance is None for i, _j in keys]
+                                                                + [True] * len(corner_of), dtype=bool)))
+    # read as lists (see _screen_expanded)
+    stop = [f or r or u for f, r, u in zip(cols["fallback"], cols["refused"], cols["unreachable"])]
+    bad = {i for (i, _j), f in zip(keys, cols["fallback"]) if f}
     row_of = {key: k for k, key in enumerate(keys)}
-    steps, known, ahead, tags = {}, {}, [], {}
+    corner_row = {key: len(keys) + n for n, key in enumerate(corner_of)}
+    bad |= {key[0] for key, kc in corner_row.items() if stop[kc]}     # a corner not on this path: per row
+    steps, known = {}, {}
     for k, (i, j) in enumerate(keys):
         c = cases[i]
         if i in bad or c.tolerance is None:
@@ -2270,28 +2305,14 @@ def _screen_liquefied_scenarios(cases: list[Case], balances: dict | None = None)
         peaks = _liquefied_state_peaks(cols, k)
         # the models applicable at the nominal state, in the models' order (screen._screen_at)
         names = [nm for nm in ("ideal", "generalized", "reference") if peaks[nm] is not None]
-        tags[(i, j)] = tag = float(rows.rho_mass[k])
+        tag = tags[(i, j)]
         steps[(i, j)] = _screen.tolerance_steps(c, t_fill, t_peak, names)
-        # the nominal state (the steps' first): the peaks of this row of the nominal table
+        # the nominal state (the steps' first) and the expected corner: the peaks of their rows of this table
         known[(tag, c.fill_pressure_pa, t_fill, t_peak)] = peaks
-        ahead.append((tag, *_screen.expected_corner(c, t_fill, t_peak)))
-    tolerances = _drive_states(steps, lambda todo: _liquefied_corner_peaks(cases[0].gas, todo), known, ahead,
+        known[corner_of[(i, j)]] = _liquefied_state_peaks(cols, corner_row[(i, j)])
+    tolerances = _drive_states(steps, lambda todo: _liquefied_corner_peaks(cases[0].gas, todo), known,
                                tags) if steps else {}
     bad |= {i for (i, _j), t in tolerances.items() if t is None}
-    # the limits at each bounding corner (a fill by mass: its worst case alone moves), rows of one table with their
-    # vessels' ratings (screen._corner_limits)
-    corners = {key: t["bounding_corner"] for key, t in tolerances.items()
-               if t is not None and t["bounding_peak_pressure_pa"] is not None and key[0] not in bad}
-    corner_row = {key: kc for kc, key in enumerate(corners)}
-    ccols = None
-    if corners:
-        a = np.array([(tags[key], b["fill_temperature_k"], b["worst_case_temperature_k"],
-                       cases[key[0]].rated_pressure_pa, cases[key[0]].site.atmospheric_pressure_pa,
-                       cases[key[0]].required_margin, math.nan if cases[key[0]].relief_set_pressure_pa is None
-                       else cases[key[0]].relief_set_pressure_pa) for key, b in corners.items()], dtype=float)
-        nan = np.full(a.shape[0], np.nan)
-        ccols = _Listed(_liquefied_columns(LiquefiedRows(cases[0].gas, nan, a[:, 1], nan, a[:, 2], a[:, 3], a[:, 4],
-                                                         a[:, 5], a[:, 6], rho_mass=a[:, 0])))
     for i, ex_rows in exposures.items():
         if i in bad:
             continue
@@ -2310,16 +2331,19 @@ def _screen_liquefied_scenarios(cases: list[Case], balances: dict | None = None)
                     break               # not on this path (see _liquefied_corner_peaks): per row
                 # decided once, on the bounding peak and the corners' liquid-full findings; the row's nominal
                 # figures from the nominal peak (the tolerance block's, the governing peak of this very row)
-                kc = corner_row[(i, j)]
-                if ccols["fallback"][kc] or ccols["refused"][kc] or ccols["unreachable"][kc]:
-                    break               # the corner's limits not on this path: per row
+                b = tol["bounding_corner"]
+                if (tags[(i, j)], b["fill_pressure_pa"], b["fill_temperature_k"], b["worst_case_temperature_k"]) \
+                        != corner_of[(i, j)]:
+                    break               # another corner bounds: its limits per row
                 v = _liquefied_verdict(*args, bounding=tol["bounding_peak_pressure_pa"],
                                        liquid_full_more=findings["liquid_full"])
                 r = _assemble_liquefied(c, cols, k, {**v, "peak_pressure_pa": tol["nominal_peak_pressure_pa"]},
                                         sun=ex, fold=False)
                 r.update(peak_pressure_pa=v["peak_pressure_pa"], tolerance=tol,
-                         limits=_screen.take_off_tolerances(r["limits"], _corner_limit_values(c, ccols, kc),
-                                                            c.tolerance, c.fill_pressure_pa is not None))
+                         limits=_screen.take_off_tolerances(r["limits"],
+                                                            _corner_limit_values(c, cols, corner_row[(i, j)]),
+                                                            c.tolerance, c.fill_pressure_pa is not None,
+                                                            bool(cols["fill_over"][k])))
             for key in ("scenarios", "governing_scenario", "exposure"):
                 r.pop(key, None)
             per.append((sc.name, r, ex.balance))
@@ -3184,11 +3208,13 @@ def _mass_limit_settled(cols: dict, k: int, gas: Mixture) -> bool:
     return unsettled is None or not unsettled[k]
 
 
-def _liquefied_columns(rows: Rows, mass_limit: bool = True, limits: bool = True) -> dict:
+def _liquefied_columns(rows: Rows, mass_limit: bool = True, limits: bool = True,
+                       limit_rows: np.ndarray | None = None) -> dict:
     """Fill state, phases, the reference model, the liquid-full rule and the limits of rows of one pure liquefied
     gas, as arrays (the liquefied-gas counterpart of :func:`_columns`). Rows where the contents are a gas at fill
     and at the worst case (the gas models apply), and rows a step is not sure of, are marked ``fallback``.
-    `limits` False: the models alone, for the states of tolerance corners (:func:`_liquefied_corner_peaks`)."""
+    `limits` False: the models alone, for the states of tolerance corners (:func:`_liquefied_corner_peaks`);
+    `limit_rows`: as for :func:`_columns`."""
     n = rows.t_fill.size
     t_peak, stated, fill_governs, t_exposure = worst_case(rows.ambient_max, rows.gas_temperature, rows.t_fill)
     fallback = np.zeros(n, dtype=bool)
@@ -3206,7 +3232,11 @@ def _liquefied_columns(rows: Rows, mass_limit: bool = True, limits: bool = True)
     _crossing_columns(fluid, out, fallback)
     _liquid_full_columns(rows, fluid, out, fallback)
     if limits:
-        _liquefied_limits(rows, fluid, out, fallback, mass_limit)
+        # rows left out of the limits count as fallen back for their solves, and only for those
+        skip = fallback if limit_rows is None else fallback | ~limit_rows
+        _liquefied_limits(rows, fluid, out, skip, mass_limit)
+        if limit_rows is not None:
+            fallback |= skip & limit_rows
     return out
 
 

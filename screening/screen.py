@@ -857,19 +857,18 @@ TOLERANCES_TAKEN_OFF = ("the reading tolerances are taken off: the limits are so
                         "corner, less the gas-temperature band and the fill-pressure band")
 
 
-def take_off_tolerances(limits: dict, corner: dict, tolerance: Tolerance, by_pressure: bool) -> dict:
+def take_off_tolerances(limits: dict, corner: dict, tolerance: Tolerance, by_pressure: bool, fill_over: bool) -> dict:
     """The nominal `limits` with the reading tolerances taken off: `corner` holds the limits solved at the
     tolerances' bounding corner (its fill state and its worst case, where the peak is highest); the
     gas-temperature band comes off its temperature limit and the fill-pressure band off its fill-pressure limit,
     so that a reading at a limit passes at every corner. The fill-mass limit is the corner's (a fill mass has no
-    band). A temperature limit the nominal limits leave out (a fill at or over the rating) stays out, and a
-    limit the corner has not is not given."""
+    band). `fill_over`: the fill itself is at or above the rating, so no temperature limit is given (as
+    :func:`_limits` leaves it out); a limit the corner has not is not given."""
     out = dict(limits)
     for key in ("max_fill_mass_kg", "max_filling_ratio_kg_per_l", "max_fill_mass_basis"):
         out[key] = corner[key]
     t = corner["max_gas_temperature_k"]
-    out["max_gas_temperature_k"] = (None if limits["max_gas_temperature_k"] is None or t is None
-                                    else t - tolerance.gas_temperature_k)
+    out["max_gas_temperature_k"] = None if fill_over or t is None else t - tolerance.gas_temperature_k
     p = corner["max_fill_pressure_pa"]
     out["max_fill_pressure_pa"] = p - tolerance.fill_pressure_pa if (by_pressure and p is not None) else None
     if out["max_fill_pressure_pa"] is not None and out["max_fill_pressure_pa"] <= 0.0:
@@ -1313,11 +1312,12 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
         else:
             peak = max(peak, tolerance["bounding_peak_pressure_pa"])
         corners_liquid_full = corner_findings["liquid_full"]
+    fill_over = bool(real) and case.fill_temperature_k is not None and _fill_over_rating(case, real, t_fill)
     verdict, reasons, margin, relief_margin = decide(
         peak=peak, rated=case.rated_pressure_pa, relief=case.relief_set_pressure_pa, atm=atm,
         required_margin=case.required_margin, any_real_model=bool(real), out_of_scope_reason=out_of_scope,
         liquid_full_reason=liquid_full_reason(liquid_full, corners_liquid_full), filling_ratio_reason=ratio_reason,
-        fill_over=bool(real) and case.fill_temperature_k is not None and _fill_over_rating(case, real, t_fill))
+        fill_over=fill_over)
 
     limits = _limits(case, models, t_fill, t_peak) if real else {
         "max_fill_mass_kg": None, "max_filling_ratio_kg_per_l": None, "max_fill_mass_basis": None,
@@ -1325,7 +1325,7 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
         "note": "no real-gas model applies, so no limit is given"}
     if real and tolerance is not None and tolerance["bounding_peak_pressure_pa"] is not None:
         limits = take_off_tolerances(limits, _corner_limits(case, tolerance["bounding_corner"]), case.tolerance,
-                                     case.fill_pressure_pa is not None)
+                                     case.fill_pressure_pa is not None, fill_over)
     limits["liquid_full_temperature_k"] = fs.liquid_full_temperature
     limits["dry_out_temperature_k"] = fs.dry_out_temperature
     limits["phase_boundary_pressure_pa"] = fs.crossing_pressure
