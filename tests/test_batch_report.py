@@ -106,3 +106,21 @@ def test_the_chart_caption_describes_the_chart_drawn(tmp_path, monkeypatch):
     monkeypatch.setattr(br, "BAR_CHART_MAX", 1)            # more vessels than bars: a histogram
     view = br._part_view([("summary",)], common, rs, None)
     assert "How many vessels" in view["units"][0]["chart_caption"]
+
+
+def test_a_detail_lists_the_reading_tolerances_and_the_relief_setting_its_verdict_counts():
+    # an invented vessel with tolerances and a relief set below its rating: its detail says what the verdict and
+    # the limits counted (the bands, the bounding and the nominal peak, the relief setting and the margin to it)
+    from screening.engine import screen_text
+
+    r = screen_text('id = "T"\n[vessel]\nwater_capacity = "50 L"\nrated_pressure = "300 bar(g)"\n'
+                    'relief_set_pressure = "250 bar(g)"\n[fill]\ngas = "argon"\npressure = "200 bar(g)"\n'
+                    'temperature = "15 degC"\n[exposure]\nambient_max = "55 degC"\n[tolerance]\n'
+                    'fill_pressure = "6 bar"\nfill_temperature = "2 K"\ngas_temperature = "3 K"\n')
+    figures = dict(br._detail(r)["figures"])
+    assert figures["Reading tolerances"] == ("fill pressure \u00b1 6.00 bar, fill temperature \u00b1 2.00 K, "
+                                             "gas temperature \u00b1 3.00 K")
+    assert figures["Peak pressure, bounding the tolerances"] != figures["Nominal peak pressure"]
+    assert figures["Relief set pressure"] == "250.0 bar(g)"
+    assert "Margin to relief set pressure" in figures
+    assert "Highest gas temperature (the relief set pressure reached, tolerances taken off)" in figures

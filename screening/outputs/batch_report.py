@@ -27,7 +27,7 @@ from pathlib import PurePath
 import numpy as np
 
 from screening import parallel
-from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
+from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION, ceiling_name
 from screening.outputs.actions import action_line
 from screening.outputs.listing import ranked
 from screening.outputs.plot import drawable_models, plot_png, png_data_uri, svg_data_uri
@@ -39,6 +39,7 @@ from screening.outputs.report import (
     _source_date_epoch,
     model_title,
     templates_dir,
+    tolerance_bands,
 )
 from screening.outputs.text import fmt_pressure, reasons_shown, visible
 from screening.result import Result
@@ -142,13 +143,28 @@ def _detail(r: Result | dict, location: str = "") -> dict:
          if fill.pressure_pa is not None else f"{fill.mass_kg or 0:.3f} kg"),
         ("Worst-case gas temperature", f"{format_temperature(r.worst_case_temperature_k, tu)} "
                                        f"({r.worst_case_basis})"),
-        ("Peak pressure", P(r.peak_pressure_pa)),
-        ("Rated pressure", P(r.rated_pressure_pa)),
+    ]
+    bands = tolerance_bands(r)
+    if bands:
+        d["figures"] += [("Reading tolerances", bands),
+                         ("Peak pressure, bounding the tolerances", P(r.peak_pressure_pa)),
+                         ("Nominal peak pressure", P(r.nominal_peak_pressure_pa))]
+    else:
+        d["figures"].append(("Peak pressure", P(r.peak_pressure_pa)))
+    d["figures"] += [("Rated pressure", P(r.rated_pressure_pa))]
+    if r.relief_set_pressure_pa is not None:
+        d["figures"].append(("Relief set pressure", P(r.relief_set_pressure_pa)))
+    d["figures"] += [
         ("Margin to rated", format_percent(r.margin_fraction)),
+    ]
+    if r.relief_set_pressure_pa is not None:
+        d["figures"].append(("Margin to relief set pressure", format_percent(r.relief_margin_fraction)))
+    d["figures"] += [
         ("Required margin", format_percent(r.required_margin_fraction)),
         ("Governing model", model_title(r, r.governing_model)),
-        ("Highest gas temperature", format_temperature(lim.max_gas_temperature_k, tu)),
-        ("Highest fill pressure", P(lim.max_fill_pressure_pa)),
+        (f"Highest gas temperature ({ceiling_name(r.relief_set_pressure_pa, r.rated_pressure_pa)} reached"
+         + (", tolerances taken off)" if bands else ")"), format_temperature(lim.max_gas_temperature_k, tu)),
+        ("Highest fill pressure" + (" (tolerances taken off)" if bands else ""), P(lim.max_fill_pressure_pa)),
     ]
     d["models"] = [(model_title(r, n), P(m.peak_pressure_pa) if m.applicable else "not applicable: " + m.note)
                    for n, m in r.models.items()]

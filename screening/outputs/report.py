@@ -474,6 +474,21 @@ def _scenario_rows(result: Result, f: _Fmt) -> list[dict] | None:
     return rows
 
 
+def tolerance_bands(result: Result) -> str | None:
+    """The reading tolerances of a result in one line ("fill pressure ± 6.00 bar, …", the bands it has), for a
+    view that has no room for the tolerance section; None where there are none."""
+    tol = result.tolerance
+    if not tol:
+        return None
+    f = _Fmt(result)
+    bands = [f"fill pressure \u00b1 {f.dP(tol.fill_pressure_band_pa)}" if tol.fill_pressure_band_pa else None,
+             f"fill temperature \u00b1 {_unit(num(tol.fill_temperature_band_k, 2), 'K')}"
+             if tol.fill_temperature_band_k else None,
+             f"gas temperature \u00b1 {_unit(num(tol.gas_temperature_band_k, 2), 'K')}"
+             if tol.gas_temperature_band_k else None]
+    return ", ".join(b for b in bands if b) or None
+
+
 def _tolerance_view(result: Result, f: _Fmt) -> dict | None:
     """Nominal against bounding peak, the bands as entered, the bounding corner and the sensitivities."""
     tol = result.tolerance
