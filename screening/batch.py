@@ -36,7 +36,14 @@ from typing import Iterator
 
 from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION
 from screening.errors import InputError
-from screening.inputs.inventory import Inventory, load_defaults, open_inventory, read_inventory, row_case
+from screening.inputs.inventory import (
+    Inventory,
+    check_pressure_bases,
+    load_defaults,
+    open_inventory,
+    read_inventory,
+    row_case,
+)
 from screening.outputs.files import atomic_writer, check_target
 from screening.outputs.listing import ORDER, cells, ranked, severity_key, severity_key_of, summary
 from screening.outputs.tables import (
@@ -859,6 +866,7 @@ def run(args) -> int:
 
     reg = open_inventory(args.inventory, sheet=args.sheet, decimal=getattr(args, "decimal", None))
     defaults = load_defaults(args.defaults, reg.columns) if args.defaults else None
+    check_pressure_bases(reg.columns, defaults, reg.source)
     targets = [(p, what) for p, what in ((args.json, "JSON output"), (args.csv, "CSV output"),
                                          (getattr(args, "xlsx", None), "XLSX output"),
                                          (getattr(args, "jsonl", None), "JSON Lines output"),

@@ -15,6 +15,7 @@ import signal
 import zipfile
 
 import pytest
+from helpers import cli
 
 from screening.cli import run
 from screening.errors import InputError
@@ -112,6 +113,28 @@ def test_a_bare_number_without_a_unit_says_what_is_missing(tmp_path):
     _, rows = batch(tmp_path, write(tmp_path, text))
     assert rows[0]["verdict"] == "input-error"
     assert "a number without its unit" in rows[0]["reasons"] and "water_capacity [L]" in rows[0]["reasons"]
+
+
+def test_a_pressure_header_without_its_basis_is_one_message_for_the_file(tmp_path, capsys):
+    # '[bar]' in a header says neither gauge nor absolute: every bare number of the column would be refused, so the
+    # file is refused once, naming its columns (exit 2, nothing written); a basis in the defaults, or a column of
+    # its own, reads them
+    text = ("id,gas,water_capacity [L],rated_pressure [bar],fill_pressure [bar],fill_temperature [degC],"
+            "ambient_max [degC]\nA,nitrogen,50,300,200,15,45\nB,argon,50,300,200,15,45\n")
+    path = write(tmp_path, text)
+    out = tmp_path / "out.csv"
+    code, _out, err = cli(capsys, "batch", str(path), "--csv", str(out), "--quiet")
+    assert code == 2
+    assert err.count("\n") == 1 and "Traceback" not in err
+    assert "column 4 ('rated_pressure [bar]'), column 5 ('fill_pressure [bar]')" in err
+    assert "'rated_pressure [bar(g)]' (gauge)" in err and "pressure_basis" in err
+    assert not out.exists()
+    defaults = write(tmp_path, 'pressure_basis = "gauge"\n', "d.toml")
+    code, rows = batch(tmp_path, path, "--defaults", str(defaults))
+    assert [r["verdict"] for r in rows] == ["within", "within"]
+    code, rows = batch(tmp_path, write(tmp_path, text.replace("ambient_max [degC]\n", "ambient_max [degC],basis\n")
+                                       .replace(",45\n", ",45,gauge\n"), "b.csv"))
+    assert [r["verdict"] for r in rows] == ["within", "within"]
 
 
 def _xlsx(path, sheets):

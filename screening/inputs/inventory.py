@@ -38,9 +38,11 @@ from screening.inputs.headers import (
     Column,
     is_header,
     match_header,
+    split_header,
 )
 
-__all__ = ["Column", "Inventory", "Register", "open_inventory", "read_inventory", "load_defaults", "row_case"]
+__all__ = ["Column", "Inventory", "Register", "check_pressure_bases", "open_inventory", "read_inventory",
+           "load_defaults", "row_case"]
 
 #: Column name -> case key (every accepted spelling), kept for callers that look a name up.
 COLUMNS: dict[str, str] = dict(NAME_TO_KEY)
@@ -312,6 +314,33 @@ def read_inventory(path: str | Path, sheet: str | None = None, decimal: str | No
     """The header and every row of an inventory file. File-level problems raise InputError (exit 2)."""
     reg = open_inventory(path, sheet, decimal)
     return reg.part(list(reg.rows()))
+
+
+def check_pressure_bases(columns: list[Column], defaults: dict | None, source: str) -> None:
+    """Refuse, in one message naming the columns, an inventory whose pressure column gives a unit without its basis
+    in its header ('rated_pressure [bar]') where nothing else gives one (no pressure_basis column, none in the
+    defaults): every bare number of that column would be refused, row after row, for the header's sake."""
+    from screening.units import parse
+
+    if any(c.key == "pressure_basis" for c in columns) or (defaults or {}).get("pressure_basis"):
+        return
+    bad = []
+    for pos, c in enumerate(columns):
+        # the site's atmospheric pressure is absolute whatever its unit says
+        if c.key is None or c.unit is None or KINDS.get(c.key) != "pressure" or c.key == "site.atmospheric_pressure":
+            continue
+        try:
+            parse(f"1 {c.unit}", "pressure")
+        except InputError:
+            bad.append((pos, c))
+    if bad:
+        first = bad[0][1]
+        name = split_header(first.header)[0]
+        raise _fail("a pressure unit in a header must say whether it is gauge or absolute: "
+                    + ", ".join(f"column {pos + 1} ('{c.header}')" for pos, c in bad), source,
+                    given=f"[{first.unit}]",
+                    expected=f"'{name} [{first.unit}(g)]' (gauge) or '{name} [{first.unit}(a)]' (absolute) in the "
+                             "header, or pressure_basis in a defaults file or a column of its own")
 
 
 # ----------------------------------------------------------------------------- defaults

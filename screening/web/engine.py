@@ -113,7 +113,7 @@ def inventory(folder: str, filename: str, sheet: str | None, date_iso: str, pdf:
     Returns the final status. An unreadable file is a final status with its one message.
     """
     from screening import batch
-    from screening.inputs.inventory import read_inventory
+    from screening.inputs.inventory import check_pressure_bases, read_inventory
     from screening.web import batch_outputs
 
     t0 = time.perf_counter()
@@ -129,6 +129,7 @@ def inventory(folder: str, filename: str, sheet: str | None, date_iso: str, pdf:
         os.chdir(folder)   # messages name the file as uploaded, not the server's folder
         try:
             inv = read_inventory(filename, sheet=sheet)
+            check_pressure_bases(inv.columns, None, inv.source)
         except InputError as exc:
             state = dict(stage="failed", message=str(exc), seconds=time.perf_counter() - t0)
             _status(folder, **state)
