@@ -129,6 +129,21 @@ def test_a_wrong_entry_is_shown_beside_its_field_in_label_words(client, field, v
     assert f'value="{value}"' in page.text
 
 
+def test_every_wrong_entry_of_a_form_is_shown_in_one_round_trip(client):
+    # three fields wrong at once: each gets its message beside it, the box on top lists them, the first has focus
+    page = client.post("/vessel", data=dict(N2, rated_pressure="three hundred", water_capacity="",
+                                            fill_temperature="-300"))
+    assert page.status_code == 422
+    for field, words in (("rated_pressure", "Rated pressure:"), ("water_capacity", "Water capacity:"),
+                         ("fill_temperature", "Fill temperature:")):
+        beside = re.search(rf'<p class="error" id="{field}-error"><strong>Check this:</strong> (.*?)</p>',
+                           page.text, re.S)
+        assert beside and beside.group(1).startswith(words), field
+        assert f'href="#{field}"' in page.text
+    assert "3 fields need a change." in page.text
+    assert len(re.findall(r"<input [^>]*aria-invalid=\"true\"[^>]*autofocus", page.text)) == 1
+
+
 def test_key_names_in_a_message_become_label_words_and_ordinary_words_stay():
     from screening.errors import InputError
 

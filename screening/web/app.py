@@ -113,18 +113,31 @@ class App:
                [(g.name, ", ".join(g.aliases) + " (dissolved: outside the method)") for g in library().values()
                 if g.kind == "dissolved"]
 
-    def vessel(self, values: dict, *, answer=None, error=None, error_field=None, notes=(), status=200):
+    def vessel(self, values: dict, *, answer=None, error=None, field_errors=None, notes=(), status=200):
+        """The vessel page: `error` a message on top (no field of its own), `field_errors` {field name: message}
+        in the form's order of messages (the first field gets the focus)."""
+        field_errors = dict(field_errors or {})
         return self.render("vessel.html.j2", status=status, page="vessel", v=values, answer=answer, error=error,
-                           error_field=error_field, notes=list(notes), gases=self.gas_names(),
-                           finishes=self.finishes(), title="Screen one vessel")
+                           field_errors=field_errors, first_error=next(iter(field_errors), None),
+                           labels_of={n: form.BY_NAME[n].label for n in field_errors},
+                           optional_error=any(n.startswith(("sc", "tol")) or n == "required_margin"
+                                              for n in field_errors), notes=list(notes),
+                           gases=self.gas_names(), finishes=self.finishes(), title="Screen one vessel")
 
     def screened(self, values: dict, text: str, notes=(), source: str | None = None):
         source = source or _safe_name(values.get("id") or "case", "case") + ".toml"
         got = self.runner.answer(text, source)
         if isinstance(got, InputError):
             field = form.field_for_key(got.key, values)
-            return self.vessel(values, error=form.message_for_field(got, field),
-                               error_field=field.name if field else None, notes=notes, status=422)
+            if field is None:
+                return self.vessel(values, error=form.message_for_field(got, None), notes=notes, status=422)
+            # the other fields the reader refuses too, in one round trip
+            field_errors = {field.name: form.message_for_field(got, field)}
+            for more in self.runner.form_errors(values, source):
+                f = form.field_for_key(more.key, values)
+                if f is not None and f.name not in field_errors:
+                    field_errors[f.name] = form.message_for_field(more, f)
+            return self.vessel(values, field_errors=field_errors, notes=notes, status=422)
         return self.vessel(values, answer=got, notes=notes)
 
     async def read_form(self, request: Request):

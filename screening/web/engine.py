@@ -67,9 +67,7 @@ def answer(text: str, source: str) -> dict:
     try:
         result = screen_text(text, source)
     except InputError as exc:
-        # sent back as its fields: a subclass (UnknownGas) need not survive pickling on its own
-        return {"error": dict(message=exc.message, file=exc.file, key=exc.key, row=exc.row, column=exc.column,
-                              given=None if exc.given is None else str(exc.given), expected=exc.expected)}
+        return {"error": _error_fields(exc)}
     view = build_view(result, text, _dt.date.today())
     # the plots travel as SVG text and are served from this server (no data: URIs under the page's
     # content security policy)
@@ -78,6 +76,45 @@ def answer(text: str, source: str) -> dict:
     phase_svg = _svg_of(phase.pop("plot_uri", None)) if phase else None
     return {"result": result, "view": view, "plot_svg": plot_svg, "phase_svg": phase_svg,
             "seconds": time.perf_counter() - t0}
+
+
+def _error_fields(exc: InputError) -> dict:
+    """An InputError as its fields (a subclass such as UnknownGas need not survive pickling on its own)."""
+    return dict(message=exc.message, file=exc.file, key=exc.key, row=exc.row, column=exc.column,
+                given=None if exc.given is None else str(exc.given), expected=exc.expected)
+
+
+#: At most this many messages for one form (one a field).
+FORM_ERRORS_MAX = 8
+
+
+def form_errors(values: dict, source: str) -> list[dict]:
+    """Every field of a form that the case reader refuses, each with its first message, so that one round trip
+    shows them all: the form's case read, the field its message names taken out of the way (form.stand_in: a
+    value the reader takes where the field is required, else empty), read again, until it reads, a message names
+    no field or a field named before, or FORM_ERRORS_MAX messages. Each as InputError fields
+    (:func:`_error_fields`)."""
+    from screening.inputs.case import parse_case_text
+    from screening.web import form
+
+    values = dict(values)
+    got: list[dict] = []
+    seen: set[str] = set()
+    while len(got) < FORM_ERRORS_MAX:
+        try:
+            parse_case_text(form.case_text(values), source)
+        except InputError as exc:
+            field = form.field_for_key(exc.key, values)
+            if field is not None and field.name in seen:
+                break
+            got.append(_error_fields(exc))
+            if field is None:
+                break
+            seen.add(field.name)
+            values.update(form.stand_in(field.name))
+            continue
+        break
+    return got
 
 
 def report_pdf(result: Result, text: str, date_iso: str) -> bytes:

@@ -109,6 +109,20 @@ ORIENTATIONS = (("horizontal", "lying (horizontal)"), ("vertical", "standing (ve
 RATED_KINDS = ("test pressure", "working pressure", "design pressure", "maximum allowable working pressure")
 
 
+#: Values the reader takes, put in place of a refused required field while the form's other fields are checked
+#: (web.engine.form_errors): the value and its unit.
+STAND_INS = {"id": ("V", None), "gas": ("nitrogen", None), "water_capacity": ("50", "L"),
+             "rated_pressure": ("300", "bar(g)"), "fill_pressure": ("200", "bar(g)"), "fill_mass": ("10", "kg"),
+             "fill_temperature": ("15", "degC"), "ambient_max": ("45", "degC"), "gas_temperature": ("65", "degC")}
+
+
+def stand_in(name: str) -> dict:
+    """Form values that take a refused field `name` out of the way: a value the reader takes for a required
+    field (STAND_INS), else empty."""
+    value, unit = STAND_INS.get(name, ("", None))
+    return {name: value, **({name + "_unit": unit} if unit else {})}
+
+
 def blank() -> dict:
     """Form values of an empty form, with the default units and choices."""
     v = {f.name: "" for f in FIELDS}
@@ -280,7 +294,10 @@ def in_label_words(text: str) -> str:
 
 
 def message_for_field(exc, field: Field | None) -> str:
-    """The InputError's message, without its file and key, in the field's words."""
+    """The InputError's message, without its file and key, in the field's words (a required field left empty is
+    said in the form's words, not the case file's)."""
+    if field is not None and exc.message == "required key is missing":
+        return f"{field.label}: required; enter a value"
     text = exc.message
     if exc.given is not None:
         text += f" (given: {exc.given!r}" + (f"; expected: {exc.expected})" if exc.expected else ")")

@@ -126,6 +126,10 @@ class Runner:
     def labels(self) -> dict:
         return self._vessel(engine.labels)
 
+    def form_errors(self, values: dict, source: str) -> list[InputError]:
+        """Every refused field of a form, each with its first message (engine.form_errors)."""
+        return [InputError(**e) for e in self._vessel(engine.form_errors, values, source)]
+
     def get_answer(self, token: str) -> Answer | None:
         with self._lock:
             return self._answers.get(token)
