@@ -376,6 +376,20 @@ def test_an_unreadable_inventory_says_why(client):
     assert "bad.csv" in status and "fill_presure" in status
 
 
+def test_an_inventory_whose_pressure_header_lacks_its_basis_says_so_once(client):
+    # 'rated_pressure [bar]' says neither gauge nor absolute and nothing else does: the file is refused, naming
+    # the column, instead of every row being refused for it
+    text = (b"id,gas,water_capacity [L],rated_pressure [bar],fill_pressure [bar(g)],fill_temperature [degC],"
+            b"ambient_max [degC]\nA,nitrogen,50,300,200,15,45\n")
+    sent = client.post("/inventory", files={"inventory_file": ("basis.csv", text, "text/csv")}, follow_redirects=False)
+    job = sent.headers["location"]
+    deadline = time.monotonic() + 120
+    while "could not be read:" not in (status := client.get(job + "/status").text):
+        assert time.monotonic() < deadline and "Done:" not in status
+        time.sleep(0.3)
+    assert "basis.csv" in status and "rated_pressure [bar]" in status and "gauge or absolute" in status
+
+
 def test_a_large_inventory_offers_its_batch_pdf_and_writes_it_on_request(client):
     from screening.web.engine import PDF_AT_ONCE_ROWS
 
