@@ -1791,8 +1791,7 @@ def _screen_expanded(cases: list[Case], balances: dict | None = None) -> list[Re
                               fold=False)
                 r.update(peak_pressure_pa=v["peak_pressure_pa"], tolerance=tol,
                          limits=_screen.take_off_tolerances(r["limits"],
-                                                            _corner_limit_values(c, cols, corner_row[(i, j)]),
-                                                            c.tolerance, True,
+                                                            _corner_limit_values(c, cols, corner_row[(i, j)]), c,
                                                             c.fill_pressure_pa >= c.rated_pressure_pa))
             for key in ("scenarios", "governing_scenario", "exposure"):
                 r.pop(key, None)
@@ -2341,8 +2340,7 @@ def _screen_liquefied_scenarios(cases: list[Case], balances: dict | None = None)
                                         sun=ex, fold=False)
                 r.update(peak_pressure_pa=v["peak_pressure_pa"], tolerance=tol,
                          limits=_screen.take_off_tolerances(r["limits"],
-                                                            _corner_limit_values(c, cols, corner_row[(i, j)]),
-                                                            c.tolerance, c.fill_pressure_pa is not None,
+                                                            _corner_limit_values(c, cols, corner_row[(i, j)]), c,
                                                             bool(cols["fill_over"][k])))
             for key in ("scenarios", "governing_scenario", "exposure"):
                 r.pop(key, None)

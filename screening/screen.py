@@ -17,7 +17,7 @@ import numpy as np
 from screening import __version__
 from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION, ceiling_name
 from screening.errors import InputError, NotApplicable
-from screening.inputs.case import Case, Exposure, Tolerance
+from screening.inputs.case import Case, Exposure
 from screening.physics.eos.generalized import (
     _SCALAR_MAX as _LK_SCALAR_MAX,
 )
@@ -857,22 +857,31 @@ TOLERANCES_TAKEN_OFF = ("the reading tolerances are taken off: the limits are so
                         "corner, less the gas-temperature band and the fill-pressure band")
 
 
-def take_off_tolerances(limits: dict, corner: dict, tolerance: Tolerance, by_pressure: bool, fill_over: bool) -> dict:
-    """The nominal `limits` with the reading tolerances taken off: `corner` holds the limits solved at the
-    tolerances' bounding corner (its fill state and its worst case, where the peak is highest); the
+def take_off_tolerances(limits: dict, corner: dict, case: Case, fill_over: bool) -> dict:
+    """The nominal `limits` of `case` with its reading tolerances taken off: `corner` holds the limits solved at
+    the tolerances' bounding corner (its fill state and its worst case, where the peak is highest); the
     gas-temperature band comes off its temperature limit and the fill-pressure band off its fill-pressure limit,
-    so that a reading at a limit passes at every corner. The fill-mass limit is the corner's (a fill mass has no
-    band). `fill_over`: the fill itself is at or above the rating, so no temperature limit is given (as
-    :func:`_limits` leaves it out); a limit the corner has not is not given."""
+    so that a reading at a limit passes at every corner. A band given as a share of the reading ('1 %') is that
+    share of the reading at the limit, not of the fill's (Tolerance.fill_pressure_share). The fill-mass limit is
+    the corner's (a fill mass has no band). `fill_over`: the fill itself is at or above the rating, so no temperature
+    limit is given (as :func:`_limits` leaves it out); a limit the corner has not is not given."""
+    tolerance, p0 = case.tolerance, case.fill_pressure_pa
     out = dict(limits)
     for key in ("max_fill_mass_kg", "max_filling_ratio_kg_per_l", "max_fill_mass_basis"):
         out[key] = corner[key]
     t = corner["max_gas_temperature_k"]
     out["max_gas_temperature_k"] = None if fill_over or t is None else t - tolerance.gas_temperature_k
     p = corner["max_fill_pressure_pa"]
-    out["max_fill_pressure_pa"] = p - tolerance.fill_pressure_pa if (by_pressure and p is not None) else None
-    if out["max_fill_pressure_pa"] is not None and out["max_fill_pressure_pa"] <= 0.0:
+    if p0 is None or p is None:
         out["max_fill_pressure_pa"] = None
+        return out
+    if tolerance.fill_pressure_share is not None:
+        # R + share * (R - offset) = p: the reading whose band reaches the corner's limit
+        share, offset = tolerance.fill_pressure_share
+        reading = (p + share * offset) / (1.0 + share)
+    else:
+        reading = p - tolerance.fill_pressure_pa
+    out["max_fill_pressure_pa"] = reading if reading > 0.0 else None
     return out
 
 
@@ -1324,8 +1333,7 @@ def _screen_at(case: Case, t_peak: float, basis: str, warnings: list) -> dict:
         "max_gas_temperature_k": None, "max_fill_pressure_pa": None, "target_peak_pressure_pa": None,
         "note": "no real-gas model applies, so no limit is given"}
     if real and tolerance is not None and tolerance["bounding_peak_pressure_pa"] is not None:
-        limits = take_off_tolerances(limits, _corner_limits(case, tolerance["bounding_corner"]), case.tolerance,
-                                     case.fill_pressure_pa is not None, fill_over)
+        limits = take_off_tolerances(limits, _corner_limits(case, tolerance["bounding_corner"]), case, fill_over)
     limits["liquid_full_temperature_k"] = fs.liquid_full_temperature
     limits["dry_out_temperature_k"] = fs.dry_out_temperature
     limits["phase_boundary_pressure_pa"] = fs.crossing_pressure

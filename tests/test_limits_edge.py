@@ -127,3 +127,18 @@ def test_a_batch_gives_the_same_limits_as_the_one_vessel_screening(tolerance):
             assert (a is None) == (b is None), key
             if a is not None:
                 assert b == pytest.approx(a, rel=2e-9), key
+
+
+@pytest.mark.parametrize("route", ["engine", "states"])
+def test_a_band_given_as_a_share_of_the_reading_is_that_share_at_the_limit(route):
+    # a fill-pressure band of 1 % of the reading, the limit well above the fill: at the limit the band is 1 % of
+    # the limit's reading, larger than the fill's, and a reading just inside it still passes at every corner
+    share = '[tolerance]\nfill_pressure = "1 %"\nfill_temperature = "2 K"\ngas_temperature = "3 K"\n'
+    text = _text("argon", 300, None, 'pressure = "120 bar(g)"') + share
+    r = _screen(text, route)
+    p = r.limits.max_fill_pressure_pa
+    assert p > 150e5
+    inside = screen_text(_text("argon", 300, None, _pressure(p - 1e-5 * (p - ATM))) + share)
+    outside = screen_text(_text("argon", 300, None, _pressure(p + 1e-5 * (p - ATM))) + share)
+    assert inside.verdict == "within", (inside.verdict, inside.reasons)
+    assert outside.verdict != "within"

@@ -83,6 +83,10 @@ class Tolerance:
     fill_temperature_k: float = 0.0
     gas_temperature_k: float = 0.0
     entered: dict = field(default_factory=dict)
+    #: a fill-pressure band given as a share of the reading ('1 %'): (the share [-], the offset [Pa] of the reading
+    #: as shown: the atmospheric pressure for a gauge reading, 0 for an absolute one), so that the band at another
+    #: reading R [Pa, absolute] is share * (R - offset); None for a band in pressure or of a gauge's full scale
+    fill_pressure_share: tuple[float, float] | None = None
 
 
 @dataclass(frozen=True)
@@ -441,7 +445,7 @@ def _tolerance(r: _Reader, fill_p: float | None, fill_t: float | None,
         if fill_p is None:
             raise r.err("a fill-pressure tolerance needs a fill pressure", "tolerance.fill_pressure", given=tp,
                         expected="[fill] pressure, or no fill_pressure tolerance")
-        band_p = _pressure_band(r, tp)
+        band_p, share = _pressure_band(r, tp)
         entered["fill_pressure"] = tp
 
     def band_t(key, reading_k):
@@ -457,14 +461,17 @@ def _tolerance(r: _Reader, fill_p: float | None, fill_t: float | None,
     return Tolerance(band_p, band_t("fill_temperature", fill_t),
                      band_t("gas_temperature", min(t for s in scenarios for t in
                                                    (s.gas_temperature_k, s.ambient_max_k) if t)),
-                     entered)
+                     entered, share if tp is not None else None)
 
 
-def _pressure_band(r: _Reader, tp) -> float:
+def _pressure_band(r: _Reader, tp) -> tuple[float, tuple[float, float] | None]:
     """The fill-pressure band [Pa]: a pressure ('2 bar'), a share of the reading ('1 %') or of a gauge's
-    full scale ('1.6 % of 400 bar')."""
+    full scale ('1.6 % of 400 bar'); and for a share of the reading, (the share, the reading's offset [Pa]:
+    Tolerance.fill_pressure_share), else None."""
     source = r.source
-    reading_value = parse(r.raw("fill", "pressure"), "pressure", pressure_basis=r.basis).si()  # as shown [Pa]
+    reading = parse(r.raw("fill", "pressure"), "pressure", pressure_basis=r.basis)
+    reading_value = reading.si()  # as shown [Pa]
+    share = None
     m = _FULL_SCALE.match(tp) if isinstance(tp, str) else None
     if m:
         pct = parse(m.group(1), "fraction", file=source, key="tolerance.fill_pressure").si()
@@ -472,14 +479,16 @@ def _pressure_band(r: _Reader, tp) -> float:
                       key="tolerance.fill_pressure").si()
         band_p = pct * scale
     elif isinstance(tp, str) and tp.strip().endswith("%"):
-        band_p = parse(tp, "fraction", file=source, key="tolerance.fill_pressure").si() * reading_value
+        fraction = parse(tp, "fraction", file=source, key="tolerance.fill_pressure").si()
+        band_p = fraction * reading_value
+        share = (fraction, r.p_atm if reading.unit.basis == "gauge" else 0.0)
     else:
         band_p = parse(tp, "pressure", pressure_basis="gauge", file=source, key="tolerance.fill_pressure").si()
     if band_p < 0.0 or band_p >= reading_value:
         raise r.err("the fill-pressure tolerance must be at least zero and smaller than the reading",
                     "tolerance.fill_pressure", given=tp,
                     expected=f"below {r.raw('fill', 'pressure')}, e.g. '2 bar', '1 %' or '1.6 % of 400 bar'")
-    return band_p
+    return band_p, share
 
 
 def _criteria(r: _Reader) -> tuple[float, bool]:
