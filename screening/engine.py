@@ -1168,7 +1168,7 @@ def _reference_limits(rows: Rows, fluid: ReferenceFluid, pure: bool, out: dict, 
             j = live[with_lk]
             pj, vj, _ = fluid.pressures(rho_ref[j], t_lk[j])
             fallback[j[~vj]] = True
-            below = vj & (pj < ceiling[j])           # reference still under the rating there: its root is higher
+            below = vj & (pj < ceiling[j])         # reference still under the ceiling there: its root is higher
             need = np.setdiff1d(live, j[below])
         need = need[~fallback[need]]
         if need.size:
@@ -2892,9 +2892,9 @@ def _newton_in_bracket(g: Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, n
 _GUESS_DT = 1e-3
 
 
-def _newton_guess(fluid: ReferenceFluid, rho: np.ndarray, rated: np.ndarray, rows: np.ndarray,
+def _newton_guess(fluid: ReferenceFluid, rho: np.ndarray, ceiling: np.ndarray, rows: np.ndarray,
                   guess: np.ndarray, boundary: np.ndarray | None = None) -> np.ndarray:
-    """A guess of the temperature at which the isochores of rows `rows` reach the rating, bettered by one Newton
+    """A guess of the temperature at which the isochores of rows `rows` reach the ceiling, bettered by one Newton
     step on the isochore's own slope at it (the guess kept where the isochore cannot be evaluated there or does
     not rise). A starting point only (:func:`_scan_up` settles on the same points whatever it is guessed).
     `boundary`: per row, where its isochore leaves the dome; below it the isochore is the vapour pressure, whose
@@ -2913,21 +2913,22 @@ def _newton_guess(fluid: ReferenceFluid, rho: np.ndarray, rated: np.ndarray, row
         if kf.size:
             p[kf], d[kf] = fluid.isochore_slopes(rho[r[kf]], out[g[kf]])
         with np.errstate(invalid="ignore", divide="ignore"):
-            step = out[g] - (p - rated[r]) / d
+            step = out[g] - (p - ceiling[r]) / d
         use = np.isfinite(step) & (d > 0.0)
         out[g[use]] = step[use]
     return out
 
 
 def _temperature_limit(fluid: ReferenceFluid, f_t: Callable[[np.ndarray, np.ndarray], np.ndarray],
-                       rho: np.ndarray, rated: np.ndarray, rows: np.ndarray, lo: np.ndarray, mid: np.ndarray,
+                       rho: np.ndarray, ceiling: np.ndarray, rows: np.ndarray, lo: np.ndarray, mid: np.ndarray,
                        f_mid: np.ndarray, hi: np.ndarray, boundary: np.ndarray,
                        guess: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
     """What :func:`_increasing_root` (stepwise) finds for the gas temperature at which the reference isochore
-    f_t(T, rows) = p(rho, T) / rated - 1 of rows `rows` reaches the rating, in fewer evaluations: where f_t can be
-    evaluated at both ends of the bracket that _increasing_root solves in ([mid, min(hi, t_max)] or [lo, mid]),
+    f_t(T, rows) = p(rho, T) / ceiling - 1 of rows `rows` reaches the ceiling (the rating, or a lower relief
+    setting: Rows.ceiling), in fewer evaluations: where f_t can be evaluated at both ends of the bracket that
+    _increasing_root solves in ([mid, min(hi, t_max)] or [lo, mid]),
     the root inside it is the one it finds (f_t increasing), and it is solved here by Newton steps on the
-    isochore's own slope (:func:`_newton_in_bracket`), starting from the saturation temperature at the rating where
+    isochore's own slope (:func:`_newton_in_bracket`), starting from the saturation temperature at the ceiling where
     that lies on the dome part of the isochore (below `boundary`, where the isochore leaves the dome: there the
     isochore's pressure is the vapour pressure), else from the regula-falsi point of the bracket. An end past the
     equation's range is scanned upwards from mid as there (:func:`_scan_up`); rows this does not settle go through
@@ -2952,7 +2953,7 @@ def _temperature_limit(fluid: ReferenceFluid, f_t: Callable[[np.ndarray, np.ndar
             s = up[nan]
             # f_t cannot be evaluated at `end`, so nowhere above it either (the range is one interval from lo)
             root[s] = _scan_up(f_t, rows[s], lo[s], mid[s], f_mid[s], hi[s], nan_from=end[s],
-                               guess=None if guess is None else _newton_guess(fluid, rho, rated, rows[s], guess[s],
+                               guess=None if guess is None else _newton_guess(fluid, rho, ceiling, rows[s], guess[s],
                                                                              boundary[s]))
             done[s] = True
         below = ~nan & (f_end < 0.0)
@@ -2980,19 +2981,19 @@ def _temperature_limit(fluid: ReferenceFluid, f_t: Callable[[np.ndarray, np.ndar
     if s.size:
         with np.errstate(invalid="ignore", divide="ignore"):
             x0 = (a[s] * fb[s] - b[s] * fa[s]) / (fb[s] - fa[s])
-        t_sat = fluid.saturation_temperatures(rated[rows[s]])
+        t_sat = fluid.saturation_temperatures(ceiling[rows[s]])
         on_dome = np.isfinite(t_sat) & (t_sat > a[s]) & (t_sat < b[s]) & (t_sat < boundary[s])
         x0[on_dome] = t_sat[on_dome]
 
         def g(t, ix):
             r = rows[s[ix]]
             p, d = fluid.isochore_slopes(rho[r], t)
-            return p / rated[r] - 1.0, d / rated[r]
+            return p / ceiling[r] - 1.0, d / ceiling[r]
 
         def f_only(t, ix):      # the same pressures without the slope (inside the dome: one saturation flash)
             r = rows[s[ix]]
             p, _v, _r = fluid.pressures(rho[r], t, dome=t < boundary[s[ix]], why=False)
-            return p / rated[r] - 1.0
+            return p / ceiling[r] - 1.0
 
         r, settled = _newton_in_bracket(g, a[s], fa[s], b[s], fb[s], x0, np.arange(s.size), f_only)
         root[s[settled]] = r[settled]
