@@ -32,3 +32,9 @@ def ceiling_name(relief: float | None, rated: float) -> str:
     """What the limits are solved against, in words: the rated pressure [Pa], or the relief set pressure [Pa]
     where it is lower (above it the relief device opens; screen.limit_ceiling)."""
     return "the relief set pressure" if relief is not None and relief < rated else "the rated pressure"
+
+
+#: How the limits of a vessel with reading tolerances are found, in words (screen.take_off_tolerances): the
+#: limits' note and the terminal summary say it.
+TOLERANCES_TAKEN_OFF = ("the reading tolerances are taken off: the limits are solved at the tolerances' bounding "
+                        "corner, less the gas-temperature band and the fill-pressure band")

@@ -15,7 +15,7 @@ from typing import Callable, Iterable
 import numpy as np
 
 from screening import __version__
-from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION, ceiling_name
+from screening.cautions import ASSUMPTIONS, CAUTION, SHORT_CAUTION, TOLERANCES_TAKEN_OFF
 from screening.errors import InputError, NotApplicable
 from screening.inputs.case import Case, Exposure
 from screening.physics.eos.generalized import (
@@ -841,8 +841,7 @@ def limits_note(any_real_model: bool, fill_over: bool, case: Case | None = None)
     above the rating, that."""
     if not any_real_model:
         return "no real-gas model applies, so no limit is given"
-    relief_governs = case is not None and ceiling_name(case.relief_set_pressure_pa, case.rated_pressure_pa) \
-        != ceiling_name(None, case.rated_pressure_pa)
+    relief_governs = case is not None and limit_ceiling(case) < case.rated_pressure_pa
     tolerances = case is not None and getattr(case, "tolerance", None) is not None
     return ("solved on each applicable real-gas model; the lowest (most conservative) value is given"
             + ("; solved against the relief set pressure, which is below the rated pressure" if relief_governs
@@ -850,11 +849,6 @@ def limits_note(any_real_model: bool, fill_over: bool, case: Case | None = None)
             + (f"; {TOLERANCES_TAKEN_OFF}" if tolerances else "")
             + ("; the fill itself is at or above the rated pressure, so no gas temperature keeps the vessel "
                "within its rating: the fill must be reduced" if fill_over else ""))
-
-
-#: How the limits of a vessel with reading tolerances are found, in words (take_off_tolerances).
-TOLERANCES_TAKEN_OFF = ("the reading tolerances are taken off: the limits are solved at the tolerances' bounding "
-                        "corner, less the gas-temperature band and the fill-pressure band")
 
 
 def take_off_tolerances(limits: dict, corner: dict, case: Case, fill_over: bool) -> dict:

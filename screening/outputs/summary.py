@@ -13,7 +13,7 @@ import re
 import shutil
 import textwrap
 
-from screening.cautions import ceiling_name
+from screening.cautions import TOLERANCES_TAKEN_OFF, ceiling_name
 from screening.outputs.actions import action_line
 from screening.outputs.text import (
     fmt_pressure,
@@ -178,8 +178,7 @@ def format_summary(result: Result, width: int | None = None) -> str:
     if t_full is not None and t_full >= fill.temperature_k:
         w.add(f"liquid-full temperature: {T(t_full)}", "  ")
     if result.tolerance is not None:
-        w.add("These limits have the reading tolerances taken off: solved at the tolerances' bounding corner, "
-              "less the gas-temperature and fill-pressure bands.", "  ", "  ")
+        w.add(f"In these limits {TOLERANCES_TAKEN_OFF}.", "  ", "  ")
     if result.warnings:
         w.blank()
         w.add("Warnings")
